@@ -1,0 +1,53 @@
+// Shared shapes of the pure pipeline. Pixel data are row-major Float32Array
+// planes, one per colour (1 for grey, 3 for RGB), in linear light unless a name
+// says otherwise. Coordinates are in pixels with (0, 0) at the centre of the
+// top-left pixel, x to the right, y down.
+
+export interface PlaneImage {
+  width: number;
+  height: number;
+  /** One plane per colour, each of length width * height. */
+  planes: Float32Array[];
+}
+
+/** What the pipeline needs of one decoded frame; lib/media produces it. */
+export interface LinearFrame {
+  /** A name that error messages use: the file name. */
+  name: string;
+  image: PlaneImage;
+  /** Exposure time in seconds; the caller refuses a frame without one. */
+  exposureS: number;
+  /** Data numbers: black level (pedestal) and the saturation level, in the plane's units. */
+  blackLevel: number;
+  whiteLevel: number;
+  /**
+   * "linear" for raw, 16-bit TIFF and FITS data; "srgb8" for 8-bit encoded
+   * input (JPEG, 8-bit PNG or TIFF) whose values are 0..255 codes.
+   */
+  encoding: "linear" | "srgb8";
+  /** Capture time in UTC milliseconds since the epoch, when known. */
+  captureTimeMs?: number;
+}
+
+export type RegistrationMode = "moon" | "corona";
+export type StructureFilter = "mgn" | "nrgf";
+
+export interface ReductionParams {
+  registration: RegistrationMode;
+  filter: StructureFilter;
+  /** 8-bit input: recover the camera response from the bracket instead of assuming sRGB. */
+  recoverResponse: boolean;
+  /** Fraction of the white level at and above which a pixel counts as clipped. */
+  clipFraction: number;
+  /** Optional per-frame Moon-minus-Sun offset in master pixels (x right, y down), keyed by frame name. */
+  moonMinusSunPx?: Record<string, { dx: number; dy: number }>;
+}
+
+export const DEFAULT_REDUCTION_PARAMS: ReductionParams = {
+  registration: "corona",
+  filter: "mgn",
+  recoverResponse: false,
+  clipFraction: 0.92,
+};
+
+export type ProgressFn = (stage: string, fraction: number) => void;
