@@ -1,0 +1,55 @@
+// Local stand-in for S3 (s3rver), on loopback only. The app reaches it through
+// @aws-sdk/client-s3 exactly as it would reach real S3; only env differs.
+// Buckets are created at start with a CORS rule that lets the app's origins
+// upload parts straight from the browser and read each part's ETag.
+import path from "node:path";
+import S3rver from "s3rver";
+
+const endpoint = new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:4569");
+const port = Number(endpoint.port || 4569);
+const directory = path.resolve(process.env.S3_FAKE_DIR ?? ".data/s3");
+
+const bucketNames = new Set<string>();
+for (const key of ["S3_BUCKET_ORIGINALS", "S3_BUCKET_DERIVED", "S3_BUCKET_EXPORTS"]) {
+  const name = process.env[key];
+  if (name) {
+    bucketNames.add(name);
+    // The test suite uses its own buckets beside the development ones.
+    bucketNames.add(name.replace(/^crownlight-/, "crownlight-test-"));
+  }
+}
+
+const origins = new Set<string>(["http://127.0.0.1:3000", "http://localhost:3000", "http://127.0.0.1:3100", "http://localhost:3100"]);
+if (process.env.APP_URL) origins.add(new URL(process.env.APP_URL).origin);
+
+const cors = `<CORSConfiguration>
+  <CORSRule>
+${[...origins].map((o) => `    <AllowedOrigin>${o}</AllowedOrigin>`).join("\n")}
+    <AllowedMethod>GET</AllowedMethod>
+    <AllowedMethod>PUT</AllowedMethod>
+    <AllowedMethod>POST</AllowedMethod>
+    <AllowedMethod>HEAD</AllowedMethod>
+    <AllowedHeader>*</AllowedHeader>
+    <ExposeHeader>ETag</ExposeHeader>
+    <MaxAgeSeconds>3000</MaxAgeSeconds>
+  </CORSRule>
+</CORSConfiguration>`;
+
+const server = new S3rver({
+  address: "127.0.0.1",
+  port,
+  directory,
+  silent: true,
+  // Path-style addressing only: the SDK is set to forcePathStyle.
+  vhostBuckets: false,
+  configureBuckets: [...bucketNames].map((name) => ({ name, configs: [cors] })),
+});
+
+await server.run();
+console.log(`s3 fake listening on http://127.0.0.1:${port}, buckets: ${[...bucketNames].join(", ")}`);
+
+const shutdown = () => {
+  server.close().finally(() => process.exit(0));
+};
+process.on("SIGTERM", shutdown);
+process.on("SIGINT", shutdown);

@@ -1,0 +1,54 @@
+# Shared helpers for the project's scripts. Sourced, not run.
+set -euo pipefail
+
+ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/../.." && pwd)"
+DATA="$ROOT/.data"
+RUN="$DATA/run"
+LOGS="$DATA/logs"
+mkdir -p "$RUN" "$LOGS"
+
+say() { printf '[crownlight] %s\n' "$*" >&2; }
+die() { printf '[crownlight] error: %s\n' "$*" >&2; exit 1; }
+
+# Environment: committed defaults, then the developer's own .env, then what the
+# caller already exported wins over both.
+load_env() {
+  local saved
+  saved="$(export -p)"
+  set -a
+  # shellcheck disable=SC1091
+  . "$ROOT/.env.example"
+  [ -f "$ROOT/.env" ] && . "$ROOT/.env"
+  set +a
+  eval "$saved"
+}
+
+is_root() { [ "$(id -u)" = "0" ]; }
+
+# A pid file names a process we started; it is alive only if the process exists.
+pid_alive() {
+  local f="$1"
+  [ -f "$f" ] || return 1
+  local pid
+  pid="$(head -n1 "$f" 2>/dev/null || true)"
+  [ -n "$pid" ] && kill -0 "$pid" 2>/dev/null
+}
+
+# Wait until a TCP port on loopback accepts connections.
+wait_port() {
+  local port="$1" name="$2" tries="${3:-100}"
+  for _ in $(seq 1 "$tries"); do
+    if (exec 3<>"/dev/tcp/127.0.0.1/$port") 2>/dev/null; then return 0; fi
+    sleep 0.1
+  done
+  die "$name did not start listening on 127.0.0.1:$port (see $LOGS)"
+}
+
+port_busy() { (exec 3<>"/dev/tcp/127.0.0.1/$1") 2>/dev/null; }
+
+pg_bin() {
+  local d
+  d="$(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -n1)"
+  [ -n "$d" ] || die "PostgreSQL server binaries not found; run scripts/setup.sh"
+  printf '%s' "$d"
+}
