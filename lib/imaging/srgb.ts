@@ -1,0 +1,72 @@
+// sRGB transfer functions, IEC 61966-2-1:1999, section 5.2 (encode) and 5.3 (decode).
+import type { Rng } from "./random";
+
+const SRGB_LINEAR_LIMIT = 0.0031308;
+const SRGB_CODE_LIMIT = 0.04045;
+
+/** Linear light L in 0..1 to encoded V: V = 12.92 L for L <= 0.0031308, else 1.055 L^(1/2.4) - 0.055. */
+export function encodeSrgb(linear: number): number {
+  if (linear <= 0) return 0;
+  if (linear >= 1) return 1;
+  return linear <= SRGB_LINEAR_LIMIT ? 12.92 * linear : 1.055 * Math.pow(linear, 1 / 2.4) - 0.055;
+}
+
+/** Encoded V in 0..1 to linear L: L = V / 12.92 for V <= 0.04045, else ((V + 0.055) / 1.055)^2.4. */
+export function decodeSrgb(encoded: number): number {
+  if (encoded <= 0) return 0;
+  if (encoded >= 1) return 1;
+  return encoded <= SRGB_CODE_LIMIT ? encoded / 12.92 : Math.pow((encoded + 0.055) / 1.055, 2.4);
+}
+
+/** Relative luminance of linear sRGB primaries (ITU-R BT.709 / IEC 61966-2-1): Y = 0.2126 R + 0.7152 G + 0.0722 B. */
+export function computeLuminance(red: number, green: number, blue: number): number {
+  return 0.2126 * red + 0.7152 * green + 0.0722 * blue;
+}
+
+/** Luminance plane of 1 or 3 linear planes (a single plane is returned as a copy). */
+export function computeLuminancePlane(planes: Float32Array[]): Float32Array {
+  if (planes.length === 1) return Float32Array.from(planes[0]);
+  if (planes.length !== 3) throw new RangeError(`luminance needs 1 or 3 planes, got ${planes.length}`);
+  const [r, g, b] = planes;
+  const out = new Float32Array(r.length);
+  for (let i = 0; i < out.length; i++) out[i] = 0.2126 * r[i] + 0.7152 * g[i] + 0.0722 * b[i];
+  return out;
+}
+
+/** A 256-entry table from 8-bit code to linear light, decode(code / 255). */
+export function createSrgbDecodeTable(): Float64Array {
+  const table = new Float64Array(256);
+  for (let code = 0; code < 256; code++) table[code] = decodeSrgb(code / 255);
+  return table;
+}
+
+/** Encode a linear plane (0..1) to sRGB values (0..1) in a new plane. */
+export function encodeSrgbPlane(linear: Float32Array): Float32Array {
+  const out = new Float32Array(linear.length);
+  for (let i = 0; i < out.length; i++) out[i] = encodeSrgb(linear[i]);
+  return out;
+}
+
+/** Decode an sRGB plane (0..1) to linear light in a new plane. */
+export function decodeSrgbPlane(encoded: Float32Array): Float32Array {
+  const out = new Float32Array(encoded.length);
+  for (let i = 0; i < out.length; i++) out[i] = decodeSrgb(encoded[i]);
+  return out;
+}
+
+/**
+ * Quantize display values in 0..1 to 8-bit codes with triangular (TPDF) dither of
+ * one code peak: q = round(255 v + u1 - u2), u uniform. TPDF dither makes the
+ * quantization error's mean and variance independent of the signal (Lipshitz,
+ * Wannamaker and Vanderkooy 1992, J. Audio Eng. Soc. 40:355), so smooth coronal
+ * gradients do not band.
+ */
+export function ditherToUint8(values: Float32Array, rng: Rng): Uint8Array {
+  const out = new Uint8Array(values.length);
+  for (let i = 0; i < values.length; i++) {
+    const v = values[i];
+    const q = Math.round(255 * (v > 0 ? (v < 1 ? v : 1) : 0) + rng() - rng());
+    out[i] = q < 0 ? 0 : q > 255 ? 255 : q;
+  }
+  return out;
+}
