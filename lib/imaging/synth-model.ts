@@ -1,0 +1,313 @@
+// The pure part of our synthetic bracket generator: a K+F corona with streamers,
+// fine rays and prominences, occulted by a drifting lunar disk with earthshine,
+// seen by a camera that shifts and turns a little between frames, with photon
+// and read noise and clipping. File writers live in lib/media.
+import { blurGaussian } from "./blur";
+import { ImagingError } from "./errors";
+import { createRng, sampleGaussian, samplePoisson, type Rng } from "./random";
+import { applyAffine, invertAffine, toAffine, type SimilarityTransform } from "./similarity";
+
+/**
+ * Baumbach (1937) K+F corona brightness in units of the mean solar disk, r in
+ * solar radii (REFERENCES.md, from memory): I(r) = 1e-6 (0.0532 r^-2.5 + 1.425 r^-7 + 2.565 r^-17).
+ */
+export function computeBaumbachBrightness(rSun: number): number {
+  // Powers by multiplication: this runs for every pixel of every synthetic frame.
+  const inv = 1 / rSun;
+  const inv2 = inv * inv;
+  const inv7 = inv2 * inv2 * inv2 * inv;
+  const inv17 = inv7 * inv7 * inv2 * inv;
+  return 1e-6 * (0.0532 * inv2 * Math.sqrt(inv) + 1.425 * inv7 + 2.565 * inv17);
+}
+
+export interface SynthOptions {
+  width: number;
+  height: number;
+  channels: 1 | 3;
+  exposuresS: number[];
+  sunRadiusPx: number;
+  seed: number;
+  /** Sun centre in scene (reference) pixels; default a little off the image centre. */
+  sunCentre?: { x: number; y: number };
+  /** Moon radius over Sun radius; default 1.045. */
+  moonRadiusRatio?: number;
+  /** Moon minus Sun at the first frame, px; default (0.012, -0.008) Sun radii. */
+  moonOffsetPx?: { dx: number; dy: number };
+  /** Moon motion against the Sun from one frame to the next, px; default none. */
+  moonDriftPxPerFrame?: { dx: number; dy: number };
+  /** Per-frame camera pointing: frame = scale R(rot) (scene - c) + c + shift (see similarity.ts). */
+  shiftsPx?: { dx: number; dy: number }[];
+  rotationsDeg?: number[];
+  scales?: number[];
+  whiteLevel?: number;
+  blackLevel?: number;
+  readNoiseDn?: number;
+  electronsPerDn?: number;
+  /** K+F corona rate at the limb (r = 1), DN/s; scales the whole scene. Default 4e6. */
+  limbRateDnPerS?: number;
+  streamerCount?: number;
+  prominenceCount?: number;
+  /** Peak prominence brightness over the limb corona; default 6. */
+  prominenceContrast?: number;
+  /** Earthshine over the mean solar disk; default 1e-9. */
+  earthshineRatio?: number;
+  psfSigmaPx?: number;
+  /** Photon and read noise; default true. */
+  noise?: boolean;
+  captureStartMs?: number;
+  frameIntervalS?: number;
+}
+
+export interface SynthFrame {
+  name: string;
+  exposureS: number;
+  captureTimeMs: number;
+  /** DN including the black level, rounded and clipped at the white level. */
+  planes: Float32Array[];
+}
+
+export interface SynthTruth {
+  /** Scene radiance in DN/s per plane, without the Moon, blurred by the PSF; 0 inside the solar disk. */
+  radiance: Float32Array[];
+  sunCentre: { x: number; y: number };
+  sunRadiusPx: number;
+  moonRadiusPx: number;
+  /** Moon centre per frame in scene pixels. */
+  moonScene: { x: number; y: number }[];
+  /** Moon centre per frame in that frame's pixels. */
+  moonInFrame: { x: number; y: number }[];
+  /** Moon minus Sun per frame in scene pixels. */
+  moonMinusSunPx: { dx: number; dy: number }[];
+  /** Scene to frame, per frame. */
+  transforms: SimilarityTransform[];
+  whiteLevel: number;
+  blackLevel: number;
+}
+
+interface Streamer { angle: number; amplitude: number; widthRad: number }
+interface Ray { m: number; phase: number; amplitude: number }
+interface Prominence { x: number; y: number; sigma: number; peak: number }
+
+const CORONA_COLOUR = [1.0, 0.96, 0.88];
+const PROMINENCE_COLOUR = [1.0, 0.32, 0.28];
+const EARTHSHINE_COLOUR = [0.82, 0.9, 1.0];
+
+function requireOption(ok: boolean, field: string, detail: string): void {
+  if (!ok) throw new ImagingError("bad-parameter", `synthesizeBracket: ${field} ${detail}`);
+}
+
+interface Scene {
+  sunX: number; sunY: number; sunR: number; scale: number;
+  streamers: Streamer[]; prominences: Prominence[];
+  /** Fine-ray modulation tabulated over position angle (RAY_TABLE_SIZE steps over 2 pi), for speed. */
+  rayTable: Float64Array;
+}
+
+const RAY_TABLE_SIZE = 16384;
+
+function createScene(o: Required<Pick<SynthOptions, "sunRadiusPx">> & SynthOptions, sun: { x: number; y: number }, rng: Rng): Scene {
+  const streamers: Streamer[] = [];
+  for (let k = 0; k < (o.streamerCount ?? 5); k++) {
+    streamers.push({ angle: rng() * 2 * Math.PI, amplitude: 0.6 + 1.6 * rng(), widthRad: 0.12 + 0.25 * rng() });
+  }
+  const rays: Ray[] = [];
+  for (let k = 0; k < 28; k++) rays.push({ m: 12 + Math.floor(rng() * 150), phase: rng() * 2 * Math.PI, amplitude: 0.22 / Math.sqrt(28) * (0.5 + rng()) });
+  const prominences: Prominence[] = [];
+  const limbRate = o.limbRateDnPerS ?? 4e6;
+  for (let k = 0; k < (o.prominenceCount ?? 4); k++) {
+    const angle = rng() * 2 * Math.PI;
+    const height = o.sunRadiusPx * (1.0 + 0.05 * rng());
+    prominences.push({
+      x: sun.x + height * Math.cos(angle),
+      y: sun.y + height * Math.sin(angle),
+      sigma: Math.max(1.5, o.sunRadiusPx * (0.015 + 0.025 * rng())),
+      peak: limbRate * (o.prominenceContrast ?? 6) * (0.5 + rng()),
+    });
+  }
+  const rayTable = new Float64Array(RAY_TABLE_SIZE + 1);
+  for (let k = 0; k <= RAY_TABLE_SIZE; k++) {
+    const phi = (2 * Math.PI * k) / RAY_TABLE_SIZE - Math.PI;
+    let v = 1;
+    for (const ray of rays) v += ray.amplitude * Math.cos(ray.m * phi + ray.phase);
+    rayTable[k] = v;
+  }
+  return { sunX: sun.x, sunY: sun.y, sunR: o.sunRadiusPx, scale: limbRate / computeBaumbachBrightness(1), streamers, prominences, rayTable };
+}
+
+// Corona and prominences at a scene point, DN/s, before colour.
+function evaluateCorona(s: Scene, x: number, y: number): number {
+  const dx = x - s.sunX;
+  const dy = y - s.sunY;
+  const r = Math.sqrt(dx * dx + dy * dy) / s.sunR;
+  if (r < 1) return 0;
+  const phi = Math.atan2(dy, dx);
+  let modulation = 0.45;
+  for (let k = 0; k < s.streamers.length; k++) {
+    const st = s.streamers[k];
+    let d = phi - st.angle;
+    if (d > Math.PI) d -= 2 * Math.PI;
+    else if (d < -Math.PI) d += 2 * Math.PI;
+    // Streamers narrow with height: width w0 / sqrt(r).
+    const e = (-0.5 * d * d * r) / (st.widthRad * st.widthRad);
+    if (e > -30) modulation += st.amplitude * Math.exp(e);
+  }
+  const u = ((phi + Math.PI) / (2 * Math.PI)) * RAY_TABLE_SIZE;
+  const k = Math.min(RAY_TABLE_SIZE - 1, Math.floor(u));
+  const rays = s.rayTable[k] + (u - k) * (s.rayTable[k + 1] - s.rayTable[k]);
+  return s.scale * computeBaumbachBrightness(r) * modulation * rays;
+}
+
+function evaluateProminences(s: Scene, x: number, y: number): number {
+  let v = 0;
+  for (let k = 0; k < s.prominences.length; k++) {
+    const p = s.prominences[k];
+    const d2 = (x - p.x) ** 2 + (y - p.y) ** 2;
+    if (d2 < 25 * p.sigma * p.sigma) v += p.peak * Math.exp((-0.5 * d2) / (p.sigma * p.sigma));
+  }
+  return v;
+}
+
+const SUPERSAMPLE_EDGE = [-0.375, -0.125, 0.125, 0.375];
+
+/**
+ * Renders a synthetic bracket. Each frame sees the scene through its own
+ * similarity transform (scene to frame) with the Moon at its own place; the
+ * lunar edge is anti-aliased over 4 x 4 sub-pixels (the corona is sampled at
+ * pixel centres, as it varies slowly), the light is blurred by a Gaussian PSF, then exposed:
+ * electrons ~ Poisson(rate t g), DN = electrons / g + black + read noise,
+ * rounded and clipped to [0, white].
+ */
+export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]; truth: SynthTruth } {
+  const o = options;
+  const { width, height, channels, exposuresS, sunRadiusPx } = o;
+  requireOption(Number.isInteger(width) && width >= 16 && width <= 8192, "width", `must be an integer in [16, 8192], got ${width}`);
+  requireOption(Number.isInteger(height) && height >= 16 && height <= 8192, "height", `must be an integer in [16, 8192], got ${height}`);
+  requireOption(channels === 1 || channels === 3, "channels", `must be 1 or 3, got ${channels}`);
+  requireOption(Array.isArray(exposuresS) && exposuresS.length >= 1, "exposuresS", "must list at least one exposure");
+  exposuresS.forEach((t, i) => requireOption(Number.isFinite(t) && t > 0, `exposuresS[${i}]`, `must be a positive number of seconds, got ${t}`));
+  requireOption(sunRadiusPx > 2 && sunRadiusPx < Math.min(width, height), "sunRadiusPx", `must be between 2 and the image size, got ${sunRadiusPx}`);
+  const n = exposuresS.length;
+  for (const [field, list] of [["shiftsPx", o.shiftsPx], ["rotationsDeg", o.rotationsDeg], ["scales", o.scales]] as const) {
+    requireOption(list === undefined || list.length === n, field, `must have one entry per exposure (${n}), got ${list?.length}`);
+  }
+  const whiteLevel = o.whiteLevel ?? 16383;
+  const blackLevel = o.blackLevel ?? 512;
+  requireOption(whiteLevel > blackLevel && blackLevel >= 0, "whiteLevel", `must exceed blackLevel (${blackLevel}), got ${whiteLevel}`);
+  const readNoise = o.readNoiseDn ?? 2.5;
+  const gain = o.electronsPerDn ?? 1;
+  const psf = o.psfSigmaPx ?? 1;
+  requireOption(psf === 0 || psf >= 0.5, "psfSigmaPx", `must be 0 or at least 0.5, got ${psf}`);
+  const rng = createRng(o.seed);
+  const sun = o.sunCentre ?? { x: (width - 1) / 2 + 0.37, y: (height - 1) / 2 - 0.21 };
+  const scene = createScene(o, sun, rng);
+  const moonR = sunRadiusPx * (o.moonRadiusRatio ?? 1.045);
+  const offset0 = o.moonOffsetPx ?? { dx: 0.012 * sunRadiusPx, dy: -0.008 * sunRadiusPx };
+  const drift = o.moonDriftPxPerFrame ?? { dx: 0, dy: 0 };
+  const earthshine = scene.scale * (o.earthshineRatio ?? 1e-9);
+  const plane = width * height;
+
+  const transforms: SimilarityTransform[] = [];
+  const moonScene: { x: number; y: number }[] = [];
+  const moonInFrame: { x: number; y: number }[] = [];
+  const moonMinusSunPx: { dx: number; dy: number }[] = [];
+  const frames: SynthFrame[] = [];
+  const start = o.captureStartMs ?? Date.UTC(2027, 7, 2, 10, 3, 0);
+  const interval = o.frameIntervalS ?? 1.5;
+
+  for (let f = 0; f < n; f++) {
+    const t: SimilarityTransform = {
+      dx: o.shiftsPx?.[f].dx ?? 0,
+      dy: o.shiftsPx?.[f].dy ?? 0,
+      rotationDeg: o.rotationsDeg?.[f] ?? 0,
+      scale: o.scales?.[f] ?? 1,
+    };
+    transforms.push(t);
+    const offset = { dx: offset0.dx + f * drift.dx, dy: offset0.dy + f * drift.dy };
+    requireOption(Math.hypot(offset.dx, offset.dy) + sunRadiusPx < moonR, "moonOffsetPx", `leaves the Sun uncovered at frame ${f}: the eclipse must stay total`);
+    moonMinusSunPx.push(offset);
+    const moon = { x: sun.x + offset.dx, y: sun.y + offset.dy };
+    moonScene.push(moon);
+    const toFrame = toAffine(t, width, height);
+    moonInFrame.push(applyAffine(toFrame, moon.x, moon.y));
+    const toScene = invertAffine(toFrame);
+
+    // Radiance in frame pixels, one grey plane, plus the share of prominence and earthshine light for colour.
+    const corona = new Float32Array(plane);
+    const prom = channels === 3 ? new Float32Array(plane) : corona;
+    const shine = channels === 3 ? new Float32Array(plane) : corona;
+    for (let y = 0; y < height; y++) {
+      for (let x = 0; x < width; x++) {
+        const qx = toScene.a * x - toScene.b * y + toScene.tx;
+        const qy = toScene.b * x + toScene.a * y + toScene.ty;
+        const rho = Math.sqrt((qx - moon.x) ** 2 + (qy - moon.y) ** 2);
+        // Share of the pixel covered by the Moon: exact away from the edge, 4 x 4 sub-samples within a pixel of it.
+        let covered: number;
+        if (rho < moonR - 1) covered = 1;
+        else if (rho > moonR + 1) covered = 0;
+        else {
+          covered = 0;
+          for (const sy of SUPERSAMPLE_EDGE) {
+            for (const sx of SUPERSAMPLE_EDGE) {
+              const ux = qx + toScene.a * sx - toScene.b * sy;
+              const uy = qy + toScene.b * sx + toScene.a * sy;
+              if ((ux - moon.x) ** 2 + (uy - moon.y) ** 2 < moonR * moonR) covered++;
+            }
+          }
+          covered /= SUPERSAMPLE_EDGE.length ** 2;
+        }
+        const open = 1 - covered;
+        const c = open > 0 ? open * evaluateCorona(scene, qx, qy) : 0;
+        const p = open > 0 ? open * evaluateProminences(scene, qx, qy) : 0;
+        const e = covered * earthshine;
+        const i = y * width + x;
+        if (channels === 3) {
+          corona[i] = c;
+          prom[i] = p;
+          shine[i] = e;
+        } else corona[i] = c + p + e;
+      }
+    }
+    const rates: Float32Array[] = [];
+    for (let ch = 0; ch < channels; ch++) {
+      let r: Float32Array;
+      if (channels === 3) {
+        r = new Float32Array(plane);
+        for (let i = 0; i < plane; i++) r[i] = CORONA_COLOUR[ch] * corona[i] + PROMINENCE_COLOUR[ch] * prom[i] + EARTHSHINE_COLOUR[ch] * shine[i];
+      } else r = corona;
+      rates.push(psf > 0 ? blurGaussian(r, width, height, psf) : r);
+    }
+    const exposureS = exposuresS[f];
+    const planes = rates.map((rate) => {
+      const dn = new Float32Array(plane);
+      for (let i = 0; i < plane; i++) {
+        const mean = Math.max(0, rate[i]) * exposureS;
+        let v = o.noise === false ? mean : samplePoisson(rng, mean * gain) / gain + readNoise * sampleGaussian(rng);
+        v = Math.round(v + blackLevel);
+        dn[i] = v < 0 ? 0 : v > whiteLevel ? whiteLevel : v;
+      }
+      return dn;
+    });
+    frames.push({ name: `synthetic-${String(f + 1).padStart(2, "0")}.fits`, exposureS, captureTimeMs: start + f * interval * 1000, planes });
+  }
+
+  const radiance: Float32Array[] = [];
+  const grey = new Float32Array(plane);
+  const promGrey = new Float32Array(plane);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      grey[y * width + x] = evaluateCorona(scene, x, y);
+      promGrey[y * width + x] = evaluateProminences(scene, x, y);
+    }
+  }
+  for (let ch = 0; ch < channels; ch++) {
+    const r = new Float32Array(plane);
+    const cc = channels === 3 ? CORONA_COLOUR[ch] : 1;
+    const pc = channels === 3 ? PROMINENCE_COLOUR[ch] : 1;
+    for (let i = 0; i < plane; i++) r[i] = cc * grey[i] + pc * promGrey[i];
+    radiance.push(psf > 0 ? blurGaussian(r, width, height, psf) : r);
+  }
+  return {
+    frames,
+    truth: { radiance, sunCentre: sun, sunRadiusPx, moonRadiusPx: moonR, moonScene, moonInFrame, moonMinusSunPx, transforms, whiteLevel, blackLevel },
+  };
+}
