@@ -1,0 +1,38 @@
+import "server-only";
+import type { z } from "zod";
+import type { Actor } from "@/lib/auth/actor";
+import { requirePermission } from "@/lib/auth/actor";
+import type { Action } from "@/lib/auth/permissions";
+import { AppError, toErrorBody, type FieldProblem } from "@/lib/errors";
+import { parseInput } from "@/lib/validation";
+import { currentActor } from "./actor";
+
+/** What every server action answers; forms show message and field errors. */
+export interface ActionResult {
+  ok: boolean;
+  message: string;
+  fields?: FieldProblem[];
+}
+
+/**
+ * The one wrapper for server actions: session and permission checked on the
+ * server, FormData parsed with zod (coerce numbers: form fields are strings),
+ * errors mapped to a message the form can show.
+ */
+export function serverAction<S extends z.ZodType>(
+  action: Action,
+  schema: S,
+  run: (actor: Actor, input: z.infer<S>) => Promise<string>,
+) {
+  return async (_prev: ActionResult | null, form: FormData): Promise<ActionResult> => {
+    try {
+      const actor = requirePermission(await currentActor(), action);
+      const input = parseInput(schema, Object.fromEntries(form.entries()));
+      return { ok: true, message: await run(actor, input) };
+    } catch (err) {
+      if (err instanceof AppError) return { ok: false, message: err.message, fields: err.fields };
+      const { body } = toErrorBody(err);
+      return { ok: false, message: body.error.message };
+    }
+  };
+}

@@ -1,0 +1,51 @@
+import type { Metadata } from "next";
+import type { ReactNode } from "react";
+import { SiteFooter } from "@/components/shell/site-footer";
+import { SiteHeader } from "@/components/shell/site-header";
+import { ThemeScript } from "@/components/shell/theme-script";
+import { SignOutButton } from "@/components/auth/sign-out-button";
+import { ToastProvider } from "@/components/ui/toast";
+import { getDb } from "@/db/client";
+import { findSocietySettings } from "@/db/queries/settings";
+import { navFor } from "@/lib/auth/nav";
+import { ROLE_LABELS } from "@/lib/auth/roles";
+import { currentActor } from "./_server/actor";
+import { mono, sans } from "./fonts";
+import "./globals.css";
+
+// Every page depends on the session and the society's settings.
+export const dynamic = "force-dynamic";
+
+export async function generateMetadata(): Promise<Metadata> {
+  const settings = await findSocietySettings(getDb());
+  return {
+    title: { default: settings.name, template: `%s · ${settings.shortName}` },
+    description: `${settings.name}: eclipse photographs of the corona, from bracket to print.`,
+  };
+}
+
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  const [settings, actor] = await Promise.all([findSocietySettings(getDb()), currentActor()]);
+  const nav = navFor(actor?.roles ?? []).map((e) => ({ href: e.href, label: e.label }));
+  return (
+    <html lang="en" className={`${sans.variable} ${mono.variable}`} suppressHydrationWarning>
+      <head>
+        <ThemeScript />
+      </head>
+      <body className="flex min-h-screen flex-col bg-surface font-sans text-ink antialiased">
+        <ToastProvider>
+          <SiteHeader
+            societyName={settings.name}
+            nav={nav}
+            user={actor ? { name: actor.name, email: actor.email, roles: actor.roles.map((r) => ROLE_LABELS[r]) } : null}
+            accountSlot={actor ? <SignOutButton /> : undefined}
+          />
+          <main id="main" tabIndex={-1} className="mx-auto w-full max-w-7xl flex-1 px-4 py-8 outline-none sm:px-6">
+            {children}
+          </main>
+          <SiteFooter textLicence={{ name: settings.siteTextLicenceName, href: settings.siteTextLicenceUrl }} />
+        </ToastProvider>
+      </body>
+    </html>
+  );
+}

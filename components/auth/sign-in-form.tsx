@@ -1,0 +1,57 @@
+"use client";
+import Link from "next/link";
+import { useRouter } from "next/navigation";
+import { useState, type FormEvent } from "react";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { SubmitButton } from "@/components/ui/submit-button";
+import { authClient } from "./auth-client";
+import { describeAuthError } from "./auth-errors";
+import { FormMessage } from "./form-message";
+
+/** Only same-site paths are followed after sign-in, never another origin. */
+function safeNext(next: string | undefined): string {
+  return next && next.startsWith("/") && !next.startsWith("//") ? next : "/";
+}
+
+export function SignInForm({ next }: { next?: string }) {
+  const router = useRouter();
+  const [error, setError] = useState("");
+  const [pending, setPending] = useState(false);
+
+  async function onSubmit(e: FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const form = new FormData(e.currentTarget);
+    setPending(true);
+    setError("");
+    const { error } = await authClient.signIn.email({
+      email: String(form.get("email") ?? ""),
+      password: String(form.get("password") ?? ""),
+    });
+    setPending(false);
+    if (error) {
+      setError(describeAuthError(error));
+      return;
+    }
+    router.push(safeNext(next));
+    router.refresh();
+  }
+
+  return (
+    <form onSubmit={onSubmit} className="flex flex-col gap-4" noValidate={false}>
+      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Field label="E-mail">
+        <Input name="email" type="email" autoComplete="email" required />
+      </Field>
+      <Field label="Password">
+        <Input name="password" type="password" autoComplete="current-password" required />
+      </Field>
+      <SubmitButton pending={pending} pendingLabel="Signing in…">
+        Sign in
+      </SubmitButton>
+      <p className="text-sm text-ink-muted">
+        <Link href="/forgot-password">Forgotten your password?</Link> · <Link href="/sign-up">Create an account</Link>
+      </p>
+    </form>
+  );
+}

@@ -1,0 +1,65 @@
+"use client";
+import { useState, type FormEvent } from "react";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { SubmitButton } from "@/components/ui/submit-button";
+import { authClient } from "./auth-client";
+import { describeAuthError } from "./auth-errors";
+import { FormMessage } from "./form-message";
+
+export function SignUpForm() {
+  const [error, setError] = useState("");
+  const [sentTo, setSentTo] = useState("");
+  const [pending, setPending] = useState(false);
+
+  async function onSubmit(e: FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const form = new FormData(e.currentTarget);
+    const email = String(form.get("email") ?? "").trim();
+    const password = String(form.get("password") ?? "");
+    if (password !== String(form.get("confirm") ?? "")) {
+      setError("The two passwords differ.");
+      return;
+    }
+    setPending(true);
+    setError("");
+    const { error } = await authClient.signUp.email({
+      name: String(form.get("name") ?? "").trim(),
+      email,
+      password,
+      callbackURL: "/welcome",
+    });
+    setPending(false);
+    if (error) setError(describeAuthError(error));
+    else setSentTo(email);
+  }
+
+  if (sentTo) {
+    return (
+      <FormMessage tone="ok">
+        Almost there: we sent a confirmation link to {sentTo}. Open it to finish signing up.
+      </FormMessage>
+    );
+  }
+
+  return (
+    <form onSubmit={onSubmit} className="flex flex-col gap-4">
+      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Field label="Name" hint="As it should appear in photo credits.">
+        <Input name="name" autoComplete="name" required minLength={2} maxLength={100} />
+      </Field>
+      <Field label="E-mail">
+        <Input name="email" type="email" autoComplete="email" required />
+      </Field>
+      <Field label="Password" hint="At least 10 characters.">
+        <Input name="password" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
+      </Field>
+      <Field label="Password again">
+        <Input name="confirm" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
+      </Field>
+      <SubmitButton pending={pending} pendingLabel="Creating your account…">
+        Create account
+      </SubmitButton>
+    </form>
+  );
+}

@@ -1,0 +1,4 @@
+export * from "./auth";
+export * from "./jobs";
+export * from "./society";
+export * from "./mail";

@@ -1,0 +1,32 @@
+// The society's own settings (one row) and the audit log every decision writes.
+import { bigserial, index, integer, jsonb, pgTable, text, timestamp } from "drizzle-orm/pg-core";
+import { users } from "./auth";
+
+export const societySettings = pgTable("society_settings", {
+  // A single row with id 1; the check keeps it single.
+  id: integer("id").primaryKey().default(1),
+  name: text("name").notNull(),
+  shortName: text("short_name").notNull(),
+  defaultLicence: text("default_licence").notNull().default("CC-BY-4.0"),
+  defaultCreditLine: text("default_credit_line").notNull(),
+  siteTextLicenceName: text("site_text_licence_name").notNull().default("CC BY 4.0"),
+  siteTextLicenceUrl: text("site_text_licence_url").notNull().default("https://creativecommons.org/licenses/by/4.0/"),
+  updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+});
+
+export const auditLog = pgTable(
+  "audit_log",
+  {
+    id: bigserial("id", { mode: "number" }).primaryKey(),
+    actorId: text("actor_id").references(() => users.id, { onDelete: "set null" }),
+    action: text("action").notNull(),
+    subjectType: text("subject_type").notNull(),
+    subjectId: text("subject_id").notNull(),
+    detail: jsonb("detail").$type<Record<string, unknown>>().notNull().default({}),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("audit_log_subject_idx").on(t.subjectType, t.subjectId), index("audit_log_created_idx").on(t.createdAt)],
+);
+
+export type SocietySettings = typeof societySettings.$inferSelect;
+export type AuditEntry = typeof auditLog.$inferSelect;

@@ -1,0 +1,87 @@
+// better-auth: e-mail and password with verification and reset mailed through
+// the outbox (worker job), rate-limited sign-in kept in Redis, and a member role
+// granted to every new account. Created lazily so that importing this module
+// needs no environment (next build, tests).
+import { betterAuth } from "better-auth";
+import { drizzleAdapter } from "better-auth/adapters/drizzle";
+import { getDb } from "@/db/client";
+import { findSocietySettings } from "@/db/queries/settings";
+import { insertRole } from "@/db/queries/roles";
+import * as schema from "@/db/schema";
+import { queueMail } from "@/lib/email/outbox";
+import { passwordResetMail, verificationMail } from "@/lib/email/templates";
+import { getEnv } from "@/lib/env";
+import { getProducerRedis } from "@/lib/queue/connection";
+import { createRedisRateStore } from "@/lib/rate-limit/redis-store";
+
+/** Sign-in attempts per address and minute before answers become 429. */
+export const SIGN_IN_ATTEMPTS_PER_MINUTE = 10;
+
+function createAuth() {
+  const env = getEnv();
+  const db = getDb();
+  const appOrigin = new URL(env.APP_URL).origin;
+  const altOrigin = appOrigin.includes("127.0.0.1") ? appOrigin.replace("127.0.0.1", "localhost") : appOrigin.replace("localhost", "127.0.0.1");
+
+  return betterAuth({
+    appName: "Crownlight",
+    baseURL: env.BETTER_AUTH_URL,
+    secret: env.BETTER_AUTH_SECRET,
+    trustedOrigins: [appOrigin, altOrigin],
+    database: drizzleAdapter(db, { provider: "pg", usePlural: true, schema }),
+    emailAndPassword: {
+      enabled: true,
+      requireEmailVerification: true,
+      minPasswordLength: 10,
+      maxPasswordLength: 128,
+      resetPasswordTokenExpiresIn: 3600,
+      revokeSessionsOnPasswordReset: true,
+      async sendResetPassword({ user, url }) {
+        const society = (await findSocietySettings(db)).name;
+        await queueMail(db, passwordResetMail(society, user.email, user.name, url));
+      },
+    },
+    emailVerification: {
+      sendOnSignUp: true,
+      autoSignInAfterVerification: true,
+      expiresIn: 24 * 3600,
+      async sendVerificationEmail({ user, url }) {
+        const society = (await findSocietySettings(db)).name;
+        await queueMail(db, verificationMail(society, user.email, user.name, url));
+      },
+    },
+    session: { expiresIn: 30 * 24 * 3600, updateAge: 24 * 3600 },
+    rateLimit: {
+      enabled: true,
+      window: 60,
+      max: 200,
+      customStorage: createRedisRateStore(getProducerRedis(), "crownlight:auth-rate:"),
+      customRules: {
+        "/sign-in/email": { window: 60, max: SIGN_IN_ATTEMPTS_PER_MINUTE },
+        "/sign-up/email": { window: 60, max: 10 },
+        "/request-password-reset": { window: 60, max: 5 },
+        "/send-verification-email": { window: 60, max: 5 },
+      },
+    },
+    databaseHooks: {
+      user: {
+        create: {
+          async after(user) {
+            await insertRole(db, user.id, "member", null);
+          },
+        },
+      },
+    },
+    advanced: {
+      ipAddress: { ipAddressHeaders: ["x-forwarded-for", "x-real-ip"] },
+    },
+  });
+}
+
+type Auth = ReturnType<typeof createAuth>;
+let instance: Auth | undefined;
+
+export function getAuth(): Auth {
+  instance ??= createAuth();
+  return instance;
+}

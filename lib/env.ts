@@ -1,0 +1,98 @@
+// Configuration, validated once at start by the web app (instrumentation.ts)
+// and the worker (worker/index.ts). A missing or malformed value stops the
+// process with the variable's name. Defaults for local development live in
+// .env.example, which the scripts export; nothing here invents a value.
+import { z } from "zod";
+
+const DEFAULT_SECRET = "development-only-secret-change-me-0123456789";
+
+const bool = z
+  .enum(["true", "false", "1", "0"], { error: "expected true or false" })
+  .transform((v) => v === "true" || v === "1");
+
+const url = (protocols: string[]) =>
+  z.string({ error: "is missing" }).refine(
+    (v) => {
+      try {
+        return protocols.includes(new URL(v).protocol);
+      } catch {
+        return false;
+      }
+    },
+    { error: `expected a URL (${protocols.join(" or ")})` },
+  );
+
+export const envSchema = z
+  .object({
+    NODE_ENV: z.enum(["development", "test", "production"]).default("development"),
+    APP_URL: url(["http:", "https:"]),
+    DATABASE_URL: url(["postgres:", "postgresql:"]),
+    REDIS_URL: url(["redis:", "rediss:"]),
+    S3_ENDPOINT: z.union([url(["http:", "https:"]), z.literal("")]).optional(),
+    S3_REGION: z.string({ error: "is missing" }).min(1, { error: "must not be empty" }),
+    S3_ACCESS_KEY_ID: z.string({ error: "is missing" }).min(1, { error: "must not be empty" }),
+    S3_SECRET_ACCESS_KEY: z.string({ error: "is missing" }).min(1, { error: "must not be empty" }),
+    S3_FORCE_PATH_STYLE: bool.default(false),
+    S3_BUCKET_ORIGINALS: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
+    S3_BUCKET_DERIVED: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
+    S3_BUCKET_EXPORTS: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
+    SMTP_URL: url(["smtp:", "smtps:"]),
+    SMTP_IGNORE_TLS: bool.default(false),
+    MAIL_FROM: z.string({ error: "is missing" }).min(3, { error: "must be a sender address" }),
+    BETTER_AUTH_SECRET: z.string({ error: "is missing" }).min(32, { error: "must be at least 32 characters" }),
+    BETTER_AUTH_URL: url(["http:", "https:"]),
+  })
+  .superRefine((env, ctx) => {
+    // The committed development secret is refused wherever the app is served
+    // beyond this machine; a local production build on loopback may keep it.
+    const host = new URL(env.APP_URL).hostname;
+    const isLoopback = host === "127.0.0.1" || host === "localhost" || host === "[::1]";
+    if (env.NODE_ENV === "production" && !isLoopback && env.BETTER_AUTH_SECRET === DEFAULT_SECRET) {
+      ctx.addIssue({
+        code: "custom",
+        path: ["BETTER_AUTH_SECRET"],
+        message: "is the development default; a public deployment needs its own secret",
+      });
+    }
+  });
+
+export type Env = z.infer<typeof envSchema>;
+
+export class EnvError extends Error {
+  constructor(readonly problems: { name: string; message: string }[]) {
+    super(`Configuration is not valid:\n${problems.map((p) => `  ${p.name} ${p.message}`).join("\n")}`);
+    this.name = "EnvError";
+  }
+}
+
+/** Parses a set of variables; throws EnvError naming every bad variable. */
+export function parseEnv(source: Record<string, string | undefined>): Env {
+  const result = envSchema.safeParse(source);
+  if (result.success) return result.data;
+  const problems = result.error.issues.map((issue) => ({
+    name: String(issue.path[0] ?? "(environment)"),
+    message: issue.message,
+  }));
+  throw new EnvError(problems);
+}
+
+let cached: Env | undefined;
+
+/** The process's configuration, parsed on first use. */
+export function getEnv(): Env {
+  cached ??= parseEnv(process.env);
+  return cached;
+}
+
+/** For process entry points: validate or print the names and exit. */
+export function requireEnvOrExit(processName: string): Env {
+  try {
+    return getEnv();
+  } catch (err) {
+    if (err instanceof EnvError) {
+      console.error(`[${processName}] ${err.message}`);
+      process.exit(1);
+    }
+    throw err;
+  }
+}

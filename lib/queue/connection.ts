@@ -1,0 +1,31 @@
+// Redis connections for BullMQ. Workers need maxRetriesPerRequest: null; a
+// producer gives up after a few retries instead, so a request never hangs on a
+// Redis outage. Commands issued while connecting wait in the offline queue.
+import IORedis, { type Redis } from "ioredis";
+
+export function createRedis(url: string, forWorker: boolean): Redis {
+  return new IORedis(url, {
+    maxRetriesPerRequest: forWorker ? null : 2,
+    enableOfflineQueue: true,
+    connectTimeout: 5000,
+    lazyConnect: false,
+  });
+}
+
+let producer: Redis | undefined;
+
+export function getProducerRedis(): Redis {
+  if (!producer) {
+    const url = process.env.REDIS_URL;
+    if (!url) throw new Error("REDIS_URL is missing");
+    producer = createRedis(url, false);
+  }
+  return producer;
+}
+
+export async function closeProducerRedis(): Promise<void> {
+  if (producer) {
+    producer.disconnect();
+    producer = undefined;
+  }
+}

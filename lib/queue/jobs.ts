@@ -1,0 +1,22 @@
+// The typed job registry shared by producers (lib, app) and the worker. Each
+// job has a name, the queue it runs on, a zod payload of ids only, and retry
+// settings. Handlers live in worker/jobs/, one file per job.
+import { z } from "zod";
+
+export const QUEUES = ["mail", "media"] as const;
+export type QueueName = (typeof QUEUES)[number];
+
+export const JOBS = {
+  "mail.send": {
+    queue: "mail",
+    payload: z.object({ outboxId: z.string().min(1) }),
+    attempts: 5,
+  },
+} as const satisfies Record<string, { queue: QueueName; payload: z.ZodType; attempts: number }>;
+
+export type JobName = keyof typeof JOBS;
+export type JobPayload<N extends JobName> = z.infer<(typeof JOBS)[N]["payload"]>;
+
+export function isJobName(name: string): name is JobName {
+  return Object.hasOwn(JOBS, name);
+}

@@ -1,0 +1,25 @@
+/** @type {import('next').NextConfig} */
+const nextConfig = {
+  reactStrictMode: true,
+  poweredByHeader: false,
+  // sharp and the pg driver stay native Node modules on the server.
+  serverExternalPackages: ["sharp", "pg", "exiftool-vendored", "bullmq", "ioredis"],
+  experimental: {
+    // forbidden() and unauthorized() from next/navigation for pages.
+    authInterrupts: true,
+  },
+  async headers() {
+    return [
+      {
+        source: "/:path*",
+        headers: [
+          { key: "X-Content-Type-Options", value: "nosniff" },
+          { key: "Referrer-Policy", value: "strict-origin-when-cross-origin" },
+          { key: "X-Frame-Options", value: "SAMEORIGIN" },
+        ],
+      },
+    ];
+  },
+};
+
+export default nextConfig;

@@ -1,0 +1,19 @@
+// Handlers by job name, typed against the shared registry in lib/queue/jobs.ts:
+// adding a job there without a handler here is a type error.
+import type { Db } from "@/db/client";
+import type { JobName, JobPayload } from "@/lib/queue/jobs";
+import { sendMail } from "./jobs/mail-send";
+
+export interface JobContext<N extends JobName> {
+  db: Db;
+  jobId: string;
+  payload: JobPayload<N>;
+  /** Reports stage and progress (0..1); mirrored to PostgreSQL. */
+  report: (stage: string, fraction: number) => Promise<void>;
+}
+
+export type JobHandler<N extends JobName> = (ctx: JobContext<N>) => Promise<void>;
+
+export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
+  "mail.send": sendMail,
+};
