@@ -53,7 +53,7 @@ function readStructure(bytes: Uint8Array, name: string): Structure {
   let endIndex = -1;
   for (let i = 0; i < cardCount; i++) {
     const card = cardText(bytes, i);
-    if (/[^\x20-\x7e]/.test(card)) throw headerFault(`header card ${i + 1} holds bytes outside printable ASCII before any END card (FITS 4.0 section 4.1.2.1)`);
+    if (/[^\x20-\x7e]/.test(card)) throw headerFault(`the header has no END card before the non-text bytes of card ${i + 1} (FITS 4.0 sections 4.1.2.1 and 4.4.1): the header is broken or this is not FITS`);
     if (card.startsWith("END") && card.slice(3).trim() === "") {
       endIndex = i;
       break;

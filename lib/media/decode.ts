@@ -1,0 +1,91 @@
+// Any frame we accept -> Float32Array planes plus what the pipeline needs to
+// linearize them. The format comes from the content (sniff.ts); each family has
+// one decoder: sharp for JPEG/PNG/TIFF, LibRaw for camera raw, fitsjs for FITS.
+import { readFile } from "node:fs/promises";
+import type { LinearFrame, PlaneImage } from "@/lib/imaging/types";
+import { MediaError } from "./errors";
+import { readFits } from "./fits";
+import { decodeRaster } from "./decode-raster";
+import { decodeCameraRaw } from "./decode-raw";
+import { readExifMetadata, readFitsMetadata, type FrameMetadata } from "./metadata";
+import { RAW_FORMATS, sniffBytes, type MediaFormat } from "./sniff";
+
+export interface DecodedFrame {
+  name: string;
+  format: MediaFormat;
+  image: PlaneImage;
+  /** Bits per stored sample: 8 or 16 for rasters and raw, |BITPIX| for FITS. */
+  bitDepth: number;
+  /** Pedestal and saturation in the planes' units (data numbers). */
+  blackLevel: number;
+  whiteLevel: number;
+  encoding: "linear" | "srgb8";
+  metadata: FrameMetadata;
+}
+
+/** FITS saturation: the SATURATE card when given, else the largest value the integer type holds. */
+function fitsWhiteLevel(bitpix: number, bzero: number, bscale: number, header: Map<string, unknown>): number {
+  const saturate = header.get("SATURATE");
+  if (typeof saturate === "number" && Number.isFinite(saturate)) return saturate;
+  if (bitpix === 8) return bzero + bscale * 255;
+  if (bitpix === 16) return bzero + bscale * 32767;
+  if (bitpix === 32) return bzero + bscale * 2147483647;
+  // Floating-point data carry no saturation level; nothing is marked clipped.
+  return Number.POSITIVE_INFINITY;
+}
+
+export async function decodeFrame(input: Buffer | string, name: string): Promise<DecodedFrame> {
+  const bytes = typeof input === "string" ? await readFile(input) : input;
+  const format = sniffBytes(bytes, name);
+  if (format === "fits") {
+    const fits = await readFits(bytes, name);
+    const { width, height, planes } = fits;
+    return {
+      name,
+      format,
+      image: { width, height, planes },
+      bitDepth: Math.abs(fits.bitpix),
+      blackLevel: 0,
+      whiteLevel: fitsWhiteLevel(fits.bitpix, fits.bzero, fits.bscale, fits.header),
+      encoding: "linear",
+      metadata: readFitsMetadata(fits.header),
+    };
+  }
+  const isRaw = RAW_FORMATS.has(format);
+  const [pixels, metadata] = await Promise.all([
+    isRaw ? decodeCameraRaw(bytes, name) : decodeRaster(bytes, name),
+    readExifMetadata(bytes),
+  ]);
+  const is8 = pixels.bitDepth === 8;
+  return {
+    name,
+    format,
+    image: pixels.image,
+    bitDepth: pixels.bitDepth,
+    blackLevel: 0,
+    whiteLevel: is8 ? 255 : 65535,
+    encoding: is8 ? "srgb8" : "linear",
+    metadata,
+  };
+}
+
+/**
+ * The pipeline's view of a decoded frame. The exposure comes from the file or
+ * from the photographer (`exposureOverrideS`); it is never guessed.
+ */
+export function toLinearFrame(decoded: DecodedFrame, exposureOverrideS?: number): LinearFrame {
+  if (exposureOverrideS !== undefined && !(Number.isFinite(exposureOverrideS) && exposureOverrideS > 0)) {
+    throw new MediaError("bad-argument", decoded.name, `the exposure time given, ${exposureOverrideS} s, is not a positive number of seconds`);
+  }
+  const exposureS = exposureOverrideS ?? decoded.metadata.exposureS;
+  if (exposureS === undefined) throw new MediaError("missing-exposure", decoded.name, "no exposure time in the file; give one");
+  return {
+    name: decoded.name,
+    image: decoded.image,
+    exposureS,
+    blackLevel: decoded.blackLevel,
+    whiteLevel: decoded.whiteLevel,
+    encoding: decoded.encoding,
+    captureTimeMs: decoded.metadata.captureTimeMs,
+  };
+}
