@@ -1,0 +1,56 @@
+import { describe, expect, it } from "vitest";
+import { estimateDarkNoiseSigma, linearizeFrame, validateFrame } from "@/lib/imaging/linearize";
+import { ImagingError } from "@/lib/imaging/errors";
+import { createRng, sampleGaussian } from "@/lib/imaging/random";
+import type { LinearFrame } from "@/lib/imaging/types";
+
+function makeFrame(values: number[], width: number, height: number, extra: Partial<LinearFrame> = {}): LinearFrame {
+  return {
+    name: "frame-a.tif",
+    image: { width, height, planes: [Float32Array.from(values)] },
+    exposureS: 0.01,
+    blackLevel: 100,
+    whiteLevel: 1100,
+    encoding: "linear",
+    ...extra,
+  };
+}
+
+describe("linearizeFrame", () => {
+  it("subtracts the black level and marks clipped pixels dilated by one pixel", () => {
+    const values = new Array(25).fill(300);
+    values[12] = 1100; // centre of 5 x 5
+    values[0] = 1019; // just below 0.92 x (1100 - 100) + 100 = 1020
+    const lin = linearizeFrame(makeFrame(values, 5, 5), 0.92);
+    expect(lin.planes[0][1]).toBe(200);
+    expect(lin.clipLevel).toBeCloseTo(920, 9);
+    const marked = [...lin.clipped].map((v, i) => (v ? i : -1)).filter((i) => i >= 0);
+    expect(marked).toEqual([6, 7, 8, 11, 12, 13, 16, 17, 18]);
+  });
+
+  it("decodes 8-bit codes with the sRGB curve (IEC 61966-2-1; 128/255 -> 0.215861, computed)", () => {
+    const lin = linearizeFrame(makeFrame([0, 128, 255, 10], 2, 2, { encoding: "srgb8", blackLevel: 0, whiteLevel: 255 }), 0.92);
+    expect(lin.planes[0][1]).toBeCloseTo(0.215861, 6);
+    expect(lin.planes[0][3]).toBeCloseTo(0.003035, 6);
+    expect(lin.clipped[2]).toBe(1);
+    expect(lin.noiseFloor[0]).toBe(1);
+    expect(lin.noiseFloor[1]).toBe(0);
+  });
+
+  it("estimates Gaussian dark noise (Immerkaer 1996) within 5 %", () => {
+    const rng = createRng(21);
+    const plane = new Float32Array(200 * 200);
+    for (let i = 0; i < plane.length; i++) plane[i] = 50 + 4 * sampleGaussian(rng);
+    expect(estimateDarkNoiseSigma(plane, 200, 200) / 4).toBeGreaterThan(0.95);
+    expect(estimateDarkNoiseSigma(plane, 200, 200) / 4).toBeLessThan(1.05);
+  });
+
+  it("names the frame and the fault on bad input", () => {
+    expect(() => validateFrame(makeFrame([1, 2, 3, 4], 2, 2, { exposureS: 0 }))).toThrow(/frame-a\.tif: exposureS must be a positive/);
+    expect(() => validateFrame(makeFrame([1, 2, 3, 4], 2, 2, { exposureS: Number.NaN }))).toThrow(ImagingError);
+    expect(() => validateFrame(makeFrame([1, 2, 3], 2, 2))).toThrow(/plane 0 has 3 values/);
+    expect(() => validateFrame(makeFrame([1, 2, 3, 4], 2, 2, { whiteLevel: 50 }))).toThrow(/whiteLevel \(50\) must exceed blackLevel/);
+    expect(() => linearizeFrame(makeFrame([1, 2, 3, 4], 2, 2), 1.5)).toThrow(/clipFraction/);
+    expect(() => linearizeFrame(makeFrame([1, 300, 3, 4], 2, 2, { encoding: "srgb8" }), 0.9)).toThrow(/8-bit codes must be 0\.\.255/);
+  });
+});
