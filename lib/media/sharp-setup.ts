@@ -2,7 +2,7 @@
 // have two cores and the queue runs jobs side by side), the pixel limit on every
 // constructor (a decompression bomb must fail before it allocates), and sharp's
 // error texts turned into MediaErrors that name the file.
-import sharp, { type Sharp, type SharpOptions } from "sharp";
+import sharp, { type Sharp, type SharpInput, type SharpOptions } from "sharp";
 import { MediaError } from "./errors";
 
 /** Largest image we decode: 200 megapixels (a 6000x4000 frame is 24). */
@@ -16,7 +16,7 @@ function configureSharp(): void {
   isConfigured = true;
 }
 
-export function createSharp(input?: Buffer | Uint8Array | string, options: SharpOptions = {}): Sharp {
+export function createSharp(input?: SharpInput, options: SharpOptions = {}): Sharp {
   configureSharp();
   const withLimit: SharpOptions = { ...options, limitInputPixels: MAX_INPUT_PIXELS };
   return input === undefined ? sharp(withLimit) : sharp(input, withLimit);
