@@ -1,0 +1,187 @@
+// Radial filters that reveal coronal structure, computed about the Sun's centre
+// with the lunar disk masked.
+import { blurGaussian } from "./blur";
+import { ImagingError, requireNumberInRange } from "./errors";
+
+export interface LunarDisk {
+  x: number;
+  y: number;
+  radiusPx: number;
+}
+
+export interface FilteredPlane {
+  data: Float32Array;
+  /** 1 where the filter has a value; 0 on the lunar disk and where statistics were missing. */
+  valid: Uint8Array;
+}
+
+/** Valid-pixel mask: the given mask (if any) minus the lunar disk (if any). */
+export function createValidMask(width: number, height: number, lunarDisk?: LunarDisk, valid?: Uint8Array): Uint8Array {
+  const out = valid ? Uint8Array.from(valid) : new Uint8Array(width * height).fill(1);
+  if (out.length !== width * height) throw new ImagingError("size-mismatch", `valid mask has ${out.length} values, expected ${width} x ${height}`);
+  if (lunarDisk) {
+    const r2 = lunarDisk.radiusPx * lunarDisk.radiusPx;
+    for (let y = 0; y < height; y++) {
+      const dy2 = (y - lunarDisk.y) ** 2;
+      if (dy2 > r2) continue;
+      for (let x = 0; x < width; x++) if ((x - lunarDisk.x) ** 2 + dy2 <= r2) out[y * width + x] = 0;
+    }
+  }
+  return out;
+}
+
+export interface NrgfOptions {
+  sunCentre: { x: number; y: number };
+  lunarDisk?: LunarDisk;
+  valid?: Uint8Array;
+  /** Width of the radial bins, px; default 1. */
+  binWidthPx?: number;
+}
+
+/**
+ * Normalizing-radial-graded filter, Morgan, Habbal and Woo (2006), Solar Physics
+ * 236:263: I'(r, phi) = (I(r, phi) - <I(r)>_phi) / sigma_phi(I(r)). Mean and
+ * standard deviation over position angle are taken in rings of binWidthPx and
+ * interpolated linearly in radius between ring mean radii, so a steep radial
+ * fall-off inside a ring does not leak into the result.
+ */
+export function applyNrgf(plane: Float32Array, width: number, height: number, options: NrgfOptions): FilteredPlane {
+  const binWidth = options.binWidthPx ?? 1;
+  requireNumberInRange("binWidthPx", binWidth, 0.25, 1000);
+  const { x: cx, y: cy } = options.sunCentre;
+  if (!Number.isFinite(cx) || !Number.isFinite(cy)) throw new ImagingError("bad-parameter", `sunCentre must be finite, got (${cx}, ${cy})`);
+  if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
+  const valid = createValidMask(width, height, options.lunarDisk, options.valid);
+  const maxR = Math.hypot(Math.max(cx, width - 1 - cx), Math.max(cy, height - 1 - cy));
+  const bins = Math.ceil(maxR / binWidth) + 2;
+  const count = new Float64Array(bins), sumR = new Float64Array(bins), sum = new Float64Array(bins), sum2 = new Float64Array(bins);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const i = y * width + x;
+      if (!valid[i]) continue;
+      const r = Math.hypot(x - cx, y - cy);
+      const b = Math.floor(r / binWidth);
+      const v = plane[i];
+      count[b]++;
+      sumR[b] += r;
+      sum[b] += v;
+      sum2[b] += v * v;
+    }
+  }
+  // Ring statistics, kept only for rings with enough pixels to speak for all position angles.
+  const ringR: number[] = [], ringMean: number[] = [], ringStd: number[] = [];
+  for (let b = 0; b < bins; b++) {
+    if (count[b] < 8) continue;
+    const mean = sum[b] / count[b];
+    const variance = sum2[b] / count[b] - mean * mean;
+    if (!(variance > 0)) continue;
+    ringR.push(sumR[b] / count[b]);
+    ringMean.push(mean);
+    ringStd.push(Math.sqrt(variance));
+  }
+  const data = new Float32Array(width * height);
+  const out = new Uint8Array(width * height);
+  if (ringR.length < 2) return { data, valid: out };
+  let k = 0;
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const i = y * width + x;
+      if (!valid[i]) continue;
+      const r = Math.hypot(x - cx, y - cy);
+      if (r < ringR[0] || r > ringR[ringR.length - 1]) continue;
+      // Rings are sorted by radius; walk to the pair around r (search from the last position).
+      if (k >= ringR.length - 1 || ringR[k] > r) k = 0;
+      while (k < ringR.length - 2 && ringR[k + 1] < r) k++;
+      const f = (r - ringR[k]) / (ringR[k + 1] - ringR[k]);
+      const mean = ringMean[k] + f * (ringMean[k + 1] - ringMean[k]);
+      const std = ringStd[k] + f * (ringStd[k + 1] - ringStd[k]);
+      data[i] = (plane[i] - mean) / std;
+      out[i] = 1;
+    }
+  }
+  return { data, valid: out };
+}
+
+export interface MgnOptions {
+  lunarDisk?: LunarDisk;
+  valid?: Uint8Array;
+  /** arctan steepness k; default 0.7. */
+  k?: number;
+  /** Weight of the gamma-stretched global image h; default 0.7. */
+  h?: number;
+  /** Gamma of the global image; default 3.2. */
+  gamma?: number;
+  /** Gaussian kernel widths w (sigma), px; default 1.25, 2.5, 5, 10, 20, 40. */
+  widthsPx?: number[];
+}
+
+/** Defaults from memory of Morgan and Druckmueller (2014) (REFERENCES.md). */
+export const MGN_DEFAULTS = { k: 0.7, h: 0.7, gamma: 3.2, widthsPx: [1.25, 2.5, 5, 10, 20, 40] };
+
+/**
+ * Multi-scale Gaussian normalization, Morgan and Druckmueller (2014), Solar
+ * Physics 289:2945:
+ *   C_w = (B - B * k_w) / sqrt((B - B * k_w)^2 * k_w)   (* = convolution, k_w a Gaussian of width w)
+ *   I = h C'_g + ((1 - h) / n) sum_w arctan(k C_w)
+ * with C'_g = ((B - a0) / (a1 - a0))^(1/gamma), a0 and a1 the data's own minimum
+ * and maximum over valid pixels (which makes the result invariant under
+ * B -> a B + b, a > 0). Convolutions are normalized over valid pixels
+ * (Knutsson and Westin 1993), so the dark lunar disk does not bleed into the
+ * inner corona; blurs are recursive (Young and van Vliet 1995).
+ */
+export function applyMgn(plane: Float32Array, width: number, height: number, options: MgnOptions = {}): FilteredPlane {
+  const k = options.k ?? MGN_DEFAULTS.k;
+  const h = options.h ?? MGN_DEFAULTS.h;
+  const gamma = options.gamma ?? MGN_DEFAULTS.gamma;
+  const widths = options.widthsPx ?? MGN_DEFAULTS.widthsPx;
+  requireNumberInRange("k", k, 1e-6, 1e6);
+  requireNumberInRange("h", h, 0, 1);
+  requireNumberInRange("gamma", gamma, 1e-3, 1e3);
+  if (!Array.isArray(widths) || widths.length === 0) throw new ImagingError("bad-parameter", "widthsPx must list at least one kernel width");
+  widths.forEach((w, i) => requireNumberInRange(`widthsPx[${i}]`, w, 0.5, 1e4));
+  if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
+  const valid = createValidMask(width, height, options.lunarDisk, options.valid);
+  const n = width * height;
+  let a0 = Infinity, a1 = -Infinity;
+  for (let i = 0; i < n; i++) {
+    if (!valid[i]) continue;
+    const v = plane[i];
+    if (v < a0) a0 = v;
+    if (v > a1) a1 = v;
+  }
+  const data = new Float32Array(n);
+  if (!(a1 > a0)) return { data, valid };
+  const range = a1 - a0;
+  const masked = new Float32Array(n);
+  const weight = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    if (valid[i]) {
+      // Shift by a0 before blurring: the same numbers for B and a B + b up to scale, which keeps float error low.
+      masked[i] = (plane[i] - a0) / range;
+      weight[i] = 1;
+    }
+  }
+  const sumArctan = new Float64Array(n);
+  const diff = new Float32Array(n);
+  for (const w of widths) {
+    const norm = blurGaussian(weight, width, height, w);
+    const local = blurGaussian(masked, width, height, w);
+    for (let i = 0; i < n; i++) {
+      diff[i] = valid[i] && norm[i] > 1e-6 ? masked[i] - local[i] / norm[i] : 0;
+      local[i] = diff[i] * diff[i];
+    }
+    const localVar = blurGaussian(local, width, height, w);
+    for (let i = 0; i < n; i++) {
+      if (!valid[i]) continue;
+      const sd = norm[i] > 1e-6 ? Math.sqrt(Math.max(0, localVar[i] / norm[i])) : 0;
+      sumArctan[i] += sd > 0 ? Math.atan((k * diff[i]) / sd) : 0;
+    }
+  }
+  const invGamma = 1 / gamma;
+  for (let i = 0; i < n; i++) {
+    if (!valid[i]) continue;
+    const g = Math.pow(Math.max(0, masked[i]), invGamma);
+    data[i] = h * g + ((1 - h) / widths.length) * sumArctan[i];
+  }
+  return { data, valid };
+}
