@@ -1,0 +1,62 @@
+// Zoom pyramids reduced in linear light: averaging encoded sRGB values darkens
+// faint detail (the mean of codes is below the code of the mean light), so faint
+// streamers and stars fade at zoomed-out levels. We decode, average 2 x 2 pixels,
+// and encode again (IEC 61966-2-1 both ways).
+import { ImagingError } from "./errors";
+import { decodeSrgb, encodeSrgb } from "./srgb";
+import type { PlaneImage } from "./types";
+
+/** Halves an sRGB-encoded image (0..1) in linear light; odd edges average the pixels they hold. */
+export function halveImageLinear(image: PlaneImage): PlaneImage {
+  const { width, height } = image;
+  if (width < 1 || height < 1) throw new ImagingError("bad-parameter", `cannot halve a ${width} x ${height} image`);
+  const w = Math.ceil(width / 2);
+  const h = Math.ceil(height / 2);
+  const planes = image.planes.map((src) => {
+    const out = new Float32Array(w * h);
+    for (let y = 0; y < h; y++) {
+      const y0 = 2 * y;
+      const y1 = Math.min(height - 1, y0 + 1);
+      for (let x = 0; x < w; x++) {
+        const x0 = 2 * x;
+        const x1 = Math.min(width - 1, x0 + 1);
+        let sum = decodeSrgb(src[y0 * width + x0]);
+        let count = 1;
+        if (x1 !== x0) { sum += decodeSrgb(src[y0 * width + x1]); count++; }
+        if (y1 !== y0) {
+          sum += decodeSrgb(src[y1 * width + x0]);
+          count++;
+          if (x1 !== x0) { sum += decodeSrgb(src[y1 * width + x1]); count++; }
+        }
+        out[y * w + x] = encodeSrgb(sum / count);
+      }
+    }
+    return out;
+  });
+  return { width: w, height: h, planes };
+}
+
+/** Level sizes as Deep Zoom counts them: level L of maxLevel = ceil(log2(max(W, H))) is ceil(W / 2^(maxLevel - L)) wide. */
+export function computePyramidLevelSizes(width: number, height: number): { level: number; width: number; height: number }[] {
+  if (!(Number.isInteger(width) && Number.isInteger(height) && width > 0 && height > 0)) {
+    throw new ImagingError("bad-parameter", `pyramid size must be positive integers, got ${width} x ${height}`);
+  }
+  const maxLevel = Math.ceil(Math.log2(Math.max(width, height)));
+  const out = [];
+  for (let level = 0; level <= maxLevel; level++) {
+    const f = 2 ** (maxLevel - level);
+    out.push({ level, width: Math.ceil(width / f), height: Math.ceil(height / f) });
+  }
+  return out;
+}
+
+/** All levels from full size (index 0) down to 1 x 1, each halved in linear light from the one above. */
+export function buildPyramid(image: PlaneImage): PlaneImage[] {
+  const levels = [image];
+  let current = image;
+  while (current.width > 1 || current.height > 1) {
+    current = halveImageLinear(current);
+    levels.push(current);
+  }
+  return levels;
+}
