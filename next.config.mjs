@@ -1,6 +1,8 @@
 /** @type {import('next').NextConfig} */
 const nextConfig = {
   reactStrictMode: true,
+  // The test command builds into its own folder so a running development app is untouched.
+  distDir: process.env.NEXT_DIST_DIR || ".next",
   poweredByHeader: false,
   // sharp and the pg driver stay native Node modules on the server.
   serverExternalPackages: ["sharp", "pg", "exiftool-vendored", "bullmq", "ioredis"],

@@ -84,22 +84,11 @@ node_start() {
   local name="$1" port="$2" entry="$3"
   if pid_alive "$RUN/$name.pid"; then say "$name already running on 127.0.0.1:$port"; return; fi
   port_busy "$port" && die "port $port is taken by another program (wanted by $name)"
-  (cd "$ROOT" && nohup node --import tsx "$entry" >"$LOGS/$name.log" 2>&1 </dev/null & echo $! >"$RUN/$name.pid")
+  spawn "$name" node --import tsx "$entry"
   wait_port "$port" "$name" 200
   say "$name started on 127.0.0.1:$port"
 }
 
-stop_pidfile() {
-  local name="$1" f="$RUN/$1.pid"
-  if pid_alive "$f"; then
-    local pid; pid="$(head -n1 "$f")"
-    kill -TERM "$pid" 2>/dev/null || true
-    for _ in $(seq 1 50); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
-    kill -0 "$pid" 2>/dev/null && kill -KILL "$pid" 2>/dev/null || true
-    say "$name stopped"
-  fi
-  rm -f "$f"
-}
 
 s3_port() { local u="${S3_ENDPOINT#*://}"; u="${u##*:}"; printf '%s' "${u%%/*}"; }
 smtp_port() { local u="${SMTP_URL##*:}"; printf '%s' "${u%%/*}"; }
@@ -112,9 +101,9 @@ case "${1:-start}" in
     node_start smtp-fake "$(smtp_port)" fakes/smtp/server.ts
     ;;
   stop)
-    stop_pidfile smtp-fake
-    stop_pidfile s3-fake
-    stop_pidfile redis
+    stop_group smtp-fake
+    stop_group s3-fake
+    stop_group redis
     pg_stop
     ;;
   status)

@@ -52,3 +52,26 @@ pg_bin() {
   [ -n "$d" ] || die "PostgreSQL server binaries not found; run scripts/setup.sh"
   printf '%s' "$d"
 }
+
+# spawn NAME COMMAND...: runs COMMAND in the background in a session (and
+# process group) of its own, so that stop_group can end it with every child it
+# starts (next start runs its server as a child process). The pid file holds
+# the group leader's pid.
+spawn() {
+  local name="$1"; shift
+  ( cd "$ROOT"; exec setsid nohup "$@" >"$LOGS/$name.log" 2>&1 </dev/null ) &
+  echo $! >"$RUN/$name.pid"
+}
+
+# stop_group NAME: TERM to the whole group, then KILL after 10 s if needed.
+stop_group() {
+  local name="$1" f="$RUN/$1.pid"
+  if pid_alive "$f"; then
+    local pid; pid="$(head -n1 "$f")"
+    kill -TERM -- "-$pid" 2>/dev/null || kill -TERM "$pid" 2>/dev/null || true
+    for _ in $(seq 1 100); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
+    kill -KILL -- "-$pid" 2>/dev/null || true
+    say "$name stopped"
+  fi
+  rm -f "$f"
+}

@@ -1,0 +1,78 @@
+#!/usr/bin/env bash
+# The whole test suite, from a clean clone: installs what is missing, starts
+# the services (and stops again those it started), resets the test database,
+# runs lint and type checks, builds the app into .next-test, serves it on
+# 127.0.0.1:3100 with a worker, and runs the unit, integration and end-to-end
+# layers. Ends with the plain line "N passed, N failed".
+#   scripts/test.sh [vitest filters...]
+. "$(dirname "$0")/lib/common.sh"
+. "$(dirname "$0")/lib/app.sh"
+
+bash "$ROOT/scripts/setup.sh"
+load_env
+
+services_were_up=false
+status="$(bash "$ROOT/scripts/services.sh" status)"
+case "$status" in *"redis: running"*) services_were_up=true ;; esac
+bash "$ROOT/scripts/services.sh" start
+
+# The test world: its own database, Redis database, queue prefix, buckets, port.
+export DATABASE_URL="$TEST_DATABASE_URL"
+export REDIS_URL="redis://127.0.0.1:$REDIS_PORT/1"
+export QUEUE_PREFIX="crownlight-test"
+export S3_BUCKET_ORIGINALS="crownlight-test-originals" S3_BUCKET_DERIVED="crownlight-test-derived" S3_BUCKET_EXPORTS="crownlight-test-exports"
+export APP_PORT=3100 APP_URL="http://127.0.0.1:3100" BETTER_AUTH_URL="http://127.0.0.1:3100"
+export ARTIFACTS="$ROOT/.artifacts"
+mkdir -p "$ARTIFACTS"
+
+passed=0; failed=0
+check() {
+  local label="$1"; shift
+  if "$@" >"$LOGS/$label.log" 2>&1; then
+    passed=$((passed + 1)); say "ok: $label"
+  else
+    failed=$((failed + 1)); say "FAILED: $label"; tail -n 40 "$LOGS/$label.log" >&2
+  fi
+}
+
+cleanup() {
+  stop_named test-web
+  stop_named test-worker
+  if [ "$services_were_up" = false ]; then bash "$ROOT/scripts/services.sh" stop; fi
+}
+trap cleanup EXIT
+
+# A clean database and Redis for every run.
+psql_test() { "$(pg_bin)/psql" "$TEST_DATABASE_URL" -v ON_ERROR_STOP=1 -q "$@"; }
+psql_test -c "set client_min_messages = warning; drop schema if exists public cascade; drop schema if exists drizzle cascade; create schema public;" >/dev/null
+redis-cli -p "$REDIS_PORT" -n 1 flushdb >/dev/null
+(cd "$ROOT" && node --import tsx db/migrate.ts) >/dev/null || die "migrating the test database failed"
+(cd "$ROOT" && node --import tsx db/seed/index.ts) >/dev/null || die "seeding the test database failed"
+
+check lint bash -c "cd '$ROOT' && node node_modules/eslint/bin/eslint.js --max-warnings 0 ."
+check typecheck bash -c "cd '$ROOT' && node node_modules/typescript/bin/tsc --noEmit"
+
+stop_named test-web
+stop_named test-worker
+build_app .next-test
+start_worker test-worker
+start_app test-web 3100 .next-test
+
+report="$LOGS/vitest.json"
+rm -f "$report"
+(cd "$ROOT" && node node_modules/vitest/vitest.mjs run --reporter=default --reporter=json --outputFile="$report" "$@") || true
+if [ -f "$report" ]; then
+  # A suite that fails before its tests run (import or setup error) counts as
+  # one failure, so a broken file can never pass silently.
+  read -r vp vf < <(node -e '
+    const r = require(process.argv[1]);
+    const broken = (r.testResults || []).filter((s) => s.status === "failed" && !s.assertionResults.some((a) => a.status === "failed")).length;
+    console.log(r.numPassedTests, r.numFailedTests + broken);' "$report")
+  passed=$((passed + vp)); failed=$((failed + vf))
+else
+  say "vitest wrote no report"; failed=$((failed + 1))
+fi
+
+echo
+echo "$passed passed, $failed failed"
+[ "$failed" -eq 0 ]

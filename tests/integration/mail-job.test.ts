@@ -1,0 +1,60 @@
+import { randomUUID } from "node:crypto";
+import { eq } from "drizzle-orm";
+import { afterAll, describe, expect, it } from "vitest";
+import { closeDb, getDb } from "@/db/client";
+import { jobRuns, outboxMessages } from "@/db/schema";
+import { queueMail } from "@/lib/email/outbox";
+import { closeProducerRedis } from "@/lib/queue/connection";
+import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
+import { requireTestDatabase } from "../support/env";
+import { waitForMail } from "../support/mailbox";
+
+requireTestDatabase();
+const db = getDb();
+
+afterAll(async () => {
+  await closeQueues();
+  await closeProducerRedis();
+  await closeDb();
+});
+
+async function waitForState(id: string, state: string, timeoutMs = 20_000) {
+  const deadline = Date.now() + timeoutMs;
+  while (Date.now() < deadline) {
+    const [row] = await db.select().from(jobRuns).where(eq(jobRuns.id, id));
+    if (row?.state === state) return row;
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  throw new Error(`job ${id} did not reach ${state}`);
+}
+
+describe("the mail job (real Redis, worker and SMTP fake)", () => {
+  it("delivers a queued message and mirrors the job state in PostgreSQL", async () => {
+    const to = `reader.${randomUUID().slice(0, 8)}@mail-test.example`;
+    const subject = `Bracket received ${randomUUID().slice(0, 6)}`;
+    const id = await queueMail(db, { to, subject, text: "Your 27 frames from Luxor are in." });
+
+    const mail = await waitForMail(to, (m) => m.subject === subject);
+    expect(mail.text).toContain("27 frames from Luxor");
+
+    const run = await waitForState(jobIdFor("mail.send", { outboxId: id }), "done");
+    expect(run.progress).toBe(1);
+    const [msg] = await db.select().from(outboxMessages).where(eq(outboxMessages.id, id));
+    expect(msg.state).toBe("sent");
+    expect(msg.sentAt).not.toBeNull();
+  });
+
+  it("fails a job whose message does not exist, without retrying", async () => {
+    const { enqueue } = await import("@/lib/queue/enqueue");
+    const missing = randomUUID();
+    const jobId = await enqueue(db, "mail.send", { outboxId: missing });
+    const run = await waitForState(jobId, "failed");
+    expect(run.error).toContain(missing);
+    expect(run.attempts).toBeLessThanOrEqual(1);
+  });
+
+  it("refuses a payload that does not match the registry", async () => {
+    const { enqueue } = await import("@/lib/queue/enqueue");
+    await expect(enqueue(db, "mail.send", { outboxId: "" })).rejects.toThrow();
+  });
+});
