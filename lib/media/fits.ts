@@ -7,7 +7,7 @@
 import { readFile } from "node:fs/promises";
 import type { PlaneImage } from "@/lib/imaging/types";
 import { MediaError } from "./errors";
-import { FITS_BLOCK_BYTES, FITS_CARD_CHARS, padToFitsBlock, type FitsValue } from "./fits-cards";
+import { FITS_CARD_CHARS, padToFitsBlock, type FitsValue } from "./fits-cards";
 import { decodeFrameWithFitsjs, parseHduWithFitsjs, type FitsjsCard } from "./fitsjs-node";
 import type { FitsBitpix } from "./fits-write";
 
@@ -98,7 +98,9 @@ function decodeFloat64(bytes: Uint8Array): Float64Array {
 }
 
 export async function readFits(input: Uint8Array | string, name: string): Promise<FitsImage> {
-  const bytes = typeof input === "string" ? new Uint8Array(await readFile(input)) : input;
+  const source = typeof input === "string" ? await readFile(input) : input;
+  // A plain Uint8Array view: Buffer#slice shares memory where Uint8Array#slice copies, and fitsjs relies on copies.
+  const bytes = new Uint8Array(source.buffer, source.byteOffset, source.byteLength);
   if (bytes.length === 0) throw new MediaError("empty-file", name, "the file is empty (0 bytes)");
   const structure = readStructure(bytes, name);
   const [width, height, depth = 1] = structure.axes;
@@ -113,8 +115,12 @@ export async function readFits(input: Uint8Array | string, name: string): Promis
     );
   }
   // Exactly one HDU, padded to a block even when the writer left the padding out.
-  const hduBytes = new Uint8Array(structure.headerBytes + padToFitsBlock(dataBytes));
-  hduBytes.set(bytes.subarray(0, Math.min(bytes.length, hduBytes.length)));
+  const hduLength = structure.headerBytes + padToFitsBlock(dataBytes);
+  let hduBytes = bytes.subarray(0, hduLength);
+  if (hduBytes.length < hduLength) {
+    hduBytes = new Uint8Array(hduLength);
+    hduBytes.set(bytes);
+  }
 
   let parsed;
   try {

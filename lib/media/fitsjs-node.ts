@@ -31,7 +31,7 @@ export class SyncBytes {
     return new SyncBytes(this.bytes.subarray(begin, end));
   }
   toArrayBuffer(): ArrayBuffer {
-    return this.bytes.slice().buffer as ArrayBuffer;
+    return new Uint8Array(this.bytes).buffer as ArrayBuffer;
   }
 }
 

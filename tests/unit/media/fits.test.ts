@@ -75,6 +75,14 @@ describe("FITS round trip through our reader", () => {
     expect(Array.from(image.planes[0])).toEqual([0, 1, 32767, 32768, 65534, 65535]);
   });
 
+  it("reads from a Buffer that is a view into a larger memory block", async () => {
+    const file = encodeFits({ width: 3, height: 1, planes: [Float32Array.from([1.5, -2, 3])] });
+    const block = Buffer.alloc(file.length + 100, 0x41);
+    block.set(file, 37);
+    const image = await readFits(block.subarray(37, 37 + file.length), "view.fits");
+    expect(Array.from(image.planes[0])).toEqual([1.5, -2, 3]);
+  });
+
   it("keeps Float64 planes (BITPIX -64), which we decode ourselves", async () => {
     const plane = Float64Array.from([1e-300, -2.5, 3.25, 1e10]);
     const image = await readFits(encodeFits({ width: 2, height: 2, planes: [plane] }), "f64.fits");

@@ -6,13 +6,13 @@ import { execFileSync } from "node:child_process";
 export const SYSTEM_PYTHON = "/usr/bin/python3";
 
 export function runPython(script: string, args: string[] = [], modules: string[] = []): string {
-  for (const module of modules) {
+  for (const pythonModule of modules) {
     try {
-      execFileSync(SYSTEM_PYTHON, ["-c", `import ${module}`], { stdio: "pipe" });
+      execFileSync(SYSTEM_PYTHON, ["-c", `import ${pythonModule}`], { stdio: "pipe" });
     } catch {
       throw new Error(
-        `${SYSTEM_PYTHON} cannot import ${module}: the test command (npm test, scripts/test.sh) installs python3-${module} from Debian; ` +
-          `or run: apt-get install -y python3-${module}`,
+        `${SYSTEM_PYTHON} cannot import ${pythonModule}: the test command (npm test, through scripts/setup.sh) installs python3-${pythonModule} from Debian; ` +
+          `or run: apt-get install -y python3-${pythonModule}`,
       );
     }
   }
