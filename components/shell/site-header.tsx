@@ -1,9 +1,9 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { buttonClasses } from "@/components/ui/button";
-import { cx } from "@/components/ui/cx";
 import { SkipLink } from "@/components/ui/skip-link";
 import { CrownlightMark } from "@/components/shell/crownlight-mark";
+import { NavLink } from "@/components/shell/nav-link";
 import { ThemeToggle } from "@/components/shell/theme-toggle";
 
 export type NavItem = { href: string; label: string; current?: boolean };
@@ -51,19 +51,7 @@ export function SiteHeader({
             <ul className="flex flex-wrap gap-1">
               {nav.map((item) => (
                 <li key={item.href}>
-                  <Link
-                    href={item.href}
-                    aria-current={item.current ? "page" : undefined}
-                    className={cx(
-                      "inline-flex min-h-11 items-center rounded-control px-3 text-base whitespace-nowrap",
-                      // The current page is marked by weight and an underline, not colour alone.
-                      item.current
-                        ? "font-semibold text-ink underline decoration-accent decoration-2 underline-offset-8 hover:text-ink"
-                        : "text-ink-muted no-underline hover:bg-surface-hover hover:text-ink",
-                    )}
-                  >
-                    {item.label}
-                  </Link>
+                  <NavLink href={item.href} label={item.label} current={item.current} />
                 </li>
               ))}
             </ul>
