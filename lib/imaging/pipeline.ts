@@ -1,0 +1,259 @@
+// The whole reduction of one bracket: linearize, mask, fit each limb, register,
+// warp, merge, render. Per-frame stages are exported on their own so that a
+// caller can run them in worker threads.
+import { dilateMask } from "./blur";
+import { ImagingError } from "./errors";
+import { fitLimb, type LimbFit } from "./limb-fit";
+import { linearizeFrame, validateFrame, type LinearizedFrame } from "./linearize";
+import { addFrameToMerge, createMergeAccumulator, finishMerge, type FrameWeightStats, type MergeFrameInput, type MergeResult } from "./merge";
+import { applyMgn, applyNrgf, createValidMask, type LunarDisk } from "./radial";
+import { estimateMoonTrack } from "./moon-track";
+import { registerFrames, type RegistrationFrame } from "./register";
+import { warpMask, warpPlanes } from "./resample";
+import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
+import { fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
+import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
+import { computePercentiles, renderNatural, renderStructure } from "./tone";
+import type { LinearFrame, PlaneImage, ProgressFn, ReductionParams } from "./types";
+
+export const PIPELINE_VERSION = "crownlight-imaging 0.1.0";
+
+/** Master pixels this close to a lunar limb take light only from frames that agree on Moon or corona there. */
+const LIMB_MARGIN_PX = 3;
+
+export interface FrameReport {
+  name: string;
+  width: number;
+  height: number;
+  exposureS: number;
+  limb: LimbFit;
+  /** Master to frame (see similarity.ts for the convention). */
+  transform: SimilarityTransform;
+  /** Phase correlation peak against the neighbour (NaN for the reference). */
+  registrationPeak: number;
+  /** The frame this one was registered against; null for the reference. */
+  registeredAgainst: string | null;
+  weights: FrameWeightStats;
+}
+
+export interface ReductionResult {
+  /** Radiance in DN/s per plane (linear input) or relative light per second (8-bit input). */
+  master: PlaneImage;
+  coverage: Uint16Array;
+  poorlyExposedCount: number;
+  /** Display values 0..1, sRGB encoded, not yet quantized. */
+  natural: PlaneImage;
+  /** Display values 0..1 of the radial filter on the luminance (one plane). */
+  structure: PlaneImage;
+  frames: FrameReport[];
+  overall: {
+    referenceFrame: string;
+    /** The Moon at the reference frame's instant, master pixels (see moon-track.ts). */
+    moonCentre: { x: number; y: number };
+    moonRadiusPx: number;
+    moonSource: "own-fit" | "path" | "nearest-sound" | "own-doubtful-fit";
+    /** Present when Moon-minus-Sun offsets were given for the reference frame. */
+    sunCentre?: { x: number; y: number };
+    /** Centre the radial filter used: the Sun's when known, else the Moon's. */
+    filterCentre: { x: number; y: number };
+    /** log2 of the 99.9th over the 0.1th percentile of well-exposed master luminance outside the Moon. */
+    dynamicRangeStops: number;
+    natural: { blackPoint: number; whitePoint: number; beta: number };
+    timingsMs: Record<string, number>;
+    pipelineVersion: string;
+    parameters: ReductionParams;
+  };
+}
+
+export interface PreparedFrame {
+  linear: LinearizedFrame;
+  luminance: Float32Array;
+  limb: LimbFit;
+}
+
+/** Refuses a bracket that cannot be reduced, naming the frame at fault. */
+export function validateBracket(frames: LinearFrame[]): void {
+  if (!Array.isArray(frames) || frames.length < 2) {
+    throw new ImagingError("too-few-frames", `a bracket needs at least 2 frames, got ${Array.isArray(frames) ? frames.length : 0}`);
+  }
+  const first = frames[0];
+  for (const f of frames) {
+    validateFrame(f);
+    if (f.image.width !== first.image.width || f.image.height !== first.image.height) {
+      throw new ImagingError("size-mismatch", `is ${f.image.width} x ${f.image.height} but ${first.name} is ${first.image.width} x ${first.image.height}`, f.name);
+    }
+    if (f.image.planes.length !== first.image.planes.length) {
+      throw new ImagingError("size-mismatch", `has ${f.image.planes.length} colour planes but ${first.name} has ${first.image.planes.length}`, f.name);
+    }
+    if (f.encoding !== first.encoding) throw new ImagingError("bad-parameter", `is ${f.encoding} but ${first.name} is ${first.encoding}; a bracket must be all one kind`, f.name);
+  }
+}
+
+/** Camera response of an 8-bit bracket (Debevec and Malik 1997) from the green (or only) plane, as a 256-entry linear table. */
+export function recoverBracketResponse(frames: LinearFrame[]): Float64Array {
+  const plane = frames[0].image.planes.length === 3 ? 1 : 0;
+  const order = frames.map((_, i) => i).sort((a, b) => frames[a].exposureS - frames[b].exposureS);
+  const middle = frames[order[Math.floor(order.length / 2)]];
+  const samples = selectResponseSamples(middle.image.planes[plane], middle.image.width, middle.image.height, 70);
+  const g = recoverResponseCurve(frames.map((f) => f.image.planes[plane]), frames.map((f) => f.exposureS), samples, 10);
+  return convertResponseToTable(g);
+}
+
+/** Per-frame stage: linearize, mask and fit the limb. Throws limb-not-found naming the frame. */
+export function prepareFrame(frame: LinearFrame, params: ReductionParams, responseTable?: Float64Array): PreparedFrame {
+  const linear = linearizeFrame(frame, params.clipFraction, responseTable);
+  const luminance = computeLuminancePlane(linear.planes);
+  const limb = fitLimb(luminance, linear.width, linear.height, { clipLevel: linear.clipLevel, clipped: linear.clipped, noiseSigma: linear.noiseSigma });
+  if (limb.verdict === "failed") throw new ImagingError("limb-not-found", `the lunar limb could not be found: ${limb.reasons.join("; ")}`, frame.name);
+  return { linear, luminance, limb };
+}
+
+/**
+ * Per-frame stage: the frame warped into master pixels as merge input. A master
+ * pixel near either lunar limb is used only when this frame and the reference
+ * agree on whether the Moon covers it (the Moon moves between frames).
+ */
+export function warpFrameForMerge(prepared: PreparedFrame, masterToFrame: AffineSimilarity, frameMoon: LunarDisk, referenceMoon: LunarDisk): MergeFrameInput {
+  const { linear } = prepared;
+  const { width, height } = linear;
+  const window = { width, height };
+  const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
+  let planes = linear.planes;
+  let covered: Uint8Array;
+  let clipped = linear.clipped;
+  let noiseFloor = linear.noiseFloor;
+  if (identity) covered = new Uint8Array(width * height).fill(1);
+  else {
+    const warped = warpPlanes(linear.planes, width, height, masterToFrame, window, "bicubic");
+    planes = warped.planes;
+    covered = warped.covered;
+    // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
+    clipped = warpMask(dilateMask(linear.clipped, width, height, 1), width, height, masterToFrame, window, 1);
+    noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1);
+  }
+  const moon = frameMoon;
+  const moonR = frameMoon.radiusPx;
+  const reach = Math.max(moonR, referenceMoon.radiusPx) + LIMB_MARGIN_PX + Math.hypot(moon.x - referenceMoon.x, moon.y - referenceMoon.y);
+  const y0 = Math.max(0, Math.floor(referenceMoon.y - reach));
+  const y1 = Math.min(height - 1, Math.ceil(referenceMoon.y + reach));
+  const x0 = Math.max(0, Math.floor(referenceMoon.x - reach));
+  const x1 = Math.min(width - 1, Math.ceil(referenceMoon.x + reach));
+  if (!identity) {
+    for (let y = y0; y <= y1; y++) {
+      for (let x = x0; x <= x1; x++) {
+        const dFrame = Math.hypot(x - moon.x, y - moon.y) - moonR;
+        const dRef = Math.hypot(x - referenceMoon.x, y - referenceMoon.y) - referenceMoon.radiusPx;
+        const agree = (dFrame > LIMB_MARGIN_PX && dRef > LIMB_MARGIN_PX) || (dFrame < -LIMB_MARGIN_PX && dRef < -LIMB_MARGIN_PX);
+        if (!agree) covered[y * width + x] = 0;
+      }
+    }
+  }
+  return { planes, exposureS: linear.exposureS, clipped, noiseFloor, covered, clipLevel: linear.clipLevel };
+}
+
+/** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
+export function measureDynamicRangeStops(master: PlaneImage, coverage: Uint16Array, moon: LunarDisk): number {
+  const lum = computeLuminancePlane(master.planes);
+  const valid = createValidMask(master.width, master.height, { ...moon, radiusPx: moon.radiusPx + LIMB_MARGIN_PX });
+  for (let i = 0; i < lum.length; i++) if (!coverage[i] || !(lum[i] > 0)) valid[i] = 0;
+  const [lo, hi] = computePercentiles(lum, [0.1, 99.9], valid);
+  return lo > 0 && hi > lo ? Math.log2(hi / lo) : 0;
+}
+
+/**
+ * Reduces a bracket to a master and its renditions. Throws ImagingError for
+ * fewer than two frames, frames of different sizes, a frame without a positive
+ * finite exposure, and a frame whose limb cannot be found.
+ */
+export function reduceBracket(frames: LinearFrame[], params: ReductionParams, onProgress?: ProgressFn): ReductionResult {
+  const timingsMs: Record<string, number> = {};
+  let clock = performance.now();
+  const lap = (stage: string) => {
+    const now = performance.now();
+    timingsMs[stage] = (timingsMs[stage] ?? 0) + (now - clock);
+    clock = now;
+  };
+  const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
+  validateBracket(frames);
+  if (!(params.clipFraction > 0 && params.clipFraction <= 1)) throw new ImagingError("bad-parameter", `clipFraction must be in (0, 1], got ${params.clipFraction}`);
+  if (params.filter !== "mgn" && params.filter !== "nrgf") throw new ImagingError("bad-parameter", `filter must be "mgn" or "nrgf", got ${String(params.filter)}`);
+  if (params.registration !== "moon" && params.registration !== "corona") throw new ImagingError("bad-parameter", `registration must be "moon" or "corona", got ${String(params.registration)}`);
+  const { width, height } = frames[0].image;
+  const isEncoded = frames[0].encoding === "srgb8";
+
+  progress("linearize", 0);
+  const responseTable = isEncoded ? (params.recoverResponse ? recoverBracketResponse(frames) : createSrgbDecodeTable()) : undefined;
+  const prepared: PreparedFrame[] = [];
+  frames.forEach((f, i) => {
+    prepared.push(prepareFrame(f, params, responseTable));
+    progress("limb", (i + 1) / frames.length);
+  });
+  lap("linearize-and-limb");
+
+  progress("register", 0);
+  const offsets = params.moonMinusSunPx;
+  const regFrames: RegistrationFrame[] = prepared.map((p) => ({
+    name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
+    noiseSigma: p.linear.noiseSigma, limb: { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx }, moonMinusSunPx: offsets?.[p.linear.name],
+  }));
+  const registration = registerFrames(regFrames, { mode: params.registration });
+  lap("register");
+
+  const ref = registration.referenceIndex;
+  const track = estimateMoonTrack(prepared.map((p, i) => ({
+    limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
+  })));
+  const referenceMoon: LunarDisk = track.disks[ref];
+  const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
+  prepared.forEach((p, i) => {
+    addFrameToMerge(acc, warpFrameForMerge(p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon));
+    progress("merge", (i + 1) / prepared.length);
+  });
+  const merged: MergeResult = finishMerge(acc);
+  const master: PlaneImage = { width, height, planes: merged.radiance };
+  lap("warp-and-merge");
+
+  progress("renditions", 0);
+  const refOffset = offsets?.[frames[ref].name];
+  const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
+  const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
+  const outsideMoon = createValidMask(width, height, referenceMoon);
+  const natural = renderNatural(master, { valid: outsideMoon });
+  const luminance = computeLuminancePlane(master.planes);
+  const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
+  const filtered = params.filter === "mgn"
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk })
+    : applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk });
+  const structure = renderStructure(filtered, width, height);
+  const dynamicRangeStops = measureDynamicRangeStops(master, merged.coverage, referenceMoon);
+  progress("renditions", 1);
+  lap("renditions");
+
+  return {
+    master,
+    coverage: merged.coverage,
+    poorlyExposedCount: merged.poorlyExposedCount,
+    natural: natural.image,
+    structure,
+    frames: prepared.map((p, i) => ({
+      name: p.linear.name, width, height, exposureS: p.linear.exposureS, limb: p.limb,
+      transform: fromAffine(registration.frames[i].masterToFrame, width, height),
+      registrationPeak: registration.frames[i].peak,
+      registeredAgainst: registration.frames[i].neighbour >= 0 ? frames[registration.frames[i].neighbour].name : null,
+      weights: merged.frameStats[i],
+    })),
+    overall: {
+      referenceFrame: frames[ref].name,
+      moonCentre: { x: referenceMoon.x, y: referenceMoon.y },
+      moonRadiusPx: referenceMoon.radiusPx,
+      moonSource: track.sources[ref],
+      sunCentre,
+      filterCentre,
+      dynamicRangeStops,
+      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta },
+      timingsMs,
+      pipelineVersion: PIPELINE_VERSION,
+      parameters: params,
+    },
+  };
+}
