@@ -64,9 +64,9 @@ export interface MergeAccumulator {
   height: number;
   channels: number;
   weighting: MergeWeighting;
-  /** photon: sum of counts per plane; debevec-hat: sum of w (ln v - ln t) per plane. */
-  sums: Float64Array[];
-  /** photon: sum of exposure (one plane); debevec-hat: sum of weights per plane. */
+  /** photon: sum of counts per plane; debevec-hat: sum of w (ln v - ln t) per plane. Float32 keeps 24 bits, ample for DN sums. */
+  sums: Float32Array[];
+  /** photon: sum of exposure (one plane); debevec-hat: sum of weights per plane. Float64 so sums of short exposures stay exact. */
   weights: Float64Array[];
   /** Lower bound where everything clipped: the clip level over the shortest covering exposure. */
   fallback: Float32Array;
@@ -90,7 +90,7 @@ export function createMergeAccumulator(
   const weightPlanes = weighting === "photon" ? 1 : channels;
   return {
     width, height, channels, weighting,
-    sums: Array.from({ length: channels }, () => new Float64Array(n)),
+    sums: Array.from({ length: channels }, () => new Float32Array(n)),
     weights: Array.from({ length: weightPlanes }, () => new Float64Array(n)),
     fallback: new Float32Array(n),
     coverage: new Uint16Array(n),

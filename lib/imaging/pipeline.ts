@@ -66,6 +66,7 @@ export interface ReductionResult {
 }
 
 export interface PreparedFrame {
+  /** Linearized frame; for linear input its planes are released after the limb fit (the merge warps the originals). */
   linear: LinearizedFrame;
   luminance: Float32Array;
   limb: LimbFit;
@@ -105,6 +106,9 @@ export function prepareFrame(frame: LinearFrame, params: ReductionParams, respon
   const luminance = computeLuminancePlane(linear.planes);
   const limb = fitLimb(luminance, linear.width, linear.height, { clipLevel: linear.clipLevel, clipped: linear.clipped, noiseSigma: linear.noiseSigma });
   if (limb.verdict === "failed") throw new ImagingError("limb-not-found", `the lunar limb could not be found: ${limb.reasons.join("; ")}`, frame.name);
+  // Linear input: DN - black is cheap to redo after warping (the warp is linear with unit gain), so
+  // the black-subtracted copy is dropped here to keep memory near one copy of the bracket.
+  if (frame.encoding === "linear") linear.planes = [];
   return { linear, luminance, limb };
 }
 
@@ -113,23 +117,37 @@ export function prepareFrame(frame: LinearFrame, params: ReductionParams, respon
  * pixel near either lunar limb is used only when this frame and the reference
  * agree on whether the Moon covers it (the Moon moves between frames).
  */
-export function warpFrameForMerge(prepared: PreparedFrame, masterToFrame: AffineSimilarity, frameMoon: LunarDisk, referenceMoon: LunarDisk): MergeFrameInput {
+export function warpFrameForMerge(
+  frame: LinearFrame,
+  prepared: PreparedFrame,
+  masterToFrame: AffineSimilarity,
+  frameMoon: LunarDisk,
+  referenceMoon: LunarDisk,
+): MergeFrameInput {
   const { linear } = prepared;
   const { width, height } = linear;
   const window = { width, height };
   const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
-  let planes = linear.planes;
+  const isLinear = frame.encoding === "linear";
+  const source = isLinear ? frame.image.planes : linear.planes;
+  let planes: Float32Array[];
   let covered: Uint8Array;
   let clipped = linear.clipped;
   let noiseFloor = linear.noiseFloor;
-  if (identity) covered = new Uint8Array(width * height).fill(1);
-  else {
-    const warped = warpPlanes(linear.planes, width, height, masterToFrame, window, "bicubic");
+  if (identity) {
+    planes = isLinear ? source.map((p) => Float32Array.from(p)) : source;
+    covered = new Uint8Array(width * height).fill(1);
+  } else {
+    const warped = warpPlanes(source, width, height, masterToFrame, window, "bicubic");
     planes = warped.planes;
     covered = warped.covered;
     // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
     clipped = warpMask(dilateMask(linear.clipped, width, height, 1), width, height, masterToFrame, window, 1);
     noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1);
+  }
+  if (isLinear) {
+    const black = frame.blackLevel;
+    for (const p of planes) for (let i = 0; i < p.length; i++) p[i] -= black;
   }
   const moon = frameMoon;
   const moonR = frameMoon.radiusPx;
@@ -206,7 +224,7 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   const referenceMoon: LunarDisk = track.disks[ref];
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
   prepared.forEach((p, i) => {
-    addFrameToMerge(acc, warpFrameForMerge(p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon));
+    addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon));
     progress("merge", (i + 1) / prepared.length);
   });
   const merged: MergeResult = finishMerge(acc);
