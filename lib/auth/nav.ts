@@ -15,6 +15,7 @@ export const NAV_ENTRIES: NavEntry[] = [
   { href: "/review", label: "Review desk", action: "review:use" },
   { href: "/editions", label: "Editions", action: "editions:use" },
   { href: "/admin/people", label: "People", action: "people:list" },
+  { href: "/admin/settings", label: "Settings", action: "settings:edit" },
 ];
 
 export function navFor(roles: readonly Role[]): NavEntry[] {

@@ -55,6 +55,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/review", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
   { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 403 } },
   { path: "/admin/people", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
+  { path: "/admin/settings", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
 ];
 
 function routeTemplates(): string[] {

@@ -1,0 +1,46 @@
+"use client";
+import { useActionState } from "react";
+import { FormMessage } from "@/components/auth/form-message";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { Select } from "@/components/ui/select";
+import { SubmitButton } from "@/components/ui/submit-button";
+
+interface Result {
+  ok: boolean;
+  message: string;
+  fields?: { field: string; message: string }[];
+}
+
+export function SettingsForm({
+  action,
+  initial,
+  licences,
+}: {
+  action: (prev: Result | null, form: FormData) => Promise<Result>;
+  initial: { name: string; shortName: string; defaultLicence: string; defaultCreditLine: string };
+  licences: { value: string; label: string }[];
+}) {
+  const [state, formAction] = useActionState(action, null);
+  const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+  return (
+    <form action={formAction} className="flex max-w-2xl flex-col gap-5">
+      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Field label="Society name" error={err("name")} required>
+        <Input name="name" defaultValue={initial.name} required maxLength={120} />
+      </Field>
+      <Field label="Short name" hint="Used in page titles." error={err("shortName")} required>
+        <Input name="shortName" defaultValue={initial.shortName} required maxLength={40} />
+      </Field>
+      <Field label="Default licence for new plates" hint="Curators can choose another for each plate." error={err("defaultLicence")}>
+        <Select name="defaultLicence" defaultValue={initial.defaultLicence} options={licences} />
+      </Field>
+      <Field label="Default credit line" hint="Printed under every plate unless a curator changes it." error={err("defaultCreditLine")} required>
+        <Input name="defaultCreditLine" defaultValue={initial.defaultCreditLine} required maxLength={200} />
+      </Field>
+      <div>
+        <SubmitButton>Save settings</SubmitButton>
+      </div>
+    </form>
+  );
+}
