@@ -19,6 +19,7 @@ cleanup() {
   trap - INT TERM EXIT
   say "stopping"
   bash "$ROOT/scripts/stop.sh"
+  exit 0
 }
 trap cleanup INT TERM EXIT
 
