@@ -1,0 +1,102 @@
+// report.json: what the reduction did, per frame and overall, in plain numbers
+// that the worker will copy into the database and the review desk shows.
+// Pixel coordinates here are 0-based pixel centres (lib/imaging's convention);
+// the FITS header writes them 1-based.
+import type { ReductionResult } from "@/lib/imaging/pipeline";
+import type { FrameProvenance } from "./decode-frames";
+import type { TilePyramidResult } from "./tiles";
+
+export const REPORT_VERSION = 1;
+
+export interface ReductionReport {
+  reportVersion: number;
+  createdUtc: string;
+  pipelineVersion: string;
+  parameters: ReductionResult["overall"]["parameters"];
+  exposureOverrideSource?: string;
+  frames: Record<string, unknown>[];
+  overall: Record<string, unknown>;
+  timingsMs: Record<string, number>;
+  outputs: Record<string, unknown>;
+  notes: string[];
+}
+
+function roundTo(value: number, digits = 4): number | null {
+  return Number.isFinite(value) ? Number(value.toFixed(digits)) : null;
+}
+
+export function buildReport(input: {
+  result: ReductionResult;
+  provenance: FrameProvenance[];
+  exposureOverrideSource?: string;
+  timingsMs: Record<string, number>;
+  tiles: Record<string, TilePyramidResult>;
+  createdMs: number;
+}): ReductionReport {
+  const { result, provenance } = input;
+  const { overall } = result;
+  const byName = new Map(provenance.map((p) => [p.name, p]));
+  const pixelCount = result.master.width * result.master.height;
+  return {
+    reportVersion: REPORT_VERSION,
+    createdUtc: new Date(input.createdMs).toISOString(),
+    pipelineVersion: overall.pipelineVersion,
+    parameters: overall.parameters,
+    exposureOverrideSource: input.exposureOverrideSource,
+    frames: result.frames.map((f) => {
+      const p = byName.get(f.name)!;
+      return {
+        name: f.name,
+        path: p.path,
+        format: p.format,
+        bitDepth: p.bitDepth,
+        decoded: { width: p.width, height: p.height, planes: p.planeCount },
+        exposure: { seconds: f.exposureS, source: p.exposureSource },
+        captureTimeUtc: p.captureTimeMs === undefined ? null : new Date(p.captureTimeMs).toISOString(),
+        isTimeZoneAssumed: p.isTimeZoneAssumed ?? null,
+        limb: {
+          x: roundTo(f.limb.x), y: roundTo(f.limb.y), radiusPx: roundTo(f.limb.radiusPx), rmsPx: roundTo(f.limb.rmsPx),
+          inlierFraction: roundTo(f.limb.inlierFraction), rayCount: f.limb.rayCount, inlierCount: f.limb.inlierCount,
+          clippedRayCount: f.limb.clippedRayCount, verdict: f.limb.verdict, reasons: f.limb.reasons,
+        },
+        transform: {
+          convention: "master to frame: p_frame = scale R(rotation) (p_master - c) + c + (dx, dy), c the image centre",
+          dx: roundTo(f.transform.dx), dy: roundTo(f.transform.dy), rotationDeg: roundTo(f.transform.rotationDeg, 5), scale: roundTo(f.transform.scale, 6),
+        },
+        registration: { peak: roundTo(f.registrationPeak), against: f.registeredAgainst },
+        weights: {
+          contributingFraction: roundTo(f.weights.contributingFraction),
+          wellExposedFraction: roundTo(f.weights.wellExposedFraction),
+          weightShare: roundTo(f.weights.weightShare),
+        },
+      };
+    }),
+    overall: {
+      referenceFrame: overall.referenceFrame,
+      masterSize: { width: result.master.width, height: result.master.height, planes: result.master.planes.length },
+      moonCentrePx: { x: roundTo(overall.moonCentre.x), y: roundTo(overall.moonCentre.y) },
+      moonRadiusPx: roundTo(overall.moonRadiusPx),
+      sunCentrePx: overall.sunCentre ? { x: roundTo(overall.sunCentre.x), y: roundTo(overall.sunCentre.y) } : null,
+      filterCentrePx: { x: roundTo(overall.filterCentre.x), y: roundTo(overall.filterCentre.y) },
+      dynamicRangeStops: roundTo(overall.dynamicRangeStops, 3),
+      poorlyExposedFraction: roundTo(result.poorlyExposedCount / pixelCount, 6),
+      natural: overall.natural,
+    },
+    timingsMs: Object.fromEntries(Object.entries(input.timingsMs).map(([k, v]) => [k, Math.round(v)])),
+    outputs: {
+      master: "master.fits",
+      renditions: { natural: "natural.png", structure: "structure.png" },
+      preview: "preview.jpg",
+      tiles: Object.fromEntries(
+        Object.entries(input.tiles).map(([name, t]) => [
+          name,
+          { dzi: `tiles/${name}.dzi`, dziTiles: t.dziTileCount, dziLevels: t.dziLevelCount, iiifInfo: `tiles/${name}-iiif/info.json`, iiifTiles: t.iiifTileCount, iiifScaleFactors: t.iiifScaleFactors },
+        ]),
+      ),
+    },
+    notes: [
+      "No helioprojective WCS yet: sky geometry (plate scale, P angle, Sun centre from the ephemeris) is not applied; positions are master pixels.",
+      "Tile pyramids are halved in linear light; sharp only encodes the tiles.",
+    ],
+  };
+}

@@ -1,0 +1,99 @@
+// One reduction from files on disk to a finished output folder: decode (lib/media),
+// reduce (lib/imaging, pure), write. Used by scripts/reduce.ts now and by the
+// worker's reduction job later. Output goes to a staging folder that is renamed
+// into place only when everything is written; on any failure it is removed, so
+// a failed run leaves nothing behind and never touches an earlier reduction.
+import { writeFile } from "node:fs/promises";
+import { join } from "node:path";
+import { reduceBracket } from "@/lib/imaging/pipeline";
+import { DEFAULT_REDUCTION_PARAMS, type ReductionParams } from "@/lib/imaging/types";
+import { checkFileList, decodeBracketFiles } from "./decode-frames";
+import { checkOverridesMatchFiles } from "./exposures-csv";
+import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
+import { buildReport, type ReductionReport } from "./report";
+import { pickRendition, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles } from "./write-outputs";
+import type { TilePyramidResult } from "./tiles";
+
+export type RunProgressFn = (stage: string, fraction: number) => void;
+
+export interface RunReductionOptions {
+  files: string[];
+  outDir: string;
+  params?: Partial<ReductionParams>;
+  /** Exposure in seconds by file name; wins over the file's own value. */
+  exposureOverrides?: Map<string, number>;
+  /** Where the overrides came from (e.g. the CSV's name), for the report. */
+  exposureOverrideSource?: string;
+  /** URL the tiles folder will be served from; IIIF ids are built on it. */
+  iiifBaseUrl?: string;
+  onProgress?: RunProgressFn;
+}
+
+export interface RunReductionResult {
+  outDir: string;
+  report: ReductionReport;
+}
+
+export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
+  const started = performance.now();
+  const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
+  const overrides = options.exposureOverrides ?? new Map<string, number>();
+  checkFileList(options.files);
+  checkOverridesMatchFiles(overrides, options.files, options.exposureOverrideSource);
+  const progress: RunProgressFn = (stage, fraction) => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
+  const timingsMs: Record<string, number> = {};
+  let clock = performance.now();
+  const lap = (stage: string) => {
+    const now = performance.now();
+    timingsMs[stage] = now - clock;
+    clock = now;
+  };
+
+  const output = await createStagedOutput(options.outDir);
+  try {
+    progress("decode", 0);
+    const { frames, provenance } = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f));
+    lap("decode");
+
+    const result = reduceBracket(frames, params, progress);
+    // The pipeline's own stage times, then the total it took (which includes validation).
+    for (const [stage, ms] of Object.entries(result.overall.timingsMs)) timingsMs[stage] = ms;
+    lap("reduce");
+    frames.length = 0; // the decoded frames are no longer needed; let them go before writing
+
+    const dir = output.stagingDir;
+    const createdMs = Date.now();
+    progress("write-master", 0);
+    await writeMasterFits(dir, {
+      result,
+      frames: provenance.map((p) => ({ name: p.name, exposureS: p.exposureS, exposureSource: p.exposureSource === "override" ? (options.exposureOverrideSource ?? "override") : p.exposureSource, captureTimeMs: p.captureTimeMs })),
+      encoding: provenance[0].bitDepth === 8 ? "srgb8" : "linear",
+      instrument: provenance[0].instrument,
+      createdMs,
+    });
+    lap("write-master");
+
+    progress("write-renditions", 0);
+    for (const name of RENDITIONS) await writeRenditionPng(dir, name, pickRendition(result, name));
+    await writePreview(dir, result.natural);
+    lap("write-renditions");
+
+    const tiles: Record<string, TilePyramidResult> = {};
+    for (const [k, name] of RENDITIONS.entries()) {
+      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, pickRendition(result, name), options.iiifBaseUrl, (done, total) =>
+        progress("tiles", (k + done / total) / RENDITIONS.length),
+      );
+    }
+    lap("tiles");
+
+    timingsMs.total = performance.now() - started;
+    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs });
+    await writeFile(join(dir, "report.json"), `${JSON.stringify(report, null, 2)}\n`);
+    await commitStagedOutput(output);
+    progress("done", 1);
+    return { outDir: output.finalDir, report };
+  } catch (error) {
+    await discardStagedOutput(output);
+    throw error;
+  }
+}

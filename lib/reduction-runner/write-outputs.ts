@@ -1,0 +1,70 @@
+// The files of one reduction, written into its staging folder: the master FITS,
+// 16-bit PNGs of both renditions, a JPEG preview and both tile pyramids.
+import { writeFile } from "node:fs/promises";
+import { join } from "node:path";
+import { pathToFileURL } from "node:url";
+import { encodePng16, encodePreview, writeFitsFile } from "@/lib/media";
+import { PREVIEW_MAX_SIDE_PX } from "@/lib/media/encode";
+import { halveImageLinear } from "@/lib/imaging/pyramid";
+import { quantizeToUint16, quantizeToUint8 } from "@/lib/imaging/tone";
+import type { ReductionResult } from "@/lib/imaging/pipeline";
+import type { PlaneImage } from "@/lib/imaging/types";
+import { buildMasterCards, type MasterHeaderInput } from "./master-fits";
+import { writeTilePyramids, type TilePyramidResult } from "./tiles";
+
+export const RENDITIONS = ["natural", "structure"] as const;
+export type RenditionName = (typeof RENDITIONS)[number];
+
+/** Each plane quantized on its own (quantizers interleave; one plane interleaves to itself). */
+function splitQuantized<T extends Uint8Array | Uint16Array>(image: PlaneImage, quantize: (one: PlaneImage, k: number) => T): T[] {
+  return image.planes.map((plane, k) => quantize({ width: image.width, height: image.height, planes: [plane] }, k));
+}
+
+export async function writeMasterFits(dir: string, header: MasterHeaderInput): Promise<string> {
+  const path = join(dir, "master.fits");
+  const { cards, history } = buildMasterCards(header);
+  const { master } = header.result;
+  await writeFitsFile(path, { width: master.width, height: master.height, planes: master.planes, cards, history });
+  return path;
+}
+
+export async function writeRenditionPng(dir: string, name: RenditionName, image: PlaneImage): Promise<string> {
+  const path = join(dir, `${name}.png`);
+  await encodePng16({ width: image.width, height: image.height, planes: splitQuantized(image, (one) => quantizeToUint16(one)) }, path);
+  return path;
+}
+
+/**
+ * Preview JPEG of the natural rendition. Halved in linear light (as the tiles
+ * are) while more than twice the preview size, so sharp's final resize in
+ * encoded values spans less than a factor of two.
+ */
+export async function writePreview(dir: string, image: PlaneImage): Promise<string> {
+  let level = image;
+  while (Math.max(level.width, level.height) > 2 * PREVIEW_MAX_SIDE_PX) level = halveImageLinear(level);
+  const planes = splitQuantized(level, (one, k) => quantizeToUint8(one, 101 + k));
+  const path = join(dir, "preview.jpg");
+  await writeFile(path, await encodePreview({ width: level.width, height: level.height, planes }));
+  return path;
+}
+
+/**
+ * Both pyramids of one rendition under `<dir>/tiles/`: `<name>.dzi` with
+ * `<name>_files/`, and the IIIF service `<name>-iiif/`. The IIIF id is
+ * `<iiifBaseUrl>/<name>-iiif`; without a base URL it is the file URL of the final folder.
+ */
+export async function writeRenditionTiles(dir: string, finalDir: string, name: RenditionName, image: PlaneImage, iiifBaseUrl?: string, onLevel?: (done: number, total: number) => void): Promise<TilePyramidResult> {
+  const tilesDir = join(dir, "tiles");
+  const base = iiifBaseUrl ? iiifBaseUrl.replace(/\/+$/, "") : pathToFileURL(join(finalDir, "tiles")).href;
+  return writeTilePyramids(image, {
+    dziBase: join(tilesDir, name),
+    iiifDir: join(tilesDir, `${name}-iiif`),
+    iiifId: `${base}/${name}-iiif`,
+    seed: name === "natural" ? 1 : 2,
+    onLevel,
+  });
+}
+
+export function pickRendition(result: ReductionResult, name: RenditionName): PlaneImage {
+  return name === "natural" ? result.natural : result.structure;
+}
