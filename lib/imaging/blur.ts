@@ -71,6 +71,62 @@ export function blurGaussian(plane: Float32Array, width: number, height: number,
 }
 
 /**
+ * Wide Gaussian blurs on a reduced grid: box-average by f (a power of two with
+ * f <= sigma / 2), blur there by sqrt(sigma^2 - (f^2 - 1) / 12) / f (a box of
+ * f pixels already adds a variance of (f^2 - 1) / 12 px^2), and interpolate back
+ * bilinearly. For sigma of 4 px and more this keeps the result within about 1 %
+ * of the full blur's local contrast at a fraction of the cost; narrower blurs run
+ * at full resolution.
+ */
+export function blurGaussianFast(plane: Float32Array, width: number, height: number, sigmaPx: number): Float32Array {
+  let f = 1;
+  while (f * 4 <= sigmaPx && f * 4 <= Math.min(width, height) / 8) f *= 2;
+  if (f === 1) return blurGaussian(plane, width, height, sigmaPx);
+  const sw = Math.ceil(width / f);
+  const sh = Math.ceil(height / f);
+  const sum = new Float32Array(sw * sh);
+  const count = new Float32Array(sw * sh);
+  for (let y = 0; y < height; y++) {
+    const row = ((y / f) | 0) * sw;
+    const o = y * width;
+    for (let x = 0; x < width; x++) {
+      const j = row + ((x / f) | 0);
+      sum[j] += plane[o + x];
+      count[j]++;
+    }
+  }
+  for (let j = 0; j < sum.length; j++) sum[j] /= count[j];
+  const small = blurGaussian(sum, sw, sh, Math.sqrt(sigmaPx * sigmaPx - (f * f - 1) / 12) / f);
+  // Small cell j covers full pixels j f .. j f + f - 1, centred at j f + (f - 1) / 2.
+  const out = new Float32Array(width * height);
+  const x0 = new Int32Array(width);
+  const fx = new Float32Array(width);
+  for (let x = 0; x < width; x++) {
+    let u = (x - (f - 1) / 2) / f;
+    u = u < 0 ? 0 : u > sw - 1 ? sw - 1 : u;
+    x0[x] = Math.min(sw - 2, Math.floor(u));
+    fx[x] = u - x0[x];
+  }
+  for (let y = 0; y < height; y++) {
+    let v = (y - (f - 1) / 2) / f;
+    v = v < 0 ? 0 : v > sh - 1 ? sh - 1 : v;
+    const y0 = Math.min(sh - 2, Math.floor(v));
+    const fy = v - y0;
+    const r0 = y0 * sw;
+    const r1 = r0 + sw;
+    const o = y * width;
+    for (let x = 0; x < width; x++) {
+      const j = x0[x];
+      const t = fx[x];
+      const top = small[r0 + j] + t * (small[r0 + j + 1] - small[r0 + j]);
+      const bottom = small[r1 + j] + t * (small[r1 + j + 1] - small[r1 + j]);
+      out[o + x] = top + fy * (bottom - top);
+    }
+  }
+  return out;
+}
+
+/**
  * Gaussian blur of the valid pixels only, by normalized convolution (Knutsson and
  * Westin 1993, CVPR): (m B) * g / (m * g). Pixels with no valid weight nearby get 0.
  */
@@ -89,7 +145,7 @@ export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width
   return num;
 }
 
-/** Dilates a 0/1 mask by a square of half-size radiusPx (separable running max). */
+/** Dilates a 0/1 mask by a square of half-size radiusPx (separable; rows, then columns row by row for sequential memory access). */
 export function dilateMask(mask: Uint8Array, width: number, height: number, radiusPx: number): Uint8Array {
   if (radiusPx <= 0) return Uint8Array.from(mask);
   const tmp = new Uint8Array(mask.length);
@@ -108,16 +164,20 @@ export function dilateMask(mask: Uint8Array, width: number, height: number, radi
     }
   }
   const out = new Uint8Array(mask.length);
-  for (let x = 0; x < width; x++) {
-    let lastSet = -Infinity;
-    for (let y = 0; y < height; y++) {
-      if (tmp[y * width + x]) lastSet = y;
-      if (y - lastSet <= radiusPx) out[y * width + x] = 1;
+  const last = new Float64Array(width).fill(-Infinity);
+  for (let y = 0; y < height; y++) {
+    const o = y * width;
+    for (let x = 0; x < width; x++) {
+      if (tmp[o + x]) last[x] = y;
+      if (y - last[x] <= radiusPx) out[o + x] = 1;
     }
-    let nextSet = Infinity;
-    for (let y = height - 1; y >= 0; y--) {
-      if (tmp[y * width + x]) nextSet = y;
-      if (nextSet - y <= radiusPx) out[y * width + x] = 1;
+  }
+  last.fill(Infinity);
+  for (let y = height - 1; y >= 0; y--) {
+    const o = y * width;
+    for (let x = 0; x < width; x++) {
+      if (tmp[o + x]) last[x] = y;
+      if (last[x] - y <= radiusPx) out[o + x] = 1;
     }
   }
   return out;

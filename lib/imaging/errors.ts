@@ -8,6 +8,7 @@ export type ImagingErrorCode =
   | "bad-levels"
   | "bad-parameter"
   | "limb-not-found"
+  | "registration-failed"
   | "singular-system";
 
 export class ImagingError extends Error {

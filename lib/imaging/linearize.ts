@@ -80,8 +80,10 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
   const means = new Float64Array(bw * bh);
   for (let b = 0; b < means.length; b++) means[b] = blockSum[b] / blockCount[b];
   const darkLimit = Float64Array.from(means).sort()[Math.floor(means.length * 0.25)];
-  const step = width * height > 4_000_000 ? 2 : 1;
-  const responses: number[] = [];
+  // Every pixel of a small frame; a regular sub-sample of about 250 000 from a large one.
+  const step = Math.max(1, Math.round(Math.sqrt((width * height) / 250_000)));
+  const responses = new Float32Array(Math.ceil(height / step) * Math.ceil(width / step));
+  let count = 0;
   for (let y = 1; y < height - 1; y += step) {
     for (let x = 1; x < width - 1; x += step) {
       if (means[((y / block) | 0) * bw + ((x / block) | 0)] > darkLimit) continue;
@@ -90,12 +92,12 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
         plane[i - width - 1] - 2 * plane[i - width] + plane[i - width + 1] -
         2 * plane[i - 1] + 4 * plane[i] - 2 * plane[i + 1] +
         plane[i + width - 1] - 2 * plane[i + width] + plane[i + width + 1];
-      responses.push(Math.abs(v));
+      responses[count++] = Math.abs(v);
     }
   }
-  if (responses.length === 0) return 0;
-  const d = Float64Array.from(responses).sort();
-  return d[Math.floor(d.length / 2)] / (6 * 0.6745);
+  if (count === 0) return 0;
+  const d = responses.subarray(0, count).sort();
+  return d[count >> 1] / (6 * 0.6745);
 }
 
 /**

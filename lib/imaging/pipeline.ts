@@ -11,7 +11,7 @@ import { estimateMoonTrack } from "./moon-track";
 import { registerFrames, type RegistrationFrame } from "./register";
 import { warpMask, warpPlanes } from "./resample";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
-import { fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
+import { composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import { computePercentiles, renderNatural, renderStructure } from "./tone";
 import type { LinearFrame, PlaneImage, ProgressFn, ReductionParams } from "./types";
@@ -214,13 +214,29 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
     name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
     noiseSigma: p.linear.noiseSigma, limb: { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx }, moonMinusSunPx: offsets?.[p.linear.name],
   }));
-  const registration = registerFrames(regFrames, { mode: params.registration });
+  // Always register on the corona; "moon" mode then moves each frame so that its
+  // Moon (or, with offsets, its ephemeris Sun) lands on the reference's, using
+  // the Moon path rather than limb fits that clipping has biased.
+  const registration = registerFrames(regFrames, { mode: "corona" });
+  const ref = registration.referenceIndex;
+  const trackInputs = () => prepared.map((p, i) => ({
+    limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
+  }));
+  let track = estimateMoonTrack(trackInputs());
+  if (params.registration === "moon") {
+    const anchor = (i: number) => {
+      const off = offsets?.[frames[i].name] ?? { dx: 0, dy: 0 };
+      return { x: track.disks[i].x - off.dx, y: track.disks[i].y - off.dy };
+    };
+    const refAnchor = anchor(ref);
+    registration.frames.forEach((r, i) => {
+      const a = anchor(i);
+      r.masterToFrame = composeAffine(r.masterToFrame, { a: 1, b: 0, tx: a.x - refAnchor.x, ty: a.y - refAnchor.y });
+    });
+    track = estimateMoonTrack(trackInputs());
+  }
   lap("register");
 
-  const ref = registration.referenceIndex;
-  const track = estimateMoonTrack(prepared.map((p, i) => ({
-    limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
-  })));
   const referenceMoon: LunarDisk = track.disks[ref];
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
   prepared.forEach((p, i) => {

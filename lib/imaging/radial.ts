@@ -1,6 +1,6 @@
 // Radial filters that reveal coronal structure, computed about the Sun's centre
 // with the lunar disk masked.
-import { blurGaussian } from "./blur";
+import { blurGaussianFast } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
 
 export interface LunarDisk {
@@ -127,7 +127,8 @@ export const MGN_DEFAULTS = { k: 0.7, h: 0.7, gamma: 3.2, widthsPx: [1.25, 2.5, 
  * and maximum over valid pixels (which makes the result invariant under
  * B -> a B + b, a > 0). Convolutions are normalized over valid pixels
  * (Knutsson and Westin 1993), so the dark lunar disk does not bleed into the
- * inner corona; blurs are recursive (Young and van Vliet 1995).
+ * inner corona; blurs are recursive (Young and van Vliet 1995), the wide ones
+ * on a reduced grid (blurGaussianFast).
  */
 export function applyMgn(plane: Float32Array, width: number, height: number, options: MgnOptions = {}): FilteredPlane {
   const k = options.k ?? MGN_DEFAULTS.k;
@@ -164,13 +165,13 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   const sumArctan = new Float64Array(n);
   const diff = new Float32Array(n);
   for (const w of widths) {
-    const norm = blurGaussian(weight, width, height, w);
-    const local = blurGaussian(masked, width, height, w);
+    const norm = blurGaussianFast(weight, width, height, w);
+    const local = blurGaussianFast(masked, width, height, w);
     for (let i = 0; i < n; i++) {
       diff[i] = valid[i] && norm[i] > 1e-6 ? masked[i] - local[i] / norm[i] : 0;
       local[i] = diff[i] * diff[i];
     }
-    const localVar = blurGaussian(local, width, height, w);
+    const localVar = blurGaussianFast(local, width, height, w);
     for (let i = 0; i < n; i++) {
       if (!valid[i]) continue;
       const sd = norm[i] > 1e-6 ? Math.sqrt(Math.max(0, localVar[i] / norm[i])) : 0;

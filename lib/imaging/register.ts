@@ -19,6 +19,7 @@
 // while the least-squares step sums over valid pixels only and has no such pull.
 // Each step warps from the original frame, so resampling never builds up.
 import { blurGaussian, blurGaussianMasked } from "./blur";
+import { downsampleMean } from "./coarse-disk";
 import { ImagingError } from "./errors";
 import { correlatePhase, nextPowerOfTwo } from "./fft";
 import { solveCholesky } from "./linalg";
@@ -95,7 +96,7 @@ function defineRegion(ref: RegistrationFrame): RegionGrid {
   const anchor = computeAnchor(ref);
   const extent = Math.min(6 * ref.limb.radiusPx, ref.width, ref.height);
   const step = Math.max(1, Math.ceil(extent / MAX_WINDOW));
-  const size = Math.min(MAX_WINDOW, nextPowerOfTwo(Math.ceil(extent / step)));
+  const size = Math.min(MAX_WINDOW, Math.ceil(extent / step));
   return {
     width: size,
     height: size,
@@ -108,15 +109,44 @@ function defineRegion(ref: RegistrationFrame): RegionGrid {
   };
 }
 
+/** A frame's luminance and clipped mask at the registration window's step (box-averaged when the step exceeds 1). */
+interface SourceImage {
+  data: Float32Array;
+  clipped: Uint8Array;
+  width: number;
+  height: number;
+  step: number;
+}
+
+function createSourceImage(frame: RegistrationFrame, step: number): SourceImage {
+  if (step === 1) return { data: frame.luminance, clipped: frame.clipped, width: frame.width, height: frame.height, step };
+  const { data, width, height } = downsampleMean(frame.luminance, frame.width, frame.height, step);
+  const clipped = new Uint8Array(width * height);
+  for (let y = 0; y < frame.height; y++) {
+    const row = ((y / step) | 0) * width;
+    for (let x = 0; x < frame.width; x++) if (frame.clipped[y * frame.width + x]) clipped[row + ((x / step) | 0)] = 1;
+  }
+  return { data, clipped, width, height, step };
+}
+
+/** Frame pixels to source pixels: cell j of a step-s source is centred on frame pixel j s + (s - 1) / 2. */
+function toSourceMap(m: AffineSimilarity, step: number): AffineSimilarity {
+  if (step === 1) return m;
+  const k = 1 / step;
+  const c = (step - 1) / (2 * step);
+  return { a: m.a * k, b: m.b * k, tx: m.tx * k - c, ty: m.ty * k - c };
+}
+
 interface Features {
   values: Float64Array;
   valid: Uint8Array;
 }
 
 /** Exposure-normalized log light and validity of a frame warped into the region. */
-function buildLogImage(frame: RegistrationFrame, source: Float32Array, masterToFrame: AffineSimilarity, region: RegionGrid): Features {
-  const { planes, covered } = warpPlanes([source], frame.width, frame.height, masterToFrame, region, "bicubic");
-  const clipped = warpMask(frame.clipped, frame.width, frame.height, masterToFrame, region, 1);
+function buildLogImage(frame: RegistrationFrame, source: SourceImage, masterToFrame: AffineSimilarity, region: RegionGrid): Features {
+  const toSource = toSourceMap(masterToFrame, source.step);
+  const { planes, covered } = warpPlanes([source.data], source.width, source.height, toSource, region, "bicubic");
+  const clipped = warpMask(source.clipped, source.width, source.height, toSource, region, 1);
   const n = region.width * region.height;
   const values = new Float64Array(n);
   const valid = new Uint8Array(n);
@@ -152,23 +182,30 @@ function highPass(f: Features, region: RegionGrid): Float64Array {
   return out;
 }
 
-/** Features multiplied by a soft common mask and a Hann window, for phase correlation. */
-function windowPair(fa: Float64Array, fb: Float64Array, common: Uint8Array, region: RegionGrid): { wa: Float64Array; wb: Float64Array } {
+/**
+ * Features multiplied by a soft common mask and a Hann window, cut to the
+ * largest power-of-two square centred in the region, for phase correlation.
+ */
+function windowPair(fa: Float64Array, fb: Float64Array, common: Uint8Array, region: RegionGrid): { wa: Float64Array; wb: Float64Array; size: number } {
   const { width, height } = region;
+  let size = nextPowerOfTwo(Math.min(width, height));
+  if (size > Math.min(width, height)) size /= 2;
+  const u0 = Math.floor((width - size) / 2);
+  const v0 = Math.floor((height - size) / 2);
   const soft = blurGaussian(Float32Array.from(common), width, height, 2);
-  const wa = new Float64Array(fa.length);
-  const wb = new Float64Array(fb.length);
-  for (let v = 0; v < height; v++) {
-    const wy = Math.sin((Math.PI * (v + 0.5)) / height) ** 2;
-    for (let u = 0; u < width; u++) {
-      const i = v * width + u;
+  const wa = new Float64Array(size * size);
+  const wb = new Float64Array(size * size);
+  for (let v = 0; v < size; v++) {
+    const wy = Math.sin((Math.PI * (v + 0.5)) / size) ** 2;
+    for (let u = 0; u < size; u++) {
+      const i = (v + v0) * width + u + u0;
       if (!common[i]) continue;
-      const w = soft[i] * wy * Math.sin((Math.PI * (u + 0.5)) / width) ** 2;
-      wa[i] = fa[i] * w;
-      wb[i] = fb[i] * w;
+      const w = soft[i] * wy * Math.sin((Math.PI * (u + 0.5)) / size) ** 2;
+      wa[v * size + u] = fa[i] * w;
+      wb[v * size + u] = fb[i] * w;
     }
   }
-  return { wa, wb };
+  return { wa, wb, size };
 }
 
 function intersectMasks(a: Uint8Array, b: Uint8Array): { common: Uint8Array; count: number } {
@@ -246,8 +283,8 @@ export function refineAgainstNeighbour(
   region: RegionGrid,
   options: { estimateScale?: boolean; maxIterations?: number } = {},
 ): { masterToFrame: AffineSimilarity; peak: number; iterations: number } {
-  const source = region.step > 1 ? blurGaussian(frame.luminance, frame.width, frame.height, 0.6 * region.step) : frame.luminance;
-  const neighbourSource = region.step > 1 ? blurGaussian(neighbour.luminance, neighbour.width, neighbour.height, 0.6 * region.step) : neighbour.luminance;
+  const source = createSourceImage(frame, region.step);
+  const neighbourSource = createSourceImage(neighbour, region.step);
   const refLog = buildLogImage(neighbour, neighbourSource, neighbourTransform, region);
   const refFeatures = highPass(refLog, region);
   let m = start;
@@ -255,9 +292,9 @@ export function refineAgainstNeighbour(
   for (let round = 0; round < 2; round++) {
     const moving = buildLogImage(frame, source, m, region);
     const { common, count } = intersectMasks(refLog.valid, moving.valid);
-    if (count < 64) throw new ImagingError("limb-not-found", "too few pixels of corona are well exposed in both frames to register them", frame.name);
-    const { wa, wb } = windowPair(refFeatures, highPass(moving, region), common, region);
-    const shift = correlatePhase(wa, wb, region.width, region.height, 1);
+    if (count < 64) throw new ImagingError("registration-failed", `too few pixels of corona are well exposed both here and in ${neighbour.name} to register them`, frame.name);
+    const { wa, wb, size } = windowPair(refFeatures, highPass(moving, region), common, region);
+    const shift = correlatePhase(wa, wb, size, size, 1);
     peak = shift.peak;
     m = composeAffine(m, { a: 1, b: 0, tx: shift.dx * region.step, ty: shift.dy * region.step });
     if (Math.hypot(shift.dx, shift.dy) < 0.5) break;

@@ -86,6 +86,24 @@ export function warpPlanes(
       }
       computeKeysWeights(dx, wx, 0);
       computeKeysWeights(dy, wy, 0);
+      if (fx >= 1 && fy >= 1 && fx + 2 <= maxX && fy + 2 <= maxY) {
+        // Interior: no clamping, rows addressed directly.
+        const base = (fy - 1) * srcWidth + fx - 1;
+        const w0 = wx[0], w1 = wx[1], w2 = wx[2], w3 = wx[3];
+        for (let c = 0; c < channels; c++) {
+          const p = planes[c];
+          let r = base;
+          let sum = wy[0] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          r += srcWidth;
+          sum += wy[1] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          r += srcWidth;
+          sum += wy[2] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          r += srcWidth;
+          sum += wy[3] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          out[c][o] = sum;
+        }
+        continue;
+      }
       for (let k = 0; k < 4; k++) {
         const x = fx - 1 + k;
         const y = fy - 1 + k;

@@ -3,6 +3,7 @@ import { reduceBracket, validateBracket } from "@/lib/imaging/pipeline";
 import { ImagingError } from "@/lib/imaging/errors";
 import { encodeSrgb } from "@/lib/imaging/srgb";
 import { synthesizeBracket, type SynthOptions } from "@/lib/imaging/synth-model";
+import { applyAffine, toAffine } from "@/lib/imaging/similarity";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 
 const SIZE = 288;
@@ -74,6 +75,21 @@ describe("reduceBracket on a noiseless synthetic bracket", () => {
     expect(result.structure.planes.length).toBe(1);
     expect(Object.keys(result.overall.timingsMs)).toEqual(["linearize-and-limb", "register", "warp-and-merge", "renditions"]);
     expect(stages).toContain("merge");
+  });
+});
+
+describe("reduceBracket in moon mode", () => {
+  it("puts every frame's Moon on the reference's: sound fits exactly, clipped ones along the Moon's path", () => {
+    const { linear, truth } = makeBracket({ noise: false });
+    const result = reduceBracket(linear, { ...DEFAULT_REDUCTION_PARAMS, registration: "moon" });
+    const moon = result.overall.moonCentre;
+    result.frames.forEach((f, i) => {
+      const m = toAffine(f.transform, SIZE, SIZE);
+      const p = applyAffine(m, moon.x, moon.y);
+      // Where the frame's Moon really is, against where the master's Moon maps to.
+      expect(Math.hypot(p.x - truth.moonInFrame[i].x, p.y - truth.moonInFrame[i].y)).toBeLessThan(0.15);
+      expect(Math.abs(f.transform.rotationDeg - ROTATIONS_DEG[i])).toBeLessThan(0.02);
+    });
   });
 });
 
