@@ -7,6 +7,8 @@ const nextConfig = {
   // sharp and the pg driver stay native Node modules on the server.
   serverExternalPackages: ["sharp", "pg", "exiftool-vendored", "bullmq", "ioredis"],
   experimental: {
+    // Track files of moving sites are sent as text through a server action.
+    serverActions: { bodySizeLimit: "25mb" },
     // forbidden() and unauthorized() from next/navigation for pages.
     authInterrupts: true,
   },

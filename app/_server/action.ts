@@ -1,4 +1,5 @@
 import "server-only";
+import { unstable_rethrow } from "next/navigation";
 import type { z } from "zod";
 import type { Actor } from "@/lib/auth/actor";
 import { requirePermission } from "@/lib/auth/actor";
@@ -30,6 +31,8 @@ export function serverAction<S extends z.ZodType>(
       const input = parseInput(schema, Object.fromEntries(form.entries()));
       return { ok: true, message: await run(actor, input) };
     } catch (err) {
+      // redirect() and notFound() work by throwing; let Next.js handle them.
+      unstable_rethrow(err);
       if (err instanceof AppError) return { ok: false, message: err.message, fields: err.fields };
       const { body } = toErrorBody(err);
       return { ok: false, message: body.error.message };

@@ -2,3 +2,4 @@ export * from "./auth";
 export * from "./jobs";
 export * from "./society";
 export * from "./mail";
+export * from "./sky";

@@ -3,6 +3,7 @@
 import { createDb } from "../client";
 import { DEMO_PASSWORD, DEMO_PEOPLE, seedPeople } from "./people";
 import { seedSociety } from "./society";
+import { nameDemoEclipse, syncEclipseCatalogue } from "./eclipses";
 
 const url = process.argv[2] ?? process.env.DATABASE_URL;
 if (!url) {
@@ -13,6 +14,9 @@ const { db, pool } = createDb(url, 2);
 try {
   await seedSociety(db);
   await seedPeople(db);
+  const count = await syncEclipseCatalogue(db);
+  await nameDemoEclipse(db);
+  console.log(`db/seed: eclipse catalogue holds ${count} solar eclipses`);
   console.log("db/seed: demo society ready. Sign in with any of these (password: " + DEMO_PASSWORD + "):");
   for (const p of DEMO_PEOPLE) console.log(`  ${p.email.padEnd(44)} ${p.roles.join(", ")}`);
 } finally {

@@ -11,11 +11,13 @@ export interface NavEntry {
 
 export const NAV_ENTRIES: NavEntry[] = [
   { href: "/", label: "Home" },
+  { href: "/eclipses", label: "Eclipses" },
+  { href: "/planner", label: "Planner" },
   { href: "/studio", label: "Studio", action: "studio:use" },
   { href: "/review", label: "Review desk", action: "review:use" },
   { href: "/editions", label: "Editions", action: "editions:use" },
-  { href: "/admin/people", label: "People", action: "people:list" },
-  { href: "/admin/settings", label: "Settings", action: "settings:edit" },
+  // People, the eclipse catalogue and the society's settings are reached from /admin.
+  { href: "/admin", label: "Admin", action: "people:list" },
 ];
 
 export function navFor(roles: readonly Role[]): NavEntry[] {

@@ -16,6 +16,7 @@ export const PERMISSIONS = {
   "roles:grant": ["admin"],
   "settings:edit": ["admin"],
   "audit:read": ["admin"],
+  "eclipses:edit": ["admin"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Action = keyof typeof PERMISSIONS;

@@ -56,6 +56,13 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 403 } },
   { path: "/admin/people", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin/settings", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
+  { path: "/admin", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
+  { path: "/admin/eclipses", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
+  { path: "/eclipses", expect: everyone(200) },
+  { path: "/studio/kits", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/kits/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/sites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/sites/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
 ];
 
 function routeTemplates(): string[] {

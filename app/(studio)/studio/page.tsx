@@ -1,17 +1,39 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
-import { AreaIntro } from "@/components/area-intro";
+import { PageTitle } from "@/components/page-title";
+import { EmptyState } from "@/components/ui/empty-state";
+import { getDb } from "@/db/client";
+import { listKits } from "@/lib/kits/kits";
+import { listSites } from "@/lib/sites/sites";
 
 export const metadata: Metadata = { title: "Studio" };
 
 export default async function StudioPage() {
   const actor = await requirePagePermission("studio:use", "/studio");
+  const [kits, sites] = await Promise.all([listKits(getDb(), actor), listSites(getDb(), actor)]);
+  const cards = [
+    { href: "/studio/kits", title: "Kits", text: `${kits.length} camera and optics profile${kits.length === 1 ? "" : "s"}` },
+    { href: "/studio/sites", title: "Sites", text: `${sites.length} observing site${sites.length === 1 ? "" : "s"}` },
+    { href: "/planner", title: "Field planner", text: "Contact times, exposure ladder and framing for a site and kit" },
+  ];
   return (
-    <AreaIntro
-      title="Studio"
-      lead={`${actor.name}: your kits, sites and bracket sets.`}
-      emptyTitle="No bracket sets yet"
-      emptyMessage="When bracket uploads open, the sets you bring back from totality will be listed here with their reductions."
-    />
+    <>
+      <PageTitle title="Studio" lead={`${actor.name}: your kits, sites and bracket sets.`} />
+      <ul className="mb-10 grid gap-4 sm:grid-cols-3">
+        {cards.map((c) => (
+          <li key={c.href}>
+            <Link href={c.href} className="block rounded-card border border-line bg-surface-raised p-5 no-underline hover:bg-surface-hover">
+              <span className="block text-lg font-semibold text-ink">{c.title}</span>
+              <span className="mt-1 block text-ink-muted">{c.text}</span>
+            </Link>
+          </li>
+        ))}
+      </ul>
+      <EmptyState
+        title="No bracket sets yet"
+        message="When bracket uploads open, the sets you bring back from totality will be listed here with their reductions."
+      />
+    </>
   );
 }

@@ -1,0 +1,83 @@
+"use client";
+import { useActionState } from "react";
+import { FormMessage } from "@/components/auth/form-message";
+import { Checkbox } from "@/components/ui/checkbox";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { Select } from "@/components/ui/select";
+import { SubmitButton } from "@/components/ui/submit-button";
+import { Textarea } from "@/components/ui/textarea";
+
+interface Result {
+  ok: boolean;
+  message: string;
+  fields?: { field: string; message: string }[];
+}
+
+export interface KitValues {
+  id?: string;
+  name: string;
+  camera: string;
+  sensorWidthMm: number | "";
+  sensorHeightMm: number | "";
+  pixelPitchUm: number | "";
+  focalMm: number | "";
+  teleconverter: number | "";
+  fNumber: number | "";
+  mount: string;
+  flipHorizontal: boolean;
+  flipVertical: boolean;
+  notes: string;
+}
+
+const MOUNT_OPTIONS = [
+  { value: "equatorial", label: "Equatorial (tracks the sky; north stays put)" },
+  { value: "alt-az", label: "Alt-azimuth, tracking (the field rotates)" },
+  { value: "fixed-tripod", label: "Fixed tripod (no tracking)" },
+  { value: "hand-held", label: "Hand-held" },
+  { value: "stabilised", label: "Stabilised platform (ship or aircraft)" },
+];
+
+export function KitForm({ action, initial, submitLabel }: { action: (prev: Result | null, form: FormData) => Promise<Result>; initial: KitValues; submitLabel: string }) {
+  const [state, formAction] = useActionState(action, null);
+  const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+  const num = (name: keyof KitValues, label: string, hint: string, step = "any") => (
+    <Field label={label} hint={hint} error={err(name)} required>
+      <Input name={name} type="number" inputMode="decimal" step={step} min="0" defaultValue={String(initial[name])} required />
+    </Field>
+  );
+  return (
+    <form action={formAction} className="flex flex-col gap-5">
+      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      {initial.id ? <input type="hidden" name="id" value={initial.id} /> : null}
+      <div className="grid gap-5 sm:grid-cols-2">
+        <Field label="Kit name" hint="For you: e.g. “Long lens on the equatorial mount”." error={err("name")} required>
+          <Input name="name" defaultValue={initial.name} required maxLength={80} />
+        </Field>
+        <Field label="Camera" hint="Make and model." error={err("camera")} required>
+          <Input name="camera" defaultValue={initial.camera} required maxLength={80} />
+        </Field>
+        {num("sensorWidthMm", "Sensor width (mm)", "The long side of the sensor.")}
+        {num("sensorHeightMm", "Sensor height (mm)", "The short side.")}
+        {num("pixelPitchUm", "Pixel pitch (µm)", "Distance between pixel centres.")}
+        {num("focalMm", "Focal length (mm)", "Of the lens or telescope alone.")}
+        {num("teleconverter", "Teleconverter factor", "1 without one; 1.4 or 2 with.")}
+        {num("fNumber", "f-number", "Of the lens alone; the teleconverter is applied for you.")}
+        <Field label="Mount" error={err("mount")}>
+          <Select name="mount" defaultValue={initial.mount} options={MOUNT_OPTIONS} />
+        </Field>
+        <fieldset className="flex flex-col gap-2">
+          <legend className="mb-1 font-medium">Image flips</legend>
+          <Checkbox name="flipHorizontal" label="Mirrored left to right" defaultChecked={initial.flipHorizontal} hint="A diagonal mirror or a star diagonal does this." />
+          <Checkbox name="flipVertical" label="Upside down" defaultChecked={initial.flipVertical} />
+        </fieldset>
+      </div>
+      <Field label="Notes" error={err("notes")}>
+        <Textarea name="notes" defaultValue={initial.notes} rows={3} maxLength={2000} />
+      </Field>
+      <div>
+        <SubmitButton>{submitLabel}</SubmitButton>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,97 @@
+"use client";
+import { useActionState, useState, type ChangeEvent } from "react";
+import { FormMessage } from "@/components/auth/form-message";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { Select } from "@/components/ui/select";
+import { SubmitButton } from "@/components/ui/submit-button";
+
+interface Result {
+  ok: boolean;
+  message: string;
+  fields?: { field: string; message: string }[];
+}
+
+const PRECISION_OPTIONS = [
+  { value: "exact", label: "Exact: public pages may show the position as entered" },
+  { value: "rounded", label: "Rounded: public pages show it to about 10 km" },
+  { value: "hidden", label: "Hidden: public pages show no position" },
+];
+
+/**
+ * A fixed site takes coordinates; a moving one a GPX or CSV track, read in the
+ * browser and sent as text (the server parses and checks every point).
+ */
+export function SiteForm({ action }: { action: (prev: Result | null, form: FormData) => Promise<Result> }) {
+  const [state, formAction] = useActionState(action, null);
+  const [kind, setKind] = useState<"fixed" | "moving">("fixed");
+  const [track, setTrack] = useState<{ name: string; text: string } | null>(null);
+  const [readError, setReadError] = useState("");
+  const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+
+  async function onFile(e: ChangeEvent<HTMLInputElement>) {
+    const file = e.target.files?.[0];
+    setReadError("");
+    setTrack(null);
+    if (!file) return;
+    if (file.size > 20_000_000) {
+      setReadError(`${file.name} is larger than 20 MB.`);
+      return;
+    }
+    setTrack({ name: file.name, text: await file.text() });
+  }
+
+  return (
+    <form action={formAction} className="flex flex-col gap-5">
+      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Field label="Site name" hint="For example “Luxor, west bank” or “MV Sfax Star, deck 6”." error={err("name")} required>
+        <Input name="name" required maxLength={80} />
+      </Field>
+      <fieldset className="flex flex-col gap-2">
+        <legend className="mb-1 font-medium">Kind of site</legend>
+        <label className="flex items-center gap-3">
+          <input type="radio" name="kind" value="fixed" checked={kind === "fixed"} onChange={() => setKind("fixed")} />
+          Fixed: a place on land
+        </label>
+        <label className="flex items-center gap-3">
+          <input type="radio" name="kind" value="moving" checked={kind === "moving"} onChange={() => setKind("moving")} />
+          Moving: a ship or an aircraft, with a time-stamped track
+        </label>
+      </fieldset>
+      {kind === "fixed" ? (
+        <div className="grid gap-5 sm:grid-cols-3">
+          <Field label="Latitude (°)" hint="North positive, e.g. 25.69." error={err("latDeg")} required>
+            <Input name="latDeg" type="number" step="any" min={-90} max={90} inputMode="decimal" required />
+          </Field>
+          <Field label="Longitude (°)" hint="East positive, e.g. 32.64." error={err("lonDeg")} required>
+            <Input name="lonDeg" type="number" step="any" min={-180} max={180} inputMode="decimal" required />
+          </Field>
+          <Field label="Elevation (m)" hint="Above sea level." error={err("elevationM")}>
+            <Input name="elevationM" type="number" step="any" defaultValue="0" inputMode="decimal" />
+          </Field>
+        </div>
+      ) : (
+        <Field
+          label="Track file (GPX or CSV)"
+          hint="CSV: a header row with time (ISO 8601, UTC), lat, lon and optionally elevation_m."
+          error={readError || err("trackText") || err("trackFileName")}
+          required
+        >
+          <Input type="file" accept=".gpx,.csv,application/gpx+xml,text/csv" onChange={onFile} required />
+        </Field>
+      )}
+      {kind === "moving" && track ? (
+        <>
+          <input type="hidden" name="trackFileName" value={track.name} />
+          <input type="hidden" name="trackText" value={track.text} />
+        </>
+      ) : null}
+      <Field label="Location on public pages" error={err("precision")}>
+        <Select name="precision" defaultValue="rounded" options={PRECISION_OPTIONS} />
+      </Field>
+      <div>
+        <SubmitButton>Save site</SubmitButton>
+      </div>
+    </form>
+  );
+}

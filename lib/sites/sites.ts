@@ -1,0 +1,136 @@
+// Members' observing sites: fixed places, or moving ones (a ship, an aircraft)
+// described by a time-stamped track. A member sees and changes only their own.
+import { and, asc, eq, sql } from "drizzle-orm";
+import { z } from "zod";
+import type { DbOrTx } from "@/db/client";
+import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/schema";
+import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { AppError, notFound } from "@/lib/errors";
+import { parseTrackText } from "./track-file";
+
+const coord = (what: string, limit: number) =>
+  z.coerce
+    .number({ error: `expected a number of degrees (${what})` })
+    .refine(Number.isFinite, { error: "expected a number" })
+    .min(-limit, { error: `must be between -${limit} and ${limit} degrees` })
+    .max(limit, { error: `must be between -${limit} and ${limit} degrees` });
+
+const common = {
+  name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
+  precision: z.enum(LOCATION_PRECISIONS, { error: `expected one of ${LOCATION_PRECISIONS.join(", ")}` }).default("rounded"),
+};
+
+export const fixedSiteSchema = z.object({
+  ...common,
+  kind: z.literal("fixed"),
+  latDeg: coord("latitude", 90),
+  lonDeg: coord("longitude", 180),
+  elevationM: z.coerce.number({ error: "expected metres" }).min(-500, { error: "must be at least -500 m" }).max(9000, { error: "must be at most 9000 m" }).default(0),
+});
+
+export const movingSiteSchema = z.object({
+  ...common,
+  kind: z.literal("moving"),
+  trackFileName: z.string().trim().min(1, { error: "choose a GPX or CSV file" }).max(200),
+  trackText: z.string().min(1, { error: "the track file is empty" }).max(20_000_000, { error: "the track file is larger than 20 MB" }),
+});
+
+export const siteInputSchema = z.discriminatedUnion("kind", [fixedSiteSchema, movingSiteSchema], { error: "expected kind fixed or moving" });
+export type SiteInput = z.infer<typeof siteInputSchema>;
+
+export interface SiteDto {
+  id: string;
+  name: string;
+  kind: Site["kind"];
+  latDeg: number;
+  lonDeg: number;
+  elevationM: number;
+  precision: Site["precision"];
+  trackFileName: string | null;
+  trackPoints: number;
+  trackStart: string | null;
+  trackEnd: string | null;
+}
+
+function toDto(s: Site): SiteDto {
+  const track = s.track ?? [];
+  return {
+    id: s.id,
+    name: s.name,
+    kind: s.kind,
+    latDeg: s.latDeg,
+    lonDeg: s.lonDeg,
+    elevationM: s.elevationM,
+    precision: s.precision,
+    trackFileName: s.trackFileName,
+    trackPoints: track.length,
+    trackStart: track.length ? new Date(track[0].timeMs).toISOString() : null,
+    trackEnd: track.length ? new Date(track[track.length - 1].timeMs).toISOString() : null,
+  };
+}
+
+/** The values to store for an input; a moving site's track is parsed and checked here. */
+function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
+  if (input.kind === "fixed") {
+    return { name: input.name, kind: "fixed", precision: input.precision, latDeg: input.latDeg, lonDeg: input.lonDeg, elevationM: input.elevationM, track: null, trackFileName: null };
+  }
+  let track: TrackPoint[];
+  try {
+    track = parseTrackText(input.trackText, input.trackFileName);
+  } catch (err) {
+    throw new AppError("invalid_input", (err as Error).message, [{ field: "trackText", message: (err as Error).message }]);
+  }
+  const first = track[0];
+  return {
+    name: input.name,
+    kind: "moving",
+    precision: input.precision,
+    latDeg: first.latDeg,
+    lonDeg: first.lonDeg,
+    elevationM: first.elevationM ?? 0,
+    track,
+    trackFileName: input.trackFileName,
+  };
+}
+
+export async function listSites(db: DbOrTx, actor: Actor | null): Promise<SiteDto[]> {
+  const a = requirePermission(actor, "studio:use");
+  const rows = await db.select().from(sites).where(eq(sites.ownerId, a.userId)).orderBy(asc(sites.name));
+  return rows.map(toDto);
+}
+
+/** The full row, track included, for the owner's own use (planner, reductions). */
+export async function findOwnSite(db: DbOrTx, actor: Actor | null, id: string): Promise<Site> {
+  const a = requirePermission(actor, "studio:use");
+  if (!z.uuid().safeParse(id).success) throw notFound("That site");
+  const [row] = await db.select().from(sites).where(and(eq(sites.id, id), eq(sites.ownerId, a.userId))).limit(1);
+  if (!row) throw notFound("That site");
+  return row;
+}
+
+export async function findSite(db: DbOrTx, actor: Actor | null, id: string): Promise<SiteDto> {
+  return toDto(await findOwnSite(db, actor, id));
+}
+
+export async function createSite(db: DbOrTx, actor: Actor | null, input: SiteInput): Promise<SiteDto> {
+  const a = requirePermission(actor, "studio:use");
+  const [row] = await db.insert(sites).values({ ...toRow(input), ownerId: a.userId }).returning();
+  return toDto(row);
+}
+
+export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, input: SiteInput): Promise<SiteDto> {
+  const a = requirePermission(actor, "studio:use");
+  await findOwnSite(db, a, id);
+  const [row] = await db
+    .update(sites)
+    .set({ ...toRow(input), updatedAt: sql`now()` })
+    .where(and(eq(sites.id, id), eq(sites.ownerId, a.userId)))
+    .returning();
+  return toDto(row);
+}
+
+export async function deleteSite(db: DbOrTx, actor: Actor | null, id: string): Promise<void> {
+  const a = requirePermission(actor, "studio:use");
+  await findOwnSite(db, a, id);
+  await db.delete(sites).where(and(eq(sites.id, id), eq(sites.ownerId, a.userId)));
+}
