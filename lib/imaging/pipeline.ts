@@ -90,13 +90,37 @@ export function validateBracket(frames: LinearFrame[]): void {
   }
 }
 
-/** Camera response of an 8-bit bracket (Debevec and Malik 1997) from the green (or only) plane, as a 256-entry linear table. */
-export function recoverBracketResponse(frames: LinearFrame[]): Float64Array {
+/**
+ * Camera response of an 8-bit bracket (Debevec and Malik 1997) from the green
+ * (or only) plane, as a 256-entry linear table. Debevec and Malik assume
+ * registered frames: pass the master-to-frame maps (and the Moon, whose edge
+ * moves between frames and is kept out of the samples) once registration has run.
+ */
+export function recoverBracketResponse(frames: LinearFrame[], masterToFrame?: AffineSimilarity[], moon?: LunarDisk): Float64Array {
   const plane = frames[0].image.planes.length === 3 ? 1 : 0;
+  const { width, height } = frames[0].image;
   const order = frames.map((_, i) => i).sort((a, b) => frames[a].exposureS - frames[b].exposureS);
-  const middle = frames[order[Math.floor(order.length / 2)]];
-  const samples = selectResponseSamples(middle.image.planes[plane], middle.image.width, middle.image.height, 70);
-  const g = recoverResponseCurve(frames.map((f) => f.image.planes[plane]), frames.map((f) => f.exposureS), samples, 10);
+  const codes = frames.map((f, i) => {
+    const m = masterToFrame?.[i];
+    if (!m || (m.a === 1 && m.b === 0 && m.tx === 0 && m.ty === 0)) return f.image.planes[plane];
+    const warped = warpPlanes([f.image.planes[plane]], width, height, m, { width, height }, "bilinear").planes[0];
+    for (let k = 0; k < warped.length; k++) warped[k] = Math.round(warped[k]);
+    return warped;
+  });
+  const middle = order[Math.floor(order.length / 2)];
+  let reference = codes[middle];
+  if (moon) {
+    // Code 0 is never sampled: blank out the Moon and a band around its moving edge.
+    reference = Float32Array.from(reference);
+    const r = moon.radiusPx + 12;
+    for (let y = Math.max(0, Math.floor(moon.y - r)); y <= Math.min(height - 1, Math.ceil(moon.y + r)); y++) {
+      for (let x = Math.max(0, Math.floor(moon.x - r)); x <= Math.min(width - 1, Math.ceil(moon.x + r)); x++) {
+        if ((x - moon.x) ** 2 + (y - moon.y) ** 2 < r * r) reference[y * width + x] = 0;
+      }
+    }
+  }
+  const samples = selectResponseSamples(reference, width, height, 70);
+  const g = recoverResponseCurve(codes, frames.map((f) => f.exposureS), samples, 10);
   return convertResponseToTable(g);
 }
 
@@ -200,7 +224,9 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   const isEncoded = frames[0].encoding === "srgb8";
 
   progress("linearize", 0);
-  const responseTable = isEncoded ? (params.recoverResponse ? recoverBracketResponse(frames) : createSrgbDecodeTable()) : undefined;
+  // 8-bit frames are linearized with the sRGB curve for limb fits and registration; a
+  // recovered response, when asked for, replaces it for the merge (see below).
+  let responseTable = isEncoded ? createSrgbDecodeTable() : undefined;
   const prepared: PreparedFrame[] = [];
   frames.forEach((f, i) => {
     prepared.push(prepareFrame(f, params, responseTable));
@@ -238,6 +264,14 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   lap("register");
 
   const referenceMoon: LunarDisk = track.disks[ref];
+  if (isEncoded && params.recoverResponse) {
+    progress("response", 0);
+    responseTable = recoverBracketResponse(frames, registration.frames.map((r) => r.masterToFrame), referenceMoon);
+    prepared.forEach((p, i) => {
+      p.linear = linearizeFrame(frames[i], params.clipFraction, responseTable);
+    });
+    lap("response");
+  }
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
   prepared.forEach((p, i) => {
     addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon));

@@ -12,14 +12,19 @@ const LEVELS = 256;
 /**
  * Picks sample pixels deterministically: a grid over the frame, keeping points
  * whose 5 x 5 neighbourhood is smooth in the reference frame (so slight
- * misregistration does not matter), then spreading `count` picks evenly over the
- * ranks of the reference codes so every part of the curve is sampled.
+ * misregistration does not matter) where it can, then for `count` target codes
+ * spread evenly over 1..254 a candidate within 3 codes (smooth ones first, each
+ * used once), so every part of the curve is sampled even when most of the frame
+ * is black or clipped.
  */
 export function selectResponseSamples(reference: ArrayLike<number>, width: number, height: number, count: number): Int32Array {
   const step = Math.max(2, Math.floor(Math.sqrt((width * height) / (count * 40))));
-  const candidates: { index: number; code: number }[] = [];
+  const smooth: number[][] = Array.from({ length: LEVELS }, () => []);
+  const rough: number[][] = Array.from({ length: LEVELS }, () => []);
   for (let y = 2; y < height - 2; y += step) {
     for (let x = 2; x < width - 2; x += step) {
+      const code = Math.round(reference[y * width + x]);
+      if (code < 1 || code > 254) continue;
       let lo = 255, hi = 0;
       for (let dy = -2; dy <= 2; dy++) {
         for (let dx = -2; dx <= 2; dx++) {
@@ -28,15 +33,28 @@ export function selectResponseSamples(reference: ArrayLike<number>, width: numbe
           if (v > hi) hi = v;
         }
       }
-      const code = reference[y * width + x];
-      if (hi - lo <= 2 + 0.04 * code) candidates.push({ index: y * width + x, code });
+      (hi - lo <= 2 + 0.04 * code ? smooth : rough)[code].push(y * width + x);
     }
   }
-  candidates.sort((a, b) => a.code - b.code || a.index - b.index);
-  const picks = Math.min(count, candidates.length);
-  const out = new Int32Array(picks);
-  for (let k = 0; k < picks; k++) out[k] = candidates[Math.floor(((k + 0.5) * candidates.length) / picks)].index;
-  return out;
+  const takenSmooth = new Int32Array(LEVELS);
+  const takenRough = new Int32Array(LEVELS);
+  // Nearest code within maxDistance that still has an unused candidate in the bucket set.
+  const pick = (target: number, buckets: number[][], taken: Int32Array, maxDistance: number): number | null => {
+    for (let d = 0; d <= maxDistance; d++) {
+      for (const c of [target - d, target + d]) {
+        if (c >= 1 && c <= 254 && taken[c] < buckets[c].length) return buckets[c][taken[c]++];
+      }
+    }
+    return null;
+  };
+  const out: number[] = [];
+  for (let k = 0; k < count; k++) {
+    const target = Math.round(1 + (253 * k) / Math.max(1, count - 1));
+    // Prefer a smooth spot near the target code, then any spot near it, then the nearest smooth one.
+    const index = pick(target, smooth, takenSmooth, 3) ?? pick(target, rough, takenRough, 3) ?? pick(target, smooth, takenSmooth, LEVELS);
+    if (index !== null) out.push(index);
+  }
+  return Int32Array.from(out);
 }
 
 /**
@@ -77,11 +95,16 @@ export function recoverResponseCurve(codesPerFrame: ArrayLike<number>[], exposur
   return x.slice(0, LEVELS);
 }
 
-/** exp(g) scaled so that code 255 maps to 1 and code 0 to 0: the linearization table for 8-bit frames. */
+/**
+ * exp(g) as the linearization table for 8-bit frames, code 0 mapped to 0. The
+ * scale is arbitrary; we pin code 128 to the sRGB value there (0.2158605) so
+ * that both 8-bit paths give comparable numbers, rather than pinning code 255,
+ * whose g only the smoothness term decides (its hat weight is zero).
+ */
 export function convertResponseToTable(logResponse: Float64Array): Float64Array {
   const table = new Float64Array(LEVELS);
-  const top = Math.exp(logResponse[LEVELS - 1]);
-  for (let z = 0; z < LEVELS; z++) table[z] = z === 0 ? 0 : Math.exp(logResponse[z]) / top;
+  const pin = 0.2158605 / Math.exp(logResponse[128]);
+  for (let z = 0; z < LEVELS; z++) table[z] = z === 0 ? 0 : Math.exp(logResponse[z]) * pin;
   // Keep the table strictly increasing so that it can be inverted.
   for (let z = 1; z < LEVELS; z++) if (table[z] <= table[z - 1]) table[z] = table[z - 1] * (1 + 1e-6) + 1e-12;
   return table;

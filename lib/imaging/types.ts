@@ -51,3 +51,7 @@ export const DEFAULT_REDUCTION_PARAMS: ReductionParams = {
 };
 
 export type ProgressFn = (stage: string, fraction: number) => void;
+
+// The pipeline's result shapes live beside reduceBracket; re-exported here so
+// that callers can import every contract type from one module.
+export type { FrameReport, ReductionResult } from "./pipeline";

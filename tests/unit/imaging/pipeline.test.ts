@@ -129,13 +129,16 @@ describe("reduceBracket on 8-bit sRGB frames", () => {
       whiteLevel: 255,
       image: { ...f.image, planes: f.image.planes.map((p) => p.map((dn) => Math.round(255 * encodeSrgb((dn - 512) / 4095)))) },
     }));
-    const result = reduceBracket(encoded, DEFAULT_REDUCTION_PARAMS);
-    const ratios = collectRelativeErrors(result.master.planes[1], result.coverage, truth).map((r) => r + 1);
-    const median = ratios[ratios.length >> 1];
-    // Well-exposed 8-bit codes carry at most half a code of rounding: a few per cent at the low end.
-    const inner = ratios.slice(Math.floor(0.05 * ratios.length), Math.floor(0.95 * ratios.length));
-    expect(inner[0] / median).toBeGreaterThan(0.95);
-    expect(inner[inner.length - 1] / median).toBeLessThan(1.05);
+    for (const recoverResponse of [false, true]) {
+      const result = reduceBracket(encoded, { ...DEFAULT_REDUCTION_PARAMS, recoverResponse });
+      const ratios = collectRelativeErrors(result.master.planes[1], result.coverage, truth).map((r) => r + 1);
+      const median = ratios[ratios.length >> 1];
+      // Well-exposed 8-bit codes carry at most half a code of rounding: a few per cent at the low end.
+      const inner = ratios.slice(Math.floor(0.05 * ratios.length), Math.floor(0.95 * ratios.length));
+      expect(inner[0] / median).toBeGreaterThan(0.95);
+      expect(inner[inner.length - 1] / median).toBeLessThan(1.05);
+      if (recoverResponse) expect(result.overall.timingsMs.response).toBeGreaterThan(0);
+    }
   });
 });
 
