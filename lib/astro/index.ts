@@ -39,6 +39,7 @@ export {
   type ContactEvent,
   type LocalCircumstances,
   findLocalCircumstances,
+  findLocalCircumstancesOnTrack,
   findNextLocalCircumstances,
   computeObscuration,
 } from "./local-circumstances";

@@ -1,4 +1,4 @@
-// Local circumstances of a solar eclipse at a fixed site.
+// Local circumstances of a solar eclipse at a site, fixed or moving.
 //
 // astronomy-engine's SearchLocalSolarEclipse finds the eclipse and rough contact
 // times, but models the Moon as a sphere of mean radius 1737.4 km. Published
@@ -9,7 +9,7 @@
 //   first/fourth contact: separation = s_moon(k = 0.2725076) + s_sun
 //   second/third contact: separation = |s_moon(k = 0.272281) - s_sun|
 // by bisection to 1 ms, and find maximum eclipse as the least separation.
-import { AstroTime, KM_PER_AU, Observer, SearchLocalSolarEclipse } from "astronomy-engine";
+import { AstroTime, KM_PER_AU, SearchLocalSolarEclipse } from "astronomy-engine";
 import { AstroError } from "./errors";
 import {
   MOON_K_MEAN,
@@ -21,6 +21,8 @@ import {
   computeTopocentricVectors,
 } from "./positions";
 import { SiteLocation, convertAstroTimeToUtcMs, makeAstroTime, makeObserver, validateUtcMs } from "./site-time";
+import { interpolateTrack } from "./track-interpolate";
+import { TrackPoint } from "./track-parse";
 
 export type LocalEclipseKind = "partial" | "annular" | "total";
 
@@ -67,9 +69,12 @@ interface Disks {
   moonUmbralArcsec: number;
 }
 
-function measureDisks(observer: Observer, utcMs: number): Disks {
+/** Where the observer is at an instant: constant for a fixed site, interpolated along a track for a moving one. */
+type SiteAt = (utcMs: number) => SiteLocation;
+
+function measureDisks(siteAt: SiteAt, utcMs: number): Disks {
   const time: AstroTime = makeAstroTime(utcMs);
-  const v = computeTopocentricVectors(time, observer);
+  const v = computeTopocentricVectors(time, makeObserver(siteAt(utcMs)));
   const moonKm = Math.hypot(v.moon.x, v.moon.y, v.moon.z) * KM_PER_AU;
   return {
     separationArcsec: computeSeparationArcsec(v.sun, v.moon),
@@ -105,27 +110,27 @@ function bisect(f: (ms: number) => number, aMs: number, bMs: number, what: strin
 }
 
 /** Instant of least separation by golden-section search (separation is unimodal over the bracket). */
-function minimizeSeparation(observer: Observer, aMs: number, bMs: number): number {
+function minimizeSeparation(siteAt: SiteAt, aMs: number, bMs: number): number {
   const g = (Math.sqrt(5) - 1) / 2;
   let a = aMs;
   let b = bMs;
   let c = b - g * (b - a);
   let d = a + g * (b - a);
-  let fc = measureDisks(observer, c).separationArcsec;
-  let fd = measureDisks(observer, d).separationArcsec;
+  let fc = measureDisks(siteAt, c).separationArcsec;
+  let fd = measureDisks(siteAt, d).separationArcsec;
   while (b - a > 10) {
     if (fc < fd) {
       b = d;
       d = c;
       fd = fc;
       c = b - g * (b - a);
-      fc = measureDisks(observer, c).separationArcsec;
+      fc = measureDisks(siteAt, c).separationArcsec;
     } else {
       a = c;
       c = d;
       fc = fd;
       d = a + g * (b - a);
-      fd = measureDisks(observer, d).separationArcsec;
+      fd = measureDisks(siteAt, d).separationArcsec;
     }
   }
   return (a + b) / 2;
@@ -145,8 +150,8 @@ export function computeObscuration(sunArcsec: number, moonArcsec: number, separa
   return lens / (Math.PI * a * a);
 }
 
-function describeEvent(site: SiteLocation, utcMs: number, limbSide: "toward-moon" | "away-from-moon"): ContactEvent {
-  const s = computeSunMoonState(site, utcMs);
+function describeEvent(siteAt: SiteAt, utcMs: number, limbSide: "toward-moon" | "away-from-moon"): ContactEvent {
+  const s = computeSunMoonState(siteAt(utcMs), utcMs);
   let pa = (Math.atan2(s.moonMinusSun.eastArcsec, s.moonMinusSun.northArcsec) * 180) / Math.PI;
   if (limbSide === "away-from-moon") pa += 180;
   pa = ((pa % 360) + 360) % 360;
@@ -159,13 +164,20 @@ function describeEvent(site: SiteLocation, utcMs: number, limbSide: "toward-moon
  * astronomy-engine's search (it searches forward without limit, so this means a model fault).
  */
 export function findNextLocalCircumstances(site: SiteLocation, searchFromUtcMs: number): LocalCircumstances {
-  validateUtcMs(searchFromUtcMs, "searchFromUtcMs");
-  const observer = makeObserver(site);
-  const engine = SearchLocalSolarEclipse(makeAstroTime(searchFromUtcMs), observer);
-  const enginePeakMs = convertAstroTimeToUtcMs(engine.peak.time);
-  const f = (ms: number) => measureDisks(observer, ms);
+  return computeCircumstances(() => site, site, searchFromUtcMs);
+}
 
-  const maxMs = minimizeSeparation(observer, enginePeakMs - 20 * MS_PER_MIN, enginePeakMs + 20 * MS_PER_MIN);
+/**
+ * Search with astronomy-engine from one place (searchSite), then refine every contact with
+ * the observer where siteAt puts it at that instant.
+ */
+function computeCircumstances(siteAt: SiteAt, searchSite: SiteLocation, searchFromUtcMs: number): LocalCircumstances {
+  validateUtcMs(searchFromUtcMs, "searchFromUtcMs");
+  const engine = SearchLocalSolarEclipse(makeAstroTime(searchFromUtcMs), makeObserver(searchSite));
+  const enginePeakMs = convertAstroTimeToUtcMs(engine.peak.time);
+  const f = (ms: number) => measureDisks(siteAt, ms);
+
+  const maxMs = minimizeSeparation(siteAt, enginePeakMs - 20 * MS_PER_MIN, enginePeakMs + 20 * MS_PER_MIN);
   const atMax = f(maxMs);
   const firstMs = bisect((ms) => outerGap(f(ms)), maxMs - OUTER_BRACKET_MS, maxMs, "first contact");
   const fourthMs = bisect((ms) => outerGap(f(ms)), maxMs, maxMs + OUTER_BRACKET_MS, "fourth contact");
@@ -183,11 +195,11 @@ export function findNextLocalCircumstances(site: SiteLocation, searchFromUtcMs: 
 
   return {
     kind,
-    firstContact: describeEvent(site, firstMs, "toward-moon"),
-    secondContact: secondMs === null ? null : describeEvent(site, secondMs, innerSide),
-    maximum: describeEvent(site, maxMs, "toward-moon"),
-    thirdContact: thirdMs === null ? null : describeEvent(site, thirdMs, innerSide),
-    fourthContact: describeEvent(site, fourthMs, "toward-moon"),
+    firstContact: describeEvent(siteAt, firstMs, "toward-moon"),
+    secondContact: secondMs === null ? null : describeEvent(siteAt, secondMs, innerSide),
+    maximum: describeEvent(siteAt, maxMs, "toward-moon"),
+    thirdContact: thirdMs === null ? null : describeEvent(siteAt, thirdMs, innerSide),
+    fourthContact: describeEvent(siteAt, fourthMs, "toward-moon"),
     magnitude: (atMax.sunArcsec + atMax.moonMeanArcsec - atMax.separationArcsec) / (2 * atMax.sunArcsec),
     obscuration,
     moonSunDiameterRatio: atMax.moonMeanArcsec / atMax.sunArcsec,
@@ -202,6 +214,21 @@ export function findNextLocalCircumstances(site: SiteLocation, searchFromUtcMs: 
   };
 }
 
+function requireWindowDays(windowDays: number): number {
+  if (!(windowDays > 0 && windowDays <= 15)) {
+    throw new AstroError("bad-parameter", `windowDays must be in (0, 15], got ${String(windowDays)}`, "windowDays");
+  }
+  return windowDays * 86_400_000;
+}
+
+function requireNear(found: LocalCircumstances, nearUtcMs: number, windowMs: number, where: string): LocalCircumstances {
+  if (Math.abs(found.maximum.utcMs - nearUtcMs) > windowMs) {
+    const day = new Date(nearUtcMs).toISOString().slice(0, 10);
+    throw new AstroError("not-found", `no solar eclipse is visible from ${where} within ${windowMs / 86_400_000} days of ${day}`, "site");
+  }
+  return found;
+}
+
 /**
  * Local circumstances of the eclipse whose maximum falls within windowDays of the given date
  * (for example the catalogue date of an eclipse). Throws not-found, naming the site and the
@@ -209,18 +236,27 @@ export function findNextLocalCircumstances(site: SiteLocation, searchFromUtcMs: 
  */
 export function findLocalCircumstances(site: SiteLocation, nearUtcMs: number, windowDays = 2): LocalCircumstances {
   validateUtcMs(nearUtcMs, "nearUtcMs");
-  if (!(windowDays > 0 && windowDays <= 15)) {
-    throw new AstroError("bad-parameter", `windowDays must be in (0, 15], got ${String(windowDays)}`, "windowDays");
-  }
-  const windowMs = windowDays * 86_400_000;
+  const windowMs = requireWindowDays(windowDays);
   const found = findNextLocalCircumstances(site, nearUtcMs - windowMs);
-  if (Math.abs(found.maximum.utcMs - nearUtcMs) > windowMs) {
-    const day = new Date(nearUtcMs).toISOString().slice(0, 10);
-    throw new AstroError(
-      "not-found",
-      `no solar eclipse is visible from latitude ${site.latDeg}, longitude ${site.lonDeg} within ${windowDays} days of ${day}`,
-      "site",
-    );
+  return requireNear(found, nearUtcMs, windowMs, `latitude ${site.latDeg}, longitude ${site.lonDeg}`);
+}
+
+/**
+ * The same for a moving site (a ship or an aircraft): each contact is computed where the track
+ * puts the observer at that instant. Before its first point and after its last the site is
+ * taken to rest at that end, so a track that covers only totality still gives first and fourth
+ * contact (from a position that may be off by the distance travelled).
+ */
+export function findLocalCircumstancesOnTrack(points: readonly TrackPoint[], nearUtcMs: number, windowDays = 2): LocalCircumstances {
+  validateUtcMs(nearUtcMs, "nearUtcMs");
+  const windowMs = requireWindowDays(windowDays);
+  if (!Array.isArray(points) || points.length === 0) {
+    throw new AstroError("bad-parameter", "the track has no points", "track");
   }
-  return found;
+  const first = points[0].timeMs;
+  const last = points[points.length - 1].timeMs;
+  const siteAt: SiteAt = (ms) => interpolateTrack(points, Math.min(last, Math.max(first, ms)), 0);
+  const searchSite = siteAt(nearUtcMs);
+  const found = computeCircumstances(siteAt, searchSite, nearUtcMs - windowMs);
+  return requireNear(found, nearUtcMs, windowMs, `the track near latitude ${searchSite.latDeg.toFixed(2)}, longitude ${searchSite.lonDeg.toFixed(2)}`);
 }
