@@ -12,7 +12,7 @@ export interface LimbFit {
   radiusPx: number;
   /** RMS orthogonal residual of the inlier edge points, px. */
   rmsPx: number;
-  /** Inlier edge points over rays cast. */
+  /** Inlier edge points over rays cast, not counting clipped rays when they were left out. */
   inlierFraction: number;
   rayCount: number;
   inlierCount: number;
@@ -224,7 +224,8 @@ export function fitLimb(plane: Float32Array, width: number, height: number, opti
     for (const f of robust.inliers) inlierCount += f;
     circle = robust.circle;
     const reasons: string[] = [];
-    const inlierFraction = inlierCount / points.rayCount;
+    // Rays left out on purpose (clipped) do not count against the fit; rays without an edge do.
+    const inlierFraction = inlierCount / (points.rayCount - (useUnclipped ? clippedCount : 0));
     if (!useUnclipped) reasons.push(`limb clipped on ${clippedCount} of ${points.count} rays; radius biased inward`);
     if (inlierFraction < 0.5) reasons.push(`only ${(100 * inlierFraction).toFixed(0)} % of rays agree on one circle`);
     if (robust.rmsPx > 0.5) reasons.push(`edge scatter ${robust.rmsPx.toFixed(2)} px RMS`);

@@ -18,13 +18,21 @@ export interface MoonTrackInput {
 export interface MoonTrack {
   /** Lunar disk in master pixels per frame. */
   disks: LunarDisk[];
-  /** How each disk was found: the frame's own sound fit, the fitted path, or the nearest sound frame. */
-  sources: ("own-fit" | "path" | "nearest-sound" | "own-doubtful-fit")[];
+  /** How each disk was found: the frame's own sound fit, the fitted path, or (without times) its own doubtful fit. */
+  sources: ("own-fit" | "path" | "own-doubtful-fit")[];
 }
 
 function toMaster(input: MoonTrackInput): LunarDisk {
   const p = applyAffine(invertAffine(input.masterToFrame), input.limb.x, input.limb.y);
   return { x: p.x, y: p.y, radiusPx: input.limb.radiusPx / Math.hypot(input.masterToFrame.a, input.masterToFrame.b) };
+}
+
+/** Uncertainty of a Moon centre in master pixels: the Cramer-Rao term 2 rms^2 / n of the fit plus a floor; doubtful fits get the clipping bias measured on synthetic brackets (about 0.2 px). */
+function computeCentreSigma(limb: LimbFit): number {
+  const statistical = (2 * limb.rmsPx * limb.rmsPx) / Math.max(3, limb.inlierCount);
+  // The sound floor stands for registration error of the frame (a few hundredths of a pixel for short, noisy exposures).
+  const floor = limb.verdict === "sound" ? 0.05 : 0.2;
+  return Math.sqrt(statistical + floor * floor);
 }
 
 export function estimateMoonTrack(inputs: MoonTrackInput[]): MoonTrack {
@@ -33,24 +41,32 @@ export function estimateMoonTrack(inputs: MoonTrackInput[]): MoonTrack {
   if (sound.length === 0) return { disks: own, sources: inputs.map(() => "own-doubtful-fit") };
   const radii = sound.map((i) => own[i].radiusPx).sort((a, b) => a - b);
   const radiusPx = radii[radii.length >> 1];
-  const timed = sound.filter((i) => Number.isFinite(inputs[i].captureTimeMs));
+  // Weighted least squares of x(t) and y(t) over every timed fit, weights 1 / sigma^2:
+  // sound fits anchor the line, doubtful ones mostly lend it a slope.
+  const timed = inputs.map((f, i) => i).filter((i) => Number.isFinite(inputs[i].captureTimeMs) && inputs[i].limb.verdict !== "failed");
   const times = timed.map((i) => inputs[i].captureTimeMs!);
   const canFit = timed.length >= 2 && Math.max(...times) > Math.min(...times);
   let path: ((t: number) => { x: number; y: number }) | null = null;
   if (canFit) {
-    const t0 = times.reduce((s, t) => s + t, 0) / times.length;
-    let stt = 0, stx = 0, sty = 0, mx = 0, my = 0;
-    for (const i of timed) { mx += own[i].x; my += own[i].y; }
-    mx /= timed.length;
-    my /= timed.length;
+    let sw = 0, st = 0, sx = 0, sy = 0;
     for (const i of timed) {
-      const dt = inputs[i].captureTimeMs! - t0;
-      stt += dt * dt;
-      stx += dt * (own[i].x - mx);
-      sty += dt * (own[i].y - my);
+      const w = 1 / computeCentreSigma(inputs[i].limb) ** 2;
+      sw += w;
+      st += w * inputs[i].captureTimeMs!;
+      sx += w * own[i].x;
+      sy += w * own[i].y;
     }
-    const vx = stx / stt;
-    const vy = sty / stt;
+    const t0 = st / sw, mx = sx / sw, my = sy / sw;
+    let stt = 0, stx = 0, sty = 0;
+    for (const i of timed) {
+      const w = 1 / computeCentreSigma(inputs[i].limb) ** 2;
+      const dt = inputs[i].captureTimeMs! - t0;
+      stt += w * dt * dt;
+      stx += w * dt * (own[i].x - mx);
+      sty += w * dt * (own[i].y - my);
+    }
+    const vx = stt > 0 ? stx / stt : 0;
+    const vy = stt > 0 ? sty / stt : 0;
     path = (t) => ({ x: mx + vx * (t - t0), y: my + vy * (t - t0) });
   }
   const disks: LunarDisk[] = [];
@@ -63,13 +79,9 @@ export function estimateMoonTrack(inputs: MoonTrackInput[]): MoonTrack {
       disks.push({ ...path(f.captureTimeMs!), radiusPx });
       sources.push("path");
     } else {
-      // Nearest sound frame in time when times are known, else in exposure.
-      const key = (k: number) => (Number.isFinite(f.captureTimeMs) && Number.isFinite(inputs[k].captureTimeMs)
-        ? Math.abs(inputs[k].captureTimeMs! - f.captureTimeMs!)
-        : Math.abs(Math.log(inputs[k].exposureS / f.exposureS)));
-      const nearest = sound.reduce((best, k) => (key(k) < key(best) ? k : best), sound[0]);
-      disks.push({ x: own[nearest].x, y: own[nearest].y, radiusPx });
-      sources.push("nearest-sound");
+      // Without times the Moon's motion is unknown: the frame's own fit, on the sound radius.
+      disks.push({ x: own[i].x, y: own[i].y, radiusPx });
+      sources.push("own-doubtful-fit");
     }
   });
   return { disks, sources };

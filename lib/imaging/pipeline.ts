@@ -51,7 +51,7 @@ export interface ReductionResult {
     /** The Moon at the reference frame's instant, master pixels (see moon-track.ts). */
     moonCentre: { x: number; y: number };
     moonRadiusPx: number;
-    moonSource: "own-fit" | "path" | "nearest-sound" | "own-doubtful-fit";
+    moonSource: "own-fit" | "path" | "own-doubtful-fit";
     /** Present when Moon-minus-Sun offsets were given for the reference frame. */
     sunCentre?: { x: number; y: number };
     /** Centre the radial filter used: the Sun's when known, else the Moon's. */
@@ -245,10 +245,9 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   // the Moon path rather than limb fits that clipping has biased.
   const registration = registerFrames(regFrames, { mode: "corona" });
   const ref = registration.referenceIndex;
-  const trackInputs = () => prepared.map((p, i) => ({
+  let track = estimateMoonTrack(prepared.map((p, i) => ({
     limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
-  }));
-  let track = estimateMoonTrack(trackInputs());
+  })));
   if (params.registration === "moon") {
     const anchor = (i: number) => {
       const off = offsets?.[frames[i].name] ?? { dx: 0, dy: 0 };
@@ -259,7 +258,14 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
       const a = anchor(i);
       r.masterToFrame = composeAffine(r.masterToFrame, { a: 1, b: 0, tx: a.x - refAnchor.x, ty: a.y - refAnchor.y });
     });
-    track = estimateMoonTrack(trackInputs());
+    // Every anchor now sits on the reference's, so each frame's Moon is the reference anchor plus its own offset.
+    track = {
+      disks: frames.map((f, i) => {
+        const off = offsets?.[f.name] ?? { dx: 0, dy: 0 };
+        return { x: refAnchor.x + off.dx, y: refAnchor.y + off.dy, radiusPx: track.disks[i].radiusPx };
+      }),
+      sources: track.sources,
+    };
   }
   lap("register");
 
