@@ -51,7 +51,10 @@ describe("runReductionOnFiles refuses bad input, naming the file and the fault",
     const [first, second] = fixture.filesOf("jpeg");
     const bytes = readFileSync(second);
     const cut = place("cut-02.jpg", bytes.subarray(0, Math.floor(bytes.length / 2)));
-    expect(await refusal([first, cut])).toMatch(/^cut-02\.jpg: the image is cut short/);
+    // libvips keeps its error text in one process-wide buffer; with two decodes at once the
+    // "premature end" text is sometimes gone and sharp reports only the failed warning check.
+    // Either way the message names the file and says it cannot be read.
+    expect(await refusal([first, cut])).toMatch(/^cut-02\.jpg: the image (is cut short|cannot be decoded, the data are corrupt)/);
   });
 
   it("a TIFF renamed .fits", async () => {
