@@ -36,6 +36,9 @@ const API_CASES: Case[] = [
   // better-auth's own endpoints are public by design; get-session answers null to a visitor.
   { route: "/api/auth/[...all]", method: "GET", path: () => "/api/auth/get-session", expect: everyone(200) },
   { route: "/api/me", method: "GET", path: () => "/api/me", expect: signedIn },
+  // The planner is public; its downloads too.
+  { route: "/api/planner/calendar", method: "GET", path: () => "/api/planner/calendar?eclipse=2027-08-02&lat=25.69&lon=32.64", expect: everyone(200) },
+  { route: "/api/planner/ladder", method: "GET", path: () => "/api/planner/ladder?eclipse=2027-08-02&lat=25.69&lon=32.64", expect: everyone(200) },
   { route: "/api/admin/people", method: "GET", path: () => "/api/admin/people", expect: adminOnly },
   {
     route: "/api/admin/people/[id]/roles",
@@ -59,6 +62,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/admin", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin/eclipses", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/eclipses", expect: everyone(200) },
+  { path: "/planner", expect: everyone(200) },
   { path: "/studio/kits", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/kits/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
@@ -119,6 +123,12 @@ describe("permission matrix", () => {
       });
     }
   }
+
+  it("lets nobody plan from another person's saved site", async () => {
+    const someone = "/api/planner/calendar?eclipse=2027-08-02&site=" + "00000000-0000-4000-8000-000000000000";
+    expect((await clients.visitor.json(someone)).status).toBe(401);
+    expect((await clients.member.json(someone)).status).toBe(404);
+  });
 
   it("keeps the admin's people list free of password hashes and tokens", async () => {
     const { body } = await clients.admin.json("/api/admin/people?pageSize=100");

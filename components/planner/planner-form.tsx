@@ -1,0 +1,103 @@
+import { buttonClasses } from "@/components/ui/button";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { Select } from "@/components/ui/select";
+import type { EclipseDto } from "@/lib/eclipses/eclipses";
+import type { KitDto } from "@/lib/kits/kits";
+import type { PlannerQuery } from "@/lib/planner/resolve";
+import type { SiteDto } from "@/lib/sites/sites";
+import { WorldPicker } from "./world-picker";
+
+const ZONES = ["UTC", ...Intl.supportedValuesOf("timeZone").filter((z) => z !== "UTC")];
+
+/**
+ * The planner's choices as a plain GET form: the result is a shareable address
+ * and works without JavaScript (the map picker needs it; the fields do not).
+ */
+export function PlannerForm({
+  query,
+  eclipses,
+  sites,
+  kits,
+  eclipseId,
+}: {
+  query: PlannerQuery;
+  eclipses: EclipseDto[];
+  sites: SiteDto[] | null;
+  kits: KitDto[] | null;
+  eclipseId: string;
+}) {
+  return (
+    <form method="get" action="/planner" className="flex flex-col gap-6 rounded-card border border-line bg-surface-raised p-5 print:hidden">
+      <div className="grid gap-4 sm:grid-cols-2">
+        <Field label="Eclipse">
+          <Select
+            name="eclipse"
+            defaultValue={eclipseId}
+            options={eclipses.map((e) => ({ value: e.id, label: `${e.id} ${e.kind}${e.name ? `: ${e.name}` : ""}` }))}
+          />
+        </Field>
+        <Field label="Time zone for local times">
+          <Select name="tz" defaultValue={query.tz} options={ZONES.map((z) => ({ value: z, label: z }))} />
+        </Field>
+      </div>
+      <fieldset className="flex flex-col gap-4">
+        <legend className="mb-2 text-lg font-semibold">Where</legend>
+        {sites && sites.length ? (
+          <Field label="One of your sites" hint="Leave on “typed or picked place” to use the fields below.">
+            <Select
+              name="site"
+              defaultValue={query.site ?? ""}
+              options={[{ value: "", label: "Typed or picked place" }, ...sites.map((s) => ({ value: s.id, label: `${s.name}${s.kind === "moving" ? " (moving)" : ""}` }))]}
+            />
+          </Field>
+        ) : null}
+        <Field label="Place name (optional)">
+          <Input name="place" defaultValue={query.place ?? ""} maxLength={80} />
+        </Field>
+        <WorldPicker lat={query.lat} lon={query.lon} elev={query.elev} />
+        <p className="text-sm text-ink-muted">With no place given, the planner uses the point of greatest eclipse.</p>
+      </fieldset>
+      <fieldset className="grid gap-4 sm:grid-cols-4">
+        <legend className="mb-2 text-lg font-semibold">With what</legend>
+        {kits && kits.length ? (
+          <Field label="One of your kits" className="sm:col-span-4">
+            <Select
+              name="kit"
+              defaultValue={query.kit ?? ""}
+              options={[{ value: "", label: "The lens described below" }, ...kits.map((k) => ({ value: k.id, label: `${k.name} (${k.camera})` }))]}
+            />
+          </Field>
+        ) : null}
+        <Field label="f-number">
+          <Input name="f" type="number" step="any" min={0.5} max={128} defaultValue={query.f ?? 8} />
+        </Field>
+        <Field label="Focal length (mm)" hint="For the framing drawing.">
+          <Input name="focal" type="number" step="any" min={1} defaultValue={query.focal ?? ""} />
+        </Field>
+        <Field label="Mount">
+          <Select
+            name="mount"
+            defaultValue={query.mount ?? ""}
+            options={[
+              { value: "", label: "Not given" },
+              { value: "equatorial", label: "Equatorial" },
+              { value: "alt-az", label: "Alt-azimuth" },
+              { value: "fixed-tripod", label: "Fixed tripod" },
+              { value: "hand-held", label: "Hand-held" },
+              { value: "stabilised", label: "Stabilised platform" },
+            ]}
+          />
+        </Field>
+        <Field label="ISO speeds" hint="Up to six, separated by commas.">
+          <Input name="isos" defaultValue={query.isos.join(",")} />
+        </Field>
+      </fieldset>
+      <div>
+        <button type="submit" className={buttonClasses({ variant: "primary" })}>
+          Plan
+        </button>
+      </div>
+    </form>
+  );
+}

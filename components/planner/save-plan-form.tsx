@@ -1,0 +1,27 @@
+"use client";
+import { useActionState } from "react";
+import { FormMessage } from "@/components/auth/form-message";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { SubmitButton } from "@/components/ui/submit-button";
+
+interface Result {
+  ok: boolean;
+  message: string;
+}
+
+export function SavePlanForm({ action, hidden, defaultName }: { action: (prev: Result | null, form: FormData) => Promise<Result>; hidden: Record<string, string>; defaultName: string }) {
+  const [state, formAction] = useActionState(action, null);
+  return (
+    <form action={formAction} className="flex flex-wrap items-end gap-3">
+      {Object.entries(hidden).map(([k, v]) => (
+        <input key={k} type="hidden" name={k} value={v} />
+      ))}
+      <Field label="Plan name" className="min-w-64 flex-1">
+        <Input name="name" defaultValue={defaultName} maxLength={80} required />
+      </Field>
+      <SubmitButton variant="secondary">Save this plan</SubmitButton>
+      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+    </form>
+  );
+}

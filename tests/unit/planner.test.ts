@@ -1,0 +1,87 @@
+// The planner's pure parts on the demo scenario's eclipse (2027 August 2).
+// Contact times themselves are checked against published values in
+// tests/unit/astro; here we check what the planner builds from them.
+import { describe, expect, it } from "vitest";
+import { buildLadderCsv, buildTimelineCalendar } from "@/lib/planner/exports";
+import { computeFieldPlan } from "@/lib/planner/plan";
+import { planFileName } from "@/lib/planner/route-helpers";
+import { plannerQuerySchema } from "@/lib/planner/resolve";
+
+// 2027-08-02 greatest eclipse from our own catalogue search; the planner only
+// needs a date near the maximum.
+const PEAK = Date.UTC(2027, 7, 2, 10, 7);
+const luxor = { latDeg: 25.69, lonDeg: 32.64, elevationM: 80, name: "Luxor" };
+
+describe("field plan", () => {
+  const plan = computeFieldPlan({
+    eclipseId: "2027-08-02",
+    eclipsePeakUtcMs: PEAK,
+    site: luxor,
+    kit: { name: "lens", fNumber: 8, focalMm: 800, pixelPitchUm: 4.3, sensorWidthMm: 36, sensorHeightMm: 24, mount: "equatorial" },
+    isos: [100, 400],
+  });
+
+  it("orders the timeline C1, C2, maximum, C3, C4 and counts from second contact", () => {
+    expect(plan.timeline.map((e) => e.key)).toEqual(["C1", "C2", "MAX", "C3", "C4"]);
+    const times = plan.timeline.map((e) => e.utcMs);
+    expect([...times].sort((a, b) => a - b)).toEqual(times);
+    expect(plan.timeline[1].fromSecondContactS).toBe(0);
+    expect(plan.timeline[3].fromSecondContactS).toBe(Math.round(plan.circumstances.centralDurationS!));
+  });
+
+  it("gives a ladder row for every phenomenon and ISO, exposures following t = f^2 / (ISO 2^Q) (NASA RP 1369)", () => {
+    expect(plan.ladder).toHaveLength(12 * 2);
+    for (const s of plan.ladder) expect(s.exposureS).toBeCloseTo((8 * 8) / (s.iso * 2 ** s.q), 12);
+  });
+
+  it("draws the frame in solar radii from the kit (36 x 24 mm at 800 mm)", () => {
+    // Computed: field angle 2 atan(18 / 800) = 2.578 deg = 9281 arcsec across, over the day's
+    // solar radius (about 946 arcsec in early August) = 9.81 radii.
+    expect(plan.frame!.widthRsun).toBeCloseTo(9281 / plan.sunSemiDiameterArcsec, 1);
+    expect(plan.sunSemiDiameterArcsec).toBeGreaterThan(944);
+    expect(plan.sunSemiDiameterArcsec).toBeLessThan(948);
+    expect(plan.frame!.widthRsun / plan.frame!.heightRsun).toBeCloseTo(1.5, 2);
+  });
+
+  it("puts solar north at P from image up on an equatorial mount squared to north", () => {
+    expect(plan.northInImageDeg).toBe(0);
+    expect(plan.solarNorthInImageDeg).toBeCloseTo(plan.pDeg, 9);
+  });
+
+  it("writes an iCalendar with one event per contact, in UTC, with whole seconds", () => {
+    const ics = buildTimelineCalendar(plan, { eclipseId: "2027-08-02", siteName: "Luxor", latDeg: 25.69, lonDeg: 32.64 });
+    expect(ics).toMatch(/^BEGIN:VCALENDAR/);
+    expect(ics.match(/BEGIN:VEVENT/g)).toHaveLength(5);
+    const c2 = new Date(Math.round(plan.timeline[1].utcMs / 1000) * 1000).toISOString().replace(/[-:]/g, "").slice(0, 15) + "Z";
+    expect(ics).toContain(`DTSTART:${c2}`);
+    expect(ics).toContain("GEO:25.69;32.64");
+  });
+
+  it("writes a CSV ladder with a header and quoted cells where needed (RFC 4180)", () => {
+    const csv = buildLadderCsv(plan);
+    const lines = csv.trimEnd().split("\r\n");
+    expect(lines[0]).toBe("phenomenon,iso,f_number,exposure_s,marked_speed,reach_rsun,filter_density");
+    expect(lines).toHaveLength(1 + 24);
+    expect(lines[1]).toMatch(/^"Partial phase, ND 5.0 filter",100,8,/);
+  });
+});
+
+describe("planner query", () => {
+  it("names the field and the fault for bad input", () => {
+    const r = plannerQuerySchema.safeParse({ lat: "91", isos: "100,abc", tz: "Mars/Olympus" });
+    expect(r.success).toBe(false);
+    const fields = r.error!.issues.map((i) => i.path[0]).sort();
+    expect(fields).toEqual(["isos", "lat", "tz"]);
+  });
+
+  it("defaults to ISO 100 and 400 in UTC", () => {
+    const q = plannerQuerySchema.parse({});
+    expect(q.isos).toEqual([100, 400]);
+    expect(q.tz).toBe("UTC");
+  });
+
+  it("makes safe download names", () => {
+    const name = planFileName({ eclipse: { id: "2027-08-02" }, input: { site: { name: "Cádiz / playa \"La Victoria\"" } } } as never, "ics");
+    expect(name).toBe("eclipse-2027-08-02-ca-diz-playa-la-victoria.ics");
+  });
+});
