@@ -84,18 +84,18 @@ export function blurGaussianFast(plane: Float32Array, width: number, height: num
   if (f === 1) return blurGaussian(plane, width, height, sigmaPx);
   const sw = Math.ceil(width / f);
   const sh = Math.ceil(height / f);
+  const shift = Math.log2(f);
   const sum = new Float32Array(sw * sh);
-  const count = new Float32Array(sw * sh);
   for (let y = 0; y < height; y++) {
-    const row = ((y / f) | 0) * sw;
+    const row = (y >> shift) * sw;
     const o = y * width;
-    for (let x = 0; x < width; x++) {
-      const j = row + ((x / f) | 0);
-      sum[j] += plane[o + x];
-      count[j]++;
-    }
+    for (let x = 0; x < width; x++) sum[row + (x >> shift)] += plane[o + x];
   }
-  for (let j = 0; j < sum.length; j++) sum[j] /= count[j];
+  // Cell areas: f x f inside, less along the right and bottom edges.
+  for (let j = 0; j < sh; j++) {
+    const rows = Math.min(f, height - j * f);
+    for (let i = 0; i < sw; i++) sum[j * sw + i] /= rows * Math.min(f, width - i * f);
+  }
   const small = blurGaussian(sum, sw, sh, Math.sqrt(sigmaPx * sigmaPx - (f * f - 1) / 12) / f);
   // Small cell j covers full pixels j f .. j f + f - 1, centred at j f + (f - 1) / 2.
   const out = new Float32Array(width * height);

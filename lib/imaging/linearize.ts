@@ -2,7 +2,7 @@
 // clipped mask and the noise-floor mask.
 import { dilateMask } from "./blur";
 import { ImagingError } from "./errors";
-import { createSrgbDecodeTable } from "./srgb";
+import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import type { LinearFrame } from "./types";
 
 export interface LinearizedFrame {
@@ -13,6 +13,8 @@ export interface LinearizedFrame {
   encoding: LinearFrame["encoding"];
   /** Linear planes: DN above black for linear input; relative light (0..1 at code 255) for 8-bit input. */
   planes: Float32Array[];
+  /** Luminance of the linear planes (IEC 61966-2-1 weights; the plane itself for grey). */
+  luminance: Float32Array;
   /** Value at and above which a plane counts as clipped, in the planes' units. */
   clipLevel: number;
   /** 1 where any plane is clipped, dilated by one pixel (3 x 3) because the PSF and demosaicing spread saturation. */
@@ -100,41 +102,64 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
   return d[count >> 1] / (6 * 0.6745);
 }
 
+export interface LinearizeOptions {
+  /** 8-bit input: 256 linear values per code (e.g. from recoverResponse); the sRGB curve when absent. */
+  responseTable?: ArrayLike<number>;
+  /**
+   * Keep the black-subtracted planes of linear input (default true). The
+   * pipeline drops them: it warps the original planes and subtracts the black
+   * level afterwards, which keeps one copy of a large bracket in memory.
+   */
+  keepPlanes?: boolean;
+}
+
 /**
  * Linearizes one frame. Linear input: v = DN - black, clip level clipFraction x
  * (white - black). 8-bit input: v = decode(code) with the IEC 61966-2-1 sRGB
- * curve, or with the given response table (256 linear values, e.g. from
- * recoverResponse), clip level at code clipFraction x 255.
+ * curve, or with the given response table, clip level at code clipFraction x
+ * 255. A pixel is clipped when any plane is. Also returns the luminance
+ * (IEC 61966-2-1 weights), whose dark noise sets the noise floor.
  */
-export function linearizeFrame(frame: LinearFrame, clipFraction: number, responseTable?: ArrayLike<number>): LinearizedFrame {
+export function linearizeFrame(frame: LinearFrame, clipFraction: number, options: LinearizeOptions = {}): LinearizedFrame {
   validateFrame(frame);
   if (!(clipFraction > 0 && clipFraction <= 1)) throw new ImagingError("bad-parameter", `clipFraction must be in (0, 1], got ${clipFraction}`);
   const { width, height } = frame.image;
   const n = width * height;
   const clipped = new Uint8Array(n);
+  const sources = frame.image.planes;
   let planes: Float32Array[];
   let clipLevel: number;
-  let noiseSigma: number;
-  let noiseFloorLevel: number;
+  let luminance: Float32Array;
   if (frame.encoding === "linear") {
     const black = frame.blackLevel;
-    clipLevel = clipFraction * (frame.whiteLevel - black);
-    planes = frame.image.planes.map((src) => {
-      const out = new Float32Array(n);
+    const level = clipFraction * (frame.whiteLevel - black);
+    clipLevel = level;
+    luminance = new Float32Array(n);
+    if (sources.length === 3) {
+      const [r, g, b] = sources;
+      for (let i = 0; i < n; i++) {
+        const rv = r[i] - black, gv = g[i] - black, bv = b[i] - black;
+        luminance[i] = 0.2126 * rv + 0.7152 * gv + 0.0722 * bv;
+        if (rv >= level || gv >= level || bv >= level) clipped[i] = 1;
+      }
+    } else {
+      const src = sources[0];
       for (let i = 0; i < n; i++) {
         const v = src[i] - black;
-        out[i] = v;
-        if (v >= clipLevel) clipped[i] = 1;
+        luminance[i] = v;
+        if (v >= level) clipped[i] = 1;
       }
+    }
+    planes = options.keepPlanes === false ? [] : sources.map((src) => {
+      const out = new Float32Array(n);
+      for (let i = 0; i < n; i++) out[i] = src[i] - black;
       return out;
     });
-    noiseSigma = estimateDarkNoiseSigma(planes.length === 3 ? planes[1] : planes[0], width, height);
-    noiseFloorLevel = NOISE_FLOOR_SIGMAS * noiseSigma;
   } else {
-    const table = responseTable ?? createSrgbDecodeTable();
+    const table = options.responseTable ?? createSrgbDecodeTable();
     if (table.length !== 256) throw new ImagingError("bad-parameter", `response table must have 256 entries, got ${table.length}`, frame.name);
     const clipCode = clipFraction * 255;
-    planes = frame.image.planes.map((src, p) => {
+    planes = sources.map((src, p) => {
       const out = new Float32Array(n);
       for (let i = 0; i < n; i++) {
         const code = src[i];
@@ -145,12 +170,12 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, respons
       return out;
     });
     clipLevel = table[Math.min(255, Math.ceil(clipCode))];
-    noiseSigma = table[1] - table[0];
-    noiseFloorLevel = table[NOISE_FLOOR_CODE];
+    luminance = computeLuminancePlane(planes);
   }
+  const noiseSigma = frame.encoding === "linear" ? estimateDarkNoiseSigma(luminance, width, height) : (options.responseTable ?? createSrgbDecodeTable())[1];
+  const noiseFloorLevel = frame.encoding === "linear" ? NOISE_FLOOR_SIGMAS * noiseSigma : (options.responseTable ?? createSrgbDecodeTable())[NOISE_FLOOR_CODE];
   const noiseFloor = new Uint8Array(n);
-  const lum = planes.length === 3 ? planes[1] : planes[0];
-  for (let i = 0; i < n; i++) if (lum[i] <= noiseFloorLevel) noiseFloor[i] = 1;
+  for (let i = 0; i < n; i++) if (luminance[i] <= noiseFloorLevel) noiseFloor[i] = 1;
   return {
     name: frame.name,
     width,
@@ -158,6 +183,7 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, respons
     exposureS: frame.exposureS,
     encoding: frame.encoding,
     planes,
+    luminance,
     clipLevel,
     clipped: dilateMask(clipped, width, height, 1),
     noiseFloor,

@@ -103,33 +103,52 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
   if (frame.planes.length !== acc.channels) throw new ImagingError("size-mismatch", `merge expects ${acc.channels} planes, got ${frame.planes.length}`);
   if (frame.planes.some((p) => p.length !== n) || frame.clipped.length !== n) throw new ImagingError("size-mismatch", "merge inputs differ in size");
   const t = frame.exposureS;
-  const logT = Math.log(t);
   const bound = frame.clipLevel / t;
+  const { clipped, noiseFloor, covered } = frame;
+  const { coverage, fallback } = acc;
   let weightSum = 0;
   let contributing = 0;
   let well = 0;
+  // Pass 1: masks, coverage and the clipped fallback (shared by every plane).
+  const use = new Uint8Array(n);
   for (let i = 0; i < n; i++) {
-    if (frame.covered && !frame.covered[i]) continue;
-    if (frame.clipped[i]) {
-      if (bound > acc.fallback[i]) acc.fallback[i] = bound;
+    if (covered && !covered[i]) continue;
+    if (clipped[i]) {
+      if (bound > fallback[i]) fallback[i] = bound;
       continue;
     }
+    use[i] = 1;
     contributing++;
-    if (!frame.noiseFloor[i]) {
-      acc.coverage[i]++;
+    if (!noiseFloor[i]) {
+      coverage[i]++;
       well++;
     }
-    if (acc.weighting === "photon") {
-      for (let c = 0; c < acc.channels; c++) acc.sums[c][i] += frame.planes[c][i];
-      acc.weights[0][i] += t;
-      weightSum += t;
-    } else {
-      for (let c = 0; c < acc.channels; c++) {
-        const v = frame.planes[c][i];
-        const w = computeHatWeight(acc.codeOf!(v));
-        if (w <= 0 || !(v > 0)) continue;
-        acc.sums[c][i] += w * (Math.log(v) - logT);
-        acc.weights[c][i] += w;
+  }
+  // Pass 2: one tight loop per plane.
+  if (acc.weighting === "photon") {
+    const exposure = acc.weights[0];
+    for (let i = 0; i < n; i++) if (use[i]) exposure[i] += t;
+    weightSum = t * contributing;
+    for (let c = 0; c < acc.channels; c++) {
+      const sum = acc.sums[c];
+      const p = frame.planes[c];
+      for (let i = 0; i < n; i++) if (use[i]) sum[i] += p[i];
+    }
+  } else {
+    const logT = Math.log(t);
+    const codeOf = acc.codeOf!;
+    for (let c = 0; c < acc.channels; c++) {
+      const sum = acc.sums[c];
+      const weight = acc.weights[c];
+      const p = frame.planes[c];
+      for (let i = 0; i < n; i++) {
+        if (!use[i]) continue;
+        const v = p[i];
+        if (!(v > 0)) continue;
+        const w = computeHatWeight(codeOf(v));
+        if (w <= 0) continue;
+        sum[i] += w * (Math.log(v) - logT);
+        weight[i] += w;
         weightSum += w / acc.channels;
       }
     }

@@ -9,7 +9,7 @@ import { addFrameToMerge, createMergeAccumulator, finishMerge, type FrameWeightS
 import { applyMgn, applyNrgf, createValidMask, type LunarDisk } from "./radial";
 import { estimateMoonTrack } from "./moon-track";
 import { registerFrames, type RegistrationFrame } from "./register";
-import { warpMask, warpPlanes } from "./resample";
+import { warpMask, warpPlanes, type WarpTarget } from "./resample";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
 import { composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
@@ -126,13 +126,10 @@ export function recoverBracketResponse(frames: LinearFrame[], masterToFrame?: Af
 
 /** Per-frame stage: linearize, mask and fit the limb. Throws limb-not-found naming the frame. */
 export function prepareFrame(frame: LinearFrame, params: ReductionParams, responseTable?: Float64Array): PreparedFrame {
-  const linear = linearizeFrame(frame, params.clipFraction, responseTable);
-  const luminance = computeLuminancePlane(linear.planes);
+  const linear = linearizeFrame(frame, params.clipFraction, { responseTable, keepPlanes: frame.encoding !== "linear" });
+  const luminance = linear.luminance;
   const limb = fitLimb(luminance, linear.width, linear.height, { clipLevel: linear.clipLevel, clipped: linear.clipped, noiseSigma: linear.noiseSigma });
   if (limb.verdict === "failed") throw new ImagingError("limb-not-found", `the lunar limb could not be found: ${limb.reasons.join("; ")}`, frame.name);
-  // Linear input: DN - black is cheap to redo after warping (the warp is linear with unit gain), so
-  // the black-subtracted copy is dropped here to keep memory near one copy of the bracket.
-  if (frame.encoding === "linear") linear.planes = [];
   return { linear, luminance, limb };
 }
 
@@ -147,6 +144,7 @@ export function warpFrameForMerge(
   masterToFrame: AffineSimilarity,
   frameMoon: LunarDisk,
   referenceMoon: LunarDisk,
+  scratch?: WarpTarget,
 ): MergeFrameInput {
   const { linear } = prepared;
   const { width, height } = linear;
@@ -159,10 +157,10 @@ export function warpFrameForMerge(
   let clipped = linear.clipped;
   let noiseFloor = linear.noiseFloor;
   if (identity) {
-    planes = isLinear ? source.map((p) => Float32Array.from(p)) : source;
-    covered = new Uint8Array(width * height).fill(1);
+    planes = isLinear ? source.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p))) : source;
+    covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
   } else {
-    const warped = warpPlanes(source, width, height, masterToFrame, window, "bicubic");
+    const warped = warpPlanes(source, width, height, masterToFrame, window, "bicubic", scratch);
     planes = warped.planes;
     covered = warped.covered;
     // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
@@ -194,9 +192,8 @@ export function warpFrameForMerge(
 }
 
 /** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
-export function measureDynamicRangeStops(master: PlaneImage, coverage: Uint16Array, moon: LunarDisk): number {
-  const lum = computeLuminancePlane(master.planes);
-  const valid = createValidMask(master.width, master.height, { ...moon, radiusPx: moon.radiusPx + LIMB_MARGIN_PX });
+export function measureDynamicRangeStops(lum: Float32Array, width: number, height: number, coverage: Uint16Array, moon: LunarDisk): number {
+  const valid = createValidMask(width, height, { ...moon, radiusPx: moon.radiusPx + LIMB_MARGIN_PX });
   for (let i = 0; i < lum.length; i++) if (!coverage[i] || !(lum[i] > 0)) valid[i] = 0;
   const [lo, hi] = computePercentiles(lum, [0.1, 99.9], valid);
   return lo > 0 && hi > lo ? Math.log2(hi / lo) : 0;
@@ -274,13 +271,15 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
     progress("response", 0);
     responseTable = recoverBracketResponse(frames, registration.frames.map((r) => r.masterToFrame), referenceMoon);
     prepared.forEach((p, i) => {
-      p.linear = linearizeFrame(frames[i], params.clipFraction, responseTable);
+      p.linear = linearizeFrame(frames[i], params.clipFraction, { responseTable });
     });
     lap("response");
   }
+  // One set of warp buffers serves every frame in turn.
+  const scratch: WarpTarget = { planes: frames[0].image.planes.map(() => new Float32Array(width * height)), covered: new Uint8Array(width * height) };
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
   prepared.forEach((p, i) => {
-    addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon));
+    addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon, scratch));
     progress("merge", (i + 1) / prepared.length);
   });
   const merged: MergeResult = finishMerge(acc);
@@ -292,14 +291,14 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
   const outsideMoon = createValidMask(width, height, referenceMoon);
-  const natural = renderNatural(master, { valid: outsideMoon });
   const luminance = computeLuminancePlane(master.planes);
+  const natural = renderNatural(master, { valid: outsideMoon, luminance });
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   const filtered = params.filter === "mgn"
     ? applyMgn(luminance, width, height, { lunarDisk: filterDisk })
     : applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk });
   const structure = renderStructure(filtered, width, height);
-  const dynamicRangeStops = measureDynamicRangeStops(master, merged.coverage, referenceMoon);
+  const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   progress("renditions", 1);
   lap("renditions");
 

@@ -102,6 +102,22 @@ export function applyNrgf(plane: Float32Array, width: number, height: number, op
   return { data, valid: out };
 }
 
+/**
+ * arctan by the polynomial of Abramowitz and Stegun (1964), Handbook of
+ * Mathematical Functions, 4.4.49: arctan x = x + a2 x^3 + ... + a16 x^17 for
+ * 0 <= x <= 1, |error| <= 2e-8, with arctan x = pi/2 - arctan(1/x) above 1. MGN
+ * takes six arctangents per pixel; this is several times cheaper than Math.atan.
+ */
+export function computeArctan(x: number): number {
+  const ax = x < 0 ? -x : x;
+  const t = ax > 1 ? 1 / ax : ax;
+  const t2 = t * t;
+  const p =
+    t * (1 + t2 * (-0.3333314528 + t2 * (0.1999355085 + t2 * (-0.1420889944 + t2 * (0.1065626393 + t2 * (-0.07528964 + t2 * (0.0429096138 + t2 * (-0.0161657367 + t2 * 0.0028662257))))))));
+  const r = ax > 1 ? Math.PI / 2 - p : p;
+  return x < 0 ? -r : r;
+}
+
 export interface MgnOptions {
   lunarDisk?: LunarDisk;
   valid?: Uint8Array;
@@ -162,7 +178,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
       weight[i] = 1;
     }
   }
-  const sumArctan = new Float64Array(n);
+  const sumArctan = new Float32Array(n);
   const diff = new Float32Array(n);
   for (const w of widths) {
     const norm = blurGaussianFast(weight, width, height, w);
@@ -175,7 +191,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     for (let i = 0; i < n; i++) {
       if (!valid[i]) continue;
       const sd = norm[i] > 1e-6 ? Math.sqrt(Math.max(0, localVar[i] / norm[i])) : 0;
-      sumArctan[i] += sd > 0 ? Math.atan((k * diff[i]) / sd) : 0;
+      sumArctan[i] += sd > 0 ? computeArctan((k * diff[i]) / sd) : 0;
     }
   }
   const invGamma = 1 / gamma;

@@ -31,10 +31,18 @@ function computeKeysWeights(t: number, out: Float64Array, offset: number): void 
   out[offset + 3] = ((a * s4 - 5 * a) * s4 + 8 * a) * s4 - 4 * a;
 }
 
+/** Output buffers a caller may pass to warpPlanes to reuse memory between frames. */
+export interface WarpTarget {
+  planes: Float32Array[];
+  covered: Uint8Array;
+}
+
 /**
  * Warps planes: out(u, v) = src(M(origin + step (u, v))), with M the master to
  * frame map. `covered` marks output pixels whose source point lies inside the
- * frame; outside, the output is 0. Edges clamp.
+ * frame; outside, the output is 0. Edges clamp. Bicubic rows are done in two
+ * passes (positions and weights once, then each plane in a tight loop), since
+ * the weights serve every colour plane.
  */
 export function warpPlanes(
   planes: Float32Array[],
@@ -43,85 +51,113 @@ export function warpPlanes(
   masterToFrame: AffineSimilarity,
   window: WarpWindow,
   kernel: ResampleKernel = "bicubic",
-): { planes: Float32Array[]; covered: Uint8Array } {
+  into?: WarpTarget,
+): WarpTarget {
   const { width, height } = window;
   const ox = window.originX ?? 0;
   const oy = window.originY ?? 0;
   const step = window.step ?? 1;
-  const out = planes.map(() => new Float32Array(width * height));
-  const covered = new Uint8Array(width * height);
+  const out = into?.planes ?? planes.map(() => new Float32Array(width * height));
+  const covered = into?.covered ?? new Uint8Array(width * height);
   const { a, b, tx, ty } = masterToFrame;
-  const wx = new Float64Array(4);
-  const wy = new Float64Array(4);
-  const xi = new Int32Array(4);
-  const yi = new Int32Array(4);
   const channels = planes.length;
   const maxX = srcWidth - 1;
   const maxY = srcHeight - 1;
+  // Per-row scratch: 0 outside, 1 interior (no clamping), 2 near an edge.
+  const kind = new Uint8Array(width);
+  const base = new Int32Array(width);
+  const fxs = new Int32Array(width);
+  const fys = new Int32Array(width);
+  const weights = new Float64Array(width * 8);
+  const wx = new Float64Array(4);
+  const wy = new Float64Array(4);
   for (let v = 0; v < height; v++) {
     const my = oy + v * step;
+    const row = v * width;
     for (let u = 0; u < width; u++) {
       const mx = ox + u * step;
       const sx = a * mx - b * my + tx;
       const sy = b * mx + a * my + ty;
-      if (!(sx >= -0.5 && sy >= -0.5 && sx <= maxX + 0.5 && sy <= maxY + 0.5)) continue;
-      const o = v * width + u;
-      covered[o] = 1;
+      if (!(sx >= -0.5 && sy >= -0.5 && sx <= maxX + 0.5 && sy <= maxY + 0.5)) {
+        kind[u] = 0;
+        covered[row + u] = 0;
+        continue;
+      }
+      covered[row + u] = 1;
       const fx = Math.floor(sx);
       const fy = Math.floor(sy);
-      const dx = sx - fx;
-      const dy = sy - fy;
+      fxs[u] = fx;
+      fys[u] = fy;
       if (kernel === "bilinear") {
-        const x0 = fx < 0 ? 0 : fx > maxX ? maxX : fx;
-        const x1 = fx + 1 < 0 ? 0 : fx + 1 > maxX ? maxX : fx + 1;
-        const y0 = fy < 0 ? 0 : fy > maxY ? maxY : fy;
-        const y1 = fy + 1 < 0 ? 0 : fy + 1 > maxY ? maxY : fy + 1;
-        for (let c = 0; c < channels; c++) {
-          const p = planes[c];
-          const top = p[y0 * srcWidth + x0] + dx * (p[y0 * srcWidth + x1] - p[y0 * srcWidth + x0]);
-          const bottom = p[y1 * srcWidth + x0] + dx * (p[y1 * srcWidth + x1] - p[y1 * srcWidth + x0]);
-          out[c][o] = top + dy * (bottom - top);
-        }
+        weights[u * 8] = sx - fx;
+        weights[u * 8 + 1] = sy - fy;
+        kind[u] = 2;
         continue;
       }
-      computeKeysWeights(dx, wx, 0);
-      computeKeysWeights(dy, wy, 0);
+      computeKeysWeights(sx - fx, weights, u * 8);
+      computeKeysWeights(sy - fy, weights, u * 8 + 4);
       if (fx >= 1 && fy >= 1 && fx + 2 <= maxX && fy + 2 <= maxY) {
-        // Interior: no clamping, rows addressed directly.
-        const base = (fy - 1) * srcWidth + fx - 1;
-        const w0 = wx[0], w1 = wx[1], w2 = wx[2], w3 = wx[3];
-        for (let c = 0; c < channels; c++) {
-          const p = planes[c];
-          let r = base;
-          let sum = wy[0] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+        kind[u] = 1;
+        base[u] = (fy - 1) * srcWidth + fx - 1;
+      } else kind[u] = 2;
+    }
+    for (let c = 0; c < channels; c++) {
+      const p = planes[c];
+      const o = out[c];
+      for (let u = 0; u < width; u++) {
+        const k = kind[u];
+        if (k === 1) {
+          const w = u * 8;
+          const w0 = weights[w], w1 = weights[w + 1], w2 = weights[w + 2], w3 = weights[w + 3];
+          let r = base[u];
+          let sum = weights[w + 4] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
           r += srcWidth;
-          sum += wy[1] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          sum += weights[w + 5] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
           r += srcWidth;
-          sum += wy[2] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          sum += weights[w + 6] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
           r += srcWidth;
-          sum += wy[3] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
-          out[c][o] = sum;
+          sum += weights[w + 7] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+          o[row + u] = sum;
+        } else if (k === 0) {
+          o[row + u] = 0;
+        } else if (kernel === "bilinear") {
+          o[row + u] = sampleBilinearClamped(p, srcWidth, maxX, maxY, fxs[u], fys[u], weights[u * 8], weights[u * 8 + 1]);
+        } else {
+          for (let t = 0; t < 4; t++) {
+            wx[t] = weights[u * 8 + t];
+            wy[t] = weights[u * 8 + 4 + t];
+          }
+          o[row + u] = sampleBicubicClamped(p, srcWidth, maxX, maxY, fxs[u], fys[u], wx, wy);
         }
-        continue;
-      }
-      for (let k = 0; k < 4; k++) {
-        const x = fx - 1 + k;
-        const y = fy - 1 + k;
-        xi[k] = x < 0 ? 0 : x > maxX ? maxX : x;
-        yi[k] = (y < 0 ? 0 : y > maxY ? maxY : y) * srcWidth;
-      }
-      for (let c = 0; c < channels; c++) {
-        const p = planes[c];
-        let sum = 0;
-        for (let r = 0; r < 4; r++) {
-          const row = yi[r];
-          sum += wy[r] * (wx[0] * p[row + xi[0]] + wx[1] * p[row + xi[1]] + wx[2] * p[row + xi[2]] + wx[3] * p[row + xi[3]]);
-        }
-        out[c][o] = sum;
       }
     }
   }
   return { planes: out, covered };
+}
+
+function sampleBilinearClamped(p: Float32Array, srcWidth: number, maxX: number, maxY: number, fx: number, fy: number, dx: number, dy: number): number {
+  const x0 = fx < 0 ? 0 : fx > maxX ? maxX : fx;
+  const x1 = fx + 1 < 0 ? 0 : fx + 1 > maxX ? maxX : fx + 1;
+  const y0 = fy < 0 ? 0 : fy > maxY ? maxY : fy;
+  const y1 = fy + 1 < 0 ? 0 : fy + 1 > maxY ? maxY : fy + 1;
+  const top = p[y0 * srcWidth + x0] + dx * (p[y0 * srcWidth + x1] - p[y0 * srcWidth + x0]);
+  const bottom = p[y1 * srcWidth + x0] + dx * (p[y1 * srcWidth + x1] - p[y1 * srcWidth + x0]);
+  return top + dy * (bottom - top);
+}
+
+function sampleBicubicClamped(p: Float32Array, srcWidth: number, maxX: number, maxY: number, fx: number, fy: number, wx: Float64Array, wy: Float64Array): number {
+  let sum = 0;
+  for (let r = 0; r < 4; r++) {
+    const yy = fy - 1 + r;
+    const row = (yy < 0 ? 0 : yy > maxY ? maxY : yy) * srcWidth;
+    let line = 0;
+    for (let k = 0; k < 4; k++) {
+      const xx = fx - 1 + k;
+      line += wx[k] * p[row + (xx < 0 ? 0 : xx > maxX ? maxX : xx)];
+    }
+    sum += wy[r] * line;
+  }
+  return sum;
 }
 
 /** Warps a 0/1 mask by nearest neighbour; outside the frame the result is `outside`. */

@@ -22,6 +22,8 @@ export interface NaturalOptions {
   targetMedian?: number;
   /** 1 = pixel counts for the percentiles (the lunar disk is usually left out). */
   valid?: Uint8Array;
+  /** The image's luminance when the caller already has it. */
+  luminance?: Float32Array;
 }
 
 export interface NaturalRendition {
@@ -74,7 +76,7 @@ function computeLuminanceOf(image: PlaneImage): Float32Array {
 export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): NaturalRendition {
   const curve = options.curve ?? "asinh";
   if (curve !== "asinh" && curve !== "log") throw new ImagingError("bad-parameter", `curve must be "asinh" or "log", got ${String(curve)}`);
-  const lum = computeLuminanceOf(image);
+  const lum = options.luminance ?? computeLuminanceOf(image);
   const [autoBlack, autoWhite, median] = computePercentiles(lum, [options.blackPercentile ?? 1, options.whitePercentile ?? 99.9, 50], options.valid);
   const black = options.blackPoint ?? autoBlack;
   const white = options.whitePoint ?? autoWhite;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { applyMgn, applyNrgf } from "@/lib/imaging/radial";
+import { applyMgn, applyNrgf, computeArctan } from "@/lib/imaging/radial";
 import { blurGaussian } from "@/lib/imaging/blur";
 import { ImagingError } from "@/lib/imaging/errors";
 import { createRng, sampleGaussian } from "@/lib/imaging/random";
@@ -94,5 +94,14 @@ describe("MGN (Morgan and Druckmueller 2014)", () => {
     expect(() => applyMgn(plane, W, H, { gamma: -1 })).toThrow(/gamma/);
     expect(() => applyMgn(plane, W, H, { widthsPx: [] })).toThrow(/widthsPx/);
     expect(() => applyMgn(plane, W, H, { widthsPx: [2, 0.1] })).toThrow(/widthsPx\[1\]/);
+  });
+});
+
+describe("computeArctan (Abramowitz and Stegun 4.4.49, |error| <= 2e-8)", () => {
+  it("matches Math.atan to 2e-8 over a wide range", () => {
+    let worst = 0;
+    for (let x = -50; x <= 50; x += 0.0137) worst = Math.max(worst, Math.abs(computeArctan(x) - Math.atan(x)));
+    expect(worst).toBeLessThan(2.5e-8);
+    expect(computeArctan(0)).toBe(0);
   });
 });
