@@ -13,6 +13,11 @@ export interface ActionResult {
   ok: boolean;
   message: string;
   fields?: FieldProblem[];
+  /**
+   * What was submitted, on failure: React resets a form after its action
+   * returns, so the form shows these again instead of losing the person's typing.
+   */
+  values?: Record<string, string>;
 }
 
 /**
@@ -26,6 +31,7 @@ export function serverAction<S extends z.ZodType>(
   run: (actor: Actor, input: z.infer<S>) => Promise<string>,
 ) {
   return async (_prev: ActionResult | null, form: FormData): Promise<ActionResult> => {
+    const values = Object.fromEntries([...form.entries()].filter(([k, v]) => typeof v === "string" && !k.startsWith("$")).map(([k, v]) => [k, String(v)]));
     try {
       const actor = requirePermission(await currentActor(), action);
       const input = parseInput(schema, Object.fromEntries(form.entries()));
@@ -33,9 +39,9 @@ export function serverAction<S extends z.ZodType>(
     } catch (err) {
       // redirect() and notFound() work by throwing; let Next.js handle them.
       unstable_rethrow(err);
-      if (err instanceof AppError) return { ok: false, message: err.message, fields: err.fields };
+      if (err instanceof AppError) return { ok: false, message: err.message, fields: err.fields, values };
       const { body } = toErrorBody(err);
-      return { ok: false, message: body.error.message };
+      return { ok: false, message: body.error.message, values };
     }
   };
 }

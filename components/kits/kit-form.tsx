@@ -12,6 +12,7 @@ interface Result {
   ok: boolean;
   message: string;
   fields?: { field: string; message: string }[];
+  values?: Record<string, string>;
 }
 
 export interface KitValues {
@@ -41,21 +42,24 @@ const MOUNT_OPTIONS = [
 export function KitForm({ action, initial, submitLabel }: { action: (prev: Result | null, form: FormData) => Promise<Result>; initial: KitValues; submitLabel: string }) {
   const [state, formAction] = useActionState(action, null);
   const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+  // After a refused submission, show what was typed (React resets the form).
+  const v = (name: keyof KitValues): string => state?.values?.[name] ?? String(initial[name]);
+  const checked = (name: "flipHorizontal" | "flipVertical"): boolean => (state?.values ? state.values[name] === "on" : initial[name]);
   const num = (name: keyof KitValues, label: string, hint: string, step = "any") => (
     <Field label={label} hint={hint} error={err(name)} required>
-      <Input name={name} type="number" inputMode="decimal" step={step} min="0" defaultValue={String(initial[name])} required />
+      <Input name={name} type="number" inputMode="decimal" step={step} min="0" defaultValue={v(name)} required />
     </Field>
   );
   return (
-    <form action={formAction} className="flex flex-col gap-5">
+    <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex flex-col gap-5">
       {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
       {initial.id ? <input type="hidden" name="id" value={initial.id} /> : null}
       <div className="grid gap-5 sm:grid-cols-2">
         <Field label="Kit name" hint="For you: e.g. “Long lens on the equatorial mount”." error={err("name")} required>
-          <Input name="name" defaultValue={initial.name} required maxLength={80} />
+          <Input name="name" defaultValue={v("name")} required maxLength={80} />
         </Field>
         <Field label="Camera" hint="Make and model." error={err("camera")} required>
-          <Input name="camera" defaultValue={initial.camera} required maxLength={80} />
+          <Input name="camera" defaultValue={v("camera")} required maxLength={80} />
         </Field>
         {num("sensorWidthMm", "Sensor width (mm)", "The long side of the sensor.")}
         {num("sensorHeightMm", "Sensor height (mm)", "The short side.")}
@@ -64,16 +68,16 @@ export function KitForm({ action, initial, submitLabel }: { action: (prev: Resul
         {num("teleconverter", "Teleconverter factor", "1 without one; 1.4 or 2 with.")}
         {num("fNumber", "f-number", "Of the lens alone; the teleconverter is applied for you.")}
         <Field label="Mount" error={err("mount")}>
-          <Select name="mount" defaultValue={initial.mount} options={MOUNT_OPTIONS} />
+          <Select name="mount" defaultValue={v("mount")} options={MOUNT_OPTIONS} />
         </Field>
         <fieldset className="flex flex-col gap-2">
           <legend className="mb-1 font-medium">Image flips</legend>
-          <Checkbox name="flipHorizontal" label="Mirrored left to right" defaultChecked={initial.flipHorizontal} hint="A diagonal mirror or a star diagonal does this." />
-          <Checkbox name="flipVertical" label="Upside down" defaultChecked={initial.flipVertical} />
+          <Checkbox name="flipHorizontal" label="Mirrored left to right" defaultChecked={checked("flipHorizontal")} hint="A diagonal mirror or a star diagonal does this." />
+          <Checkbox name="flipVertical" label="Upside down" defaultChecked={checked("flipVertical")} />
         </fieldset>
       </div>
       <Field label="Notes" error={err("notes")}>
-        <Textarea name="notes" defaultValue={initial.notes} rows={3} maxLength={2000} />
+        <Textarea name="notes" defaultValue={v("notes")} rows={3} maxLength={2000} />
       </Field>
       <div>
         <SubmitButton>{submitLabel}</SubmitButton>

@@ -10,6 +10,7 @@ interface Result {
   ok: boolean;
   message: string;
   fields?: { field: string; message: string }[];
+  values?: Record<string, string>;
 }
 
 const PRECISION_OPTIONS = [
@@ -28,6 +29,8 @@ export function SiteForm({ action }: { action: (prev: Result | null, form: FormD
   const [track, setTrack] = useState<{ name: string; text: string } | null>(null);
   const [readError, setReadError] = useState("");
   const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+  // After a refused submission, show what was typed (React resets the form).
+  const v = (name: string, fallback = "") => state?.values?.[name] ?? fallback;
 
   async function onFile(e: ChangeEvent<HTMLInputElement>) {
     const file = e.target.files?.[0];
@@ -42,10 +45,10 @@ export function SiteForm({ action }: { action: (prev: Result | null, form: FormD
   }
 
   return (
-    <form action={formAction} className="flex flex-col gap-5">
+    <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex flex-col gap-5">
       {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
       <Field label="Site name" hint="For example “Luxor, west bank” or “MV Sfax Star, deck 6”." error={err("name")} required>
-        <Input name="name" required maxLength={80} />
+        <Input name="name" defaultValue={v("name")} required maxLength={80} />
       </Field>
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 font-medium">Kind of site</legend>
@@ -61,13 +64,13 @@ export function SiteForm({ action }: { action: (prev: Result | null, form: FormD
       {kind === "fixed" ? (
         <div className="grid gap-5 sm:grid-cols-3">
           <Field label="Latitude (°)" hint="North positive, e.g. 25.69." error={err("latDeg")} required>
-            <Input name="latDeg" type="number" step="any" min={-90} max={90} inputMode="decimal" required />
+            <Input name="latDeg" type="number" step="any" min={-90} max={90} inputMode="decimal" defaultValue={v("latDeg")} required />
           </Field>
           <Field label="Longitude (°)" hint="East positive, e.g. 32.64." error={err("lonDeg")} required>
-            <Input name="lonDeg" type="number" step="any" min={-180} max={180} inputMode="decimal" required />
+            <Input name="lonDeg" type="number" step="any" min={-180} max={180} inputMode="decimal" defaultValue={v("lonDeg")} required />
           </Field>
           <Field label="Elevation (m)" hint="Above sea level." error={err("elevationM")}>
-            <Input name="elevationM" type="number" step="any" defaultValue="0" inputMode="decimal" />
+            <Input name="elevationM" type="number" step="any" defaultValue={v("elevationM", "0")} inputMode="decimal" />
           </Field>
         </div>
       ) : (
@@ -87,7 +90,7 @@ export function SiteForm({ action }: { action: (prev: Result | null, form: FormD
         </>
       ) : null}
       <Field label="Location on public pages" error={err("precision")}>
-        <Select name="precision" defaultValue="rounded" options={PRECISION_OPTIONS} />
+        <Select name="precision" defaultValue={v("precision", "rounded")} options={PRECISION_OPTIONS} />
       </Field>
       <div>
         <SubmitButton>Save site</SubmitButton>

@@ -10,6 +10,7 @@ interface Result {
   ok: boolean;
   message: string;
   fields?: { field: string; message: string }[];
+  values?: Record<string, string>;
 }
 
 export function SettingsForm({
@@ -23,20 +24,21 @@ export function SettingsForm({
 }) {
   const [state, formAction] = useActionState(action, null);
   const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
+  const v = (name: keyof typeof initial) => state?.values?.[name] ?? initial[name];
   return (
-    <form action={formAction} className="flex max-w-2xl flex-col gap-5">
+    <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex max-w-2xl flex-col gap-5">
       {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
       <Field label="Society name" error={err("name")} required>
-        <Input name="name" defaultValue={initial.name} required maxLength={120} />
+        <Input name="name" defaultValue={v("name")} required maxLength={120} />
       </Field>
       <Field label="Short name" hint="Used in page titles." error={err("shortName")} required>
-        <Input name="shortName" defaultValue={initial.shortName} required maxLength={40} />
+        <Input name="shortName" defaultValue={v("shortName")} required maxLength={40} />
       </Field>
       <Field label="Default licence for new plates" hint="Curators can choose another for each plate." error={err("defaultLicence")}>
-        <Select name="defaultLicence" defaultValue={initial.defaultLicence} options={licences} />
+        <Select name="defaultLicence" defaultValue={v("defaultLicence")} options={licences} />
       </Field>
       <Field label="Default credit line" hint="Printed under every plate unless a curator changes it." error={err("defaultCreditLine")} required>
-        <Input name="defaultCreditLine" defaultValue={initial.defaultCreditLine} required maxLength={200} />
+        <Input name="defaultCreditLine" defaultValue={v("defaultCreditLine")} required maxLength={200} />
       </Field>
       <div>
         <SubmitButton>Save settings</SubmitButton>

@@ -53,7 +53,7 @@ describe("field planner", () => {
     const kitName = `Refractor ${randomUUID().slice(0, 4)}`;
     await page.goto("/studio/kits/new");
     await page.getByLabel("Kit name").fill(kitName);
-    await page.getByLabel("Camera").fill("Astro camera");
+    await page.getByRole("textbox", { name: /^Camera/ }).fill("Astro camera");
     await page.getByLabel("Sensor width (mm)").fill("23.5");
     await page.getByLabel("Sensor height (mm)").fill("15.6");
     await page.getByLabel("Pixel pitch (µm)").fill("3.9");
