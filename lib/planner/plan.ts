@@ -2,7 +2,9 @@
 // eclipse. Pure: numbers in, numbers out, on lib/astro.
 import { AstroError } from "@/lib/astro/errors";
 import { buildExposureLadder, type LadderStep, type Phenomenon } from "@/lib/astro/exposure";
-import { findLocalCircumstances, type ContactEvent, type LocalCircumstances } from "@/lib/astro/local-circumstances";
+import { findLocalCircumstances, findLocalCircumstancesOnTrack, type ContactEvent, type LocalCircumstances } from "@/lib/astro/local-circumstances";
+import { interpolateTrack } from "@/lib/astro/track-interpolate";
+import type { TrackPoint } from "@/lib/astro/track-parse";
 import { computeNorthAngleInImageDeg, type MountKind } from "@/lib/astro/mount-rotation";
 import { computeFieldInSolarRadii, computeSunImageSize } from "@/lib/astro/plate-scale";
 import { computeSunMoonState } from "@/lib/astro/positions";
@@ -24,7 +26,8 @@ export interface PlanKit {
 export interface PlanInput {
   eclipseId: string;
   eclipsePeakUtcMs: number;
-  site: SiteLocation & { name: string };
+  /** For a moving site, the track: each contact is computed where the ship or aircraft is then. */
+  site: SiteLocation & { name: string; track?: readonly TrackPoint[] };
   kit: PlanKit;
   isos: number[];
 }
@@ -78,7 +81,8 @@ function event(key: TimelineKey, label: string, c: ContactEvent, c2: number | nu
 }
 
 export function computeFieldPlan(input: PlanInput): PlanResult {
-  const circumstances = findLocalCircumstances(input.site, input.eclipsePeakUtcMs);
+  const track = input.site.track;
+  const circumstances = track ? findLocalCircumstancesOnTrack(track, input.eclipsePeakUtcMs) : findLocalCircumstances(input.site, input.eclipsePeakUtcMs);
   const central = circumstances.kind === "total";
   const c2 = circumstances.secondContact?.utcMs ?? null;
   const timeline: TimelineEvent[] = [
@@ -113,7 +117,11 @@ export function computeFieldPlan(input: PlanInput): PlanResult {
   }
   timeline.push(event("C4", "Fourth contact: the eclipse ends", circumstances.fourthContact, c2, "Filter on until you put the camera away."));
 
-  const state = computeSunMoonState(input.site, circumstances.maximum.utcMs);
+  // Where the observer is at maximum (a moving site rests at its track's ends outside it).
+  const at = track
+    ? interpolateTrack(track, Math.min(Math.max(circumstances.maximum.utcMs, track[0].timeMs), track[track.length - 1].timeMs))
+    : input.site;
+  const state = computeSunMoonState(at, circumstances.maximum.utcMs);
   const pDeg = state.pDeg;
   const ladder = buildExposureLadder({ fNumber: input.kit.fNumber * (input.kit.teleconverter ?? 1), isos: input.isos, phenomena: PLAN_PHENOMENA });
 
@@ -121,7 +129,7 @@ export function computeFieldPlan(input: PlanInput): PlanResult {
   if (input.kit.mount) {
     northInImageDeg = computeNorthAngleInImageDeg(
       { mount: input.kit.mount, flipHorizontal: input.kit.flipHorizontal, flipVertical: input.kit.flipVertical },
-      input.site,
+      at,
       circumstances.maximum.utcMs,
     );
   }

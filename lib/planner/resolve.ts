@@ -2,9 +2,7 @@
 // eclipse, where, with what. Saved sites and kits are the actor's own only.
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { AstroError } from "@/lib/astro/errors";
 import { MOUNTS } from "@/db/schema";
-import { interpolateTrack } from "@/lib/astro/track-interpolate";
 import type { Actor } from "@/lib/auth/actor";
 import { findEclipse, findNextCentralEclipse, type EclipseDto } from "@/lib/eclipses/eclipses";
 import { AppError } from "@/lib/errors";
@@ -75,17 +73,8 @@ export async function resolvePlan(db: DbOrTx, actor: Actor | null, q: PlannerQue
   if (q.site) {
     const row = await findOwnSite(db, actor, q.site);
     if (row.kind === "moving" && row.track) {
-      let pos;
-      try {
-        // Where the ship or aircraft is at greatest eclipse (a first pass; contacts move it by little).
-        pos = interpolateTrack(row.track, peakUtcMs);
-      } catch (err) {
-        if (err instanceof AstroError) {
-          throw new AppError("invalid_input", `${row.name}: the track does not cover the eclipse (${err.message}).`, [{ field: "site", message: err.message }]);
-        }
-        throw err;
-      }
-      site = { ...pos, name: row.name };
+      // The planner follows the ship or aircraft along its track (contacts where it is then).
+      site = { latDeg: row.latDeg, lonDeg: row.lonDeg, elevationM: row.elevationM, name: row.name, track: row.track };
     } else {
       site = { latDeg: row.latDeg, lonDeg: row.lonDeg, elevationM: row.elevationM, name: row.name };
     }

@@ -85,3 +85,20 @@ describe("planner query", () => {
     expect(name).toBe("eclipse-2027-08-02-ca-diz-playa-la-victoria.ics");
   });
 });
+
+describe("field plan on a moving site", () => {
+  it("follows a ship's track: contacts differ from those of its starting point", () => {
+    // A ship steaming 30 km east-north-east during the eclipse in the Gulf of Gabes.
+    const track = [
+      { timeMs: Date.UTC(2027, 7, 2, 7, 30), latDeg: 34.5, lonDeg: 11.2 },
+      { timeMs: Date.UTC(2027, 7, 2, 10, 30), latDeg: 34.7, lonDeg: 11.5 },
+    ];
+    const common = { eclipseId: "2027-08-02", eclipsePeakUtcMs: PEAK, kit: { name: "lens", fNumber: 8 }, isos: [100] };
+    const moving = computeFieldPlan({ ...common, site: { latDeg: 34.5, lonDeg: 11.2, elevationM: 0, name: "ship", track } });
+    const still = computeFieldPlan({ ...common, site: { latDeg: 34.5, lonDeg: 11.2, elevationM: 0, name: "start" } });
+    expect(moving.circumstances.kind).toBe("total");
+    expect(moving.timeline[1].utcMs).not.toBe(still.timeline[1].utcMs);
+    // First contact happens where the ship was at 08:3x, still near its start: within a few seconds.
+    expect(Math.abs(moving.timeline[0].utcMs - still.timeline[0].utcMs)).toBeLessThan(60_000);
+  });
+});
