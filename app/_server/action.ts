@@ -4,21 +4,12 @@ import type { z } from "zod";
 import type { Actor } from "@/lib/auth/actor";
 import { requirePermission } from "@/lib/auth/actor";
 import type { Action } from "@/lib/auth/permissions";
-import { AppError, toErrorBody, type FieldProblem } from "@/lib/errors";
+import { AppError, toErrorBody } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { currentActor } from "./actor";
+import type { ActionResult } from "@/components/forms/action-result";
 
-/** What every server action answers; forms show message and field errors. */
-export interface ActionResult {
-  ok: boolean;
-  message: string;
-  fields?: FieldProblem[];
-  /**
-   * What was submitted, on failure: React resets a form after its action
-   * returns, so the form shows these again instead of losing the person's typing.
-   */
-  values?: Record<string, string>;
-}
+export type { ActionResult } from "@/components/forms/action-result";
 
 /**
  * The one wrapper for server actions: session and permission checked on the

@@ -2,11 +2,8 @@
 import { useActionState } from "react";
 import { Button } from "@/components/ui/button";
 import { Input } from "@/components/ui/input";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-}
 
 /** One eclipse's name and featured flag, saved on its own. */
 export function EclipseEditRow({
@@ -16,7 +13,7 @@ export function EclipseEditRow({
   name,
   featured,
 }: {
-  action: (prev: Result | null, form: FormData) => Promise<Result>;
+  action: FormAction;
   id: string;
   kind: string;
   name: string | null;

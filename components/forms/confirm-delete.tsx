@@ -3,11 +3,8 @@ import { useActionState, useState } from "react";
 import { FormMessage } from "@/components/auth/form-message";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-}
 
 /** Delete with a confirmation dialog; the server checks ownership again. */
 export function ConfirmDelete({
@@ -22,7 +19,7 @@ export function ConfirmDelete({
   /** "kit", "site": used in the button label. */
   thing: string;
   consequence: string;
-  action: (prev: Result | null, form: FormData) => Promise<Result>;
+  action: FormAction;
 }) {
   const [open, setOpen] = useState(false);
   const [state, formAction, pending] = useActionState(action, null);

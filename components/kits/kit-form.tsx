@@ -7,13 +7,8 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { Textarea } from "@/components/ui/textarea";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-  fields?: { field: string; message: string }[];
-  values?: Record<string, string>;
-}
 
 export interface KitValues {
   id?: string;
@@ -39,7 +34,7 @@ const MOUNT_OPTIONS = [
   { value: "stabilised", label: "Stabilised platform (ship or aircraft)" },
 ];
 
-export function KitForm({ action, initial, submitLabel }: { action: (prev: Result | null, form: FormData) => Promise<Result>; initial: KitValues; submitLabel: string }) {
+export function KitForm({ action, initial, submitLabel }: { action: FormAction; initial: KitValues; submitLabel: string }) {
   const [state, formAction] = useActionState(action, null);
   const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
   // After a refused submission, show what was typed (React resets the form).

@@ -2,11 +2,8 @@
 import { useActionState, useEffect } from "react";
 import { Button } from "@/components/ui/button";
 import { useToast } from "@/components/ui/use-toast";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-}
 
 /**
  * One role of one person as a toggle button (aria-pressed), submitting a
@@ -20,7 +17,7 @@ export function RoleSwitch({
   held,
   personName,
 }: {
-  action: (prev: Result | null, form: FormData) => Promise<Result>;
+  action: FormAction;
   userId: string;
   role: string;
   label: string;

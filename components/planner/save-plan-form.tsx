@@ -4,13 +4,10 @@ import { FormMessage } from "@/components/auth/form-message";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-}
 
-export function SavePlanForm({ action, hidden, defaultName }: { action: (prev: Result | null, form: FormData) => Promise<Result>; hidden: Record<string, string>; defaultName: string }) {
+export function SavePlanForm({ action, hidden, defaultName }: { action: FormAction; hidden: Record<string, string>; defaultName: string }) {
   const [state, formAction] = useActionState(action, null);
   return (
     <form action={formAction} className="flex flex-wrap items-end gap-3">

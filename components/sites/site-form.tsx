@@ -5,13 +5,8 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-  fields?: { field: string; message: string }[];
-  values?: Record<string, string>;
-}
 
 const PRECISION_OPTIONS = [
   { value: "exact", label: "Exact: public pages may show the position as entered" },
@@ -23,7 +18,7 @@ const PRECISION_OPTIONS = [
  * A fixed site takes coordinates; a moving one a GPX or CSV track, read in the
  * browser and sent as text (the server parses and checks every point).
  */
-export function SiteForm({ action }: { action: (prev: Result | null, form: FormData) => Promise<Result> }) {
+export function SiteForm({ action }: { action: FormAction }) {
   const [state, formAction] = useActionState(action, null);
   const [kind, setKind] = useState<"fixed" | "moving">("fixed");
   const [track, setTrack] = useState<{ name: string; text: string } | null>(null);

@@ -5,20 +5,15 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
+import type { FormAction } from "@/components/forms/action-result";
 
-interface Result {
-  ok: boolean;
-  message: string;
-  fields?: { field: string; message: string }[];
-  values?: Record<string, string>;
-}
 
 export function SettingsForm({
   action,
   initial,
   licences,
 }: {
-  action: (prev: Result | null, form: FormData) => Promise<Result>;
+  action: FormAction;
   initial: { name: string; shortName: string; defaultLicence: string; defaultCreditLine: string };
   licences: { value: string; label: string }[];
 }) {

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
+import { LinkCards } from "@/components/link-cards";
 import { PageTitle } from "@/components/page-title";
 
 export const metadata: Metadata = { title: "Admin" };
@@ -16,16 +16,7 @@ export default async function AdminPage() {
   return (
     <>
       <PageTitle title="Admin" />
-      <ul className="grid gap-4 sm:grid-cols-3">
-        {AREAS.map((a) => (
-          <li key={a.href}>
-            <Link href={a.href} className="block rounded-card border border-line bg-surface-raised p-5 no-underline hover:bg-surface-hover">
-              <span className="block text-lg font-semibold text-ink">{a.title}</span>
-              <span className="mt-1 block text-ink-muted">{a.text}</span>
-            </Link>
-          </li>
-        ))}
-      </ul>
+      <LinkCards cards={AREAS} />
     </>
   );
 }

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
+import { LinkCards } from "@/components/link-cards";
 import { PageTitle } from "@/components/page-title";
 import { EmptyState } from "@/components/ui/empty-state";
 import { getDb } from "@/db/client";
@@ -20,16 +20,9 @@ export default async function StudioPage() {
   return (
     <>
       <PageTitle title="Studio" lead={`${actor.name}: your kits, sites and bracket sets.`} />
-      <ul className="mb-10 grid gap-4 sm:grid-cols-3">
-        {cards.map((c) => (
-          <li key={c.href}>
-            <Link href={c.href} className="block rounded-card border border-line bg-surface-raised p-5 no-underline hover:bg-surface-hover">
-              <span className="block text-lg font-semibold text-ink">{c.title}</span>
-              <span className="mt-1 block text-ink-muted">{c.text}</span>
-            </Link>
-          </li>
-        ))}
-      </ul>
+      <div className="mb-10">
+        <LinkCards cards={cards} />
+      </div>
       <EmptyState
         title="No bracket sets yet"
         message="When bracket uploads open, the sets you bring back from totality will be listed here with their reductions."
