@@ -103,6 +103,34 @@ export function applyNrgf(plane: Float32Array, width: number, height: number, op
 }
 
 /**
+ * The valid-pixel weight blurred by a Gaussian of width w, computed only in the
+ * masked pixels' bounding box grown by 5 w (beyond it the blur of an all-ones
+ * field is 1 to within exp(-12.5)); 1 elsewhere. For a lunar disk in a large
+ * frame this saves most of one of MGN's three blurs per width.
+ */
+function blurMaskWeight(
+  weight: Float32Array,
+  width: number,
+  height: number,
+  w: number,
+  box: { x0: number; y0: number; x1: number; y1: number },
+  out: Float32Array,
+  scratch: Float32Array,
+): void {
+  out.fill(1);
+  if (box.x1 < 0) return;
+  const margin = Math.ceil(5 * w);
+  const x0 = Math.max(0, box.x0 - margin), x1 = Math.min(width - 1, box.x1 + margin);
+  const y0 = Math.max(0, box.y0 - margin), y1 = Math.min(height - 1, box.y1 + margin);
+  const sw = x1 - x0 + 1, sh = y1 - y0 + 1;
+  if (sw < 2 || sh < 2) return;
+  const sub = new Float32Array(sw * sh);
+  for (let y = 0; y < sh; y++) sub.set(weight.subarray((y + y0) * width + x0, (y + y0) * width + x1 + 1), y * sw);
+  const blurred = blurGaussianFast(sub, sw, sh, w, sub, scratch);
+  for (let y = 0; y < sh; y++) out.set(blurred.subarray(y * sw, (y + 1) * sw), (y + y0) * width + x0);
+}
+
+/**
  * arctan by the polynomial of Abramowitz and Stegun (1964), Handbook of
  * Mathematical Functions, 4.4.49: arctan x = x + a2 x^3 + ... + a16 x^17 for
  * 0 <= x <= 1, |error| <= 2e-8, with arctan x = pi/2 - arctan(1/x) above 1. MGN
@@ -180,14 +208,29 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   }
   const sumArctan = new Float32Array(n);
   const diff = new Float32Array(n);
+  // Buffers reused for every width (see blurGaussian on why).
+  const norm = new Float32Array(n);
+  const local = new Float32Array(n);
+  const scratch = new Float32Array(n);
+  // Bounding box of the masked pixels: the blurred mask differs from 1 only within a few widths of it.
+  let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      if (valid[y * width + x]) continue;
+      if (x < bx0) bx0 = x;
+      if (x > bx1) bx1 = x;
+      if (y < by0) by0 = y;
+      if (y > by1) by1 = y;
+    }
+  }
   for (const w of widths) {
-    const norm = blurGaussianFast(weight, width, height, w);
-    const local = blurGaussianFast(masked, width, height, w);
+    blurMaskWeight(weight, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch);
+    blurGaussianFast(masked, width, height, w, local, scratch);
     for (let i = 0; i < n; i++) {
       diff[i] = valid[i] && norm[i] > 1e-6 ? masked[i] - local[i] / norm[i] : 0;
       local[i] = diff[i] * diff[i];
     }
-    const localVar = blurGaussianFast(local, width, height, w);
+    const localVar = blurGaussianFast(local, width, height, w, local, scratch);
     for (let i = 0; i < n; i++) {
       if (!valid[i]) continue;
       const sd = norm[i] > 1e-6 ? Math.sqrt(Math.max(0, localVar[i] / norm[i])) : 0;
