@@ -1,10 +1,11 @@
 // Reduces a bracket from files on disk into a new output folder.
-// Run: npm run reduce -- --out DIR [--register moon|corona] [--filter mgn|nrgf] [--exposures FILE.csv] FILE...
+// Run: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK]
+//   [--clock-offset SECONDS] [--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv] FILE...
 // Progress goes to stderr; exit 2 for bad input (the message names the file,
 // line or option), 1 for anything else.
 import { basename } from "node:path";
 import { closeExifWriter } from "@/lib/media";
-import { discardActiveStagingSync, isBadInputError, parseReduceArgs, readExposuresCsv, runReductionOnFiles } from "@/lib/reduction-runner";
+import { discardActiveStagingSync, isBadInputError, parseReduceArgs, parseSiteText, readExposuresCsv, readSiteTrackFile, runReductionOnFiles } from "@/lib/reduction-runner";
 
 /** One stderr line per stage, and one each time a stage passes another 10 %. */
 function createProgressPrinter(): (stage: string, fraction: number) => void {
@@ -22,8 +23,8 @@ function createProgressPrinter(): (stage: string, fraction: number) => void {
 async function main(): Promise<void> {
   const args = parseReduceArgs(process.argv.slice(2));
   const exposureOverrides = args.exposuresCsv ? await readExposuresCsv(args.exposuresCsv) : undefined;
+  const site = args.siteText !== undefined ? parseSiteText(args.siteText) : args.siteFile !== undefined ? await readSiteTrackFile(args.siteFile) : undefined;
   const params = {
-    ...(args.registration ? { registration: args.registration } : {}),
     ...(args.filter ? { filter: args.filter } : {}),
     ...(args.recoverResponse ? { recoverResponse: true } : {}),
   };
@@ -33,10 +34,16 @@ async function main(): Promise<void> {
     params,
     exposureOverrides,
     exposureOverrideSource: args.exposuresCsv ? basename(args.exposuresCsv) : undefined,
+    registration: args.registration,
+    sky: { site, clockOffsetS: args.clockOffsetS, northAngleDeg: args.northAngleDeg },
     onProgress: createProgressPrinter(),
   });
-  const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number };
+  const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number; sky: { plateScaleArcsecPerPx?: number; northAngleDeg?: number; pAngleDeg?: number } };
   console.log(`${report.frames.length} frames reduced into ${outDir} (reference ${overall.referenceFrame}, ${overall.dynamicRangeStops} stops, ${report.timingsMs.total} ms)`);
+  const { sky } = overall;
+  if (sky.plateScaleArcsecPerPx !== undefined) {
+    console.log(`plate scale ${sky.plateScaleArcsecPerPx} arcsec/px, P ${sky.pAngleDeg} deg, celestial north ${sky.northAngleDeg} deg counter-clockwise from image up`);
+  }
 }
 
 for (const signal of ["SIGINT", "SIGTERM"] as const) {

@@ -1,20 +1,37 @@
 // Command-line options of scripts/reduce.ts, checked with messages that name the option.
-import type { RegistrationMode, StructureFilter } from "@/lib/imaging/types";
+import type { StructureFilter } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
+import type { RunnerRegistrationMode } from "./sky-run";
 
 export const REDUCE_USAGE =
-  "usage: npm run reduce -- --out DIR [--register moon|corona] [--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] FILE...";
+  "usage: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK.gpx|csv] [--clock-offset SECONDS] " +
+  "[--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] FILE...";
 
 export interface ReduceArgs {
   outDir: string;
   files: string[];
-  registration?: RegistrationMode;
+  registration?: RunnerRegistrationMode;
   filter?: StructureFilter;
   exposuresCsv?: string;
   recoverResponse: boolean;
+  /** "LAT,LON,ELEV" as typed; parsed by sky-site.ts parseSiteText. */
+  siteText?: string;
+  siteFile?: string;
+  /** True time = camera time - offset. */
+  clockOffsetS?: number;
+  /** Position angle of celestial north in the image, counter-clockwise from image up, after flips. */
+  northAngleDeg?: number;
 }
 
-const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures"]);
+const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site", "site-file", "clock-offset", "north-angle"]);
+
+/** A decimal number option ("-12.5", "3e1"); the message names the option and the unit. */
+function parseNumberOption(values: Map<string, string>, key: string, unit: string): number | undefined {
+  const text = values.get(key);
+  if (text === undefined) return undefined;
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(text.trim())) throw badOption(`--${key}: expected a number of ${unit}, got "${text}"`);
+  return Number(text);
+}
 const FLAG_OPTIONS = new Set(["recover-response"]);
 
 function badOption(message: string): ReductionInputError {
@@ -40,11 +57,16 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
   const outDir = values.get("out");
   if (!outDir) throw badOption("--out: a folder to write the reduction into is required");
   const registration = values.get("register");
-  if (registration !== undefined && registration !== "moon" && registration !== "corona") {
-    throw badOption(`--register: expected moon or corona, got "${registration}"`);
+  if (registration !== undefined && registration !== "sun" && registration !== "moon" && registration !== "corona") {
+    throw badOption(`--register: expected sun, moon or corona, got "${registration}"`);
   }
+  if (values.has("site") && values.has("site-file")) throw badOption("--site and --site-file: give one of them (a fixed site or a track)");
   const filter = values.get("filter");
   if (filter !== undefined && filter !== "mgn" && filter !== "nrgf") throw badOption(`--filter: expected mgn or nrgf, got "${filter}"`);
   if (files.length === 0) throw badOption("no frames given: list the bracket's files after the options");
-  return { outDir, files, registration, filter, exposuresCsv: values.get("exposures"), recoverResponse: flags.has("recover-response") };
+  return {
+    outDir, files, registration, filter, exposuresCsv: values.get("exposures"), recoverResponse: flags.has("recover-response"),
+    siteText: values.get("site"), siteFile: values.get("site-file"),
+    clockOffsetS: parseNumberOption(values, "clock-offset", "seconds"), northAngleDeg: parseNumberOption(values, "north-angle", "degrees"),
+  };
 }

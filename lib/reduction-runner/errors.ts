@@ -11,7 +11,11 @@ export type ReductionInputCode =
   | "bad-exposure"
   | "bad-exposures-csv"
   | "bad-option"
-  | "unreadable-file";
+  | "unreadable-file"
+  | "bad-site"
+  | "missing-capture-time"
+  | "no-eclipse"
+  | "orientation-unknown";
 
 export class ReductionInputError extends Error {
   readonly code: ReductionInputCode;

@@ -5,3 +5,5 @@ export { parseExposuresCsv, readExposuresCsv } from "./exposures-csv";
 export { parseReduceArgs, REDUCE_USAGE, type ReduceArgs } from "./cli-args";
 export type { ReductionReport } from "./report";
 export { discardActiveStagingSync } from "./output-dir";
+export { parseSiteText, parseSiteTrackText, readSiteTrackFile, type SiteSpec } from "./sky-site";
+export type { RunnerRegistrationMode, SkyOptions } from "./sky-run";

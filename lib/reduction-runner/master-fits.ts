@@ -5,10 +5,11 @@
 // (DATE-BEG, DATE-AVG, DATE-END, TIMESYS). XPOSURE and NCOMBINE are the usual
 // solar and archive conventions for accumulated exposure and frame count; the
 // keys of the Moon's disk and the image centre are ours (no convention exists).
-// A helioprojective WCS needs the sky geometry (plate scale, P angle, Sun centre
-// from the ephemeris), which this reduction does not have yet: a HISTORY card
-// says so, and no WCS keys are written rather than guessed ones.
+// The helioprojective WCS (helio-wcs.ts) is written when the reduction was given
+// the observer's site and the frames' times; without them a HISTORY card says so,
+// and no WCS keys are written rather than guessed ones.
 import type { FitsCard } from "@/lib/media";
+import { buildHelioWcsCards, type HelioGeometry } from "./helio-wcs";
 import type { ReductionResult } from "@/lib/imaging/pipeline";
 import type { ReductionParams } from "@/lib/imaging/types";
 
@@ -25,6 +26,10 @@ export interface MasterHeaderInput {
   encoding: "linear" | "srgb8";
   instrument?: string;
   createdMs: number;
+  /** The runner's registration: "sun" runs the pipeline's "moon" mode on ephemeris Sun anchors. */
+  registrationMode?: "sun" | "moon" | "corona";
+  /** Sky geometry for the WCS, when the site and times were given. */
+  helio?: HelioGeometry;
 }
 
 /** ISO 8601 with milliseconds and no zone letter, the FITS datetime form (section 9.1.1). */
@@ -95,8 +100,9 @@ export function buildMasterCards(input: MasterHeaderInput): { cards: FitsCard[];
   cards.push(
     { key: "DYNRANGE", value: round(overall.dynamicRangeStops, 3), real: true, comment: "[stop] 99.9th over 0.1th percentile, well exposed" },
     { key: "REFFRAME", value: overall.referenceFrame.slice(0, 68), comment: "frame the master is registered to" },
-    { key: "REGMODE", value: overall.parameters.registration, comment: "registered on the Moon's limb or the corona" },
+    { key: "REGMODE", value: input.registrationMode ?? overall.parameters.registration, comment: "registered on the Sun, the Moon's limb or the corona" },
   );
+  if (input.helio && span) cards.push(...buildHelioWcsCards(input.helio, span.begMs));
   if (input.instrument) cards.push({ key: "INSTRUME", value: input.instrument.replace(/[^\x20-\x7e]/g, "?").slice(0, 68) });
   cards.push(
     { key: "CREATOR", value: overall.pipelineVersion, comment: "software that made this file" },
@@ -108,7 +114,23 @@ export function buildMasterCards(input: MasterHeaderInput): { cards: FitsCard[];
     `Merged by ${overall.pipelineVersion}.`,
     ...describeParameters(overall.parameters).map((p) => `Parameter ${p}`),
     ...frames.map((f, i) => `Frame ${i + 1}: ${f.name}, exposure ${f.exposureS} s from ${f.exposureSource}${f.captureTimeMs === undefined ? "" : `, start ${formatFitsDateTime(f.captureTimeMs)} UTC`}`),
-    "No WCS: sky geometry (plate scale, P angle, Sun centre from the ephemeris) is not yet applied; coordinates above are pixels only.",
+    ...describeSkyHistory(input),
   ];
   return { cards, history };
+}
+
+function describeSkyHistory(input: MasterHeaderInput): string[] {
+  const lines: string[] = [];
+  if (input.registrationMode === "sun") {
+    lines.push("Registered on the Sun: each frame's lunar limb moved by the ephemeris Moon-minus-Sun offset at its mid-exposure (topocentric, lib/astro).");
+  }
+  if (!input.helio) {
+    lines.push("No WCS: no observer site and capture times were given, so plate scale, P angle and the Sun's centre are unknown; coordinates above are pixels only.");
+    return lines;
+  }
+  lines.push(
+    "WCS: FITS rows are stored top row first (row 1 is the top of the PNG renditions); PC carries that flip, so HPLT grows toward solar north.",
+    `Plate scale from the Moon's semi-diameter over the limb radius; north angle ${input.helio.northAngleDeg.toFixed(3)} deg; the Moon silhouette is the reference frame's.`,
+  );
+  return lines;
 }

@@ -4,6 +4,7 @@
 // the FITS header writes them 1-based.
 import type { ReductionResult } from "@/lib/imaging/pipeline";
 import type { FrameProvenance } from "./decode-frames";
+import { buildSkyReport, type SkyReportInput } from "./report-sky";
 import type { TilePyramidResult } from "./tiles";
 
 export const REPORT_VERSION = 1;
@@ -32,8 +33,11 @@ export function buildReport(input: {
   timingsMs: Record<string, number>;
   tiles: Record<string, TilePyramidResult>;
   createdMs: number;
+  sky?: SkyReportInput;
 }): ReductionReport {
   const { result, provenance } = input;
+  const sky = buildSkyReport(input.sky ?? { registrationMode: result.overall.parameters.registration, clockOffsetS: 0 });
+  const hasWcs = input.sky?.helio !== undefined;
   const { overall } = result;
   const byName = new Map(provenance.map((p) => [p.name, p]));
   const pixelCount = result.master.width * result.master.height;
@@ -69,6 +73,7 @@ export function buildReport(input: {
           wellExposedFraction: roundTo(f.weights.wellExposedFraction),
           weightShare: roundTo(f.weights.weightShare),
         },
+        sky: sky.frames.get(f.name) ?? null,
       };
     }),
     overall: {
@@ -81,6 +86,7 @@ export function buildReport(input: {
       dynamicRangeStops: roundTo(overall.dynamicRangeStops, 3),
       poorlyExposedFraction: roundTo(result.poorlyExposedCount / pixelCount, 6),
       natural: overall.natural,
+      sky: sky.overall,
     },
     timingsMs: Object.fromEntries(Object.entries(input.timingsMs).map(([k, v]) => [k, Math.round(v)])),
     outputs: {
@@ -95,7 +101,9 @@ export function buildReport(input: {
       ),
     },
     notes: [
-      "No helioprojective WCS yet: sky geometry (plate scale, P angle, Sun centre from the ephemeris) is not applied; positions are master pixels.",
+      hasWcs
+        ? "master.fits carries a helioprojective WCS (HPLN-TAN, HPLT-TAN); its rows are stored top row first, as in the PNGs, and PC accounts for it."
+        : "No helioprojective WCS: no observer site and capture times were given; positions are master pixels.",
       "Tile pyramids are halved in linear light; sharp only encodes the tiles.",
     ],
   };

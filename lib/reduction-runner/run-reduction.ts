@@ -12,6 +12,7 @@ import { checkOverridesMatchFiles } from "./exposures-csv";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
 import { buildReport, type ReductionReport } from "./report";
 import { pickRendition, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles } from "./write-outputs";
+import { applyClockOffsetToBracket, checkSkyOptions, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "./sky-run";
 import type { TilePyramidResult } from "./tiles";
 
 export type RunProgressFn = (stage: string, fraction: number) => void;
@@ -26,6 +27,14 @@ export interface RunReductionOptions {
   exposureOverrideSource?: string;
   /** URL the tiles folder will be served from; IIIF ids are built on it. */
   iiifBaseUrl?: string;
+  /**
+   * "sun" aligns frames on the Sun's centre by the ephemeris (needs sky.site and
+   * capture times); "moon" on the lunar limb; "corona" on the corona. Wins over
+   * params.registration.
+   */
+  registration?: RunnerRegistrationMode;
+  /** Observer site, camera clock offset and image orientation; with a site the master gets a helioprojective WCS. */
+  sky?: SkyOptions;
   onProgress?: RunProgressFn;
 }
 
@@ -37,8 +46,10 @@ export interface RunReductionResult {
 export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
   const started = performance.now();
   const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
+  const registrationMode: RunnerRegistrationMode = options.registration ?? params.registration;
   const overrides = options.exposureOverrides ?? new Map<string, number>();
   checkFileList(options.files);
+  checkSkyOptions(registrationMode, options.sky);
   checkOverridesMatchFiles(overrides, options.files, options.exposureOverrideSource);
   const progress: RunProgressFn = (stage, fraction) => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
   const timingsMs: Record<string, number> = {};
@@ -53,9 +64,15 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   try {
     progress("decode", 0);
     const { frames, provenance } = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f));
+    applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
     lap("decode");
 
-    const result = reduceBracket(frames, params, progress);
+    progress("sky", 0);
+    const sky = resolveSkyGeometry(frames, params, registrationMode, options.sky);
+    if (sky.sun) lap("sky-geometry");
+
+    const result = reduceBracket(frames, sky.pipelineParams, progress);
+    const helio = sky.completeGeometry(result);
     // The pipeline's own stage times, then the total it took (which includes validation).
     for (const [stage, ms] of Object.entries(result.overall.timingsMs)) timingsMs[stage] = ms;
     lap("reduce");
@@ -70,6 +87,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       encoding: provenance[0].bitDepth === 8 ? "srgb8" : "linear",
       instrument: provenance[0].instrument,
       createdMs,
+      registrationMode,
+      helio,
     });
     lap("write-master");
 
@@ -87,7 +106,9 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     lap("tiles");
 
     timingsMs.total = performance.now() - started;
-    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs });
+    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs,
+      sky: { registrationMode, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun, helio },
+    });
     await writeFile(join(dir, "report.json"), `${JSON.stringify(report, null, 2)}\n`);
     await commitStagedOutput(output);
     progress("done", 1);
