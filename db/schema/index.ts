@@ -3,3 +3,4 @@ export * from "./jobs";
 export * from "./society";
 export * from "./mail";
 export * from "./sky";
+export * from "./brackets";
