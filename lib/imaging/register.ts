@@ -182,27 +182,40 @@ function highPass(f: Features, region: RegionGrid): Float64Array {
   return out;
 }
 
+/** Share of the region's side over which the window tapers to zero at each edge. */
+const WINDOW_TAPER = 0.125;
+
+/** Tukey (tapered cosine) weight of sample k of n: flat in the middle, a raised cosine over the outer taper share at each end. */
+function computeTukeyWeight(k: number, n: number): number {
+  const edge = Math.max(1, WINDOW_TAPER * n);
+  const d = Math.min(k + 0.5, n - k - 0.5);
+  return d >= edge ? 1 : Math.sin((Math.PI * d) / (2 * edge)) ** 2;
+}
+
 /**
- * Features multiplied by a soft common mask and a Hann window, cut to the
- * largest power-of-two square centred in the region, for phase correlation.
+ * Features multiplied by a soft common mask and a Tukey window over the whole
+ * region, zero-padded to a power-of-two square, for phase correlation. The
+ * window covers the region rather than a square cut from its middle: a long
+ * exposure is clipped over the inner corona and keeps its well-exposed light
+ * only far out, where a window cut to the middle had left nothing of it
+ * (the peak was then noise). The soft mask already tapers every inner edge.
  */
 function windowPair(fa: Float64Array, fb: Float64Array, common: Uint8Array, region: RegionGrid): { wa: Float64Array; wb: Float64Array; size: number } {
   const { width, height } = region;
-  let size = nextPowerOfTwo(Math.min(width, height));
-  if (size > Math.min(width, height)) size /= 2;
-  const u0 = Math.floor((width - size) / 2);
-  const v0 = Math.floor((height - size) / 2);
+  const size = nextPowerOfTwo(Math.max(width, height));
+  const u0 = Math.floor((size - width) / 2);
+  const v0 = Math.floor((size - height) / 2);
   const soft = blurGaussian(Float32Array.from(common), width, height, 2);
   const wa = new Float64Array(size * size);
   const wb = new Float64Array(size * size);
-  for (let v = 0; v < size; v++) {
-    const wy = Math.sin((Math.PI * (v + 0.5)) / size) ** 2;
-    for (let u = 0; u < size; u++) {
-      const i = (v + v0) * width + u + u0;
+  for (let v = 0; v < height; v++) {
+    const wy = computeTukeyWeight(v, height);
+    for (let u = 0; u < width; u++) {
+      const i = v * width + u;
       if (!common[i]) continue;
-      const w = soft[i] * wy * Math.sin((Math.PI * (u + 0.5)) / size) ** 2;
-      wa[v * size + u] = fa[i] * w;
-      wb[v * size + u] = fb[i] * w;
+      const w = soft[i] * wy * computeTukeyWeight(u, width);
+      wa[(v + v0) * size + u + u0] = fa[i] * w;
+      wb[(v + v0) * size + u + u0] = fb[i] * w;
     }
   }
   return { wa, wb, size };
