@@ -4,6 +4,7 @@
 // upload parts straight from the browser and read each part's ETag.
 import path from "node:path";
 import S3rver from "s3rver";
+import { multipartExtras } from "./multipart-extras";
 
 const endpoint = new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:4569");
 const port = Number(endpoint.port || 4569);
@@ -44,6 +45,10 @@ const server = new S3rver({
   vhostBuckets: false,
   configureBuckets: [...bucketNames].map((name) => ({ name, configs: [cors] })),
 });
+
+// ListParts and AbortMultipartUpload, which s3rver lacks, go ahead of its router
+// (the last middleware), so that they answer before it refuses the method.
+server.middleware.splice(server.middleware.length - 1, 0, multipartExtras());
 
 await server.run();
 console.log(`s3 fake listening on http://127.0.0.1:${port}, buckets: ${[...bucketNames].join(", ")}`);

@@ -1,0 +1,18 @@
+// The storage adapter's public surface.
+export { bucketName, createS3Client, getS3, type BucketRole } from "./s3";
+export { buildDerivedPrefix, buildOriginalKey, buildThumbnailKey, toSafeFileName } from "./keys";
+export * from "./limits";
+export {
+  abortMultipartUpload,
+  completeMultipartUpload,
+  createMultipartUpload,
+  isNoSuchUpload,
+  listUploadedParts,
+  signPartUrls,
+  type MultipartRef,
+  type ObjectRef,
+  type SignedPart,
+  type UploadedPart,
+} from "./multipart";
+export { downloadObjectToFile, findObjectSize, isMissingObject, putObjectBytes, readObjectRange } from "./objects";
+export { sweepAbandonedUploads, type SweepResult } from "./sweep-uploads";

@@ -1,0 +1,55 @@
+// Plain object reads and writes used after an upload: size, the first bytes for
+// sniffing, a streamed download to a temporary file, and derived files.
+import { createWriteStream } from "node:fs";
+import { Transform, type Readable } from "node:stream";
+import { pipeline } from "node:stream/promises";
+import { GetObjectCommand, HeadObjectCommand, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
+import type { ObjectRef } from "./multipart";
+import { getS3 } from "./s3";
+
+export function isMissingObject(err: unknown): boolean {
+  const name = (err as { name?: string })?.name;
+  return name === "NoSuchKey" || name === "NotFound" || (err as { $metadata?: { httpStatusCode?: number } })?.$metadata?.httpStatusCode === 404;
+}
+
+/** Size in bytes, or null when there is no such object. */
+export async function findObjectSize(ref: ObjectRef, s3: S3Client = getS3()): Promise<number | null> {
+  try {
+    const out = await s3.send(new HeadObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+    return out.ContentLength ?? 0;
+  } catch (err) {
+    if (isMissingObject(err)) return null;
+    throw err;
+  }
+}
+
+/** Bytes [start, start + length) of an object (fewer at its end). */
+export async function readObjectRange(ref: ObjectRef, start: number, length: number, s3: S3Client = getS3()): Promise<Buffer> {
+  if (length <= 0) return Buffer.alloc(0);
+  const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key, Range: `bytes=${start}-${start + length - 1}` }));
+  if (!out.Body) return Buffer.alloc(0);
+  return Buffer.from(await out.Body.transformToByteArray());
+}
+
+/**
+ * Streams an object into `path` without holding it in memory; `onChunk` sees
+ * every chunk on the way (to hash it). Returns the bytes written.
+ */
+export async function downloadObjectToFile(ref: ObjectRef, path: string, onChunk?: (chunk: Buffer) => void, s3: S3Client = getS3()): Promise<number> {
+  const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+  if (!out.Body) throw new Error(`S3 returned no body for ${ref.key}`);
+  let bytes = 0;
+  const tap = new Transform({
+    transform(chunk: Buffer, _enc, done) {
+      bytes += chunk.length;
+      onChunk?.(chunk);
+      done(null, chunk);
+    },
+  });
+  await pipeline(out.Body as Readable, tap, createWriteStream(path));
+  return bytes;
+}
+
+export async function putObjectBytes(ref: ObjectRef, body: Buffer, contentType: string, s3: S3Client = getS3()): Promise<void> {
+  await s3.send(new PutObjectCommand({ Bucket: ref.bucket, Key: ref.key, Body: body, ContentType: contentType, ContentLength: body.length }));
+}
