@@ -2,6 +2,7 @@
 // adding a job there without a handler here is a type error.
 import type { Db } from "@/db/client";
 import type { JobName, JobPayload } from "@/lib/queue/jobs";
+import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
 
 export interface JobContext<N extends JobName> {
@@ -16,4 +17,5 @@ export type JobHandler<N extends JobName> = (ctx: JobContext<N>) => Promise<void
 
 export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
   "mail.send": sendMail,
+  "frame.ingest": ingestFrame,
 };

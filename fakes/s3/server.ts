@@ -48,7 +48,8 @@ const server = new S3rver({
 
 // ListParts and AbortMultipartUpload, which s3rver lacks, go ahead of its router
 // (the last middleware), so that they answer before it refuses the method.
-server.middleware.splice(server.middleware.length - 1, 0, multipartExtras());
+const stack = (server as unknown as { middleware: unknown[] }).middleware;
+stack.splice(stack.length - 1, 0, multipartExtras());
 
 await server.run();
 console.log(`s3 fake listening on http://127.0.0.1:${port}, buckets: ${[...bucketNames].join(", ")}`);

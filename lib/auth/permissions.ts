@@ -7,8 +7,11 @@ import type { Role } from "./roles";
 export const PERMISSIONS = {
   // Member workspace: own kits, sites, bracket sets, reductions.
   "studio:use": ["member"],
+  // Bracket sets: members create, upload to and correct their own.
+  "brackets:own": ["member"],
   // Curators: every bracket set and reduction, the review desk.
   "review:use": ["curator"],
+  "brackets:read-all": ["curator"],
   // Editors: editions and their exports.
   "editions:use": ["editor"],
   // Admin: people and roles, society settings, audit log.

@@ -12,6 +12,12 @@ export const JOBS = {
     payload: z.object({ outboxId: z.string().min(1) }),
     attempts: 5,
   },
+  // Reads one uploaded original: checksum, format, metadata, thumbnail.
+  "frame.ingest": {
+    queue: "media",
+    payload: z.object({ frameId: z.uuid() }),
+    attempts: 3,
+  },
 } as const satisfies Record<string, { queue: QueueName; payload: z.ZodType; attempts: number }>;
 
 export type JobName = keyof typeof JOBS;

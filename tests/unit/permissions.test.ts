@@ -7,7 +7,9 @@ import { ROLES, type Role } from "@/lib/auth/roles";
 // that a change there has to be made on purpose in both places.
 const EXPECTED: Record<Action, Role[]> = {
   "studio:use": ["member"],
+  "brackets:own": ["member"],
   "review:use": ["curator"],
+  "brackets:read-all": ["curator"],
   "editions:use": ["editor"],
   "people:list": ["admin"],
   "roles:grant": ["admin"],

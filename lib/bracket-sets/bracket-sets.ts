@@ -1,0 +1,130 @@
+// Bracket sets: create, list, read, and set the camera clock offset. Every
+// function takes the actor and scopes its queries to what that actor may see.
+import { and, asc, count, desc, eq, inArray, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { bracketSets, eclipses, frames, kits, sites, uploads, users, type BracketSet, type Frame, type Upload } from "@/db/schema";
+import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { AppError } from "@/lib/errors";
+import { countParts } from "@/lib/storage/limits";
+import { canReadAll, findOwnOpenSet, findVisibleSet, requireReader } from "./access";
+import type { BracketSetDto, BracketSetSummaryDto, FrameDto, UploadDto } from "./dto";
+import type { CreateBracketSetInput } from "./schemas";
+
+function toSummary(set: BracketSet, actor: Actor, ownerName: string, frameCount: number): BracketSetSummaryDto {
+  return {
+    id: set.id,
+    name: set.name,
+    eclipseId: set.eclipseId,
+    siteId: set.siteId,
+    kitId: set.kitId,
+    ownerName,
+    isOwn: set.ownerId === actor.userId,
+    state: set.state,
+    clockOffsetS: set.clockOffsetS,
+    frameCount,
+    createdAt: set.createdAt.toISOString(),
+    updatedAt: set.updatedAt.toISOString(),
+  };
+}
+
+export function toFrameDto(f: Frame, clockOffsetS: number): FrameDto {
+  return {
+    id: f.id,
+    fileName: f.originalFileName,
+    sizeBytes: f.sizeBytes,
+    sha256: f.sha256,
+    format: f.format,
+    width: f.width,
+    height: f.height,
+    bitDepth: f.bitDepth,
+    exposureS: f.exposureS,
+    exposureSource: f.exposureSource,
+    needsExposure: f.ingestState === "ingested" && f.exposureS === null,
+    fNumber: f.fNumber,
+    iso: f.iso,
+    captureAt: f.captureAt?.toISOString() ?? null,
+    correctedCaptureAt: f.captureAt ? new Date(f.captureAt.getTime() - clockOffsetS * 1000).toISOString() : null,
+    make: f.make,
+    model: f.model,
+    kind: f.kind,
+    included: f.included,
+    ingestState: f.ingestState,
+    refusalReason: f.refusalReason,
+    hasThumbnail: f.thumbnailKey !== null,
+    flags: f.flags,
+  };
+}
+
+export function toUploadDto(u: Upload): UploadDto {
+  return {
+    id: u.id,
+    frameId: u.frameId,
+    fileName: u.fileName,
+    sizeBytes: u.sizeBytes,
+    partSizeBytes: u.partSizeBytes,
+    partCount: countParts(u.sizeBytes, u.partSizeBytes),
+    state: u.state,
+    createdAt: u.createdAt.toISOString(),
+  };
+}
+
+async function requireOwnReference(db: DbOrTx, table: typeof sites | typeof kits, id: string, ownerId: string, field: string, what: string): Promise<void> {
+  const [row] = await db.select({ id: table.id }).from(table).where(and(eq(table.id, id), eq(table.ownerId, ownerId))).limit(1);
+  if (!row) throw new AppError("invalid_input", `${what} was not found among yours.`, [{ field, message: `${what} was not found among yours` }]);
+}
+
+export async function createBracketSet(db: DbOrTx, actor: Actor | null, input: CreateBracketSetInput): Promise<BracketSetSummaryDto> {
+  const a = requirePermission(actor, "brackets:own");
+  const [eclipse] = await db.select({ id: eclipses.id }).from(eclipses).where(eq(eclipses.id, input.eclipseId)).limit(1);
+  if (!eclipse) throw new AppError("invalid_input", `No eclipse on ${input.eclipseId} is in the catalogue.`, [{ field: "eclipseId", message: "no such eclipse in the catalogue" }]);
+  await requireOwnReference(db, sites, input.siteId, a.userId, "siteId", "That site");
+  if (input.kitId) await requireOwnReference(db, kits, input.kitId, a.userId, "kitId", "That kit");
+  const [set] = await db
+    .insert(bracketSets)
+    .values({ ownerId: a.userId, eclipseId: input.eclipseId, siteId: input.siteId, kitId: input.kitId, name: input.name, notes: input.notes, clockOffsetS: input.clockOffsetS })
+    .returning();
+  return toSummary(set, a, a.name, 0);
+}
+
+export async function listBracketSets(db: DbOrTx, actor: Actor | null): Promise<BracketSetSummaryDto[]> {
+  const a = requireReader(actor);
+  const query = db
+    .select({ set: bracketSets, ownerName: users.name })
+    .from(bracketSets)
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .orderBy(desc(bracketSets.createdAt));
+  const rows = canReadAll(a) ? await query : await query.where(eq(bracketSets.ownerId, a.userId));
+  if (rows.length === 0) return [];
+  const counts = await db
+    .select({ setId: frames.bracketSetId, n: count() })
+    .from(frames)
+    .where(inArray(frames.bracketSetId, rows.map((r) => r.set.id)))
+    .groupBy(frames.bracketSetId);
+  const bySet = new Map(counts.map((c) => [c.setId, c.n]));
+  return rows.map((r) => toSummary(r.set, a, r.ownerName, bySet.get(r.set.id) ?? 0));
+}
+
+export async function findBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetDto> {
+  const { actor: a, set } = await findVisibleSet(db, actor, setId);
+  const [owner] = await db.select({ name: users.name }).from(users).where(eq(users.id, set.ownerId)).limit(1);
+  const frameRows = await db.select().from(frames).where(eq(frames.bracketSetId, set.id)).orderBy(asc(frames.captureAt), asc(frames.createdAt));
+  const openRows = await db.select().from(uploads).where(and(eq(uploads.bracketSetId, set.id), eq(uploads.state, "open"))).orderBy(asc(uploads.createdAt));
+  return {
+    ...toSummary(set, a, owner?.name ?? "", frameRows.length),
+    notes: set.notes,
+    frames: frameRows.map((f) => toFrameDto(f, set.clockOffsetS)),
+    openUploads: openRows.map(toUploadDto),
+  };
+}
+
+/** Seconds the camera clock ran ahead of UTC (negative: behind); applied when times are read. */
+export async function setClockOffset(db: DbOrTx, actor: Actor | null, setId: string, clockOffsetS: number): Promise<BracketSetSummaryDto> {
+  const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
+  const [updated] = await db
+    .update(bracketSets)
+    .set({ clockOffsetS, updatedAt: sql`now()` })
+    .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
+    .returning();
+  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
+  return toSummary(updated, a, a.name, n);
+}

@@ -1,0 +1,84 @@
+// What leaves the server about bracket sets, frames and uploads: chosen fields,
+// dates as ISO text, no storage keys and no owner ids.
+import type { BracketSetState, ExposureSource, FrameFlags, FrameKind, IngestState, UploadState } from "@/db/schema";
+
+export interface BracketSetSummaryDto {
+  id: string;
+  name: string;
+  eclipseId: string;
+  siteId: string;
+  kitId: string | null;
+  ownerName: string;
+  isOwn: boolean;
+  state: BracketSetState;
+  clockOffsetS: number;
+  frameCount: number;
+  createdAt: string;
+  updatedAt: string;
+}
+
+export interface FrameDto {
+  id: string;
+  fileName: string;
+  sizeBytes: number;
+  sha256: string | null;
+  format: string | null;
+  width: number | null;
+  height: number | null;
+  bitDepth: number | null;
+  exposureS: number | null;
+  exposureSource: ExposureSource | null;
+  /** True when ingest found no exposure and the photographer has given none. */
+  needsExposure: boolean;
+  fNumber: number | null;
+  iso: number | null;
+  /** As the camera clock read, in UTC. */
+  captureAt: string | null;
+  /** With the set's clock offset applied: true time = clock - offset. */
+  correctedCaptureAt: string | null;
+  make: string | null;
+  model: string | null;
+  kind: FrameKind;
+  included: boolean;
+  ingestState: IngestState;
+  refusalReason: string | null;
+  hasThumbnail: boolean;
+  flags: FrameFlags;
+}
+
+export interface UploadDto {
+  id: string;
+  frameId: string;
+  fileName: string;
+  sizeBytes: number;
+  partSizeBytes: number;
+  partCount: number;
+  state: UploadState;
+  createdAt: string;
+}
+
+export interface BracketSetDto extends BracketSetSummaryDto {
+  notes: string;
+  frames: FrameDto[];
+  /** Uploads still open: a reloaded page resumes these. */
+  openUploads: UploadDto[];
+}
+
+export interface UploadedPartDto {
+  partNumber: number;
+  sizeBytes: number;
+  etag: string;
+}
+
+export interface UploadPartsDto {
+  uploadId: string;
+  partCount: number;
+  parts: UploadedPartDto[];
+  missingPartNumbers: number[];
+}
+
+export interface SignedPartsDto {
+  uploadId: string;
+  expiresAt: string;
+  urls: { partNumber: number; url: string }[];
+}

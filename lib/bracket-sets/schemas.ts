@@ -1,0 +1,49 @@
+// Inputs of the bracket-set services, checked at the boundary (route handlers
+// and server actions parse with these before calling the services).
+import { z } from "zod";
+import { FRAME_KINDS } from "@/db/schema";
+import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
+
+const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
+
+export const createBracketSetSchema = z.object({
+  name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(120),
+  eclipseId: z.string().trim().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date such as 2027-08-02" }),
+  siteId: uuid("one of your sites"),
+  kitId: uuid("one of your kits").nullish().transform((v) => v ?? null),
+  notes: z.string().trim().max(4000).optional().default(""),
+  clockOffsetS: z.coerce.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).min(-86_400).max(86_400).optional().default(0),
+});
+export type CreateBracketSetInput = z.infer<typeof createBracketSetSchema>;
+
+export const clockOffsetSchema = z.object({
+  clockOffsetS: z.coerce
+    .number({ error: "expected seconds" })
+    .refine(Number.isFinite, { error: "expected a number of seconds" })
+    .min(-86_400, { error: "must be within a day (-86400 to 86400 s)" })
+    .max(86_400, { error: "must be within a day (-86400 to 86400 s)" }),
+});
+
+export const startUploadSchema = z.object({
+  fileName: z.string().trim().min(1, { error: "needs the file's name" }).max(255, { error: "must be at most 255 characters" }),
+  // Declared by the browser; checked against what arrives when the upload completes.
+  sizeBytes: z.number({ error: "expected the file size in bytes" }).int({ error: "expected a whole number of bytes" }).min(0),
+  contentType: z.string().max(120).optional(),
+});
+export type StartUploadInput = z.infer<typeof startUploadSchema>;
+
+export const signPartsSchema = z.object({
+  partNumbers: z
+    .array(z.number().int({ error: "expected whole part numbers" }).min(1, { error: "part numbers start at 1" }).max(10_000))
+    .min(1, { error: "name at least one part" })
+    .max(MAX_PARTS_PER_SIGNING, { error: `at most ${MAX_PARTS_PER_SIGNING} parts at a time` }),
+});
+
+export const correctFrameSchema = z
+  .object({
+    exposureS: z.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).gt(0, { error: "must be more than 0 s" }).max(3600, { error: "must be at most 3600 s" }).optional(),
+    kind: z.enum(FRAME_KINDS, { error: `expected one of ${FRAME_KINDS.join(", ")}` }).optional(),
+    included: z.boolean({ error: "expected true or false" }).optional(),
+  })
+  .refine((v) => v.exposureS !== undefined || v.kind !== undefined || v.included !== undefined, { error: "give exposureS, kind or included" });
+export type CorrectFrameInput = z.infer<typeof correctFrameSchema>;

@@ -1,0 +1,149 @@
+// Ingest of one uploaded original: stream it from S3 to a temporary file while
+// hashing it (SHA-256), refuse a duplicate of a frame already in the set, decode
+// it (format from content, metadata from EXIF or FITS cards), store a JPEG
+// thumbnail under derived/, and fill in the frame row. Bad input marks the frame
+// "refused" with a reason naming the file and the fault and fails at once
+// (UnrecoverableError); S3 or database faults throw normally and are retried.
+// The original is only ever read.
+import { createHash } from "node:crypto";
+import { mkdtemp, rm } from "node:fs/promises";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { UnrecoverableError } from "bullmq";
+import { and, eq, ne, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { bracketSets, frames, type FrameFlags } from "@/db/schema";
+import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
+import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
+import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
+import type { JobHandler } from "../registry";
+
+interface FrameToIngest {
+  id: string;
+  bracketSetId: string;
+  originalKey: string;
+  originalFileName: string;
+  sizeBytes: number;
+  exposureSource: "file" | "photographer" | null;
+}
+
+/** Marks the frame refused (only while it is still "received") and stops the job without retry. */
+async function refuse(db: DbOrTx, frame: FrameToIngest, reason: string, flags: FrameFlags = {}): Promise<never> {
+  await db
+    .update(frames)
+    .set({ ingestState: "refused", refusalReason: reason, flags: sql`${frames.flags} || ${JSON.stringify(flags)}::jsonb`, updatedAt: sql`now()` })
+    .where(and(eq(frames.id, frame.id), eq(frames.ingestState, "received")));
+  throw new UnrecoverableError(reason);
+}
+
+async function findDuplicate(db: DbOrTx, frame: FrameToIngest, sha256: string): Promise<{ id: string; originalFileName: string } | undefined> {
+  const [first] = await db
+    .select({ id: frames.id, originalFileName: frames.originalFileName })
+    .from(frames)
+    .where(and(eq(frames.bracketSetId, frame.bracketSetId), eq(frames.sha256, sha256), ne(frames.id, frame.id)))
+    .limit(1);
+  return first;
+}
+
+function isUniqueViolation(err: unknown): boolean {
+  const e = err as { code?: string; cause?: { code?: string } };
+  return e?.code === "23505" || e?.cause?.code === "23505";
+}
+
+/** Records the checksum, refusing the frame when the set already holds the same bytes. */
+async function claimChecksum(db: DbOrTx, frame: FrameToIngest, sha256: string): Promise<void> {
+  const refuseDuplicate = (first: { id: string; originalFileName: string }) =>
+    refuse(db, frame, `${frame.originalFileName}: the same file (SHA-256 ${sha256.slice(0, 12)}...) as ${first.originalFileName}, already in this bracket set`, {
+      duplicateOfFrameId: first.id,
+    });
+  const first = await findDuplicate(db, frame, sha256);
+  if (first) await refuseDuplicate(first);
+  try {
+    await db.update(frames).set({ sha256, updatedAt: sql`now()` }).where(eq(frames.id, frame.id));
+  } catch (err) {
+    // Two copies ingested side by side: the unique index lets one win.
+    const winner = isUniqueViolation(err) ? await findDuplicate(db, frame, sha256) : undefined;
+    if (winner) await refuseDuplicate(winner);
+    throw err;
+  }
+}
+
+export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, report }) => {
+  const [frame] = await db
+    .select({
+      id: frames.id,
+      bracketSetId: frames.bracketSetId,
+      originalKey: frames.originalKey,
+      originalFileName: frames.originalFileName,
+      sizeBytes: frames.sizeBytes,
+      exposureSource: frames.exposureSource,
+      ingestState: frames.ingestState,
+    })
+    .from(frames)
+    .innerJoin(bracketSets, eq(bracketSets.id, frames.bracketSetId))
+    .where(eq(frames.id, payload.frameId))
+    .limit(1);
+  if (!frame) throw new UnrecoverableError(`frame ${payload.frameId} does not exist`);
+  // A repeated job finds the work done (or refused) and leaves it as it is.
+  if (frame.ingestState !== "received") return;
+  const name = frame.originalFileName;
+
+  const dir = await mkdtemp(join(tmpdir(), "crownlight-ingest-"));
+  try {
+    await report("downloading", 0.05);
+    const path = join(dir, "original");
+    const hash = createHash("sha256");
+    let bytes: number;
+    try {
+      bytes = await downloadObjectToFile({ bucket: bucketName("originals"), key: frame.originalKey }, path, (chunk) => hash.update(chunk));
+    } catch (err) {
+      if (isMissingObject(err)) await refuse(db, frame, `${name}: the original is missing from storage`);
+      throw err;
+    }
+    if (bytes !== frame.sizeBytes) await refuse(db, frame, `${name}: storage holds ${bytes} bytes, but ${frame.sizeBytes} were received`);
+    await claimChecksum(db, frame, hash.digest("hex"));
+
+    await report("decoding", 0.3);
+    let decoded: Awaited<ReturnType<typeof decodeFrame>>;
+    try {
+      decoded = await decodeFrame(path, name);
+    } catch (err) {
+      if (isMediaError(err)) await refuse(db, frame, err.message);
+      throw err;
+    }
+
+    await report("thumbnail", 0.7);
+    const thumbnail = await encodeThumbnail(toThumbnailPlanes(decoded.image, decoded));
+    const thumbnailKey = buildThumbnailKey(frame.bracketSetId, frame.id);
+    await putObjectBytes({ bucket: bucketName("derived"), key: thumbnailKey }, thumbnail, "image/jpeg");
+
+    const m = decoded.metadata;
+    const flags: FrameFlags = { clippedFraction: measureClippedFraction(decoded.image, decoded.whiteLevel) };
+    if (m.isTimeZoneAssumed) flags.isTimeZoneAssumed = true;
+    // An exposure the photographer already gave wins over the file's.
+    const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: m.exposureS ?? null, exposureSource: m.exposureS ? ("file" as const) : null };
+    await db
+      .update(frames)
+      .set({
+        format: decoded.format,
+        width: decoded.image.width,
+        height: decoded.image.height,
+        bitDepth: decoded.bitDepth,
+        ...exposure,
+        fNumber: m.fNumber ?? null,
+        iso: m.iso ?? null,
+        captureAt: m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs),
+        make: m.make ?? null,
+        model: m.model ?? m.instrument ?? null,
+        thumbnailKey,
+        flags: sql`${frames.flags} || ${JSON.stringify(flags)}::jsonb`,
+        ingestState: "ingested",
+        refusalReason: null,
+        updatedAt: sql`now()`,
+      })
+      .where(and(eq(frames.id, frame.id), eq(frames.ingestState, "received")));
+    await report("ingested", 1);
+  } finally {
+    await rm(dir, { recursive: true, force: true });
+  }
+};
