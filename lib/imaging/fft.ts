@@ -112,9 +112,11 @@ function interpolatePeak(left: number, centre: number, right: number): number {
  * when b(x) = a(x - d). The normalized cross-power is weighted by a Gaussian
  * exp(-2 pi^2 sigma^2 (u^2 + v^2)) so the peak becomes a Gaussian of width
  * sigma, which sub-sample interpolation locates without the bias of a sinc peak.
- * Returns d (wrapped to -N/2..N/2).
+ * Returns d (wrapped to -N/2..N/2). With maxShift the peak is sought only among
+ * shifts no longer than that (samples): a caller that predicts the shift can
+ * refuse a stronger but implausible peak from noise or mask edges.
  */
-export function correlatePhase(a: Float64Array, b: Float64Array, width: number, height: number, smoothSigma = 1): PhaseCorrelationPeak {
+export function correlatePhase(a: Float64Array, b: Float64Array, width: number, height: number, smoothSigma = 1, maxShift = Infinity): PhaseCorrelationPeak {
   const n = width * height;
   if (a.length !== n || b.length !== n) throw new ImagingError("size-mismatch", `phase correlation inputs must be ${width} x ${height}`);
   const ar = Float64Array.from(a), ai = new Float64Array(n);
@@ -143,8 +145,17 @@ export function correlatePhase(a: Float64Array, b: Float64Array, width: number, 
     }
   }
   transformFft2d(ar, ai, width, height, true);
+  if (!(maxShift >= 0)) throw new ImagingError("bad-parameter", `maxShift must be a non-negative number of samples, got ${maxShift}`);
+  const limit2 = maxShift * maxShift;
   let best = 0;
-  for (let i = 1; i < n; i++) if (ar[i] > ar[best]) best = i;
+  for (let v = 0; v < height; v++) {
+    const sv = v <= height / 2 ? v : v - height;
+    for (let u = 0; u < width; u++) {
+      const su = u <= width / 2 ? u : u - width;
+      const i = v * width + u;
+      if (su * su + sv * sv <= limit2 && ar[i] > ar[best]) best = i;
+    }
+  }
   const px = best % width;
   const py = (best / width) | 0;
   const at = (x: number, y: number) => ar[((y + height) % height) * width + ((x + width) % width)];

@@ -70,6 +70,24 @@ describe("phase correlation and warps", () => {
     expect(correlatePhase(a, other, size, size).peak).toBeLessThan(0.3);
   });
 
+  it("seeks the peak only within maxShift when asked", () => {
+    const size = 64;
+    const rng = createRng(5);
+    const a = new Float64Array(size * size).map(() => rng() - 0.5);
+    // b holds a strongly at (20, -9) and weakly at (2, 1): integer circular shifts.
+    const b = new Float64Array(size * size);
+    for (let v = 0; v < size; v++) for (let u = 0; u < size; u++) {
+      const at = (du: number, dv: number) => a[((v - dv + size) % size) * size + ((u - du + size) % size)];
+      b[v * size + u] = at(20, -9) + 0.5 * at(2, 1);
+    }
+    const free = correlatePhase(a, b, size, size, 1);
+    expect([Math.round(free.dx), Math.round(free.dy)]).toEqual([20, -9]);
+    const near = correlatePhase(a, b, size, size, 1, 5);
+    expect(Math.abs(near.dx - 2)).toBeLessThan(0.05);
+    expect(Math.abs(near.dy - 1)).toBeLessThan(0.05);
+    expect(() => correlatePhase(a, b, size, size, 1, -1)).toThrow(/maxShift/);
+  });
+
   it("bicubic warp reproduces a smooth function to 1e-3 and warps masks by nearest neighbour", () => {
     const size = 64;
     const f = (x: number, y: number) => Math.sin(x / 5) * Math.cos(y / 7);
