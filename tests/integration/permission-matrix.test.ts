@@ -3,7 +3,10 @@
 // that is not in the matrix fails the test, so new routes must be added here.
 import fs from "node:fs";
 import path from "node:path";
-import { beforeAll, describe, expect, it } from "vitest";
+import sharp from "sharp";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, getDb } from "@/db/client";
+import { sites } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { Client } from "../support/http";
 
@@ -17,19 +20,33 @@ const EMAIL: Record<Exclude<Who, "visitor">, string> = {
   admin: DEMO_PEOPLE.find((p) => p.roles.includes("admin"))!.email,
 };
 
+/** Made at run time: the member's own bracket set, an open upload in it and a frame. */
+interface Ids {
+  memberId: string;
+  siteId: string;
+  setId: string;
+  uploadId: string;
+  frameId: string;
+}
+
 interface Case {
   /** The route file's path template, e.g. /api/admin/people/[id]/roles */
   route: string;
-  method: "GET" | "POST";
+  method: "GET" | "POST" | "PATCH" | "DELETE";
   /** A concrete path to call; ids are filled in at run time. */
-  path: (ids: { memberId: string }) => string;
-  body?: unknown;
+  path: (ids: Ids) => string;
+  body?: unknown | ((ids: Ids) => unknown);
   expect: Record<Who, number>;
 }
 
 const everyone = (status: number): Record<Who, number> => ({ visitor: status, member: status, curator: status, editor: status, admin: status });
 const signedIn = { visitor: 401, member: 200, curator: 200, editor: 200, admin: 200 };
 const adminOnly = { visitor: 401, member: 403, curator: 403, editor: 403, admin: 200 };
+// Someone else's bracket set: the curator sees it but may not change it; other
+// members are told it does not exist (404, not 403, so ids do not leak).
+const ownSetRead = { visitor: 401, member: 200, curator: 200, editor: 404, admin: 404 };
+const ownSetWrite = (ok: number) => ({ visitor: 401, member: ok, curator: 403, editor: 404, admin: 404 });
+const SET = "/api/bracket-sets";
 
 const API_CASES: Case[] = [
   { route: "/api/health", method: "GET", path: () => "/api/health", expect: everyone(200) },
@@ -48,6 +65,31 @@ const API_CASES: Case[] = [
     body: { role: "member", grant: true },
     expect: adminOnly,
   },
+  { route: SET, method: "GET", path: () => SET, expect: signedIn },
+  {
+    route: SET,
+    method: "POST",
+    path: () => SET,
+    // The site is the member's own: everyone else is told it is not among theirs.
+    body: ({ siteId }: Ids) => ({ name: "Matrix bracket", eclipseId: "2027-08-02", siteId }),
+    expect: { visitor: 401, member: 201, curator: 400, editor: 400, admin: 400 },
+  },
+  { route: `${SET}/[id]`, method: "GET", path: ({ setId }) => `${SET}/${setId}`, expect: ownSetRead },
+  { route: `${SET}/[id]`, method: "PATCH", path: ({ setId }) => `${SET}/${setId}`, body: { clockOffsetS: 0 }, expect: ownSetWrite(200) },
+  { route: `${SET}/[id]/uploads`, method: "POST", path: ({ setId }) => `${SET}/${setId}/uploads`, body: { fileName: "matrix.tif", sizeBytes: 10 }, expect: ownSetWrite(201) },
+  { route: `${SET}/[id]/uploads/[uploadId]/parts`, method: "GET", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/parts`, expect: ownSetWrite(200) },
+  {
+    route: `${SET}/[id]/uploads/[uploadId]/parts`,
+    method: "POST",
+    path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/parts`,
+    body: { partNumbers: [1] },
+    expect: ownSetWrite(200),
+  },
+  // Nothing was sent, so the owner is told which part is missing (409).
+  { route: `${SET}/[id]/uploads/[uploadId]/complete`, method: "POST", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/complete`, body: {}, expect: ownSetWrite(409) },
+  { route: `${SET}/[id]/frames/[frameId]`, method: "PATCH", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, body: { included: true }, expect: ownSetWrite(200) },
+  // Last: it aborts the upload the cases above use.
+  { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
 
 const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
@@ -89,6 +131,33 @@ function routeTemplates(): string[] {
 
 const clients = {} as Record<Who, Client>;
 let memberId = "";
+const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "" };
+
+async function ok<T>(call: Promise<{ status: number; body: unknown }>, status: number): Promise<T> {
+  const res = await call;
+  if (res.status !== status) throw new Error(`expected ${status}, got ${res.status}: ${JSON.stringify(res.body)}`);
+  return res.body as T;
+}
+
+/** The member's own bracket set, a frame sent through presigned URLs, and an open upload. */
+async function prepareBracketSet(): Promise<void> {
+  const db = getDb();
+  const [site] = await db.insert(sites).values({ ownerId: memberId, name: "Matrix site", kind: "fixed", latDeg: 36.53, lonDeg: -6.29 }).returning({ id: sites.id });
+  ids.siteId = site.id;
+  const set = await ok<{ id: string }>(clients.member.json(SET, { name: "Matrix set", eclipseId: "2027-08-02", siteId: site.id }), 201);
+  ids.setId = set.id;
+  const png = new Uint8Array(await sharp({ create: { width: 8, height: 8, channels: 3, background: "#204060" } }).png().toBuffer());
+  const upload = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads`, { fileName: "matrix.png", sizeBytes: png.length }), 201);
+  const signed = await ok<{ urls: { url: string }[] }>(clients.member.json(`${SET}/${set.id}/uploads/${upload.id}/parts`, { partNumbers: [1] }), 200);
+  const put = await fetch(signed.urls[0].url, { method: "PUT", body: png });
+  expect(put.status).toBe(200);
+  const frame = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads/${upload.id}/complete`, {}), 200);
+  ids.frameId = frame.id;
+  const open = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads`, { fileName: "open.tif", sizeBytes: 100 }), 201);
+  ids.uploadId = open.id;
+}
+
+afterAll(closeDb);
 
 beforeAll(async () => {
   clients.visitor = new Client();
@@ -98,6 +167,8 @@ beforeAll(async () => {
   }
   const me = await clients.member.json("/api/me");
   memberId = (me.body as { id: string }).id;
+  ids.memberId = memberId;
+  await prepareBracketSet();
 });
 
 describe("permission matrix", () => {
@@ -108,7 +179,8 @@ describe("permission matrix", () => {
   for (const c of API_CASES) {
     for (const who of WHO) {
       it(`${c.method} ${c.route} as ${who} answers ${c.expect[who]}`, async () => {
-        const { status } = await clients[who].json(c.path({ memberId }), c.body, c.method);
+        const body = typeof c.body === "function" ? c.body(ids) : c.body;
+        const { status } = await clients[who].json(c.path(ids), body, c.method);
         expect(status).toBe(c.expect[who]);
       });
     }
@@ -128,6 +200,29 @@ describe("permission matrix", () => {
     const someone = "/api/planner/calendar?eclipse=2027-08-02&site=" + "00000000-0000-4000-8000-000000000000";
     expect((await clients.visitor.json(someone)).status).toBe(401);
     expect((await clients.member.json(someone)).status).toBe(404);
+  });
+
+  it("keeps another member's bracket set hidden: the same 404 as a set that does not exist", async () => {
+    const other = clients.editor;
+    const missing = "00000000-0000-4000-8000-000000000000";
+    const nowhere = await other.json(`${SET}/${missing}`);
+    expect(nowhere.status).toBe(404);
+    const calls: [string, unknown, string][] = [
+      [`${SET}/${ids.setId}`, undefined, "GET"],
+      [`${SET}/${ids.setId}`, { clockOffsetS: 30 }, "PATCH"],
+      [`${SET}/${ids.setId}/uploads`, { fileName: "intruder.tif", sizeBytes: 10 }, "POST"],
+      [`${SET}/${ids.setId}/frames/${ids.frameId}`, { included: false }, "PATCH"],
+    ];
+    for (const [path, body, method] of calls) {
+      const res = await other.json(path, body, method);
+      expect(res.status, `${method} ${path}`).toBe(404);
+      expect(res.body).toEqual(nowhere.body);
+    }
+    const list = (await other.json(SET)).body as { bracketSets: { id: string }[] };
+    expect(list.bracketSets.map((s) => s.id)).not.toContain(ids.setId);
+    const own = (await clients.member.json(`${SET}/${ids.setId}`)).body as { clockOffsetS: number; frames: { id: string; included: boolean }[] };
+    expect(own.clockOffsetS).toBe(0);
+    expect(own.frames.find((f) => f.id === ids.frameId)?.included).toBe(true);
   });
 
   it("keeps the admin's people list free of password hashes and tokens", async () => {

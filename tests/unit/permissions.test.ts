@@ -52,7 +52,7 @@ describe("permission table", () => {
   });
 
   it("reports allowed actions for a curator-editor", () => {
-    expect(allowedActions(["curator", "editor"]).sort()).toEqual(["editions:use", "review:use"]);
+    expect(allowedActions(["curator", "editor"]).sort()).toEqual(["brackets:read-all", "editions:use", "review:use"]);
   });
 
   it("every permission names at least one known role", () => {
