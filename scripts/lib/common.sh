@@ -20,7 +20,9 @@ load_env() {
   . "$ROOT/.env.example"
   [ -f "$ROOT/.env" ] && . "$ROOT/.env"
   set +a
-  eval "$saved"
+  # export -p prints "declare -x ..."; inside a function declare makes locals,
+  # so restore them as globals.
+  eval "${saved//declare -x /declare -gx }"
 }
 
 is_root() { [ "$(id -u)" = "0" ]; }
