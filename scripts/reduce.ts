@@ -35,7 +35,7 @@ async function main(): Promise<void> {
     exposureOverrides,
     exposureOverrideSource: args.exposuresCsv ? basename(args.exposuresCsv) : undefined,
     registration: args.registration,
-    sky: { site, clockOffsetS: args.clockOffsetS, northAngleDeg: args.northAngleDeg },
+    sky: { site, clockOffsetS: args.clockOffsetS, northAngleDeg: args.northAngleDeg, camera: args.camera },
     onProgress: createProgressPrinter(),
   });
   const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number; sky: { plateScaleArcsecPerPx?: number; northAngleDeg?: number; pAngleDeg?: number } };

@@ -2,10 +2,12 @@
 import type { StructureFilter } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
 import type { RunnerRegistrationMode } from "./sky-run";
+import type { CameraOrientation, MountKind } from "@/lib/astro/mount-rotation";
 
 export const REDUCE_USAGE =
   "usage: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK.gpx|csv] [--clock-offset SECONDS] " +
-  "[--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] FILE...";
+  "[--north-angle DEG | --mount equatorial|alt-az|fixed-tripod|hand-held|stabilised [--camera-roll DEG] [--flip-h] [--flip-v]] " +
+  "[--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] FILE...";
 
 export interface ReduceArgs {
   outDir: string;
@@ -21,9 +23,12 @@ export interface ReduceArgs {
   clockOffsetS?: number;
   /** Position angle of celestial north in the image, counter-clockwise from image up, after flips. */
   northAngleDeg?: number;
+  /** The kit's mount and flips, from which the north angle follows when it is not given. */
+  camera?: CameraOrientation;
 }
 
-const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site", "site-file", "clock-offset", "north-angle"]);
+const MOUNT_KINDS: readonly MountKind[] = ["equatorial", "alt-az", "fixed-tripod", "hand-held", "stabilised"];
+const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site", "site-file", "clock-offset", "north-angle", "mount", "camera-roll"]);
 
 /** A decimal number option ("-12.5", "3e1"); the message names the option and the unit. */
 function parseNumberOption(values: Map<string, string>, key: string, unit: string): number | undefined {
@@ -32,7 +37,7 @@ function parseNumberOption(values: Map<string, string>, key: string, unit: strin
   if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(text.trim())) throw badOption(`--${key}: expected a number of ${unit}, got "${text}"`);
   return Number(text);
 }
-const FLAG_OPTIONS = new Set(["recover-response"]);
+const FLAG_OPTIONS = new Set(["recover-response", "flip-h", "flip-v"]);
 
 function badOption(message: string): ReductionInputError {
   return new ReductionInputError("bad-option", `${message}\n${REDUCE_USAGE}`);
@@ -64,9 +69,19 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
   const filter = values.get("filter");
   if (filter !== undefined && filter !== "mgn" && filter !== "nrgf") throw badOption(`--filter: expected mgn or nrgf, got "${filter}"`);
   if (files.length === 0) throw badOption("no frames given: list the bracket's files after the options");
+  const mount = values.get("mount");
+  if (mount !== undefined && !(MOUNT_KINDS as readonly string[]).includes(mount)) throw badOption(`--mount: expected one of ${MOUNT_KINDS.join(", ")}, got "${mount}"`);
+  if (mount !== undefined && values.has("north-angle")) throw badOption("--north-angle and --mount: give one of them (the angle, or the mount it follows from)");
+  const cameraRollDeg = parseNumberOption(values, "camera-roll", "degrees");
+  if (mount === undefined && (cameraRollDeg !== undefined || flags.has("flip-h") || flags.has("flip-v"))) {
+    throw badOption("--camera-roll, --flip-h and --flip-v describe the camera on its mount: give --mount too");
+  }
+  const camera: CameraOrientation | undefined =
+    mount === undefined ? undefined : { mount: mount as MountKind, cameraRollDeg, flipHorizontal: flags.has("flip-h"), flipVertical: flags.has("flip-v") };
   return {
     outDir, files, registration, filter, exposuresCsv: values.get("exposures"), recoverResponse: flags.has("recover-response"),
     siteText: values.get("site"), siteFile: values.get("site-file"),
     clockOffsetS: parseNumberOption(values, "clock-offset", "seconds"), northAngleDeg: parseNumberOption(values, "north-angle", "degrees"),
+    camera,
   };
 }

@@ -11,6 +11,7 @@ import type { HelioGeometry } from "./helio-wcs";
 import type { SiteSpec } from "./sky-site";
 import { computeFrameSkies, requireCaptureTimes, type FrameSky } from "./sun-geometry";
 import { resolveSunRegistration, type SunRegistration } from "./sun-registration";
+import { computeNorthAngleInImageDeg, type CameraOrientation } from "@/lib/astro/mount-rotation";
 
 export type RunnerRegistrationMode = "sun" | "moon" | "corona";
 
@@ -20,6 +21,8 @@ export interface SkyOptions {
   clockOffsetS?: number;
   /** Position angle of celestial north in the image, degrees counter-clockwise from image up, after flips; estimated from the bracket when absent. */
   northAngleDeg?: number;
+  /** The camera on its mount: gives the north angle when northAngleDeg is absent (null for hand-held and stabilised, then estimated). */
+  camera?: CameraOrientation;
 }
 
 /** Refuses option combinations before anything is decoded or written, naming the option. */
@@ -36,6 +39,19 @@ export function checkSkyOptions(mode: RunnerRegistrationMode, sky: SkyOptions | 
   if (sky?.northAngleDeg !== undefined && !Number.isFinite(sky.northAngleDeg)) {
     throw new ReductionInputError("bad-option", `--north-angle: expected a number of degrees, got ${sky.northAngleDeg}`);
   }
+}
+
+/**
+ * The north angle the mount implies at the middle of the bracket (lib/astro
+ * computeNorthAngleInImageDeg: constant on an equatorial mount, the zenith's
+ * direction on a levelled alt-az or fixed camera). Field rotation over a
+ * bracket of a minute is a small fraction of a degree, below what the offsets need.
+ */
+function northAngleFromMount(camera: CameraOrientation | undefined, skies: FrameSky[]): number | undefined {
+  if (!camera || skies.length === 0) return undefined;
+  const mid = skies[Math.floor(skies.length / 2)];
+  const angle = computeNorthAngleInImageDeg(camera, mid.site, mid.midExposureMs);
+  return angle === null ? undefined : angle;
 }
 
 /** True capture times in place, for the pipeline's Moon path, the FITS time cards and the ephemeris alike. */
@@ -66,7 +82,7 @@ export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParam
   const timings = frames.map((f) => ({ name: f.name, captureTimeMs: f.captureTimeMs, exposureS: f.exposureS }));
   requireCaptureTimes(timings, mode === "sun" ? "--register sun" : "the helioprojective WCS (--site)");
   const skies = computeFrameSkies(timings, sky.site);
-  const sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg);
+  const sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg ?? northAngleFromMount(sky.camera, skies));
   const pipelineParams: ReductionParams =
     mode === "moon" ? { ...params, registration: "moon" } : { ...params, registration: mode === "sun" ? "moon" : "corona", moonMinusSunPx: sun.offsetsPx };
   const completeGeometry = (result: ReductionResult): HelioGeometry => {
