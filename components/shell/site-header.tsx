@@ -82,10 +82,10 @@ function AccountSummary({ user, slot }: { user: HeaderUser; slot?: ReactNode }) 
           {user.name}
         </span>
         <span className="text-sm text-ink-muted">
-          <span className="hidden sm:inline">{user.email}</span>
+          <span className="hidden 2xl:inline">{user.email}</span>
           {user.roles.length > 0 ? (
             <>
-              <span className="hidden sm:inline" aria-hidden="true">
+              <span className="hidden 2xl:inline" aria-hidden="true">
                 {" · "}
               </span>
               <span className="sr-only">, roles: </span>
