@@ -4,7 +4,6 @@
 // naming the file and the fault, once, without retry; duplicates name the first
 // file; every original stays in S3.
 import { createHash } from "node:crypto";
-import { crc32, deflateSync } from "node:zlib";
 import { eq } from "drizzle-orm";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -18,6 +17,7 @@ import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
 import { bucketName, findObjectSize, readObjectRange } from "@/lib/storage";
 import { requireTestDatabase } from "../support/env";
 import { createMember, createSetFor, uploadFile } from "./bracket-upload-helpers";
+import { makeClaimingPng } from "../support/bad-files";
 
 requireTestDatabase();
 const db = getDb();
@@ -37,23 +37,7 @@ async function waitForIngest(frameId: string, timeoutMs = 45_000): Promise<Frame
   throw new Error(`frame ${frameId} was not ingested within ${timeoutMs} ms`);
 }
 
-function pngChunk(type: string, data: Buffer): Buffer {
-  const body = Buffer.concat([Buffer.from(type, "latin1"), data]);
-  const length = Buffer.alloc(4);
-  length.writeUInt32BE(data.length);
-  const crc = Buffer.alloc(4);
-  crc.writeUInt32BE(crc32(body));
-  return Buffer.concat([length, body, crc]);
-}
 
-/** A PNG whose header claims width x height grey pixels, with a tiny body: a decompression bomb. */
-function claimingPng(width: number, height: number): Buffer {
-  const ihdr = Buffer.alloc(13);
-  ihdr.writeUInt32BE(width, 0);
-  ihdr.writeUInt32BE(height, 4);
-  ihdr.set([8, 0, 0, 0, 0], 8);
-  return Buffer.concat([Buffer.from("\x89PNG\r\n\x1a\n", "latin1"), pngChunk("IHDR", ihdr), pngChunk("IDAT", deflateSync(Buffer.alloc((width + 1) * 4))), pngChunk("IEND", Buffer.alloc(0))]);
-}
 
 const W = 2100;
 const H = 2100;
@@ -103,7 +87,7 @@ beforeAll(async () => {
     ["copy-of-0004.fits", fits],
     ["cut-short.jpg", jpeg.subarray(0, Math.floor(jpeg.length / 2))],
     ["no-end-card.fits", brokenFits],
-    ["bomb.png", claimingPng(50_000, 50_000)],
+    ["bomb.png", makeClaimingPng(50_000, 50_000)],
   ];
   for (const [name, original] of files) {
     // A copy in an ArrayBuffer of its own, as fetch wants for a body.

@@ -3,13 +3,13 @@
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { crc32, deflateSync } from "node:zlib";
 import sharp from "sharp";
 import { afterAll, describe, expect, it } from "vitest";
 import { decodeFrame } from "@/lib/media/decode";
 import { MediaError } from "@/lib/media/errors";
 import { encodeFits } from "@/lib/media/fits-write";
 import { encodeTiff, TIFF_TYPE } from "@/lib/media/tiff-write";
+import { makeClaimingPng } from "../../support/bad-files";
 
 const dir = mkdtempSync(join(tmpdir(), "crownlight-bad-"));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -25,24 +25,7 @@ async function failure(content: Buffer | Uint8Array, name: string): Promise<Medi
   return error as MediaError;
 }
 
-function pngChunk(type: string, data: Buffer): Buffer {
-  const body = Buffer.concat([Buffer.from(type, "latin1"), data]);
-  const length = Buffer.alloc(4);
-  length.writeUInt32BE(data.length);
-  const crc = Buffer.alloc(4);
-  crc.writeUInt32BE(crc32(body));
-  return Buffer.concat([length, body, crc]);
-}
 
-/** A valid PNG header that claims width x height, with a tiny compressed body. */
-function claimingPng(width: number, height: number): Buffer {
-  const ihdr = Buffer.alloc(13);
-  ihdr.writeUInt32BE(width, 0);
-  ihdr.writeUInt32BE(height, 4);
-  ihdr.set([8, 0, 0, 0, 0], 8); // 8-bit greyscale, deflate, no filter, no interlace
-  const rows = deflateSync(Buffer.alloc((width + 1) * 4));
-  return Buffer.concat([Buffer.from("\x89PNG\r\n\x1a\n", "latin1"), pngChunk("IHDR", ihdr), pngChunk("IDAT", rows), pngChunk("IEND", Buffer.alloc(0))]);
-}
 
 describe("bad input gives a clear MediaError naming the file and the fault", () => {
   it("a truncated JPEG", async () => {
@@ -69,7 +52,7 @@ describe("bad input gives a clear MediaError naming the file and the fault", () 
   });
 
   it("a decompression-bomb PNG that claims 50000 x 50000 pixels", async () => {
-    const error = await failure(claimingPng(50000, 50000), "frame-044.png");
+    const error = await failure(makeClaimingPng(50000, 50000), "frame-044.png");
     expect(error.code).toBe("too-large");
     expect(error.message).toBe("frame-044.png: the image has more pixels than the 200-megapixel limit (a decompression bomb or an absurd size)");
   });
@@ -81,7 +64,7 @@ describe("bad input gives a clear MediaError naming the file and the fault", () 
   });
 
   it("a PNG whose compressed data are corrupt", async () => {
-    const good = claimingPng(16, 16);
+    const good = makeClaimingPng(16, 16);
     const idat = good.indexOf("IDAT");
     const bad = Buffer.from(good);
     bad.fill(0x55, idat + 6, idat + 12);

@@ -3,7 +3,6 @@
 import { spawnSync } from "node:child_process";
 import { copyFileSync, existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { crc32, deflateSync } from "node:zlib";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { encodeFits } from "@/lib/media";
@@ -11,6 +10,7 @@ import { runReductionOnFiles } from "@/lib/reduction-runner";
 import { parseExposuresCsv } from "@/lib/reduction-runner/exposures-csv";
 import { parseReduceArgs } from "@/lib/reduction-runner/cli-args";
 import { listStagingLeftovers, writeBracketFixture, type BracketFixture } from "./bracket-fixture";
+import { makeClaimingPng } from "../../support/bad-files";
 
 let fixture: BracketFixture;
 let work: string;
@@ -37,14 +37,6 @@ function place(name: string, content: Buffer | Uint8Array): string {
   return path;
 }
 
-function pngChunk(type: string, data: Buffer): Buffer {
-  const body = Buffer.concat([Buffer.from(type, "latin1"), data]);
-  const length = Buffer.alloc(4);
-  length.writeUInt32BE(data.length);
-  const crc = Buffer.alloc(4);
-  crc.writeUInt32BE(crc32(body));
-  return Buffer.concat([length, body, crc]);
-}
 
 describe("runReductionOnFiles refuses bad input, naming the file and the fault", () => {
   it("a truncated JPEG", async () => {
@@ -71,11 +63,7 @@ describe("runReductionOnFiles refuses bad input, naming the file and the fault",
   });
 
   it("a decompression bomb", async () => {
-    const ihdr = Buffer.alloc(13);
-    ihdr.writeUInt32BE(50000, 0);
-    ihdr.writeUInt32BE(50000, 4);
-    ihdr.set([8, 0, 0, 0, 0], 8);
-    const bomb = place("bomb.png", Buffer.concat([Buffer.from("\x89PNG\r\n\x1a\n", "latin1"), pngChunk("IHDR", ihdr), pngChunk("IDAT", deflateSync(Buffer.alloc(50001 * 4))), pngChunk("IEND", Buffer.alloc(0))]));
+    const bomb = place("bomb.png", makeClaimingPng(50000, 50000));
     expect(await refusal([fixture.filesOf("jpeg")[0], bomb])).toMatch(/^bomb\.png: .*200-megapixel limit \(a decompression bomb/);
   });
 
