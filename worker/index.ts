@@ -30,7 +30,14 @@ async function run(job: Job): Promise<void> {
 }
 
 const workers = QUEUES.map((queue) => {
-  const w = new Worker(queue, run, { connection, prefix, concurrency: queue === "mail" ? 4 : 1 });
+  // A reduction's numeric stages hold the event loop for seconds at a time; a
+  // long lock keeps BullMQ from handing the job to another worker meanwhile.
+  const w = new Worker(queue, run, {
+    connection,
+    prefix,
+    concurrency: queue === "mail" ? 4 : 1,
+    ...(queue === "reduce" ? { lockDuration: 10 * 60_000, stalledInterval: 5 * 60_000 } : {}),
+  });
   w.on("completed", (job) => {
     void mirrorJob(db, job.id ?? "", { state: "done", progress: 1 }).catch((e) => console.error("mirror", e));
   });

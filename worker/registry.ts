@@ -4,6 +4,7 @@ import type { Db } from "@/db/client";
 import type { JobName, JobPayload } from "@/lib/queue/jobs";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
+import { runReduction } from "./jobs/reduction-run";
 
 export interface JobContext<N extends JobName> {
   db: Db;
@@ -18,4 +19,5 @@ export type JobHandler<N extends JobName> = (ctx: JobContext<N>) => Promise<void
 export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
   "mail.send": sendMail,
   "frame.ingest": ingestFrame,
+  "reduction.run": runReduction,
 };

@@ -4,3 +4,4 @@ export * from "./society";
 export * from "./mail";
 export * from "./sky";
 export * from "./brackets";
+export * from "./reductions";

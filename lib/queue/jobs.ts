@@ -3,7 +3,8 @@
 // settings. Handlers live in worker/jobs/, one file per job.
 import { z } from "zod";
 
-export const QUEUES = ["mail", "media"] as const;
+// "reduce" is its own queue so that long reductions never hold up ingests or mail.
+export const QUEUES = ["mail", "media", "reduce"] as const;
 export type QueueName = (typeof QUEUES)[number];
 
 export const JOBS = {
@@ -16,6 +17,12 @@ export const JOBS = {
   "frame.ingest": {
     queue: "media",
     payload: z.object({ frameId: z.uuid() }),
+    attempts: 3,
+  },
+  // One reduction of a bracket set: fetch originals, reduce, store outputs.
+  "reduction.run": {
+    queue: "reduce",
+    payload: z.object({ reductionId: z.uuid() }),
     attempts: 3,
   },
 } as const satisfies Record<string, { queue: QueueName; payload: z.ZodType; attempts: number }>;

@@ -88,6 +88,22 @@ const API_CASES: Case[] = [
   // Nothing was sent, so the owner is told which part is missing (409).
   { route: `${SET}/[id]/uploads/[uploadId]/complete`, method: "POST", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/complete`, body: {}, expect: ownSetWrite(409) },
   { route: `${SET}/[id]/frames/[frameId]`, method: "PATCH", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, body: { included: true }, expect: ownSetWrite(200) },
+  { route: `${SET}/[id]/reductions`, method: "GET", path: ({ setId }) => `${SET}/${setId}/reductions`, expect: ownSetRead },
+  // The matrix's set has no frames: the owner and a curator (who may re-reduce) are told so (400).
+  {
+    route: `${SET}/[id]/reductions`,
+    method: "POST",
+    path: ({ setId }) => `${SET}/${setId}/reductions`,
+    body: { registration: "corona" },
+    expect: { visitor: 401, member: 400, curator: 400, editor: 404, admin: 404 },
+  },
+  // An id that names no reduction: not found for everyone signed in.
+  {
+    route: "/api/reductions/[id]",
+    method: "GET",
+    path: () => "/api/reductions/00000000-0000-4000-8000-000000000000",
+    expect: { visitor: 401, member: 404, curator: 404, editor: 404, admin: 404 },
+  },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];

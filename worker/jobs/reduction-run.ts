@@ -1,0 +1,147 @@
+import { mkdir, mkdtemp, readdir, readFile, rm } from "node:fs/promises";
+import os from "node:os";
+import path from "node:path";
+import { UnrecoverableError } from "bullmq";
+import { eq, sql } from "drizzle-orm";
+import { bracketSets, kits, reductions, sites } from "@/db/schema";
+import { ImagingError } from "@/lib/imaging/errors";
+import { MediaError } from "@/lib/media/errors";
+import { ReductionInputError } from "@/lib/reduction-runner/errors";
+import { runReductionOnFiles } from "@/lib/reduction-runner/run-reduction";
+import type { SkyOptions } from "@/lib/reduction-runner/sky-run";
+import { findReducibleFrames } from "@/lib/reductions/reductions";
+import { buildDerivedPrefix, toSafeFileName } from "@/lib/storage/keys";
+import { downloadObjectToFile, putObjectBytes } from "@/lib/storage/objects";
+import { bucketName } from "@/lib/storage/s3";
+import type { JobHandler } from "../registry";
+
+const CONTENT_TYPES: Record<string, string> = {
+  ".fits": "application/fits",
+  ".png": "image/png",
+  ".jpg": "image/jpeg",
+  ".json": "application/json",
+  ".dzi": "application/xml",
+};
+
+async function listFiles(dir: string, prefix = ""): Promise<string[]> {
+  const out: string[] = [];
+  for (const e of await readdir(dir, { withFileTypes: true })) {
+    const rel = prefix ? `${prefix}/${e.name}` : e.name;
+    if (e.isDirectory()) out.push(...(await listFiles(path.join(dir, e.name), rel)));
+    else out.push(rel);
+  }
+  return out;
+}
+
+/**
+ * Runs one reduction: the set's included, ingested light frames are fetched
+ * from S3, reduced by the imaging core, and every output is stored under the
+ * reduction's own prefix. A reduction already done is left alone (a repeated
+ * job changes nothing); a retried one rewrites the same keys, so nothing is
+ * duplicated. Originals are only read.
+ */
+export const runReduction: JobHandler<"reduction.run"> = async ({ db, payload, report }) => {
+  const [red] = await db.select().from(reductions).where(eq(reductions.id, payload.reductionId)).limit(1);
+  if (!red) throw new UnrecoverableError(`reduction ${payload.reductionId} does not exist`);
+  if (red.state === "done") return;
+  const [set] = await db.select().from(bracketSets).where(eq(bracketSets.id, red.bracketSetId)).limit(1);
+  if (!set) throw new UnrecoverableError(`the bracket set of reduction ${red.id} is gone`);
+  const [site] = await db.select().from(sites).where(eq(sites.id, set.siteId)).limit(1);
+  const [kit] = set.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
+  const frameRows = await findReducibleFrames(db, set.id);
+
+  const setProgress = async (stage: string, fraction: number) => {
+    await db.update(reductions).set({ stage, progress: fraction }).where(eq(reductions.id, red.id));
+    await report(stage, fraction);
+  };
+  await db.update(reductions).set({ state: "running", startedAt: sql`now()`, error: null, progress: 0 }).where(eq(reductions.id, red.id));
+
+  const work = await mkdtemp(path.join(os.tmpdir(), "crownlight-reduction-"));
+  try {
+    await setProgress("fetch", 0);
+    await mkdir(path.join(work, "in"));
+    const files: string[] = [];
+    const overrides = new Map<string, number>();
+    const seen = new Set<string>();
+    for (const [i, f] of frameRows.entries()) {
+      // Names must be unique in a bracket; the report names frames by them.
+      let name = toSafeFileName(f.originalFileName);
+      if (seen.has(name)) name = `${f.id.slice(0, 8)}-${name}`;
+      seen.add(name);
+      const local = path.join(work, "in", name);
+      await downloadObjectToFile({ bucket: bucketName("originals"), key: f.originalKey }, local);
+      files.push(local);
+      if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
+      await setProgress("fetch", (i + 1) / frameRows.length);
+    }
+
+    const sky: SkyOptions | undefined = site
+      ? {
+          site: site.kind === "moving" && site.track ? { kind: "track", points: site.track, source: site.trackFileName ?? site.name } : { kind: "fixed", location: { latDeg: site.latDeg, lonDeg: site.lonDeg, elevationM: site.elevationM } },
+          clockOffsetS: set.clockOffsetS,
+          camera: kit ? { mount: kit.mount, flipHorizontal: kit.flipHorizontal, flipVertical: kit.flipVertical } : undefined,
+        }
+      : undefined;
+
+    const outDir = path.join(work, "out");
+    let last = 0;
+    const result = await runReductionOnFiles({
+      files,
+      outDir,
+      params: { filter: red.params.filter, recoverResponse: red.params.recoverResponse },
+      registration: red.params.registration,
+      sky,
+      exposureOverrides: overrides,
+      exposureOverrideSource: "the photographer's corrections",
+      // IIIF ids name where the app serves this reduction's tiles, not the worker's temporary folder.
+      iiifBaseUrl: `${(process.env.APP_URL ?? "").replace(/\/+$/, "")}/iiif/reductions/${red.id}`,
+      onProgress: (stage, fraction) => {
+        // Mirror at most every 2 %, without awaiting inside the pipeline's loop.
+        if (fraction - last >= 0.02 || fraction === 1 || fraction === 0) {
+          last = fraction;
+          void setProgress(stage, fraction).catch(() => undefined);
+        }
+      },
+    });
+
+    await setProgress("store", 0);
+    const prefix = `${buildDerivedPrefix(set.id)}reductions/${red.id}/`;
+    const outputs = await listFiles(outDir);
+    for (const [i, rel] of outputs.entries()) {
+      const type = CONTENT_TYPES[path.extname(rel).toLowerCase()] ?? "application/octet-stream";
+      await putObjectBytes({ bucket: bucketName("derived"), key: prefix + rel }, await readFile(path.join(outDir, rel)), type);
+      if (i % 20 === 0) await setProgress("store", i / outputs.length);
+    }
+    const overall = result.report.overall as Record<string, unknown>;
+    await db
+      .update(reductions)
+      .set({
+        state: "done",
+        stage: "done",
+        progress: 1,
+        finishedAt: sql`now()`,
+        pipelineVersion: result.report.pipelineVersion,
+        outputs: {
+          prefix,
+          master: `${prefix}master.fits`,
+          natural: `${prefix}natural.png`,
+          structure: `${prefix}structure.png`,
+          preview: `${prefix}preview.jpg`,
+          report: `${prefix}report.json`,
+          tiles: `${prefix}tiles/`,
+        },
+        measurements: { ...overall, parameters: result.report.parameters, timingsMs: result.report.timingsMs },
+      })
+      .where(eq(reductions.id, red.id));
+  } catch (err) {
+    // Bad input fails at once with its reason; anything else is retried by the queue.
+    if (err instanceof ReductionInputError || err instanceof ImagingError || err instanceof MediaError) {
+      await db.update(reductions).set({ state: "failed", error: err.message, finishedAt: sql`now()` }).where(eq(reductions.id, red.id));
+      throw new UnrecoverableError(err.message);
+    }
+    await db.update(reductions).set({ state: "queued", error: (err as Error).message }).where(eq(reductions.id, red.id));
+    throw err;
+  } finally {
+    await rm(work, { recursive: true, force: true });
+  }
+};
