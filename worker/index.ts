@@ -2,7 +2,7 @@
 // name to the typed handlers. Payloads are validated again here (a stale or
 // forged payload is refused without retry), state is mirrored to PostgreSQL,
 // and SIGTERM/SIGINT let running jobs finish before the process exits.
-import { UnrecoverableError, Worker, type Job } from "bullmq";
+import { Queue, UnrecoverableError, Worker, type Job } from "bullmq";
 import { closeDb, getDb } from "@/db/client";
 import { requireEnvOrExit } from "@/lib/env";
 import { createRedis } from "@/lib/queue/connection";
@@ -53,6 +53,10 @@ const workers = QUEUES.map((queue) => {
   return w;
 });
 
+// The sweep runs every hour; upsertJobScheduler keeps one schedule however many workers start.
+const sweeper = new Queue("media", { connection, prefix });
+await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { name: "uploads.sweep", data: {} });
+
 console.log(`[worker] listening on queues: ${QUEUES.join(", ")}`);
 
 let stopping = false;
@@ -61,6 +65,7 @@ async function shutdown(signal: string) {
   stopping = true;
   console.log(`[worker] ${signal}: finishing running jobs`);
   await Promise.all(workers.map((w) => w.close()));
+  await sweeper.close();
   connection.disconnect();
   await closeDb();
   process.exit(0);

@@ -5,6 +5,7 @@ import type { JobName, JobPayload } from "@/lib/queue/jobs";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
 import { runReduction } from "./jobs/reduction-run";
+import { sweepUploads } from "./jobs/uploads-sweep";
 
 export interface JobContext<N extends JobName> {
   db: Db;
@@ -20,4 +21,5 @@ export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
   "mail.send": sendMail,
   "frame.ingest": ingestFrame,
   "reduction.run": runReduction,
+  "uploads.sweep": sweepUploads,
 };

@@ -19,6 +19,12 @@ export const JOBS = {
     payload: z.object({ frameId: z.uuid() }),
     attempts: 3,
   },
+  // Hourly: abort multipart uploads abandoned for longer than the limit.
+  "uploads.sweep": {
+    queue: "media",
+    payload: z.object({}),
+    attempts: 1,
+  },
   // One reduction of a bracket set: fetch originals, reduce, store outputs.
   "reduction.run": {
     queue: "reduce",
