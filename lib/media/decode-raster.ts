@@ -38,8 +38,32 @@ export async function decodeRaster(input: Buffer | string, name: string): Promis
 export function deinterleave(samples: ArrayLike<number>, width: number, height: number, channels: number): PlaneImage {
   const count = width * height;
   const planes = Array.from({ length: channels }, () => new Float32Array(count));
-  for (let i = 0; i < count; i++) {
-    for (let c = 0; c < channels; c++) planes[c][i] = samples[i * channels + c];
+  // One monomorphic loop per sample type: a generic ArrayLike read per sample
+  // costs several times sharp's own decode on a 24-megapixel frame.
+  if (channels === 3 && samples instanceof Uint16Array) deinterleaveRgb16(samples, planes[0], planes[1], planes[2], count);
+  else if (channels === 3 && samples instanceof Uint8Array) deinterleaveRgb8(samples, planes[0], planes[1], planes[2], count);
+  else if (channels === 1) planes[0].set(samples);
+  else {
+    for (let c = 0; c < channels; c++) {
+      const plane = planes[c];
+      for (let i = 0, j = c; i < count; i++, j += channels) plane[i] = samples[j];
+    }
   }
   return { width, height, planes };
+}
+
+function deinterleaveRgb16(samples: Uint16Array, r: Float32Array, g: Float32Array, b: Float32Array, count: number): void {
+  for (let i = 0, j = 0; i < count; i++, j += 3) {
+    r[i] = samples[j];
+    g[i] = samples[j + 1];
+    b[i] = samples[j + 2];
+  }
+}
+
+function deinterleaveRgb8(samples: Uint8Array, r: Float32Array, g: Float32Array, b: Float32Array, count: number): void {
+  for (let i = 0, j = 0; i < count; i++, j += 3) {
+    r[i] = samples[j];
+    g[i] = samples[j + 1];
+    b[i] = samples[j + 2];
+  }
 }

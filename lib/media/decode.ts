@@ -8,7 +8,7 @@ import { readFits } from "./fits";
 import { decodeRaster } from "./decode-raster";
 import { decodeCameraRaw } from "./decode-raw";
 import { readExifMetadata, readFitsMetadata, type FrameMetadata } from "./metadata";
-import { RAW_FORMATS, sniffBytes, type MediaFormat } from "./sniff";
+import { RAW_FORMATS, sniffBytes, sniffFile, type MediaFormat } from "./sniff";
 
 export interface DecodedFrame {
   name: string;
@@ -34,9 +34,16 @@ function fitsWhiteLevel(bitpix: number, bzero: number, bscale: number, header: M
   return Number.POSITIVE_INFINITY;
 }
 
+/** Formats sharp and exifr read straight from a file, so that a large frame never sits whole in a buffer. */
+const PATH_DECODED_FORMATS: ReadonlySet<MediaFormat> = new Set(["jpeg", "png", "tiff"]);
+
 export async function decodeFrame(input: Buffer | string, name: string): Promise<DecodedFrame> {
+  // A path is sniffed from its first bytes; a raster is then decoded from the file
+  // itself (reading a 144 MB TIFF into memory first costs more than decoding it).
+  const sniffed = typeof input === "string" ? sniffFile(input, name) : undefined;
+  if (typeof input === "string" && sniffed && PATH_DECODED_FORMATS.has(sniffed)) return decodeRasterFrame(input, name, sniffed);
   const bytes = typeof input === "string" ? await readFile(input) : input;
-  const format = sniffBytes(bytes, name);
+  const format = sniffed ?? sniffBytes(bytes, name);
   if (format === "fits") {
     const fits = await readFits(bytes, name);
     const { width, height, planes } = fits;
@@ -51,10 +58,15 @@ export async function decodeFrame(input: Buffer | string, name: string): Promise
       metadata: readFitsMetadata(fits.header),
     };
   }
+  return decodeRasterFrame(bytes, name, format);
+}
+
+/** JPEG, PNG, TIFF and camera raw: pixels and EXIF, from bytes or from a file. */
+async function decodeRasterFrame(input: Buffer | string, name: string, format: MediaFormat): Promise<DecodedFrame> {
   const isRaw = RAW_FORMATS.has(format);
   const [pixels, metadata] = await Promise.all([
-    isRaw ? decodeCameraRaw(bytes, name) : decodeRaster(bytes, name),
-    readExifMetadata(bytes),
+    isRaw ? decodeCameraRaw(input, name) : decodeRaster(input, name),
+    readExifMetadata(input),
   ]);
   const is8 = pixels.bitDepth === 8;
   return {
