@@ -76,6 +76,8 @@ export interface MergeAccumulator {
   frameWellExposed: number[];
   /** debevec-hat: maps a linear value back to its 8-bit code. */
   codeOf?: (linear: number) => number;
+  /** Per-frame mask of contributing pixels, reused by every frame (fresh pages are costly to fault in). */
+  useScratch?: Uint8Array;
 }
 
 export function createMergeAccumulator(
@@ -110,7 +112,7 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
   let contributing = 0;
   let well = 0;
   // Pass 1: masks, coverage and the clipped fallback (shared by every plane).
-  const use = new Uint8Array(n);
+  const use = acc.useScratch?.length === n ? acc.useScratch.fill(0) : (acc.useScratch = new Uint8Array(n));
   for (let i = 0; i < n; i++) {
     if (covered && !covered[i]) continue;
     if (clipped[i]) {
