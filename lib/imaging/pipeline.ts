@@ -205,6 +205,16 @@ export function measureDynamicRangeStops(lum: Float32Array, width: number, heigh
  * finite exposure, and a frame whose limb cannot be found.
  */
 export function reduceBracket(frames: LinearFrame[], params: ReductionParams, onProgress?: ProgressFn): ReductionResult {
+  return reducePreparedBracket(frames, [], params, onProgress);
+}
+
+/**
+ * reduceBracket for a caller that has already run prepareFrame on some frames
+ * (e.g. in worker threads): `prepared[i]`, when present, must be
+ * prepareFrame(frames[i], params) with the sRGB decode table for 8-bit frames;
+ * missing entries are prepared here. The result is the same as reduceBracket's.
+ */
+export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, onProgress?: ProgressFn): ReductionResult {
   const timingsMs: Record<string, number> = {};
   let clock = performance.now();
   const lap = (stage: string) => {
@@ -224,16 +234,16 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   // 8-bit frames are linearized with the sRGB curve for limb fits and registration; a
   // recovered response, when asked for, replaces it for the merge (see below).
   let responseTable = isEncoded ? createSrgbDecodeTable() : undefined;
-  const prepared: PreparedFrame[] = [];
+  const ready: PreparedFrame[] = [];
   frames.forEach((f, i) => {
-    prepared.push(prepareFrame(f, params, responseTable));
+    ready.push(prepared[i] ?? prepareFrame(f, params, responseTable));
     progress("limb", (i + 1) / frames.length);
   });
   lap("linearize-and-limb");
 
   progress("register", 0);
   const offsets = params.moonMinusSunPx;
-  const regFrames: RegistrationFrame[] = prepared.map((p) => ({
+  const regFrames: RegistrationFrame[] = ready.map((p) => ({
     name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
     noiseSigma: p.linear.noiseSigma, limb: { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx }, moonMinusSunPx: offsets?.[p.linear.name],
   }));
@@ -242,7 +252,7 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   // the Moon path rather than limb fits that clipping has biased.
   const registration = registerFrames(regFrames, { mode: "corona" });
   const ref = registration.referenceIndex;
-  let track = estimateMoonTrack(prepared.map((p, i) => ({
+  let track = estimateMoonTrack(ready.map((p, i) => ({
     limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
   })));
   if (params.registration === "moon") {
@@ -270,7 +280,7 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   if (isEncoded && params.recoverResponse) {
     progress("response", 0);
     responseTable = recoverBracketResponse(frames, registration.frames.map((r) => r.masterToFrame), referenceMoon);
-    prepared.forEach((p, i) => {
+    ready.forEach((p, i) => {
       p.linear = linearizeFrame(frames[i], params.clipFraction, { responseTable });
     });
     lap("response");
@@ -278,9 +288,9 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
   // One set of warp buffers serves every frame in turn.
   const scratch: WarpTarget = { planes: frames[0].image.planes.map(() => new Float32Array(width * height)), covered: new Uint8Array(width * height) };
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
-  prepared.forEach((p, i) => {
+  ready.forEach((p, i) => {
     addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon, scratch));
-    progress("merge", (i + 1) / prepared.length);
+    progress("merge", (i + 1) / ready.length);
   });
   const merged: MergeResult = finishMerge(acc);
   const master: PlaneImage = { width, height, planes: merged.radiance };
@@ -308,7 +318,7 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
     poorlyExposedCount: merged.poorlyExposedCount,
     natural: natural.image,
     structure,
-    frames: prepared.map((p, i) => ({
+    frames: ready.map((p, i) => ({
       name: p.linear.name, width, height, exposureS: p.linear.exposureS, limb: p.limb,
       transform: fromAffine(registration.frames[i].masterToFrame, width, height),
       registrationPeak: registration.frames[i].peak,

@@ -1,11 +1,13 @@
 // Files -> LinearFrames with their provenance: each file decoded by lib/media
 // (format sniffed from content), the exposure taken from the photographer's
 // override or from the file, never guessed. Every refusal names the file.
-import { readFile } from "node:fs/promises";
+import { stat } from "node:fs/promises";
 import { basename } from "node:path";
 import { decodeFrame, type DecodedFrame, type MediaFormat } from "@/lib/media";
-import type { LinearFrame } from "@/lib/imaging/types";
+import type { PreparedFrame } from "@/lib/imaging/pipeline";
+import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
+import type { PooledFrame, PreparePool } from "./prepare-pool";
 
 /** Frames decoded side by side: sharp already uses two threads per image, so more only adds memory. */
 const DECODES_IN_FLIGHT = 2;
@@ -30,6 +32,14 @@ export interface FrameProvenance {
 export interface DecodedBracket {
   frames: LinearFrame[];
   provenance: FrameProvenance[];
+  /** prepareFrame(frames[i], params) when a pool did it with the exposure the frame now has. */
+  prepared: (PreparedFrame | undefined)[];
+}
+
+/** Decode (and prepare) in these worker threads instead of on the calling thread. */
+export interface PrepareInPool {
+  pool: PreparePool;
+  params: ReductionParams;
 }
 
 /** Refuses a list the reduction cannot start from: fewer than two frames, or two files of one name. */
@@ -46,9 +56,10 @@ export function checkFileList(files: string[]): void {
   }
 }
 
-async function readFrameFile(path: string, name: string): Promise<Buffer> {
+/** Refuses a path that is missing or a folder; the decoder then reads the file itself. */
+async function checkFrameFile(path: string, name: string): Promise<void> {
   try {
-    return await readFile(path);
+    if ((await stat(path)).isDirectory()) throw Object.assign(new Error(`${path} is a folder`), { code: "EISDIR" });
   } catch (error) {
     const code = (error as NodeJS.ErrnoException).code;
     const why = code === "ENOENT" ? "no such file" : code === "EISDIR" ? "it is a folder" : code === "EACCES" ? "permission denied" : String(code ?? error);
@@ -83,19 +94,24 @@ export async function decodeBracketFiles(
   files: string[],
   exposureOverrides: Map<string, number> = new Map(),
   onProgress?: (fraction: number) => void,
+  inPool?: PrepareInPool,
 ): Promise<DecodedBracket> {
   checkFileList(files);
   for (const [name, exposureS] of exposureOverrides) {
     if (!(Number.isFinite(exposureS) && exposureS > 0)) throw new ReductionInputError("bad-exposure", `${name}: the exposure given, ${exposureS} s, is not a positive number of seconds`);
   }
   const decoded: DecodedFrame[] = new Array(files.length);
+  const pooled: (PooledFrame | undefined)[] = new Array(files.length);
   let next = 0;
   let done = 0;
   const lanes = Array.from({ length: Math.min(DECODES_IN_FLIGHT, files.length) }, async () => {
     while (next < files.length) {
       const k = next++;
       const name = basename(files[k]);
-      decoded[k] = await decodeFrame(await readFrameFile(files[k], name), name);
+      await checkFrameFile(files[k], name);
+      pooled[k] = await inPool?.pool.run(files[k], name, inPool.params, exposureOverrides.get(name));
+      // Without a pool, or when a worker failed, the frame is decoded here (and a fault thrown as usual).
+      decoded[k] = pooled[k]?.decoded ?? (await decodeFrame(files[k], name));
       onProgress?.(++done / files.length);
     }
   });
@@ -142,5 +158,6 @@ export async function decodeBracketFiles(
     encoding: d.encoding,
     captureTimeMs: d.metadata.captureTimeMs,
   }));
-  return { frames, provenance };
+  const prepared = pooled.map((p, k) => (p?.prepared && p.preparedExposureS === frames[k].exposureS ? p.prepared : undefined));
+  return { frames, provenance, prepared };
 }

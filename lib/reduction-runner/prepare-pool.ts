@@ -1,0 +1,98 @@
+// Two worker threads that decode frames and run the per-frame stage of the
+// pipeline (linearize, masks, limb fit) side by side, so both cores work while
+// the main thread only waits. Planes come back by transfer. A worker that cannot
+// start or a frame that fails gives `undefined`, and the caller does that frame
+// on its own thread: the pool only ever makes a reduction faster, never different.
+import { readFileSync } from "node:fs";
+import { createRequire } from "node:module";
+import { dirname, join } from "node:path";
+import { pathToFileURL } from "node:url";
+import { Worker } from "node:worker_threads";
+import type { DecodedFrame } from "@/lib/media";
+import type { PreparedFrame } from "@/lib/imaging/pipeline";
+import type { ReductionParams } from "@/lib/imaging/types";
+import type { PrepareReply, PrepareRequest } from "./prepare-messages";
+
+/** Workers in the pool: the machines have two cores. */
+export const PREPARE_WORKERS = 2;
+
+export interface PooledFrame {
+  decoded: DecodedFrame;
+  prepared?: PreparedFrame;
+  /** The exposure the frame was prepared with. */
+  preparedExposureS?: number;
+}
+
+export interface PreparePool {
+  /** Resolves to undefined when the worker could not do the frame. */
+  run(path: string, name: string, params: ReductionParams, exposureOverrideS?: number): Promise<PooledFrame | undefined>;
+  close(): Promise<void>;
+}
+
+/**
+ * The worker is TypeScript, and Node 20 does not apply a loader given with
+ * --import to a worker's own entry file: a small script registers tsx's loader
+ * first and then imports the worker module through it.
+ */
+function workerBootScript(): string {
+  // The ESM entry of "tsx/esm/api", found through the package's own export map.
+  const packagePath = createRequire(import.meta.url).resolve("tsx/package.json");
+  const { exports } = JSON.parse(readFileSync(packagePath, "utf8")) as { exports: Record<string, { import: { default: string } }> };
+  const tsxApi = pathToFileURL(join(dirname(packagePath), exports["./esm/api"].import.default)).href;
+  const entry = new URL("./prepare-worker.ts", import.meta.url).href;
+  return `import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(entry)}); });`;
+}
+
+/** This process's flags without tsx's own loader, which the boot script registers. */
+function workerExecArgv(): string[] {
+  const flags: string[] = [];
+  for (let k = 0; k < process.execArgv.length; k++) {
+    const flag = process.execArgv[k];
+    if ((flag === "--import" || flag === "--require") && /[\\/]tsx[\\/]/.test(process.execArgv[k + 1] ?? "")) k++;
+    else flags.push(flag);
+  }
+  return flags;
+}
+
+interface Lane {
+  worker: Worker;
+  pending: Map<number, (reply: PrepareReply | undefined) => void>;
+  isDead: boolean;
+}
+
+function startLane(): Lane {
+  const worker = new Worker(workerBootScript(), { eval: true, execArgv: workerExecArgv() });
+  const lane: Lane = { worker, pending: new Map(), isDead: false };
+  const failAll = () => {
+    lane.isDead = true;
+    for (const resolve of lane.pending.values()) resolve(undefined);
+    lane.pending.clear();
+  };
+  worker.on("message", (reply: PrepareReply) => {
+    lane.pending.get(reply.id)?.(reply);
+    lane.pending.delete(reply.id);
+  });
+  worker.on("error", failAll);
+  worker.on("exit", failAll);
+  return lane;
+}
+
+export function createPreparePool(size = PREPARE_WORKERS): PreparePool {
+  const lanes = Array.from({ length: size }, startLane);
+  let nextId = 0;
+  return {
+    run(path, name, params, exposureOverrideS) {
+      const alive = lanes.filter((l) => !l.isDead);
+      if (alive.length === 0) return Promise.resolve(undefined);
+      const lane = alive.reduce((best, l) => (l.pending.size < best.pending.size ? l : best));
+      const id = nextId++;
+      return new Promise<PooledFrame | undefined>((resolve) => {
+        lane.pending.set(id, (reply) => resolve(reply?.ok ? { decoded: reply.decoded, prepared: reply.prepared, preparedExposureS: reply.preparedExposureS } : undefined));
+        lane.worker.postMessage({ id, path, name, exposureOverrideS, params } satisfies PrepareRequest);
+      });
+    },
+    async close() {
+      await Promise.all(lanes.map((l) => l.worker.terminate()));
+    },
+  };
+}
