@@ -5,13 +5,14 @@
 // a failed run leaves nothing behind and never touches an earlier reduction.
 import { writeFile } from "node:fs/promises";
 import { join } from "node:path";
-import { reduceBracket } from "@/lib/imaging/pipeline";
+import { reducePreparedBracket } from "@/lib/imaging/pipeline";
 import { DEFAULT_REDUCTION_PARAMS, type ReductionParams } from "@/lib/imaging/types";
 import { checkFileList, decodeBracketFiles } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
+import { createPreparePool } from "./prepare-pool";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
 import { buildReport, type ReductionReport } from "./report";
-import { pickRendition, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles } from "./write-outputs";
+import { createHalvingCache, pickRendition, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles, type RenditionName } from "./write-outputs";
 import { applyClockOffsetToBracket, checkSkyOptions, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "./sky-run";
 import type { TilePyramidResult } from "./tiles";
 
@@ -63,15 +64,25 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   const output = await createStagedOutput(options.outDir);
   try {
     progress("decode", 0);
-    const { frames, provenance } = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f));
+    // Frames are decoded, linearized and limb-fitted in two worker threads; the
+    // pipeline takes those results as its own first stage would have made them.
+    const pool = createPreparePool();
+    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), { pool, params }).finally(() => pool.close());
+    const { frames, provenance } = decodedBracket;
     applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
+    decodedBracket.prepared.forEach((p, i) => {
+      if (p) p.linear.captureTimeMs = frames[i].captureTimeMs;
+    });
     lap("decode");
 
     progress("sky", 0);
     const sky = resolveSkyGeometry(frames, params, registrationMode, options.sky);
     if (sky.sun) lap("sky-geometry");
 
-    const result = reduceBracket(frames, sky.pipelineParams, progress);
+    // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
+    const prepared = sky.pipelineParams.clipFraction === params.clipFraction ? decodedBracket.prepared : [];
+    const result = reducePreparedBracket(frames, prepared, sky.pipelineParams, progress);
+    decodedBracket.prepared.length = 0;
     const helio = sky.completeGeometry(result);
     // The pipeline's own stage times, then the total it took (which includes validation).
     for (const [stage, ms] of Object.entries(result.overall.timingsMs)) timingsMs[stage] = ms;
@@ -92,18 +103,29 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     });
     lap("write-master");
 
+    // PNGs, preview and both tile pyramids are written side by side: sharp encodes on
+    // its own threads while this thread quantizes and halves the next piece, and the
+    // preview and the tiles share their linear-light halvings. The two stage times
+    // overlap: each runs from the start of this phase to the end of its own writes.
     progress("write-renditions", 0);
-    for (const name of RENDITIONS) await writeRenditionPng(dir, name, pickRendition(result, name));
-    await writePreview(dir, result.natural);
-    lap("write-renditions");
-
+    const halve = createHalvingCache();
+    const writesStarted = performance.now();
+    const renditionsWritten = (async () => {
+      await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, pickRendition(result, name))));
+      await writePreview(dir, result.natural, halve);
+      timingsMs["write-renditions"] = performance.now() - writesStarted;
+    })();
     const tiles: Record<string, TilePyramidResult> = {};
-    for (const [k, name] of RENDITIONS.entries()) {
-      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, pickRendition(result, name), options.iiifBaseUrl, (done, total) =>
-        progress("tiles", (k + done / total) / RENDITIONS.length),
-      );
-    }
-    lap("tiles");
+    const levelsDone = new Map<RenditionName, number>();
+    const tilesWritten = Promise.all(RENDITIONS.map(async (name) => {
+      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, pickRendition(result, name), options.iiifBaseUrl, (done, total) => {
+        levelsDone.set(name, done / total);
+        progress("tiles", [...levelsDone.values()].reduce((sum, f) => sum + f, 0) / RENDITIONS.length);
+      }, halve);
+    })).then(() => {
+      timingsMs.tiles = performance.now() - writesStarted;
+    });
+    await Promise.all([renditionsWritten, tilesWritten]);
 
     timingsMs.total = performance.now() - started;
     const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs,

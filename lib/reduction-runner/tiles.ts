@@ -32,6 +32,8 @@ export interface TilePyramidOptions {
   /** Dither seed; each level adds its index so levels do not share one noise pattern. */
   seed?: number;
   onLevel?: (done: number, total: number) => void;
+  /** Halves a level in linear light; halveImageLinear unless a caller shares its halvings. */
+  halve?: (image: PlaneImage) => PlaneImage;
 }
 
 export interface TilePyramidResult {
@@ -113,7 +115,7 @@ export async function writeTilePyramids(image: PlaneImage, options: TilePyramidO
     }
     await runLimited(jobs, TILES_IN_FLIGHT);
     options.onLevel?.(k + 1, dzi.maxLevel + 1);
-    if (k < dzi.maxLevel) level = halveImageLinear(level);
+    if (k < dzi.maxLevel) level = (options.halve ?? halveImageLinear)(level);
   }
 
   const dziPath = `${options.dziBase}.dzi`;

@@ -15,6 +15,25 @@ import { writeTilePyramids, type TilePyramidResult } from "./tiles";
 export const RENDITIONS = ["natural", "structure"] as const;
 export type RenditionName = (typeof RENDITIONS)[number];
 
+export type HalveFn = (image: PlaneImage) => PlaneImage;
+
+/**
+ * halveImageLinear remembered per image, so the preview and the tile pyramid of
+ * one rendition compute each shared level once. Levels live as long as the image
+ * they were halved from.
+ */
+export function createHalvingCache(): HalveFn {
+  const halved = new WeakMap<PlaneImage, PlaneImage>();
+  return (image) => {
+    let level = halved.get(image);
+    if (!level) {
+      level = halveImageLinear(image);
+      halved.set(image, level);
+    }
+    return level;
+  };
+}
+
 /** Each plane quantized on its own (quantizers interleave; one plane interleaves to itself). */
 function splitQuantized<T extends Uint8Array | Uint16Array>(image: PlaneImage, quantize: (one: PlaneImage, k: number) => T): T[] {
   return image.planes.map((plane, k) => quantize({ width: image.width, height: image.height, planes: [plane] }, k));
@@ -39,9 +58,9 @@ export async function writeRenditionPng(dir: string, name: RenditionName, image:
  * are) while more than twice the preview size, so sharp's final resize in
  * encoded values spans less than a factor of two.
  */
-export async function writePreview(dir: string, image: PlaneImage): Promise<string> {
+export async function writePreview(dir: string, image: PlaneImage, halve: HalveFn = halveImageLinear): Promise<string> {
   let level = image;
-  while (Math.max(level.width, level.height) > 2 * PREVIEW_MAX_SIDE_PX) level = halveImageLinear(level);
+  while (Math.max(level.width, level.height) > 2 * PREVIEW_MAX_SIDE_PX) level = halve(level);
   const planes = splitQuantized(level, (one, k) => quantizeToUint8(one, 101 + k));
   const path = join(dir, "preview.jpg");
   await writeFile(path, await encodePreview({ width: level.width, height: level.height, planes }));
@@ -53,7 +72,9 @@ export async function writePreview(dir: string, image: PlaneImage): Promise<stri
  * `<name>_files/`, and the IIIF service `<name>-iiif/`. The IIIF id is
  * `<iiifBaseUrl>/<name>-iiif`; without a base URL it is the file URL of the final folder.
  */
-export async function writeRenditionTiles(dir: string, finalDir: string, name: RenditionName, image: PlaneImage, iiifBaseUrl?: string, onLevel?: (done: number, total: number) => void): Promise<TilePyramidResult> {
+export async function writeRenditionTiles(
+  dir: string, finalDir: string, name: RenditionName, image: PlaneImage, iiifBaseUrl?: string, onLevel?: (done: number, total: number) => void, halve?: HalveFn,
+): Promise<TilePyramidResult> {
   const tilesDir = join(dir, "tiles");
   const base = iiifBaseUrl ? iiifBaseUrl.replace(/\/+$/, "") : pathToFileURL(join(finalDir, "tiles")).href;
   return writeTilePyramids(image, {
@@ -62,6 +83,7 @@ export async function writeRenditionTiles(dir: string, finalDir: string, name: R
     iiifId: `${base}/${name}-iiif`,
     seed: name === "natural" ? 1 : 2,
     onLevel,
+    halve,
   });
 }
 
