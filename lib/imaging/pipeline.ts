@@ -20,6 +20,8 @@ export const PIPELINE_VERSION = "crownlight-imaging 0.1.0";
 
 /** Master pixels this close to a lunar limb take light only from frames that agree on Moon or corona there. */
 const LIMB_MARGIN_PX = 3;
+/** Stands in for a plane the pipeline no longer needs. */
+const RELEASED_PLANE = new Float32Array(0);
 
 export interface FrameReport {
   name: string;
@@ -213,6 +215,7 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
  * (e.g. in worker threads): `prepared[i]`, when present, must be
  * prepareFrame(frames[i], params) with the sRGB decode table for 8-bit frames;
  * missing entries are prepared here. The result is the same as reduceBracket's.
+ * Each prepared frame's luminance is released once registration is done.
  */
 export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, onProgress?: ProgressFn): ReductionResult {
   const timingsMs: Record<string, number> = {};
@@ -275,6 +278,13 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     };
   }
   lap("register");
+  // Luminance served the limb fits and registration only: letting each frame's copy
+  // go here keeps a bracket's worth of it from sitting beside the merge buffers.
+  regFrames.length = 0;
+  for (const p of ready) {
+    p.luminance = RELEASED_PLANE;
+    p.linear.luminance = RELEASED_PLANE;
+  }
 
   const referenceMoon: LunarDisk = track.disks[ref];
   if (isEncoded && params.recoverResponse) {
