@@ -163,10 +163,14 @@ export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width
   return num;
 }
 
-/** Dilates a 0/1 mask by a square of half-size radiusPx (separable; rows, then columns row by row for sequential memory access). */
-export function dilateMask(mask: Uint8Array, width: number, height: number, radiusPx: number): Uint8Array {
+/**
+ * Dilates a 0/1 mask by a square of half-size radiusPx (separable; rows, then columns row by row for sequential memory access).
+ * `scratch` (two arrays of the mask's length, e.g. kept between frames) saves fresh allocations; the result is then scratch[1].
+ */
+export function dilateMask(mask: Uint8Array, width: number, height: number, radiusPx: number, scratch?: [Uint8Array, Uint8Array]): Uint8Array {
   if (radiusPx <= 0) return Uint8Array.from(mask);
-  const tmp = new Uint8Array(mask.length);
+  const reuse = scratch !== undefined && scratch[0].length === mask.length && scratch[1].length === mask.length;
+  const tmp = reuse ? scratch[0].fill(0) : new Uint8Array(mask.length);
   for (let y = 0; y < height; y++) {
     const o = y * width;
     let lastSet = -Infinity;
@@ -181,7 +185,7 @@ export function dilateMask(mask: Uint8Array, width: number, height: number, radi
       if (nextSet - x <= radiusPx) tmp[o + x] = 1;
     }
   }
-  const out = new Uint8Array(mask.length);
+  const out = reuse ? scratch[1].fill(0) : new Uint8Array(mask.length);
   const last = new Float64Array(width).fill(-Infinity);
   for (let y = 0; y < height; y++) {
     const o = y * width;

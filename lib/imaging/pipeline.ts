@@ -166,8 +166,11 @@ export function warpFrameForMerge(
     planes = warped.planes;
     covered = warped.covered;
     // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
-    clipped = warpMask(dilateMask(linear.clipped, width, height, 1), width, height, masterToFrame, window, 1);
-    noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1);
+    // With scratch, the four mask buffers are reused frame after frame (the merge reads them before the next warp).
+    const masks = scratch?.masks?.length === 4 ? scratch.masks : undefined;
+    const dilated = dilateMask(linear.clipped, width, height, 1, masks ? [masks[0], masks[1]] : undefined);
+    clipped = warpMask(dilated, width, height, masterToFrame, window, 1, masks?.[2]);
+    noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1, masks?.[3]);
   }
   if (isLinear) {
     const black = frame.blackLevel;
@@ -296,7 +299,11 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     lap("response");
   }
   // One set of warp buffers serves every frame in turn.
-  const scratch: WarpTarget = { planes: frames[0].image.planes.map(() => new Float32Array(width * height)), covered: new Uint8Array(width * height) };
+  const scratch: WarpTarget = {
+    planes: frames[0].image.planes.map(() => new Float32Array(width * height)),
+    covered: new Uint8Array(width * height),
+    masks: Array.from({ length: 4 }, () => new Uint8Array(width * height)),
+  };
   const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
   ready.forEach((p, i) => {
     addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon, scratch));

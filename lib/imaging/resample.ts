@@ -35,6 +35,8 @@ function computeKeysWeights(t: number, out: Float64Array, offset: number): void 
 export interface WarpTarget {
   planes: Float32Array[];
   covered: Uint8Array;
+  /** Optional mask buffers of the output's size for callers that also warp masks (see warpFrameForMerge). */
+  masks?: Uint8Array[];
 }
 
 /**
@@ -168,12 +170,14 @@ export function warpMask(
   masterToFrame: AffineSimilarity,
   window: WarpWindow,
   outside = 0,
+  into?: Uint8Array,
 ): Uint8Array {
   const { width, height } = window;
   const ox = window.originX ?? 0;
   const oy = window.originY ?? 0;
   const step = window.step ?? 1;
-  const out = new Uint8Array(width * height);
+  // Every output pixel is written below, so a reused buffer needs no clearing.
+  const out = into?.length === width * height ? into : new Uint8Array(width * height);
   const { a, b, tx, ty } = masterToFrame;
   for (let v = 0; v < height; v++) {
     const my = oy + v * step;
