@@ -3,24 +3,17 @@
 // black and white levels, ColorMatrix1, AsShotNeutral) and an Exif IFD with the
 // capture settings. Used for test fixtures and synthetic brackets.
 import { MediaError } from "./errors";
+import type { CaptureExif } from "./exif-write";
 import { encodeTiff, TIFF_TYPE, toRational, toSignedRational, type TiffEntry } from "./tiff-write";
 
-export interface DngSpec {
+/** The capture settings are the same ones a JPEG's EXIF carries (exif-write.ts). */
+export interface DngSpec extends CaptureExif {
   width: number;
   height: number;
   /** Row-major sensor values (data numbers), RGGB: R at even row and even column. */
   mosaic: Uint16Array;
   blackLevel: number;
   whiteLevel: number;
-  exposureS: number;
-  fNumber?: number;
-  iso?: number;
-  /** EXIF strings: "YYYY:MM:DD HH:MM:SS", digits of the second, "+HH:MM". */
-  dateTimeOriginal?: string;
-  subSecTimeOriginal?: string;
-  offsetTimeOriginal?: string;
-  make: string;
-  model: string;
   /** Camera neutral for the light at capture (DNG tag 50728); [1, 1, 1] when camera RGB is already balanced. */
   asShotNeutral?: [number, number, number];
   /** XYZ (D65) to camera RGB, row-major 3x3 (DNG tag 50721). Default: the inverse of the sRGB primaries. */
