@@ -30,7 +30,13 @@ export function serverAction<S extends z.ZodType>(
     } catch (err) {
       // redirect() and notFound() work by throwing; let Next.js handle them.
       unstable_rethrow(err);
-      if (err instanceof AppError) return { ok: false, message: err.message, fields: err.fields, values };
+      if (err instanceof AppError) {
+        // Field problems are shown beside their fields, under the labels people read;
+        // the summary only says how many there are.
+        const n = err.fields.length;
+        const message = n > 0 ? `Please correct ${n === 1 ? "the marked field" : `the ${n} marked fields`}.` : err.message;
+        return { ok: false, message, fields: err.fields, values };
+      }
       const { body } = toErrorBody(err);
       return { ok: false, message: body.error.message, values };
     }

@@ -37,7 +37,7 @@ export function EclipseEditRow({
         Save<span className="sr-only"> {id}</span>
       </Button>
       <span role="status" className={state?.ok === false ? "text-danger" : "text-ok"}>
-        {state?.message ?? ""}
+        {state?.fields?.length ? state.fields.map((f) => f.message).join("; ") : (state?.message ?? "")}
       </span>
     </form>
   );

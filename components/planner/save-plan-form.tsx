@@ -18,7 +18,11 @@ export function SavePlanForm({ action, hidden, defaultName }: { action: FormActi
         <Input name="name" defaultValue={defaultName} maxLength={80} required />
       </Field>
       <SubmitButton variant="secondary">Save this plan</SubmitButton>
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      {state ? (
+        <FormMessage tone={state.ok ? "ok" : "danger"}>
+          {state.fields?.length ? state.fields.map((f) => `${f.field === "name" ? "Plan name" : f.field}: ${f.message}`).join("; ") : state.message}
+        </FormMessage>
+      ) : null}
     </form>
   );
 }

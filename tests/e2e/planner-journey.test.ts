@@ -61,7 +61,8 @@ describe("field planner", () => {
     await page.getByLabel("f-number").fill("7");
     await page.getByRole("button", { name: "Save kit" }).click();
     // A zero focal length is refused with the field named; nothing is saved.
-    await page.getByText(/focalMm: must be greater than 0/).first().waitFor({ timeout: 15_000 });
+    await page.getByText("Please correct the marked field.").waitFor({ timeout: 15_000 });
+    await page.getByText(/must be greater than 0 \(mm\)/).first().waitFor({ timeout: 15_000 });
     await page.getByLabel("Focal length (mm)").fill("540");
     await page.getByRole("button", { name: "Save kit" }).click();
     await page.getByRole("heading", { name: "What this kit records" }).waitFor({ timeout: 15_000 });
