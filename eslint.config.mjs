@@ -17,7 +17,7 @@ const config = [
     },
   },
   {
-    ignores: [".next/**", ".next-test/**", "node_modules/**", ".data/**", ".cache/**", ".artifacts/**", "next-env.d.ts", "db/migrations/**"],
+    ignores: [".next/**", ".next-test/**", ".next-test_lane*/**", "node_modules/**", ".data/**", ".cache/**", ".artifacts/**", "next-env.d.ts", "db/migrations/**"],
   },
 ];
 

@@ -5,6 +5,9 @@
 # 127.0.0.1:3100 with a worker, and runs the unit, integration and end-to-end
 # layers. Ends with the plain line "N passed, N failed".
 #   scripts/test.sh [vitest filters...]
+# TEST_LANE=1..9 runs a second suite beside the first (its own database, Redis
+# database, queue prefix, port and build folder), for parallel work on one machine.
+# TEST_QUICK=1 skips lint and the type check.
 . "$(dirname "$0")/lib/common.sh"
 . "$(dirname "$0")/lib/app.sh"
 
@@ -17,11 +20,18 @@ case "$status" in *"redis: running"*) services_were_up=true ;; esac
 bash "$ROOT/scripts/services.sh" start
 
 # The test world: its own database, Redis database, queue prefix, buckets, port.
+lane="${TEST_LANE:-0}"
+case "$lane" in [0-9]) ;; *) die "TEST_LANE must be a digit 0-9, not '$lane'" ;; esac
+suffix=""; [ "$lane" = 0 ] || suffix="_lane$lane"
+export TEST_DATABASE_URL="${TEST_DATABASE_URL}${suffix}"
 export DATABASE_URL="$TEST_DATABASE_URL"
-export REDIS_URL="redis://127.0.0.1:$REDIS_PORT/1"
-export QUEUE_PREFIX="crownlight-test"
+export REDIS_DB=$((1 + lane))
+export REDIS_URL="redis://127.0.0.1:$REDIS_PORT/$REDIS_DB"
+export QUEUE_PREFIX="crownlight-test${suffix}"
 export S3_BUCKET_ORIGINALS="crownlight-test-originals" S3_BUCKET_DERIVED="crownlight-test-derived" S3_BUCKET_EXPORTS="crownlight-test-exports"
-export APP_PORT=3100 APP_URL="http://127.0.0.1:3100" BETTER_AUTH_URL="http://127.0.0.1:3100"
+app_port=$((3100 + lane))
+export APP_PORT=$app_port APP_URL="http://127.0.0.1:$app_port" BETTER_AUTH_URL="http://127.0.0.1:$app_port"
+dist=".next-test${suffix}"; web="test-web${suffix}"; worker="test-worker${suffix}"
 export ARTIFACTS="$ROOT/.artifacts"
 mkdir -p "$ARTIFACTS"
 
@@ -36,29 +46,35 @@ check() {
 }
 
 cleanup() {
-  stop_named test-web
-  stop_named test-worker
-  if [ "$services_were_up" = false ]; then bash "$ROOT/scripts/services.sh" stop; fi
+  stop_named "$web"
+  stop_named "$worker"
+  if [ "$services_were_up" = false ] && [ "$lane" = 0 ]; then bash "$ROOT/scripts/services.sh" stop; fi
 }
 trap cleanup EXIT
 
 # A clean database and Redis for every run.
 psql_test() { "$(pg_bin)/psql" "$TEST_DATABASE_URL" -v ON_ERROR_STOP=1 -q "$@"; }
+if [ "$lane" != 0 ]; then
+  "$(pg_bin)/psql" "${TEST_DATABASE_URL%/*}/postgres" -tAc "select 1 from pg_database where datname='${TEST_DATABASE_URL##*/}'" | grep -q 1 \
+    || "$(pg_bin)/psql" "${TEST_DATABASE_URL%/*}/postgres" -qc "create database ${TEST_DATABASE_URL##*/}" >/dev/null
+fi
 psql_test -c "set client_min_messages = warning; drop schema if exists public cascade; drop schema if exists drizzle cascade; create schema public;" >/dev/null
-redis-cli -p "$REDIS_PORT" -n 1 flushdb >/dev/null
+redis-cli -p "$REDIS_PORT" -n "$REDIS_DB" flushdb >/dev/null
 (cd "$ROOT" && node --import tsx db/migrate.ts) >/dev/null || die "migrating the test database failed"
 (cd "$ROOT" && node --import tsx db/seed/index.ts) >/dev/null || die "seeding the test database failed"
 
-check lint bash -c "cd '$ROOT' && node node_modules/eslint/bin/eslint.js --max-warnings 0 ."
-check typecheck bash -c "cd '$ROOT' && node node_modules/typescript/bin/tsc --noEmit"
+if [ "${TEST_QUICK:-0}" != 1 ]; then
+check "lint${suffix}" bash -c "cd '$ROOT' && node node_modules/eslint/bin/eslint.js --max-warnings 0 ."
+check "typecheck${suffix}" bash -c "cd '$ROOT' && node node_modules/typescript/bin/tsc --noEmit"
+fi
 
-stop_named test-web
-stop_named test-worker
-build_app .next-test
-start_worker test-worker
-start_app test-web 3100 .next-test
+stop_named "$web"
+stop_named "$worker"
+build_app "$dist"
+start_worker "$worker"
+start_app "$web" "$app_port" "$dist"
 
-report="$LOGS/vitest.json"
+report="$LOGS/vitest${suffix}.json"
 rm -f "$report"
 (cd "$ROOT" && node node_modules/vitest/vitest.mjs run --reporter=default --reporter=json --outputFile="$report" "$@") || true
 if [ -f "$report" ]; then
