@@ -50,6 +50,13 @@ export interface FrameFlags {
   isTimeZoneAssumed?: boolean;
   /** Set on a refused duplicate: the frame that holds the same bytes. */
   duplicateOfFrameId?: string;
+  /** 64 pixel counts of the luminance, bins of equal width from 0 to the white level. */
+  histogram?: number[];
+  /** Sharpness of the frame (higher is sharper); isBlurred when below the set's usual. */
+  sharpness?: number;
+  isBlurred?: boolean;
+  /** The limb fitted at ingest, in the original's pixels (x right, y down). */
+  limb?: { cx: number; cy: number; radiusPx: number; rmsPx: number; quality: "good" | "doubtful" | "failed" };
 }
 
 export const frames = pgTable(

@@ -11,12 +11,9 @@ import { findVisibleSet } from "@/lib/bracket-sets/access";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
 
-export const reductionParamsSchema = z.object({
-  registration: z.enum(["sun", "moon", "corona"], { error: "expected sun, moon or corona" }).default("sun"),
-  filter: z.enum(["mgn", "nrgf"], { error: "expected mgn or nrgf" }).default("mgn"),
-  recoverResponse: z.boolean({ error: "expected true or false" }).default(false),
-});
-export type ReductionParamsInput = z.infer<typeof reductionParamsSchema>;
+export { reductionParamsSchema, type ReductionParamsInput, type ReductionParamsRequest } from "./schemas";
+import { reductionParamsSchema, type ReductionParamsRequest } from "./schemas";
+import { parseInput } from "@/lib/validation";
 
 export interface ReductionDto {
   id: string;
@@ -54,7 +51,8 @@ export async function findReducibleFrames(db: DbOrTx, setId: string) {
     .where(and(eq(frames.bracketSetId, setId), eq(frames.kind, "light"), eq(frames.included, true), eq(frames.ingestState, "ingested")));
 }
 
-export async function startReduction(db: DbOrTx, actor: Actor | null, setId: string, input: ReductionParamsInput): Promise<ReductionDto> {
+export async function startReduction(db: DbOrTx, actor: Actor | null, setId: string, request: ReductionParamsRequest): Promise<ReductionDto> {
+  const input = parseInput(reductionParamsSchema, request);
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
   const isOwner = set.ownerId === a.userId;
   if (!isOwner && !can(a.roles, "review:use")) throw forbidden("reducing another photographer's bracket set");
