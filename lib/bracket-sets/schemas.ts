@@ -10,7 +10,8 @@ export const createBracketSetSchema = z.object({
   name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(120),
   eclipseId: z.string().trim().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date such as 2027-08-02" }),
   siteId: uuid("one of your sites"),
-  kitId: uuid("one of your kits").nullish().transform((v) => v ?? null),
+  // A form's "No kit" sends an empty string.
+  kitId: z.preprocess((v) => (v === "" ? null : v), uuid("one of your kits").nullish()).transform((v) => v ?? null),
   notes: z.string().trim().max(4000).optional().default(""),
   clockOffsetS: z.coerce.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).min(-86_400).max(86_400).optional().default(0),
 });

@@ -125,6 +125,10 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/studio/kits/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/sets/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  // A set that does not exist, or is someone else's: the same 404.
+  { path: "/studio/sets/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
+  { path: "/studio/sets/not-a-uuid", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
 ];
 
 function routeTemplates(): string[] {

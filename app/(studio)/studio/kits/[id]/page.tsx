@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
+import { foundOr404 } from "@/app/_server/found";
 import { FormMessage } from "@/components/auth/form-message";
 import { ConfirmDelete } from "@/components/forms/confirm-delete";
 import { KitForm } from "@/components/kits/kit-form";
@@ -17,7 +18,7 @@ export default async function KitPage({ params, searchParams }: { params: Promis
   const { id } = await params;
   const { saved } = await searchParams;
   const actor = await requirePagePermission("studio:use", `/studio/kits/${id}`);
-  const kit = await findKit(getDb(), actor, id);
+  const kit = await foundOr404(findKit(getDb(), actor, id));
   return (
     <>
       <PageTitle title={kit.name} lead={kit.camera}>

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
+import { foundOr404 } from "@/app/_server/found";
 import { FormMessage } from "@/components/auth/form-message";
 import { ConfirmDelete } from "@/components/forms/confirm-delete";
 import { PageTitle } from "@/components/page-title";
@@ -15,7 +16,7 @@ export default async function SitePage({ params, searchParams }: { params: Promi
   const { id } = await params;
   const { saved } = await searchParams;
   const actor = await requirePagePermission("studio:use", `/studio/sites/${id}`);
-  const site = await findSite(getDb(), actor, id);
+  const site = await foundOr404(findSite(getDb(), actor, id));
   const pub = toPublicPosition(site.latDeg, site.lonDeg, site.precision);
   return (
     <>

@@ -1,0 +1,136 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { requirePagePermission } from "@/app/_server/actor";
+import { foundOr404 } from "@/app/_server/found";
+import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
+import { BracketChart } from "@/components/bracket-sets/bracket-chart";
+import { ClockOffsetForm } from "@/components/bracket-sets/clock-offset-form";
+import { FrameTriage } from "@/components/bracket-sets/frame-triage";
+import { FrameUploader } from "@/components/bracket-sets/frame-uploader";
+import { SubmitForReview } from "@/components/bracket-sets/submit-for-review";
+import { PageTitle } from "@/components/page-title";
+import { Badge } from "@/components/ui/badge";
+import { getDb } from "@/db/client";
+import { findBracketSet } from "@/lib/bracket-sets";
+import { findEclipse } from "@/lib/eclipses/eclipses";
+import { listKits } from "@/lib/kits/kits";
+import { listReductions } from "@/lib/reductions/reductions";
+import { listSites } from "@/lib/sites/sites";
+import { MAX_FILES_PER_SET, MAX_FILE_SIZE_BYTES, PART_SIZE_BYTES } from "@/lib/storage/limits";
+
+export const metadata: Metadata = { title: "Bracket set" };
+
+const STATE_TEXT: Record<string, string> = {
+  gathering: "gathering frames",
+  "awaiting-review": "awaiting review",
+  "changes-requested": "changes requested",
+  approved: "approved",
+  rejected: "rejected",
+};
+
+export default async function BracketSetPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const actor = await requirePagePermission("studio:use", `/studio/sets/${id}`);
+  const db = getDb();
+  const set = await foundOr404(findBracketSet(db, actor, id));
+  const [reductions, eclipse, sites, kits] = await Promise.all([
+    listReductions(db, actor, set.id),
+    findEclipse(db, set.eclipseId).catch(() => null),
+    set.isOwn ? listSites(db, actor) : Promise.resolve([]),
+    set.isOwn ? listKits(db, actor) : Promise.resolve([]),
+  ]);
+  const site = sites.find((s) => s.id === set.siteId);
+  const kit = kits.find((k) => k.id === set.kitId);
+  const isOpen = set.state === "gathering" || set.state === "changes-requested";
+  const canEdit = set.isOwn && isOpen;
+  const checking = set.frames.filter((f) => f.ingestState === "received").length;
+  const running = reductions.filter((r) => r.state === "queued" || r.state === "running").length;
+  const hasDone = reductions.some((r) => r.state === "done");
+
+  return (
+    <>
+      <PageTitle
+        title={set.name}
+        lead={
+          <>
+            {eclipse ? `${eclipse.kind} eclipse of ${eclipse.id}` : set.eclipseId}
+            {site ? ` · ${site.name}` : ""}
+            {kit ? ` · ${kit.name}` : ""}
+            {set.isOwn ? "" : ` · by ${set.ownerName}`}
+          </>
+        }
+      >
+        <div className="flex items-center gap-3">
+          <Badge tone={set.state === "approved" ? "ok" : set.state === "rejected" ? "danger" : set.state === "changes-requested" ? "warn" : "neutral"}>
+            {STATE_TEXT[set.state] ?? set.state}
+          </Badge>
+          <Link href="/studio">All bracket sets</Link>
+        </div>
+      </PageTitle>
+
+      <AutoRefresh
+        active={checking > 0 || running > 0}
+        message={[checking ? `Checking ${checking} frame${checking === 1 ? "" : "s"}…` : "", running ? `${running} reduction${running === 1 ? "" : "s"} in progress…` : ""]
+          .filter(Boolean)
+          .join(" ")}
+      />
+
+      {set.notes ? <p className="mb-8 max-w-3xl whitespace-pre-line text-ink-muted">{set.notes}</p> : null}
+
+      <div className="flex flex-col gap-12">
+        {canEdit ? (
+          <FrameUploader
+            setId={set.id}
+            limits={{ maxFileSizeBytes: MAX_FILE_SIZE_BYTES, maxFilesPerSet: MAX_FILES_PER_SET, partSizeBytes: PART_SIZE_BYTES }}
+            openUploads={set.openUploads}
+          />
+        ) : !isOpen ? (
+          <p className="max-w-3xl text-ink-muted">This set is {STATE_TEXT[set.state] ?? set.state}: frames can be added or corrected again only if a curator asks for changes.</p>
+        ) : null}
+
+        <section aria-labelledby="bracket-chart-h" className="flex flex-col gap-3">
+          <h2 id="bracket-chart-h" className="text-xl font-semibold">
+            The bracket over time
+          </h2>
+          <BracketChart frames={set.frames} />
+        </section>
+
+        {set.frames.length ? (
+          <FrameTriage setId={set.id} frames={set.frames} canEdit={canEdit} />
+        ) : (
+          <p className="text-ink-muted">No frames yet. Add the frames of one camera&apos;s bracket above; they are checked and measured as they arrive.</p>
+        )}
+
+        {canEdit ? <ClockOffsetForm setId={set.id} clockOffsetS={set.clockOffsetS} frames={set.frames} /> : null}
+
+        <section aria-labelledby="reductions-h" className="flex flex-col gap-4">
+          <h2 id="reductions-h" className="text-xl font-semibold">
+            Reductions
+          </h2>
+          {reductions.length === 0 ? (
+            <p className="text-ink-muted">No reductions yet.</p>
+          ) : (
+            <ul className="flex flex-col gap-2">
+              {reductions.map((r) => (
+                <li key={r.id}>
+                  <Link href={`/studio/reductions/${r.id}`}>
+                    {r.params.registration} registration, {r.params.filter.toUpperCase()} · {r.state}
+                  </Link>
+                </li>
+              ))}
+            </ul>
+          )}
+        </section>
+
+        {canEdit ? (
+          <section aria-labelledby="submit-h" className="flex flex-col gap-3">
+            <h2 id="submit-h" className="text-xl font-semibold">
+              Review
+            </h2>
+            <SubmitForReview setId={set.id} hasReduction={hasDone} />
+          </section>
+        ) : null}
+      </div>
+    </>
+  );
+}

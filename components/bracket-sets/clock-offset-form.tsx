@@ -1,0 +1,135 @@
+"use client";
+// The camera clock offset: typed in seconds, or worked out from a frame that
+// photographed a trusted clock (a GPS receiver's display, a radio-controlled
+// watch) together with the true time that clock showed.
+import { useRouter } from "next/navigation";
+import { useId, useState, type FormEvent } from "react";
+import type { FrameDto } from "@/lib/bracket-sets/dto";
+import { Button } from "@/components/ui/button";
+import { callApi } from "./api-client";
+
+type Mode = "typed" | "frame";
+
+export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string; clockOffsetS: number; frames: FrameDto[] }) {
+  const router = useRouter();
+  const id = useId();
+  const [mode, setMode] = useState<Mode>("typed");
+  const [pending, setPending] = useState(false);
+  const [result, setResult] = useState<{ tone: "ok" | "danger"; text: string; field?: string } | null>(null);
+  const timed = frames.filter((f) => f.captureAt && f.ingestState === "ingested");
+
+  async function onSubmit(e: FormEvent<HTMLFormElement>) {
+    e.preventDefault();
+    const form = new FormData(e.currentTarget);
+    let body: Record<string, unknown>;
+    if (mode === "typed") {
+      const text = String(form.get("clockOffsetS") ?? "").trim();
+      const value = Number(text);
+      if (text === "" || !Number.isFinite(value)) {
+        setResult({ tone: "danger", text: `Clock offset: "${text}" is not a number of seconds.`, field: "clockOffsetS" });
+        return;
+      }
+      body = { clockOffsetS: value };
+    } else {
+      const frameId = String(form.get("clockFrameId") ?? "");
+      const shown = String(form.get("clockShownAt") ?? "").trim();
+      if (!frameId) {
+        setResult({ tone: "danger", text: "Choose the frame that shows the clock.", field: "clockFrameId" });
+        return;
+      }
+      // The time typed is UTC; a value without a zone is read as UTC, not local time.
+      const iso = /[zZ]|[+-]\d\d:?\d\d$/.test(shown) ? shown : `${shown}Z`;
+      if (!shown || Number.isNaN(Date.parse(iso))) {
+        setResult({ tone: "danger", text: `Time the clock showed: "${shown}" is not a date and time such as 2027-08-02T10:59:30.`, field: "clockShownAt" });
+        return;
+      }
+      body = { clockFrameId: frameId, clockShownAt: new Date(iso).toISOString() };
+    }
+    setPending(true);
+    setResult(null);
+    try {
+      const saved = await callApi<{ clockOffsetS: number }>(`/api/bracket-sets/${setId}`, { method: "PATCH", body });
+      setResult({ tone: "ok", text: `Camera clock offset is now ${saved.clockOffsetS} s; frame times below are corrected.` });
+      router.refresh();
+    } catch (err) {
+      setResult({ tone: "danger", text: (err as Error).message });
+    } finally {
+      setPending(false);
+    }
+  }
+
+  return (
+    <form onSubmit={onSubmit} className="flex max-w-2xl flex-col gap-4" aria-labelledby={`${id}-h`}>
+      <h3 id={`${id}-h`} className="text-lg font-semibold">
+        Camera clock
+      </h3>
+      <p className="text-sm text-ink-muted">
+        Now {clockOffsetS} s: the camera clock ran {Math.abs(clockOffsetS)} s {clockOffsetS >= 0 ? "ahead of" : "behind"} true UTC. Every frame time is corrected by it, and the
+        reduction uses the corrected times to place the Sun.
+      </p>
+      <fieldset className="flex flex-wrap gap-4">
+        <legend className="sr-only">How to set the offset</legend>
+        <label className="flex items-center gap-2">
+          <input type="radio" name="mode" checked={mode === "typed"} onChange={() => setMode("typed")} /> Type the offset
+        </label>
+        <label className="flex items-center gap-2">
+          <input type="radio" name="mode" checked={mode === "frame"} onChange={() => setMode("frame")} disabled={timed.length === 0} /> From a frame of a trusted clock
+        </label>
+      </fieldset>
+      {mode === "typed" ? (
+        <div className="flex flex-col gap-1.5">
+          <label htmlFor={`${id}-s`} className="text-sm font-medium">
+            Offset (s), positive when the camera was ahead
+          </label>
+          <input
+            id={`${id}-s`}
+            name="clockOffsetS"
+            type="number"
+            step="any"
+            defaultValue={clockOffsetS}
+            aria-invalid={result?.field === "clockOffsetS" || undefined}
+            className="w-40 rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
+          />
+        </div>
+      ) : (
+        <div className="grid gap-4 sm:grid-cols-2">
+          <div className="flex flex-col gap-1.5">
+            <label htmlFor={`${id}-f`} className="text-sm font-medium">
+              Frame that shows the clock
+            </label>
+            <select id={`${id}-f`} name="clockFrameId" aria-invalid={result?.field === "clockFrameId" || undefined} className="rounded-control border border-line-strong bg-surface-raised px-3 py-2">
+              <option value="">Choose a frame</option>
+              {timed.map((f) => (
+                <option key={f.id} value={f.id}>
+                  {f.fileName} (camera {f.captureAt?.slice(11, 19)})
+                </option>
+              ))}
+            </select>
+          </div>
+          <div className="flex flex-col gap-1.5">
+            <label htmlFor={`${id}-t`} className="text-sm font-medium">
+              True time the clock showed (UTC)
+            </label>
+            <input
+              id={`${id}-t`}
+              name="clockShownAt"
+              type="datetime-local"
+              step={1}
+              defaultValue="2027-08-02T10:00:00"
+              aria-invalid={result?.field === "clockShownAt" || undefined}
+              className="rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
+            />
+          </div>
+        </div>
+      )}
+      <div role="status" aria-live="polite" className="text-sm font-medium">
+        {result ? <span className={result.tone === "ok" ? "text-ok" : "text-danger"}>{result.text}</span> : null}
+      </div>
+      <div>
+        <Button type="submit" pending={pending} pendingLabel="Saving…">
+          Save clock offset
+        </Button>
+      </div>
+    </form>
+  );
+}
