@@ -11,6 +11,10 @@ export interface ReductionParamsRecord {
   registration: "sun" | "moon" | "corona";
   filter: "mgn" | "nrgf";
   recoverResponse: boolean;
+  /** Added later; older rows lack them (read as 0.3, full size, all groups). */
+  filterStrength?: number;
+  outputLongSidePx?: number;
+  groupNumber?: number | null;
 }
 
 export const reductions = pgTable(
