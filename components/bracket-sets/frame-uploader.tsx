@@ -256,6 +256,14 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
             <Button size="sm" onClick={() => void uppy.retryAll()} disabled={failed === 0}>
               Try refused again
             </Button>
+            <Button
+              size="sm"
+              variant="quiet"
+              onClick={() => rows.filter((r) => r.state === "done" || r.state === "refused").forEach((r) => uppy.removeFile(r.id))}
+              disabled={done + failed === 0}
+            >
+              Clear finished from this list
+            </Button>
           </div>
         ) : null}
       </div>
