@@ -1,7 +1,8 @@
 // Ingest of one uploaded original: stream it from S3 to a temporary file while
 // hashing it (SHA-256), refuse a duplicate of a frame already in the set, decode
 // it (format from content, metadata from EXIF or FITS cards), store a JPEG
-// thumbnail under derived/, and fill in the frame row. Bad input marks the frame
+// thumbnail under derived/, measure what triage shows (clipped fraction,
+// histogram, sharpness, limb), and fill in the frame row. Bad input marks the frame
 // "refused" with a reason naming the file and the fault and fails at once
 // (UnrecoverableError); S3 or database faults throw normally and are retried.
 // The original is only ever read.
@@ -13,6 +14,7 @@ import { UnrecoverableError } from "bullmq";
 import { and, eq, ne, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, frames, type FrameFlags } from "@/db/schema";
+import { analyseFrame } from "@/lib/bracket-sets/frame-analysis";
 import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
 import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
 import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
@@ -117,8 +119,15 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
     const thumbnailKey = buildThumbnailKey(frame.bracketSetId, frame.id);
     await putObjectBytes({ bucket: bucketName("derived"), key: thumbnailKey }, thumbnail, "image/jpeg");
 
+    await report("analysing", 0.8);
     const m = decoded.metadata;
     const flags: FrameFlags = { clippedFraction: measureClippedFraction(decoded.image, decoded.whiteLevel) };
+    try {
+      // Histogram, sharpness and limb help triage; a fault in them must not refuse a sound frame.
+      Object.assign(flags, analyseFrame(decoded.image, decoded));
+    } catch (err) {
+      console.error(`[ingest] ${name}: triage measures failed:`, err);
+    }
     if (m.isTimeZoneAssumed) flags.isTimeZoneAssumed = true;
     // An exposure the photographer already gave wins over the file's.
     const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: m.exposureS ?? null, exposureSource: m.exposureS ? ("file" as const) : null };
