@@ -97,3 +97,19 @@ export function groupByGap(frames: GroupedFrame[], gapS: number): Map<string, nu
   }
   return out;
 }
+
+/**
+ * The group a frame that arrives after the set was grouped joins: that of the
+ * frame nearest to it in capture time (the earlier one on a tie), or null when
+ * it has no capture time or no other frame has one (it keeps the default).
+ */
+export function findGroupForNewFrame(others: { captureMs: number | null; groupNumber: number }[], captureMs: number | null): number | null {
+  if (captureMs === null) return null;
+  let best: { distance: number; captureMs: number; groupNumber: number } | null = null;
+  for (const o of others) {
+    if (o.captureMs === null) continue;
+    const distance = Math.abs(o.captureMs - captureMs);
+    if (!best || distance < best.distance || (distance === best.distance && o.captureMs < best.captureMs)) best = { distance, captureMs: o.captureMs, groupNumber: o.groupNumber };
+  }
+  return best?.groupNumber ?? null;
+}

@@ -9,7 +9,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { findOwnOpenSet } from "./access";
 import { findBracketSet } from "./bracket-sets";
 import type { BracketSetDto } from "./dto";
-import { DEFAULT_GROUP_GAP_S, groupByGap, mergeGroup, splitGroup, type GroupedFrame } from "./grouping";
+import { groupByGap, mergeGroup, splitGroup, type GroupedFrame } from "./grouping";
 import type { GroupActionInput } from "./schemas";
 
 export async function changeGroups(db: DbOrTx, actor: Actor | null, setId: string, input: GroupActionInput): Promise<BracketSetDto> {
@@ -26,7 +26,7 @@ export async function changeGroups(db: DbOrTx, actor: Actor | null, setId: strin
         ? splitGroup(grouped, input.frameId)
         : input.action === "merge"
           ? mergeGroup(grouped, input.groupNumber)
-          : groupByGap(grouped, input.gapS ?? DEFAULT_GROUP_GAP_S);
+          : groupByGap(grouped, input.gapS);
     // Only rows whose number changes are written; by number, so a set of 500 frames takes a few statements.
     const byNumber = new Map<number, string[]>();
     for (const r of grouped) {

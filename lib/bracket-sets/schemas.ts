@@ -3,6 +3,7 @@
 import { z } from "zod";
 import { FRAME_KINDS } from "@/db/schema";
 import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
+import { DEFAULT_GROUP_GAP_S } from "./grouping";
 
 const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
 
@@ -93,7 +94,7 @@ export const groupActionSchema = z.discriminatedUnion(
         .gt(0, { error: "must be more than 0 s" })
         .max(86_400, { error: "must be at most a day (86400 s)" })
         .optional()
-        .default(20),
+        .default(DEFAULT_GROUP_GAP_S),
     }),
   ],
   { error: `expected action to be one of ${GROUP_ACTIONS.join(", ")}` },

@@ -150,6 +150,23 @@ describe("groups", () => {
     expect(frameIds.map((id) => merged.frames.find((f) => f.id === id)!.groupNumber)).toEqual([1, 1, 1, 2, 2]);
   });
 
+  it("puts a frame uploaded after grouping in the group nearest to it in time", async () => {
+    const late = encodeFits({
+      width: 32,
+      height: 32,
+      planes: [new Uint16Array(32 * 32).fill(900)],
+      cards: [
+        { key: "EXPTIME", value: 0.5, comment: "seconds" },
+        { key: "DATE-OBS", value: new Date(T0 + 70_000).toISOString().replace("Z", "") },
+      ],
+    });
+    const sent = await uploadFile(db, owner, setId, "luxor-late.fits", new Uint8Array(late));
+    const row = await waitForIngest(sent.id);
+    expect(row.groupNumber).toBe(2);
+    // Left out of the reductions below: a flat frame, not part of either bracket.
+    await correctFrame(db, owner, setId, sent.id, { included: false });
+  });
+
   it("lets only the owner change groups", async () => {
     await expect(changeGroups(db, curator, setId, { action: "auto", gapS: 20 })).rejects.toMatchObject({ code: "forbidden" });
     const stranger = await createMember(db, "Ilse Vanderhoek");

@@ -1,7 +1,7 @@
 // Groups of frames within a set: split, merge and grouping by gaps, as pure
 // functions over frames with capture times and names.
 import { describe, expect, it } from "vitest";
-import { compareFrames, groupByGap, listGroups, mergeGroup, splitGroup, type GroupedFrame } from "@/lib/bracket-sets/grouping";
+import { compareFrames, findGroupForNewFrame, groupByGap, listGroups, mergeGroup, splitGroup, type GroupedFrame } from "@/lib/bracket-sets/grouping";
 
 const T0 = Date.UTC(2027, 7, 2, 10, 4, 0);
 const f = (id: string, offsetS: number | null, groupNumber = 1, fileName = `${id}.fits`): GroupedFrame => ({
@@ -85,5 +85,29 @@ describe("groupByGap", () => {
     const frames = [f("a", 0), f("b", 1000), f("c", 2000)];
     const g = groupByGap(frames, 20);
     expect(listGroups(frames.map((x) => ({ ...x, groupNumber: g.get(x.id)! })))).toEqual([1, 2, 3]);
+  });
+});
+
+describe("findGroupForNewFrame", () => {
+  const others = [
+    { captureMs: T0, groupNumber: 1 },
+    { captureMs: T0 + 4000, groupNumber: 1 },
+    { captureMs: T0 + 64_000, groupNumber: 2 },
+    { captureMs: null, groupNumber: 3 },
+  ];
+
+  it("joins the group of the frame nearest in time", () => {
+    expect(findGroupForNewFrame(others, T0 + 6000)).toBe(1);
+    expect(findGroupForNewFrame(others, T0 + 50_000)).toBe(2);
+    expect(findGroupForNewFrame(others, T0 + 600_000)).toBe(2);
+  });
+
+  it("takes the earlier frame on a tie", () => {
+    expect(findGroupForNewFrame(others, T0 + 34_000)).toBe(1);
+  });
+
+  it("gives no group without a capture time, or with no timed frame to compare", () => {
+    expect(findGroupForNewFrame(others, null)).toBeNull();
+    expect(findGroupForNewFrame([{ captureMs: null, groupNumber: 2 }], T0)).toBeNull();
   });
 });

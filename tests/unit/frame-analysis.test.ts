@@ -48,6 +48,17 @@ describe("measureLimb", () => {
     expect(limb.rmsPx).toBeLessThan(1);
   });
 
+  it("finds the same disk in an 8-bit sRGB colour frame (decoded to linear light first)", () => {
+    // IEC 61966-2-1 encoding (REFERENCES.md, sRGB) of the linear frame scaled to its white level.
+    const encode = (l: number) => Math.round(255 * (l <= 0.0031308 ? 12.92 * l : 1.055 * l ** (1 / 2.4) - 0.055));
+    const codes = frame.planes[0].map((v) => encode(Math.min(1, (v - BLACK) / (WHITE - BLACK))));
+    const limb = measureLimb({ width: W, height: H, planes: [codes, codes, codes] }, { encoding: "srgb8", blackLevel: 0, whiteLevel: 255 });
+    expect(limb.quality).not.toBe("failed");
+    // Same tolerance as above; 8-bit quantization adds well under a pixel on a 150 px limb.
+    expect(Math.abs(limb.radiusPx - MOON.r)).toBeLessThan(1.5);
+    expect(Math.hypot(limb.cx - MOON.x, limb.cy - MOON.y)).toBeLessThan(0.5);
+  });
+
   it("reports a failed fit on a frame without a disk, with finite numbers", () => {
     const flat = { width: 300, height: 200, planes: [new Float32Array(300 * 200).fill(1000)] };
     const limb = measureLimb(flat, { encoding: "linear", blackLevel: 0, whiteLevel: WHITE });

@@ -15,6 +15,7 @@ import { and, eq, ne, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, frames, type FrameFlags } from "@/db/schema";
 import { analyseFrame } from "@/lib/bracket-sets/frame-analysis";
+import { findGroupForNewFrame } from "@/lib/bracket-sets/grouping";
 import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
 import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
 import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
@@ -68,6 +69,16 @@ async function claimChecksum(db: DbOrTx, frame: FrameToIngest, sha256: string): 
     if (winner) await refuseDuplicate(winner);
     throw err;
   }
+}
+
+async function findNewFrameGroup(db: DbOrTx, frame: FrameToIngest, captureAt: Date | null): Promise<number | null> {
+  if (!captureAt) return null;
+  const others = await db
+    .select({ captureAt: frames.captureAt, groupNumber: frames.groupNumber })
+    .from(frames)
+    .where(and(eq(frames.bracketSetId, frame.bracketSetId), ne(frames.id, frame.id)));
+  if (!others.some((o) => o.groupNumber !== 1)) return null;
+  return findGroupForNewFrame(others.map((o) => ({ captureMs: o.captureAt?.getTime() ?? null, groupNumber: o.groupNumber })), captureAt.getTime());
 }
 
 export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, report }) => {
@@ -129,6 +140,9 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
       console.error(`[ingest] ${name}: triage measures failed:`, err);
     }
     if (m.isTimeZoneAssumed) flags.isTimeZoneAssumed = true;
+    // A set already split into groups: the newcomer joins the group of the frame nearest in time.
+    const captureAt = m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs);
+    const groupNumber = await findNewFrameGroup(db, frame, captureAt);
     // An exposure the photographer already gave wins over the file's.
     const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: m.exposureS ?? null, exposureSource: m.exposureS ? ("file" as const) : null };
     await db
@@ -141,7 +155,8 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
         ...exposure,
         fNumber: m.fNumber ?? null,
         iso: m.iso ?? null,
-        captureAt: m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs),
+        captureAt,
+        ...(groupNumber === null ? {} : { groupNumber }),
         make: m.make ?? null,
         model: m.model ?? m.instrument ?? null,
         thumbnailKey,
