@@ -52,10 +52,16 @@ export interface FrameFlags {
   duplicateOfFrameId?: string;
   /** 64 pixel counts of the luminance, bins of equal width from 0 to the white level. */
   histogram?: number[];
-  /** Sharpness of the frame (higher is sharper); isBlurred when below the set's usual. */
+  /**
+   * Sharpness of the frame (higher is sharper; lib/bracket-sets/frame-analysis.ts says how it is
+   * measured). isBlurred is decided on reading, against the set's other light frames.
+   */
   sharpness?: number;
   isBlurred?: boolean;
-  /** The limb fitted at ingest, in the original's pixels (x right, y down). */
+  /**
+   * The limb fitted at ingest, in the original's pixels (x right, y down). When
+   * quality is "failed" the numbers are whatever the fit reached (0 if none) and mean nothing.
+   */
   limb?: { cx: number; cy: number; radiusPx: number; rmsPx: number; quality: "good" | "doubtful" | "failed" };
 }
 
@@ -86,6 +92,8 @@ export const frames = pgTable(
     model: text("model"),
     kind: text("kind", { enum: FRAME_KINDS }).notNull().default("light"),
     included: boolean("included").notNull().default(true),
+    // Which bracket of the upload the frame belongs to (1, 2, ...), when one upload held several.
+    groupNumber: integer("group_number").notNull().default(1),
     ingestState: text("ingest_state", { enum: INGEST_STATES }).notNull().default("received"),
     refusalReason: text("refusal_reason"),
     thumbnailKey: text("thumbnail_key"),
@@ -98,6 +106,7 @@ export const frames = pgTable(
     // The same bytes twice in one set are detected, never stored as two frames.
     uniqueIndex("frames_bracket_set_sha256_key").on(t.bracketSetId, t.sha256),
     check("frames_positive_exposure", sql`${t.exposureS} is null or ${t.exposureS} > 0`),
+    check("frames_group_number_positive", sql`${t.groupNumber} >= 1`),
   ],
 );
 

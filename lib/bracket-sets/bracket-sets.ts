@@ -1,16 +1,19 @@
 // Bracket sets: create, list, read, and set the camera clock offset. Every
 // function takes the actor and scopes its queries to what that actor may see.
 import { and, asc, count, desc, eq, inArray, sql } from "drizzle-orm";
+import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, eclipses, frames, kits, sites, uploads, users, type BracketSet, type Frame, type Upload } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
-import { AppError } from "@/lib/errors";
+import { AppError, notFound } from "@/lib/errors";
 import { countParts } from "@/lib/storage/limits";
 import { canReadAll, findOwnOpenSet, findVisibleSet, requireReader } from "./access";
+import { clockOffsetFromFrame } from "./clock";
 import type { BracketSetDto, BracketSetSummaryDto, FrameDto, UploadDto } from "./dto";
-import type { CreateBracketSetInput } from "./schemas";
+import { markBlurred } from "./frame-analysis";
+import type { CreateBracketSetInput, UpdateBracketSetInput } from "./schemas";
 
-function toSummary(set: BracketSet, actor: Actor, ownerName: string, frameCount: number): BracketSetSummaryDto {
+export function toSummary(set: BracketSet, actor: Actor, ownerName: string, frameCount: number): BracketSetSummaryDto {
   return {
     id: set.id,
     name: set.name,
@@ -27,7 +30,8 @@ function toSummary(set: BracketSet, actor: Actor, ownerName: string, frameCount:
   };
 }
 
-export function toFrameDto(f: Frame, clockOffsetS: number): FrameDto {
+/** `isBlurred` is decided against the set's other frames (markBlurred); without it the stored flags stand. */
+export function toFrameDto(f: Frame, clockOffsetS: number, isBlurred?: boolean): FrameDto {
   return {
     id: f.id,
     fileName: f.originalFileName,
@@ -48,10 +52,11 @@ export function toFrameDto(f: Frame, clockOffsetS: number): FrameDto {
     model: f.model,
     kind: f.kind,
     included: f.included,
+    groupNumber: f.groupNumber,
     ingestState: f.ingestState,
     refusalReason: f.refusalReason,
     hasThumbnail: f.thumbnailKey !== null,
-    flags: f.flags,
+    flags: isBlurred === undefined ? f.flags : { ...f.flags, isBlurred },
   };
 }
 
@@ -107,12 +112,17 @@ export async function listBracketSets(db: DbOrTx, actor: Actor | null): Promise<
 export async function findBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetDto> {
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
   const [owner] = await db.select({ name: users.name }).from(users).where(eq(users.id, set.ownerId)).limit(1);
-  const frameRows = await db.select().from(frames).where(eq(frames.bracketSetId, set.id)).orderBy(asc(frames.captureAt), asc(frames.createdAt));
+  const frameRows = await db
+    .select()
+    .from(frames)
+    .where(eq(frames.bracketSetId, set.id))
+    .orderBy(asc(frames.groupNumber), asc(frames.captureAt), asc(frames.originalFileName), asc(frames.id));
+  const blurred = markBlurred(frameRows.map((f) => ({ sharpness: f.flags.sharpness, isLight: f.kind === "light" && f.ingestState === "ingested" })));
   const openRows = await db.select().from(uploads).where(and(eq(uploads.bracketSetId, set.id), eq(uploads.state, "open"))).orderBy(asc(uploads.createdAt));
   return {
     ...toSummary(set, a, owner?.name ?? "", frameRows.length),
     notes: set.notes,
-    frames: frameRows.map((f) => toFrameDto(f, set.clockOffsetS)),
+    frames: frameRows.map((f, i) => toFrameDto(f, set.clockOffsetS, blurred[i])),
     openUploads: openRows.map(toUploadDto),
   };
 }
@@ -127,4 +137,23 @@ export async function setClockOffset(db: DbOrTx, actor: Actor | null, setId: str
     .returning();
   const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
   return toSummary(updated, a, a.name, n);
+}
+
+/**
+ * The clock offset, typed in seconds or taken from a frame that photographed a
+ * trusted clock: offset = the frame's camera capture time - the true time shown.
+ */
+export async function updateBracketSet(db: DbOrTx, actor: Actor | null, setId: string, input: UpdateBracketSetInput): Promise<BracketSetSummaryDto> {
+  if (input.clockOffsetS !== undefined) return setClockOffset(db, actor, setId, input.clockOffsetS);
+  const { set } = await findOwnOpenSet(db, actor, setId);
+  const frameId = input.clockFrameId;
+  if (!frameId || !z.uuid().safeParse(frameId).success) throw notFound("That frame");
+  const [frame] = await db
+    .select({ fileName: frames.originalFileName, captureAt: frames.captureAt })
+    .from(frames)
+    .where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id)))
+    .limit(1);
+  if (!frame) throw notFound("That frame");
+  const offsetS = clockOffsetFromFrame({ fileName: frame.fileName, captureMs: frame.captureAt?.getTime() ?? null }, input.clockShownAt ?? "");
+  return setClockOffset(db, actor, setId, offsetS);
 }

@@ -40,6 +40,8 @@ export interface FrameDto {
   model: string | null;
   kind: FrameKind;
   included: boolean;
+  /** The bracket within the set (1, 2, ...) when one upload held several. */
+  groupNumber: number;
   ingestState: IngestState;
   refusalReason: string | null;
   hasThumbnail: boolean;

@@ -3,6 +3,7 @@
 import { z } from "zod";
 import { FRAME_KINDS } from "@/db/schema";
 import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
+import { DEFAULT_GROUP_GAP_S } from "./grouping";
 
 const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
 
@@ -48,3 +49,55 @@ export const correctFrameSchema = z
   })
   .refine((v) => v.exposureS !== undefined || v.kind !== undefined || v.included !== undefined, { error: "give exposureS, kind or included" });
 export type CorrectFrameInput = z.infer<typeof correctFrameSchema>;
+
+/**
+ * PATCH of a set: either the clock offset typed in seconds, or a frame that
+ * shows a trusted clock and the true UTC time that clock showed in it.
+ */
+export const updateBracketSetSchema = z
+  .object({
+    clockOffsetS: clockOffsetSchema.shape.clockOffsetS.optional(),
+    clockFrameId: uuid("the frame that shows the clock").optional(),
+    clockShownAt: z.iso
+      .datetime({ offset: true, error: "expected an ISO 8601 time with its zone, such as 2027-08-02T10:04:31.5Z" })
+      .optional(),
+  })
+  .superRefine((v, ctx) => {
+    const byFrame = v.clockFrameId !== undefined || v.clockShownAt !== undefined;
+    if (v.clockOffsetS !== undefined && byFrame) {
+      ctx.addIssue({ code: "custom", path: ["clockOffsetS"], message: "give either clockOffsetS, or clockFrameId with clockShownAt, not both" });
+    } else if (v.clockOffsetS === undefined && !byFrame) {
+      ctx.addIssue({ code: "custom", path: ["clockOffsetS"], message: "give clockOffsetS, or clockFrameId with clockShownAt" });
+    } else if (byFrame && v.clockFrameId === undefined) {
+      ctx.addIssue({ code: "custom", path: ["clockFrameId"], message: "needs the frame that shows the clock" });
+    } else if (byFrame && v.clockShownAt === undefined) {
+      ctx.addIssue({ code: "custom", path: ["clockShownAt"], message: "needs the time the clock showed in that frame" });
+    }
+  });
+export type UpdateBracketSetInput = z.infer<typeof updateBracketSetSchema>;
+
+export const GROUP_ACTIONS = ["split", "merge", "auto"] as const;
+
+/** Splitting and merging groups of frames, or grouping them by the time between them. */
+export const groupActionSchema = z.discriminatedUnion(
+  "action",
+  [
+    z.object({ action: z.literal("split"), frameId: uuid("the frame that starts the new group") }),
+    z.object({
+      action: z.literal("merge"),
+      groupNumber: z.coerce.number({ error: "expected a group number" }).int({ error: "expected a whole group number" }).min(2, { error: "the first group has no group before it" }).max(999),
+    }),
+    z.object({
+      action: z.literal("auto"),
+      gapS: z.coerce
+        .number({ error: "expected seconds" })
+        .refine(Number.isFinite, { error: "expected a number of seconds" })
+        .gt(0, { error: "must be more than 0 s" })
+        .max(86_400, { error: "must be at most a day (86400 s)" })
+        .optional()
+        .default(DEFAULT_GROUP_GAP_S),
+    }),
+  ],
+  { error: `expected action to be one of ${GROUP_ACTIONS.join(", ")}` },
+);
+export type GroupActionInput = z.infer<typeof groupActionSchema>;

@@ -32,3 +32,50 @@ export function passwordResetMail(society: string, to: string, name: string, url
     }),
   };
 }
+
+function draft(society: string, to: string, subject: string, lines: string[], link: { href: string; label: string }): MailDraft {
+  return {
+    to,
+    subject,
+    text: `${lines.join("\n\n")}\n\n${link.label}: ${link.href}\n\n${society}`,
+    html: wrap(society, lines, link),
+  };
+}
+
+/** To a curator: a photographer has sent a bracket set to the review desk. */
+export function reviewRequestedMail(society: string, to: string, curatorName: string, set: { name: string; photographerName: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Bracket set awaiting review: ${set.name}`,
+    [`Hello ${curatorName},`, `${set.photographerName} has sent the bracket set "${set.name}" for review. It is waiting on the review desk.`],
+    { href: set.url, label: "Open the bracket set" },
+  );
+}
+
+/** To the photographer: a reduction of their set has finished. */
+export function reductionFinishedMail(society: string, to: string, name: string, reduction: { setName: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Reduction finished: ${reduction.setName}`,
+    [`Hello ${name},`, `The reduction of your bracket set "${reduction.setName}" has finished. Both renditions, the master FITS file and the report are ready.`],
+    { href: reduction.url, label: "See the reduction" },
+  );
+}
+
+/** To the photographer: a reduction of their set has failed and will not be tried again. */
+export function reductionFailedMail(society: string, to: string, name: string, reduction: { setName: string; reason: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Reduction failed: ${reduction.setName}`,
+    [
+      `Hello ${name},`,
+      `The reduction of your bracket set "${reduction.setName}" failed and will not be tried again.`,
+      `Reason: ${reduction.reason}`,
+      "Your originals are untouched. Correct what the reason names, then start a new reduction.",
+    ],
+    { href: reduction.url, label: "See the reduction" },
+  );
+}

@@ -1,24 +1,33 @@
 // Starting and reading reductions. The owner of a bracket set reduces it;
 // curators may re-reduce any set with other parameters. Each start makes a new
 // reduction; none overwrites another.
-import { and, desc, eq } from "drizzle-orm";
+import { and, asc, desc, eq } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { frames, reductions, type Reduction } from "@/db/schema";
+import { findSocietySettings } from "@/db/queries/settings";
+import { bracketSets, frames, reductions, users, type Frame, type Reduction, type ReductionParamsRecord } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { findVisibleSet } from "@/lib/bracket-sets/access";
+import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
+import { reductionFailedMail, reductionFinishedMail } from "@/lib/email/templates";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
 
 export { reductionParamsSchema, type ReductionParamsInput, type ReductionParamsRequest } from "./schemas";
-import { reductionParamsSchema, type ReductionParamsRequest } from "./schemas";
+import { reductionParamsSchema, type ReductionParamsInput, type ReductionParamsRequest } from "./schemas";
 import { parseInput } from "@/lib/validation";
+
+/**
+ * What a reduction row holds as its parameters: every field of the start form.
+ * Rows written before filter strength, output size and groups lack those keys.
+ */
+export type StoredReductionParams = ReductionParamsRecord & Partial<ReductionParamsInput>;
 
 export interface ReductionDto {
   id: string;
   bracketSetId: string;
-  params: Reduction["params"];
+  params: StoredReductionParams;
   state: Reduction["state"];
   stage: string | null;
   progress: number;
@@ -43,12 +52,57 @@ const toDto = (r: Reduction): ReductionDto => ({
   finishedAt: r.finishedAt?.toISOString() ?? null,
 });
 
-/** Light frames that took part: ingested and included. */
-export async function findReducibleFrames(db: DbOrTx, setId: string) {
+/** Light frames that may take part: ingested and included, in every group. */
+export async function findReducibleFrames(db: DbOrTx, setId: string): Promise<Frame[]> {
   return db
     .select()
     .from(frames)
-    .where(and(eq(frames.bracketSetId, setId), eq(frames.kind, "light"), eq(frames.included, true), eq(frames.ingestState, "ingested")));
+    .where(and(eq(frames.bracketSetId, setId), eq(frames.kind, "light"), eq(frames.included, true), eq(frames.ingestState, "ingested")))
+    .orderBy(asc(frames.captureAt), asc(frames.originalFileName), asc(frames.id));
+}
+
+const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
+
+/**
+ * The frames a reduction takes, for the start form and the worker alike: the
+ * usable light frames of the given group, or of the whole set when it holds
+ * one group. Refuses, naming the set and the groups, when the group does not
+ * exist, when a set of several groups is reduced without choosing one, when
+ * fewer than 2 frames are usable, or when a frame has no exposure time.
+ */
+export async function selectReductionFrames(db: DbOrTx, set: { id: string; name: string }, groupNumber: number | null): Promise<Frame[]> {
+  const usable = await findReducibleFrames(db, set.id);
+  let chosen = usable;
+  if (groupNumber !== null) {
+    const rows = await db.selectDistinct({ g: frames.groupNumber }).from(frames).where(eq(frames.bracketSetId, set.id));
+    const groups = rows.map((r) => r.g).sort((x, y) => x - y);
+    if (!groups.includes(groupNumber)) {
+      throw new AppError("invalid_input", `The bracket set "${set.name}" has no group ${groupNumber}; its ${groups.length === 1 ? "group is" : "groups are"} ${groups.join(", ") || "none"}.`, [
+        { field: "groupNumber", message: `expected one of ${groups.join(", ")}` },
+      ]);
+    }
+    chosen = usable.filter((f) => f.groupNumber === groupNumber);
+    if (chosen.length < 2) {
+      throw new AppError("invalid_input", `Group ${groupNumber} of the bracket set "${set.name}" has ${plural(chosen.length, "usable light frame")}; a reduction needs at least 2.`, [
+        { field: "groupNumber", message: "fewer than 2 usable light frames" },
+      ]);
+    }
+  } else {
+    const groups = [...new Set(usable.map((f) => f.groupNumber))].sort((x, y) => x - y);
+    if (groups.length > 1) {
+      throw new AppError("invalid_input", `The bracket set "${set.name}" holds ${groups.length} groups of frames (${groups.join(", ")}); choose the group to reduce.`, [
+        { field: "groupNumber", message: `choose one of ${groups.join(", ")}` },
+      ]);
+    }
+    if (chosen.length < 2) {
+      throw new AppError("invalid_input", `The bracket set "${set.name}" has ${plural(chosen.length, "usable light frame")}; a reduction needs at least 2.`);
+    }
+  }
+  const missing = chosen.filter((f) => f.exposureS === null).map((f) => f.originalFileName);
+  if (missing.length) {
+    throw new AppError("invalid_input", `Give an exposure time for ${missing.join(", ")}: the file${missing.length > 1 ? "s do" : " does"} not say.`);
+  }
+  return chosen;
 }
 
 export async function startReduction(db: DbOrTx, actor: Actor | null, setId: string, request: ReductionParamsRequest): Promise<ReductionDto> {
@@ -56,15 +110,10 @@ export async function startReduction(db: DbOrTx, actor: Actor | null, setId: str
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
   const isOwner = set.ownerId === a.userId;
   if (!isOwner && !can(a.roles, "review:use")) throw forbidden("reducing another photographer's bracket set");
-  const usable = await findReducibleFrames(db, setId);
-  if (usable.length < 2) {
-    throw new AppError("invalid_input", `The bracket set "${set.name}" has ${usable.length} usable light frame${usable.length === 1 ? "" : "s"}; a reduction needs at least 2.`);
-  }
-  const missing = usable.filter((f) => f.exposureS === null).map((f) => f.originalFileName);
-  if (missing.length) {
-    throw new AppError("invalid_input", `Give an exposure time for ${missing.join(", ")}: the file${missing.length > 1 ? "s do" : " does"} not say.`);
-  }
-  const [row] = await db.insert(reductions).values({ bracketSetId: setId, requestedBy: a.userId, params: input }).returning();
+  await selectReductionFrames(db, set, input.groupNumber);
+  // Every parameter is kept with the reduction, the group included, so the worker takes the same frames.
+  const params: StoredReductionParams = input;
+  const [row] = await db.insert(reductions).values({ bracketSetId: setId, requestedBy: a.userId, params }).returning();
   await enqueue(db, "reduction.run", { reductionId: row.id });
   return toDto(row);
 }
@@ -84,4 +133,27 @@ export async function listReductions(db: DbOrTx, actor: Actor | null, setId: str
   await findVisibleSet(db, actor, setId);
   const rows = await db.select().from(reductions).where(eq(reductions.bracketSetId, setId)).orderBy(desc(reductions.createdAt));
   return rows.map(toDto);
+}
+
+/**
+ * Tells the photographer (the set's owner) that a reduction finished or failed
+ * for good, with a link to it. One outbox message per reduction: a repeated
+ * job, or a crash between the state change and this call, sends it once.
+ */
+export async function notifyReductionOutcome(db: DbOrTx, reductionId: string): Promise<void> {
+  const [row] = await db
+    .select({ state: reductions.state, error: reductions.error, setName: bracketSets.name, ownerName: users.name, ownerEmail: users.email })
+    .from(reductions)
+    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(reductions.id, reductionId))
+    .limit(1);
+  if (!row || (row.state !== "done" && row.state !== "failed")) return;
+  const society = (await findSocietySettings(db)).name;
+  const url = appLink(`/studio/reductions/${reductionId}`);
+  const draft =
+    row.state === "done"
+      ? reductionFinishedMail(society, row.ownerEmail, row.ownerName, { setName: row.setName, url })
+      : reductionFailedMail(society, row.ownerEmail, row.ownerName, { setName: row.setName, reason: row.error ?? "no reason was recorded", url });
+  await queueMailOnce(db, `reduction-outcome-${reductionId}`, draft);
 }

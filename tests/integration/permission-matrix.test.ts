@@ -88,6 +88,13 @@ const API_CASES: Case[] = [
   // Nothing was sent, so the owner is told which part is missing (409).
   { route: `${SET}/[id]/uploads/[uploadId]/complete`, method: "POST", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/complete`, body: {}, expect: ownSetWrite(409) },
   { route: `${SET}/[id]/frames/[frameId]`, method: "PATCH", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, body: { included: true }, expect: ownSetWrite(200) },
+  // The frame's files: the owner and curators; everyone else is told they do not exist.
+  { route: `${SET}/[id]/frames/[frameId]/thumbnail`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/thumbnail`, expect: ownSetRead },
+  { route: `${SET}/[id]/frames/[frameId]/original`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/original`, expect: ownSetRead },
+  // Grouping by a 20 s gap leaves the matrix's set of one frame as it is.
+  { route: `${SET}/[id]/groups`, method: "POST", path: ({ setId }) => `${SET}/${setId}/groups`, body: { action: "auto", gapS: 20 }, expect: ownSetWrite(200) },
+  // No reduction of the matrix's set has finished: the owner is told so (409).
+  { route: `${SET}/[id]/submit`, method: "POST", path: ({ setId }) => `${SET}/${setId}/submit`, body: {}, expect: ownSetWrite(409) },
   { route: `${SET}/[id]/reductions`, method: "GET", path: ({ setId }) => `${SET}/${setId}/reductions`, expect: ownSetRead },
   // The matrix's set has no frames: the owner and a curator (who may re-reduce) are told so (400).
   {
@@ -173,6 +180,12 @@ async function prepareBracketSet(): Promise<void> {
   expect(put.status).toBe(200);
   const frame = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads/${upload.id}/complete`, {}), 200);
   ids.frameId = frame.id;
+  // The thumbnail cases need the worker's ingest to have written it.
+  for (let i = 0; i < 200; i++) {
+    const read = await ok<{ frames: { id: string; ingestState: string }[] }>(clients.member.json(`${SET}/${set.id}`), 200);
+    if (read.frames.find((f) => f.id === frame.id)?.ingestState !== "received") break;
+    await new Promise((r) => setTimeout(r, 200));
+  }
   const open = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads`, { fileName: "open.tif", sizeBytes: 100 }), 201);
   ids.uploadId = open.id;
 }
@@ -232,6 +245,10 @@ describe("permission matrix", () => {
       [`${SET}/${ids.setId}`, { clockOffsetS: 30 }, "PATCH"],
       [`${SET}/${ids.setId}/uploads`, { fileName: "intruder.tif", sizeBytes: 10 }, "POST"],
       [`${SET}/${ids.setId}/frames/${ids.frameId}`, { included: false }, "PATCH"],
+      [`${SET}/${ids.setId}/frames/${ids.frameId}/thumbnail`, undefined, "GET"],
+      [`${SET}/${ids.setId}/frames/${ids.frameId}/original`, undefined, "GET"],
+      [`${SET}/${ids.setId}/groups`, { action: "split", frameId: ids.frameId }, "POST"],
+      [`${SET}/${ids.setId}/submit`, {}, "POST"],
     ];
     for (const [path, body, method] of calls) {
       const res = await other.json(path, body, method);

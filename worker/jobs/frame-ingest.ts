@@ -1,7 +1,8 @@
 // Ingest of one uploaded original: stream it from S3 to a temporary file while
 // hashing it (SHA-256), refuse a duplicate of a frame already in the set, decode
 // it (format from content, metadata from EXIF or FITS cards), store a JPEG
-// thumbnail under derived/, and fill in the frame row. Bad input marks the frame
+// thumbnail under derived/, measure what triage shows (clipped fraction,
+// histogram, sharpness, limb), and fill in the frame row. Bad input marks the frame
 // "refused" with a reason naming the file and the fault and fails at once
 // (UnrecoverableError); S3 or database faults throw normally and are retried.
 // The original is only ever read.
@@ -13,6 +14,8 @@ import { UnrecoverableError } from "bullmq";
 import { and, eq, ne, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, frames, type FrameFlags } from "@/db/schema";
+import { analyseFrame } from "@/lib/bracket-sets/frame-analysis";
+import { findGroupForNewFrame } from "@/lib/bracket-sets/grouping";
 import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
 import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
 import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
@@ -68,6 +71,16 @@ async function claimChecksum(db: DbOrTx, frame: FrameToIngest, sha256: string): 
   }
 }
 
+async function findNewFrameGroup(db: DbOrTx, frame: FrameToIngest, captureAt: Date | null): Promise<number | null> {
+  if (!captureAt) return null;
+  const others = await db
+    .select({ captureAt: frames.captureAt, groupNumber: frames.groupNumber })
+    .from(frames)
+    .where(and(eq(frames.bracketSetId, frame.bracketSetId), ne(frames.id, frame.id)));
+  if (!others.some((o) => o.groupNumber !== 1)) return null;
+  return findGroupForNewFrame(others.map((o) => ({ captureMs: o.captureAt?.getTime() ?? null, groupNumber: o.groupNumber })), captureAt.getTime());
+}
+
 export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, report }) => {
   const [frame] = await db
     .select({
@@ -117,9 +130,19 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
     const thumbnailKey = buildThumbnailKey(frame.bracketSetId, frame.id);
     await putObjectBytes({ bucket: bucketName("derived"), key: thumbnailKey }, thumbnail, "image/jpeg");
 
+    await report("analysing", 0.8);
     const m = decoded.metadata;
     const flags: FrameFlags = { clippedFraction: measureClippedFraction(decoded.image, decoded.whiteLevel) };
+    try {
+      // Histogram, sharpness and limb help triage; a fault in them must not refuse a sound frame.
+      Object.assign(flags, analyseFrame(decoded.image, decoded));
+    } catch (err) {
+      console.error(`[ingest] ${name}: triage measures failed:`, err);
+    }
     if (m.isTimeZoneAssumed) flags.isTimeZoneAssumed = true;
+    // A set already split into groups: the newcomer joins the group of the frame nearest in time.
+    const captureAt = m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs);
+    const groupNumber = await findNewFrameGroup(db, frame, captureAt);
     // An exposure the photographer already gave wins over the file's.
     const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: m.exposureS ?? null, exposureSource: m.exposureS ? ("file" as const) : null };
     await db
@@ -132,7 +155,8 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
         ...exposure,
         fNumber: m.fNumber ?? null,
         iso: m.iso ?? null,
-        captureAt: m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs),
+        captureAt,
+        ...(groupNumber === null ? {} : { groupNumber }),
         make: m.make ?? null,
         model: m.model ?? m.instrument ?? null,
         thumbnailKey,

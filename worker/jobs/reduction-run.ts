@@ -3,13 +3,16 @@ import os from "node:os";
 import path from "node:path";
 import { UnrecoverableError } from "bullmq";
 import { eq, sql } from "drizzle-orm";
-import { bracketSets, kits, reductions, sites } from "@/db/schema";
+import type { DbOrTx } from "@/db/client";
+import { bracketSets, jobRuns, kits, reductions, sites } from "@/db/schema";
 import { ImagingError } from "@/lib/imaging/errors";
 import { MediaError } from "@/lib/media/errors";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
 import { runReductionOnFiles } from "@/lib/reduction-runner/run-reduction";
 import type { SkyOptions } from "@/lib/reduction-runner/sky-run";
-import { findReducibleFrames } from "@/lib/reductions/reductions";
+import { AppError } from "@/lib/errors";
+import { JOBS } from "@/lib/queue/jobs";
+import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { buildDerivedPrefix, toSafeFileName } from "@/lib/storage/keys";
 import { downloadObjectToFile, putObjectBytes } from "@/lib/storage/objects";
 import { bucketName } from "@/lib/storage/s3";
@@ -33,22 +36,47 @@ async function listFiles(dir: string, prefix = ""): Promise<string[]> {
   return out;
 }
 
+/** True when this run is the job's last attempt (the worker mirrors the attempt number before the handler starts). */
+async function isLastAttempt(db: DbOrTx, jobId: string): Promise<boolean> {
+  const [run] = await db.select({ attempts: jobRuns.attempts }).from(jobRuns).where(eq(jobRuns.id, jobId)).limit(1);
+  return (run?.attempts ?? 0) >= JOBS["reduction.run"].attempts;
+}
+
+/** Marks the reduction failed for good and tells the photographer why. */
+async function failForGood(db: DbOrTx, reductionId: string, reason: string): Promise<void> {
+  await db.update(reductions).set({ state: "failed", error: reason, finishedAt: sql`now()` }).where(eq(reductions.id, reductionId));
+  await notifyReductionOutcome(db, reductionId);
+}
+
 /**
- * Runs one reduction: the set's included, ingested light frames are fetched
+ * Runs one reduction: the included, ingested light frames of the chosen group
+ * (selectReductionFrames, the same choice the start form checked) are fetched
  * from S3, reduced by the imaging core, and every output is stored under the
  * reduction's own prefix. A reduction already done is left alone (a repeated
  * job changes nothing); a retried one rewrites the same keys, so nothing is
  * duplicated. Originals are only read.
  */
-export const runReduction: JobHandler<"reduction.run"> = async ({ db, payload, report }) => {
+export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, payload, report }) => {
   const [red] = await db.select().from(reductions).where(eq(reductions.id, payload.reductionId)).limit(1);
   if (!red) throw new UnrecoverableError(`reduction ${payload.reductionId} does not exist`);
-  if (red.state === "done") return;
+  // A repeated job finds the work done; the mail, if a crash came between the two, still goes (once).
+  if (red.state === "done") return notifyReductionOutcome(db, red.id);
   const [set] = await db.select().from(bracketSets).where(eq(bracketSets.id, red.bracketSetId)).limit(1);
   if (!set) throw new UnrecoverableError(`the bracket set of reduction ${red.id} is gone`);
   const [site] = await db.select().from(sites).where(eq(sites.id, set.siteId)).limit(1);
   const [kit] = set.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
-  const frameRows = await findReducibleFrames(db, set.id);
+  const params: StoredReductionParams = red.params;
+  let frameRows: Awaited<ReturnType<typeof selectReductionFrames>>;
+  try {
+    frameRows = await selectReductionFrames(db, set, params.groupNumber ?? null);
+  } catch (err) {
+    // Frames excluded or regrouped since the start: bad input, no retry.
+    if (err instanceof AppError) {
+      await failForGood(db, red.id, err.message);
+      throw new UnrecoverableError(err.message);
+    }
+    throw err;
+  }
 
   const setProgress = async (stage: string, fraction: number) => {
     await db.update(reductions).set({ stage, progress: fraction }).where(eq(reductions.id, red.id));
@@ -85,24 +113,29 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, payload, r
 
     const outDir = path.join(work, "out");
     let last = 0;
-    const result = await runReductionOnFiles({
+    // filterStrength and outputLongSidePx are passed for the runner's options of those names; until
+    // the runner reads them they are ignored (the options object is built apart so its type allows them).
+    const runnerParams = { filter: params.filter, recoverResponse: params.recoverResponse, filterStrength: params.filterStrength };
+    const options = {
       files,
       outDir,
-      params: { filter: red.params.filter, recoverResponse: red.params.recoverResponse },
-      registration: red.params.registration,
+      params: runnerParams,
+      outputLongSidePx: params.outputLongSidePx,
+      registration: params.registration,
       sky,
       exposureOverrides: overrides,
       exposureOverrideSource: "the photographer's corrections",
       // IIIF ids name where the app serves this reduction's tiles, not the worker's temporary folder.
       iiifBaseUrl: `${(process.env.APP_URL ?? "").replace(/\/+$/, "")}/iiif/reductions/${red.id}`,
-      onProgress: (stage, fraction) => {
+      onProgress: (stage: string, fraction: number) => {
         // Mirror at most every 2 %, without awaiting inside the pipeline's loop.
         if (fraction - last >= 0.02 || fraction === 1 || fraction === 0) {
           last = fraction;
           void setProgress(stage, fraction).catch(() => undefined);
         }
       },
-    });
+    };
+    const result = await runReductionOnFiles(options);
 
     await setProgress("store", 0);
     const prefix = `${buildDerivedPrefix(set.id)}reductions/${red.id}/`;
@@ -134,14 +167,21 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, payload, r
       })
       .where(eq(reductions.id, red.id));
   } catch (err) {
-    // Bad input fails at once with its reason; anything else is retried by the queue.
+    // Bad input fails at once with its reason; anything else is retried by the queue, until the last attempt.
     if (err instanceof ReductionInputError || err instanceof ImagingError || err instanceof MediaError) {
-      await db.update(reductions).set({ state: "failed", error: err.message, finishedAt: sql`now()` }).where(eq(reductions.id, red.id));
+      await failForGood(db, red.id, err.message);
       throw new UnrecoverableError(err.message);
+    }
+    if (await isLastAttempt(db, jobId)) {
+      await failForGood(db, red.id, `${(err as Error).message} (after ${JOBS["reduction.run"].attempts} attempts)`);
+      throw err;
     }
     await db.update(reductions).set({ state: "queued", error: (err as Error).message }).where(eq(reductions.id, red.id));
     throw err;
   } finally {
     await rm(work, { recursive: true, force: true });
   }
+  // Outside the try: a fault in queueing the mail must not put a finished reduction back in the queue.
+  // A retry finds the reduction done and queues the mail then (once).
+  await notifyReductionOutcome(db, red.id);
 };

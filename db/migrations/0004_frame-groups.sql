@@ -1,0 +1,2 @@
+ALTER TABLE "frames" ADD COLUMN "group_number" integer DEFAULT 1 NOT NULL;--> statement-breakpoint
+ALTER TABLE "frames" ADD CONSTRAINT "frames_group_number_positive" CHECK ("frames"."group_number" >= 1);

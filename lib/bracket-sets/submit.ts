@@ -1,0 +1,64 @@
+// Sending a bracket set for review: the owner moves it from gathering (or
+// changes requested) to awaiting review once a reduction of it has finished,
+// and every curator gets a mail with a link to the set.
+import { randomUUID } from "node:crypto";
+import { and, count, eq, inArray, ne } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { findSocietySettings } from "@/db/queries/settings";
+import { bracketSets, frames, outboxMessages, reductions, userRoles, users, type BracketSet } from "@/db/schema";
+import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { reviewRequestedMail } from "@/lib/email/templates";
+import { AppError, forbidden } from "@/lib/errors";
+import { enqueue } from "@/lib/queue/enqueue";
+import { findVisibleSet } from "./access";
+import { toSummary } from "./bracket-sets";
+import type { BracketSetSummaryDto } from "./dto";
+import { appLink } from "./notify";
+
+const SUBMITTABLE: readonly BracketSet["state"][] = ["gathering", "changes-requested"];
+
+export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetSummaryDto> {
+  const { actor: a, set } = await findVisibleSet(db, actor, setId);
+  if (set.ownerId !== a.userId) throw forbidden("sending another photographer's bracket set for review");
+  requirePermission(a, "brackets:own");
+  if (!SUBMITTABLE.includes(set.state)) {
+    throw new AppError("conflict", `The bracket set "${set.name}" is ${set.state}; it can be sent for review only while it is gathering or has changes requested.`);
+  }
+  const [finished] = await db
+    .select({ id: reductions.id })
+    .from(reductions)
+    .where(and(eq(reductions.bracketSetId, set.id), eq(reductions.state, "done")))
+    .limit(1);
+  if (!finished) {
+    throw new AppError("conflict", `The bracket set "${set.name}" has no finished reduction yet; start one, wait until it is done, then send the set for review.`);
+  }
+
+  const society = (await findSocietySettings(db)).name;
+  const curators = await db
+    .select({ name: users.name, email: users.email })
+    .from(users)
+    .innerJoin(userRoles, eq(userRoles.userId, users.id))
+    .where(and(eq(userRoles.role, "curator"), eq(users.emailVerified, true), ne(users.id, a.userId)));
+  const url = appLink(`/studio/sets/${set.id}`);
+
+  const { updated, outboxIds } = await db.transaction(async (tx) => {
+    const [row] = await tx
+      .update(bracketSets)
+      .set({ state: "awaiting-review", updatedAt: new Date() })
+      .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId), inArray(bracketSets.state, [...SUBMITTABLE])))
+      .returning();
+    // Another request moved the set first: nothing is sent twice.
+    if (!row) throw new AppError("conflict", `The bracket set "${set.name}" has just been sent for review.`);
+    const ids: string[] = [];
+    for (const c of curators) {
+      const id = randomUUID();
+      await tx.insert(outboxMessages).values({ id, ...reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url }) });
+      ids.push(id);
+    }
+    return { updated: row, outboxIds: ids };
+  });
+  // Queued after the commit, so the mail job always finds its message.
+  for (const outboxId of outboxIds) await enqueue(db, "mail.send", { outboxId });
+  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
+  return toSummary(updated, a, a.name, n);
+}
