@@ -5,3 +5,4 @@ export * from "./mail";
 export * from "./sky";
 export * from "./brackets";
 export * from "./reductions";
+export * from "./plates";

@@ -53,3 +53,10 @@ export async function downloadObjectToFile(ref: ObjectRef, path: string, onChunk
 export async function putObjectBytes(ref: ObjectRef, body: Buffer, contentType: string, s3: S3Client = getS3()): Promise<void> {
   await s3.send(new PutObjectCommand({ Bucket: ref.bucket, Key: ref.key, Body: body, ContentType: contentType, ContentLength: body.length }));
 }
+
+/** A small object whole (a report, an info.json); refuses anything over `maxBytes`. */
+export async function readSmallObject(ref: ObjectRef, maxBytes = 8 * 1024 ** 2, s3: S3Client = getS3()): Promise<Buffer> {
+  const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+  if ((out.ContentLength ?? 0) > maxBytes) throw new Error(`${ref.key} is ${out.ContentLength} bytes, more than the ${maxBytes} expected`);
+  return out.Body ? Buffer.from(await out.Body.transformToByteArray()) : Buffer.alloc(0);
+}

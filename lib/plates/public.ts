@@ -1,0 +1,233 @@
+// What the public may read of plates: published plates only, as DTOs, with a
+// site's position never finer than its precision allows. A withdrawn plate
+// answers with its metadata and the reason, but no images.
+import { and, desc, eq, ilike, inArray, lt, or, sql, type SQL } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { bracketSets, kits, plates, plateVersions, reductions, sites, users, type Plate, type PlateGeometry, type Rendition } from "@/db/schema";
+import { notFound } from "@/lib/errors";
+import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
+import { LICENCE_INFO, type LicenceInfo } from "./licences";
+
+/** Where a reduction's public files are served; the tiles folder's names follow the worker's layout. */
+export function reductionFilesBase(reductionId: string): string {
+  return `/iiif/reductions/${reductionId}`;
+}
+
+export interface PlateCardDto {
+  slug: string;
+  title: string;
+  caption: string;
+  altText: string;
+  eclipseId: string;
+  siteCountry: string | null;
+  photographer: string;
+  renditions: Rendition[];
+  previewUrl: string;
+  publishedAt: string | null;
+}
+
+export interface PublicRenditionDto {
+  key: Rendition;
+  width: number;
+  height: number;
+  iiifInfoUrl: string;
+  dziUrl: string;
+}
+
+export interface PlateVersionLinkDto {
+  version: number;
+  createdAt: string;
+  changeNote: string;
+  url: string;
+}
+
+export interface PublicPlateDto extends PlateCardDto {
+  version: number;
+  isCurrentVersion: boolean;
+  description: string;
+  acquiredBy: string;
+  processedBy: string;
+  licence: LicenceInfo;
+  site: { name: string; kind: string; position: PublicPosition | null };
+  kit: { name: string; camera: string; focalMm: number; fNumber: number } | null;
+  exposuresS: number[];
+  captureSpan: { start: string; end: string } | null;
+  renditionFiles: PublicRenditionDto[];
+  geometry: PlateGeometry;
+  disclosure: {
+    pipelineVersion: string | null;
+    registration: string;
+    filter: string;
+    filterStrength: number;
+    stages: { name: string; ms: number }[];
+    moonSilhouetteUtc: string | null;
+    referenceFrame: string | null;
+    dynamicRangeStops: number | null;
+  };
+  downloads: { label: string; url: string; format: string }[];
+  versions: PlateVersionLinkDto[];
+  withdrawn: { at: string; reason: string } | null;
+  reductionId: string;
+}
+
+export interface PlateFilters {
+  eclipseId?: string;
+  country?: string;
+  photographer?: string;
+  rendition?: Rendition;
+  q?: string;
+  /** The publishedAt|slug of the last card of the previous page. */
+  cursor?: string;
+  limit?: number;
+}
+
+function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }): PlateCardDto {
+  return {
+    slug: p.slug,
+    title: p.title,
+    caption: p.caption,
+    altText: p.altText,
+    eclipseId: p.eclipseId,
+    siteCountry: p.siteCountry,
+    photographer: p.acquiredBy,
+    renditions: v.renditions,
+    previewUrl: `${reductionFilesBase(v.reductionId)}/preview.jpg`,
+    publishedAt: p.publishedAt?.toISOString() ?? null,
+  };
+}
+
+/** Published plates, newest first, filtered; keyset paging on (publishedAt, slug). */
+export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}): Promise<{ plates: PlateCardDto[]; nextCursor: string | null }> {
+  const limit = Math.min(Math.max(filters.limit ?? 24, 1), 60);
+  const where: SQL[] = [eq(plates.state, "published")];
+  if (filters.eclipseId) where.push(eq(plates.eclipseId, filters.eclipseId));
+  if (filters.country) where.push(eq(plates.siteCountry, filters.country));
+  if (filters.photographer) where.push(eq(plates.acquiredBy, filters.photographer));
+  if (filters.rendition) where.push(sql`${plateVersions.renditions} @> ${JSON.stringify([filters.rendition])}::jsonb`);
+  if (filters.q?.trim()) {
+    const like = `%${filters.q.trim().replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
+    where.push(or(ilike(plates.title, like), ilike(plates.caption, like), ilike(plates.description, like), ilike(plates.acquiredBy, like)) as SQL);
+  }
+  if (filters.cursor) {
+    const [at, slug] = filters.cursor.split("|");
+    const when = new Date(at);
+    if (!Number.isNaN(when.getTime()) && slug) {
+      where.push(or(lt(plates.publishedAt, when), and(eq(plates.publishedAt, when), lt(plates.slug, slug))) as SQL);
+    }
+  }
+  const rows = await db
+    .select({ plate: plates, reductionId: plateVersions.reductionId, renditions: plateVersions.renditions })
+    .from(plates)
+    .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, plates.currentVersion)))
+    .where(and(...where))
+    .orderBy(desc(plates.publishedAt), desc(plates.slug))
+    .limit(limit + 1);
+  const page = rows.slice(0, limit);
+  const last = page.at(-1);
+  return {
+    plates: page.map((r) => cardOf(r.plate, r)),
+    nextCursor: rows.length > limit && last ? `${last.plate.publishedAt?.toISOString()}|${last.plate.slug}` : null,
+  };
+}
+
+/** Values for the gallery's filters, from published plates only. */
+export async function listPlateFacets(db: DbOrTx): Promise<{ eclipses: string[]; countries: string[]; photographers: string[] }> {
+  const rows = await db
+    .selectDistinct({ eclipseId: plates.eclipseId, country: plates.siteCountry, photographer: plates.acquiredBy })
+    .from(plates)
+    .where(eq(plates.state, "published"));
+  const uniq = (xs: (string | null)[]) => [...new Set(xs.filter((x): x is string => !!x))].sort();
+  return { eclipses: uniq(rows.map((r) => r.eclipseId)).reverse(), countries: uniq(rows.map((r) => r.country)), photographers: uniq(rows.map((r) => r.photographer)) };
+}
+
+/** True when a published plate shows this reduction in its current version: its files are public then. */
+export async function isReductionPublic(db: DbOrTx, reductionId: string): Promise<boolean> {
+  const [row] = await db
+    .select({ id: plates.id })
+    .from(plateVersions)
+    .innerJoin(plates, and(eq(plates.id, plateVersions.plateId), eq(plates.currentVersion, plateVersions.version)))
+    .where(and(eq(plateVersions.reductionId, reductionId), eq(plates.state, "published")))
+    .limit(1);
+  return Boolean(row);
+}
+
+const num = (v: unknown): number | null => (typeof v === "number" && Number.isFinite(v) ? v : null);
+
+/**
+ * One plate by its slug (and a version, for permanent links). Drafts are not
+ * found; a withdrawn plate comes back with `withdrawn` set and no files.
+ */
+export async function findPublicPlate(db: DbOrTx, slug: string, version?: number): Promise<PublicPlateDto> {
+  const [plate] = await db
+    .select()
+    .from(plates)
+    .where(and(eq(plates.slug, slug), inArray(plates.state, ["published", "withdrawn"])))
+    .limit(1);
+  if (!plate) throw notFound("That plate");
+  const versions = await db.select().from(plateVersions).where(eq(plateVersions.plateId, plate.id)).orderBy(desc(plateVersions.version));
+  const v = versions.find((x) => x.version === (version ?? plate.currentVersion));
+  if (!v) throw notFound(`Version ${version} of that plate`);
+  const [red] = await db.select().from(reductions).where(eq(reductions.id, v.reductionId)).limit(1);
+  const [set] = await db
+    .select({ siteId: bracketSets.siteId, kitId: bracketSets.kitId, ownerName: users.name })
+    .from(bracketSets)
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(bracketSets.id, plate.bracketSetId))
+    .limit(1);
+  const [site] = set ? await db.select().from(sites).where(eq(sites.id, set.siteId)).limit(1) : [];
+  const [kit] = set?.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
+
+  const m = (red?.measurements ?? {}) as Record<string, unknown>;
+  const timings = (m.timingsMs ?? {}) as Record<string, unknown>;
+  const facts = v.facts;
+  const base = reductionFilesBase(v.reductionId);
+  const withdrawn = plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "" } : null;
+  const licence = LICENCE_INFO[plate.licence];
+  const renditionFiles: PublicRenditionDto[] = withdrawn
+    ? []
+    : v.renditions.flatMap((key) => {
+        const size = v.imageSizes[key];
+        return size ? [{ key, width: size.width, height: size.height, iiifInfoUrl: `${base}/${key}-iiif/info.json`, dziUrl: `${base}/${key}.dzi` }] : [];
+      });
+  const downloads = withdrawn
+    ? []
+    : [
+        { label: "Web JPEG", url: `${base}/preview.jpg`, format: "image/jpeg" },
+        ...(licence.allowsDownload
+          ? [
+              ...v.renditions.map((key) => ({ label: `${key === "natural" ? "Natural" : "Structure"} rendition, 16-bit PNG`, url: `${base}/${key}.png`, format: "image/png" })),
+              { label: "Master, FITS", url: `${base}/master.fits`, format: "application/fits" },
+            ]
+          : []),
+      ];
+  const params = (red?.params ?? {}) as unknown as Record<string, unknown>;
+  return {
+    ...cardOf(plate, v),
+    version: v.version,
+    isCurrentVersion: v.version === plate.currentVersion,
+    description: plate.description,
+    acquiredBy: plate.acquiredBy,
+    processedBy: plate.processedBy,
+    licence,
+    site: site ? { name: site.name, kind: site.kind, position: toPublicPosition(site.latDeg, site.lonDeg, site.precision) } : { name: "", kind: "fixed", position: null },
+    kit: kit ? { name: kit.name, camera: kit.camera, focalMm: kit.focalMm, fNumber: kit.fNumber } : null,
+    exposuresS: facts.exposuresS,
+    captureSpan: facts.captureStartUtc && facts.captureEndUtc ? { start: facts.captureStartUtc, end: facts.captureEndUtc } : null,
+    renditionFiles,
+    geometry: withdrawn ? {} : v.geometry,
+    disclosure: {
+      pipelineVersion: red?.pipelineVersion ?? null,
+      registration: String(params.registration ?? ""),
+      filter: String(params.filter ?? ""),
+      filterStrength: num(params.filterStrength) ?? 0.3,
+      stages: Object.entries(timings).flatMap(([name, ms]) => (num(ms) === null ? [] : [{ name, ms: num(ms) as number }])),
+      moonSilhouetteUtc: facts.moonSilhouetteUtc,
+      referenceFrame: facts.referenceFrame,
+      dynamicRangeStops: facts.dynamicRangeStops,
+    },
+    downloads,
+    versions: versions.map((x) => ({ version: x.version, createdAt: x.createdAt.toISOString(), changeNote: x.changeNote, url: `/plates/${plate.slug}/v/${x.version}` })),
+    withdrawn,
+    reductionId: v.reductionId,
+  };
+}
