@@ -104,6 +104,18 @@ const API_CASES: Case[] = [
     body: { registration: "corona" },
     expect: { visitor: 401, member: 400, curator: 400, editor: 404, admin: 404 },
   },
+  // The public gallery and its IIIF documents: open to all; a plate that is not published is not found.
+  { route: "/api/plates", method: "GET", path: () => "/api/plates?eclipse=2027-08-02", expect: everyone(200) },
+  { route: "/iiif/plates/[slug]/manifest.json", method: "GET", path: () => "/iiif/plates/no-such-plate/manifest.json", expect: everyone(404) },
+  { route: "/iiif/plates/[slug]/v/[version]/manifest.json", method: "GET", path: () => "/iiif/plates/no-such-plate/v/1/manifest.json", expect: everyone(404) },
+  { route: "/iiif/eclipses/[id]/collection.json", method: "GET", path: () => "/iiif/eclipses/2027-08-02/collection.json", expect: everyone(200) },
+  // Files of a reduction no published plate shows and nobody here may see: not found, even for a visitor.
+  {
+    route: "/iiif/reductions/[id]/[...path]",
+    method: "GET",
+    path: () => "/iiif/reductions/00000000-0000-4000-8000-000000000000/natural-iiif/info.json",
+    expect: everyone(404),
+  },
   // An id that names no reduction: not found for everyone signed in.
   {
     route: "/api/reductions/[id]",

@@ -1,0 +1,10 @@
+import { getDb } from "@/db/client";
+import { PUBLIC, route } from "@/lib/http/route";
+import { serveReductionFile } from "@/lib/plates/reduction-files";
+
+export const dynamic = "force-dynamic";
+
+// Tiles (IIIF Image API level 0 and Deep Zoom), preview and downloads of a reduction.
+export const GET = route({ access: PUBLIC }, async ({ req, actor, params }) =>
+  serveReductionFile(getDb(), actor, params.id, params.path, new URL(req.url).searchParams.get("download") === "1"),
+);

@@ -1,0 +1,104 @@
+// IIIF Presentation 3.0 documents of a plate, read back by @iiif/parser; the
+// required fields are those of the specification (shared/REFERENCES.md:
+// Manifest with id, type, label as a language map, items of Canvas with width
+// and height; rights a Creative Commons or RightsStatements.org URI).
+import { normalize } from "@iiif/parser";
+import { describe, expect, it } from "vitest";
+import { buildEclipseCollection, buildPlateManifest, creditLine } from "@/lib/plates/iiif";
+import { LICENCE_INFO } from "@/lib/plates/licences";
+import type { PublicPlateDto } from "@/lib/plates/public";
+
+// normalize() types its entity stores loosely; the tests read them as records.
+type Store = Record<string, Record<string, any>>; // eslint-disable-line @typescript-eslint/no-explicit-any
+const storeOf = (parsed: ReturnType<typeof normalize>, type: string): Store => (parsed.entities as unknown as Record<string, Store>)[type];
+
+const APP = "https://gallery.kestrel-ridge.example";
+const RID = "3f1c2d4e-5a6b-4c7d-8e9f-0a1b2c3d4e5f";
+
+function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
+  return {
+    slug: "luxor-corona-2027",
+    title: "The corona over Luxor",
+    caption: "Streamers to four solar radii.",
+    altText: "A dark Moon ringed by pearly streamers.",
+    eclipseId: "2027-08-02",
+    siteCountry: "Egypt",
+    photographer: "Oskar Lindqvist",
+    renditions: ["natural", "structure"],
+    previewUrl: `/iiif/reductions/${RID}/preview.jpg`,
+    publishedAt: "2027-08-20T10:00:00.000Z",
+    version: 1,
+    isCurrentVersion: true,
+    description: "",
+    acquiredBy: "Oskar Lindqvist",
+    processedBy: "crownlight-imaging 0.1.0",
+    licence: LICENCE_INFO["CC-BY-4.0"],
+    site: { name: "Luxor, west bank", kind: "fixed", position: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" } },
+    kit: { name: "Refractor", camera: "Mono camera", focalMm: 600, fNumber: 7 },
+    exposuresS: [0.002, 0.008, 0.033, 0.125],
+    captureSpan: { start: "2027-08-02T10:04:40.001Z", end: "2027-08-02T10:04:46.062Z" },
+    renditionFiles: [
+      { key: "natural", width: 6000, height: 4000, iiifInfoUrl: `/iiif/reductions/${RID}/natural-iiif/info.json`, dziUrl: `/iiif/reductions/${RID}/natural.dzi` },
+      { key: "structure", width: 6000, height: 4000, iiifInfoUrl: `/iiif/reductions/${RID}/structure-iiif/info.json`, dziUrl: `/iiif/reductions/${RID}/structure.dzi` },
+    ],
+    geometry: {},
+    disclosure: { pipelineVersion: "crownlight-imaging 0.1.0", registration: "sun", filter: "mgn", filterStrength: 0.3, stages: [], moonSilhouetteUtc: null, referenceFrame: null, dynamicRangeStops: null },
+    downloads: [{ label: "Master, FITS", url: `/iiif/reductions/${RID}/master.fits`, format: "application/fits" }],
+    versions: [],
+    withdrawn: null,
+    reductionId: RID,
+    ...overrides,
+  };
+}
+
+describe("plate manifest", () => {
+  const manifest = buildPlateManifest(plate(), APP, "Kestrel Ridge Astronomical Society");
+
+  it("carries the fields Presentation 3.0 requires and parses without loss", () => {
+    expect(manifest["@context"]).toBe("http://iiif.io/api/presentation/3/context.json");
+    const parsed = normalize(structuredClone(manifest));
+    expect(parsed.resource).toEqual({ id: `${APP}/iiif/plates/luxor-corona-2027/manifest.json`, type: "Manifest" });
+    const m = storeOf(parsed, "Manifest")[`${APP}/iiif/plates/luxor-corona-2027/manifest.json`];
+    expect(m.label).toEqual({ en: ["The corona over Luxor"] });
+    expect(m.items).toHaveLength(2);
+    for (const ref of m.items) {
+      const canvas = storeOf(parsed, "Canvas")[ref.id];
+      expect(canvas.width).toBe(6000);
+      expect(canvas.height).toBe(4000);
+      expect(canvas.items).toHaveLength(1);
+    }
+    expect(m.rights).toBe("http://creativecommons.org/licenses/by/4.0/");
+    expect(m.requiredStatement?.value).toEqual({ en: [creditLine(plate(), "Kestrel Ridge Astronomical Society")] });
+  });
+
+  it("paints each canvas with an image that offers its level-0 Image API service", () => {
+    const parsed = normalize(structuredClone(manifest));
+    const annotations = Object.values(storeOf(parsed, "Annotation"));
+    expect(annotations).toHaveLength(2);
+    const services = Object.values(storeOf(parsed, "Service")) as { id?: string; type?: string; profile?: string }[];
+    expect(services.map((s) => s.id).sort()).toEqual([`${APP}/iiif/reductions/${RID}/natural-iiif`, `${APP}/iiif/reductions/${RID}/structure-iiif`]);
+    expect(services.every((s) => s.type === "ImageService3" && s.profile === "level0")).toBe(true);
+  });
+
+  it("links the FITS master only when the licence offers downloads", () => {
+    expect(manifest.seeAlso).toEqual([expect.objectContaining({ id: `${APP}/iiif/reductions/${RID}/master.fits`, format: "application/fits", type: "Dataset" })]);
+    const closed = buildPlateManifest(plate({ licence: LICENCE_INFO["all-rights-reserved"], downloads: [] }), APP, "KRAS");
+    expect(closed.seeAlso).toBeUndefined();
+    expect(closed.rights).toBe("http://rightsstatements.org/vocab/InC/1.0/");
+  });
+
+  it("names an older version's manifest by its version", () => {
+    const old = buildPlateManifest(plate({ version: 1, isCurrentVersion: false }), APP, "KRAS");
+    expect(old.id).toBe(`${APP}/iiif/plates/luxor-corona-2027/v/1/manifest.json`);
+  });
+});
+
+describe("eclipse collection", () => {
+  it("lists each plate's manifest and parses as a Collection", () => {
+    const c = buildEclipseCollection("2027-08-02", [plate(), plate({ slug: "cadiz-inner-corona", title: "Inner corona from Cadiz" })], APP);
+    const parsed = normalize(structuredClone(c));
+    expect(parsed.resource.type).toBe("Collection");
+    const col = storeOf(parsed, "Collection")[`${APP}/iiif/eclipses/2027-08-02/collection.json`];
+    expect(col.items.map((i: { id: string }) => i.id)).toEqual([`${APP}/iiif/plates/luxor-corona-2027/manifest.json`, `${APP}/iiif/plates/cadiz-inner-corona/manifest.json`]);
+  });
+});
