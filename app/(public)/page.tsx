@@ -3,9 +3,21 @@ import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { currentActor } from "@/app/_server/actor";
 import { buttonClasses } from "@/components/ui/button";
+import { PlateCard } from "@/components/gallery/plate-card";
+import { listPublishedPlates } from "@/lib/plates/public";
 
 export default async function LandingPage() {
-  const [settings, actor] = await Promise.all([findSocietySettings(getDb()), currentActor()]);
+  const db = getDb();
+  const [settings, actor, featured, latest] = await Promise.all([
+    findSocietySettings(db),
+    currentActor(),
+    listPublishedPlates(db, { featuredOnly: true, limit: 6 }),
+    listPublishedPlates(db, { limit: 1 }),
+  ]);
+  // The latest eclipse with published results, and its plates.
+  const latestEclipse = latest.plates[0]?.eclipseId;
+  const ofLatest = latestEclipse ? await listPublishedPlates(db, { eclipseId: latestEclipse, limit: 6 }) : null;
+  const shown = featured.plates.length ? featured.plates : (ofLatest?.plates ?? []);
   return (
     <div className="flex flex-col gap-12">
       <section aria-labelledby="intro" className="max-w-3xl">
@@ -35,6 +47,26 @@ export default async function LandingPage() {
           )}
         </div>
       </section>
+      {shown.length ? (
+        <section aria-labelledby="featured-h" className="flex flex-col gap-4">
+          <div className="flex flex-wrap items-end justify-between gap-4">
+            <h2 id="featured-h" className="text-2xl font-semibold">
+              {featured.plates.length ? "Featured plates" : `Latest results: the eclipse of ${latestEclipse}`}
+            </h2>
+            <Link href="/gallery">All plates in the gallery</Link>
+          </div>
+          <ul className="grid gap-6 sm:grid-cols-2 lg:grid-cols-3" aria-label="Featured plates">
+            {shown.map((p) => (
+              <PlateCard key={p.slug} plate={p} />
+            ))}
+          </ul>
+          {latestEclipse ? (
+            <p className="text-sm">
+              <Link href={`/eclipses/${latestEclipse}`}>The eclipse of {latestEclipse}: circumstances, sites and every plate</Link>
+            </p>
+          ) : null}
+        </section>
+      ) : null}
       <section aria-labelledby="next-eclipse" className="rounded-card border border-line bg-surface-raised p-6">
         <h2 id="next-eclipse" className="text-xl font-semibold">
           Next expedition: the total solar eclipse of 2027 August 2

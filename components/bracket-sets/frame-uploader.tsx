@@ -7,7 +7,7 @@
 import AwsS3, { type AwsS3Part } from "@uppy/aws-s3";
 import Uppy, { type Meta, type UppyFile } from "@uppy/core";
 import { useRouter } from "next/navigation";
-import { useEffect, useId, useMemo, useRef, useState, type DragEvent } from "react";
+import { useEffect, useId, useMemo, useRef, useState, useSyncExternalStore, type DragEvent } from "react";
 import type { FrameDto, SignedPartsDto, UploadDto, UploadPartsDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
 import { ProgressBar } from "@/components/ui/progress-bar";
@@ -29,6 +29,15 @@ type FileRow = {
 };
 
 const PARALLEL_PARTS = 4;
+
+function subscribeOnline(onChange: () => void): () => void {
+  window.addEventListener("online", onChange);
+  window.addEventListener("offline", onChange);
+  return () => {
+    window.removeEventListener("online", onChange);
+    window.removeEventListener("offline", onChange);
+  };
+}
 
 function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>): FileRow {
   const p = f.progress;
@@ -54,12 +63,13 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   const inputId = useId();
   const statusId = useId();
   const [rows, setRows] = useState<FileRow[]>([]);
-  const [isOffline, setIsOffline] = useState(false);
+  const isOnline = useSyncExternalStore(subscribeOnline, () => navigator.onLine, () => true);
   const [isDragging, setIsDragging] = useState(false);
   const [notice, setNotice] = useState("");
   const resumedIds = useRef(new Set<string>());
   // Uploads the server still holds open (from an earlier page), matched by name and size.
   const pending = useRef(new Map(openUploads.map((u) => [`${u.fileName}\u0000${u.sizeBytes}`, u])));
+  const [interrupted, setInterrupted] = useState(openUploads);
   const refreshTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
 
   const uppy = useMemo(() => {
@@ -114,6 +124,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
       const open = pending.current.get(key);
       if (open) {
         pending.current.delete(key);
+        setInterrupted((list) => list.filter((u) => u.id !== open.id));
         resumedIds.current.add(file.id);
         // With an upload id and key in its state, Uppy asks which parts S3 holds and sends the rest.
         uppy.setFileState(file.id, { s3Multipart: { uploadId: open.id, key: open.frameId } } as Partial<FrameFile>);
@@ -122,24 +133,17 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
     const onRestricted = (file: FrameFile | undefined, error: Error) => {
       setNotice(`${file?.name ?? "A file"}: ${error.message}`);
     };
-    const onOnline = () => setIsOffline(false);
-    const onOffline = () => setIsOffline(true);
     uppy.on("state-update", sync);
     uppy.on("file-added", onAdded);
     uppy.on("restriction-failed", onRestricted);
     uppy.on("upload-success", refreshSoon);
     uppy.on("upload-error", refreshSoon);
-    window.addEventListener("online", onOnline);
-    window.addEventListener("offline", onOffline);
-    setIsOffline(!navigator.onLine);
     return () => {
       uppy.off("state-update", sync);
       uppy.off("file-added", onAdded);
       uppy.off("restriction-failed", onRestricted);
       uppy.off("upload-success", refreshSoon);
       uppy.off("upload-error", refreshSoon);
-      window.removeEventListener("online", onOnline);
-      window.removeEventListener("offline", onOffline);
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
     };
   }, [uppy, router]);
@@ -172,7 +176,6 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   const paused = rows.filter((r) => r.state === "paused").length;
   const failed = rows.filter((r) => r.state === "refused").length;
   const done = rows.filter((r) => r.state === "done").length;
-  const interrupted = [...pending.current.values()];
   const summary = rows.length
     ? `${done} of ${rows.length} file${rows.length === 1 ? "" : "s"} sent, ${formatBytes(sent)} of ${formatBytes(total)}` +
       (paused ? `, ${paused} paused` : "") +
@@ -229,7 +232,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
         </div>
       ) : null}
 
-      {isOffline ? (
+      {!isOnline ? (
         <p role="alert" className="rounded-card border border-danger p-3 text-sm font-medium text-danger">
           The connection is lost. Uploads wait and continue by themselves when it comes back.
         </p>

@@ -28,7 +28,7 @@ export function EclipseTable({ caption, rows }: { caption: string; rows: Eclipse
         {rows.map((e) => (
           <TableRow key={e.id}>
             <TableCell className="font-mono">
-              {e.id} {e.peakAt.slice(11, 16)}
+              <Link href={`/eclipses/${e.id}`}>{e.id}</Link> {e.peakAt.slice(11, 16)}
             </TableCell>
             <TableCell>
               <Badge tone={KIND_TONE[e.kind]}>{e.kind}</Badge>

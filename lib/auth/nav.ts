@@ -11,6 +11,7 @@ export interface NavEntry {
 
 export const NAV_ENTRIES: NavEntry[] = [
   { href: "/", label: "Home" },
+  { href: "/gallery", label: "Gallery" },
   { href: "/eclipses", label: "Eclipses" },
   { href: "/planner", label: "Planner" },
   { href: "/studio", label: "Studio", action: "studio:use" },

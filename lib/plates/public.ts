@@ -20,6 +20,9 @@ export interface PlateCardDto {
   altText: string;
   eclipseId: string;
   siteCountry: string | null;
+  siteName: string;
+  /** At the site's precision; null when the observer keeps it private. */
+  sitePosition: PublicPosition | null;
   photographer: string;
   renditions: Rendition[];
   previewUrl: string;
@@ -71,6 +74,7 @@ export interface PublicPlateDto extends PlateCardDto {
 }
 
 export interface PlateFilters {
+  featuredOnly?: boolean;
   eclipseId?: string;
   country?: string;
   photographer?: string;
@@ -81,7 +85,9 @@ export interface PlateFilters {
   limit?: number;
 }
 
-function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }): PlateCardDto {
+type CardSite = { name: string; latDeg: number; lonDeg: number; precision: "exact" | "rounded" | "hidden" } | null | undefined;
+
+function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }, site: CardSite): PlateCardDto {
   return {
     slug: p.slug,
     title: p.title,
@@ -89,6 +95,8 @@ function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }): 
     altText: p.altText,
     eclipseId: p.eclipseId,
     siteCountry: p.siteCountry,
+    siteName: site?.name ?? "",
+    sitePosition: site ? toPublicPosition(site.latDeg, site.lonDeg, site.precision) : null,
     photographer: p.acquiredBy,
     renditions: v.renditions,
     previewUrl: `${reductionFilesBase(v.reductionId)}/preview.jpg`,
@@ -101,6 +109,7 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
   const limit = Math.min(Math.max(filters.limit ?? 24, 1), 60);
   const where: SQL[] = [eq(plates.state, "published")];
   if (filters.eclipseId) where.push(eq(plates.eclipseId, filters.eclipseId));
+  if (filters.featuredOnly) where.push(eq(plates.featured, true));
   if (filters.country) where.push(eq(plates.siteCountry, filters.country));
   if (filters.photographer) where.push(eq(plates.acquiredBy, filters.photographer));
   if (filters.rendition) where.push(sql`${plateVersions.renditions} @> ${JSON.stringify([filters.rendition])}::jsonb`);
@@ -116,16 +125,23 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
     }
   }
   const rows = await db
-    .select({ plate: plates, reductionId: plateVersions.reductionId, renditions: plateVersions.renditions })
+    .select({
+      plate: plates,
+      reductionId: plateVersions.reductionId,
+      renditions: plateVersions.renditions,
+      site: { name: sites.name, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision },
+    })
     .from(plates)
     .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, plates.currentVersion)))
+    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .innerJoin(sites, eq(sites.id, bracketSets.siteId))
     .where(and(...where))
     .orderBy(desc(plates.publishedAt), desc(plates.slug))
     .limit(limit + 1);
   const page = rows.slice(0, limit);
   const last = page.at(-1);
   return {
-    plates: page.map((r) => cardOf(r.plate, r)),
+    plates: page.map((r) => cardOf(r.plate, r, r.site)),
     nextCursor: rows.length > limit && last ? `${last.plate.publishedAt?.toISOString()}|${last.plate.slug}` : null,
   };
 }
@@ -202,7 +218,7 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
       ];
   const params = (red?.params ?? {}) as unknown as Record<string, unknown>;
   return {
-    ...cardOf(plate, v),
+    ...cardOf(plate, v, site),
     version: v.version,
     isCurrentVersion: v.version === plate.currentVersion,
     description: plate.description,

@@ -144,6 +144,11 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/studio/kits/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/gallery", expect: everyone(200) },
+  { path: "/plates/no-such-plate", expect: everyone(404) },
+  { path: "/plates/no-such-plate/v/1", expect: everyone(404) },
+  { path: "/eclipses/2027-08-02", expect: everyone(200) },
+  { path: "/eclipses/1999-01-01", expect: everyone(404) },
   { path: "/studio/sets/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   // A set that does not exist, or is someone else's: the same 404.
   { path: "/studio/sets/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },

@@ -23,6 +23,8 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     altText: "A dark Moon ringed by pearly streamers.",
     eclipseId: "2027-08-02",
     siteCountry: "Egypt",
+    siteName: "Luxor, west bank",
+    sitePosition: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" },
     photographer: "Oskar Lindqvist",
     renditions: ["natural", "structure"],
     previewUrl: `/iiif/reductions/${RID}/preview.jpg`,

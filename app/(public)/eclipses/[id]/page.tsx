@@ -1,0 +1,135 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { foundOr404 } from "@/app/_server/found";
+import { formatPoint } from "@/components/eclipses/eclipse-table";
+import { PlateCard } from "@/components/gallery/plate-card";
+import { PageTitle } from "@/components/page-title";
+import { EmptyState } from "@/components/ui/empty-state";
+import { getDb } from "@/db/client";
+import { findLocalCircumstances, type LocalCircumstances } from "@/lib/astro/local-circumstances";
+import { findEclipse } from "@/lib/eclipses/eclipses";
+import { listPublishedPlates } from "@/lib/plates/public";
+
+type Props = { params: Promise<{ id: string }> };
+
+export async function generateMetadata({ params }: Props): Promise<Metadata> {
+  const { id } = await params;
+  return { title: `Eclipse of ${id}`, description: `Circumstances and the society's plates of the solar eclipse of ${id}.` };
+}
+
+function hms(ms: number): string {
+  return new Date(ms).toISOString().slice(11, 19);
+}
+
+/** Contacts at the point of greatest eclipse, computed from the ephemeris; null when the eclipse has no central line. */
+function circumstancesAtPeak(lat: number | null, lon: number | null, peakAt: string): LocalCircumstances | null {
+  if (lat === null || lon === null) return null;
+  try {
+    return findLocalCircumstances({ latDeg: lat, lonDeg: lon, elevationM: 0 }, Date.parse(peakAt));
+  } catch {
+    return null;
+  }
+}
+
+export default async function EclipsePage({ params }: Props) {
+  const { id } = await params;
+  if (!/^\d{4}-\d{2}-\d{2}$/.test(id)) notFound();
+  const db = getDb();
+  const eclipse = await foundOr404(findEclipse(db, id));
+  const { plates } = await listPublishedPlates(db, { eclipseId: id, limit: 60 });
+  const c = circumstancesAtPeak(eclipse.peakLatDeg, eclipse.peakLonDeg, eclipse.peakAt);
+  const sites = new Map<string, { name: string; country: string | null; count: number }>();
+  for (const p of plates) {
+    const key = `${p.siteName}|${p.siteCountry}`;
+    const s = sites.get(key) ?? { name: p.siteName, country: p.siteCountry, count: 0 };
+    s.count += 1;
+    sites.set(key, s);
+  }
+  return (
+    <>
+      <PageTitle title={eclipse.name ?? `The ${eclipse.kind} solar eclipse of ${eclipse.id}`} lead={`Greatest eclipse at ${eclipse.peakAt.slice(11, 19)} UTC, ${formatPoint(eclipse.peakLatDeg, eclipse.peakLonDeg)}.`}>
+        <Link href={`/planner?eclipse=${eclipse.id}`}>Plan for this eclipse</Link>
+      </PageTitle>
+      <div className="flex flex-col gap-10">
+        {c ? (
+          <section aria-labelledby="circ-h">
+            <h2 id="circ-h" className="mb-3 text-xl font-semibold">
+              At the point of greatest eclipse
+            </h2>
+            <dl className="grid max-w-2xl grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
+              <dt className="text-ink-muted">First contact</dt>
+              <dd className="font-mono">{hms(c.firstContact.utcMs)} UTC</dd>
+              {c.secondContact ? (
+                <>
+                  <dt className="text-ink-muted">Second contact</dt>
+                  <dd className="font-mono">{hms(c.secondContact.utcMs)} UTC</dd>
+                </>
+              ) : null}
+              <dt className="text-ink-muted">Maximum</dt>
+              <dd className="font-mono">
+                {hms(c.maximum.utcMs)} UTC, Sun {c.maximum.sunApparentAltDeg.toFixed(0)}° high
+              </dd>
+              {c.thirdContact ? (
+                <>
+                  <dt className="text-ink-muted">Third contact</dt>
+                  <dd className="font-mono">{hms(c.thirdContact.utcMs)} UTC</dd>
+                </>
+              ) : null}
+              <dt className="text-ink-muted">Fourth contact</dt>
+              <dd className="font-mono">{hms(c.fourthContact.utcMs)} UTC</dd>
+              {c.centralDurationS !== null ? (
+                <>
+                  <dt className="text-ink-muted">{c.kind === "total" ? "Totality" : "Annularity"}</dt>
+                  <dd className="font-mono">
+                    {Math.floor(c.centralDurationS / 60)} min {Math.round(c.centralDurationS % 60)} s
+                  </dd>
+                </>
+              ) : null}
+              <dt className="text-ink-muted">Magnitude</dt>
+              <dd className="font-mono">{c.magnitude.toFixed(3)}</dd>
+            </dl>
+            <p className="mt-3 max-w-prose text-sm text-warn">
+              Look at or photograph the partly eclipsed Sun only through a certified solar filter; filters come off only in totality. Follow local guidance and experienced
+              observers.
+            </p>
+          </section>
+        ) : null}
+        <section aria-labelledby="sites-h">
+          <h2 id="sites-h" className="mb-3 text-xl font-semibold">
+            Sites with results
+          </h2>
+          {sites.size ? (
+            <ul className="flex flex-col gap-1">
+              {[...sites.values()].map((s) => (
+                <li key={`${s.name}|${s.country}`}>
+                  {s.name}
+                  {s.country ? `, ${s.country}` : ""}: {s.count} plate{s.count === 1 ? "" : "s"}
+                </li>
+              ))}
+            </ul>
+          ) : (
+            <p className="text-ink-muted">No published results yet.</p>
+          )}
+        </section>
+        <section aria-labelledby="plates-h">
+          <h2 id="plates-h" className="mb-3 text-xl font-semibold">
+            Plates
+          </h2>
+          {plates.length ? (
+            <ul className="grid gap-6 sm:grid-cols-2 lg:grid-cols-3" aria-label={`Plates of ${eclipse.id}`}>
+              {plates.map((p) => (
+                <PlateCard key={p.slug} plate={p} />
+              ))}
+            </ul>
+          ) : (
+            <EmptyState title="No plates yet" message="Plates appear here when curators publish members' results of this eclipse." />
+          )}
+          <p className="mt-4 text-sm">
+            <a href={`/iiif/eclipses/${eclipse.id}/collection.json`}>IIIF collection of these plates</a>
+          </p>
+        </section>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,161 @@
+import Link from "next/link";
+import type { ReactNode } from "react";
+import type { PublicPlateDto } from "@/lib/plates/public";
+import { formatExposure } from "@/components/bracket-sets/exposure-text";
+
+const STAGE_NAMES: Record<string, string> = {
+  decode: "Decoding and linearizing the frames",
+  limb: "Fitting each frame's limb",
+  register: "Registering the frames",
+  merge: "Merging across exposures",
+  radial: "Radial filtering",
+  tone: "Tone mapping",
+  tiles: "Cutting the zoom tiles",
+  write: "Writing the outputs",
+};
+
+function Row({ term, children }: { term: string; children: ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-muted">{term}</dt>
+      <dd>{children}</dd>
+    </>
+  );
+}
+
+function utcTime(iso: string): string {
+  return `${iso.slice(0, 10)} ${iso.slice(11, 19)} UTC`;
+}
+
+/** What a visitor must know to read the image: what, where, when, with what, by whom, how, and under which licence. */
+export function PlateDetails({ plate, society }: { plate: PublicPlateDto; society: string }) {
+  const pos = plate.site.position;
+  return (
+    <div className="flex flex-col gap-8">
+      {plate.description ? <div className="max-w-prose whitespace-pre-line text-ink">{plate.description}</div> : null}
+
+      <section aria-labelledby="credits-h">
+        <h2 id="credits-h" className="mb-3 text-lg font-semibold">
+          Credits and licence
+        </h2>
+        <dl className="grid grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
+          <Row term="Data acquired by">{plate.acquiredBy}</Row>
+          <Row term="Processed by">{plate.processedBy}</Row>
+          <Row term="Published by">{society}</Row>
+          <Row term="Licence">
+            <a href={plate.licence.deedUrl} rel="license">
+              {plate.licence.name}
+            </a>
+          </Row>
+        </dl>
+      </section>
+
+      <section aria-labelledby="observation-h">
+        <h2 id="observation-h" className="mb-3 text-lg font-semibold">
+          The observation
+        </h2>
+        <dl className="grid grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
+          <Row term="Eclipse">
+            <Link href={`/eclipses/${plate.eclipseId}`}>Total solar eclipse of {plate.eclipseId}</Link>
+          </Row>
+          <Row term="Site">
+            {plate.site.name}
+            {plate.site.kind === "moving" ? " (moving: ship or aircraft)" : ""}
+            {pos ? (
+              <span className="block font-mono text-ink-muted">
+                {pos.latDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°, {pos.lonDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°{pos.precision === "rounded" ? " (rounded to about 10 km)" : ""}
+              </span>
+            ) : (
+              <span className="block text-ink-muted">The observer keeps the exact position private.</span>
+            )}
+            {plate.siteCountry ? <span className="block text-ink-muted">{plate.siteCountry}</span> : null}
+          </Row>
+          {plate.captureSpan ? (
+            <Row term="Time">
+              {utcTime(plate.captureSpan.start)} to {plate.captureSpan.end.slice(11, 19)} UTC
+            </Row>
+          ) : null}
+          {plate.kit ? (
+            <Row term="Instrument">
+              {plate.kit.camera}, {plate.kit.focalMm} mm at f/{plate.kit.fNumber} ({plate.kit.name})
+            </Row>
+          ) : null}
+          {plate.exposuresS.length ? <Row term="Exposures">{plate.exposuresS.map((e) => formatExposure(e)).join(", ")}</Row> : null}
+        </dl>
+      </section>
+
+      <section aria-labelledby="processing-h">
+        <h2 id="processing-h" className="mb-3 text-lg font-semibold">
+          How this image was made
+        </h2>
+        <p className="mb-3 max-w-prose text-sm text-ink-muted">
+          The frames of one bracket were aligned {plate.disclosure.registration === "sun" ? "on the Sun's centre (from the site, the time and the ephemeris)" : plate.disclosure.registration === "moon" ? "on the Moon's limb" : "on the corona"}, merged across their
+          exposures into one image of the light, and shown two ways: the natural rendition compresses the brightness range; the structure rendition applies a radial filter (
+          {plate.disclosure.filter === "nrgf" ? "normalizing radial graded filter" : "multi-scale Gaussian normalization"}, strength {plate.disclosure.filterStrength}) that brings out structure far from the
+          limb. Nothing was painted or cloned.
+        </p>
+        <dl className="grid grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
+          {plate.disclosure.pipelineVersion ? <Row term="Pipeline">{plate.disclosure.pipelineVersion}</Row> : null}
+          {plate.disclosure.referenceFrame ? <Row term="Reference frame">{plate.disclosure.referenceFrame}</Row> : null}
+          {plate.disclosure.moonSilhouetteUtc ? <Row term="Moon silhouette as at">{utcTime(plate.disclosure.moonSilhouetteUtc)}</Row> : null}
+          {plate.disclosure.dynamicRangeStops !== null ? <Row term="Brightness range recorded">{plate.disclosure.dynamicRangeStops.toFixed(1)} stops</Row> : null}
+          {plate.disclosure.stages.length ? (
+            <Row term="Stages">
+              <ol className="list-decimal pl-5">
+                {plate.disclosure.stages.map((s) => (
+                  <li key={s.name}>{STAGE_NAMES[s.name] ?? s.name}</li>
+                ))}
+              </ol>
+            </Row>
+          ) : null}
+        </dl>
+      </section>
+
+      {plate.downloads.length ? (
+        <section aria-labelledby="downloads-h">
+          <h2 id="downloads-h" className="mb-3 text-lg font-semibold">
+            Downloads
+          </h2>
+          <p className="mb-3 max-w-prose text-sm">
+            Licensed under <a href={plate.licence.deedUrl}>{plate.licence.shortName}</a>. Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
+            {plate.licence.allowsDownload ? "" : " Full-resolution files are not offered under this licence."}
+          </p>
+          <ul className="flex flex-col gap-2 text-sm">
+            {plate.downloads.map((d) => (
+              <li key={d.url}>
+                <a href={d.url} download>
+                  {d.label}
+                </a>
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+
+      <section aria-labelledby="versions-h">
+        <h2 id="versions-h" className="mb-3 text-lg font-semibold">
+          Versions and links
+        </h2>
+        <ul className="flex flex-col gap-1 text-sm">
+          {plate.versions.map((v) => (
+            <li key={v.version}>
+              <Link href={v.url} aria-current={v.version === plate.version ? "page" : undefined}>
+                Version {v.version}
+              </Link>{" "}
+              <span className="text-ink-muted">
+                {v.createdAt.slice(0, 10)}
+                {v.changeNote ? `: ${v.changeNote}` : ""}
+              </span>
+            </li>
+          ))}
+          {plate.withdrawn ? null : (
+            <li>
+              <a href={`/iiif/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}/manifest.json`}>IIIF manifest</a>{" "}
+              <span className="text-ink-muted">(to show this plate in other IIIF viewers)</span>
+            </li>
+          )}
+        </ul>
+      </section>
+    </div>
+  );
+}
