@@ -117,6 +117,7 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
     return r.state === "running" && isKillPoint(r) ? r : undefined;
   }, 180_000, 25);
   await first.kill("SIGKILL");
+  const killedAt = Date.now();
   const [afterKill] = await db.select().from(reductions).where(eq(reductions.id, started.id));
   expect(afterKill.state, "the killed run did not finish the reduction").toBe("running");
 
@@ -127,6 +128,8 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
     return r.state === "done" ? r : undefined;
   }, 240_000, 500);
 
+  // For the record (not an assertion): where the kill landed and how long the recovery took.
+  console.info(`[faults] killed at ${atKill.stage} ${(atKill.progress * 100).toFixed(0)} %; done ${((Date.now() - killedAt) / 1000).toFixed(1)} s after the kill`);
   expect(done.progress).toBe(1);
   expect(done.error).toBeNull();
   expect(done.finishedAt).not.toBeNull();
@@ -155,7 +158,11 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
   expect(objects.filter((o) => o.lastModified.getTime() < secondRunFrom).map((o) => o.key)).toEqual([]);
 
   // The job ran to completion once: completed in BullMQ after one stall, mirrored as done.
-  const [run] = await db.select().from(jobRuns).where(eq(jobRuns.id, jobId));
+  // The mirror follows BullMQ's "completed" event, a moment after the handler wrote the reduction row.
+  const run = await waitFor("the job's mirror to say done", async () => {
+    const [r] = await db.select().from(jobRuns).where(eq(jobRuns.id, jobId));
+    return r.state === "running" || r.state === "queued" ? undefined : r;
+  }, 60_000);
   expect([run.state, run.progress, run.error]).toEqual(["done", 1, null]);
   const connection = createRedis(process.env.REDIS_URL!, false);
   const queue = new Queue("reduce", { connection, prefix: PREFIX });
