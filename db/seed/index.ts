@@ -13,7 +13,9 @@ if (!url) {
   console.error("db/seed: DATABASE_URL is missing");
   process.exit(1);
 }
-const withBrackets = process.env.SEED_DEMO_BRACKETS === "1";
+// Never in a test database (the names scripts/test.sh uses), whatever the environment says.
+const isTestDatabase = /\/crownlight_test(_lane\d)?$/.test(url);
+const withBrackets = process.env.SEED_DEMO_BRACKETS === "1" && !isTestDatabase;
 const { db, pool } = createDb(url, 2);
 try {
   await seedSociety(db);
