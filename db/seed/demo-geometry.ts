@@ -47,7 +47,7 @@ export interface DemoFrameFile {
 
 export interface DemoBracket {
   frames: DemoFrameFile[];
-  /** Second and third contact and the instant of the middle frame, UTC ms. */
+  /** Second and third contact at the site, UTC ms (the bracket is centred between them). */
   secondContactMs: number;
   thirdContactMs: number;
   plateScaleArcsecPerPx: number;
