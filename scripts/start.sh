@@ -1,8 +1,9 @@
 #!/usr/bin/env bash
 # The one command that sets everything up and serves the app:
 # installs what is missing, starts PostgreSQL, Redis and the fakes, migrates,
-# seeds the demo scenario, builds (when sources changed) and serves the app at
-# http://127.0.0.1:3000 with its worker. Ctrl-C stops all of it.
+# starts the worker, seeds the demo scenario (people, and three demo brackets
+# uploaded, ingested and sent to reduction), builds (when sources changed) and
+# serves the app at http://127.0.0.1:3000. Ctrl-C stops all of it.
 . "$(dirname "$0")/lib/common.sh"
 . "$(dirname "$0")/lib/app.sh"
 
@@ -11,19 +12,25 @@ load_env
 bash "$ROOT/scripts/services.sh" start
 
 (cd "$ROOT" && node --import tsx db/migrate.ts) || die "migration failed"
-(cd "$ROOT" && node --import tsx db/seed/index.ts) || die "seeding failed"
 
-build_app .next
-
+# Ctrl-C ends with 0; a step that fails (die) keeps its failing status.
 cleanup() {
+  local rc="${1:-0}"
   trap - INT TERM EXIT
   say "stopping"
   bash "$ROOT/scripts/stop.sh"
-  exit 0
+  exit "$rc"
 }
-trap cleanup INT TERM EXIT
+trap 'cleanup 0' INT TERM
+trap 'cleanup $?' EXIT
 
+# The worker starts before the seed: the demo brackets are ingested by it, and
+# their reductions run while the web app builds. SEED_DEMO_BRACKETS=0 skips them.
 start_worker worker
+say "seeding the demo scenario (the first start renders, uploads and ingests three synthetic brackets: about a minute)"
+(cd "$ROOT" && SEED_DEMO_BRACKETS="${SEED_DEMO_BRACKETS:-1}" node --import tsx db/seed/index.ts) || die "seeding failed"
+
+build_app .next
 start_app web "$APP_PORT" .next
 
 cat >&2 <<INFO

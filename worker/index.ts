@@ -29,14 +29,32 @@ async function run(job: Job): Promise<void> {
   await HANDLERS[name]({ db, jobId: id, payload: parsed.data as never, report });
 }
 
+/** A whole number of milliseconds from env, at least 1 s; a bad value stops the worker naming the variable. */
+function readMs(name: string, fallback: number): number {
+  const text = process.env[name];
+  if (text === undefined || text === "") return fallback;
+  const ms = Number(text);
+  if (!Number.isInteger(ms) || ms < 1000) {
+    console.error(`[worker] ${name} must be a whole number of milliseconds, at least 1000; got "${text}"`);
+    process.exit(1);
+  }
+  return ms;
+}
+
+// A reduction's numeric stages hold the event loop for seconds at a time; a
+// long lock keeps BullMQ from handing the job to another worker meanwhile. The
+// price: a reduction whose worker was killed is taken again only after the lock
+// expires and two stalled checks pass (10 to 20 min by default). Tests of that
+// recovery shorten both; the lock must stay longer than any stage of a real bracket.
+const reduceLockMs = readMs("WORKER_REDUCE_LOCK_MS", 10 * 60_000);
+const reduceStalledMs = readMs("WORKER_REDUCE_STALLED_INTERVAL_MS", 5 * 60_000);
+
 const workers = QUEUES.map((queue) => {
-  // A reduction's numeric stages hold the event loop for seconds at a time; a
-  // long lock keeps BullMQ from handing the job to another worker meanwhile.
   const w = new Worker(queue, run, {
     connection,
     prefix,
     concurrency: queue === "mail" ? 4 : 1,
-    ...(queue === "reduce" ? { lockDuration: 10 * 60_000, stalledInterval: 5 * 60_000 } : {}),
+    ...(queue === "reduce" ? { lockDuration: reduceLockMs, stalledInterval: reduceStalledMs } : {}),
   });
   w.on("completed", (job) => {
     void mirrorJob(db, job.id ?? "", { state: "done", progress: 1 }).catch((e) => console.error("mirror", e));
