@@ -33,6 +33,12 @@ say "seeding the demo scenario (the first start renders, uploads and ingests thr
 build_app .next
 start_app web "$APP_PORT" .next
 
+# The demo reductions ran while the app built; publish them as the gallery's first plates.
+if [ "${SEED_DEMO_BRACKETS:-1}" = 1 ]; then
+  say "publishing the demo reductions as plates (waits for them to finish)"
+  (cd "$ROOT" && node --import tsx db/seed/publish-demo.ts) || say "publishing the demo plates failed; the app runs without them (see above)"
+fi
+
 cat >&2 <<INFO
 
   Crownlight is up.

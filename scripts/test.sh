@@ -61,7 +61,7 @@ fi
 psql_test -c "set client_min_messages = warning; drop schema if exists public cascade; drop schema if exists drizzle cascade; create schema public;" >/dev/null
 redis-cli -p "$REDIS_PORT" -n "$REDIS_DB" flushdb >/dev/null
 (cd "$ROOT" && node --import tsx db/migrate.ts) >/dev/null || die "migrating the test database failed"
-(cd "$ROOT" && node --import tsx db/seed/index.ts) >/dev/null || die "seeding the test database failed"
+(cd "$ROOT" && SEED_DEMO_BRACKETS=0 node --import tsx db/seed/index.ts) >/dev/null || die "seeding the test database failed"
 
 if [ "${TEST_QUICK:-0}" != 1 ]; then
 check "lint${suffix}" bash -c "cd '$ROOT' && node node_modules/eslint/bin/eslint.js --max-warnings 0 ."

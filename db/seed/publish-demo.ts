@@ -1,0 +1,20 @@
+// `node --import tsx db/seed/publish-demo.ts`: publishes the demo reductions as
+// plates once they have finished (scripts/start.sh runs it after the app is up).
+import { createDb } from "@/db/client";
+import { publishDemoPlates } from "./demo-plates";
+
+const url = process.env.DATABASE_URL;
+if (!url) {
+  console.error("db/seed/publish-demo: DATABASE_URL is not set");
+  process.exit(1);
+}
+if (/\/crownlight_test(_lane\d)?$/.test(url)) {
+  console.log("db/seed/publish-demo: not in a test database");
+  process.exit(0);
+}
+const { db, pool } = createDb(url, 2);
+try {
+  await publishDemoPlates(db, (line) => console.log(`db/seed: ${line}`));
+} finally {
+  await pool.end();
+}
