@@ -89,6 +89,7 @@ export function buildReport(input: {
       masterSize: { width: result.master.width, height: result.master.height, planes: result.master.planes.length },
       moonCentrePx: { x: roundTo(overall.moonCentre.x), y: roundTo(overall.moonCentre.y) },
       moonRadiusPx: roundTo(overall.moonRadiusPx),
+      moonSource: overall.moonSource,
       sunCentrePx: overall.sunCentre ? { x: roundTo(overall.sunCentre.x), y: roundTo(overall.sunCentre.y) } : null,
       filterCentrePx: { x: roundTo(overall.filterCentre.x), y: roundTo(overall.filterCentre.y) },
       dynamicRangeStops: roundTo(overall.dynamicRangeStops, 3),
