@@ -104,6 +104,7 @@ export function buildReport(input: {
       master: "master.fits",
       renditions: { natural: "natural.png", structure: "structure.png" },
       preview: "preview.jpg",
+      previewStructure: "preview-structure.jpg",
       coverage: input.summary ? "coverage.png" : null,
       renditionSize: input.renditionSize
         ? { ...input.renditionSize, scale: roundTo(input.renditionSize.scale, 6), masterWidth: result.master.width, masterHeight: result.master.height }

@@ -142,6 +142,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     const renditionsWritten = (async () => {
       await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, renditions[name])));
       await writePreview(dir, renditions.natural, halve);
+      await writePreview(dir, renditions.structure, halve, "preview-structure.jpg");
       timingsMs["write-renditions"] = performance.now() - writesStarted;
     })();
     const tiles: Record<string, TilePyramidResult> = {};

@@ -4,7 +4,7 @@
 
 /** The outputs stored under derived/{set}/reductions/{id}/ that the files route serves. */
 const OUTPUT_PATTERNS: readonly RegExp[] = [
-  /^(master\.fits|natural\.png|structure\.png|preview\.jpg|coverage\.png|report\.json)$/,
+  /^(master\.fits|natural\.png|structure\.png|preview\.jpg|preview-structure\.jpg|coverage\.png|report\.json)$/,
   /^tiles\/(natural|structure)\.dzi$/,
   /^tiles\/(natural|structure)_files\/\d{1,2}\/\d{1,6}_\d{1,6}\.jpg$/,
   /^tiles\/(natural|structure)-iiif\/info\.json$/,

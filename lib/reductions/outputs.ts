@@ -52,7 +52,7 @@ export interface ReductionOutputFile {
 /** One output of a finished reduction, streamed from S3. */
 export async function openReductionOutput(db: DbOrTx, actor: Actor | null, reductionId: string, path: string): Promise<ReductionOutputFile> {
   if (!isReductionOutputPath(path)) {
-    throw new AppError("invalid_input", `"${path.slice(0, 80)}" is not one of a reduction's files: expected master.fits, natural.png, structure.png, preview.jpg, coverage.png, report.json or a tile under tiles/.`);
+    throw new AppError("invalid_input", `"${path.slice(0, 80)}" is not one of a reduction's files: expected master.fits, natural.png, structure.png, preview.jpg, preview-structure.jpg, coverage.png, report.json or a tile under tiles/.`);
   }
   const found = await findVisibleOutputs(db, actor, reductionId);
   if (!found.prefix) throw notFound(`The files of this reduction (it is ${found.state})`);

@@ -53,6 +53,7 @@ export const reportViewSchema = z.object({
   outputs: z
     .object({
       coverage: z.string().nullable().optional().catch(null),
+      previewStructure: z.string().nullable().optional().catch(null),
       renditionSize: z.object({ width: z.number(), height: z.number(), scale: z.number() }).nullable().optional().catch(null),
     })
     .catch({}),

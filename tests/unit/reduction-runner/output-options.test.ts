@@ -40,7 +40,7 @@ describe("outputLongSidePx", () => {
   it("scales renditions, preview and tiles to the long side and keeps the master full size", async () => {
     // 320 x 256 to a long side of 128: 128 x 102 (256 x 0.4 = 102.4).
     const expected = { width: 128, height: 102 };
-    for (const file of ["natural.png", "structure.png", "preview.jpg"]) {
+    for (const file of ["natural.png", "structure.png", "preview.jpg", "preview-structure.jpg"]) {
       const meta = await sharp(join(outDir, file)).metadata();
       expect({ width: meta.width, height: meta.height }, file).toEqual(expected);
     }
