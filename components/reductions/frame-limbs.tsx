@@ -5,7 +5,8 @@ function formatExposure(s: number | null | undefined): string {
   return s >= 1 ? `${s.toPrecision(3)} s` : `1/${Math.round(1 / s)} s`;
 }
 
-const VERDICTS: Record<string, string> = { good: "good fit", doubtful: "doubtful fit", failed: "no fit" };
+// lib/imaging/limb-fit.ts LimbVerdict.
+const VERDICTS: Record<string, string> = { sound: "sound fit", doubtful: "doubtful fit", failed: "no fit" };
 
 /**
  * Each frame's thumbnail with the lunar limb the reduction fitted, drawn as a
@@ -37,7 +38,7 @@ export function FrameLimbs({ setId, frames, frameIds, referenceFrame }: { setId:
                 {hasCircle ? (
                   <svg viewBox={`0 0 ${w} ${h}`} aria-hidden="true" className="pointer-events-none absolute inset-0 size-full">
                     {/* Report positions are 0-based pixel centres; the SVG's pixel (0, 0) spans 0..1. */}
-                    <circle cx={limb!.x! + 0.5} cy={limb!.y! + 0.5} r={limb!.radiusPx!} fill="none" stroke={limb!.verdict === "good" ? "#4ade80" : "#fbbf24"} strokeWidth={2} vectorEffect="non-scaling-stroke" />
+                    <circle cx={limb!.x! + 0.5} cy={limb!.y! + 0.5} r={limb!.radiusPx!} fill="none" stroke={limb!.verdict === "sound" ? "#4ade80" : "#fbbf24"} strokeDasharray={limb!.verdict === "sound" ? undefined : "6 4"} strokeWidth={2} vectorEffect="non-scaling-stroke" />
                   </svg>
                 ) : null}
               </div>

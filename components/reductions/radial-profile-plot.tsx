@@ -56,7 +56,10 @@ export function RadialProfilePlot({ profile }: { profile: RadialProfileView }) {
           <g key={d}>
             <line x1={M.left} x2={W - M.right} y1={sy(d)} y2={sy(d)} className="stroke-line" strokeWidth={1} />
             <text x={M.left - 8} y={sy(d) + 4} textAnchor="end" className="fill-ink-muted text-[12px]">
-              1e{d}
+              10
+              <tspan dy={-6} className="text-[9px]">
+                {d}
+              </tspan>
             </text>
           </g>
         ))}

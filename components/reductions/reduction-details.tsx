@@ -68,6 +68,7 @@ export function ReductionMeasurements({ measurements, pipelineVersion }: { measu
   return <DefinitionList rows={rows} />;
 }
 
+/** Time per stage, with a bar for its share of the total (the number beside it says the same). Stages that overlap (files and tiles are written together) can add up to more than the total. */
 export function StageLog({ timingsMs }: { timingsMs: Record<string, number> }) {
   const entries = Object.entries(timingsMs);
   const total = timingsMs.total;
@@ -85,7 +86,14 @@ export function StageLog({ timingsMs }: { timingsMs: Record<string, number> }) {
           <TableRow key={stage}>
             <TableCell>{describeTiming(stage)}</TableCell>
             <TableCell className="font-mono">{(ms / 1000).toFixed(2)} s</TableCell>
-            <TableCell className="font-mono">{total && stage !== "total" ? `${Math.round((ms / total) * 100)}%` : ""}</TableCell>
+            <TableCell>
+              {total && stage !== "total" ? (
+                <span className="flex items-center gap-2">
+                  <span aria-hidden="true" className="block h-2 rounded-full bg-accent" style={{ width: `${Math.max(1, Math.round((Math.min(ms, total) / total) * 160))}px` }} />
+                  <span className="font-mono">{Math.round((ms / total) * 100)}%</span>
+                </span>
+              ) : null}
+            </TableCell>
           </TableRow>
         ))}
       </TableBody>

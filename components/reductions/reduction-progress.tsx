@@ -74,7 +74,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
     <div className="flex flex-col gap-3 rounded-card border border-line bg-surface-raised p-5">
       <div className="flex flex-wrap items-center gap-3">
         <Badge tone={STATE_TONES[current.state]}>{current.state}</Badge>
-        <span className="text-ink-muted">{current.state === "running" ? stage : current.state === "queued" ? "Waiting for a worker" : null}</span>
+        {current.state === "done" ? <span className="text-ink-muted">Finished: the results are below.</span> : null}
       </div>
       {isActive(current.state) ? (
         <ProgressBar label={current.state === "queued" ? "Queued" : stage} value={current.state === "queued" ? undefined : percent} max={100} valueText={current.state === "queued" ? "waiting" : `${percent}% of this stage`} />

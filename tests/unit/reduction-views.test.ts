@@ -18,7 +18,7 @@ const rings = Array.from({ length: 40 }, (_, k) => {
 const report = parseReportView({
   pipelineVersion: "crownlight-imaging 0.1.0",
   frames: [
-    { name: "f1.fits", frameId: null, decoded: { width: 320, height: 256, planes: 1 }, exposure: { seconds: 0.008, source: "fits-header" }, limb: { x: 160.25, y: 120.5, radiusPx: 40.2, rmsPx: 0.31, inlierFraction: 0.9, verdict: "good" }, weights: { weightShare: 0.25 } },
+    { name: "f1.fits", frameId: null, decoded: { width: 320, height: 256, planes: 1 }, exposure: { seconds: 0.008, source: "fits-header" }, limb: { x: 160.25, y: 120.5, radiusPx: 40.2, rmsPx: 0.31, inlierFraction: 0.9, verdict: "sound" }, weights: { weightShare: 0.25 } },
     { name: "f2.fits", decoded: { width: 320, height: 256 }, exposure: { seconds: 2 }, limb: { x: null, y: null, radiusPx: null, rmsPx: null, verdict: "failed" }, weights: { weightShare: 0 } },
   ],
   overall: { referenceFrame: "f1.fits", dynamicRangeStops: 14.2, radialProfile: { centreSource: "sun", solarRadiusPx: 40, stepR: 0.05, unit: "", powerLaw: { fromR: 1.5, toR: 3, exponent: 2.5 }, rings } },
@@ -49,7 +49,8 @@ describe("RadialProfilePlot", () => {
     expect(html).toContain("Mean brightness (log scale)");
     // One point per ring with light, on a log scale from 1e-8 to 1e-6.
     expect(html.match(/<circle/g)).toHaveLength(40);
-    expect(html).toContain("1e-6");
+    // Decades labelled as powers of ten: 10 with a raised exponent.
+    expect(html).toMatch(/10<tspan[^>]*>-6<\/tspan>/);
   });
 
   it("offers the same numbers as a table", () => {
@@ -68,7 +69,7 @@ describe("FrameLimbs", () => {
     // Report positions are 0-based pixel centres: the circle sits half a pixel further in SVG units.
     expect(html).toMatch(/<circle cx="160.75" cy="121" r="40.2"/);
     expect(html).toContain("f1.fits (reference)");
-    expect(html).toContain("1/125 s; good fit, residual 0.31 px; 25% of the weight");
+    expect(html).toContain("1/125 s; sound fit, residual 0.31 px; 25% of the weight");
   });
 
   it("draws no circle for a failed fit and says when a frame has no thumbnail", () => {
