@@ -19,7 +19,7 @@ function formatUtc(iso: string): string {
 }
 
 /** A bracket set's reductions, newest first as given, each with its parameters, state and a link to its page. */
-export function ReductionList({ reductions, caption = "Reductions of this bracket set" }: { reductions: ReductionDto[]; caption?: string }) {
+export function ReductionList({ reductions, caption = "Reductions of this bracket set", currentId }: { reductions: ReductionDto[]; caption?: string; currentId?: string }) {
   return (
     <Table caption={caption}>
       <TableHead>
@@ -60,9 +60,13 @@ export function ReductionList({ reductions, caption = "Reductions of this bracke
                 ) : null}
               </TableCell>
               <TableCell>
-                <Link href={`/studio/reductions/${r.id}`}>
-                  Open<span className="sr-only"> the reduction started {formatUtc(r.createdAt)}</span>
-                </Link>
+                {r.id === currentId ? (
+                  <span className="text-ink-muted">This one</span>
+                ) : (
+                  <Link href={`/studio/reductions/${r.id}`}>
+                    Open<span className="sr-only"> the reduction started {formatUtc(r.createdAt)}</span>
+                  </Link>
+                )}
               </TableCell>
             </TableRow>
           );

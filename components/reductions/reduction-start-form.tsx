@@ -7,7 +7,7 @@ import { Checkbox } from "@/components/ui/checkbox";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
-import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, reductionParamsSchema } from "@/lib/reductions/schemas";
+import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, reductionParamsSchema, type ReductionParamsInput } from "@/lib/reductions/schemas";
 import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
 
 type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
@@ -36,7 +36,7 @@ function readForm(form: HTMLFormElement): Record<string, unknown> {
  * schema the server uses (problems under their labels), then posted; on success
  * the browser goes to the new reduction's page, where its progress shows.
  */
-export function ReductionStartForm({ setId, groups }: { setId: string; groups: number[] }) {
+export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = "Start reduction" }: { setId: string; groups: number[]; initial?: Partial<ReductionParamsInput>; submitLabel?: string }) {
   const router = useRouter();
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
@@ -81,30 +81,30 @@ export function ReductionStartForm({ setId, groups }: { setId: string; groups: n
       {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
       <div className="grid gap-5 sm:grid-cols-2">
         <Field label="Align frames on" error={err("registration")} hint="The Sun's centre needs the site and the frames' capture times.">
-          <Select name="registration" defaultValue="sun" options={Object.entries(REGISTRATION_LABELS).map(([value, label]) => ({ value, label }))} />
+          <Select name="registration" defaultValue={initial.registration ?? "sun"} options={Object.entries(REGISTRATION_LABELS).map(([value, label]) => ({ value, label }))} />
         </Field>
         <Field label="Structure filter" error={err("filter")} hint="Used for the structure rendition; the natural rendition is not filtered.">
-          <Select name="filter" defaultValue="mgn" options={Object.entries(FILTER_LABELS).map(([value, label]) => ({ value, label }))} />
+          <Select name="filter" defaultValue={initial.filter ?? "mgn"} options={Object.entries(FILTER_LABELS).map(([value, label]) => ({ value, label }))} />
         </Field>
         <Field label="Structure strength" error={err("filterStrength")} hint={`From 0.05 (gentle, more of the overall brightness) to 1 (local structure only); ${DEFAULT_FILTER_STRENGTH} is usual.`}>
-          <Input name="filterStrength" type="number" inputMode="decimal" step="0.05" min="0.05" max="1" defaultValue={String(DEFAULT_FILTER_STRENGTH)} />
+          <Input name="filterStrength" type="number" inputMode="decimal" step="0.05" min="0.05" max="1" defaultValue={String(initial.filterStrength ?? DEFAULT_FILTER_STRENGTH)} />
         </Field>
         <Field label="Size of renditions and tiles" error={err("outputLongSidePx")} hint="The master FITS always keeps the full size.">
-          <Select name="outputLongSidePx" defaultValue="0" options={OUTPUT_LONG_SIDES_PX.map((v) => ({ value: String(v), label: OUTPUT_SIZE_LABEL(v) }))} />
+          <Select name="outputLongSidePx" defaultValue={String(initial.outputLongSidePx ?? 0)} options={OUTPUT_LONG_SIDES_PX.map((v) => ({ value: String(v), label: OUTPUT_SIZE_LABEL(v) }))} />
         </Field>
         {groups.length > 0 ? (
           <Field label="Frames" error={err("groupNumber")} hint="Reduce one bracket of the set, or every included light frame.">
-            <Select name="groupNumber" defaultValue="" options={[{ value: "", label: "Every included light frame" }, ...groups.map((g) => ({ value: String(g), label: `Group ${g} only` }))]} />
+            <Select name="groupNumber" defaultValue={initial.groupNumber ? String(initial.groupNumber) : ""} options={[{ value: "", label: "Every included light frame" }, ...groups.map((g) => ({ value: String(g), label: `Group ${g} only` }))]} />
           </Field>
         ) : null}
       </div>
       <div>
-        <Checkbox name="recoverResponse" label="Recover the camera's response from the bracket" hint="For 8-bit frames (JPEG) only: measures the camera's tone curve instead of assuming sRGB." />
+        <Checkbox name="recoverResponse" defaultChecked={initial.recoverResponse ?? false} label="Recover the camera's response from the bracket" hint="For 8-bit frames (JPEG) only: measures the camera's tone curve instead of assuming sRGB." />
         {err("recoverResponse") ? <p className="mt-1 text-sm font-medium text-danger">{err("recoverResponse")}</p> : null}
       </div>
       <div>
         <Button type="submit" variant="primary" pending={pending} pendingLabel="Starting…">
-          Start reduction
+          {submitLabel}
         </Button>
       </div>
     </form>

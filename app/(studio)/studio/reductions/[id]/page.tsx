@@ -8,12 +8,15 @@ import { CoverageMap } from "@/components/reductions/coverage-map";
 import { FrameLimbs } from "@/components/reductions/frame-limbs";
 import { RadialProfilePlot } from "@/components/reductions/radial-profile-plot";
 import { ReductionDownloads, ReductionMeasurements, ReductionParameters, Renditions, StageLog, type ShownParams } from "@/components/reductions/reduction-details";
+import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionProgress } from "@/components/reductions/reduction-progress";
+import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
 import { getDb } from "@/db/client";
 import { AppError } from "@/lib/errors";
 import { buildOutputUrl } from "@/lib/reductions/output-paths";
 import { findReductionOutputsView } from "@/lib/reductions/outputs";
-import { findReduction } from "@/lib/reductions/reductions";
+import { findReduction, listReductions } from "@/lib/reductions/reductions";
+import type { ReductionParamsInput } from "@/lib/reductions/schemas";
 
 export const metadata: Metadata = { title: "Reduction" };
 
@@ -44,6 +47,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
   const db = getDb();
   const reduction = await foundOr404(findReduction(db, actor, id));
   const view = await foundOr404(findReductionOutputsView(db, actor, id));
+  const siblings = await listReductions(db, actor, view.setId);
   const report = view.report;
   const measurements = reduction.measurements ?? (report ? (report.overall as Record<string, unknown>) : {});
   const created = `${reduction.createdAt.slice(0, 10)} ${reduction.createdAt.slice(11, 16)} UTC`;
@@ -108,6 +112,18 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
           </Section>
         </>
       ) : null}
+
+      <Section id="again" title="Reduce again">
+        <details>
+          <summary className="cursor-pointer font-medium">Start another reduction of this set with other parameters</summary>
+          <p className="my-3 text-ink-muted">This reduction stays as it is; the new one gets its own page and files.</p>
+          <ReductionStartForm setId={view.setId} groups={[]} initial={reduction.params as Partial<ReductionParamsInput>} submitLabel="Start another reduction" />
+        </details>
+      </Section>
+
+      <Section id="all" title="All reductions of this set">
+        <ReductionList reductions={siblings} caption={`Reductions of ${view.setName}, newest first`} currentId={reduction.id} />
+      </Section>
     </>
   );
 }
