@@ -29,7 +29,7 @@ interface Ids {
   setId: string;
   uploadId: string;
   frameId: string;
-  /** A finished reduction of the member's set, with a report.json stored. */
+  /** A finished reduction of another of the member's sets, with a report.json stored. */
   reductionId: string;
 }
 
@@ -184,12 +184,14 @@ async function prepareBracketSet(): Promise<void> {
   ids.frameId = frame.id;
   const open = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads`, { fileName: "open.tif", sizeBytes: 100 }), 201);
   ids.uploadId = open.id;
-  // A finished reduction written directly (the set has too few frames to reduce): its row and its report.
+  // A finished reduction written directly (no set here has frames enough to reduce): its row and its report.
+  // It lives in a set of its own, so the cases above see a set with no finished reduction.
+  const reduced = await ok<{ id: string }>(clients.member.json(SET, { name: "Matrix reduced set", eclipseId: "2027-08-02", siteId: site.id }), 201);
   const [red] = await db
     .insert(reductions)
-    .values({ bracketSetId: set.id, requestedBy: memberId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 })
+    .values({ bracketSetId: reduced.id, requestedBy: memberId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 })
     .returning({ id: reductions.id });
-  const prefix = `${buildDerivedPrefix(set.id)}reductions/${red.id}/`;
+  const prefix = `${buildDerivedPrefix(reduced.id)}reductions/${red.id}/`;
   const report = { reportVersion: 1, pipelineVersion: "matrix", frames: [], overall: {}, timingsMs: {}, outputs: {}, notes: [] };
   await putObjectBytes({ bucket: bucketName("derived"), key: `${prefix}report.json` }, Buffer.from(JSON.stringify(report)), "application/json");
   await db.update(reductions).set({ outputs: { prefix, report: `${prefix}report.json` } }).where(eq(reductions.id, red.id));
