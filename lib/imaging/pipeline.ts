@@ -2,11 +2,11 @@
 // warp, merge, render. Per-frame stages are exported on their own so that a
 // caller can run them in worker threads.
 import { dilateMask } from "./blur";
-import { ImagingError } from "./errors";
+import { ImagingError, requireNumberInRange } from "./errors";
 import { fitLimb, type LimbFit } from "./limb-fit";
 import { linearizeFrame, validateFrame, type LinearizedFrame } from "./linearize";
 import { addFrameToMerge, createMergeAccumulator, finishMerge, type FrameWeightStats, type MergeFrameInput, type MergeResult } from "./merge";
-import { applyMgn, applyNrgf, createValidMask, type LunarDisk } from "./radial";
+import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import { estimateMoonTrack } from "./moon-track";
 import { registerFrames, type RegistrationFrame } from "./register";
 import { warpMask, warpPlanes, type WarpTarget } from "./resample";
@@ -14,7 +14,7 @@ import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectR
 import { composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import { computePercentiles, renderNatural, renderStructure } from "./tone";
-import type { LinearFrame, PlaneImage, ProgressFn, ReductionParams } from "./types";
+import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
 
 export const PIPELINE_VERSION = "crownlight-imaging 0.1.0";
 
@@ -233,6 +233,8 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   if (!(params.clipFraction > 0 && params.clipFraction <= 1)) throw new ImagingError("bad-parameter", `clipFraction must be in (0, 1], got ${params.clipFraction}`);
   if (params.filter !== "mgn" && params.filter !== "nrgf") throw new ImagingError("bad-parameter", `filter must be "mgn" or "nrgf", got ${String(params.filter)}`);
   if (params.registration !== "moon" && params.registration !== "corona") throw new ImagingError("bad-parameter", `registration must be "moon" or "corona", got ${String(params.registration)}`);
+  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
+  requireNumberInRange("filterStrength", filterStrength, FILTER_STRENGTH_RANGE.min, FILTER_STRENGTH_RANGE.max);
   const { width, height } = frames[0].image;
   const isEncoded = frames[0].encoding === "srgb8";
 
@@ -321,9 +323,10 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const luminance = computeLuminancePlane(master.planes);
   const natural = renderNatural(master, { valid: outsideMoon, luminance });
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
+  // The strength weighs local structure against the overall image: MGN's h is its complement.
   const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk })
-    : applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk });
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, h: 1 - filterStrength })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk }), luminance, filterStrength);
   const structure = renderStructure(filtered, width, height);
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   progress("renditions", 1);

@@ -60,3 +60,63 @@ export function buildPyramid(image: PlaneImage): PlaneImage[] {
   }
   return levels;
 }
+
+/** Size of an image scaled so its long side is at most longSidePx (never enlarged); 0 keeps the size. */
+export function computeScaledSize(width: number, height: number, longSidePx: number): { width: number; height: number; scale: number } {
+  if (!(Number.isInteger(longSidePx) && longSidePx >= 0)) throw new ImagingError("bad-parameter", `longSidePx must be a whole number >= 0, got ${longSidePx}`);
+  const long = Math.max(width, height);
+  if (longSidePx === 0 || long <= longSidePx) return { width, height, scale: 1 };
+  const scale = longSidePx / long;
+  return { width: Math.max(1, Math.round(width * scale)), height: Math.max(1, Math.round(height * scale)), scale };
+}
+
+/** For each output index, the source pixels it covers and the share of each (area weights summing to 1). */
+function buildAreaWeights(from: number, to: number): { start: number; weights: number[] }[] {
+  const step = from / to;
+  return Array.from({ length: to }, (_, o) => {
+    const a = o * step;
+    const b = Math.min(from, (o + 1) * step);
+    const start = Math.floor(a);
+    const weights: number[] = [];
+    for (let j = start; j < b; j++) weights.push((Math.min(b, j + 1) - Math.max(a, j)) / (b - a));
+    return { start, weights };
+  });
+}
+
+/**
+ * An sRGB-encoded image (0..1) scaled down to exactly width x height in linear
+ * light: halved (halveImageLinear, or the caller's shared halving) while still
+ * at least twice the target, then area-averaged (each output pixel the mean
+ * light of the source area it covers). Never enlarges.
+ */
+export function scaleImageLinear(image: PlaneImage, width: number, height: number, halve: (image: PlaneImage) => PlaneImage = halveImageLinear): PlaneImage {
+  if (!(Number.isInteger(width) && Number.isInteger(height) && width >= 1 && height >= 1)) throw new ImagingError("bad-parameter", `target size must be positive integers, got ${width} x ${height}`);
+  if (width > image.width || height > image.height) throw new ImagingError("bad-parameter", `cannot enlarge ${image.width} x ${image.height} to ${width} x ${height}`);
+  let level = image;
+  while (level.width >= 2 * width && level.height >= 2 * height) level = halve(level);
+  if (level.width === width && level.height === height) return level;
+  const wx = buildAreaWeights(level.width, width);
+  const wy = buildAreaWeights(level.height, height);
+  const planes = level.planes.map((src) => {
+    const rows = new Float32Array(width * level.height);
+    for (let y = 0; y < level.height; y++) {
+      for (let x = 0; x < width; x++) {
+        const { start, weights } = wx[x];
+        let sum = 0;
+        for (let k = 0; k < weights.length; k++) sum += weights[k] * decodeSrgb(src[y * level.width + start + k]);
+        rows[y * width + x] = sum;
+      }
+    }
+    const out = new Float32Array(width * height);
+    for (let y = 0; y < height; y++) {
+      const { start, weights } = wy[y];
+      for (let x = 0; x < width; x++) {
+        let sum = 0;
+        for (let k = 0; k < weights.length; k++) sum += weights[k] * rows[(start + k) * width + x];
+        out[y * width + x] = encodeSrgb(sum);
+      }
+    }
+    return out;
+  });
+  return { width, height, planes };
+}

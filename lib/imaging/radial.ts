@@ -2,6 +2,7 @@
 // with the lunar disk masked.
 import { blurGaussianFast } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
+import { computePercentiles } from "./tone";
 
 export interface LunarDisk {
   x: number;
@@ -244,4 +245,39 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     data[i] = h * g + ((1 - h) / widths.length) * sumArctan[i];
   }
   return { data, valid };
+}
+
+/**
+ * NRGF with a strength, our own blend (no published recipe): NRGF's values are
+ * scaled to 0..1 between their 0.5th and 99.5th percentiles over valid pixels
+ * (clamped), then mixed with the gamma-stretched overall image as MGN mixes it:
+ *   I = strength N' + (1 - strength) C'_g,  C'_g = ((B - a0) / (a1 - a0))^(1/gamma)
+ * with a0, a1 the plane's minimum and maximum over the filter's valid pixels.
+ * strength 1 gives NRGF alone (as the structure rendition stretches it);
+ * smaller strengths keep more of the overall brightness fall-off.
+ */
+export function blendWithGlobalImage(filtered: FilteredPlane, plane: Float32Array, strength: number, gamma = MGN_DEFAULTS.gamma): FilteredPlane {
+  requireNumberInRange("strength", strength, 0, 1);
+  requireNumberInRange("gamma", gamma, 1e-3, 1e3);
+  const { data, valid } = filtered;
+  if (plane.length !== data.length) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, the filtered plane ${data.length}`);
+  if (strength === 1) return filtered;
+  const [lo, hi] = computePercentiles(data, [0.5, 99.5], valid);
+  let a0 = Infinity, a1 = -Infinity;
+  for (let i = 0; i < plane.length; i++) {
+    if (!valid[i]) continue;
+    if (plane[i] < a0) a0 = plane[i];
+    if (plane[i] > a1) a1 = plane[i];
+  }
+  const out = new Float32Array(data.length);
+  if (!(a1 > a0)) return { data: out, valid };
+  const span = hi > lo ? hi - lo : 1;
+  const invGamma = 1 / gamma;
+  for (let i = 0; i < out.length; i++) {
+    if (!valid[i]) continue;
+    const n = Math.min(1, Math.max(0, (data[i] - lo) / span));
+    const g = Math.pow((plane[i] - a0) / (a1 - a0), invGamma);
+    out[i] = strength * n + (1 - strength) * g;
+  }
+  return { data: out, valid };
 }

@@ -39,6 +39,13 @@ export interface ReductionParams {
   recoverResponse: boolean;
   /** Fraction of the white level at and above which a pixel counts as clipped. */
   clipFraction: number;
+  /**
+   * Weight of local structure in the structure rendition, 0.05 (gentle) to 1
+   * (strongest); default 0.3. MGN: h = 1 - strength (the default keeps h = 0.7
+   * of Morgan and Druckmueller 2014). NRGF: strength x NRGF + (1 - strength) x
+   * the gamma-stretched overall image (see blendWithGlobalImage in radial.ts).
+   */
+  filterStrength?: number;
   /** Optional per-frame Moon-minus-Sun offset in master pixels (x right, y down), keyed by frame name. */
   moonMinusSunPx?: Record<string, { dx: number; dy: number }>;
 }
@@ -48,7 +55,11 @@ export const DEFAULT_REDUCTION_PARAMS: ReductionParams = {
   filter: "mgn",
   recoverResponse: false,
   clipFraction: 0.92,
+  filterStrength: 0.3,
 };
+
+/** Allowed range of ReductionParams.filterStrength (the same as the start form's). */
+export const FILTER_STRENGTH_RANGE = { min: 0.05, max: 1 } as const;
 
 export type ProgressFn = (stage: string, fraction: number) => void;
 

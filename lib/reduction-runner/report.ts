@@ -5,6 +5,7 @@
 import type { ReductionResult } from "@/lib/imaging/pipeline";
 import type { FrameProvenance } from "./decode-frames";
 import { buildSkyReport, type SkyReportInput } from "./report-sky";
+import type { MasterSummary } from "./master-summary";
 import type { TilePyramidResult } from "./tiles";
 
 export const REPORT_VERSION = 1;
@@ -34,6 +35,12 @@ export function buildReport(input: {
   tiles: Record<string, TilePyramidResult>;
   createdMs: number;
   sky?: SkyReportInput;
+  /** Radial profile and coverage (master-summary.ts). */
+  summary?: MasterSummary;
+  /** Frame ids by frame name, when the caller knows them (the worker does). */
+  frameIds?: Record<string, string>;
+  /** Size the renditions, preview and tiles were written at. */
+  renditionSize?: { width: number; height: number; scale: number; longSidePx: number };
 }): ReductionReport {
   const { result, provenance } = input;
   const sky = buildSkyReport(input.sky ?? { registrationMode: result.overall.parameters.registration, clockOffsetS: 0 });
@@ -51,6 +58,7 @@ export function buildReport(input: {
       const p = byName.get(f.name)!;
       return {
         name: f.name,
+        frameId: input.frameIds?.[f.name] ?? null,
         path: p.path,
         format: p.format,
         bitDepth: p.bitDepth,
@@ -81,18 +89,26 @@ export function buildReport(input: {
       masterSize: { width: result.master.width, height: result.master.height, planes: result.master.planes.length },
       moonCentrePx: { x: roundTo(overall.moonCentre.x), y: roundTo(overall.moonCentre.y) },
       moonRadiusPx: roundTo(overall.moonRadiusPx),
+      moonSource: overall.moonSource,
       sunCentrePx: overall.sunCentre ? { x: roundTo(overall.sunCentre.x), y: roundTo(overall.sunCentre.y) } : null,
       filterCentrePx: { x: roundTo(overall.filterCentre.x), y: roundTo(overall.filterCentre.y) },
       dynamicRangeStops: roundTo(overall.dynamicRangeStops, 3),
       poorlyExposedFraction: roundTo(result.poorlyExposedCount / pixelCount, 6),
       natural: overall.natural,
       sky: sky.overall,
+      radialProfile: input.summary?.radialProfile ?? null,
+      coverage: input.summary?.coverage ?? null,
     },
     timingsMs: Object.fromEntries(Object.entries(input.timingsMs).map(([k, v]) => [k, Math.round(v)])),
     outputs: {
       master: "master.fits",
       renditions: { natural: "natural.png", structure: "structure.png" },
       preview: "preview.jpg",
+      previewStructure: "preview-structure.jpg",
+      coverage: input.summary ? "coverage.png" : null,
+      renditionSize: input.renditionSize
+        ? { ...input.renditionSize, scale: roundTo(input.renditionSize.scale, 6), masterWidth: result.master.width, masterHeight: result.master.height }
+        : { width: result.master.width, height: result.master.height, scale: 1, longSidePx: 0, masterWidth: result.master.width, masterHeight: result.master.height },
       tiles: Object.fromEntries(
         Object.entries(input.tiles).map(([name, t]) => [
           name,
@@ -105,6 +121,9 @@ export function buildReport(input: {
         ? "master.fits carries a helioprojective WCS (HPLN-TAN, HPLT-TAN); its rows are stored top row first, as in the PNGs, and PC accounts for it."
         : "No helioprojective WCS: no observer site and capture times were given; positions are master pixels.",
       "Tile pyramids are halved in linear light; sharp only encodes the tiles.",
+      ...(input.renditionSize && input.renditionSize.scale !== 1
+        ? [`Renditions, preview and tiles are scaled by ${roundTo(input.renditionSize.scale, 6)} in linear light (long side ${Math.max(input.renditionSize.width, input.renditionSize.height)} px); master.fits and every pixel position in this report are at the master's full size.`]
+        : []),
     ],
   };
 }

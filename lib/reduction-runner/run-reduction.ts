@@ -6,13 +6,16 @@
 import { writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { reducePreparedBracket } from "@/lib/imaging/pipeline";
-import { DEFAULT_REDUCTION_PARAMS, type ReductionParams } from "@/lib/imaging/types";
+import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
+import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
+import { ReductionInputError } from "./errors";
+import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { createPreparePool } from "./prepare-pool";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
 import { buildReport, type ReductionReport } from "./report";
-import { createHalvingCache, pickRendition, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles, type RenditionName } from "./write-outputs";
+import { createHalvingCache, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles, type RenditionName } from "./write-outputs";
 import { applyClockOffsetToBracket, checkSkyOptions, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "./sky-run";
 import type { TilePyramidResult } from "./tiles";
 
@@ -29,6 +32,14 @@ export interface RunReductionOptions {
   /** URL the tiles folder will be served from; IIIF ids are built on it. */
   iiifBaseUrl?: string;
   /**
+   * Long side of the renditions, preview and tiles in px: scaled down (in linear
+   * light) when the master is larger; 0 or absent keeps full size. master.fits
+   * always stays full size; the report states the scale.
+   */
+  outputLongSidePx?: number;
+  /** Frame ids by file name (the base name of each entry of files), written into the report so pages can find each frame. */
+  frameIds?: Record<string, string>;
+  /**
    * "sun" aligns frames on the Sun's centre by the ephemeris (needs sky.site and
    * capture times); "moon" on the lunar limb; "corona" on the corona. Wins over
    * params.registration.
@@ -44,6 +55,17 @@ export interface RunReductionResult {
   report: ReductionReport;
 }
 
+/** Refuses a filter strength or output size out of range before anything is decoded, naming the option. */
+export function checkOutputOptions(params: ReductionParams, outputLongSidePx: number | undefined): void {
+  const strength = params.filterStrength;
+  if (strength !== undefined && !(typeof strength === "number" && strength >= FILTER_STRENGTH_RANGE.min && strength <= FILTER_STRENGTH_RANGE.max)) {
+    throw new ReductionInputError("bad-option", `filterStrength: expected a number from ${FILTER_STRENGTH_RANGE.min} to ${FILTER_STRENGTH_RANGE.max}, got ${String(strength)}`);
+  }
+  if (outputLongSidePx !== undefined && !(Number.isInteger(outputLongSidePx) && (outputLongSidePx === 0 || (outputLongSidePx >= 64 && outputLongSidePx <= 65_536)))) {
+    throw new ReductionInputError("bad-option", `outputLongSidePx: expected 0 (full size) or a whole number of pixels from 64 to 65536, got ${String(outputLongSidePx)}`);
+  }
+}
+
 export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
   const started = performance.now();
   const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
@@ -52,6 +74,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   checkFileList(options.files);
   checkSkyOptions(registrationMode, options.sky);
   checkOverridesMatchFiles(overrides, options.files, options.exposureOverrideSource);
+  checkOutputOptions(params, options.outputLongSidePx);
+  const outputLongSidePx = options.outputLongSidePx ?? 0;
   const progress: RunProgressFn = (stage, fraction) => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
   const timingsMs: Record<string, number> = {};
   let clock = performance.now();
@@ -109,16 +133,22 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     // overlap: each runs from the start of this phase to the end of its own writes.
     progress("write-renditions", 0);
     const halve = createHalvingCache();
+    const size = computeScaledSize(result.master.width, result.master.height, outputLongSidePx);
+    const renditions: Record<RenditionName, PlaneImage> = {
+      natural: size.scale === 1 ? result.natural : scaleImageLinear(result.natural, size.width, size.height, halve),
+      structure: size.scale === 1 ? result.structure : scaleImageLinear(result.structure, size.width, size.height, halve),
+    };
     const writesStarted = performance.now();
     const renditionsWritten = (async () => {
-      await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, pickRendition(result, name))));
-      await writePreview(dir, result.natural, halve);
+      await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, renditions[name])));
+      await writePreview(dir, renditions.natural, halve);
+      await writePreview(dir, renditions.structure, halve, "preview-structure.jpg");
       timingsMs["write-renditions"] = performance.now() - writesStarted;
     })();
     const tiles: Record<string, TilePyramidResult> = {};
     const levelsDone = new Map<RenditionName, number>();
     const tilesWritten = Promise.all(RENDITIONS.map(async (name) => {
-      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, pickRendition(result, name), options.iiifBaseUrl, (done, total) => {
+      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, renditions[name], options.iiifBaseUrl, (done, total) => {
         levelsDone.set(name, done / total);
         progress("tiles", [...levelsDone.values()].reduce((sum, f) => sum + f, 0) / RENDITIONS.length);
       }, halve);
@@ -127,8 +157,13 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     });
     await Promise.all([renditionsWritten, tilesWritten]);
 
+    progress("summary", 0);
+    const summary = await writeMasterSummary(dir, result, helio);
+    lap("summary");
+
     timingsMs.total = performance.now() - started;
-    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs,
+    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds,
+      renditionSize: { width: size.width, height: size.height, scale: size.scale, longSidePx: outputLongSidePx },
       sky: { registrationMode, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun, helio },
     });
     await writeFile(join(dir, "report.json"), `${JSON.stringify(report, null, 2)}\n`);

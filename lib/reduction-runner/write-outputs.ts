@@ -54,15 +54,16 @@ export async function writeRenditionPng(dir: string, name: RenditionName, image:
 }
 
 /**
- * Preview JPEG of the natural rendition. Halved in linear light (as the tiles
+ * Preview JPEG of a rendition (preview.jpg is the natural one; the reduction
+ * page shows preview-structure.jpg beside it). Halved in linear light (as the tiles
  * are) while more than twice the preview size, so sharp's final resize in
  * encoded values spans less than a factor of two.
  */
-export async function writePreview(dir: string, image: PlaneImage, halve: HalveFn = halveImageLinear): Promise<string> {
+export async function writePreview(dir: string, image: PlaneImage, halve: HalveFn = halveImageLinear, fileName = "preview.jpg"): Promise<string> {
   let level = image;
   while (Math.max(level.width, level.height) > 2 * PREVIEW_MAX_SIDE_PX) level = halve(level);
   const planes = splitQuantized(level, (one, k) => quantizeToUint8(one, 101 + k));
-  const path = join(dir, "preview.jpg");
+  const path = join(dir, fileName);
   await writeFile(path, await encodePreview({ width: level.width, height: level.height, planes }));
   return path;
 }

@@ -4,9 +4,11 @@
 import fs from "node:fs";
 import path from "node:path";
 import sharp from "sharp";
+import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { sites } from "@/db/schema";
+import { reductions, sites } from "@/db/schema";
+import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { Client } from "../support/http";
 
@@ -27,6 +29,8 @@ interface Ids {
   setId: string;
   uploadId: string;
   frameId: string;
+  /** A finished reduction of another of the member's sets, with a report.json stored. */
+  reductionId: string;
 }
 
 interface Case {
@@ -123,6 +127,8 @@ const API_CASES: Case[] = [
     path: () => "/api/reductions/00000000-0000-4000-8000-000000000000",
     expect: { visitor: 401, member: 404, curator: 404, editor: 404, admin: 404 },
   },
+  // The member's finished reduction: its owner and curators read its files; other members are told it does not exist.
+  { route: "/api/reductions/[id]/files/[...path]", method: "GET", path: ({ reductionId }) => `/api/reductions/${reductionId}/files/report.json`, expect: ownSetRead },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
@@ -155,6 +161,13 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/studio/sets/not-a-uuid", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
 ];
 
+/** Pages whose path needs the ids made at run time. */
+const ID_PAGE_CASES: { route: string; label: string; path: (ids: Ids) => string; expect: Record<Who, number> }[] = [
+  // The member's reduction: the owner and curators see it; other members get 404, like a missing one.
+  { route: "/studio/reductions/[id]", label: "the member's", path: ({ reductionId }) => `/studio/reductions/${reductionId}`, expect: { visitor: 307, member: 200, curator: 200, editor: 404, admin: 404 } },
+  { route: "/studio/reductions/[id]", label: "a missing one", path: () => "/studio/reductions/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
+];
+
 function routeTemplates(): string[] {
   const root = path.resolve("app");
   const out: string[] = [];
@@ -175,7 +188,7 @@ function routeTemplates(): string[] {
 
 const clients = {} as Record<Who, Client>;
 let memberId = "";
-const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "" };
+const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "", reductionId: "" };
 
 async function ok<T>(call: Promise<{ status: number; body: unknown }>, status: number): Promise<T> {
   const res = await call;
@@ -205,6 +218,18 @@ async function prepareBracketSet(): Promise<void> {
   }
   const open = await ok<{ id: string }>(clients.member.json(`${SET}/${set.id}/uploads`, { fileName: "open.tif", sizeBytes: 100 }), 201);
   ids.uploadId = open.id;
+  // A finished reduction written directly (no set here has frames enough to reduce): its row and its report.
+  // It lives in a set of its own, so the cases above see a set with no finished reduction.
+  const reduced = await ok<{ id: string }>(clients.member.json(SET, { name: "Matrix reduced set", eclipseId: "2027-08-02", siteId: site.id }), 201);
+  const [red] = await db
+    .insert(reductions)
+    .values({ bracketSetId: reduced.id, requestedBy: memberId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 })
+    .returning({ id: reductions.id });
+  const prefix = `${buildDerivedPrefix(reduced.id)}reductions/${red.id}/`;
+  const report = { reportVersion: 1, pipelineVersion: "matrix", frames: [], overall: {}, timingsMs: {}, outputs: {}, notes: [] };
+  await putObjectBytes({ bucket: bucketName("derived"), key: `${prefix}report.json` }, Buffer.from(JSON.stringify(report)), "application/json");
+  await db.update(reductions).set({ outputs: { prefix, report: `${prefix}report.json` } }).where(eq(reductions.id, red.id));
+  ids.reductionId = red.id;
 }
 
 afterAll(closeDb);
@@ -240,6 +265,16 @@ describe("permission matrix", () => {
     for (const who of WHO) {
       it(`page ${c.path} as ${who} answers ${c.expect[who]}`, async () => {
         const res = await clients[who].request(c.path);
+        expect(res.status).toBe(c.expect[who]);
+        if (res.status === 307) expect(res.headers.get("location")).toContain("/sign-in?next=");
+      });
+    }
+  }
+
+  for (const c of ID_PAGE_CASES) {
+    for (const who of WHO) {
+      it(`page ${c.route} (${c.label}) as ${who} answers ${c.expect[who]}`, async () => {
+        const res = await clients[who].request(c.path(ids));
         expect(res.status).toBe(c.expect[who]);
         if (res.status === 307) expect(res.headers.get("location")).toContain("/sign-in?next=");
       });

@@ -72,7 +72,7 @@ describe.each(FORMATS)("a 5-frame bracket in $format", ({ format, scale, scaleTo
     const { outDir } = await reduceOnce(format);
 
     const top = readdirSync(outDir).sort();
-    expect(top).toEqual(["master.fits", "natural.png", "preview.jpg", "report.json", "structure.png", "tiles"]);
+    expect(top).toEqual(["coverage.png", "master.fits", "natural.png", "preview-structure.jpg", "preview.jpg", "report.json", "structure.png", "tiles"]);
     expect(listStagingLeftovers(outDir)).toEqual([]);
     const tree = listTree(join(outDir, "tiles"));
     const dzi = computeDeepZoomLayout(FIXTURE_WIDTH, FIXTURE_HEIGHT, 254, 1);

@@ -1,0 +1,129 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import type { ReactNode } from "react";
+import { requirePagePermission } from "@/app/_server/actor";
+import { PageTitle } from "@/components/page-title";
+import { CoverageMap } from "@/components/reductions/coverage-map";
+import { FrameLimbs } from "@/components/reductions/frame-limbs";
+import { RadialProfilePlot } from "@/components/reductions/radial-profile-plot";
+import { ReductionDownloads, ReductionMeasurements, ReductionParameters, Renditions, StageLog, type ShownParams } from "@/components/reductions/reduction-details";
+import { ReductionList } from "@/components/reductions/reduction-list";
+import { ReductionProgress } from "@/components/reductions/reduction-progress";
+import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
+import { getDb } from "@/db/client";
+import { AppError } from "@/lib/errors";
+import { buildOutputUrl } from "@/lib/reductions/output-paths";
+import { findReductionOutputsView } from "@/lib/reductions/outputs";
+import { findReduction, listReductions } from "@/lib/reductions/reductions";
+import type { ReductionParamsInput } from "@/lib/reductions/schemas";
+
+export const metadata: Metadata = { title: "Reduction" };
+
+/** The service's answer, or the 404 page when it says "not found" (as it does for what the actor may not see). */
+async function foundOr404<T>(work: Promise<T>): Promise<T> {
+  try {
+    return await work;
+  } catch (err) {
+    if (err instanceof AppError && err.code === "not_found") notFound();
+    throw err;
+  }
+}
+
+function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
+  return (
+    <section aria-labelledby={id} className="mt-10">
+      <h2 id={id} className="mb-4 text-xl font-semibold">
+        {title}
+      </h2>
+      {children}
+    </section>
+  );
+}
+
+export default async function ReductionPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const actor = await requirePagePermission("studio:use", `/studio/reductions/${id}`);
+  const db = getDb();
+  const reduction = await foundOr404(findReduction(db, actor, id));
+  const view = await foundOr404(findReductionOutputsView(db, actor, id));
+  const siblings = await listReductions(db, actor, view.setId);
+  const report = view.report;
+  const measurements = reduction.measurements ?? (report ? (report.overall as Record<string, unknown>) : {});
+  const created = `${reduction.createdAt.slice(0, 10)} ${reduction.createdAt.slice(11, 16)} UTC`;
+  const profile = report?.overall.radialProfile ?? null;
+  const coverage = report?.overall.coverage ?? null;
+
+  return (
+    <>
+      <PageTitle title={`Reduction of ${view.setName}`} lead={`Started ${created}${reduction.finishedAt ? `, finished ${reduction.finishedAt.slice(0, 10)} ${reduction.finishedAt.slice(11, 16)} UTC` : ""}.`}>
+        <Link href={`/studio/sets/${view.setId}`}>Back to the bracket set</Link>
+      </PageTitle>
+
+      <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, error: reduction.error }} />
+
+      <Section id="parameters" title="Parameters">
+        <ReductionParameters params={reduction.params as ShownParams} />
+      </Section>
+
+      {reduction.state === "done" ? (
+        <>
+          <Section id="renditions" title="Renditions">
+            <Renditions reductionId={reduction.id} setName={view.setName} structurePreview={report?.outputs.previewStructure ?? "structure.png"} />
+            {report?.outputs.renditionSize && report.outputs.renditionSize.scale !== 1 ? (
+              <p className="mt-3 text-sm text-ink-muted">
+                Renditions and tiles are {report.outputs.renditionSize.width} × {report.outputs.renditionSize.height} px; the master FITS keeps the full size.
+              </p>
+            ) : null}
+          </Section>
+
+          {view.reportProblem ? (
+            <p role="alert" className="mt-8 rounded-control border border-warn/50 bg-warn/10 px-3 py-2 text-warn">
+              {view.reportProblem} The renditions and downloads are still available; frame fits, profile and coverage cannot be shown.
+            </p>
+          ) : null}
+
+          <Section id="measurements" title="Measurements">
+            <ReductionMeasurements measurements={measurements} pipelineVersion={reduction.pipelineVersion ?? report?.pipelineVersion ?? null} />
+          </Section>
+
+          <Section id="profile" title="Radial brightness profile">
+            {profile ? <RadialProfilePlot profile={profile} /> : <p className="text-ink-muted">This reduction&apos;s report has no radial profile (it was made by an earlier pipeline).</p>}
+          </Section>
+
+          <Section id="coverage" title="Coverage">
+            {coverage && report?.outputs.coverage ? (
+              <CoverageMap coverage={coverage} src={buildOutputUrl(reduction.id, report.outputs.coverage)} />
+            ) : (
+              <p className="text-ink-muted">This reduction&apos;s report has no coverage map (it was made by an earlier pipeline).</p>
+            )}
+          </Section>
+
+          <Section id="frames" title="Frames and their fitted limbs">
+            {report ? <FrameLimbs setId={view.setId} frames={report.frames} frameIds={view.frameIdsByName} referenceFrame={report.overall.referenceFrame} /> : <p className="text-ink-muted">No report to read the frames from.</p>}
+          </Section>
+
+          <Section id="stage-log" title="Stage log">
+            {report && Object.keys(report.timingsMs).length ? <StageLog timingsMs={report.timingsMs} /> : <p className="text-ink-muted">No timings were recorded.</p>}
+          </Section>
+
+          <Section id="downloads" title="Downloads">
+            <ReductionDownloads reductionId={reduction.id} />
+          </Section>
+        </>
+      ) : null}
+
+      <Section id="again" title="Reduce again">
+        <details>
+          <summary className="cursor-pointer font-medium">Start another reduction of this set with other parameters</summary>
+          <p className="my-3 text-ink-muted">This reduction stays as it is; the new one gets its own page and files.</p>
+          <ReductionStartForm setId={view.setId} groups={[]} initial={reduction.params as Partial<ReductionParamsInput>} submitLabel="Start another reduction" />
+        </details>
+      </Section>
+
+      <Section id="all" title="All reductions of this set">
+        <ReductionList reductions={siblings} caption={`Reductions of ${view.setName}, newest first`} currentId={reduction.id} />
+      </Section>
+    </>
+  );
+}

@@ -1,0 +1,73 @@
+// Words for a reduction's parameters, states and stages, shared by the form,
+// the list, the progress and the page.
+
+export const REGISTRATION_LABELS: Record<string, string> = {
+  sun: "The Sun's centre (recommended)",
+  moon: "The Moon's limb (for prominence layers)",
+  corona: "The corona itself",
+};
+
+export const REGISTRATION_SHORT: Record<string, string> = { sun: "Sun's centre", moon: "Moon's limb", corona: "Corona" };
+
+export const FILTER_LABELS: Record<string, string> = {
+  mgn: "MGN: multi-scale Gaussian normalization",
+  nrgf: "NRGF: normalizing radial graded filter",
+};
+
+export function OUTPUT_SIZE_LABEL(longSidePx: number): string {
+  return longSidePx === 0 ? "Full size" : `At most ${longSidePx} px on the long side`;
+}
+
+export const STATE_TONES = { queued: "neutral", running: "accent", done: "ok", failed: "danger" } as const;
+
+const STAGES: Record<string, string> = {
+  fetch: "Fetching frames",
+  decode: "Decoding frames",
+  sky: "Working out the sky geometry",
+  linearize: "Linearizing",
+  "limb-fit": "Fitting the lunar limb",
+  limb: "Fitting the lunar limb",
+  register: "Registering frames",
+  response: "Recovering the camera response",
+  merge: "Merging",
+  renditions: "Rendering",
+  "write-master": "Writing the master FITS",
+  "write-renditions": "Writing renditions",
+  tiles: "Cutting tiles",
+  summary: "Measuring profile and coverage",
+  store: "Storing the outputs",
+  done: "Finished",
+};
+
+/** A stage's name for people; unknown stages are shown as they come. */
+export function describeStage(stage: string | null): string {
+  if (!stage) return "Waiting for a worker";
+  return STAGES[stage] ?? stage;
+}
+
+/** Stage-log names of report.json's timings. */
+const TIMINGS: Record<string, string> = {
+  decode: "Decode and limb fits",
+  "sky-geometry": "Sky geometry",
+  "linearize-and-limb": "Linearize and limb fits",
+  register: "Register",
+  response: "Camera response",
+  "warp-and-merge": "Warp and merge",
+  renditions: "Renditions",
+  reduce: "Reduction in all",
+  "write-master": "Master FITS",
+  "write-renditions": "Rendition files and previews",
+  tiles: "Tiles",
+  summary: "Profile and coverage",
+  total: "Total",
+};
+
+export function describeTiming(stage: string): string {
+  return TIMINGS[stage] ?? stage;
+}
+
+export const MOON_SOURCES: Record<string, string> = {
+  "own-fit": "The reference frame's own limb fit",
+  path: "The Moon's path fitted through the bracket",
+  "own-doubtful-fit": "The reference frame's own limb fit (doubtful)",
+};

@@ -1,0 +1,95 @@
+"use client";
+import { useRouter } from "next/navigation";
+import { useEffect, useRef, useState } from "react";
+import { Badge } from "@/components/ui/badge";
+import { ProgressBar } from "@/components/ui/progress-bar";
+import { describeStage, STATE_TONES } from "./labels";
+
+export interface ReductionProgressState {
+  state: "queued" | "running" | "done" | "failed";
+  stage: string | null;
+  /** Fraction 0..1 of the current stage. */
+  progress: number;
+  error: string | null;
+}
+
+const POLL_MS = 1000;
+/** After this many failed polls in a row the page says it lost contact (it keeps trying, more slowly). */
+const QUIET_FAILURES = 3;
+
+const isActive = (s: ReductionProgressState["state"]) => s === "queued" || s === "running";
+
+/**
+ * State and progress of one reduction, read from GET /api/reductions/{id}
+ * every second while it is queued or running. Stage changes and the end are
+ * announced politely; when the reduction is done the page is refreshed so the
+ * server renders its results.
+ */
+export function ReductionProgress({ reductionId, initial }: { reductionId: string; initial: ReductionProgressState }) {
+  const router = useRouter();
+  const [current, setCurrent] = useState<ReductionProgressState>(initial);
+  const [failures, setFailures] = useState(0);
+  // Only a change to done (seen by polling) refreshes; a page rendered done already shows the results.
+  const refreshed = useRef(initial.state === "done");
+
+  useEffect(() => {
+    if (!isActive(current.state)) return;
+    let stopped = false;
+    const timer = setTimeout(async () => {
+      try {
+        const res = await fetch(`/api/reductions/${encodeURIComponent(reductionId)}`, { cache: "no-store" });
+        if (stopped) return;
+        if (res.status === 404 || res.status === 401) {
+          setCurrent((c) => ({ ...c, state: "failed", error: res.status === 404 ? "This reduction is no longer visible to you." : "Your session ended: sign in again to follow the reduction." }));
+          return;
+        }
+        if (!res.ok) throw new Error(String(res.status));
+        const body = (await res.json()) as ReductionProgressState;
+        setFailures(0);
+        setCurrent({ state: body.state, stage: body.stage, progress: body.progress, error: body.error });
+      } catch {
+        if (!stopped) setFailures((n) => n + 1);
+      }
+    }, failures >= QUIET_FAILURES ? POLL_MS * 5 : POLL_MS);
+    return () => {
+      stopped = true;
+      clearTimeout(timer);
+    };
+  }, [current, failures, reductionId]);
+
+  useEffect(() => {
+    if (current.state === "done" && !refreshed.current) {
+      refreshed.current = true;
+      router.refresh();
+    }
+  }, [current.state, router]);
+
+  const stage = describeStage(current.stage);
+  const percent = Math.round(Math.min(1, Math.max(0, current.progress)) * 100);
+  // What the live region says: the stage and the end, not every percent.
+  const announcement =
+    current.state === "done" ? "The reduction is finished." : current.state === "failed" ? `The reduction failed. ${current.error ?? ""}` : current.state === "queued" ? "Waiting for a worker." : `${stage}.`;
+
+  return (
+    <div className="flex flex-col gap-3 rounded-card border border-line bg-surface-raised p-5">
+      <div className="flex flex-wrap items-center gap-3">
+        <Badge tone={STATE_TONES[current.state]}>{current.state}</Badge>
+        {current.state === "done" ? <span className="text-ink-muted">Finished: the results are below.</span> : null}
+      </div>
+      {isActive(current.state) ? (
+        <ProgressBar label={current.state === "queued" ? "Queued" : stage} value={current.state === "queued" ? undefined : percent} max={100} valueText={current.state === "queued" ? "waiting" : `${percent}% of this stage`} />
+      ) : null}
+      {current.state === "failed" ? (
+        <p role="alert" className="rounded-control border border-danger/50 bg-danger/10 px-3 py-2 text-danger">
+          {current.error ?? "The reduction failed without a reason on record."}
+        </p>
+      ) : null}
+      {failures >= QUIET_FAILURES && isActive(current.state) ? (
+        <p className="text-sm text-warn">Lost contact with the server; still trying every few seconds.</p>
+      ) : null}
+      <p className="sr-only" aria-live="polite" role="status">
+        {announcement}
+      </p>
+    </div>
+  );
+}

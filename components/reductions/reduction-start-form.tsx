@@ -1,0 +1,112 @@
+"use client";
+import { useRouter } from "next/navigation";
+import { useState, type FormEvent } from "react";
+import { FormMessage } from "@/components/auth/form-message";
+import { Button } from "@/components/ui/button";
+import { Checkbox } from "@/components/ui/checkbox";
+import { Field } from "@/components/ui/field";
+import { Input } from "@/components/ui/input";
+import { Select } from "@/components/ui/select";
+import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, reductionParamsSchema, type ReductionParamsInput } from "@/lib/reductions/schemas";
+import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
+
+type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
+
+interface Problem {
+  field: string;
+  message: string;
+}
+
+/** The form's values as the schema takes them (strings are coerced by it). */
+function readForm(form: HTMLFormElement): Record<string, unknown> {
+  const data = new FormData(form);
+  const group = String(data.get("groupNumber") ?? "");
+  return {
+    registration: data.get("registration"),
+    filter: data.get("filter"),
+    filterStrength: data.get("filterStrength"),
+    outputLongSidePx: data.get("outputLongSidePx"),
+    recoverResponse: data.get("recoverResponse") === "on",
+    groupNumber: group === "" ? null : group,
+  };
+}
+
+/**
+ * Starts a reduction of a bracket set: checked in the browser with the same zod
+ * schema the server uses (problems under their labels), then posted; on success
+ * the browser goes to the new reduction's page, where its progress shows.
+ */
+export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = "Start reduction" }: { setId: string; groups: number[]; initial?: Partial<ReductionParamsInput>; submitLabel?: string }) {
+  const router = useRouter();
+  const [problems, setProblems] = useState<Problem[]>([]);
+  const [message, setMessage] = useState<string | null>(null);
+  const [pending, setPending] = useState(false);
+  const err = (field: FieldName) => problems.find((p) => p.field === field)?.message;
+
+  async function handleSubmit(event: FormEvent<HTMLFormElement>) {
+    event.preventDefault();
+    setMessage(null);
+    const checked = reductionParamsSchema.safeParse(readForm(event.currentTarget));
+    if (!checked.success) {
+      const found = checked.error.issues.map((i) => ({ field: String(i.path[0] ?? ""), message: i.message }));
+      setProblems(found);
+      setMessage(`Please correct ${found.length === 1 ? "the marked field" : `the ${found.length} marked fields`}.`);
+      return;
+    }
+    setProblems([]);
+    setPending(true);
+    try {
+      const res = await fetch(`/api/bracket-sets/${encodeURIComponent(setId)}/reductions`, {
+        method: "POST",
+        headers: { "content-type": "application/json" },
+        body: JSON.stringify(checked.data),
+      });
+      const body = (await res.json().catch(() => null)) as { id?: string; error?: { message: string; fields?: Problem[] } } | null;
+      if (res.ok && body?.id) {
+        router.push(`/studio/reductions/${body.id}`);
+        return;
+      }
+      const fields = body?.error?.fields ?? [];
+      setProblems(fields);
+      setMessage(fields.length ? `Please correct ${fields.length === 1 ? "the marked field" : `the ${fields.length} marked fields`}.` : (body?.error?.message ?? `The reduction could not be started (status ${res.status}).`));
+    } catch {
+      setMessage("The server could not be reached. Check the connection and try again.");
+    } finally {
+      setPending(false);
+    }
+  }
+
+  return (
+    <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
+      {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
+      <div className="grid gap-5 sm:grid-cols-2">
+        <Field label="Align frames on" error={err("registration")} hint="The Sun's centre needs the site and the frames' capture times.">
+          <Select name="registration" defaultValue={initial.registration ?? "sun"} options={Object.entries(REGISTRATION_LABELS).map(([value, label]) => ({ value, label }))} />
+        </Field>
+        <Field label="Structure filter" error={err("filter")} hint="Used for the structure rendition; the natural rendition is not filtered.">
+          <Select name="filter" defaultValue={initial.filter ?? "mgn"} options={Object.entries(FILTER_LABELS).map(([value, label]) => ({ value, label }))} />
+        </Field>
+        <Field label="Structure strength" error={err("filterStrength")} hint={`From 0.05 (gentle, more of the overall brightness) to 1 (local structure only); ${DEFAULT_FILTER_STRENGTH} is usual.`}>
+          <Input name="filterStrength" type="number" inputMode="decimal" step="0.05" min="0.05" max="1" defaultValue={String(initial.filterStrength ?? DEFAULT_FILTER_STRENGTH)} />
+        </Field>
+        <Field label="Size of renditions and tiles" error={err("outputLongSidePx")} hint="The master FITS always keeps the full size.">
+          <Select name="outputLongSidePx" defaultValue={String(initial.outputLongSidePx ?? 0)} options={OUTPUT_LONG_SIDES_PX.map((v) => ({ value: String(v), label: OUTPUT_SIZE_LABEL(v) }))} />
+        </Field>
+        {groups.length > 0 ? (
+          <Field label="Frames" error={err("groupNumber")} hint="Reduce one bracket of the set, or every included light frame.">
+            <Select name="groupNumber" defaultValue={initial.groupNumber ? String(initial.groupNumber) : ""} options={[{ value: "", label: "Every included light frame" }, ...groups.map((g) => ({ value: String(g), label: `Group ${g} only` }))]} />
+          </Field>
+        ) : null}
+      </div>
+      <div>
+        <Checkbox name="recoverResponse" defaultChecked={initial.recoverResponse ?? false} label="Recover the camera's response from the bracket" hint="For 8-bit frames (JPEG) only: measures the camera's tone curve instead of assuming sRGB." />
+        {err("recoverResponse") ? <p className="mt-1 text-sm font-medium text-danger">{err("recoverResponse")}</p> : null}
+      </div>
+      <div>
+        <Button type="submit" variant="primary" pending={pending} pendingLabel="Starting…">
+          {submitLabel}
+        </Button>
+      </div>
+    </form>
+  );
+}
