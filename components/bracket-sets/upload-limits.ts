@@ -5,9 +5,4 @@ export interface UploadLimits {
   partSizeBytes: number;
 }
 
-export function formatBytes(bytes: number): string {
-  if (bytes >= 1024 ** 3) return `${(bytes / 1024 ** 3).toFixed(1)} GB`;
-  if (bytes >= 1024 ** 2) return `${(bytes / 1024 ** 2).toFixed(1)} MB`;
-  if (bytes >= 1024) return `${(bytes / 1024).toFixed(0)} kB`;
-  return `${bytes} bytes`;
-}
+export { formatBytes } from "@/lib/format/bytes";

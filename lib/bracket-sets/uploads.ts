@@ -10,6 +10,7 @@ import { frames, uploads, type Upload } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { isMediaError } from "@/lib/media/errors";
+import { formatBytes } from "@/lib/format/bytes";
 import { enqueue } from "@/lib/queue/enqueue";
 import {
   abortMultipartUpload,
@@ -37,11 +38,6 @@ import { sniffObject } from "./sniff-object";
 
 const UPLOAD_NOT_FOUND = "That upload";
 
-export function formatBytes(bytes: number): string {
-  if (bytes >= 1024 ** 3) return `${(bytes / 1024 ** 3).toFixed(1)} GB`;
-  if (bytes >= 1024 ** 2) return `${(bytes / 1024 ** 2).toFixed(1)} MB`;
-  return `${bytes} bytes`;
-}
 
 function refOf(u: Upload): MultipartRef {
   return { bucket: bucketName("originals"), key: u.key, uploadId: u.s3UploadId };
@@ -63,7 +59,7 @@ export async function startFrameUpload(db: DbOrTx, actor: Actor | null, setId: s
   const name = input.fileName;
   if (input.sizeBytes === 0) throw new AppError("invalid_input", `${name}: the file is empty (0 bytes).`, [{ field: "sizeBytes", message: "the file is empty" }]);
   if (input.sizeBytes > MAX_FILE_SIZE_BYTES) {
-    throw new AppError("too_large", `${name}: ${formatBytes(input.sizeBytes)} is more than the ${formatBytes(MAX_FILE_SIZE_BYTES)} a frame may have.`, [
+    throw new AppError("too_large", `${name}: ${formatBytes(input.sizeBytes, MAX_FILE_SIZE_BYTES)} is more than the ${formatBytes(MAX_FILE_SIZE_BYTES, input.sizeBytes)} a frame may have.`, [
       { field: "sizeBytes", message: `at most ${MAX_FILE_SIZE_BYTES} bytes` },
     ]);
   }

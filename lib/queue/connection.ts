@@ -4,12 +4,25 @@
 import IORedis, { type Redis } from "ioredis";
 
 export function createRedis(url: string, forWorker: boolean): Redis {
-  return new IORedis(url, {
+  const redis = new IORedis(url, {
     maxRetriesPerRequest: forWorker ? null : 2,
     enableOfflineQueue: true,
     connectTimeout: 5000,
     lazyConnect: false,
   });
+  // ioredis reconnects by itself; say so once per outage instead of once per attempt
+  // (an unhandled "error" event would print every reconnection attempt).
+  let isDown = false;
+  redis.on("error", (err: Error) => {
+    if (isDown) return;
+    isDown = true;
+    console.warn(`redis: ${err.message}; reconnecting`);
+  });
+  redis.on("ready", () => {
+    if (isDown) console.warn("redis: connected again");
+    isDown = false;
+  });
+  return redis;
 }
 
 let producer: Redis | undefined;

@@ -8,7 +8,7 @@ import { bracketSets, jobRuns, kits, reductions, sites } from "@/db/schema";
 import { ImagingError } from "@/lib/imaging/errors";
 import { MediaError } from "@/lib/media/errors";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
-import { runReductionOnFiles } from "@/lib/reduction-runner/run-reduction";
+import { runReductionOnFiles, type RunReductionOptions } from "@/lib/reduction-runner/run-reduction";
 import type { SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { AppError } from "@/lib/errors";
 import { JOBS } from "@/lib/queue/jobs";
@@ -90,6 +90,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
     await mkdir(path.join(work, "in"));
     const files: string[] = [];
     const overrides = new Map<string, number>();
+    const frameIds: Record<string, string> = {};
     const seen = new Set<string>();
     for (const [i, f] of frameRows.entries()) {
       // Names must be unique in a bracket; the report names frames by them.
@@ -99,6 +100,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       const local = path.join(work, "in", name);
       await downloadObjectToFile({ bucket: bucketName("originals"), key: f.originalKey }, local);
       files.push(local);
+      frameIds[name] = f.id;
       if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
       await setProgress("fetch", (i + 1) / frameRows.length);
     }
@@ -113,14 +115,14 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
 
     const outDir = path.join(work, "out");
     let last = 0;
-    // filterStrength and outputLongSidePx are passed for the runner's options of those names; until
-    // the runner reads them they are ignored (the options object is built apart so its type allows them).
     const runnerParams = { filter: params.filter, recoverResponse: params.recoverResponse, filterStrength: params.filterStrength };
-    const options = {
+    const options: RunReductionOptions = {
       files,
       outDir,
       params: runnerParams,
       outputLongSidePx: params.outputLongSidePx,
+      // The report names each frame by its file here; the ids let pages find the frame rows.
+      frameIds,
       registration: params.registration,
       sky,
       exposureOverrides: overrides,

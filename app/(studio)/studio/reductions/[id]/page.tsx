@@ -1,8 +1,8 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { notFound } from "next/navigation";
 import type { ReactNode } from "react";
 import { requirePagePermission } from "@/app/_server/actor";
+import { foundOr404 } from "@/app/_server/found";
 import { PageTitle } from "@/components/page-title";
 import { CoverageMap } from "@/components/reductions/coverage-map";
 import { FrameLimbs } from "@/components/reductions/frame-limbs";
@@ -12,7 +12,6 @@ import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionProgress } from "@/components/reductions/reduction-progress";
 import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
 import { getDb } from "@/db/client";
-import { AppError } from "@/lib/errors";
 import { buildOutputUrl } from "@/lib/reductions/output-paths";
 import { findReductionOutputsView } from "@/lib/reductions/outputs";
 import { findReduction, listReductions } from "@/lib/reductions/reductions";
@@ -21,15 +20,6 @@ import type { ReductionParamsInput } from "@/lib/reductions/schemas";
 export const metadata: Metadata = { title: "Reduction" };
 
 /** The service's answer, or the 404 page when it says "not found" (as it does for what the actor may not see). */
-async function foundOr404<T>(work: Promise<T>): Promise<T> {
-  try {
-    return await work;
-  } catch (err) {
-    if (err instanceof AppError && err.code === "not_found") notFound();
-    throw err;
-  }
-}
-
 function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
   return (
     <section aria-labelledby={id} className="mt-10">

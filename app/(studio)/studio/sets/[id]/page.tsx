@@ -9,6 +9,8 @@ import { FrameTriage } from "@/components/bracket-sets/frame-triage";
 import { FrameUploader } from "@/components/bracket-sets/frame-uploader";
 import { SubmitForReview } from "@/components/bracket-sets/submit-for-review";
 import { PageTitle } from "@/components/page-title";
+import { ReductionList } from "@/components/reductions/reduction-list";
+import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
 import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
 import { findBracketSet } from "@/lib/bracket-sets";
@@ -46,6 +48,10 @@ export default async function BracketSetPage({ params }: { params: Promise<{ id:
   const checking = set.frames.filter((f) => f.ingestState === "received").length;
   const running = reductions.filter((r) => r.state === "queued" || r.state === "running").length;
   const hasDone = reductions.some((r) => r.state === "done");
+  const usable = set.frames.filter((f) => f.kind === "light" && f.included && f.ingestState === "ingested");
+  const groups = [...new Set(usable.map((f) => f.groupNumber))].sort((a, b) => a - b);
+  // The owner reduces their set; a curator may re-reduce anyone's.
+  const canReduce = (set.isOwn || actor.roles.includes("curator")) && usable.length >= 2;
 
   return (
     <>
@@ -107,18 +113,11 @@ export default async function BracketSetPage({ params }: { params: Promise<{ id:
           <h2 id="reductions-h" className="text-xl font-semibold">
             Reductions
           </h2>
-          {reductions.length === 0 ? (
-            <p className="text-ink-muted">No reductions yet.</p>
+          {reductions.length === 0 ? <p className="text-ink-muted">No reductions yet. Each reduction is kept; a new one never replaces another.</p> : <ReductionList reductions={reductions} caption="Reductions of this set" />}
+          {canReduce ? (
+            <ReductionStartForm setId={set.id} groups={groups} />
           ) : (
-            <ul className="flex flex-col gap-2">
-              {reductions.map((r) => (
-                <li key={r.id}>
-                  <Link href={`/studio/reductions/${r.id}`}>
-                    {r.params.registration} registration, {r.params.filter.toUpperCase()} · {r.state}
-                  </Link>
-                </li>
-              ))}
-            </ul>
+            <p className="text-sm text-ink-muted">A reduction needs at least two checked, included light frames{usable.some((f) => f.exposureS === null) ? " with exposures" : ""}.</p>
           )}
         </section>
 
