@@ -238,3 +238,13 @@ export function buildOverlayScene(t: ImageToScreen, g: ViewerGeometry, on: Reado
   }
   return scene;
 }
+
+/** The switched-on overlays in words, for the viewer's text description. */
+export function describeOverlayScene(scene: OverlayScene): string {
+  const parts: string[] = [];
+  if (scene.rings.length > 0) parts.push(`Rings mark 1, 2, 3 and 4 solar radii around the Sun's centre.`);
+  if (scene.moon) parts.push("A dashed circle marks the Moon's outline.");
+  if (scene.compass) parts.push(`Solar north points ${describeScreenDirection(scene.compass.north)} on screen, east points ${describeScreenDirection(scene.compass.east)}.`);
+  if (scene.scaleBars.length > 0) parts.push(`Scale bar: ${scene.scaleBars.map((b) => b.words).join("; ")}.`);
+  return parts.join(" ");
+}

@@ -10,6 +10,7 @@ import {
   computeNorthEastVectors,
   computeOverlayAvailability,
   computeRingRadiiPx,
+  describeOverlayScene,
   describeScreenDirection,
   formatArc,
   pickArcLength,
@@ -179,5 +180,17 @@ describe("scale bar lengths", () => {
     expect(formatArc(30)).toBe("30″");
     expect(formatArc(7200)).toBe("2°");
     expect(pickSolarRadiiLength(0.004, 1000).value).toBe(1);
+  });
+});
+
+describe("overlays in words", () => {
+  it("says where north points on screen and how long the scale bars are", () => {
+    const g: ViewerGeometry = { sunCentre: { x: 500, y: 500 }, sunRadiusPx: 100, solarNorthAngleDeg: 0, plateScaleArcsecPerPx: 9.6 };
+    // 1000 px wide at 1 screen px per image px: 40 % is 400 px = 3840 arcsec, so 1 degree; 4 solar radii fit, 2 is the round length.
+    const text = describeOverlayScene(buildOverlayScene(similarity(1, 0), g, new Set<OverlayKey>(["rings", "north", "scale"]), 1000));
+    expect(text).toContain("Solar north points up on screen, east points left.");
+    expect(text).toContain("Scale bar: 1 degree; 2 solar radii.");
+    expect(text).toContain("Rings mark 1, 2, 3 and 4 solar radii");
+    expect(describeOverlayScene(buildOverlayScene(similarity(1, 180), g, new Set<OverlayKey>(["north"]), 1000))).toBe("Solar north points down on screen, east points right.");
   });
 });
