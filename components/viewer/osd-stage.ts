@@ -28,6 +28,8 @@ const BLOCKED_KEY_CODES = new Set(["KeyF", "KeyJ", "KeyK"]);
 /** How much one press of the zoom buttons zooms (common practice: about the same as a wheel notch pair). */
 export const ZOOM_STEP = 1.5;
 export const ROTATION_STEP_DEG = 90;
+/** Relative zoom and centre offset (in view widths) under which a view counts as the whole image. */
+const HOME_TOLERANCE = 0.01;
 
 export class PlateStage {
   private readonly listeners = new Set<() => void>();
@@ -193,13 +195,17 @@ export class PlateStage {
     viewport.setRotation(viewport.getRotation(false) + deg);
   }
 
-  /** The visible region in image fractions (see view-state.ts); null before the images are in. */
+  /** The visible region in image fractions (see view-state.ts); null before the images are in and for the whole image. */
   region(): VisibleRegion | null {
     const item = this.anyLayer();
     if (!item) return null;
     const { x: w, y: h } = item.source.dimensions;
     const viewport = this.viewer.viewport;
     const centre = viewport.getCenter(false);
+    // The whole image fitted is no particular region: a link to it should fit the whole image on any screen.
+    const home = this.viewer.world.getHomeBounds().getCenter();
+    const isHome = Math.abs(viewport.getZoom(false) / viewport.getHomeZoom() - 1) < HOME_TOLERANCE && Math.hypot(centre.x - home.x, centre.y - home.y) < HOME_TOLERANCE * (1 / viewport.getZoom(false));
+    if (isHome) return null;
     // Every image is placed with a width of 1 viewport unit, so viewport y spans h / w.
     return { centreX: centre.x, centreY: centre.y / (h / w), width: 1 / viewport.getZoom(false) };
   }

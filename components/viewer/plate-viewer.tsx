@@ -226,7 +226,8 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
         className={cx(
           "relative w-full overflow-hidden rounded-card border border-line bg-black",
           "has-[.openseadragon-canvas:focus-visible]:outline-3 has-[.openseadragon-canvas:focus-visible]:outline-offset-2 has-[.openseadragon-canvas:focus-visible]:outline-focus",
-          fullPage ? "min-h-80 flex-1" : "h-[min(72vh,48rem)] min-h-80",
+          // On a phone a square-ish stage leaves room to turn a wide image; on a desk most of the window.
+          fullPage ? "min-h-80 flex-1" : "h-[min(70vh,100vw)] min-h-80 sm:h-[min(72vh,48rem)]",
         )}
       >
         <div ref={hostRef} className="absolute inset-0" />
