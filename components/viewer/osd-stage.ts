@@ -50,8 +50,15 @@ export class PlateStage {
   }
 
   /** Builds the viewer in `host` (an empty element React never renders into) and loads every rendition's pyramid. */
-  static async create(host: HTMLElement, renditions: ViewerRendition[], events: StageEvents): Promise<{ stage: PlateStage; failed: RenditionKey[] }> {
+  static async create(
+    host: HTMLElement,
+    renditions: ViewerRendition[],
+    events: StageEvents,
+    isCancelled: () => boolean,
+  ): Promise<{ stage: PlateStage; failed: RenditionKey[] } | null> {
     const osd = (await import("openseadragon")).default;
+    // Unmounted while the script loaded (React's development double mount does this): build nothing.
+    if (isCancelled()) return null;
     const viewer = osd({
       element: host,
       showNavigationControl: false,

@@ -39,6 +39,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
   const [announcement, setAnnouncement] = useState("");
   const [settledCount, setSettledCount] = useState(0);
 
+  const sourcesKey = renditions.map((r) => `${r.key} ${r.tileSource}`).join("\n");
   const availability = useMemo(() => computeOverlayAvailability(geometry), [geometry]);
   // What the delayed callbacks (address bar, announcements) read when they fire.
   const latest = useRef({ rendition, curtain, overlays, geometry });
@@ -110,11 +111,18 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
     let cancelled = false;
     let created: PlateStage | null = null;
     const settled = () => created && onSettled(created);
-    PlateStage.create(host, renditions, {
-      onSettled: settled,
-      gestureHint: (gesture, modifier) => (gesture === "drag" ? "Use two fingers to move the image" : `Hold ${modifier} and turn the wheel to zoom`),
-    })
-      .then(({ stage: s, failed: lost }) => {
+    PlateStage.create(
+      host,
+      renditions,
+      {
+        onSettled: settled,
+        gestureHint: (gesture, modifier) => (gesture === "drag" ? "Use two fingers to move the image" : `Hold ${modifier} and turn the wheel to zoom`),
+      },
+      () => cancelled,
+    )
+      .then((result) => {
+        if (!result) return;
+        const { stage: s, failed: lost } = result;
         if (cancelled) return s.destroy();
         created = s;
         setFailed(new Set(lost));
@@ -147,9 +155,10 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
       created?.destroy();
       setStage(null);
     };
-    // The viewer is built once per set of renditions; later prop changes reach it through effects below.
+    // The viewer is built once per set of tile sources (not per array identity: a parent's re-render
+    // must not rebuild it); later prop changes reach it through the effects below.
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [renditions]);
+  }, [sourcesKey]);
 
   useEffect(() => {
     if (!stage) return;
