@@ -67,7 +67,8 @@ export class PlateStage {
       visibilityRatio: 0.4,
       minZoomImageRatio: 0.5,
       maxZoomPixelRatio: 4,
-      animationTime: 0.8,
+      // People who ask for less motion get jumps that are nearly immediate (a spring still needs a little time).
+      animationTime: window.matchMedia?.("(prefers-reduced-motion: reduce)").matches ? 0.05 : 0.8,
       rotationIncrement: ROTATION_STEP_DEG,
       gestureSettingsMouse: { clickToZoom: false, dblClickToZoom: true },
       gestureSettingsTouch: { pinchRotate: false, flickEnabled: true },
