@@ -1,12 +1,16 @@
 import type { PublicPlateDto } from "@/lib/plates/public";
+import { PlateViewer } from "@/components/viewer/plate-viewer";
 
-/** The plate's image. */
+const LABELS = { natural: "Natural", structure: "Structure" } as const;
+
+/** The plate's zoomable image: tiles only, from the IIIF level-0 services of its renditions. */
 export function PlateImage({ plate }: { plate: PublicPlateDto }) {
   return (
-    <figure className="flex flex-col gap-2">
-      {/* eslint-disable-next-line @next/next/no-img-element -- replaced by the zoomable viewer */}
-      <img src={plate.previewUrl} alt={plate.altText} className="w-full rounded-card bg-black object-contain" />
-      <figcaption className="sr-only">{plate.altText}</figcaption>
-    </figure>
+    <PlateViewer
+      title={plate.title}
+      altText={plate.altText}
+      renditions={plate.renditionFiles.map((r) => ({ key: r.key, label: LABELS[r.key], tileSource: r.iiifInfoUrl, width: r.width, height: r.height }))}
+      geometry={plate.geometry}
+    />
   );
 }

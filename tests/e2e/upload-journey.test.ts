@@ -91,7 +91,7 @@ describe("a member's bracket, from disk to a reduction", () => {
     await snap(page, "20-frames-uploaded");
 
     // Ingest finishes in the worker; the page refreshes itself while frames are checked.
-    const exposure = page.getByLabel("Exposure of luxor-03.fits");
+    const exposure = page.getByLabel("Exposure of luxor-03.fits", { exact: true });
     await expect
       .poll(async () => (await exposure.count()) > 0 && (await page.getByText("being checked", { exact: true }).count()) === 0, { timeout: 60_000, interval: 500 })
       .toBe(true)

@@ -67,15 +67,15 @@ describe("navigation by role", () => {
   const hrefs = (roles: Role[]) => navFor(roles).map((e) => e.href);
 
   it("shows a visitor only the public entries", () => {
-    expect(hrefs([])).toEqual(["/", "/eclipses", "/planner"]);
+    expect(hrefs([])).toEqual(["/", "/gallery", "/eclipses", "/planner"]);
   });
 
   it("shows a member the studio but not the desks", () => {
-    expect(hrefs(["member"])).toEqual(["/", "/eclipses", "/planner", "/studio"]);
+    expect(hrefs(["member"])).toEqual(["/", "/gallery", "/eclipses", "/planner", "/studio"]);
   });
 
   it("adds the review desk when curator is granted", () => {
-    expect(hrefs(["member", "curator"])).toEqual(["/", "/eclipses", "/planner", "/studio", "/review"]);
+    expect(hrefs(["member", "curator"])).toEqual(["/", "/gallery", "/eclipses", "/planner", "/studio", "/review"]);
   });
 
   it("shows an admin the admin area", () => {
