@@ -112,7 +112,7 @@ const CENTRE_SIGMA_FLOOR_PX = 0.05;
  * and var(theta) = sigma^2 / sum w |u~|^2 for a unit-weight centre variance sigma^2.
  */
 export function estimateNorthAngle(samples: MoonSample[], scaleArcsecPerPx: number): NorthAngleEstimate {
-  if (samples.length < 2) throw new ReductionInputError("orientation-unknown", `the image orientation needs at least 2 frames with a lunar limb, got ${samples.length}; give --north-angle`);
+  if (samples.length < 2) throw new ReductionInputError("orientation-unknown", `the image orientation needs at least 2 frames with a lunar limb, got ${samples.length}; say how the camera was mounted (the kit's mount, or --north-angle on the command line)`);
   const u = samples.map((p) => ({ x: -p.eastArcsec / scaleArcsecPerPx, y: -p.northArcsec / scaleArcsecPerPx }));
   let sw = 0, mx = 0, my = 0, ux = 0, uy = 0;
   samples.forEach((p, i) => {

@@ -65,8 +65,8 @@ function estimateFromBracket(frames: LinearFrame[], prepared: PreparedFrame[], s
     const spanS = (Math.max(...skies.map((s) => s.midExposureMs)) - Math.min(...skies.map((s) => s.midExposureMs))) / 1000;
     throw new ReductionInputError(
       "orientation-unknown",
-      `--north-angle: the Moon moved only ${estimate.spreadPx.toFixed(2)} px against the corona over the bracket's ${spanS.toFixed(1)} s, too little to find ` +
-        `the image orientation (estimate ${estimate.northAngleDeg.toFixed(1)} +- ${estimate.sigmaDeg.toFixed(1)} deg); give the position angle of celestial north in the image`,
+      `Image orientation unknown: the Moon moved only ${estimate.spreadPx.toFixed(2)} px against the corona over the bracket's ${spanS.toFixed(1)} s, too little to find ` +
+        `it (estimate ${estimate.northAngleDeg.toFixed(1)} +- ${estimate.sigmaDeg.toFixed(1)} deg); say how the camera was mounted (the kit's mount, or --north-angle on the command line)`,
     );
   }
   return estimate;

@@ -10,7 +10,7 @@ import { eq } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { sites, users } from "@/db/schema";
+import { kits, sites, users } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { synthesizeBracket } from "@/lib/imaging/synth-model";
 import { encodeFits } from "@/lib/media/fits-write";
@@ -24,6 +24,7 @@ const files: string[] = [];
 const ip = () => `10.89.${Math.floor(Math.random() * 250)}.${Math.floor(Math.random() * 250)}`;
 const member = DEMO_PEOPLE.find((p) => p.email.startsWith("oskar"))!;
 const siteName = `Luxor, Crocodile Island ${Date.now().toString(36)}`;
+const kitName = `Refractor 600 mm ${Date.now().toString(36)}`;
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -31,6 +32,8 @@ beforeAll(async () => {
   const db = getDb();
   const [owner] = await db.select({ id: users.id }).from(users).where(eq(users.email, member.email));
   await db.insert(sites).values({ ownerId: owner.id, name: siteName, kind: "fixed", latDeg: 25.67, lonDeg: 32.65 });
+  // An equatorial mount squared to north gives the image orientation (a bracket of a few seconds cannot).
+  await db.insert(kits).values({ ownerId: owner.id, name: kitName, camera: "Mono camera", sensorWidthMm: 10, sensorHeightMm: 8, pixelPitchUm: 5, focalMm: 600, fNumber: 7, mount: "equatorial" });
 
   // Mid-totality at Luxor; the third file has no EXPTIME card, as a camera
   // driver that forgets it would write.
@@ -79,6 +82,7 @@ describe("a member's bracket, from disk to a reduction", () => {
     await page.getByRole("link", { name: "New bracket set" }).click();
     await page.getByLabel("Name").fill("Second contact, 600 mm refractor");
     await page.getByLabel("Site").selectOption({ label: siteName });
+    await page.getByLabel("Kit").selectOption({ label: kitName });
     await page.getByRole("button", { name: "Create bracket set" }).click();
     await page.getByRole("heading", { name: "Second contact, 600 mm refractor" }).waitFor({ timeout: 20_000 });
     const setUrl = page.url();

@@ -100,6 +100,6 @@ describe("estimateNorthAngle", () => {
     // The Moon moves 0.06 px in all: against the 0.05 px floor of a centre, the angle is unknown.
     const est = estimateNorthAngle(layOut(40, 20, { x: 10, y: 10 }, [{ n: 0, e: 0 }, { n: 0.6, e: 0.6 }, { n: 1.2, e: 1.2 }]), 20);
     expect(est.sigmaDeg).toBeGreaterThan(30);
-    expect(() => estimateNorthAngle(layOut(40, 20, { x: 10, y: 10 }, [{ n: 0, e: 0 }]), 20)).toThrow(/at least 2 frames .* give --north-angle/);
+    expect(() => estimateNorthAngle(layOut(40, 20, { x: 10, y: 10 }, [{ n: 0, e: 0 }]), 20)).toThrow(/at least 2 frames .* --north-angle on the command line/);
   });
 });
