@@ -143,7 +143,21 @@ export async function setClockOffset(db: DbOrTx, actor: Actor | null, setId: str
  * The clock offset, typed in seconds or taken from a frame that photographed a
  * trusted clock: offset = the frame's camera capture time - the true time shown.
  */
+/** The kit (camera and mount) of an open set: it gives the plate scale and the image orientation. */
+async function setKit(db: DbOrTx, actor: Actor | null, setId: string, kitId: string | null): Promise<BracketSetSummaryDto> {
+  const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
+  if (kitId) await requireOwnReference(db, kits, kitId, a.userId, "kitId", "That kit");
+  const [updated] = await db
+    .update(bracketSets)
+    .set({ kitId, updatedAt: sql`now()` })
+    .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
+    .returning();
+  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
+  return toSummary(updated, a, a.name, n);
+}
+
 export async function updateBracketSet(db: DbOrTx, actor: Actor | null, setId: string, input: UpdateBracketSetInput): Promise<BracketSetSummaryDto> {
+  if (input.kitId !== undefined) return setKit(db, actor, setId, input.kitId);
   if (input.clockOffsetS !== undefined) return setClockOffset(db, actor, setId, input.clockOffsetS);
   const { set } = await findOwnOpenSet(db, actor, setId);
   const frameId = input.clockFrameId;

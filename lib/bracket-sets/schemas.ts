@@ -61,10 +61,14 @@ export const updateBracketSetSchema = z
     clockShownAt: z.iso
       .datetime({ offset: true, error: "expected an ISO 8601 time with its zone, such as 2027-08-02T10:04:31.5Z" })
       .optional(),
+    /** The kit the frames were taken with; null takes it away. Given alone. */
+    kitId: z.preprocess((v) => (v === "" ? null : v), uuid("one of your kits").nullable()).optional(),
   })
   .superRefine((v, ctx) => {
     const byFrame = v.clockFrameId !== undefined || v.clockShownAt !== undefined;
-    if (v.clockOffsetS !== undefined && byFrame) {
+    if (v.kitId !== undefined) {
+      if (v.clockOffsetS !== undefined || byFrame) ctx.addIssue({ code: "custom", path: ["kitId"], message: "change the kit on its own, not with the clock" });
+    } else if (v.clockOffsetS !== undefined && byFrame) {
       ctx.addIssue({ code: "custom", path: ["clockOffsetS"], message: "give either clockOffsetS, or clockFrameId with clockShownAt, not both" });
     } else if (v.clockOffsetS === undefined && !byFrame) {
       ctx.addIssue({ code: "custom", path: ["clockOffsetS"], message: "give clockOffsetS, or clockFrameId with clockShownAt" });

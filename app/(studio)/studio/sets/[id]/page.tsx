@@ -7,6 +7,7 @@ import { BracketChart } from "@/components/bracket-sets/bracket-chart";
 import { ClockOffsetForm } from "@/components/bracket-sets/clock-offset-form";
 import { FrameTriage } from "@/components/bracket-sets/frame-triage";
 import { FrameUploader } from "@/components/bracket-sets/frame-uploader";
+import { KitChooser } from "@/components/bracket-sets/kit-chooser";
 import { SubmitForReview } from "@/components/bracket-sets/submit-for-review";
 import { PageTitle } from "@/components/page-title";
 import { ReductionList } from "@/components/reductions/reduction-list";
@@ -106,6 +107,15 @@ export default async function BracketSetPage({ params }: { params: Promise<{ id:
         ) : (
           <p className="text-ink-muted">No frames yet. Add the frames of one camera&apos;s bracket above; they are checked and measured as they arrive.</p>
         )}
+
+        {canEdit ? (
+          <section aria-labelledby="kit-h" className="flex flex-col gap-3">
+            <h2 id="kit-h" className="text-xl font-semibold">
+              Kit
+            </h2>
+            <KitChooser setId={set.id} kitId={set.kitId} kits={kits.map((k) => ({ id: k.id, name: k.name }))} />
+          </section>
+        ) : null}
 
         {canEdit ? <ClockOffsetForm setId={set.id} clockOffsetS={set.clockOffsetS} frames={set.frames} /> : null}
 
