@@ -123,7 +123,7 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
           <ul className="flex flex-col gap-2 text-sm">
             {plate.downloads.map((d) => (
               <li key={d.url}>
-                <a href={d.url} download>
+                <a href={d.url} download className="underline">
                   {d.label}
                 </a>
               </li>
@@ -139,7 +139,7 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
         <ul className="flex flex-col gap-1 text-sm">
           {plate.versions.map((v) => (
             <li key={v.version}>
-              <Link href={v.url} aria-current={v.version === plate.version ? "page" : undefined}>
+              <Link href={v.url} aria-current={v.version === plate.version ? "page" : undefined} className="underline">
                 Version {v.version}
               </Link>{" "}
               <span className="text-ink-muted">
@@ -150,7 +150,9 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
           ))}
           {plate.withdrawn ? null : (
             <li>
-              <a href={`/iiif/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}/manifest.json`}>IIIF manifest</a>{" "}
+              <a href={`/iiif/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}/manifest.json`} className="underline">
+                IIIF manifest
+              </a>{" "}
               <span className="text-ink-muted">(to show this plate in other IIIF viewers)</span>
             </li>
           )}

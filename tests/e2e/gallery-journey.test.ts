@@ -114,12 +114,15 @@ describe("the public gallery", () => {
     await page.waitForResponse((r) => /-iiif\/.+\/default\.jpg$/.test(r.url()) && r.status() === 200, { timeout: 30_000 });
 
     // Keyboard zoom on the image: the view goes into the address bar.
-    await page.getByLabel(new RegExp(`The corona over Luxor ${tag}`)).first().focus();
+    // The image itself (OpenSeadragon's canvas, labelled with the title) takes the keys.
+    await page.getByLabel(`The corona over Luxor ${tag}`, { exact: true }).focus();
     await page.keyboard.press("+");
     await page.keyboard.press("+");
     await expect.poll(() => viewParams(page.url()).v, { timeout: 10_000 }).not.toBeNull();
 
-    await page.getByRole("radio", { name: "Structure" }).check();
+    // The rendition switch is a radio group drawn as buttons: used here from the keyboard.
+    await page.getByRole("radio", { name: "Structure" }).focus();
+    await page.keyboard.press("Space");
     await expect.poll(() => viewParams(page.url()).r, { timeout: 10_000 }).toBe("structure");
     await page.getByRole("checkbox", { name: "Compare with a curtain" }).check();
     await expect.poll(() => viewParams(page.url()).cmp, { timeout: 10_000 }).not.toBeNull();
