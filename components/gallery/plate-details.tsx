@@ -2,17 +2,10 @@ import Link from "next/link";
 import type { ReactNode } from "react";
 import type { PublicPlateDto } from "@/lib/plates/public";
 import { formatExposure } from "@/components/bracket-sets/exposure-text";
+import { describeTiming } from "@/components/reductions/labels";
 
-const STAGE_NAMES: Record<string, string> = {
-  decode: "Decoding and linearizing the frames",
-  limb: "Fitting each frame's limb",
-  register: "Registering the frames",
-  merge: "Merging across exposures",
-  radial: "Radial filtering",
-  tone: "Tone mapping",
-  tiles: "Cutting the zoom tiles",
-  write: "Writing the outputs",
-};
+/** The pipeline's stages in the order they run; "reduce" and "total" are sums of others. */
+const STAGE_ORDER = ["decode", "sky-geometry", "linearize-and-limb", "register", "response", "warp-and-merge", "renditions", "write-master", "write-renditions", "tiles", "summary"];
 
 function Row({ term, children }: { term: string; children: ReactNode }) {
   return (
@@ -102,9 +95,12 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
           {plate.disclosure.stages.length ? (
             <Row term="Stages">
               <ol className="list-decimal pl-5">
-                {plate.disclosure.stages.map((s) => (
-                  <li key={s.name}>{STAGE_NAMES[s.name] ?? s.name}</li>
-                ))}
+                {plate.disclosure.stages
+                  .filter((s) => STAGE_ORDER.includes(s.name))
+                  .sort((a, b) => STAGE_ORDER.indexOf(a.name) - STAGE_ORDER.indexOf(b.name))
+                  .map((s) => (
+                    <li key={s.name}>{describeTiming(s.name)}</li>
+                  ))}
               </ol>
             </Row>
           ) : null}
