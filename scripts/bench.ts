@@ -5,7 +5,7 @@
 //      tiling one rendition (what any reduction must at least do);
 //  (b) our 8-bit merge over OpenCV's MergeDebevec (python3-opencv) on the same
 //      codes, each side timed around the merge alone.
-// Run: npm run bench
+// Run: npm run bench            (the gallery: npm run bench -- gallery)
 import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -102,7 +102,9 @@ async function main(): Promise<void> {
   }
 }
 
-main().catch((error: unknown) => {
+// `npm run bench -- gallery` measures the public gallery instead (needs the app running).
+const run = process.argv.includes("gallery") ? () => import("./bench-gallery").then(() => undefined) : main;
+run().catch((error: unknown) => {
   console.error(error instanceof Error ? error.stack : error);
   process.exitCode = 1;
 });
