@@ -35,27 +35,47 @@ export function classifyReductionPath(path: string): ReductionFileKind | null {
   return null;
 }
 
-/** How the caller may receive it: public (cacheable by anyone) or private to them. */
-async function decideAccess(db: DbOrTx, actor: Actor | null, reductionId: string, kind: ReductionFileKind): Promise<"public" | "private"> {
+/**
+ * Public access, remembered for a few seconds per reduction and kind: a plate
+ * page asks for dozens of tiles at once, and each would otherwise repeat the
+ * same query. Withdrawing a plate takes effect within this time.
+ */
+const PUBLIC_ACCESS_TTL_MS = 5_000;
+const publicAccess = new Map<string, { isPublic: boolean; until: number; prefix: string | null }>();
+
+async function findPublicAccess(db: DbOrTx, reductionId: string, kind: ReductionFileKind): Promise<{ isPublic: boolean; prefix: string | null }> {
+  const key = `${reductionId}:${kind === "download" ? "download" : "view"}`;
+  const hit = publicAccess.get(key);
+  if (hit && hit.until > Date.now()) return hit;
   const published = await db
     .select({ licence: plates.licence })
     .from(plateVersions)
     .innerJoin(plates, and(eq(plates.id, plateVersions.plateId), eq(plates.currentVersion, plateVersions.version)))
     .where(and(eq(plateVersions.reductionId, reductionId), eq(plates.state, "published")));
-  if (published.length && (kind !== "download" || published.some((p) => LICENCE_INFO[p.licence].allowsDownload))) return "public";
+  const isPublic = published.length > 0 && (kind !== "download" || published.some((p) => LICENCE_INFO[p.licence].allowsDownload));
+  const [red] = isPublic ? await db.select({ outputs: reductions.outputs }).from(reductions).where(eq(reductions.id, reductionId)).limit(1) : [];
+  const entry = { isPublic, prefix: red?.outputs?.prefix ?? null, until: Date.now() + PUBLIC_ACCESS_TTL_MS };
+  if (publicAccess.size > 1000) publicAccess.clear();
+  publicAccess.set(key, entry);
+  return entry;
+}
+
+/** How the caller may receive it, and where its files live: public (cacheable by anyone) or private to them. */
+async function decideAccess(db: DbOrTx, actor: Actor | null, reductionId: string, kind: ReductionFileKind): Promise<{ access: "public" | "private"; prefix: string | null }> {
+  const pub = await findPublicAccess(db, reductionId, kind);
+  if (pub.isPublic) return { access: "public", prefix: pub.prefix };
   // Not public: only for those who may see the set (findReduction says "not found" otherwise).
   await findReduction(db, actor, reductionId);
-  return "private";
+  const [red] = await db.select({ outputs: reductions.outputs }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
+  return { access: "private", prefix: red?.outputs?.prefix ?? null };
 }
 
 export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reductionId: string, path: string, asDownload: boolean): Promise<Response> {
   const kind = classifyReductionPath(path);
   if (!kind || !/^[0-9a-f-]{36}$/i.test(reductionId)) throw notFound("That file");
-  const access = await decideAccess(db, actor, reductionId, kind).catch(() => {
+  const { access, prefix } = await decideAccess(db, actor, reductionId, kind).catch(() => {
     throw notFound("That file");
   });
-  const [red] = await db.select({ outputs: reductions.outputs, setId: reductions.bracketSetId }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
-  const prefix = red?.outputs?.prefix;
   if (!prefix) throw notFound("That file");
   const key = kind === "tile" ? `${prefix}tiles/${path}` : `${prefix}${path}`;
   let out;
