@@ -2,20 +2,18 @@
 // The camera clock offset: typed in seconds, or worked out from a frame that
 // photographed a trusted clock (a GPS receiver's display, a radio-controlled
 // watch) together with the true time that clock showed.
-import { useRouter } from "next/navigation";
 import { useId, useState, type FormEvent } from "react";
 import type { FrameDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
 import { callApi } from "./api-client";
+import { useApiAction } from "./use-api-action";
 
 type Mode = "typed" | "frame";
 
 export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string; clockOffsetS: number; frames: FrameDto[] }) {
-  const router = useRouter();
   const id = useId();
   const [mode, setMode] = useState<Mode>("typed");
-  const [pending, setPending] = useState(false);
-  const [result, setResult] = useState<{ tone: "ok" | "danger"; text: string; field?: string } | null>(null);
+  const { pending, message: result, setMessage: setResult, run } = useApiAction();
   const timed = frames.filter((f) => f.captureAt && f.ingestState === "ingested");
 
   async function onSubmit(e: FormEvent<HTMLFormElement>) {
@@ -45,17 +43,10 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
       }
       body = { clockFrameId: frameId, clockShownAt: new Date(iso).toISOString() };
     }
-    setPending(true);
-    setResult(null);
-    try {
-      const saved = await callApi<{ clockOffsetS: number }>(`/api/bracket-sets/${setId}`, { method: "PATCH", body });
-      setResult({ tone: "ok", text: `Camera clock offset is now ${saved.clockOffsetS} s; frame times below are corrected.` });
-      router.refresh();
-    } catch (err) {
-      setResult({ tone: "danger", text: (err as Error).message });
-    } finally {
-      setPending(false);
-    }
+    await run(
+      () => callApi<{ clockOffsetS: number }>(`/api/bracket-sets/${setId}`, { method: "PATCH", body }),
+      (saved) => `Camera clock offset is now ${saved.clockOffsetS} s; frame times below are corrected.`,
+    );
   }
 
   return (

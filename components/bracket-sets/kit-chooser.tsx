@@ -1,29 +1,19 @@
 "use client";
-import { useRouter } from "next/navigation";
 import { useId, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { callApi } from "./api-client";
+import { useApiAction } from "./use-api-action";
 
 /** The set's kit, changeable while frames may still be corrected. Without one, a Sun-centred reduction must guess the orientation. */
 export function KitChooser({ setId, kitId, kits }: { setId: string; kitId: string | null; kits: { id: string; name: string }[] }) {
-  const router = useRouter();
   const id = useId();
   const [value, setValue] = useState(kitId ?? "");
-  const [pending, setPending] = useState(false);
-  const [message, setMessage] = useState<{ tone: "ok" | "danger"; text: string } | null>(null);
-  async function save() {
-    setPending(true);
-    setMessage(null);
-    try {
-      await callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { kitId: value || null } });
-      setMessage({ tone: "ok", text: value ? "Kit saved; new reductions use its plate scale and mount." : "The set has no kit now." });
-      router.refresh();
-    } catch (err) {
-      setMessage({ tone: "danger", text: (err as Error).message });
-    } finally {
-      setPending(false);
-    }
-  }
+  const { pending, message, run } = useApiAction();
+  const save = () =>
+    run(
+      () => callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { kitId: value || null } }),
+      () => (value ? "Kit saved; new reductions use its plate scale and mount." : "The set has no kit now."),
+    );
   return (
     <div className="flex flex-col gap-2">
       <div className="flex flex-wrap items-end gap-3">

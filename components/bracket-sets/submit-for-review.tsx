@@ -1,27 +1,12 @@
 "use client";
-import { useRouter } from "next/navigation";
-import { useState } from "react";
 import { Button } from "@/components/ui/button";
 import { callApi } from "./api-client";
+import { useApiAction } from "./use-api-action";
 
 /** Hands the set to the curators; it can no longer be changed until they ask for changes. */
 export function SubmitForReview({ setId, hasReduction }: { setId: string; hasReduction: boolean }) {
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [message, setMessage] = useState<{ tone: "ok" | "danger"; text: string } | null>(null);
-  async function submit() {
-    setPending(true);
-    setMessage(null);
-    try {
-      await callApi(`/api/bracket-sets/${setId}/submit`, { method: "POST", body: {} });
-      setMessage({ tone: "ok", text: "Submitted. The curators have been told by e-mail." });
-      router.refresh();
-    } catch (err) {
-      setMessage({ tone: "danger", text: (err as Error).message });
-    } finally {
-      setPending(false);
-    }
-  }
+  const { pending, message, run } = useApiAction();
+  const submit = () => run(() => callApi(`/api/bracket-sets/${setId}/submit`, { method: "POST", body: {} }), () => "Submitted. The curators have been told by e-mail.");
   return (
     <div className="flex flex-col gap-2">
       <div>

@@ -17,6 +17,7 @@ function DefinitionList({ rows }: { rows: [string, string][] }) {
   );
 }
 
+/** The parameters as stored; reductions started before a parameter existed lack it. */
 export interface ShownParams {
   registration?: string;
   filter?: string;

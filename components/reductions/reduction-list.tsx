@@ -3,16 +3,8 @@ import { Badge } from "@/components/ui/badge";
 import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import type { ReductionDto } from "@/lib/reductions/reductions";
 import { describeStage, OUTPUT_SIZE_LABEL, REGISTRATION_SHORT, STATE_TONES } from "./labels";
+import type { ShownParams as StoredParams } from "./reduction-details";
 
-/** The parameters as stored; reductions started before a parameter existed lack it. */
-interface StoredParams {
-  registration?: string;
-  filter?: string;
-  filterStrength?: number;
-  outputLongSidePx?: number;
-  recoverResponse?: boolean;
-  groupNumber?: number | null;
-}
 
 function formatUtc(iso: string): string {
   return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;

@@ -1,6 +1,8 @@
 // The viewer's contract with the plate page: what the page knows about a
 // plate's renditions and its sky geometry, in the renditions' own pixels.
 
+import type { PlateGeometry } from "@/db/schema/plates";
+
 export type RenditionKey = "natural" | "structure";
 
 export interface ViewerRendition {
@@ -14,18 +16,12 @@ export interface ViewerRendition {
 
 /**
  * In the renditions' own pixel coordinates (both renditions share them): 0-based,
- * x right, y down. Every field optional: an overlay whose data is missing is off
- * and its toggle disabled with the reason.
+ * x right, y down; solar north in degrees counter-clockwise from image up
+ * (unmirrored sky image: east is 90 degrees counter-clockwise from north). Every
+ * field optional: an overlay whose data is missing is off and its toggle disabled
+ * with the reason. The same shape a plate version stores.
  */
-export interface ViewerGeometry {
-  sunCentre?: { x: number; y: number };
-  sunRadiusPx?: number;
-  moonCentre?: { x: number; y: number };
-  moonRadiusPx?: number;
-  /** position angle of solar north in the image, degrees counter-clockwise from image up (unmirrored sky image: east is 90 degrees counter-clockwise from north) */
-  solarNorthAngleDeg?: number;
-  plateScaleArcsecPerPx?: number;
-}
+export type ViewerGeometry = PlateGeometry;
 
 export interface PlateViewerProps {
   title: string;

@@ -2,6 +2,7 @@
 // a sharpness figure, and the lunar limb. Pure typed-array work on a shrunken
 // luminance (a 24 Mpx frame never gets a full-size copy here); the worker does
 // the I/O.
+import { downsampleMeanOf } from "@/lib/imaging/coarse-disk";
 import { fitLimb } from "@/lib/imaging/limb-fit";
 import type { PlaneImage } from "@/lib/imaging/types";
 import type { FrameFlags } from "@/db/schema";
@@ -39,20 +40,7 @@ export interface Luminance {
 export function shrinkLuminance(image: PlaneImage, maxSidePx: number): Luminance {
   const { width, height, planes } = image;
   const factor = Math.max(1, Math.ceil(Math.max(width, height) / maxSidePx));
-  const w = Math.ceil(width / factor);
-  const h = Math.ceil(height / factor);
-  const sum = new Float64Array(w * h);
-  const count = new Uint32Array(w * h);
-  for (let y = 0; y < height; y++) {
-    const row = ((y / factor) | 0) * w;
-    for (let x = 0; x < width; x++) {
-      const j = row + ((x / factor) | 0);
-      sum[j] += lumaAt(planes, y * width + x);
-      count[j]++;
-    }
-  }
-  const data = new Float32Array(w * h);
-  for (let j = 0; j < data.length; j++) data[j] = sum[j] / count[j];
+  const { data, width: w, height: h } = downsampleMeanOf(width, height, factor, (i) => lumaAt(planes, i));
   return { data, width: w, height: h, factor };
 }
 

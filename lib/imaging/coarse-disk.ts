@@ -13,6 +13,11 @@ const THRESHOLD_FRACTIONS = [0.5, 0.3, 0.18, 0.1, 0.05, 0.025, 0.012];
 
 /** Box-mean downsampling by an integer factor (partial edge cells averaged over what they hold). */
 export function downsampleMean(plane: Float32Array, width: number, height: number, factor: number): { data: Float32Array; width: number; height: number } {
+  return downsampleMeanOf(width, height, factor, (i) => plane[i]);
+}
+
+/** The same, of any per-pixel value (e.g. a luminance computed on the fly, never stored at full size). */
+export function downsampleMeanOf(width: number, height: number, factor: number, valueAt: (index: number) => number): { data: Float32Array; width: number; height: number } {
   const w = Math.ceil(width / factor);
   const h = Math.ceil(height / factor);
   const sum = new Float64Array(w * h);
@@ -21,7 +26,7 @@ export function downsampleMean(plane: Float32Array, width: number, height: numbe
     const row = ((y / factor) | 0) * w;
     for (let x = 0; x < width; x++) {
       const j = row + ((x / factor) | 0);
-      sum[j] += plane[y * width + x];
+      sum[j] += valueAt(y * width + x);
       count[j]++;
     }
   }
