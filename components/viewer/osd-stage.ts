@@ -31,6 +31,15 @@ export const ROTATION_STEP_DEG = 90;
 /** Relative zoom and centre offset (in view widths) under which a view counts as the whole image. */
 const HOME_TOLERANCE = 0.01;
 
+// The viewer's script starts loading as soon as this module runs in the browser,
+// not after the page has hydrated and the component's effect has fired.
+const importOpenSeadragon = () => import("openseadragon");
+let osdModule: ReturnType<typeof importOpenSeadragon> | null = typeof window === "undefined" ? null : importOpenSeadragon();
+function loadOpenSeadragon(): ReturnType<typeof importOpenSeadragon> {
+  osdModule ??= importOpenSeadragon();
+  return osdModule;
+}
+
 export class PlateStage {
   private readonly listeners = new Set<() => void>();
   private frame: StageFrame | null = null;
@@ -56,7 +65,7 @@ export class PlateStage {
     events: StageEvents,
     isCancelled: () => boolean,
   ): Promise<{ stage: PlateStage; failed: RenditionKey[] } | null> {
-    const osd = (await import("openseadragon")).default;
+    const osd = (await loadOpenSeadragon()).default;
     // Unmounted while the script loaded (React's development double mount does this): build nothing.
     if (isCancelled()) return null;
     const viewer = osd({
