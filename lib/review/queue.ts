@@ -187,7 +187,7 @@ export async function assignToMe(db: DbOrTx, actor: Actor | null, input: z.infer
 const CSV_HEADER = ["id", "name", "state", "eclipse", "site", "photographer", "light_frames", "finished_reductions", "submitted_at", "in_hand_of"];
 
 /** One CSV cell: quoted when needed, and a leading = + - @ neutralised so spreadsheets do not run it as a formula. */
-function cell(v: string | number | null): string {
+export function csvCell(v: string | number | null): string {
   let s = v === null ? "" : String(v);
   if (/^[=+\-@\t\r]/.test(s)) s = `'${s}`;
   return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
@@ -200,7 +200,7 @@ export async function exportReviewQueueCsv(db: DbOrTx, actor: Actor | null, quer
   for (;;) {
     const p = await listReviewQueue(db, actor, { ...query, page });
     for (const r of p.rows) {
-      lines.push([r.id, r.name, r.state, r.eclipseId, r.siteName, r.photographerName, r.frameCount, r.finishedReductions, r.submittedAt, r.assignedToName].map(cell).join(","));
+      lines.push([r.id, r.name, r.state, r.eclipseId, r.siteName, r.photographerName, r.frameCount, r.finishedReductions, r.submittedAt, r.assignedToName].map(csvCell).join(","));
     }
     if (page >= p.pageCount) break;
     page++;
