@@ -13,6 +13,7 @@ import { SortableHeader, type SortDirection } from "@/components/ui/sortable-hea
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import type { QueueRowDto } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
+import { stateTone } from "./state-tone";
 
 export interface QueueColumn {
   key: string;
@@ -20,10 +21,6 @@ export interface QueueColumn {
   /** Where sorting by this column leads; absent for columns that do not sort. */
   href?: string;
   direction: SortDirection;
-}
-
-export function stateTone(state: string): "ok" | "danger" | "warn" | "neutral" {
-  return state === "approved" ? "ok" : state === "rejected" ? "danger" : state === "changes-requested" ? "warn" : "neutral";
 }
 
 export function QueueTable({ rows, columns, caption, csvHref }: { rows: QueueRowDto[]; columns: QueueColumn[]; caption: string; csvHref: string }) {

@@ -11,7 +11,7 @@ import { ReductionStartForm } from "@/components/reductions/reduction-start-form
 import { DecisionForm } from "@/components/review/decision-form";
 import { LinkedComparison, type ComparisonChoice } from "@/components/review/linked-comparison";
 import { NoteForm } from "@/components/review/note-form";
-import { stateTone } from "@/components/review/queue-table";
+import { stateTone } from "@/components/review/state-tone";
 import { CuratorNotesList, DecisionHistory } from "@/components/review/review-history";
 import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
