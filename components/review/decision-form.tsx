@@ -36,7 +36,9 @@ export function DecisionForm({
   rejectionReasons: ReasonOption[];
 }) {
   const router = useRouter();
-  const [action, setAction] = useState<CuratorAction>(actions[0]);
+  const [chosen, setAction] = useState<CuratorAction>(actions[0]);
+  // After a decision the page offers other actions; fall back to the first one open.
+  const action = actions.includes(chosen) ? chosen : actions[0];
   const [pending, setPending] = useState(false);
   const [result, setResult] = useState<{ ok: boolean; text: string; fields: Record<string, string> } | null>(null);
   const reasons = action === "request-changes" ? changeReasons : action === "reject" ? rejectionReasons : [];

@@ -7,7 +7,7 @@ import path from "node:path";
 import { and, desc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { auditLog, bracketSets, curatorNotes, reductions, reviewDecisions } from "@/db/schema";
+import { auditLog, bracketSets, curatorNotes, reductions, reviewDecisions, users } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { submitBracketSet } from "@/lib/bracket-sets";
@@ -181,6 +181,38 @@ describe("review decisions", () => {
     expect((await new Client().json(`/api/review/sets/${setId}/decisions`, { action: "approve" })).status).toBe(401);
     expect(await stateOf(setId)).toBe("awaiting-review");
   });
+
+  it("shows the photographer the message on their set's page and the curators the note on the desk", async () => {
+    const oskar = DEMO_PEOPLE.find((p) => p.roles.join() === "member")!;
+    const [row] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, oskar.email));
+    const photographer: Actor = { userId: row.id, email: oskar.email, name: row.name, roles: ["member"] };
+    const setId = await setOnDesk(photographer, `Pages ${tag}`);
+    await decide(db, curator, setId, { action: "request-changes", reasonCode: "clock-offset", message: `Your camera clock looks 40 s fast ${tag}.`, note: PRIVATE_NOTE });
+
+    const owner = new Client();
+    await owner.signIn(oskar.email, DEMO_PASSWORD);
+    const studio = await owner.request(`/studio/sets/${setId}`);
+    expect(studio.status).toBe(200);
+    const studioHtml = await studio.text();
+    expect(studioHtml).toContain(`Your camera clock looks 40 s fast ${tag}.`);
+    expect(studioHtml).toContain("Clock offset doubtful");
+    expect(studioHtml).not.toContain("ship&#x27;s log");
+    expect(studioHtml).not.toContain("ship's log");
+
+    const desk = new Client();
+    await desk.signIn(DEMO_PEOPLE.find((p) => p.roles.includes("curator"))!.email, DEMO_PASSWORD);
+    const page = await desk.request(`/review/sets/${setId}`);
+    expect(page.status).toBe(200);
+    const html = await page.text();
+    expect(html).toMatch(/ship(&#x27;|')s log/);
+    expect(html).toContain(`Your camera clock looks 40 s fast ${tag}.`);
+    const queue = await desk.request(`/review?state=changes-requested&photographer=${row.id}`);
+    expect(queue.status).toBe(200);
+    expect(await queue.text()).toContain(`Pages ${tag}`);
+    const csv = await desk.request(`/api/review/queue.csv?state=all&photographer=${row.id}`);
+    expect(csv.headers.get("content-type")).toContain("text/csv");
+    expect(await csv.text()).toContain(`${setId},Pages ${tag},changes-requested,2027-08-02`);
+  }, 60_000);
 
   it("pages, filters and counts the queue in the database", async () => {
     const q = (raw: Record<string, string>) => parseInput(queueQuerySchema, raw);
