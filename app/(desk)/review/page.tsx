@@ -14,14 +14,14 @@ import { fieldProblems } from "@/lib/validation";
 
 export const metadata: Metadata = { title: "Review desk" };
 
-const COLUMNS: { key: QueueSort | "assigned"; label: string; sortable: boolean }[] = [
+const COLUMNS: { key: QueueSort | "reductions" | "assigned"; label: string; sortable: boolean }[] = [
   { key: "submitted", label: "Sent", sortable: true },
   { key: "name", label: "Bracket set", sortable: true },
   { key: "photographer", label: "Photographer", sortable: true },
   { key: "eclipse", label: "Eclipse", sortable: true },
   { key: "state", label: "State", sortable: true },
   { key: "frames", label: "Light frames", sortable: true },
-  { key: "assigned", label: "Finished reductions", sortable: false },
+  { key: "reductions", label: "Finished reductions", sortable: false },
   { key: "assigned", label: "In hand of", sortable: false },
 ];
 
