@@ -5,6 +5,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
+import { Textarea } from "@/components/ui/textarea";
 import type { FormAction } from "@/components/forms/action-result";
 
 
@@ -14,7 +15,16 @@ export function SettingsForm({
   licences,
 }: {
   action: FormAction;
-  initial: { name: string; shortName: string; defaultLicence: string; defaultCreditLine: string };
+  initial: {
+    name: string;
+    shortName: string;
+    defaultLicence: string;
+    defaultCreditLine: string;
+    creditLineTemplate: string;
+    /** One reason a line. */
+    changeReasons: string;
+    rejectionReasons: string;
+  };
   licences: { value: string; label: string }[];
 }) {
   const [state, formAction] = useActionState(action, null);
@@ -34,6 +44,20 @@ export function SettingsForm({
       </Field>
       <Field label="Default credit line" hint="Printed under every plate unless a curator changes it." error={err("defaultCreditLine")} required>
         <Input name="defaultCreditLine" defaultValue={v("defaultCreditLine")} required maxLength={200} />
+      </Field>
+      <Field
+        label="Credit-line template for plates"
+        hint="Placeholders: {acquiredBy}, {processedBy}, {society}, {year}, {licence}. The plate editor fills them in."
+        error={err("creditLineTemplate")}
+        required
+      >
+        <Input name="creditLineTemplate" defaultValue={v("creditLineTemplate")} required maxLength={200} />
+      </Field>
+      <Field label="Reasons for asking a photographer for changes" hint="One reason a line, at most 20. Curators pick one with each request." error={err("changeReasons")} required>
+        <Textarea name="changeReasons" defaultValue={v("changeReasons")} rows={6} required />
+      </Field>
+      <Field label="Reasons for rejecting a bracket set" hint="One reason a line, at most 20." error={err("rejectionReasons")} required>
+        <Textarea name="rejectionReasons" defaultValue={v("rejectionReasons")} rows={5} required />
       </Field>
       <div>
         <SubmitButton>Save settings</SubmitButton>

@@ -6,3 +6,4 @@ export * from "./sky";
 export * from "./brackets";
 export * from "./reductions";
 export * from "./plates";
+export * from "./review";

@@ -1,33 +1,35 @@
 // Sending a bracket set for review: the owner moves it from gathering (or
-// changes requested) to awaiting review once a reduction of it has finished,
-// and every curator gets a mail with a link to the set.
+// changes requested: a resubmission) to awaiting review once a reduction of it
+// has finished, and every curator gets a mail with a link to the set. The move
+// is the review state machine's "submit"; it is kept in the review history and
+// the audit log like a curator's decision.
 import { randomUUID } from "node:crypto";
-import { and, count, eq, inArray, ne } from "drizzle-orm";
+import { and, count, desc, eq, ne } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, frames, outboxMessages, reductions, userRoles, users, type BracketSet } from "@/db/schema";
+import { bracketSets, frames, outboxMessages, reductions, reviewDecisions, userRoles, users } from "@/db/schema";
+import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { reviewRequestedMail } from "@/lib/email/templates";
 import { AppError, forbidden } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
+import { planTransition } from "@/lib/review/state-machine";
 import { findVisibleSet } from "./access";
 import { toSummary } from "./bracket-sets";
 import type { BracketSetSummaryDto } from "./dto";
 import { appLink } from "./notify";
 
-const SUBMITTABLE: readonly BracketSet["state"][] = ["gathering", "changes-requested"];
-
 export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetSummaryDto> {
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
   if (set.ownerId !== a.userId) throw forbidden("sending another photographer's bracket set for review");
   requirePermission(a, "brackets:own");
-  if (!SUBMITTABLE.includes(set.state)) {
-    throw new AppError("conflict", `The bracket set "${set.name}" is ${set.state}; it can be sent for review only while it is gathering or has changes requested.`);
-  }
+  // Refuses, naming the state, a set already on the desk or decided.
+  const plan = planTransition(set.state, "submit", "owner");
   const [finished] = await db
-    .select({ id: reductions.id })
+    .select({ id: reductions.id, pipelineVersion: reductions.pipelineVersion })
     .from(reductions)
     .where(and(eq(reductions.bracketSetId, set.id), eq(reductions.state, "done")))
+    .orderBy(desc(reductions.createdAt))
     .limit(1);
   if (!finished) {
     throw new AppError("conflict", `The bracket set "${set.name}" has no finished reduction yet; start one, wait until it is done, then send the set for review.`);
@@ -45,14 +47,25 @@ export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: s
     const [row] = await tx
       .update(bracketSets)
       .set({ state: "awaiting-review", updatedAt: new Date() })
-      .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId), inArray(bracketSets.state, [...SUBMITTABLE])))
+      .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId), eq(bracketSets.state, plan.from)))
       .returning();
     // Another request moved the set first: nothing is sent twice.
     if (!row) throw new AppError("conflict", `The bracket set "${set.name}" has just been sent for review.`);
+    const [decision] = await tx
+      .insert(reviewDecisions)
+      .values({ bracketSetId: set.id, fromState: plan.from, toState: plan.to, action: "submit", decidedBy: a.userId, reductionId: finished.id, pipelineVersion: finished.pipelineVersion })
+      .returning({ id: reviewDecisions.id });
+    await recordAudit(tx, {
+      actorId: a.userId,
+      action: plan.isResubmission ? "review.resubmit" : "review.submit",
+      subjectType: "bracket-set",
+      subjectId: set.id,
+      detail: { from: plan.from, to: plan.to, reason: null, pipelineVersion: finished.pipelineVersion, reductionId: finished.id, decisionId: decision.id },
+    });
     const ids: string[] = [];
     for (const c of curators) {
       const id = randomUUID();
-      await tx.insert(outboxMessages).values({ id, ...reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url }) });
+      await tx.insert(outboxMessages).values({ id, ...reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url, isResubmission: plan.isResubmission }) });
       ids.push(id);
     }
     return { updated: row, outboxIds: ids };

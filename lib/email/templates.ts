@@ -43,12 +43,22 @@ function draft(society: string, to: string, subject: string, lines: string[], li
 }
 
 /** To a curator: a photographer has sent a bracket set to the review desk. */
-export function reviewRequestedMail(society: string, to: string, curatorName: string, set: { name: string; photographerName: string; url: string }): MailDraft {
+export function reviewRequestedMail(
+  society: string,
+  to: string,
+  curatorName: string,
+  set: { name: string; photographerName: string; url: string; isResubmission?: boolean },
+): MailDraft {
   return draft(
     society,
     to,
-    `Bracket set awaiting review: ${set.name}`,
-    [`Hello ${curatorName},`, `${set.photographerName} has sent the bracket set "${set.name}" for review. It is waiting on the review desk.`],
+    `Bracket set ${set.isResubmission ? "sent again" : "awaiting review"}: ${set.name}`,
+    [
+      `Hello ${curatorName},`,
+      set.isResubmission
+        ? `${set.photographerName} has made the changes asked for and sent the bracket set "${set.name}" for review again. It is waiting on the review desk.`
+        : `${set.photographerName} has sent the bracket set "${set.name}" for review. It is waiting on the review desk.`,
+    ],
     { href: set.url, label: "Open the bracket set" },
   );
 }
@@ -78,4 +88,39 @@ export function reductionFailedMail(society: string, to: string, name: string, r
     ],
     { href: reduction.url, label: "See the reduction" },
   );
+}
+
+/** To the photographer: what a curator decided about their set. Never carries a curator's private note. */
+export function reviewDecisionMail(
+  society: string,
+  to: string,
+  name: string,
+  decision: { action: "request-changes" | "approve" | "reject" | "reopen"; setName: string; reason: string | null; message: string | null; url: string },
+): MailDraft {
+  const set = `"${decision.setName}"`;
+  const reason = decision.reason ? [`Reason: ${decision.reason}`] : [];
+  const message = decision.message ? [`Message from the curators:\n${decision.message}`] : [];
+  const texts = {
+    "request-changes": {
+      subject: `Changes asked for: ${decision.setName}`,
+      lines: [`The curators have looked at your bracket set ${set} and ask for changes before it can go further.`, ...reason, ...message, "Make the changes on the set's page, then submit it for review again."],
+      label: "Open the bracket set",
+    },
+    approve: {
+      subject: `Approved: ${decision.setName}`,
+      lines: [`The curators have approved your bracket set ${set}. They will now prepare a plate from it for the gallery.`, ...message],
+      label: "Open the bracket set",
+    },
+    reject: {
+      subject: `Not accepted: ${decision.setName}`,
+      lines: [`The curators have decided not to accept your bracket set ${set}.`, ...reason, ...message, "Your frames and reductions stay in your studio."],
+      label: "Open the bracket set",
+    },
+    reopen: {
+      subject: `Back on the review desk: ${decision.setName}`,
+      lines: [`The curators have taken back their earlier decision on your bracket set ${set}; it is awaiting review again.`],
+      label: "Open the bracket set",
+    },
+  }[decision.action];
+  return draft(society, to, texts.subject, [`Hello ${name},`, ...texts.lines], { href: decision.url, label: texts.label });
 }

@@ -129,6 +129,32 @@ const API_CASES: Case[] = [
   },
   // The member's finished reduction: its owner and curators read its files; other members are told it does not exist.
   { route: "/api/reductions/[id]/files/[...path]", method: "GET", path: ({ reductionId }) => `/api/reductions/${reductionId}/files/report.json`, expect: ownSetRead },
+  // The review desk (curators). The matrix's set is still gathering: a curator's decision is refused by the state machine (409).
+  {
+    route: "/api/review/sets/[id]/decisions",
+    method: "POST",
+    path: ({ setId }) => `/api/review/sets/${setId}/decisions`,
+    body: { action: "approve" },
+    expect: { visitor: 401, member: 403, curator: 409, editor: 403, admin: 403 },
+  },
+  { route: "/api/review/sets/[id]/notes", method: "GET", path: ({ setId }) => `/api/review/sets/${setId}/notes`, expect: { visitor: 401, member: 403, curator: 200, editor: 403, admin: 403 } },
+  // An empty note is refused (400), so the matrix leaves no trace.
+  {
+    route: "/api/review/sets/[id]/notes",
+    method: "POST",
+    path: ({ setId }) => `/api/review/sets/${setId}/notes`,
+    body: { body: "" },
+    expect: { visitor: 401, member: 403, curator: 400, editor: 403, admin: 403 },
+  },
+  // A set still gathering is not on the desk (404 for the curator).
+  {
+    route: "/api/review/assignments",
+    method: "POST",
+    path: () => "/api/review/assignments",
+    body: ({ setId }: Ids) => ({ setIds: [setId] }),
+    expect: { visitor: 401, member: 403, curator: 404, editor: 403, admin: 403 },
+  },
+  { route: "/api/review/queue.csv", method: "GET", path: () => "/api/review/queue.csv?state=all", expect: { visitor: 401, member: 403, curator: 200, editor: 403, admin: 403 } },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
@@ -166,6 +192,9 @@ const ID_PAGE_CASES: { route: string; label: string; path: (ids: Ids) => string;
   // The member's reduction: the owner and curators see it; other members get 404, like a missing one.
   { route: "/studio/reductions/[id]", label: "the member's", path: ({ reductionId }) => `/studio/reductions/${reductionId}`, expect: { visitor: 307, member: 200, curator: 200, editor: 404, admin: 404 } },
   { route: "/studio/reductions/[id]", label: "a missing one", path: () => "/studio/reductions/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
+  // The review page of one set: curators only; a missing set is 404 for them.
+  { route: "/review/sets/[id]", label: "the member's", path: ({ setId }) => `/review/sets/${setId}`, expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
+  { route: "/review/sets/[id]", label: "a missing one", path: () => "/review/sets/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 403, curator: 404, editor: 403, admin: 403 } },
 ];
 
 function routeTemplates(): string[] {

@@ -22,6 +22,9 @@ const pick = (s: SocietySettings): SettingsInput => ({
   shortName: s.shortName,
   defaultLicence: s.defaultLicence as SettingsInput["defaultLicence"],
   defaultCreditLine: s.defaultCreditLine,
+  creditLineTemplate: s.creditLineTemplate,
+  changeReasons: s.changeReasons,
+  rejectionReasons: s.rejectionReasons,
 });
 
 describe("society settings", () => {
@@ -37,12 +40,7 @@ describe("society settings", () => {
     const before = await findSocietySettings(db);
     // The actor id must exist for the audit foreign key; null actors are allowed, unknown ids are not.
     const actor = { ...admin, userId: (await db.query.users.findFirst())!.id };
-    const changed = await updateSocietySettings(db, actor, {
-      name: before.name,
-      shortName: before.shortName,
-      defaultLicence: "CC-BY-SA-4.0",
-      defaultCreditLine: before.defaultCreditLine,
-    });
+    const changed = await updateSocietySettings(db, actor, { ...pick(before), defaultLicence: "CC-BY-SA-4.0" });
     expect(changed).toEqual(["defaultLicence"]);
     const [entry] = await db
       .select()
@@ -55,12 +53,38 @@ describe("society settings", () => {
 
   it("names the field and the fault for bad form input", () => {
     try {
-      parseInput(settingsSchema, { name: "K", shortName: "Kestrel", defaultLicence: "WTFPL", defaultCreditLine: "KRAS" });
+      parseInput(settingsSchema, {
+        name: "K",
+        shortName: "Kestrel",
+        defaultLicence: "WTFPL",
+        defaultCreditLine: "KRAS",
+        creditLineTemplate: "{photographer} / {society}",
+        changeReasons: "Clock offset doubtful\n\nclock offset doubtful",
+        rejectionReasons: "\n  \n",
+      });
       throw new Error("accepted");
     } catch (err) {
       expect(err).toBeInstanceOf(AppError);
       const fields = (err as AppError).fields.map((f) => f.field).sort();
-      expect(fields).toEqual(["defaultLicence", "name"]);
+      expect(fields).toEqual(["changeReasons", "creditLineTemplate", "defaultLicence", "name", "rejectionReasons"]);
+      expect((err as AppError).fields.find((f) => f.field === "creditLineTemplate")?.message).toContain("{photographer}");
     }
+  });
+
+  it("keeps reason lists as codes and labels, one reason a line", () => {
+    const input = parseInput(settingsSchema, {
+      name: "Kestrel Ridge Astronomical Society",
+      shortName: "Kestrel Ridge",
+      defaultLicence: "CC-BY-4.0",
+      defaultCreditLine: "KRAS",
+      creditLineTemplate: "{acquiredBy} / {society}",
+      changeReasons: " Exposure times missing or wrong \r\n\nClock offset doubtful",
+      rejectionReasons: "Not the Sun",
+    });
+    expect(input.changeReasons).toEqual([
+      { code: "exposure-times-missing-or-wrong", label: "Exposure times missing or wrong" },
+      { code: "clock-offset-doubtful", label: "Clock offset doubtful" },
+    ]);
+    expect(input.rejectionReasons).toEqual([{ code: "not-the-sun", label: "Not the Sun" }]);
   });
 });

@@ -17,7 +17,15 @@ export default async function SettingsPage() {
       <PageTitle title="Society settings" lead="The name shown on every page, and the defaults curators start from." />
       <SettingsForm
         action={saveSettingsAction}
-        initial={{ name: s.name, shortName: s.shortName, defaultLicence: s.defaultLicence, defaultCreditLine: s.defaultCreditLine }}
+        initial={{
+          name: s.name,
+          shortName: s.shortName,
+          defaultLicence: s.defaultLicence,
+          defaultCreditLine: s.defaultCreditLine,
+          creditLineTemplate: s.creditLineTemplate,
+          changeReasons: s.changeReasons.map((r) => r.label).join("\n"),
+          rejectionReasons: s.rejectionReasons.map((r) => r.label).join("\n"),
+        }}
         licences={Object.entries(LICENCES).map(([value, label]) => ({ value, label }))}
       />
     </>

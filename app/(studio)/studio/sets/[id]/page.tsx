@@ -18,6 +18,7 @@ import { findBracketSet } from "@/lib/bracket-sets";
 import { findEclipse } from "@/lib/eclipses/eclipses";
 import { listKits } from "@/lib/kits/kits";
 import { listReductions } from "@/lib/reductions/reductions";
+import { findLatestMessageToPhotographer } from "@/lib/review/history";
 import { listSites } from "@/lib/sites/sites";
 import { MAX_FILES_PER_SET, MAX_FILE_SIZE_BYTES, PART_SIZE_BYTES } from "@/lib/storage/limits";
 
@@ -36,11 +37,12 @@ export default async function BracketSetPage({ params }: { params: Promise<{ id:
   const actor = await requirePagePermission("studio:use", `/studio/sets/${id}`);
   const db = getDb();
   const set = await foundOr404(findBracketSet(db, actor, id));
-  const [reductions, eclipse, sites, kits] = await Promise.all([
+  const [reductions, eclipse, sites, kits, curatorsMessage] = await Promise.all([
     listReductions(db, actor, set.id),
     findEclipse(db, set.eclipseId).catch(() => null),
     set.isOwn ? listSites(db, actor) : Promise.resolve([]),
     set.isOwn ? listKits(db, actor) : Promise.resolve([]),
+    findLatestMessageToPhotographer(db, actor, set.id),
   ]);
   const site = sites.find((s) => s.id === set.siteId);
   const kit = kits.find((k) => k.id === set.kitId);
@@ -81,6 +83,25 @@ export default async function BracketSetPage({ params }: { params: Promise<{ id:
           .filter(Boolean)
           .join(" ")}
       />
+
+      {curatorsMessage ? (
+        <section aria-labelledby="curators-message-h" className="mb-8 max-w-3xl rounded-card border border-warn/60 bg-warn/10 p-4">
+          <h2 id="curators-message-h" className="text-lg font-semibold">
+            The curators ask for changes
+          </h2>
+          {curatorsMessage.reasonLabel ? <p className="mt-1 font-medium">Reason: {curatorsMessage.reasonLabel}</p> : null}
+          <p className="mt-2 whitespace-pre-line">{curatorsMessage.message}</p>
+          <p className="mt-2 text-sm text-ink-muted">
+            Sent <time dateTime={curatorsMessage.decidedAt}>{curatorsMessage.decidedAt.slice(0, 16).replace("T", " ")} UTC</time>.{" "}
+            {set.isOwn ? "Correct the set below, then submit it for review again." : ""}
+          </p>
+        </section>
+      ) : null}
+      {actor.roles.includes("curator") && !set.isOwn && set.state !== "gathering" ? (
+        <p className="mb-8">
+          <Link href={`/review/sets/${set.id}`}>Open this set on the review desk</Link>
+        </p>
+      ) : null}
 
       {set.notes ? <p className="mb-8 max-w-3xl whitespace-pre-line text-ink-muted">{set.notes}</p> : null}
 
