@@ -41,7 +41,8 @@ export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: s
     .from(users)
     .innerJoin(userRoles, eq(userRoles.userId, users.id))
     .where(and(eq(userRoles.role, "curator"), eq(users.emailVerified, true), ne(users.id, a.userId)));
-  const url = appLink(`/studio/sets/${set.id}`);
+  // Curators open the set on their desk.
+  const url = appLink(`/review/sets/${set.id}`);
 
   const { updated, outboxIds } = await db.transaction(async (tx) => {
     const [row] = await tx

@@ -251,7 +251,7 @@ describe("reductions of one group, mail, and sending for review", () => {
     const mail = await waitForMail(curator.email, (m) => m.subject.includes("Luxor, two brackets"), 60_000);
     expect(mail.subject).toBe("Bracket set awaiting review: Luxor, two brackets");
     expect(mail.text).toContain("Halima Okonjo-Reyes");
-    expect(firstLink(mail.text)).toBe(`${process.env.APP_URL}/studio/sets/${setId}`);
+    expect(firstLink(mail.text)).toBe(`${process.env.APP_URL}/review/sets/${setId}`);
     // Once awaiting review, it is not sent again and its frames and groups are closed to changes.
     await expect(submitBracketSet(db, owner, setId)).rejects.toMatchObject({ code: "conflict" });
     await expect(changeGroups(db, owner, setId, { action: "auto", gapS: 20 })).rejects.toMatchObject({ code: "conflict" });
