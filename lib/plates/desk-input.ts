@@ -1,7 +1,14 @@
 // What the plate editor sends, checked in the browser (live) and on the server
 // (the rule). Client-safe: no database, no Node modules.
 import { z } from "zod";
-import { PLATE_LICENCES, PLATE_REPORT_KINDS, RENDITIONS, WITHDRAWAL_KINDS } from "@/db/schema/plates";
+import type { PlateLicence, PlateReportKind, Rendition, WithdrawalKind } from "@/db/schema/plates";
+
+// Repeated here (checked against the schema's types) so that client components
+// importing this file do not pull the database schema into the browser bundle.
+const PLATE_LICENCES = ["CC-BY-4.0", "CC-BY-SA-4.0", "CC-BY-NC-4.0", "CC-BY-NC-SA-4.0", "CC0-1.0", "all-rights-reserved"] as const satisfies readonly PlateLicence[];
+const PLATE_REPORT_KINDS = ["rights", "error", "other"] as const satisfies readonly PlateReportKind[];
+const RENDITIONS = ["natural", "structure"] as const satisfies readonly Rendition[];
+const WITHDRAWAL_KINDS = ["temporary", "permanent"] as const satisfies readonly WithdrawalKind[];
 
 export const CAPTION_MAX_WORDS = 40;
 
