@@ -30,7 +30,7 @@ export const SLUG_PATTERN = /^[a-z0-9]+(?:-[a-z0-9]+)*$/;
 
 export const plateEditSchema = z.object({
   title: trimmed("title", 160).min(3, { error: "the title needs at least 3 characters" }),
-  caption: trimmed("caption", 400).superRefine((s, ctx) => {
+  caption: trimmed("caption", 800).superRefine((s, ctx) => {
     const words = countWords(s);
     if (words > CAPTION_MAX_WORDS) ctx.addIssue({ code: "custom", message: `the caption must be at most ${CAPTION_MAX_WORDS} words; it has ${words}` });
   }),

@@ -77,8 +77,11 @@ export async function embedCredits(jpeg: Buffer, credits: WebJpegCredits): Promi
   const path = join(dir, "web.jpg");
   try {
     await writeFile(path, jpeg);
-    // -all= first: the file carries only what we state (no GPS, no stray tags).
-    await exiftool.write(path, buildWebJpegTags(credits) as unknown as WriteTags, { writeArgs: ["-overwrite_original", "-all="] });
+    // Everything else goes first (in its own call: ExifTool applies "-all=" after
+    // the tag assignments of the same command), so the file carries only what we
+    // state: no GPS, no stray tags.
+    await exiftool.deleteAllTags(path);
+    await exiftool.write(path, buildWebJpegTags(credits) as unknown as WriteTags, { writeArgs: ["-overwrite_original"] });
     return await readFile(path);
   } finally {
     await rm(dir, { recursive: true, force: true });
