@@ -79,22 +79,25 @@ export async function createDraftPlate(db: Db, actor: Actor | null, input: unkno
   const set = await requireApprovedSet(db, red.setId, "a plate can be made from it");
   const settings = await findSocietySettings(db);
   const slug = await uniqueSlug(db, slugify(set.name));
-  const plate = await createPlateFromReduction(db, {
-    reductionId,
-    slug,
-    title: set.name,
-    caption: "",
-    description: "",
-    altText: "",
-    acquiredBy: set.ownerName,
-    processedBy: pipelineCredit(red.pipelineVersion),
-    licence: toPlateLicence(settings.defaultLicence),
-    renditions,
-    publish: false,
-    createdBy: curator.userId,
+  // One transaction: the plate and its audit row exist together or not at all.
+  return db.transaction(async (tx) => {
+    const plate = await createPlateFromReduction(tx, {
+      reductionId,
+      slug,
+      title: set.name,
+      caption: "",
+      description: "",
+      altText: "",
+      acquiredBy: set.ownerName,
+      processedBy: pipelineCredit(red.pipelineVersion),
+      licence: toPlateLicence(settings.defaultLicence),
+      renditions,
+      publish: false,
+      createdBy: curator.userId,
+    });
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { reductionId, renditions, slug } });
+    return plate;
   });
-  await recordAudit(db, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { reductionId, renditions, slug } });
-  return plate;
 }
 
 const EDITABLE: (keyof PlateEditInput)[] = ["title", "caption", "description", "altText", "acquiredBy", "processedBy", "licence", "slug"];

@@ -213,6 +213,24 @@ describe("the plate desk", () => {
   });
 });
 
+describe("the desk pages", () => {
+  it("show a curator the plate list and the editor, and every visitor the report form", async () => {
+    const desk = new Client();
+    await desk.signIn(DEMO_PEOPLE.find((p) => p.roles.includes("curator"))!.email, DEMO_PASSWORD);
+    const list = await desk.request("/review/plates");
+    expect(list.status).toBe(200);
+    expect(await list.text()).toContain(`/review/plates/${plateId}`);
+    const editor = await desk.request(`/review/plates/${plateId}`);
+    expect(editor.status).toBe(200);
+    const html = await editor.text();
+    expect(html).toContain("withdrawn for good");
+    expect(html).toContain(`/plates/${slug}/v/1`);
+    expect(html).toContain("Reports from the public (0 open)");
+    const page = await new Client().request(`/plates/${slug}`);
+    expect(await page.text()).toContain("Report this plate");
+  });
+});
+
 describe("the desk routes", () => {
   const memberEmail = DEMO_PEOPLE.find((p) => p.roles.join() === "member")!.email;
   const editorEmail = DEMO_PEOPLE.find((p) => p.roles.includes("editor") && !p.roles.includes("curator"))!.email;
