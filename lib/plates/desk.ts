@@ -43,6 +43,16 @@ async function requireApprovedSet(db: Db, setId: string, doing: string): Promise
   return set;
 }
 
+/** True for PostgreSQL's unique violation on the slug index, however the driver wraps it. */
+function isSlugTaken(err: unknown): boolean {
+  for (let e = err as { code?: string; constraint?: string; cause?: unknown } | undefined; e; e = e.cause as typeof e) {
+    if (e.code === "23505" && e.constraint === "plates_slug_key") return true;
+  }
+  return false;
+}
+
+const slugTaken = (slug: string) => new AppError("invalid_input", `The link name "${slug}" is taken by another plate.`, [{ field: "slug", message: "already taken" }]);
+
 async function uniqueSlug(db: Db, base: string): Promise<string> {
   for (let i = 1; i < 50; i++) {
     const candidate = i === 1 ? base : `${base.slice(0, 76)}-${i}`;
@@ -80,7 +90,7 @@ export async function createDraftPlate(db: Db, actor: Actor | null, input: unkno
   const settings = await findSocietySettings(db);
   const slug = await uniqueSlug(db, slugify(set.name));
   // One transaction: the plate and its audit row exist together or not at all.
-  return db.transaction(async (tx) => {
+  const created = db.transaction(async (tx) => {
     const plate = await createPlateFromReduction(tx, {
       reductionId,
       slug,
@@ -98,6 +108,10 @@ export async function createDraftPlate(db: Db, actor: Actor | null, input: unkno
     await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { reductionId, renditions, slug } });
     return plate;
   });
+  // Another draft may take the same name between the check and the insert.
+  return created.catch((err: unknown) => {
+    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
+  });
 }
 
 const EDITABLE: (keyof PlateEditInput)[] = ["title", "caption", "description", "altText", "acquiredBy", "processedBy", "licence", "slug"];
@@ -114,25 +128,33 @@ export async function updatePlate(db: Db, actor: Actor | null, plateId: string, 
     // Published links are permanent: the link name is fixed once the public has seen it.
     if (before.publishedAt) throw new AppError("invalid_input", "The link name cannot change after publishing: published links are permanent.", [{ field: "slug", message: "fixed after publishing" }]);
     const [taken] = await db.select({ id: plates.id }).from(plates).where(eq(plates.slug, values.slug)).limit(1);
-    if (taken) throw new AppError("invalid_input", `The link name "${values.slug}" is taken by another plate.`, [{ field: "slug", message: "already taken" }]);
+    if (taken) throw slugTaken(values.slug);
   }
   const changed = EDITABLE.filter((k) => before[k] !== values[k]);
   if (changed.length === 0) return [];
-  await db.transaction(async (tx) => {
-    await tx
-      .update(plates)
-      .set({ ...values, updatedAt: sql`now()` })
-      .where(eq(plates.id, plateId));
-    await recordAudit(tx, {
-      actorId: curator.userId,
-      action: "plate.edited",
-      subjectType: "plate",
-      subjectId: plateId,
-      detail: Object.fromEntries(changed.map((k) => [k, { from: before[k], to: values[k] }])),
+  try {
+    await db.transaction(async (tx) => {
+      await tx
+        .update(plates)
+        .set({ ...values, updatedAt: sql`now()` })
+        .where(eq(plates.id, plateId));
+      await recordAudit(tx, {
+        actorId: curator.userId,
+        action: "plate.edited",
+        subjectType: "plate",
+        subjectId: plateId,
+        detail: Object.fromEntries(changed.map((k) => [k, { from: before[k], to: values[k] }])),
+      });
     });
-  });
-  // The public file carries the credits: write them again when they change.
-  if (before.state === "published") await makeWebJpeg(db, plateId, before.currentVersion);
+  } catch (err) {
+    // Another plate may take the same name between the check and the update.
+    throw isSlugTaken(err) ? slugTaken(values.slug) : err;
+  }
+  // The public files carry the credits: write every version's again when the texts change.
+  if (before.state === "published") {
+    const versions = await db.select({ version: plateVersions.version }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
+    for (const { version } of versions) await makeWebJpeg(db, plateId, version);
+  }
   return changed;
 }
 

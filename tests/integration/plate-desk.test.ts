@@ -154,6 +154,16 @@ describe("the plate desk", () => {
     expect(await auditActions()).toContain("plate.published");
   });
 
+  it("gives a second draft of the set its own link name, and refuses another plate's", async () => {
+    const second = await createDraftPlate(db, curator, { reductionId: secondReduction, renditions: ["structure"] });
+    const first = await findDeskPlate(db, curator, plateId);
+    expect(second.slug).not.toBe(first.slug);
+    await expect(updatePlate(db, curator, second.id, { ...texts(), title: "Second draft" })).rejects.toMatchObject({
+      code: "invalid_input",
+      fields: [{ field: "slug", message: "already taken" }],
+    });
+  });
+
   it("adds a version: the current one moves and version 1 keeps its permanent link", async () => {
     await expect(addPlateVersion(db, curator, plateId, { reductionId: secondReduction, renditions: ["natural"], changeNote: "" })).rejects.toMatchObject({ fields: [expect.objectContaining({ field: "changeNote" })] });
     const { version } = await addPlateVersion(db, curator, plateId, { reductionId: secondReduction, renditions: ["natural"], changeNote: "Re-reduced with a gentler filter" });
@@ -211,6 +221,17 @@ describe("the plate desk", () => {
     const actions = await auditActions();
     expect(actions).toEqual(expect.arrayContaining(["plate.reported", "plate.report-answered"]));
   });
+
+  it("limits reports per client address", async () => {
+    const visitor = new Client();
+    const send = () => visitor.json(`/api/plates/${slug}/reports`, { kind: "other", message: "Checking the limit on reports.", email: `limit-${tag}@visitors.example` });
+    for (let i = 0; i < 5; i++) expect((await send()).status).toBe(201);
+    const refused = await send();
+    expect(refused.status).toBe(429);
+    expect(JSON.stringify(refused.body)).toContain("Too many reports");
+    // Another address is not affected.
+    expect((await new Client().json(`/api/plates/${slug}/reports`, { kind: "other", message: "A different visitor writes.", email: `other-${tag}@visitors.example` })).status).toBe(201);
+  });
 });
 
 describe("the desk pages", () => {
@@ -225,7 +246,7 @@ describe("the desk pages", () => {
     const html = await editor.text();
     expect(html).toContain("withdrawn for good");
     expect(html).toContain(`/plates/${slug}/v/1`);
-    expect(html).toContain("Reports from the public (0 open)");
+    expect(html).toContain("Reports from the public (6 open)");
     const page = await new Client().request(`/plates/${slug}`);
     expect(await page.text()).toContain("Report this plate");
   });
