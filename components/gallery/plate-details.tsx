@@ -117,7 +117,11 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
             Downloads
           </h2>
           <p className="mb-3 max-w-prose text-sm">
-            Licensed under <a href={plate.licence.deedUrl}>{plate.licence.shortName}</a>. Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
+            Licensed under{" "}
+            <a href={plate.licence.deedUrl} className="underline">
+              {plate.licence.shortName}
+            </a>
+            . Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
             {plate.licence.allowsDownload ? "" : " Full-resolution files are not offered under this licence."}
           </p>
           <ul className="flex flex-col gap-2 text-sm">
@@ -139,7 +143,7 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
         <ul className="flex flex-col gap-1 text-sm">
           {plate.versions.map((v) => (
             <li key={v.version}>
-              <Link href={v.url} aria-current={v.version === plate.version ? "page" : undefined}>
+              <Link href={v.url} aria-current={v.version === plate.version ? "page" : undefined} className="underline">
                 Version {v.version}
               </Link>{" "}
               <span className="text-ink-muted">
@@ -150,7 +154,9 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
           ))}
           {plate.withdrawn ? null : (
             <li>
-              <a href={`/iiif/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}/manifest.json`}>IIIF manifest</a>{" "}
+              <a href={`/iiif/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}/manifest.json`} className="underline">
+                IIIF manifest
+              </a>{" "}
               <span className="text-ink-muted">(to show this plate in other IIIF viewers)</span>
             </li>
           )}

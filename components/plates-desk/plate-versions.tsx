@@ -53,7 +53,9 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
           <li key={v.version}>
             <span className="font-medium">Version {v.version}</span>
             {v.version === currentVersion ? " (current)" : ""}: {v.changeNote || "no note"}. {v.createdAt.slice(0, 10)}, renditions {v.renditions.join(" and ")}.{" "}
-            <Link href={v.url}>Permanent link {v.url}</Link>
+            <Link href={v.url} className="underline">
+              Permanent link {v.url}
+            </Link>
           </li>
         ))}
       </ol>

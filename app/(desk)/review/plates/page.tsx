@@ -42,7 +42,9 @@ export default async function DeskPlatesPage() {
                 {rows.map((p) => (
                   <TableRow key={p.id}>
                     <TableCell>
-                      <Link href={`/review/plates/${p.id}`}>{p.title}</Link>
+                      <Link href={`/review/plates/${p.id}`} className="underline">
+                        {p.title}
+                      </Link>
                       {p.withdrawnKind ? <span className="ml-2 text-sm text-ink-muted">({p.withdrawnKind === "temporary" ? "for the time being" : "for good"})</span> : null}
                     </TableCell>
                     <TableCell>{p.setName}</TableCell>

@@ -52,7 +52,8 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
       </PageTitle>
       {plate.state !== "draft" ? (
         <p className="-mt-4 mb-6 text-sm">
-          Public page: <Link href={`/plates/${plate.slug}`}>/plates/{plate.slug}</Link>
+          Public page:{" "}
+          <Link href={`/plates/${plate.slug}`} className="underline">/plates/{plate.slug}</Link>
         </p>
       ) : null}
       {plate.withdrawn ? (
