@@ -113,7 +113,11 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
             Downloads
           </h2>
           <p className="mb-3 max-w-prose text-sm">
-            Licensed under <a href={plate.licence.deedUrl}>{plate.licence.shortName}</a>. Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
+            Licensed under{" "}
+            <a href={plate.licence.deedUrl} className="underline">
+              {plate.licence.shortName}
+            </a>
+            . Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
             {plate.licence.allowsDownload ? "" : " Full-resolution files are not offered under this licence."}
           </p>
           <ul className="flex flex-col gap-2 text-sm">

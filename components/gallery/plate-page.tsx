@@ -2,6 +2,7 @@ import Link from "next/link";
 import type { PublicPlateDto } from "@/lib/plates/public";
 import { PlateDetails } from "./plate-details";
 import { PlateImage } from "./plate-image";
+import { ReportPlateForm } from "./report-plate-form";
 
 /** A plate's page: the zoomable image, then what it shows and how it was made. A withdrawn plate keeps everything but the image. */
 export function PlatePage({ plate, society }: { plate: PublicPlateDto; society: string }) {
@@ -21,15 +22,17 @@ export function PlatePage({ plate, society }: { plate: PublicPlateDto; society: 
       </header>
       {plate.withdrawn ? (
         <section role="note" className="rounded-card border border-danger p-5">
-          <h2 className="text-lg font-semibold">This plate has been withdrawn</h2>
+          <h2 className="text-lg font-semibold">{plate.withdrawn.kind === "temporary" ? "This plate is withdrawn while a question is looked at" : "This plate has been withdrawn"}</h2>
           <p className="mt-2">
-            Withdrawn on {plate.withdrawn.at.slice(0, 10)}. Reason: {plate.withdrawn.reason || "not given"}. Its record stays here; the image is no longer shown.
+            Withdrawn on {plate.withdrawn.at.slice(0, 10)}. Reason: {plate.withdrawn.reason || "not given"}. Its record stays here; the image is{" "}
+            {plate.withdrawn.kind === "temporary" ? "not shown until the curators have decided." : "no longer shown."}
           </p>
         </section>
       ) : (
         <PlateImage plate={plate} />
       )}
       <PlateDetails plate={plate} society={society} />
+      <ReportPlateForm slug={plate.slug} title={plate.title} />
     </article>
   );
 }

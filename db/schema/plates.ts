@@ -12,6 +12,8 @@ export const PLATE_STATES = ["draft", "published", "withdrawn"] as const;
 export type PlateState = (typeof PLATE_STATES)[number];
 export const PLATE_LICENCES = ["CC-BY-4.0", "CC-BY-SA-4.0", "CC-BY-NC-4.0", "CC-BY-NC-SA-4.0", "CC0-1.0", "all-rights-reserved"] as const;
 export type PlateLicence = (typeof PLATE_LICENCES)[number];
+export const WITHDRAWAL_KINDS = ["temporary", "permanent"] as const;
+export type WithdrawalKind = (typeof WITHDRAWAL_KINDS)[number];
 export const RENDITIONS = ["natural", "structure"] as const;
 export type Rendition = (typeof RENDITIONS)[number];
 
@@ -42,6 +44,8 @@ export const plates = pgTable(
     publishedAt: timestamp("published_at", { withTimezone: true }),
     withdrawnAt: timestamp("withdrawn_at", { withTimezone: true }),
     withdrawnReason: text("withdrawn_reason"),
+    /** temporary: hidden while a question is looked at; permanent: for good. Null unless withdrawn. */
+    withdrawnKind: text("withdrawn_kind", { enum: WITHDRAWAL_KINDS }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
@@ -96,3 +100,29 @@ export interface PlateFacts {
 
 export type Plate = typeof plates.$inferSelect;
 export type PlateVersion = typeof plateVersions.$inferSelect;
+
+export const PLATE_REPORT_KINDS = ["rights", "error", "other"] as const;
+export type PlateReportKind = (typeof PLATE_REPORT_KINDS)[number];
+export const PLATE_REPORT_STATES = ["open", "answered", "closed"] as const;
+export type PlateReportState = (typeof PLATE_REPORT_STATES)[number];
+
+/** What visitors tell us about a published plate; curators answer by e-mail and the answer is kept. */
+export const plateReports = pgTable(
+  "plate_reports",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    plateId: uuid("plate_id")
+      .notNull()
+      .references(() => plates.id, { onDelete: "cascade" }),
+    kind: text("kind", { enum: PLATE_REPORT_KINDS }).notNull(),
+    message: text("message").notNull(),
+    reporterEmail: text("reporter_email").notNull(),
+    state: text("state", { enum: PLATE_REPORT_STATES }).notNull().default("open"),
+    answer: text("answer"),
+    answeredBy: text("answered_by").references(() => users.id, { onDelete: "set null" }),
+    answeredAt: timestamp("answered_at", { withTimezone: true }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("plate_reports_plate_state_idx").on(t.plateId, t.state)],
+);
+export type PlateReport = typeof plateReports.$inferSelect;

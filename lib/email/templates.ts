@@ -124,3 +124,25 @@ export function reviewDecisionMail(
   }[decision.action];
   return draft(society, to, texts.subject, [`Hello ${name},`, ...texts.lines], { href: decision.url, label: texts.label });
 }
+
+/** To a curator: a visitor reported a plate from its public page. */
+export function plateReportedMail(society: string, to: string, curatorName: string, report: { plateTitle: string; kind: string; message: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Plate reported (${report.kind}): ${report.plateTitle}`,
+    [`Hello ${curatorName},`, `A visitor reported the plate "${report.plateTitle}" as a question of ${report.kind}. They wrote:`, report.message, "The report waits in the plate editor, where you can withdraw the plate for the time being and answer the visitor."],
+    { href: report.url, label: "Open the plate editor" },
+  );
+}
+
+/** To a visitor who reported a plate: the curator's answer. */
+export function plateReportAnswerMail(society: string, to: string, report: { plateTitle: string; answer: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `About your report on "${report.plateTitle}"`,
+    ["Hello,", `Thank you for your report on the plate "${report.plateTitle}". A curator of ${society} answers:`, report.answer],
+    { href: report.url, label: "See the plate" },
+  );
+}

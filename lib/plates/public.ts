@@ -69,7 +69,7 @@ export interface PublicPlateDto extends PlateCardDto {
   };
   downloads: { label: string; url: string; format: string }[];
   versions: PlateVersionLinkDto[];
-  withdrawn: { at: string; reason: string } | null;
+  withdrawn: { at: string; reason: string; kind: "temporary" | "permanent" } | null;
   reductionId: string;
 }
 
@@ -197,7 +197,7 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
   const timings = (m.timingsMs ?? {}) as Record<string, unknown>;
   const facts = v.facts;
   const base = reductionFilesBase(v.reductionId);
-  const withdrawn = plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "" } : null;
+  const withdrawn = plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "", kind: plate.withdrawnKind ?? "permanent" } : null;
   const licence = LICENCE_INFO[plate.licence];
   const renditionFiles: PublicRenditionDto[] = withdrawn
     ? []
@@ -208,7 +208,8 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
   const downloads = withdrawn
     ? []
     : [
-        { label: "Web JPEG", url: `${base}/preview.jpg`, format: "image/jpeg" },
+        // Credits and licence are embedded in this file's XMP (lib/plates/web-jpeg.ts).
+        { label: "Web JPEG", url: `/api/plates/${encodeURIComponent(plate.slug)}/web-jpeg?version=${v.version}`, format: "image/jpeg" },
         ...(licence.allowsDownload
           ? [
               ...v.renditions.map((key) => ({ label: `${key === "natural" ? "Natural" : "Structure"} rendition, 16-bit PNG`, url: `${base}/${key}.png`, format: "image/png" })),

@@ -102,31 +102,54 @@ async function readJson(key: string): Promise<Record<string, unknown>> {
   return JSON.parse(bytes.toString("utf8")) as Record<string, unknown>;
 }
 
-/** A plate (draft or published) at version 1 showing a finished reduction. */
-export async function createPlateFromReduction(db: DbOrTx, input: NewPlateInput): Promise<{ id: string; slug: string }> {
-  const [red] = await db.select().from(reductions).where(eq(reductions.id, input.reductionId)).limit(1);
+export interface PreparedReduction {
+  setId: string;
+  eclipseId: string;
+  siteCountry: string | null;
+  renditions: Rendition[];
+  imageSizes: Partial<Record<Rendition, { width: number; height: number }>>;
+  geometry: PlateGeometry;
+  facts: PlateFacts;
+}
+
+/** What a plate version keeps of a finished reduction: sizes, geometry and facts read once from its files. */
+export async function readReductionForPlate(db: DbOrTx, reductionId: string, renditions: Rendition[]): Promise<PreparedReduction> {
+  const [red] = await db.select().from(reductions).where(eq(reductions.id, reductionId)).limit(1);
   if (!red || red.state !== "done" || !red.outputs) {
-    throw new AppError("conflict", `Reduction ${input.reductionId} has not finished, so it cannot be shown on a plate.`);
+    throw new AppError("conflict", `Reduction ${reductionId} has not finished, so it cannot be shown on a plate.`);
   }
-  if (input.renditions.length === 0) throw new AppError("invalid_input", "Choose at least one rendition to publish.", [{ field: "renditions", message: "choose at least one" }]);
+  if (renditions.length === 0) throw new AppError("invalid_input", "Choose at least one rendition to publish.", [{ field: "renditions", message: "choose at least one" }]);
+  const unique = [...new Set(renditions)];
   const [set] = await db.select().from(bracketSets).where(eq(bracketSets.id, red.bracketSetId)).limit(1);
   const [site] = set ? await db.select().from(sites).where(eq(sites.id, set.siteId)).limit(1) : [];
   const report = await readJson(red.outputs.report);
   const imageSizes: Partial<Record<Rendition, { width: number; height: number }>> = {};
-  for (const key of input.renditions) {
+  for (const key of unique) {
     const info = await readJson(`${red.outputs.tiles}${key}-iiif/info.json`);
     imageSizes[key] = { width: Number(info.width), height: Number(info.height) };
   }
-  const firstWidth = imageSizes[input.renditions[0]]?.width ?? 0;
-  const geometry = geometryFromReport(report, firstWidth);
-  const facts = factsFromReport(report);
+  const firstWidth = imageSizes[unique[0]]?.width ?? 0;
+  return {
+    setId: red.bracketSetId,
+    eclipseId: set.eclipseId,
+    siteCountry: site ? findCountry(site.latDeg, site.lonDeg) : null,
+    renditions: unique,
+    imageSizes,
+    geometry: geometryFromReport(report, firstWidth),
+    facts: factsFromReport(report),
+  };
+}
+
+/** A plate (draft or published) at version 1 showing a finished reduction. */
+export async function createPlateFromReduction(db: DbOrTx, input: NewPlateInput): Promise<{ id: string; slug: string }> {
+  const prepared = await readReductionForPlate(db, input.reductionId, input.renditions);
   return db.transaction(async (tx) => {
     const [plate] = await tx
       .insert(plates)
       .values({
         slug: input.slug,
-        bracketSetId: red.bracketSetId,
-        eclipseId: set.eclipseId,
+        bracketSetId: prepared.setId,
+        eclipseId: prepared.eclipseId,
         state: input.publish ? "published" : "draft",
         title: input.title,
         caption: input.caption,
@@ -135,13 +158,23 @@ export async function createPlateFromReduction(db: DbOrTx, input: NewPlateInput)
         acquiredBy: input.acquiredBy,
         processedBy: input.processedBy,
         licence: input.licence,
-        siteCountry: site ? findCountry(site.latDeg, site.lonDeg) : null,
+        siteCountry: prepared.siteCountry,
         featured: input.featured ?? false,
         publishedAt: input.publish ? sql`now()` : null,
         createdBy: input.createdBy,
       })
       .returning({ id: plates.id, slug: plates.slug });
-    await tx.insert(plateVersions).values({ plateId: plate.id, version: 1, reductionId: red.id, renditions: input.renditions, imageSizes, geometry, facts, changeNote: "First version", createdBy: input.createdBy });
+    await tx.insert(plateVersions).values({
+      plateId: plate.id,
+      version: 1,
+      reductionId: input.reductionId,
+      renditions: prepared.renditions,
+      imageSizes: prepared.imageSizes,
+      geometry: prepared.geometry,
+      facts: prepared.facts,
+      changeNote: "First version",
+      createdBy: input.createdBy,
+    });
     return plate;
   });
 }

@@ -51,6 +51,18 @@ const adminOnly = { visitor: 401, member: 403, curator: 403, editor: 403, admin:
 const ownSetRead = { visitor: 401, member: 200, curator: 200, editor: 404, admin: 404 };
 const ownSetWrite = (ok: number) => ({ visitor: 401, member: ok, curator: 403, editor: 404, admin: 404 });
 const SET = "/api/bracket-sets";
+const curatorOnly = (ok: number) => ({ visitor: 401, member: 403, curator: ok, editor: 403, admin: 403 });
+const NO_ID = "00000000-0000-4000-8000-000000000000";
+const PLATE_TEXTS = {
+  title: "Matrix plate",
+  caption: "A caption.",
+  description: "",
+  altText: "An image used by the permission matrix.",
+  acquiredBy: "Matrix Person",
+  processedBy: "Crownlight pipeline",
+  licence: "CC-BY-4.0",
+  slug: "matrix-plate",
+};
 
 const API_CASES: Case[] = [
   { route: "/api/health", method: "GET", path: () => "/api/health", expect: everyone(200) },
@@ -155,6 +167,37 @@ const API_CASES: Case[] = [
     expect: { visitor: 401, member: 403, curator: 404, editor: 403, admin: 403 },
   },
   { route: "/api/review/queue.csv", method: "GET", path: () => "/api/review/queue.csv?state=all", expect: { visitor: 401, member: 403, curator: 200, editor: 403, admin: 403 } },
+  // The plate desk: curators only. A plate or reduction id that names nothing is not found for them.
+  { route: "/api/review/plates", method: "GET", path: () => "/api/review/plates", expect: curatorOnly(200) },
+  { route: "/api/review/plates", method: "POST", path: () => "/api/review/plates", body: { reductionId: NO_ID, renditions: ["natural"] }, expect: curatorOnly(404) },
+  { route: "/api/review/plates/[id]", method: "GET", path: () => `/api/review/plates/${NO_ID}`, expect: curatorOnly(404) },
+  { route: "/api/review/plates/[id]", method: "PATCH", path: () => `/api/review/plates/${NO_ID}`, body: PLATE_TEXTS, expect: curatorOnly(404) },
+  { route: "/api/review/plates/[id]/publish", method: "POST", path: () => `/api/review/plates/${NO_ID}/publish`, expect: curatorOnly(404) },
+  { route: "/api/review/plates/[id]/withdraw", method: "POST", path: () => `/api/review/plates/${NO_ID}/withdraw`, body: { reason: "Matrix check", kind: "temporary" }, expect: curatorOnly(404) },
+  { route: "/api/review/plates/[id]/restore", method: "POST", path: () => `/api/review/plates/${NO_ID}/restore`, expect: curatorOnly(404) },
+  {
+    route: "/api/review/plates/[id]/versions",
+    method: "POST",
+    path: () => `/api/review/plates/${NO_ID}/versions`,
+    body: { reductionId: NO_ID, renditions: ["natural"], changeNote: "Matrix check" },
+    expect: curatorOnly(404),
+  },
+  {
+    route: "/api/review/plates/[id]/reports/[reportId]/answer",
+    method: "POST",
+    path: () => `/api/review/plates/${NO_ID}/reports/${NO_ID}/answer`,
+    body: { answer: "Matrix check", close: true },
+    expect: curatorOnly(404),
+  },
+  // Public: reports and the web JPEG of a plate that is not published are not found.
+  {
+    route: "/api/plates/[slug]/reports",
+    method: "POST",
+    path: () => "/api/plates/no-such-plate/reports",
+    body: { kind: "error", message: "Matrix check of the report form", email: "matrix@visitors.example" },
+    expect: everyone(404),
+  },
+  { route: "/api/plates/[slug]/web-jpeg", method: "GET", path: () => "/api/plates/no-such-plate/web-jpeg", expect: everyone(404) },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
@@ -165,6 +208,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   // A visitor is sent to sign in (307); a signed-in person without the role sees 403.
   { path: "/studio", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/review", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
+  { path: "/review/plates", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
   { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 403 } },
   { path: "/admin/people", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin/settings", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
@@ -191,6 +235,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
 const ID_PAGE_CASES: { route: string; label: string; path: (ids: Ids) => string; expect: Record<Who, number> }[] = [
   // The member's reduction: the owner and curators see it; other members get 404, like a missing one.
   { route: "/studio/reductions/[id]", label: "the member's", path: ({ reductionId }) => `/studio/reductions/${reductionId}`, expect: { visitor: 307, member: 200, curator: 200, editor: 404, admin: 404 } },
+  { route: "/review/plates/[id]", label: "a missing one", path: () => "/review/plates/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 403, curator: 404, editor: 403, admin: 403 } },
   { route: "/studio/reductions/[id]", label: "a missing one", path: () => "/studio/reductions/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
   // The review page of one set: curators only; a missing set is 404 for them.
   { route: "/review/sets/[id]", label: "the member's", path: ({ setId }) => `/review/sets/${setId}`, expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },

@@ -1,0 +1,111 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import type { ReactNode } from "react";
+import { requirePagePermission } from "@/app/_server/actor";
+import { foundOr404 } from "@/app/_server/found";
+import { PageTitle } from "@/components/page-title";
+import { LocationCheck } from "@/components/plates-desk/location-check";
+import { PlateReports } from "@/components/plates-desk/plate-reports";
+import { PlateStateActions } from "@/components/plates-desk/plate-state-actions";
+import { PlateTextForm } from "@/components/plates-desk/plate-text-form";
+import { PlateVersions } from "@/components/plates-desk/plate-versions";
+import { Badge } from "@/components/ui/badge";
+import { getDb } from "@/db/client";
+import { findDeskPlate } from "@/lib/plates/desk-view";
+
+export const metadata: Metadata = { title: "Plate editor" };
+export const dynamic = "force-dynamic";
+
+function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
+  return (
+    <section aria-labelledby={id} className="mt-10">
+      <h2 id={id} className="mb-4 text-xl font-semibold">
+        {title}
+      </h2>
+      {children}
+    </section>
+  );
+}
+
+const STATE_TONE = { draft: "neutral", published: "ok", withdrawn: "danger" } as const;
+
+export default async function PlateEditorPage({ params }: { params: Promise<{ id: string }> }) {
+  const { id } = await params;
+  const actor = await requirePagePermission("review:use", `/review/plates/${id}`);
+  const plate = await foundOr404(findDeskPlate(getDb(), actor, id));
+  const finalWithdrawal = plate.withdrawn?.kind === "permanent";
+  const openReports = plate.reports.filter((r) => r.state === "open").length;
+  return (
+    <>
+      <p className="mb-2 text-sm">
+        <Link href="/review/plates">All plates</Link>
+      </p>
+      <PageTitle
+        title={plate.title}
+        lead={
+          <>
+            From the bracket set “{plate.set.name}” by {plate.set.photographer} (set {plate.set.state}). Version {plate.currentVersion}.
+          </>
+        }
+      >
+        <Badge tone={STATE_TONE[plate.state]}>{plate.withdrawn ? `withdrawn ${plate.withdrawn.kind === "temporary" ? "for the time being" : "for good"}` : plate.state}</Badge>
+      </PageTitle>
+      {plate.state !== "draft" ? (
+        <p className="-mt-4 mb-6 text-sm">
+          Public page:{" "}
+          <Link href={`/plates/${plate.slug}`} className="underline">/plates/{plate.slug}</Link>
+        </p>
+      ) : null}
+      {plate.withdrawn ? (
+        <p role="note" className="mb-6 rounded-control border border-danger p-3 text-sm">
+          Withdrawn on {plate.withdrawn.at.slice(0, 10)}: {plate.withdrawn.reason}
+        </p>
+      ) : null}
+
+      <Section id="texts-h" title="What the public reads">
+        <PlateTextForm
+          plateId={plate.id}
+          values={{
+            title: plate.title,
+            caption: plate.caption,
+            description: plate.description,
+            altText: plate.altText,
+            acquiredBy: plate.acquiredBy,
+            processedBy: plate.processedBy,
+            licence: plate.licence,
+            slug: plate.slug,
+          }}
+          suggestions={plate.suggestions}
+          slugLocked={plate.publishedAt !== null}
+          readOnly={finalWithdrawal}
+        />
+      </Section>
+
+      <Section id="location-h" title="What the public sees of the site">
+        <LocationCheck location={plate.location} />
+      </Section>
+
+      <Section id="state-h" title="Publishing and withdrawal">
+        <PlateStateActions plateId={plate.id} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} setState={plate.set.state} />
+      </Section>
+
+      <Section id="versions-h" title="Versions">
+        <PlateVersions plateId={plate.id} currentVersion={plate.currentVersion} versions={plate.versions} finishedReductions={plate.finishedReductions} readOnly={finalWithdrawal} />
+      </Section>
+
+      <Section id="reports-h" title={`Reports from the public (${openReports} open)`}>
+        <PlateReports plateId={plate.id} reports={plate.reports} />
+      </Section>
+
+      <Section id="history-h" title="History">
+        <ol className="flex flex-col gap-1 text-sm">
+          {plate.history.map((h, i) => (
+            <li key={i}>
+              {h.at.slice(0, 16).replace("T", " ")} UTC: {h.action} by {h.actorName ?? "a visitor or the system"}
+            </li>
+          ))}
+        </ol>
+      </Section>
+    </>
+  );
+}

@@ -1,0 +1,155 @@
+// What the plate desk reads: plates by state, and one plate with everything
+// the editor shows (versions, finished reductions to choose from, what the
+// public page will reveal of the site, reports, history). DTOs only; every
+// function requires review:use.
+import { and, desc, eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { findSocietySettings } from "@/db/queries/settings";
+import { auditLog, bracketSets, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { requirePermission, type Actor } from "@/lib/auth/actor";
+import type { LocationPrecision } from "@/db/schema";
+import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
+import { findPlateRow, pipelineCredit, toPlateLicence } from "./desk";
+import { countOpenReports, listPlateReports, type PlateReportDto } from "./reports";
+
+export interface DeskPlateRowDto {
+  id: string;
+  slug: string;
+  title: string;
+  state: PlateState;
+  withdrawnKind: WithdrawalKind | null;
+  setName: string;
+  photographer: string;
+  currentVersion: number;
+  openReports: number;
+  updatedAt: string;
+}
+
+export async function listDeskPlates(db: Db, actor: Actor | null, state?: PlateState): Promise<DeskPlateRowDto[]> {
+  requirePermission(actor, "review:use", "the plate desk");
+  const rows = await db
+    .select({
+      id: plates.id,
+      slug: plates.slug,
+      title: plates.title,
+      state: plates.state,
+      withdrawnKind: plates.withdrawnKind,
+      setName: bracketSets.name,
+      photographer: users.name,
+      currentVersion: plates.currentVersion,
+      updatedAt: plates.updatedAt,
+    })
+    .from(plates)
+    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(state ? eq(plates.state, state) : undefined)
+    .orderBy(desc(plates.updatedAt))
+    .limit(500);
+  const open = await countOpenReports(db, actor);
+  return rows.map((r) => ({ ...r, openReports: open.get(r.id) ?? 0, updatedAt: r.updatedAt.toISOString() }));
+}
+
+export interface LocationCheckDto {
+  siteName: string;
+  precision: LocationPrecision;
+  /** What the public page shows; null when the site is hidden. */
+  shown: PublicPosition | null;
+  /** Set when the public page will show the exact position. */
+  warning: string | null;
+}
+
+export function checkLocation(site: { name: string; latDeg: number; lonDeg: number; precision: LocationPrecision }): LocationCheckDto {
+  return {
+    siteName: site.name,
+    precision: site.precision,
+    shown: toPublicPosition(site.latDeg, site.lonDeg, site.precision),
+    warning:
+      site.precision === "exact"
+        ? "The public page will show this site's exact position. Check with the photographer that this is wanted (a home or a private garden, say), or ask them to round or hide it in the site's settings."
+        : null,
+  };
+}
+
+export interface DeskPlateDto {
+  id: string;
+  slug: string;
+  state: PlateState;
+  title: string;
+  caption: string;
+  description: string;
+  altText: string;
+  acquiredBy: string;
+  processedBy: string;
+  licence: PlateLicence;
+  currentVersion: number;
+  publishedAt: string | null;
+  withdrawn: { at: string; reason: string; kind: WithdrawalKind } | null;
+  set: { id: string; name: string; state: BracketSetState; photographer: string };
+  /** What the credit fields are prefilled with, for "use the suggestion" buttons. */
+  suggestions: { acquiredBy: string; processedBy: string; licence: PlateLicence };
+  versions: { version: number; reductionId: string; renditions: Rendition[]; changeNote: string; createdAt: string; url: string }[];
+  finishedReductions: { id: string; pipelineVersion: string | null; finishedAt: string | null; filter: string; registration: string }[];
+  location: LocationCheckDto | null;
+  reports: PlateReportDto[];
+  history: { action: string; at: string; actorName: string | null; detail: Record<string, unknown> }[];
+}
+
+export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string): Promise<DeskPlateDto> {
+  requirePermission(actor, "review:use", "the plate desk");
+  const plate = await findPlateRow(db, plateId);
+  const [set] = await db
+    .select({ id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, photographer: users.name, siteId: bracketSets.siteId })
+    .from(bracketSets)
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(bracketSets.id, plate.bracketSetId))
+    .limit(1);
+  const [site] = await db.select({ name: sites.name, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1);
+  const versions = await db
+    .select({ version: plateVersions.version, reductionId: plateVersions.reductionId, renditions: plateVersions.renditions, changeNote: plateVersions.changeNote, createdAt: plateVersions.createdAt })
+    .from(plateVersions)
+    .where(eq(plateVersions.plateId, plateId))
+    .orderBy(desc(plateVersions.version));
+  const finished = await db
+    .select({ id: reductions.id, pipelineVersion: reductions.pipelineVersion, finishedAt: reductions.finishedAt, params: reductions.params })
+    .from(reductions)
+    .where(and(eq(reductions.bracketSetId, plate.bracketSetId), eq(reductions.state, "done")))
+    .orderBy(desc(reductions.finishedAt));
+  const history = await db
+    .select({ action: auditLog.action, at: auditLog.createdAt, actorName: users.name, detail: auditLog.detail })
+    .from(auditLog)
+    .leftJoin(users, eq(users.id, auditLog.actorId))
+    .where(and(eq(auditLog.subjectType, "plate"), eq(auditLog.subjectId, plateId)))
+    .orderBy(desc(auditLog.id))
+    .limit(100);
+  const current = versions.find((v) => v.version === plate.currentVersion);
+  const currentRed = finished.find((r) => r.id === current?.reductionId);
+  const settings = await findSocietySettings(db);
+  return {
+    id: plate.id,
+    slug: plate.slug,
+    state: plate.state,
+    title: plate.title,
+    caption: plate.caption,
+    description: plate.description,
+    altText: plate.altText,
+    acquiredBy: plate.acquiredBy,
+    processedBy: plate.processedBy,
+    licence: plate.licence,
+    currentVersion: plate.currentVersion,
+    publishedAt: plate.publishedAt?.toISOString() ?? null,
+    withdrawn: plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "", kind: plate.withdrawnKind ?? "temporary" } : null,
+    set: { id: set.id, name: set.name, state: set.state, photographer: set.photographer },
+    suggestions: { acquiredBy: set.photographer, processedBy: pipelineCredit(currentRed?.pipelineVersion ?? null), licence: toPlateLicence(settings.defaultLicence) },
+    versions: versions.map((v) => ({ ...v, createdAt: v.createdAt.toISOString(), url: `/plates/${plate.slug}/v/${v.version}` })),
+    finishedReductions: finished.map((r) => ({
+      id: r.id,
+      pipelineVersion: r.pipelineVersion,
+      finishedAt: r.finishedAt?.toISOString() ?? null,
+      filter: String(r.params.filter ?? ""),
+      registration: String(r.params.registration ?? ""),
+    })),
+    location: site ? checkLocation(site) : null,
+    reports: await listPlateReports(db, actor, plateId),
+    history: history.map((h) => ({ action: h.action, at: h.at.toISOString(), actorName: h.actorName, detail: h.detail })),
+  };
+}

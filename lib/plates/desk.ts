@@ -1,0 +1,254 @@
+// The plate desk: curators turn an approved set's finished reduction into a
+// plate, write what the public reads, publish, withdraw, restore and add
+// versions. Every function takes the actor and requires review:use; every
+// change writes the audit log in the same transaction as the change.
+import { and, eq, sql } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { findSocietySettings } from "@/db/queries/settings";
+import { bracketSets, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { recordAudit } from "@/lib/audit/record";
+import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { AppError, notFound } from "@/lib/errors";
+import { parseInput } from "@/lib/validation";
+import { draftPlateSchema, newVersionSchema, plateEditSchema, withdrawSchema, type PlateEditInput } from "./desk-input";
+import { createPlateFromReduction, readReductionForPlate, slugify } from "./publish";
+import { makeWebJpeg } from "./web-jpeg";
+
+export { countWords, CAPTION_MAX_WORDS } from "./desk-input";
+
+export const PLATE_NOT_FOUND = "That plate";
+
+function requireCurator(actor: Actor | null, what: string): Actor {
+  return requirePermission(actor, "review:use", what);
+}
+
+export async function findPlateRow(db: Db, plateId: string): Promise<Plate> {
+  if (!/^[0-9a-f-]{36}$/i.test(plateId)) throw notFound(PLATE_NOT_FOUND);
+  const [plate] = await db.select().from(plates).where(eq(plates.id, plateId)).limit(1);
+  if (!plate) throw notFound(PLATE_NOT_FOUND);
+  return plate;
+}
+
+async function requireApprovedSet(db: Db, setId: string, doing: string): Promise<{ name: string; ownerName: string }> {
+  const [set] = await db
+    .select({ name: bracketSets.name, state: bracketSets.state, ownerName: users.name })
+    .from(bracketSets)
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(bracketSets.id, setId))
+    .limit(1);
+  if (!set) throw notFound("That bracket set");
+  if (set.state !== "approved") {
+    throw new AppError("conflict", `The bracket set "${set.name}" is ${set.state}; it must be approved on the review desk before ${doing}.`);
+  }
+  return set;
+}
+
+/** True for PostgreSQL's unique violation on the slug index, however the driver wraps it. */
+function isSlugTaken(err: unknown): boolean {
+  for (let e = err as { code?: string; constraint?: string; cause?: unknown } | undefined; e; e = e.cause as typeof e) {
+    if (e.code === "23505" && e.constraint === "plates_slug_key") return true;
+  }
+  return false;
+}
+
+const slugTaken = (slug: string) => new AppError("invalid_input", `The link name "${slug}" is taken by another plate.`, [{ field: "slug", message: "already taken" }]);
+
+async function uniqueSlug(db: Db, base: string): Promise<string> {
+  for (let i = 1; i < 50; i++) {
+    const candidate = i === 1 ? base : `${base.slice(0, 76)}-${i}`;
+    const [taken] = await db.select({ id: plates.id }).from(plates).where(eq(plates.slug, candidate)).limit(1);
+    if (!taken) return candidate;
+  }
+  return `${base.slice(0, 70)}-${Date.now().toString(36)}`;
+}
+
+/** The society's default licence, when it is one a plate may carry; CC BY 4.0 otherwise. */
+export function toPlateLicence(id: string): PlateLicence {
+  return (PLATE_LICENCES as readonly string[]).includes(id) ? (id as PlateLicence) : "CC-BY-4.0";
+}
+
+/** The processing credit the editor offers first: the pipeline and its version. */
+export function pipelineCredit(pipelineVersion: string | null): string {
+  return pipelineVersion ? `Crownlight pipeline ${pipelineVersion}` : "Crownlight pipeline";
+}
+
+/**
+ * A draft plate from a finished reduction of an approved set, prefilled: the
+ * set's name as title, the photographer as data acquisition credit, the
+ * pipeline and its version as processing credit, the society's default licence.
+ */
+export async function createDraftPlate(db: Db, actor: Actor | null, input: unknown): Promise<{ id: string; slug: string }> {
+  const curator = requireCurator(actor, "making plates");
+  const { reductionId, renditions } = parseInput(draftPlateSchema, input);
+  const [red] = await db
+    .select({ setId: reductions.bracketSetId, state: reductions.state, pipelineVersion: reductions.pipelineVersion })
+    .from(reductions)
+    .where(eq(reductions.id, reductionId))
+    .limit(1);
+  if (!red) throw notFound("That reduction");
+  const set = await requireApprovedSet(db, red.setId, "a plate can be made from it");
+  const settings = await findSocietySettings(db);
+  const slug = await uniqueSlug(db, slugify(set.name));
+  // One transaction: the plate and its audit row exist together or not at all.
+  const created = db.transaction(async (tx) => {
+    const plate = await createPlateFromReduction(tx, {
+      reductionId,
+      slug,
+      title: set.name,
+      caption: "",
+      description: "",
+      altText: "",
+      acquiredBy: set.ownerName,
+      processedBy: pipelineCredit(red.pipelineVersion),
+      licence: toPlateLicence(settings.defaultLicence),
+      renditions,
+      publish: false,
+      createdBy: curator.userId,
+    });
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { reductionId, renditions, slug } });
+    return plate;
+  });
+  // Another draft may take the same name between the check and the insert.
+  return created.catch((err: unknown) => {
+    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
+  });
+}
+
+const EDITABLE: (keyof PlateEditInput)[] = ["title", "caption", "description", "altText", "acquiredBy", "processedBy", "licence", "slug"];
+
+/** Title, caption, description, alt text, credits, licence and link name. Returns the fields that changed. */
+export async function updatePlate(db: Db, actor: Actor | null, plateId: string, input: unknown): Promise<string[]> {
+  const curator = requireCurator(actor, "editing plates");
+  const values = parseInput(plateEditSchema, input);
+  const before = await findPlateRow(db, plateId);
+  if (before.state === "withdrawn" && before.withdrawnKind === "permanent") {
+    throw new AppError("conflict", `"${before.title}" was withdrawn for good; its record is kept as it was.`);
+  }
+  if (values.slug !== before.slug) {
+    // Published links are permanent: the link name is fixed once the public has seen it.
+    if (before.publishedAt) throw new AppError("invalid_input", "The link name cannot change after publishing: published links are permanent.", [{ field: "slug", message: "fixed after publishing" }]);
+    const [taken] = await db.select({ id: plates.id }).from(plates).where(eq(plates.slug, values.slug)).limit(1);
+    if (taken) throw slugTaken(values.slug);
+  }
+  const changed = EDITABLE.filter((k) => before[k] !== values[k]);
+  if (changed.length === 0) return [];
+  try {
+    await db.transaction(async (tx) => {
+      await tx
+        .update(plates)
+        .set({ ...values, updatedAt: sql`now()` })
+        .where(eq(plates.id, plateId));
+      await recordAudit(tx, {
+        actorId: curator.userId,
+        action: "plate.edited",
+        subjectType: "plate",
+        subjectId: plateId,
+        detail: Object.fromEntries(changed.map((k) => [k, { from: before[k], to: values[k] }])),
+      });
+    });
+  } catch (err) {
+    // Another plate may take the same name between the check and the update.
+    throw isSlugTaken(err) ? slugTaken(values.slug) : err;
+  }
+  // The public files carry the credits: write every version's again when the texts change.
+  if (before.state === "published") {
+    const versions = await db.select({ version: plateVersions.version }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
+    for (const { version } of versions) await makeWebJpeg(db, plateId, version);
+  }
+  return changed;
+}
+
+/** Checks what publishing needs besides an approved set: the texts the public reads. */
+function requireReadyToPublish(plate: Plate): void {
+  const fields = [
+    !plate.altText.trim() && { field: "altText", message: "alt text is required before publishing" },
+    !plate.caption.trim() && { field: "caption", message: "a caption is required before publishing" },
+  ].filter((x): x is { field: string; message: string } => Boolean(x));
+  if (fields.length) throw new AppError("invalid_input", `"${plate.title}" is not ready: ${fields.map((f) => f.message).join("; ")}.`, fields);
+}
+
+/** Draft -> published, once the set is approved. Makes the version's web JPEG first, so a failure publishes nothing. */
+export async function publishPlate(db: Db, actor: Actor | null, plateId: string): Promise<void> {
+  const curator = requireCurator(actor, "publishing plates");
+  const plate = await findPlateRow(db, plateId);
+  if (plate.state !== "draft") throw new AppError("conflict", `"${plate.title}" is ${plate.state}; only a draft can be published (a withdrawn plate is restored instead).`);
+  requireReadyToPublish(plate);
+  await requireApprovedSet(db, plate.bracketSetId, "its plate can be published");
+  await makeWebJpeg(db, plateId, plate.currentVersion);
+  await db.transaction(async (tx) => {
+    const done = await tx
+      .update(plates)
+      .set({ state: "published", publishedAt: sql`now()`, updatedAt: sql`now()` })
+      .where(and(eq(plates.id, plateId), eq(plates.state, "draft")))
+      .returning({ id: plates.id });
+    if (!done.length) throw new AppError("conflict", `"${plate.title}" changed while you were publishing it; reload and try again.`);
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.published", subjectType: "plate", subjectId: plateId, detail: { version: plate.currentVersion } });
+  });
+}
+
+/**
+ * Published -> withdrawn (temporary or permanent), or a temporary withdrawal
+ * made permanent. The plate keeps its record; its public page says why.
+ */
+export async function withdrawPlate(db: Db, actor: Actor | null, plateId: string, input: unknown): Promise<void> {
+  const curator = requireCurator(actor, "withdrawing plates");
+  const { reason, kind } = parseInput(withdrawSchema, input);
+  const plate = await findPlateRow(db, plateId);
+  const allowed = plate.state === "published" || (plate.state === "withdrawn" && plate.withdrawnKind === "temporary" && kind === "permanent");
+  if (!allowed) {
+    const now = plate.state === "withdrawn" ? `withdrawn (${plate.withdrawnKind ?? "temporary"})` : plate.state;
+    throw new AppError("conflict", `"${plate.title}" is ${now}; only a published plate, or one withdrawn for the time being, can be withdrawn${kind === "permanent" ? " for good" : ""}.`);
+  }
+  await db.transaction(async (tx) => {
+    await tx
+      .update(plates)
+      .set({ state: "withdrawn", withdrawnAt: sql`now()`, withdrawnReason: reason, withdrawnKind: kind, updatedAt: sql`now()` })
+      .where(eq(plates.id, plateId));
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.withdrawn", subjectType: "plate", subjectId: plateId, detail: { from: plate.state, kind, reason } });
+  });
+}
+
+/** A plate withdrawn for the time being goes back to the gallery. One withdrawn for good stays withdrawn. */
+export async function restorePlate(db: Db, actor: Actor | null, plateId: string): Promise<void> {
+  const curator = requireCurator(actor, "restoring plates");
+  const plate = await findPlateRow(db, plateId);
+  if (plate.state !== "withdrawn") throw new AppError("conflict", `"${plate.title}" is ${plate.state}; only a withdrawn plate can be restored.`);
+  if (plate.withdrawnKind === "permanent") throw new AppError("conflict", `"${plate.title}" was withdrawn for good and cannot be restored.`);
+  await db.transaction(async (tx) => {
+    await tx
+      .update(plates)
+      .set({ state: "published", withdrawnAt: null, withdrawnReason: null, withdrawnKind: null, updatedAt: sql`now()` })
+      .where(eq(plates.id, plateId));
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.restored", subjectType: "plate", subjectId: plateId, detail: { reason: plate.withdrawnReason } });
+  });
+}
+
+/**
+ * Replaces the reduction a plate shows: version n+1 with a change note, and
+ * the current version moves to it. Earlier versions stay at /plates/{slug}/v/{n}.
+ * The reduction must be a finished one of the same bracket set.
+ */
+export async function addPlateVersion(db: Db, actor: Actor | null, plateId: string, input: unknown): Promise<{ version: number }> {
+  const curator = requireCurator(actor, "replacing a plate's reduction");
+  const { reductionId, renditions, changeNote } = parseInput(newVersionSchema, input);
+  const plate = await findPlateRow(db, plateId);
+  if (plate.state === "withdrawn" && plate.withdrawnKind === "permanent") throw new AppError("conflict", `"${plate.title}" was withdrawn for good; it takes no new versions.`);
+  const prepared = await readReductionForPlate(db, reductionId, renditions as Rendition[]);
+  if (prepared.setId !== plate.bracketSetId) {
+    throw new AppError("invalid_input", "The new reduction must come from the plate's own bracket set.", [{ field: "reductionId", message: "from another bracket set" }]);
+  }
+  const version = await db.transaction(async (tx) => {
+    // Lock the plate row so two curators cannot both add version n+1.
+    const [locked] = await tx.select({ current: plates.currentVersion }).from(plates).where(eq(plates.id, plateId)).for("update");
+    const [{ max }] = await tx.select({ max: sql<number>`coalesce(max(${plateVersions.version}), 0)::int` }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
+    const next = Math.max(max, locked.current) + 1;
+    await tx.insert(plateVersions).values({ plateId, version: next, reductionId, renditions: prepared.renditions, imageSizes: prepared.imageSizes, geometry: prepared.geometry, facts: prepared.facts, changeNote, createdBy: curator.userId });
+    await tx.update(plates).set({ currentVersion: next, updatedAt: sql`now()` }).where(eq(plates.id, plateId));
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.version-added", subjectType: "plate", subjectId: plateId, detail: { from: locked.current, to: next, reductionId, changeNote } });
+    return next;
+  });
+  if (plate.state !== "draft") await makeWebJpeg(db, plateId, version);
+  return { version };
+}
+
+export type { WithdrawalKind };
