@@ -6,6 +6,7 @@ import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { bracketSets, reductions, users } from "@/db/schema";
 import { createPlateFromReduction, findPlateOfReduction, slugify } from "@/lib/plates/publish";
+import { makeWebJpeg } from "@/lib/plates/web-jpeg";
 import { DEMO_PARTIES, SYNTHETIC_NOTE } from "./demo-scenario";
 
 type SeedLog = (line: string) => void;
@@ -91,6 +92,8 @@ export async function publishDemoPlates(db: Db, log: SeedLog, timeoutMs = 10 * 6
       publish: true,
       createdBy: null,
     });
+    // The web JPEG with the credits in its metadata, as publishing on the desk makes it.
+    await makeWebJpeg(db, plate.id, 1);
     log(`${party.setName}: published as /plates/${plate.slug}`);
   }
 }

@@ -1,6 +1,7 @@
 // `node --import tsx db/seed/publish-demo.ts`: publishes the demo reductions as
 // plates once they have finished (scripts/start.sh runs it after the app is up).
 import { createDb } from "@/db/client";
+import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { publishDemoPlates } from "./demo-plates";
 
 const url = process.env.DATABASE_URL;
@@ -16,5 +17,6 @@ const { db, pool } = createDb(url, 2);
 try {
   await publishDemoPlates(db, (line) => console.log(`db/seed: ${line}`));
 } finally {
+  await closeWebJpegWriter();
   await pool.end();
 }

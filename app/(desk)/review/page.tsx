@@ -60,7 +60,9 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
 
   return (
     <>
-      <PageTitle title="Review desk" lead="Bracket sets members have sent for review, and the decisions taken on them. Open a set to look at its frames and reductions and decide." />
+      <PageTitle title="Review desk" lead="Bracket sets members have sent for review, and the decisions taken on them. Open a set to look at its frames and reductions and decide.">
+        <Link href="/review/plates">Plates: drafts, published, withdrawn, reports</Link>
+      </PageTitle>
       {problems.length ? (
         <p role="alert" className="mb-4 text-danger">
           Ignored a filter in the address: {problems.map((p) => `${p.field} ${p.message}`).join("; ")}.

@@ -6,6 +6,7 @@ import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
 import { BracketChart } from "@/components/bracket-sets/bracket-chart";
 import { FrameTriage } from "@/components/bracket-sets/frame-triage";
 import { PageTitle } from "@/components/page-title";
+import { MakePlateButton } from "@/components/plates-desk/make-plate-button";
 import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
 import { DecisionForm } from "@/components/review/decision-form";
@@ -62,6 +63,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
       <nav aria-label="On this page" className="mb-8">
         <ul className="flex flex-wrap gap-4 text-sm">
           <li><a href="#decide-h">Decision</a></li>
+          {set.state === "approved" ? <li><a href="#plate-h">Plate</a></li> : null}
           <li><a href="#compare-h">Compare</a></li>
           <li><a href="#reductions-h">Reductions</a></li>
           <li><a href="#frames-h">Frames</a></li>
@@ -88,6 +90,17 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
             />
           )}
         </section>
+
+        {set.state === "approved" ? (
+          <section aria-labelledby="plate-h" className="flex flex-col gap-3">
+            <h2 id="plate-h" className="text-xl font-semibold">Plate</h2>
+            <p className="max-w-prose text-sm text-ink-muted">The set is approved: make a draft plate from one of its finished reductions, then write its texts and credits and publish it.</p>
+            <MakePlateButton
+              setId={set.id}
+              reductions={done.map((r, i) => ({ id: r.id, state: r.state, label: `Reduction ${done.length - i}: ${r.params.registration ?? "?"} registration, ${(r.params.filter ?? "?").toUpperCase()} ${r.params.filterStrength ?? 0.3}, finished ${r.finishedAt?.slice(0, 16).replace("T", " ") ?? "?"} UTC` }))}
+            />
+          </section>
+        ) : null}
 
         <section aria-labelledby="compare-h" className="flex flex-col gap-3">
           <h2 id="compare-h" className="text-xl font-semibold">Compare renditions</h2>
