@@ -37,6 +37,18 @@ export interface PlateTextFormProps {
 
 const LICENCE_OPTIONS = Object.values(LICENCE_INFO).map((l) => ({ value: l.id, label: l.name }));
 
+/** The fields as the form names them, for the confirmation. */
+const FIELD_NAMES: Record<string, string> = {
+  title: "title",
+  caption: "caption",
+  description: "description",
+  altText: "alt text",
+  acquiredBy: "data acquisition",
+  processedBy: "processing",
+  licence: "licence",
+  slug: "link name",
+};
+
 export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOnly }: PlateTextFormProps) {
   const router = useRouter();
   const [v, setV] = useState<PlateTextValues>(values);
@@ -55,7 +67,7 @@ export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOn
     const res = await callApi<{ changed: string[] }>("PATCH", `/api/review/plates/${plateId}`, v);
     setPending(false);
     if (!res.ok) return setProblem(res.problem);
-    setSaved(res.data.changed.length ? `Saved: ${res.data.changed.join(", ")}.` : "Nothing had changed.");
+    setSaved(res.data.changed.length ? `Saved: ${res.data.changed.map((f) => FIELD_NAMES[f] ?? f).join(", ")}.` : "Nothing had changed.");
     router.refresh();
   }
 
