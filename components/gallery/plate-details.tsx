@@ -21,7 +21,7 @@ function utcTime(iso: string): string {
 }
 
 /** What a visitor must know to read the image: what, where, when, with what, by whom, how, and under which licence. */
-export function PlateDetails({ plate, society }: { plate: PublicPlateDto; society: string }) {
+export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto; society: string; credit: string }) {
   const pos = plate.site.position;
   return (
     <div className="flex flex-col gap-8">
@@ -35,6 +35,7 @@ export function PlateDetails({ plate, society }: { plate: PublicPlateDto; societ
           <Row term="Data acquired by">{plate.acquiredBy}</Row>
           <Row term="Processed by">{plate.processedBy}</Row>
           <Row term="Published by">{society}</Row>
+          <Row term="Credit line">{credit}</Row>
           <Row term="Licence">
             <a href={plate.licence.deedUrl} rel="license">
               {plate.licence.name}

@@ -5,7 +5,7 @@ import { PlateImage } from "./plate-image";
 import { ReportPlateForm } from "./report-plate-form";
 
 /** A plate's page: the zoomable image, then what it shows and how it was made. A withdrawn plate keeps everything but the image. */
-export function PlatePage({ plate, society }: { plate: PublicPlateDto; society: string }) {
+export function PlatePage({ plate, society, credit }: { plate: PublicPlateDto; society: string; credit: string }) {
   return (
     <article className="flex flex-col gap-8">
       <header className="flex flex-col gap-2">
@@ -31,7 +31,7 @@ export function PlatePage({ plate, society }: { plate: PublicPlateDto; society: 
       ) : (
         <PlateImage plate={plate} />
       )}
-      <PlateDetails plate={plate} society={society} />
+      <PlateDetails plate={plate} society={society} credit={credit} />
       <ReportPlateForm slug={plate.slug} title={plate.title} />
     </article>
   );

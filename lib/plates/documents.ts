@@ -4,6 +4,7 @@ import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { getEnv } from "@/lib/env";
 import { notFound } from "@/lib/errors";
+import { plateCreditLine } from "./credit";
 import { buildEclipseCollection, buildPlateManifest } from "./iiif";
 import { findPublicPlate, listPublishedPlates, type PlateCardDto } from "./public";
 
@@ -26,7 +27,8 @@ export async function plateManifestResponse(db: DbOrTx, slug: string, version?: 
   // A withdrawn plate keeps its page, not its manifest: other viewers must stop showing it.
   if (plate.withdrawn) throw notFound("That plate's manifest");
   const society = await findSocietySettings(db);
-  return iiifJson(buildPlateManifest(plate, appUrl(), society.name));
+  const credit = plateCreditLine(society.creditLineTemplate, society.name, { ...plate, licence: plate.licence.id });
+  return iiifJson(buildPlateManifest(plate, appUrl(), credit));
 }
 
 export async function eclipseCollectionResponse(db: DbOrTx, eclipseId: string): Promise<Response> {

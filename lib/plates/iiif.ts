@@ -17,12 +17,8 @@ export function collectionUrl(appUrl: string, eclipseId: string): string {
   return `${appUrl}/iiif/eclipses/${eclipseId}/collection.json`;
 }
 
-/** The credit line: who acquired the data and who processed it. */
-export function creditLine(plate: Pick<PublicPlateDto, "acquiredBy" | "processedBy">, society: string): string {
-  return `Data: ${plate.acquiredBy}. Processing: ${plate.processedBy}. ${society}.`;
-}
-
-export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, society: string): Record<string, unknown> {
+/** `credit` is the plate's credit line (lib/plates/credit.ts), the manifest's required statement. */
+export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, credit: string): Record<string, unknown> {
   const id = manifestUrl(appUrl, plate.slug, plate.isCurrentVersion ? undefined : plate.version);
   const filesBase = `${appUrl}/iiif/reductions/${plate.reductionId}`;
   const metadata = [
@@ -74,7 +70,7 @@ export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, societ
     label: en(plate.title),
     ...(plate.caption ? { summary: en(plate.caption) } : {}),
     metadata,
-    requiredStatement: label("Attribution", creditLine(plate, society)),
+    requiredStatement: label("Attribution", credit),
     rights: plate.licence.rightsUri,
     homepage: [{ id: `${appUrl}/plates/${plate.slug}${plate.isCurrentVersion ? "" : `/v/${plate.version}`}`, type: "Text", label: en(plate.title), format: "text/html" }],
     ...(plate.downloads.some((d) => d.format === "application/fits")

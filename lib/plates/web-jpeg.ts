@@ -5,6 +5,7 @@
 // from natural.png at 2048 px when no preview exists, and stored at
 // plates/{plateId}/v{n}/web.jpg in the derived bucket. ExifTool writes the
 // metadata because sharp's withMetadata cannot write arbitrary XMP fields.
+import { plateCreditLine } from "./credit";
 import { mkdtemp, readFile, rm, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -34,6 +35,8 @@ export interface WebJpegCredits {
   processedBy: string;
   licence: PlateLicence;
   societyName: string;
+  /** The society's credit line for this plate (lib/plates/credit.ts); without it, a plain one. */
+  creditLine?: string;
 }
 
 /** The credit line written into the file: who acquired, who processed, for whom. */
@@ -55,7 +58,7 @@ export function buildWebJpegTags(c: WebJpegCredits): Record<string, string | str
     "XMP-dc:Creator": [...new Set([c.acquiredBy, c.processedBy])],
     "XMP-dc:Rights": rights,
     "XMP-dc:Description": c.caption || c.title,
-    "XMP-photoshop:Credit": webJpegCreditLine(c),
+    "XMP-photoshop:Credit": c.creditLine ?? webJpegCreditLine(c),
     "XMP-xmpRights:WebStatement": licence.rightsUri,
     "XMP-xmpRights:Marked": licence.id === "CC0-1.0" ? "False" : "True",
     "XMP-iptcCore:AltTextAccessibility": c.altText,
@@ -135,6 +138,7 @@ export async function makeWebJpeg(db: DbOrTx, plateId: string, version: number):
     processedBy: plate.processedBy,
     licence: plate.licence,
     societyName: society.name,
+    creditLine: plateCreditLine(society.creditLineTemplate, society.name, { ...plate, publishedAt: plate.publishedAt?.toISOString() ?? null }),
   });
   const key = webJpegKey(plateId, version);
   await putObjectBytes({ bucket: bucketName("derived"), key }, bytes, "image/jpeg");

@@ -4,7 +4,8 @@
 // and height; rights a Creative Commons or RightsStatements.org URI).
 import { normalize } from "@iiif/parser";
 import { describe, expect, it } from "vitest";
-import { buildEclipseCollection, buildPlateManifest, creditLine } from "@/lib/plates/iiif";
+import { plateCreditLine } from "@/lib/plates/credit";
+import { buildEclipseCollection, buildPlateManifest } from "@/lib/plates/iiif";
 import { LICENCE_INFO } from "@/lib/plates/licences";
 import type { PublicPlateDto } from "@/lib/plates/public";
 
@@ -54,7 +55,8 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
 }
 
 describe("plate manifest", () => {
-  const manifest = buildPlateManifest(plate(), APP, "Kestrel Ridge Astronomical Society");
+  const credit = plateCreditLine("{acquiredBy} / {society}; processing: {processedBy}", "Kestrel Ridge Astronomical Society", { ...plate(), licence: "CC-BY-4.0" });
+  const manifest = buildPlateManifest(plate(), APP, credit);
 
   it("carries the fields Presentation 3.0 requires and parses without loss", () => {
     expect(manifest["@context"]).toBe("http://iiif.io/api/presentation/3/context.json");
@@ -70,7 +72,7 @@ describe("plate manifest", () => {
       expect(canvas.items).toHaveLength(1);
     }
     expect(m.rights).toBe("http://creativecommons.org/licenses/by/4.0/");
-    expect(m.requiredStatement?.value).toEqual({ en: [creditLine(plate(), "Kestrel Ridge Astronomical Society")] });
+    expect(m.requiredStatement?.value).toEqual({ en: ["Oskar Lindqvist / Kestrel Ridge Astronomical Society; processing: crownlight-imaging 0.1.0"] });
   });
 
   it("paints each canvas with an image that offers its level-0 Image API service", () => {
@@ -84,13 +86,13 @@ describe("plate manifest", () => {
 
   it("links the FITS master only when the licence offers downloads", () => {
     expect(manifest.seeAlso).toEqual([expect.objectContaining({ id: `${APP}/iiif/reductions/${RID}/master.fits`, format: "application/fits", type: "Dataset" })]);
-    const closed = buildPlateManifest(plate({ licence: LICENCE_INFO["all-rights-reserved"], downloads: [] }), APP, "KRAS");
+    const closed = buildPlateManifest(plate({ licence: LICENCE_INFO["all-rights-reserved"], downloads: [] }), APP, "Oskar Lindqvist / KRAS");
     expect(closed.seeAlso).toBeUndefined();
     expect(closed.rights).toBe("http://rightsstatements.org/vocab/InC/1.0/");
   });
 
   it("names an older version's manifest by its version", () => {
-    const old = buildPlateManifest(plate({ version: 1, isCurrentVersion: false }), APP, "KRAS");
+    const old = buildPlateManifest(plate({ version: 1, isCurrentVersion: false }), APP, "Oskar Lindqvist / KRAS");
     expect(old.id).toBe(`${APP}/iiif/plates/luxor-corona-2027/v/1/manifest.json`);
   });
 });

@@ -74,3 +74,15 @@ describe("reduction file paths", () => {
     expect(classifyReductionPath("natural_files/../../x.jpg")).toBeNull();
   });
 });
+
+describe("a plate's credit line", () => {
+  it("follows the society's template, with the year of publication and the licence's short name", async () => {
+    const { plateCreditLine } = await import("@/lib/plates/credit");
+    const plate = { acquiredBy: "Nadia Fairweather", processedBy: "Crownlight pipeline (crownlight-imaging 0.1.0)", licence: "CC-BY-SA-4.0" as const, publishedAt: "2027-08-20T10:00:00.000Z" };
+    expect(plateCreditLine("{acquiredBy} / {society}; processing: {processedBy}", "Kestrel Ridge Astronomical Society", plate)).toBe(
+      "Nadia Fairweather / Kestrel Ridge Astronomical Society; processing: Crownlight pipeline (crownlight-imaging 0.1.0)",
+    );
+    expect(plateCreditLine("© {year} {acquiredBy}, {licence}", "KRAS", plate)).toBe("© 2027 Nadia Fairweather, CC BY-SA 4.0");
+    expect(() => plateCreditLine("{photographer}", "KRAS", plate)).toThrow();
+  });
+});

@@ -9,6 +9,6 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 }
 
 export default async function PlateRoutePage({ params }: Props) {
-  const { plate, society } = await loadPlate((await params).slug);
-  return <PlatePage plate={plate} society={society} />;
+  const { plate, society, credit } = await loadPlate((await params).slug);
+  return <PlatePage plate={plate} society={society} credit={credit} />;
 }

@@ -3,12 +3,14 @@ import { foundOr404 } from "@/app/_server/found";
 import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { getEnv } from "@/lib/env";
+import { plateCreditLine } from "@/lib/plates/credit";
 import { findPublicPlate, type PublicPlateDto } from "@/lib/plates/public";
 
-export async function loadPlate(slug: string, version?: number): Promise<{ plate: PublicPlateDto; society: string }> {
+export async function loadPlate(slug: string, version?: number): Promise<{ plate: PublicPlateDto; society: string; credit: string }> {
   const db = getDb();
   const [plate, settings] = await Promise.all([foundOr404(findPublicPlate(db, slug, version)), findSocietySettings(db)]);
-  return { plate, society: settings.name };
+  const credit = plateCreditLine(settings.creditLineTemplate, settings.name, { ...plate, licence: plate.licence.id });
+  return { plate, society: settings.name, credit };
 }
 
 /** Titles, descriptions and an Open Graph image made from the plate, for links shared elsewhere. */

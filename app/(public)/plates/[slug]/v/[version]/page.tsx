@@ -19,6 +19,6 @@ export async function generateMetadata({ params }: Props): Promise<Metadata> {
 // A version's permanent link: it shows that version even after the plate moved on.
 export default async function PlateVersionPage({ params }: Props) {
   const { slug, version } = await params;
-  const { plate, society } = await loadPlate(slug, versionOf(version));
-  return <PlatePage plate={plate} society={society} />;
+  const { plate, society, credit } = await loadPlate(slug, versionOf(version));
+  return <PlatePage plate={plate} society={society} credit={credit} />;
 }
