@@ -146,7 +146,8 @@ describe("the plate desk", () => {
       expect(read.WebStatement).toBe("http://creativecommons.org/licenses/by-sa/4.0/");
       expect(read.Description).toBe(texts().caption);
       expect(read.AltTextAccessibility).toBe(texts().altText);
-      expect(String(read.Credit)).toContain(`Data: ${owner.name}; processing: Crownlight pipeline 0.9.0-test`);
+            // The society's credit-line template (the default: "{acquiredBy} / {society}; processing: {processedBy}").
+      expect(String(read.Credit)).toBe(`${owner.name} / Kestrel Ridge Astronomical Society; processing: Crownlight pipeline 0.9.0-test`);
       expect(read.GPSLatitude).toBeUndefined();
     } finally {
       await rm(dir, { recursive: true, force: true });
