@@ -10,18 +10,11 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateLicence } from "@/db/schema/plates";
-import { CAPTION_MAX_WORDS, countWords } from "@/lib/plates/desk-input";
+import { CAPTION_MAX_WORDS, countWords, type PlateTexts } from "@/lib/plates/desk-input";
 import { LICENCE_INFO } from "@/lib/plates/licences";
 import { callApi, type ApiProblem } from "./call-api";
 
-export interface PlateTextValues {
-  title: string;
-  caption: string;
-  description: string;
-  altText: string;
-  acquiredBy: string;
-  processedBy: string;
-  licence: PlateLicence;
+export interface PlateTextValues extends PlateTexts {
   slug: string;
 }
 

@@ -10,6 +10,17 @@ const PLATE_REPORT_KINDS = ["rights", "error", "other"] as const satisfies reado
 const RENDITIONS = ["natural", "structure"] as const satisfies readonly Rendition[];
 const WITHDRAWAL_KINDS = ["temporary", "permanent"] as const satisfies readonly WithdrawalKind[];
 
+/** What the public reads of a plate and who it credits: one shape for the editor, the desk's DTO and publishing. */
+export interface PlateTexts {
+  title: string;
+  caption: string;
+  description: string;
+  altText: string;
+  acquiredBy: string;
+  processedBy: string;
+  licence: PlateLicence;
+}
+
 export const CAPTION_MAX_WORDS = 40;
 
 /**

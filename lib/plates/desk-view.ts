@@ -2,6 +2,7 @@
 // the editor shows (versions, finished reductions to choose from, what the
 // public page will reveal of the site, reports, history). DTOs only; every
 // function requires review:use.
+import type { PlateTexts } from "./desk-input";
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
@@ -70,17 +71,10 @@ export function checkLocation(site: { name: string; latDeg: number; lonDeg: numb
   };
 }
 
-export interface DeskPlateDto {
+export interface DeskPlateDto extends PlateTexts {
   id: string;
   slug: string;
   state: PlateState;
-  title: string;
-  caption: string;
-  description: string;
-  altText: string;
-  acquiredBy: string;
-  processedBy: string;
-  licence: PlateLicence;
   currentVersion: number;
   publishedAt: string | null;
   withdrawn: { at: string; reason: string; kind: WithdrawalKind } | null;

@@ -4,21 +4,15 @@
 // version. Used by the demo seed now and by the review desk's publishing.
 import { and, eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { bracketSets, plates, plateVersions, reductions, sites, type PlateFacts, type PlateGeometry, type PlateLicence, type Rendition } from "@/db/schema";
+import { bracketSets, plates, plateVersions, reductions, sites, type PlateFacts, type PlateGeometry, type Rendition } from "@/db/schema";
 import { AppError } from "@/lib/errors";
+import type { PlateTexts } from "./desk-input";
 import { findCountry } from "@/lib/geo/country";
 import { bucketName, readSmallObject } from "@/lib/storage";
 
-export interface NewPlateInput {
+export interface NewPlateInput extends PlateTexts {
   reductionId: string;
   slug: string;
-  title: string;
-  caption: string;
-  description: string;
-  altText: string;
-  acquiredBy: string;
-  processedBy: string;
-  licence: PlateLicence;
   renditions: Rendition[];
   featured?: boolean;
   publish: boolean;

@@ -4,10 +4,8 @@
 // checks the gallery and the plate page. Screenshots at phone and desktop sizes.
 // The plate is made here: a synthetic bracket is uploaded, reduced by the
 // worker and published through the same function the seed and the desk use.
-import fs from "node:fs";
-import path from "node:path";
 import { eq } from "drizzle-orm";
-import type { Browser, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { bracketSets, frames, kits, reductions } from "@/db/schema";
@@ -15,6 +13,7 @@ import { createPlateFromReduction } from "@/lib/plates/publish";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
+import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { APP, requireTestDatabase } from "../support/env";
 import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
@@ -76,16 +75,6 @@ afterAll(async () => {
   await closeProducerRedis();
   await closeDb();
 });
-
-/** axe-core from node_modules, injected into the page; serious and critical violations only. */
-async function seriousViolations(page: Page): Promise<string[]> {
-  await page.addScriptTag({ content: fs.readFileSync(path.resolve("node_modules/axe-core/axe.min.js"), "utf8") });
-  const result = (await page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: Document, opts: unknown) => Promise<unknown> } }).axe;
-    return axe.run(document, { resultTypes: ["violations"] });
-  })) as { violations: { id: string; impact: string | null; nodes: { target: string[] }[] }[] };
-  return result.violations.filter((v) => v.impact === "serious" || v.impact === "critical").map((v) => `${v.id}: ${v.nodes.map((n) => n.target.join(" ")).join(", ")}`);
-}
 
 const viewParams = (url: string) => {
   const p = new URL(url).searchParams;

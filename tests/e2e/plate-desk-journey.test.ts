@@ -2,22 +2,22 @@
 // caption counter says when the caption is too long, the texts are saved, the
 // plate is published; a visitor then reports it from its public page. axe-core
 // checks the editor and the plate page with the report form open.
-import fs from "node:fs";
-import path from "node:path";
 import { eq } from "drizzle-orm";
 import sharp from "sharp";
-import type { Browser, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { findRolesOfUser } from "@/db/queries/roles";
 import { bracketSets, reductions, users } from "@/db/schema";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import { createDraftPlate } from "@/lib/plates/desk";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
+import { signIn } from "../support/sign-in";
 import { APP, requireTestDatabase } from "../support/env";
 import { createMember, createSetFor } from "../integration/bracket-upload-helpers";
 
@@ -54,25 +54,10 @@ afterAll(async () => {
   await closeDb();
 });
 
-/** axe-core from node_modules, injected into the page; serious and critical violations only, in the page's own content (the shared header and footer are checked by their own journeys). */
-async function seriousViolations(page: Page): Promise<string[]> {
-  await page.addScriptTag({ content: fs.readFileSync(path.resolve("node_modules/axe-core/axe.min.js"), "utf8") });
-  const result = (await page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<unknown> } }).axe;
-    return axe.run({ include: ["#main"] }, { resultTypes: ["violations"] });
-  })) as { violations: { id: string; impact: string | null; nodes: { target: string[] }[] }[] };
-  return result.violations.filter((v) => v.impact === "serious" || v.impact === "critical").map((v) => `${v.id}: ${v.nodes.map((n) => n.target.join(" ")).join(", ")}`);
-}
-
 describe("the plate editor", () => {
   it("counts the caption as the curator types, saves, publishes, and takes a visitor's report", async () => {
     const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 } });
-    const page = await ctx.newPage();
-    await page.goto("/sign-in");
-    await page.getByLabel("E-mail").fill(curatorEmail);
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in" }).click();
-    await page.waitForURL(APP + "/", { timeout: 15_000 });
+    const page = await signIn(ctx, curatorEmail);
 
     await page.goto(`/review/plates/${plateId}`);
     expect(await page.getByLabel("Data acquisition").inputValue()).toBe(`Halvard Quist ${tag}`);
@@ -81,7 +66,7 @@ describe("the plate editor", () => {
     await page.keyboard.type(Array.from({ length: 41 }, (_, i) => `w${i}`).join(" "));
     await page.getByText("41 of 40 words: 1 too many").waitFor();
     await snap(page, "plate-desk-01-caption-too-long");
-    expect(await seriousViolations(page)).toEqual([]);
+    expect(await seriousViolations(page, "#main")).toEqual([]);
 
     await caption.fill("Streamers over Cadiz at mid-totality; synthetic test data.");
     await page.getByText("8 of 40 words").waitFor();
@@ -99,7 +84,7 @@ describe("the plate editor", () => {
     await visitor.getByLabel("What is it about?").selectOption("error");
     await visitor.getByLabel("Your message").fill(`The site is given as Cadiz but it was Jerez ${tag}.`);
     await visitor.getByLabel("Your e-mail address").fill(`visitor-${tag}@visitors.example`);
-    expect(await seriousViolations(visitor)).toEqual([]);
+    expect(await seriousViolations(visitor, "#main")).toEqual([]);
     await visitor.getByRole("button", { name: "Send the report" }).click();
     await visitor.getByRole("status").filter({ hasText: "Thank you." }).waitFor();
     await snap(visitor, "plate-desk-03-report-sent");

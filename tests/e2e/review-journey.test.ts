@@ -5,12 +5,12 @@
 // gallery. The set, its frames and its first reduction are prepared through
 // the same services the pages call. Screenshots go to .artifacts/.
 import { eq } from "drizzle-orm";
-import type { Browser, BrowserContext, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { findRolesOfUser } from "@/db/queries/roles";
 import { auditLog, frames, kits, reductions, sites, users } from "@/db/schema";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { createBracketSet, submitBracketSet } from "@/lib/bracket-sets";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
@@ -18,6 +18,7 @@ import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
 import { launchBrowser, snap } from "../support/browser";
+import { signIn } from "../support/sign-in";
 import { APP, requireTestDatabase } from "../support/env";
 import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
 import { waitFor } from "../support/wait";
@@ -49,16 +50,6 @@ async function waitForReductions(count: number): Promise<void> {
     },
     240_000,
   );
-}
-
-async function signIn(ctx: BrowserContext, email: string): Promise<Page> {
-  const page = await ctx.newPage();
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill(email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(APP + "/", { timeout: 15_000 });
-  return page;
 }
 
 const ip = () => `10.90.${Math.floor(Math.random() * 250)}.${Math.floor(Math.random() * 250)}`;

@@ -11,10 +11,11 @@ import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { kits, sites, users } from "@/db/schema";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import { synthesizeBracket } from "@/lib/imaging/synth-model";
 import { encodeFits } from "@/lib/media/fits-write";
 import { launchBrowser, snap } from "../support/browser";
+import { signIn } from "../support/sign-in";
 import { APP, requireTestDatabase } from "../support/env";
 
 requireTestDatabase();
@@ -71,12 +72,7 @@ afterAll(async () => {
 describe("a member's bracket, from disk to a reduction", () => {
   it("creates a set, uploads frames, corrects an exposure, reduces and shows the result", async () => {
     const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 }, extraHTTPHeaders: { "x-forwarded-for": ip() } });
-    const page = await ctx.newPage();
-    await page.goto("/sign-in");
-    await page.getByLabel("E-mail").fill(member.email);
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in" }).click();
-    await page.waitForURL(APP + "/", { timeout: 15_000 });
+    const page = await signIn(ctx, member.email);
 
     await page.goto("/studio");
     await page.getByRole("link", { name: "New bracket set" }).click();
