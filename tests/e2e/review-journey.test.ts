@@ -113,7 +113,8 @@ describe("from submission to a public plate", () => {
     await studio.getByText("cadiz-03.fits: exposure set to 1/30 s.").waitFor({ timeout: 15_000 });
     await snap(studio, "41-member-fixes-exposure");
     await studio.getByRole("button", { name: "Submit for review" }).click();
-    await studio.getByText("Submitted. The curators have been told by e-mail.").waitFor({ timeout: 15_000 });
+    // The page re-reads the set: it is on the desk again and closed to changes.
+    await studio.getByText(/This set is awaiting review/).waitFor({ timeout: 15_000 });
     const [frame] = await db.select({ exposureS: frames.exposureS, source: frames.exposureSource }).from(frames).where(eq(frames.originalFileName, "cadiz-03.fits"));
     expect(frame.exposureS).toBeCloseTo(1 / 30, 9);
     expect(frame.source).toBe("photographer");
