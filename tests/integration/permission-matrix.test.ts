@@ -209,7 +209,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/studio", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/review", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
   { path: "/review/plates", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
-  { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 403 } },
+  { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 200 } },
   { path: "/admin/people", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin/settings", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
