@@ -4,21 +4,24 @@ import { z } from "zod";
 import { EDITION_KINDS, EDITION_SLOTS, RENDITIONS } from "@/db/schema";
 import { CUSTOM_DPI, CUSTOM_MM } from "./print-sizes";
 
+const DATE_EXPECTED = "expected a date as YYYY-MM-DD, or nothing for no embargo";
+// null and "" both mean no embargo; one schema, so a bad value gets this message and not a union's "Invalid input".
 const isoDate = z
-  .string()
+  .string({ error: DATE_EXPECTED })
   .trim()
   .refine((s) => s === "" || (/^\d{4}-\d{2}-\d{2}$/.test(s) && !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s)), {
-    error: "expected a date as YYYY-MM-DD, or nothing for no embargo",
+    error: DATE_EXPECTED,
   })
   .transform((s) => (s === "" ? null : s));
+const embargoDate = z.preprocess((v) => (v === null || v === undefined ? "" : v), isoDate);
 
-export const embargoSchema = z.object({ embargoDate: z.union([isoDate, z.null()]) });
+export const embargoSchema = z.object({ embargoDate });
 
 export const newEditionSchema = z.object({
   title: z.string({ error: "expected a title" }).trim().min(1, { error: "a title is required" }).max(200, { error: "at most 200 characters" }),
   kind: z.enum(EDITION_KINDS, { error: "expected newsletter or journal" }),
   issueLabel: z.string().trim().max(80, { error: "at most 80 characters" }).default(""),
-  embargoDate: z.union([isoDate, z.null()]).default(null),
+  embargoDate,
 });
 
 export const addItemSchema = z.object({
