@@ -22,13 +22,13 @@ export function ItemOrderButtons({ editionId, itemId, plateTitle, isFirst, isLas
 
   return (
     <div className="flex flex-col gap-2">
-      <Button size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => run("up")} aria-label={`Move “${plateTitle}” up`}>
+      <Button size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => run("up")} aria-label={`Up: move “${plateTitle}” earlier`}>
         ↑ Up
       </Button>
-      <Button size="sm" disabled={isLast} pending={pending === "down"} onClick={() => run("down")} aria-label={`Move “${plateTitle}” down`}>
+      <Button size="sm" disabled={isLast} pending={pending === "down"} onClick={() => run("down")} aria-label={`Down: move “${plateTitle}” later`}>
         ↓ Down
       </Button>
-      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={() => run("remove")} aria-label={`Take “${plateTitle}” out of the edition`}>
+      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={() => run("remove")} aria-label={`Take out “${plateTitle}”`}>
         Take out
       </Button>
       {message ? (

@@ -186,7 +186,9 @@ describe("editions", () => {
     expect(draft.status).toBe(400);
     const bad = await ed.json(`/api/editions/${id}`, { embargoDate: "tomorrow" }, "PATCH");
     expect(bad.status).toBe(400);
-    expect(JSON.stringify(bad.body)).toMatch(/embargoDate.*YYYY-MM-DD.*"tomorrow"/);
+    const [problem] = (bad.body as { error: { fields: { field: string; message: string }[] } }).error.fields;
+    expect(problem.field).toBe("embargoDate");
+    expect(problem.message).toMatch(/YYYY-MM-DD.*"tomorrow"/);
     for (const role of ["member", "curator"]) {
       const c = await who(role);
       expect((await c.json(`/api/editions/${id}`)).status).toBe(403);
