@@ -198,10 +198,10 @@ export async function addEditionItem(db: Db, actor: Actor | null, editionId: str
       .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, plates.currentVersion)))
       .where(eq(plates.id, plateId))
       .limit(1);
-    // Drafts and withdrawn plates are not offered: the same answer as a plate that does not exist would leak drafts.
     if (!plate) throw notFound("That plate");
+    // Editors see published plates only, so the refusal does not repeat a draft's title.
     if (plate.state !== "published") {
-      throw new AppError("invalid_input", `"${plate.title}" is ${plate.state}; only published plates can go into an edition.`, [{ field: "plateId", message: `the plate is ${plate.state}, not published` }]);
+      throw new AppError("invalid_input", "plateId: that plate is not published; only published plates can go into an edition.", [{ field: "plateId", message: "the plate is not published" }]);
     }
     const chosen = rendition ?? plate.renditions[0];
     if (!chosen || !plate.renditions.includes(chosen)) {

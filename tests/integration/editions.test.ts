@@ -202,5 +202,12 @@ describe("editions", () => {
     const page = await ed.request(`/editions/${id}`);
     expect(page.status).toBe(200);
     expect(await page.text()).toContain("Also in");
+    // The curator's plate page lists the editions the plate is in, with the embargo date.
+    const desk = await (await who("curator")).request(`/review/plates/${plateIds[1]}`);
+    expect(desk.status).toBe(200);
+    const html = await desk.text();
+    expect(html).toContain("Publication history");
+    expect(html).toContain(`Kestrel Ridge Bulletin ${tag}`);
+    expect(html).toMatch(/embargo until (<!-- -->)?2027-10-01/);
   });
 });
