@@ -7,3 +7,4 @@ export * from "./brackets";
 export * from "./reductions";
 export * from "./plates";
 export * from "./review";
+export * from "./editions";

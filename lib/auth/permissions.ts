@@ -13,7 +13,7 @@ export const PERMISSIONS = {
   "review:use": ["curator"],
   "brackets:read-all": ["curator"],
   // Editors: editions and their exports.
-  "editions:use": ["editor"],
+  "editions:use": ["editor", "admin"],
   // Admin: people and roles, society settings, audit log.
   "people:list": ["admin"],
   "roles:grant": ["admin"],

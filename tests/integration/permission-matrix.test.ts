@@ -53,6 +53,8 @@ const ownSetWrite = (ok: number) => ({ visitor: 401, member: ok, curator: 403, e
 const SET = "/api/bracket-sets";
 const curatorOnly = (ok: number) => ({ visitor: 401, member: 403, curator: ok, editor: 403, admin: 403 });
 const NO_ID = "00000000-0000-4000-8000-000000000000";
+const editorsOnly = (ok: number) => ({ visitor: 401, member: 403, curator: 403, editor: ok, admin: ok });
+const ED = "/api/editions";
 const PLATE_TEXTS = {
   title: "Matrix plate",
   caption: "A caption.",
@@ -198,6 +200,15 @@ const API_CASES: Case[] = [
     expect: everyone(404),
   },
   { route: "/api/plates/[slug]/web-jpeg", method: "GET", path: () => "/api/plates/no-such-plate/web-jpeg", expect: everyone(404) },
+  // Editions: editors and admins. An untitled edition is refused (400) and ids that name nothing are not found, so the matrix leaves no trace.
+  { route: ED, method: "GET", path: () => ED, expect: editorsOnly(200) },
+  { route: ED, method: "POST", path: () => ED, body: { title: "", kind: "newsletter" }, expect: editorsOnly(400) },
+  { route: `${ED}/[id]`, method: "GET", path: () => `${ED}/${NO_ID}`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]`, method: "PATCH", path: () => `${ED}/${NO_ID}`, body: { embargoDate: null }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items`, method: "POST", path: () => `${ED}/${NO_ID}/items`, body: { plateId: NO_ID }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items/[itemId]`, method: "PATCH", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, body: { slot: "web", rendition: "natural" }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items/[itemId]`, method: "DELETE", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items/[itemId]/move`, method: "POST", path: () => `${ED}/${NO_ID}/items/${NO_ID}/move`, body: { direction: "up" }, expect: editorsOnly(404) },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
@@ -209,7 +220,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/studio", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/review", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
   { path: "/review/plates", expect: { visitor: 307, member: 403, curator: 200, editor: 403, admin: 403 } },
-  { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 403 } },
+  { path: "/editions", expect: { visitor: 307, member: 403, curator: 403, editor: 200, admin: 200 } },
   { path: "/admin/people", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin/settings", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
   { path: "/admin", expect: { visitor: 307, member: 403, curator: 403, editor: 403, admin: 200 } },
@@ -235,6 +246,7 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
 const ID_PAGE_CASES: { route: string; label: string; path: (ids: Ids) => string; expect: Record<Who, number> }[] = [
   // The member's reduction: the owner and curators see it; other members get 404, like a missing one.
   { route: "/studio/reductions/[id]", label: "the member's", path: ({ reductionId }) => `/studio/reductions/${reductionId}`, expect: { visitor: 307, member: 200, curator: 200, editor: 404, admin: 404 } },
+  { route: "/editions/[id]", label: "a missing one", path: () => "/editions/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 403, curator: 403, editor: 404, admin: 404 } },
   { route: "/review/plates/[id]", label: "a missing one", path: () => "/review/plates/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 403, curator: 404, editor: 403, admin: 403 } },
   { route: "/studio/reductions/[id]", label: "a missing one", path: () => "/studio/reductions/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
   // The review page of one set: curators only; a missing set is 404 for them.

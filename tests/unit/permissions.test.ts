@@ -10,7 +10,7 @@ const EXPECTED: Record<Action, Role[]> = {
   "brackets:own": ["member"],
   "review:use": ["curator"],
   "brackets:read-all": ["curator"],
-  "editions:use": ["editor"],
+  "editions:use": ["editor", "admin"],
   "people:list": ["admin"],
   "roles:grant": ["admin"],
   "settings:edit": ["admin"],

@@ -11,6 +11,7 @@ import { PlateTextForm } from "@/components/plates-desk/plate-text-form";
 import { PlateVersions } from "@/components/plates-desk/plate-versions";
 import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
+import { listEditionsOfPlate } from "@/lib/editions/editions";
 import { findDeskPlate } from "@/lib/plates/desk-view";
 
 export const metadata: Metadata = { title: "Plate editor" };
@@ -33,6 +34,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
   const { id } = await params;
   const actor = await requirePagePermission("review:use", `/review/plates/${id}`);
   const plate = await foundOr404(findDeskPlate(getDb(), actor, id));
+  const publications = await listEditionsOfPlate(getDb(), actor, plate.id);
   const finalWithdrawal = plate.withdrawn?.kind === "permanent";
   const openReports = plate.reports.filter((r) => r.state === "open").length;
   return (
@@ -91,6 +93,21 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
 
       <Section id="versions-h" title="Versions">
         <PlateVersions plateId={plate.id} currentVersion={plate.currentVersion} versions={plate.versions} finishedReductions={plate.finishedReductions} readOnly={finalWithdrawal} />
+      </Section>
+
+      <Section id="publications-h" title="Publication history">
+        {publications.length === 0 ? (
+          <p className="text-sm">Not in any newsletter or journal edition.</p>
+        ) : (
+          <ul className="flex flex-col gap-1 text-sm">
+            {publications.map((e) => (
+              <li key={e.id}>
+                “{e.title}”{e.issueLabel ? `, ${e.issueLabel}` : ""} ({e.kind}, {e.state}), version {e.version}, plate {e.position}:{" "}
+                {e.embargoDate ? <strong>embargo until {e.embargoDate}</strong> : "no embargo"}
+              </li>
+            ))}
+          </ul>
+        )}
       </Section>
 
       <Section id="reports-h" title={`Reports from the public (${openReports} open)`}>

@@ -1,0 +1,213 @@
+// Editions against the real database and the running app: an editor builds an
+// edition from published plates, positions stay 1..n through moves and
+// removals, a plate already in another edition is added with a warning, only
+// published plates go in, sizes are checked against the rendition, and only
+// editors and admins may build (members and curators get 403).
+import { eq } from "drizzle-orm";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, getDb } from "@/db/client";
+import { editionItems, plates, plateVersions, reductions, type PlateState } from "@/db/schema";
+import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import type { Actor } from "@/lib/auth/actor";
+import { addEditionItem, createEdition, findEdition, listEditionsOfPlate, listPickablePlates, moveEditionItem, removeEditionItem, setEditionEmbargo, updateEditionItem } from "@/lib/editions/editions";
+import { requireTestDatabase } from "../support/env";
+import { Client } from "../support/http";
+import { createMember, createSetFor, ECLIPSE_ID } from "./bracket-upload-helpers";
+
+requireTestDatabase();
+const db = getDb();
+afterAll(closeDb);
+
+const tag = Date.now().toString(36);
+let editor: Actor;
+let admin: Actor;
+let curator: Actor;
+let member: Actor;
+let owner: Actor;
+const plateIds: string[] = [];
+let draftPlateId = "";
+
+/** A plate written directly: one version whose natural rendition is 1280 x 960 px (like the Luxor demo bracket). */
+async function makePlate(n: number, state: PlateState): Promise<string> {
+  const setId = await createSetFor(db, owner, `Editions set ${tag} ${n}`);
+  const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 }).returning({ id: reductions.id });
+  const [plate] = await db
+    .insert(plates)
+    .values({
+      slug: `editions-${tag}-${n}`,
+      bracketSetId: setId,
+      eclipseId: ECLIPSE_ID,
+      state,
+      title: `Editions plate ${tag} ${n}`,
+      caption: "Synthetic corona for the editions test.",
+      altText: "A dark disk with grey streamers.",
+      acquiredBy: owner.name,
+      processedBy: "Crownlight pipeline test",
+      licence: "CC-BY-4.0",
+      publishedAt: state === "published" ? new Date(Date.now() + n) : null,
+    })
+    .returning({ id: plates.id });
+  await db.insert(plateVersions).values({
+    plateId: plate.id,
+    version: 1,
+    reductionId: red.id,
+    renditions: ["natural", "structure"],
+    imageSizes: { natural: { width: 1280, height: 960 }, structure: { width: 3000, height: 2250 } },
+    geometry: {},
+    facts: { exposuresS: [0.004], captureStartUtc: null, captureEndUtc: null, moonSilhouetteUtc: null, referenceFrame: null, dynamicRangeStops: null, masterSize: null },
+  });
+  return plate.id;
+}
+
+async function positions(editionId: string): Promise<[string, number][]> {
+  const e = await findEdition(db, editor, editionId);
+  return e.items.map((i) => [i.plate.id, i.position]);
+}
+
+beforeAll(async () => {
+  editor = await createMember(db, `Marguerite Ashdown ${tag}`, ["editor"]);
+  admin = await createMember(db, `Anselm Corrigan ${tag}`, ["admin"]);
+  curator = await createMember(db, `Ines Halloran ${tag}`, ["curator"]);
+  member = await createMember(db, `Tobias Wrenfield ${tag}`, ["member"]);
+  owner = await createMember(db, `Oskar Lindqvist ${tag}`, ["member"]);
+  for (let n = 1; n <= 3; n++) plateIds.push(await makePlate(n, "published"));
+  draftPlateId = await makePlate(9, "draft");
+}, 60_000);
+
+describe("editions", () => {
+  let editionId = "";
+
+  it("lets an editor start an edition and names a bad field", async () => {
+    await expect(createEdition(db, editor, { title: " ", kind: "magazine" })).rejects.toMatchObject({
+      code: "invalid_input",
+      fields: expect.arrayContaining([expect.objectContaining({ field: "title" }), expect.objectContaining({ field: "kind" })]),
+    });
+    await expect(createEdition(db, editor, { title: "Bulletin", kind: "newsletter", embargoDate: "2027-02-30" })).rejects.toMatchObject({ fields: [expect.objectContaining({ field: "embargoDate" })] });
+    ({ id: editionId } = await createEdition(db, editor, { title: `Kestrel Ridge Bulletin ${tag}`, kind: "newsletter", issueLabel: "No. 41" }));
+    const e = await findEdition(db, editor, editionId);
+    expect(e).toMatchObject({ state: "draft", embargoDate: null, items: [] });
+  });
+
+  it("refuses members and curators, and allows admins", async () => {
+    await expect(createEdition(db, member, { title: "x", kind: "journal" })).rejects.toMatchObject({ code: "forbidden" });
+    await expect(findEdition(db, curator, editionId)).rejects.toMatchObject({ code: "forbidden" });
+    await expect(addEditionItem(db, curator, editionId, { plateId: plateIds[0] })).rejects.toMatchObject({ code: "forbidden" });
+    await expect(addEditionItem(db, null, editionId, { plateId: plateIds[0] })).rejects.toMatchObject({ code: "unauthenticated" });
+    const e = await findEdition(db, admin, editionId);
+    expect(e.id).toBe(editionId);
+  });
+
+  it("adds only published plates", async () => {
+    await expect(addEditionItem(db, editor, editionId, { plateId: draftPlateId })).rejects.toMatchObject({ code: "invalid_input", fields: [expect.objectContaining({ field: "plateId" })] });
+    const picker = await listPickablePlates(db, editor, editionId, `Editions plate ${tag}`);
+    expect(picker.map((p) => p.id).sort()).toEqual([...plateIds].sort());
+  });
+
+  it("builds: order, sizes against the rendition, and positions stay 1..n through moves and removals", async () => {
+    for (const plateId of plateIds) expect((await addEditionItem(db, editor, editionId, { plateId })).alsoIn).toEqual([]);
+    await expect(addEditionItem(db, editor, editionId, { plateId: plateIds[0] })).rejects.toMatchObject({ code: "conflict" });
+    expect(await positions(editionId)).toEqual([
+      [plateIds[0], 1],
+      [plateIds[1], 2],
+      [plateIds[2], 3],
+    ]);
+    const items = (await findEdition(db, editor, editionId)).items;
+    await moveEditionItem(db, editor, editionId, items[2].id, { direction: "up" });
+    await moveEditionItem(db, editor, editionId, items[0].id, { direction: "up" }); // already first: no change
+    expect(await positions(editionId)).toEqual([
+      [plateIds[0], 1],
+      [plateIds[2], 2],
+      [plateIds[1], 3],
+    ]);
+    await removeEditionItem(db, editor, editionId, items[0].id);
+    expect(await positions(editionId)).toEqual([
+      [plateIds[2], 1],
+      [plateIds[1], 2],
+    ]);
+    expect(await db.$count(editionItems, eq(editionItems.editionId, editionId))).toBe(2);
+  });
+
+  it("checks the layout: custom mm and dpi, the rendition, and warns when the export would enlarge", async () => {
+    const [first] = (await findEdition(db, editor, editionId)).items;
+    // REFERENCES.md, "Print sizes": 180 mm at 300 dpi is 2126 px; the natural rendition has 1280 px.
+    await updateEditionItem(db, editor, editionId, first.id, { slot: "full-width", rendition: "natural", captionOverride: "  For the autumn bulletin. " });
+    let item = (await findEdition(db, editor, editionId)).items[0];
+    expect(item.needed).toEqual({ width: 2126, height: 1595 });
+    expect(item.available).toEqual({ width: 1280, height: 960 });
+    expect(item.enlargement).toBeCloseTo(2126 / 1280, 6);
+    expect(item.sizeWarning).toMatch(/enlarge/);
+    expect(item.captionOverride).toBe("For the autumn bulletin.");
+    // The structure rendition is 3000 px wide: large enough.
+    await updateEditionItem(db, editor, editionId, first.id, { slot: "full-width", rendition: "structure", captionOverride: "" });
+    item = (await findEdition(db, editor, editionId)).items[0];
+    expect(item.sizeWarning).toBeNull();
+    expect(item.captionOverride).toBeNull();
+    // REFERENCES.md: 88 mm at 300 dpi is 1039 px, through the custom fields (strings, as forms send them).
+    await updateEditionItem(db, editor, editionId, first.id, { slot: "custom", customWidthMm: "88", customDpi: "300", rendition: "natural" });
+    item = (await findEdition(db, editor, editionId)).items[0];
+    expect(item.needed?.width).toBe(1039);
+    expect(item.sizeWarning).toBeNull();
+    await expect(updateEditionItem(db, editor, editionId, first.id, { slot: "custom", customWidthMm: "5", customDpi: "30.5", rendition: "natural" })).rejects.toMatchObject({
+      fields: expect.arrayContaining([expect.objectContaining({ field: "customWidthMm" }), expect.objectContaining({ field: "customDpi" })]),
+    });
+    await expect(updateEditionItem(db, editor, editionId, first.id, { slot: "web", rendition: "infrared" })).rejects.toMatchObject({ fields: [expect.objectContaining({ field: "rendition" })] });
+  });
+
+  it("warns, without refusing, when a plate is already in another edition; the plate page shows the embargo", async () => {
+    const { id: other } = await createEdition(db, admin, { title: `Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12" });
+    await setEditionEmbargo(db, editor, editionId, { embargoDate: "2027-10-01" });
+    const added = await addEditionItem(db, admin, other, { plateId: plateIds[1] });
+    expect(added.alsoIn).toEqual([{ id: editionId, title: `Kestrel Ridge Bulletin ${tag}`, issueLabel: "No. 41", embargoDate: "2027-10-01" }]);
+    const first = await findEdition(db, editor, editionId);
+    expect(first.items.find((i) => i.plate.id === plateIds[1])?.alsoIn.map((e) => e.id)).toEqual([other]);
+    const history = await listEditionsOfPlate(db, curator, plateIds[1]);
+    expect(history.map((h) => [h.id, h.embargoDate])).toEqual([
+      [editionId, "2027-10-01"],
+      [other, null],
+    ]);
+    await expect(listEditionsOfPlate(db, member, plateIds[1])).rejects.toMatchObject({ code: "forbidden" });
+  });
+
+  it("answers over HTTP: the editor builds, a member and a curator get 403, an admin is allowed", async () => {
+    const who = async (role: string) => {
+      const c = new Client();
+      await c.signIn(DEMO_PEOPLE.find((p) => p.roles.includes(role as never) && (role !== "member" || p.roles.join() === "member"))!.email, DEMO_PASSWORD);
+      return c;
+    };
+    const ed = await who("editor");
+    const made = await ed.json("/api/editions", { title: `HTTP edition ${tag}`, kind: "journal" });
+    expect(made.status).toBe(201);
+    const id = (made.body as { id: string }).id;
+    const add = await ed.json(`/api/editions/${id}/items`, { plateId: plateIds[2] });
+    expect(add.status).toBe(201);
+    // plateIds[2] is in the bulletin too.
+    expect((add.body as { alsoIn: { id: string }[] }).alsoIn.map((e) => e.id)).toEqual([editionId]);
+    const draft = await ed.json(`/api/editions/${id}/items`, { plateId: draftPlateId });
+    expect(draft.status).toBe(400);
+    const bad = await ed.json(`/api/editions/${id}`, { embargoDate: "tomorrow" }, "PATCH");
+    expect(bad.status).toBe(400);
+    const [problem] = (bad.body as { error: { fields: { field: string; message: string }[] } }).error.fields;
+    expect(problem.field).toBe("embargoDate");
+    expect(problem.message).toMatch(/YYYY-MM-DD.*"tomorrow"/);
+    for (const role of ["member", "curator"]) {
+      const c = await who(role);
+      expect((await c.json(`/api/editions/${id}`)).status).toBe(403);
+      expect((await c.json(`/api/editions/${id}/items`, { plateId: plateIds[0] })).status).toBe(403);
+    }
+    const ad = await who("admin");
+    const read = await ad.json(`/api/editions/${id}`);
+    expect(read.status).toBe(200);
+    const dto = (read.body as { edition: { items: { plate: { id: string }; position: number }[] } }).edition;
+    expect(dto.items.map((i) => [i.plate.id, i.position])).toEqual([[plateIds[2], 1]]);
+    const page = await ed.request(`/editions/${id}`);
+    expect(page.status).toBe(200);
+    expect(await page.text()).toContain("Also in");
+    // The curator's plate page lists the editions the plate is in, with the embargo date.
+    const desk = await (await who("curator")).request(`/review/plates/${plateIds[1]}`);
+    expect(desk.status).toBe(200);
+    const html = await desk.text();
+    expect(html).toContain("Publication history");
+    expect(html).toContain(`Kestrel Ridge Bulletin ${tag}`);
+    expect(html).toMatch(/embargo until (<!-- -->)?2027-10-01/);
+  });
+});
