@@ -5,7 +5,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { Button } from "@/components/ui/button";
-import { callEditionsApi } from "./call-api";
+import { callApi } from "@/components/forms/call-api";
 
 interface Other {
   id: string;
@@ -22,7 +22,7 @@ export function AddPlateButton({ editionId, plateId, plateTitle }: { editionId: 
   async function add() {
     setPending(true);
     setMessage(null);
-    const res = await callEditionsApi<{ itemId: string; alsoIn: Other[] }>("POST", `/api/editions/${editionId}/items`, { plateId });
+    const res = await callApi<{ itemId: string; alsoIn: Other[] }>("POST", `/api/editions/${editionId}/items`, { plateId });
     setPending(false);
     if (!res.ok) return setMessage({ tone: "error", text: res.problem.message });
     const also = res.data.alsoIn;

@@ -5,7 +5,7 @@ import { useState, type FormEvent } from "react";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { callEditionsApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export function EmbargoForm({ editionId, embargoDate }: { editionId: string; embargoDate: string | null }) {
   const router = useRouter();
@@ -19,7 +19,7 @@ export function EmbargoForm({ editionId, embargoDate }: { editionId: string; emb
     setPending(true);
     setProblem(null);
     setDone(null);
-    const res = await callEditionsApi<{ embargoDate: string | null }>("PATCH", `/api/editions/${editionId}`, { embargoDate: value });
+    const res = await callApi<{ embargoDate: string | null }>("PATCH", `/api/editions/${editionId}`, { embargoDate: value });
     setPending(false);
     if (!res.ok) return setProblem(res.problem);
     setDone(res.data.embargoDate ? `Embargo until ${res.data.embargoDate}.` : "No embargo.");

@@ -9,7 +9,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
-import { callEditionsApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export interface ItemLayoutFormProps {
   editionId: string;
@@ -39,7 +39,7 @@ export function ItemLayoutForm(props: ItemLayoutFormProps) {
     setPending(true);
     setProblem(null);
     setDone(false);
-    const res = await callEditionsApi("PATCH", `/api/editions/${props.editionId}/items/${props.itemId}`, {
+    const res = await callApi("PATCH", `/api/editions/${props.editionId}/items/${props.itemId}`, {
       slot,
       customWidthMm: slot === "custom" ? String(form.get("customWidthMm") ?? "") : undefined,
       customDpi: slot === "custom" ? String(form.get("customDpi") ?? "") : undefined,

@@ -3,7 +3,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { Button } from "@/components/ui/button";
-import { callEditionsApi } from "./call-api";
+import { callApi } from "@/components/forms/call-api";
 
 export function ItemOrderButtons({ editionId, itemId, plateTitle, isFirst, isLast }: { editionId: string; itemId: string; plateTitle: string; isFirst: boolean; isLast: boolean }) {
   const router = useRouter();
@@ -14,7 +14,7 @@ export function ItemOrderButtons({ editionId, itemId, plateTitle, isFirst, isLas
   async function run(what: "up" | "down" | "remove") {
     setPending(what);
     setMessage(null);
-    const res = what === "remove" ? await callEditionsApi("DELETE", base) : await callEditionsApi("POST", `${base}/move`, { direction: what });
+    const res = what === "remove" ? await callApi("DELETE", base) : await callApi("POST", `${base}/move`, { direction: what });
     setPending(null);
     if (!res.ok) return setMessage(res.problem.message);
     router.refresh();

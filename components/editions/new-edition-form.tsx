@@ -6,7 +6,7 @@ import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
-import { callEditionsApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export function NewEditionForm() {
   const router = useRouter();
@@ -18,7 +18,7 @@ export function NewEditionForm() {
     const form = new FormData(e.currentTarget);
     setPending(true);
     setProblem(null);
-    const res = await callEditionsApi<{ id: string }>("POST", "/api/editions", {
+    const res = await callApi<{ id: string }>("POST", "/api/editions", {
       title: String(form.get("title") ?? ""),
       kind: String(form.get("kind") ?? ""),
       issueLabel: String(form.get("issueLabel") ?? ""),

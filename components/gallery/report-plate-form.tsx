@@ -8,7 +8,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
-import { callApi, type ApiProblem } from "@/components/plates-desk/call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 const KINDS = [
   { value: "rights", label: "A rights question (who made it, who may use it)" },

@@ -6,7 +6,7 @@ import { useState, type FormEvent } from "react";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
-import { callApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 import { RenditionsPicker } from "./renditions-picker";
 
 export interface MakePlateReduction {

@@ -7,7 +7,7 @@ import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateReportDto } from "@/lib/plates/reports";
-import { callApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 const KIND_LABEL = { rights: "Rights", error: "Error", other: "Other" } as const;
 

@@ -8,7 +8,7 @@ import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateState, WithdrawalKind } from "@/db/schema/plates";
-import { callApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export interface PlateStateActionsProps {
   plateId: string;

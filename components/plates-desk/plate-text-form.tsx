@@ -12,7 +12,7 @@ import { Textarea } from "@/components/ui/textarea";
 import type { PlateLicence } from "@/db/schema/plates";
 import { CAPTION_MAX_WORDS, countWords, type PlateTexts } from "@/lib/plates/desk-input";
 import { LICENCE_INFO } from "@/lib/plates/licences";
-import { callApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export interface PlateTextValues extends PlateTexts {
   slug: string;

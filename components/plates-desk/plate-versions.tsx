@@ -9,7 +9,7 @@ import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
 import type { DeskPlateDto } from "@/lib/plates/desk-view";
-import { callApi, type ApiProblem } from "./call-api";
+import { callApi, type ApiProblem } from "@/components/forms/call-api";
 import { RenditionsPicker } from "./renditions-picker";
 
 export interface PlateVersionsProps {

@@ -1,9 +1,9 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import type { ReactNode } from "react";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
 import { PageTitle } from "@/components/page-title";
+import { PageSection } from "@/components/ui/page-section";
 import { LocationCheck } from "@/components/plates-desk/location-check";
 import { PlateReports } from "@/components/plates-desk/plate-reports";
 import { PlateStateActions } from "@/components/plates-desk/plate-state-actions";
@@ -17,16 +17,6 @@ import { findDeskPlate } from "@/lib/plates/desk-view";
 export const metadata: Metadata = { title: "Plate editor" };
 export const dynamic = "force-dynamic";
 
-function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
-  return (
-    <section aria-labelledby={id} className="mt-10">
-      <h2 id={id} className="mb-4 text-xl font-semibold">
-        {title}
-      </h2>
-      {children}
-    </section>
-  );
-}
 
 const STATE_TONE = { draft: "neutral", published: "ok", withdrawn: "danger" } as const;
 
@@ -64,7 +54,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
         </p>
       ) : null}
 
-      <Section id="texts-h" title="What the public reads">
+      <PageSection id="texts-h" title="What the public reads">
         <PlateTextForm
           plateId={plate.id}
           values={{
@@ -81,21 +71,21 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
           slugLocked={plate.publishedAt !== null}
           readOnly={finalWithdrawal}
         />
-      </Section>
+      </PageSection>
 
-      <Section id="location-h" title="What the public sees of the site">
+      <PageSection id="location-h" title="What the public sees of the site">
         <LocationCheck location={plate.location} />
-      </Section>
+      </PageSection>
 
-      <Section id="state-h" title="Publishing and withdrawal">
+      <PageSection id="state-h" title="Publishing and withdrawal">
         <PlateStateActions plateId={plate.id} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} setState={plate.set.state} />
-      </Section>
+      </PageSection>
 
-      <Section id="versions-h" title="Versions">
+      <PageSection id="versions-h" title="Versions">
         <PlateVersions plateId={plate.id} currentVersion={plate.currentVersion} versions={plate.versions} finishedReductions={plate.finishedReductions} readOnly={finalWithdrawal} />
-      </Section>
+      </PageSection>
 
-      <Section id="publications-h" title="Publication history">
+      <PageSection id="publications-h" title="Publication history">
         {publications.length === 0 ? (
           <p className="text-sm">Not in any newsletter or journal edition.</p>
         ) : (
@@ -108,13 +98,13 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
             ))}
           </ul>
         )}
-      </Section>
+      </PageSection>
 
-      <Section id="reports-h" title={`Reports from the public (${openReports} open)`}>
+      <PageSection id="reports-h" title={`Reports from the public (${openReports} open)`}>
         <PlateReports plateId={plate.id} reports={plate.reports} />
-      </Section>
+      </PageSection>
 
-      <Section id="history-h" title="History">
+      <PageSection id="history-h" title="History">
         <ol className="flex flex-col gap-1 text-sm">
           {plate.history.map((h, i) => (
             <li key={i}>
@@ -122,7 +112,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
             </li>
           ))}
         </ol>
-      </Section>
+      </PageSection>
     </>
   );
 }

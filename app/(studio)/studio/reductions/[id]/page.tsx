@@ -1,9 +1,9 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import type { ReactNode } from "react";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
 import { PageTitle } from "@/components/page-title";
+import { PageSection } from "@/components/ui/page-section";
 import { CoverageMap } from "@/components/reductions/coverage-map";
 import { FrameLimbs } from "@/components/reductions/frame-limbs";
 import { RadialProfilePlot } from "@/components/reductions/radial-profile-plot";
@@ -20,16 +20,6 @@ import type { ReductionParamsInput } from "@/lib/reductions/schemas";
 export const metadata: Metadata = { title: "Reduction" };
 
 /** The service's answer, or the 404 page when it says "not found" (as it does for what the actor may not see). */
-function Section({ id, title, children }: { id: string; title: string; children: ReactNode }) {
-  return (
-    <section aria-labelledby={id} className="mt-10">
-      <h2 id={id} className="mb-4 text-xl font-semibold">
-        {title}
-      </h2>
-      {children}
-    </section>
-  );
-}
 
 export default async function ReductionPage({ params }: { params: Promise<{ id: string }> }) {
   const { id } = await params;
@@ -52,20 +42,20 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
 
       <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, error: reduction.error }} />
 
-      <Section id="parameters" title="Parameters">
+      <PageSection id="parameters" title="Parameters">
         <ReductionParameters params={reduction.params as ShownParams} />
-      </Section>
+      </PageSection>
 
       {reduction.state === "done" ? (
         <>
-          <Section id="renditions" title="Renditions">
+          <PageSection id="renditions" title="Renditions">
             <Renditions reductionId={reduction.id} setName={view.setName} structurePreview={report?.outputs.previewStructure ?? "structure.png"} />
             {report?.outputs.renditionSize && report.outputs.renditionSize.scale !== 1 ? (
               <p className="mt-3 text-sm text-ink-muted">
                 Renditions and tiles are {report.outputs.renditionSize.width} × {report.outputs.renditionSize.height} px; the master FITS keeps the full size.
               </p>
             ) : null}
-          </Section>
+          </PageSection>
 
           {view.reportProblem ? (
             <p role="alert" className="mt-8 rounded-control border border-warn/50 bg-warn/10 px-3 py-2 text-warn">
@@ -73,47 +63,47 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
             </p>
           ) : null}
 
-          <Section id="measurements" title="Measurements">
+          <PageSection id="measurements" title="Measurements">
             <ReductionMeasurements measurements={measurements} pipelineVersion={reduction.pipelineVersion ?? report?.pipelineVersion ?? null} />
-          </Section>
+          </PageSection>
 
-          <Section id="profile" title="Radial brightness profile">
+          <PageSection id="profile" title="Radial brightness profile">
             {profile ? <RadialProfilePlot profile={profile} /> : <p className="text-ink-muted">This reduction&apos;s report has no radial profile (it was made by an earlier pipeline).</p>}
-          </Section>
+          </PageSection>
 
-          <Section id="coverage" title="Coverage">
+          <PageSection id="coverage" title="Coverage">
             {coverage && report?.outputs.coverage ? (
               <CoverageMap coverage={coverage} src={buildOutputUrl(reduction.id, report.outputs.coverage)} />
             ) : (
               <p className="text-ink-muted">This reduction&apos;s report has no coverage map (it was made by an earlier pipeline).</p>
             )}
-          </Section>
+          </PageSection>
 
-          <Section id="frames" title="Frames and their fitted limbs">
+          <PageSection id="frames" title="Frames and their fitted limbs">
             {report ? <FrameLimbs setId={view.setId} frames={report.frames} frameIds={view.frameIdsByName} referenceFrame={report.overall.referenceFrame} /> : <p className="text-ink-muted">No report to read the frames from.</p>}
-          </Section>
+          </PageSection>
 
-          <Section id="stage-log" title="Stage log">
+          <PageSection id="stage-log" title="Stage log">
             {report && Object.keys(report.timingsMs).length ? <StageLog timingsMs={report.timingsMs} /> : <p className="text-ink-muted">No timings were recorded.</p>}
-          </Section>
+          </PageSection>
 
-          <Section id="downloads" title="Downloads">
+          <PageSection id="downloads" title="Downloads">
             <ReductionDownloads reductionId={reduction.id} />
-          </Section>
+          </PageSection>
         </>
       ) : null}
 
-      <Section id="again" title="Reduce again">
+      <PageSection id="again" title="Reduce again">
         <details>
           <summary className="cursor-pointer font-medium">Start another reduction of this set with other parameters</summary>
           <p className="my-3 text-ink-muted">This reduction stays as it is; the new one gets its own page and files.</p>
           <ReductionStartForm setId={view.setId} groups={[]} initial={reduction.params as Partial<ReductionParamsInput>} submitLabel="Start another reduction" />
         </details>
-      </Section>
+      </PageSection>
 
-      <Section id="all" title="All reductions of this set">
+      <PageSection id="all" title="All reductions of this set">
         <ReductionList reductions={siblings} caption={`Reductions of ${view.setName}, newest first`} currentId={reduction.id} />
-      </Section>
+      </PageSection>
     </>
   );
 }

@@ -1,4 +1,4 @@
-// JSON calls from the desk's client components to our route handlers, with
+// JSON calls from client components (the desks, the edition builder) to our route handlers, with
 // the server's field-by-field messages kept for the form that sent them.
 export interface ApiProblem {
   message: string;
@@ -7,7 +7,7 @@ export interface ApiProblem {
 
 export type ApiResult<T> = { ok: true; data: T } | { ok: false; problem: ApiProblem };
 
-export async function callApi<T = unknown>(method: "GET" | "POST" | "PATCH", url: string, body?: unknown): Promise<ApiResult<T>> {
+export async function callApi<T = unknown>(method: "GET" | "POST" | "PATCH" | "DELETE", url: string, body?: unknown): Promise<ApiResult<T>> {
   try {
     const res = await fetch(url, {
       method,
