@@ -2,7 +2,7 @@
 // builds from published plates. Each item pins the plate version it was
 // chosen at, a layout slot (a preset, or a custom width in mm at a dpi), the
 // rendition and an optional caption for this edition only.
-import { index, integer, pgTable, real, text, timestamp, date, uniqueIndex, uuid } from "drizzle-orm/pg-core";
+import { bigint, date, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { plates, type Rendition } from "./plates";
 
@@ -59,3 +59,53 @@ export const editionItems = pgTable(
 
 export type Edition = typeof editions.$inferSelect;
 export type EditionItem = typeof editionItems.$inferSelect;
+
+export const EXPORT_STATES = ["queued", "running", "done", "failed"] as const;
+export type ExportState = (typeof EXPORT_STATES)[number];
+
+/** What an export bundle holds besides the sRGB TIFF and JPEG of each plate. */
+export interface ExportOptions {
+  cmyk: boolean;
+  greyscale: boolean;
+  fileNameTemplate: string;
+}
+
+/** One file of a finished bundle, as its metadata JSON lists it. */
+export interface ExportFileEntry {
+  name: string;
+  bytes: number;
+}
+
+/**
+ * Print bundles of an edition: one row per export the editor started. The
+ * worker fills in progress, then the ZIP's key in the exports bucket. An
+ * edition whose export finished is marked exported; older bundles stay.
+ */
+export const editionExports = pgTable(
+  "edition_exports",
+  {
+    id: uuid("id").primaryKey().defaultRandom(),
+    editionId: uuid("edition_id")
+      .notNull()
+      .references(() => editions.id, { onDelete: "cascade" }),
+    state: text("state", { enum: EXPORT_STATES }).notNull().default("queued"),
+    options: jsonb("options").$type<ExportOptions>().notNull(),
+    /** 0..1 and the step being worked on, for the editor's progress bar. */
+    progress: real("progress").notNull().default(0),
+    stage: text("stage"),
+    objectKey: text("object_key"),
+    zipName: text("zip_name"),
+    bytes: bigint("bytes", { mode: "number" }),
+    files: jsonb("files").$type<ExportFileEntry[]>(),
+    /** Size notes and other warnings the bundle carries (also in its proof). */
+    warnings: jsonb("warnings").$type<string[]>().notNull().default([]),
+    error: text("error"),
+    requestedBy: text("requested_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    startedAt: timestamp("started_at", { withTimezone: true }),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (t) => [index("edition_exports_edition_idx").on(t.editionId, t.createdAt)],
+);
+
+export type EditionExport = typeof editionExports.$inferSelect;
