@@ -146,3 +146,29 @@ export function plateReportAnswerMail(society: string, to: string, report: { pla
     { href: report.url, label: "See the plate" },
   );
 }
+
+/** To the editor who asked: the print bundle of an edition is ready to download. */
+export function editionExportReadyMail(society: string, to: string, name: string, edition: { title: string; plates: number; size: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Print bundle ready: ${edition.title}`,
+    [
+      `Hello ${name},`,
+      `The print bundle of "${edition.title}" is ready: ${edition.plates} plate${edition.plates === 1 ? "" : "s"}, ${edition.size}, with TIFF and JPEG files, captions, credits, metadata and a PDF proof.`,
+      "Check the proof before sending the files to the printer.",
+    ],
+    { href: edition.url, label: "Download it from the edition" },
+  );
+}
+
+/** To the editor who asked: the print bundle could not be made. */
+export function editionExportFailedMail(society: string, to: string, name: string, edition: { title: string; reason: string; url: string }): MailDraft {
+  return draft(
+    society,
+    to,
+    `Print bundle failed: ${edition.title}`,
+    [`Hello ${name},`, `The print bundle of "${edition.title}" could not be made.`, `Reason: ${edition.reason}`, "The edition is unchanged; correct what the reason names and export again."],
+    { href: edition.url, label: "Open the edition" },
+  );
+}

@@ -1,9 +1,11 @@
 // Plain object reads and writes used after an upload: size, the first bytes for
 // sniffing, a streamed download to a temporary file, and derived files.
-import { createWriteStream } from "node:fs";
+import { createReadStream, createWriteStream } from "node:fs";
+import { stat } from "node:fs/promises";
 import { Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { GetObjectCommand, HeadObjectCommand, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
+import { Upload } from "@aws-sdk/lib-storage";
 import type { ObjectRef } from "./multipart";
 import { getS3 } from "./s3";
 
@@ -59,4 +61,11 @@ export async function readSmallObject(ref: ObjectRef, maxBytes = 8 * 1024 ** 2, 
   const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
   if ((out.ContentLength ?? 0) > maxBytes) throw new Error(`${ref.key} is ${out.ContentLength} bytes, more than the ${maxBytes} expected`);
   return out.Body ? Buffer.from(await out.Body.transformToByteArray()) : Buffer.alloc(0);
+}
+
+/** A file on disk streamed to S3 (in parts when large); returns its size. */
+export async function putObjectFile(ref: ObjectRef, path: string, contentType: string, s3: S3Client = getS3()): Promise<number> {
+  const { size } = await stat(path);
+  await new Upload({ client: s3, params: { Bucket: ref.bucket, Key: ref.key, Body: createReadStream(path), ContentType: contentType, ContentLength: size }, queueSize: 2 }).done();
+  return size;
 }
