@@ -4,6 +4,7 @@
 // and SIGTERM/SIGINT let running jobs finish before the process exits.
 import { Queue, UnrecoverableError, Worker, type Job } from "bullmq";
 import { closeDb, getDb } from "@/db/client";
+import { closeExportExifTool } from "@/lib/editions/export/embed";
 import { requireEnvOrExit } from "@/lib/env";
 import { createRedis } from "@/lib/queue/connection";
 import { isJobName, JOBS, QUEUES, type JobName } from "@/lib/queue/jobs";
@@ -84,6 +85,7 @@ async function shutdown(signal: string) {
   console.log(`[worker] ${signal}: finishing running jobs`);
   await Promise.all(workers.map((w) => w.close()));
   await sweeper.close();
+  await closeExportExifTool();
   connection.disconnect();
   await closeDb();
   process.exit(0);

@@ -2,6 +2,7 @@
 // adding a job there without a handler here is a type error.
 import type { Db } from "@/db/client";
 import type { JobName, JobPayload } from "@/lib/queue/jobs";
+import { exportEdition } from "./jobs/edition-export";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
 import { runReduction } from "./jobs/reduction-run";
@@ -22,4 +23,5 @@ export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
   "frame.ingest": ingestFrame,
   "reduction.run": runReduction,
   "uploads.sweep": sweepUploads,
+  "edition.export": exportEdition,
 };

@@ -3,8 +3,9 @@
 // settings. Handlers live in worker/jobs/, one file per job.
 import { z } from "zod";
 
-// "reduce" is its own queue so that long reductions never hold up ingests or mail.
-export const QUEUES = ["mail", "media", "reduce"] as const;
+// "reduce" is its own queue so that long reductions never hold up ingests or mail;
+// "export" likewise, so that an editor's print bundle does not wait behind them.
+export const QUEUES = ["mail", "media", "reduce", "export"] as const;
 export type QueueName = (typeof QUEUES)[number];
 
 export const JOBS = {
@@ -30,6 +31,12 @@ export const JOBS = {
     queue: "reduce",
     payload: z.object({ reductionId: z.uuid() }),
     attempts: 3,
+  },
+  // One print bundle of an edition: sized files with metadata, texts, proof, ZIP.
+  "edition.export": {
+    queue: "export",
+    payload: z.object({ exportId: z.uuid() }),
+    attempts: 2,
   },
 } as const satisfies Record<string, { queue: QueueName; payload: z.ZodType; attempts: number }>;
 

@@ -209,6 +209,11 @@ const API_CASES: Case[] = [
   { route: `${ED}/[id]/items/[itemId]`, method: "PATCH", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, body: { slot: "web", rendition: "natural" }, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]`, method: "DELETE", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]/move`, method: "POST", path: () => `${ED}/${NO_ID}/items/${NO_ID}/move`, body: { direction: "up" }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/exports`, method: "GET", path: () => `${ED}/${NO_ID}/exports`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/exports`, method: "POST", path: () => `${ED}/${NO_ID}/exports`, body: {}, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/exports/[exportId]`, method: "GET", path: () => `${ED}/${NO_ID}/exports/${NO_ID}`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/exports/[exportId]/download`, method: "GET", path: () => `${ED}/${NO_ID}/exports/${NO_ID}/download`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/reopen`, method: "POST", path: () => `${ED}/${NO_ID}/reopen`, body: {}, expect: editorsOnly(404) },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
