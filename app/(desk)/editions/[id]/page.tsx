@@ -4,6 +4,7 @@ import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
 import { AddPlateButton } from "@/components/editions/add-plate-button";
 import { EmbargoForm } from "@/components/editions/embargo-form";
+import { ExportPanel } from "@/components/editions/export-panel";
 import { ItemLayoutForm } from "@/components/editions/item-layout-form";
 import { ItemOrderButtons } from "@/components/editions/item-order-buttons";
 import { PageTitle } from "@/components/page-title";
@@ -14,6 +15,7 @@ import { Input } from "@/components/ui/input";
 import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import { getDb } from "@/db/client";
 import { findEdition, listPickablePlates, type OtherEditionDto } from "@/lib/editions/editions";
+import { listExports } from "@/lib/editions/export/exports";
 import { SLOT_PRESETS, SLOT_SPECS } from "@/lib/editions/print-sizes";
 
 export const metadata: Metadata = { title: "Edition builder" };
@@ -33,6 +35,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
   const db = getDb();
   const edition = await foundOr404(findEdition(db, actor, id));
   const pickable = await listPickablePlates(db, actor, id, q);
+  const exports = await listExports(db, actor, id);
   const readOnly = edition.state !== "draft";
   return (
     <>
@@ -125,6 +128,13 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
             ))}
           </TableBody>
         </Table>
+      </section>
+
+      <section aria-labelledby="exports-h" className="mt-10">
+        <h2 id="exports-h" className="mb-4 text-xl font-semibold">
+          Print bundle
+        </h2>
+        <ExportPanel editionId={edition.id} editionState={edition.state} itemCount={edition.items.length} initial={exports} />
       </section>
 
       {readOnly ? null : (
