@@ -72,8 +72,16 @@ export function compareWithRendition(slot: SlotKey, custom: { widthMm: number; d
     needed,
     available,
     enlargement,
-    warning: `This slot needs ${needed.width} x ${needed.height} px but the rendition has ${available.width} x ${available.height} px: the export would enlarge it by ${pct}% (x${enlargement.toFixed(2)}). Choose a smaller slot or a lower dpi.`,
+    warning: `This slot needs ${needed.width} x ${needed.height} px but the rendition has ${available.width} x ${available.height} px: it would have to be enlarged by ${pct}% (x${enlargement.toFixed(2)}). ${printedAs(slot, custom, available)} Choose a smaller slot or a lower dpi to print at full resolution.`,
   };
+}
+
+/** What the export does instead of enlarging: keeps the rendition's pixels, so a printed slot gets fewer dots per inch. */
+function printedAs(slot: SlotKey, custom: { widthMm: number; dpi: number } | null, available: PixelSize): string {
+  const spec = slot === "custom" ? custom : SLOT_SPECS[slot];
+  if (!spec?.widthMm) return `The export keeps ${available.width} px rather than enlarge.`;
+  const dpi = (available.width / spec.widthMm) * MM_PER_INCH;
+  return `The export keeps ${available.width} px rather than enlarge, so it prints ${spec.widthMm} mm wide at ${dpi.toFixed(1)} dpi.`;
 }
 
 /** The largest printed width (mm) the rendition fills at a dpi without enlarging. */

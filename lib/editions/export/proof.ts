@@ -4,7 +4,8 @@
 // rectangle, so its printed size can be read back (and is, by the tests). A
 // screen slot has no printed size: its image is drawn to fit the text width
 // and the page says so. Text is set in Inter, shipped with the app, so any
-// name prints (the standard PDF fonts cover Latin-1 only).
+// name prints (the standard PDF fonts cover Latin-1 only). Embedded whole:
+// fontkit's subsetting of this TTF drops most glyphs (seen here, pdf-lib 1.17.1).
 import { readFile } from "node:fs/promises";
 import { createRequire } from "node:module";
 import fontkit from "@pdf-lib/fontkit";
@@ -71,8 +72,8 @@ export function printedSizeMm(p: Pick<ProofPage, "widthPx" | "heightPx" | "width
 export async function buildProofPdf(edition: ProofEdition, pages: ProofPage[]): Promise<Buffer> {
   const doc = await PDFDocument.create();
   doc.registerFontkit(fontkit);
-  const regular = await doc.embedFont(await readFile(fontPath("400Regular")), { subset: true });
-  const bold = await doc.embedFont(await readFile(fontPath("600SemiBold")), { subset: true });
+  const regular = await doc.embedFont(await readFile(fontPath("400Regular")), { subset: false });
+  const bold = await doc.embedFont(await readFile(fontPath("600SemiBold")), { subset: false });
   const name = `${edition.title}${edition.issueLabel ? `, ${edition.issueLabel}` : ""}`;
   doc.setTitle(`Proof: ${name}`);
   doc.setAuthor(edition.societyName);

@@ -46,6 +46,8 @@ describe("print sizes", () => {
     expect(r.enlargement).toBeCloseTo(2126 / 1280, 6);
     expect(r.warning).toContain("66%");
     expect(r.warning).toContain("1280 x 960");
+    // The export keeps the pixels: 1280 / (180 / 25.4) = 180.6 dpi.
+    expect(r.warning).toContain("keeps 1280 px rather than enlarge, so it prints 180 mm wide at 180.6 dpi");
   });
 
   it("does not warn at exactly the rendition's width", () => {
