@@ -1,7 +1,9 @@
 // `node --import tsx db/seed/publish-demo.ts`: publishes the demo reductions as
-// plates once they have finished (scripts/start.sh runs it after the app is up).
+// plates once they have finished (scripts/start.sh runs it after the app is up),
+// then lays them out in the editor's draft edition.
 import { createDb } from "@/db/client";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
+import { seedDemoEdition } from "./demo-edition";
 import { publishDemoPlates } from "./demo-plates";
 
 const url = process.env.DATABASE_URL;
@@ -16,6 +18,7 @@ if (/\/crownlight_test(_lane\d)?$/.test(url)) {
 const { db, pool } = createDb(url, 2);
 try {
   await publishDemoPlates(db, (line) => console.log(`db/seed: ${line}`));
+  await seedDemoEdition(db, (line) => console.log(`db/seed: ${line}`));
 } finally {
   await closeWebJpegWriter();
   await pool.end();
