@@ -6,20 +6,13 @@ import { and, asc, desc, eq, gt, ilike, inArray, ne, or, sql, type SQL } from "d
 import type { Db, DbOrTx } from "@/db/client";
 import { editionItems, editions, plates, plateVersions, type EditionKind, type EditionSlot, type EditionState, type PlateState, type Rendition } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
-import { requirePermission, requireSignedIn, type Actor } from "@/lib/auth/actor";
+import { requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
+import { findEditionRow, isUuid, lockDraftEdition, lockItem, requireEditor, touch } from "./guards";
 import { addItemSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
-
-const EDITION = "That edition";
-const ITEM = "That plate in the edition";
-const isUuid = (id: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id);
-
-function requireEditor(actor: Actor | null, what: string): Actor {
-  return requirePermission(actor, "editions:use", what);
-}
 
 export interface OtherEditionDto {
   id: string;
@@ -153,35 +146,6 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
   };
 }
 
-async function findEditionRow(db: DbOrTx, editionId: string): Promise<Omit<EditionDto, "items" | "itemCount">> {
-  if (!isUuid(editionId)) throw notFound(EDITION);
-  const [row] = await db.select().from(editions).where(eq(editions.id, editionId)).limit(1);
-  if (!row) throw notFound(EDITION);
-  return {
-    id: row.id,
-    title: row.title,
-    kind: row.kind,
-    issueLabel: row.issueLabel,
-    embargoDate: row.embargoDate,
-    state: row.state,
-    createdAt: row.createdAt.toISOString(),
-    updatedAt: row.updatedAt.toISOString(),
-  };
-}
-
-/** Locks the edition for a change of its items and refuses one that was exported. */
-async function lockDraftEdition(tx: DbOrTx, editionId: string): Promise<{ title: string }> {
-  if (!isUuid(editionId)) throw notFound(EDITION);
-  const [row] = await tx.select({ title: editions.title, state: editions.state }).from(editions).where(eq(editions.id, editionId)).for("update");
-  if (!row) throw notFound(EDITION);
-  if (row.state !== "draft") throw new AppError("conflict", `"${row.title}" was exported; its plates are fixed.`);
-  return row;
-}
-
-async function touch(tx: DbOrTx, editionId: string): Promise<void> {
-  await tx.update(editions).set({ updatedAt: sql`now()` }).where(eq(editions.id, editionId));
-}
-
 /**
  * Adds a published plate at the end, pinned to its current version, in the
  * first rendition it published. A plate already in another edition is added
@@ -219,17 +183,6 @@ export async function addEditionItem(db: Db, actor: Actor | null, editionId: str
     await recordAudit(tx, { actorId: editor.userId, action: "edition.plate-added", subjectType: "edition", subjectId: editionId, detail: { plateId, version: plate.version, alsoIn: alsoIn.map((e) => e.id) } });
     return { itemId: item.id, alsoIn };
   });
-}
-
-async function lockItem(tx: DbOrTx, editionId: string, itemId: string): Promise<{ position: number; plateId: string; plateVersion: number }> {
-  if (!isUuid(itemId)) throw notFound(ITEM);
-  const [item] = await tx
-    .select({ position: editionItems.position, plateId: editionItems.plateId, plateVersion: editionItems.plateVersion })
-    .from(editionItems)
-    .where(and(eq(editionItems.id, itemId), eq(editionItems.editionId, editionId)))
-    .limit(1);
-  if (!item) throw notFound(ITEM);
-  return item;
 }
 
 /** Removes a plate; the ones after it move up so positions stay 1..n. */
