@@ -10,8 +10,8 @@ import { requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
-import { findEditionRow, isUuid, lockDraftEdition, lockItem, requireEditor, touch } from "./guards";
-import { addItemSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema } from "./input";
+import { findEditionRow, isUuid, lockDraftEdition, lockEdition, lockItem, requireEditor, touch, type LockedEdition } from "./guards";
+import { addItemSchema, editionNameSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema, type EditionNameInput } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
 
 export interface OtherEditionDto {
@@ -253,6 +253,49 @@ export async function updateEditionItem(db: Db, actor: Actor | null, editionId: 
       .where(eq(editionItems.id, itemId));
     await touch(tx, editionId);
     await recordAudit(tx, { actorId: editor.userId, action: "edition.plate-laid-out", subjectType: "edition", subjectId: editionId, detail: { plateId: item.plateId, slot: values.slot, rendition: values.rendition } });
+  });
+}
+
+/** Title, kind and issue label. Allowed in any state: it only names the edition. */
+export async function renameEdition(db: Db, actor: Actor | null, editionId: string, input: unknown): Promise<EditionNameInput & { changed: boolean }> {
+  const editor = requireEditor(actor, "building editions");
+  const to = parseInput(editionNameSchema, input);
+  return db.transaction(async (tx) => {
+    const row = await lockEdition(tx, editionId);
+    const from = { title: row.title, kind: row.kind, issueLabel: row.issueLabel };
+    const changed = from.title !== to.title || from.kind !== to.kind || from.issueLabel !== to.issueLabel;
+    if (!changed) return { ...to, changed };
+    await tx.update(editions).set({ ...to, updatedAt: sql`now()` }).where(eq(editions.id, editionId));
+    await recordAudit(tx, { actorId: editor.userId, action: "edition.renamed", subjectType: "edition", subjectId: editionId, detail: { from, to } });
+    return { ...to, changed };
+  });
+}
+
+/**
+ * Every reason an edition may not be deleted, in one place; deleteEdition
+ * calls it with the edition row locked. An exported edition stays as the
+ * record of what went to print.
+ */
+async function refuseDeletion(_tx: DbOrTx, _editionId: string, edition: LockedEdition): Promise<void> {
+  if (edition.state !== "draft") throw new AppError("conflict", `"${edition.title}" was exported; it stays as a record of what went to print and cannot be deleted.`);
+}
+
+/** Deletes a draft edition and its items (the plates themselves stay). */
+export async function deleteEdition(db: Db, actor: Actor | null, editionId: string): Promise<void> {
+  const editor = requireEditor(actor, "deleting editions");
+  await db.transaction(async (tx) => {
+    const edition = await lockEdition(tx, editionId);
+    await refuseDeletion(tx, editionId, edition);
+    const items = await tx.select({ plateId: editionItems.plateId, version: editionItems.plateVersion }).from(editionItems).where(eq(editionItems.editionId, editionId)).orderBy(asc(editionItems.position));
+    // edition_items go with it (on delete cascade).
+    await tx.delete(editions).where(eq(editions.id, editionId));
+    await recordAudit(tx, {
+      actorId: editor.userId,
+      action: "edition.deleted",
+      subjectType: "edition",
+      subjectId: editionId,
+      detail: { title: edition.title, kind: edition.kind, issueLabel: edition.issueLabel, plates: items },
+    });
   });
 }
 

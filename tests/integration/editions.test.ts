@@ -2,11 +2,12 @@
 // edition from published plates, positions stay 1..n through moves and
 // removals, a plate already in another edition is added with a warning, only
 // published plates go in, sizes are checked against the rendition, and only
-// editors and admins may build (members and curators get 403).
-import { eq } from "drizzle-orm";
+// editors and admins may build (members and curators get 403). Renaming works
+// in any state, deleting only for a draft.
+import { and, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { editionItems, plates, plateVersions, reductions, type PlateState } from "@/db/schema";
+import { auditLog, editionItems, editions, plates, plateVersions, reductions, type PlateState } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { addEditionItem, createEdition, findEdition, listEditionsOfPlate, listPickablePlates, moveEditionItem, removeEditionItem, setEditionEmbargo, updateEditionItem } from "@/lib/editions/editions";
@@ -19,6 +20,7 @@ const db = getDb();
 afterAll(closeDb);
 
 const tag = Date.now().toString(36);
+const NO_ID = "00000000-0000-4000-8000-000000000000";
 let editor: Actor;
 let admin: Actor;
 let curator: Actor;
@@ -209,5 +211,84 @@ describe("editions", () => {
     expect(html).toContain("Publication history");
     expect(html).toContain(`Kestrel Ridge Bulletin ${tag}`);
     expect(html).toMatch(/embargo until (<!-- -->)?2027-10-01/);
+  });
+});
+
+const auditActions = async (editionId: string) =>
+  (await db.select({ action: auditLog.action, detail: auditLog.detail }).from(auditLog).where(and(eq(auditLog.subjectType, "edition"), eq(auditLog.subjectId, editionId))).orderBy(auditLog.id));
+
+async function signedIn(role: "editor" | "admin" | "curator" | "member"): Promise<Client> {
+  const c = new Client();
+  await c.signIn(DEMO_PEOPLE.find((p) => (role === "member" ? p.roles.join() === "member" : p.roles.includes(role)))!.email, DEMO_PASSWORD);
+  return c;
+}
+
+describe("renaming and deleting", () => {
+  let ed: Client;
+  let mem: Client;
+  let versionPlates: string[] = [];
+
+  beforeAll(async () => {
+    ed = await signedIn("editor");
+    mem = await signedIn("member");
+    versionPlates = [await makePlate(21, "published"), await makePlate(22, "published"), await makePlate(23, "published")];
+  }, 60_000);
+
+  const start = async (title: string) => ((await ed.json("/api/editions", { title, kind: "newsletter", issueLabel: "No. 42" })).body as { id: string }).id;
+
+  it("renames over HTTP: the editor changes title, kind and issue label, in any state; a member is refused; a bad field is named", async () => {
+    const id = await start(`Renamed ${tag}`);
+    const res = await ed.json(`/api/editions/${id}/name`, { title: `  Kestrel Ridge Journal ${tag} `, kind: "journal", issueLabel: "Vol. 12, issue 3" }, "PATCH");
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual({ title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3", changed: true });
+    expect(await findEdition(db, editor, id)).toMatchObject({ title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" });
+    // The embargo PATCH still answers on its own path.
+    expect((await ed.json(`/api/editions/${id}`, { embargoDate: "2027-11-01" }, "PATCH")).status).toBe(200);
+
+    const bad = await ed.json(`/api/editions/${id}/name`, { title: "   ", kind: "magazine" }, "PATCH");
+    expect(bad.status).toBe(400);
+    const fields = (bad.body as { error: { fields: { field: string; message: string }[] } }).error.fields;
+    expect(fields.map((f) => f.field).sort()).toEqual(["kind", "title"]);
+    expect(fields.find((f) => f.field === "title")?.message).toMatch(/a title is required.*"   "/);
+    expect(fields.find((f) => f.field === "kind")?.message).toMatch(/newsletter or journal.*"magazine"/);
+
+    expect((await mem.json(`/api/editions/${id}/name`, { title: "Mine now", kind: "journal" }, "PATCH")).status).toBe(403);
+    expect((await new Client().json(`/api/editions/${id}/name`, { title: "Mine now", kind: "journal" }, "PATCH")).status).toBe(401);
+    expect((await ed.json(`/api/editions/${NO_ID}/name`, { title: "Nowhere", kind: "journal" }, "PATCH")).status).toBe(404);
+
+    // An exported edition can still be renamed: it is only its name.
+    await db.update(editions).set({ state: "exported" }).where(eq(editions.id, id));
+    const later = await ed.json(`/api/editions/${id}/name`, { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" }, "PATCH");
+    expect(later.status).toBe(200);
+    // The same name again changes nothing and writes no audit entry.
+    expect((await ed.json(`/api/editions/${id}/name`, { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" }, "PATCH")).body).toMatchObject({ changed: false });
+    const renames = (await auditActions(id)).filter((a) => a.action === "edition.renamed");
+    expect(renames.map((a) => a.detail)).toEqual([
+      { from: { title: `Renamed ${tag}`, kind: "newsletter", issueLabel: "No. 42" }, to: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" } },
+      { from: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" }, to: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" } },
+    ]);
+  });
+
+  it("deletes a draft edition with its items but not its plates, refuses an exported one, and audits it", async () => {
+    const id = await start(`To delete ${tag}`);
+    expect((await ed.json(`/api/editions/${id}/items`, { plateId: versionPlates[0] })).status).toBe(201);
+    expect((await mem.json(`/api/editions/${id}`, undefined, "DELETE")).status).toBe(403);
+    const gone = await ed.json(`/api/editions/${id}`, undefined, "DELETE");
+    expect(gone.status).toBe(200);
+    expect((await ed.json(`/api/editions/${id}`)).status).toBe(404);
+    expect(await db.$count(editionItems, eq(editionItems.editionId, id))).toBe(0);
+    expect(await db.$count(plates, eq(plates.id, versionPlates[0]))).toBe(1);
+    const [deleted] = (await auditActions(id)).filter((a) => a.action === "edition.deleted");
+    expect(deleted.detail).toMatchObject({ title: `To delete ${tag}`, plates: [{ plateId: versionPlates[0], version: 1 }] });
+    // A second delete finds nothing.
+    expect((await ed.json(`/api/editions/${id}`, undefined, "DELETE")).status).toBe(404);
+
+    const kept = await start(`Went to print ${tag}`);
+    await db.update(editions).set({ state: "exported" }).where(eq(editions.id, kept));
+    const refused = await ed.json(`/api/editions/${kept}`, undefined, "DELETE");
+    expect(refused.status).toBe(409);
+    expect((refused.body as { error: { message: string } }).error.message).toMatch(/was exported; it stays as a record of what went to print/);
+    expect((await findEdition(db, editor, kept)).id).toBe(kept);
+    expect((await auditActions(kept)).map((a) => a.action)).not.toContain("edition.deleted");
   });
 });
