@@ -36,7 +36,10 @@ export interface EditionItemDto {
   id: string;
   position: number;
   plate: { id: string; title: string; slug: string; state: PlateState; caption: string; observer: string };
+  /** The pinned plate version. */
   version: number;
+  /** The plate's newest version; above `version` when a newer one was made after this plate was chosen. */
+  currentVersion: number;
   slot: EditionSlot;
   slotLabel: string;
   customWidthMm: number | null;
@@ -111,6 +114,7 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
       id: editionItems.id,
       position: editionItems.position,
       version: editionItems.plateVersion,
+      currentVersion: plates.currentVersion,
       slot: editionItems.slot,
       customWidthMm: editionItems.customWidthMm,
       customDpi: editionItems.customDpi,

@@ -211,6 +211,7 @@ const API_CASES: Case[] = [
   { route: `${ED}/[id]/items/[itemId]`, method: "PATCH", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, body: { slot: "web", rendition: "natural" }, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]`, method: "DELETE", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]/move`, method: "POST", path: () => `${ED}/${NO_ID}/items/${NO_ID}/move`, body: { direction: "up" }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items/[itemId]/newest-version`, method: "POST", path: () => `${ED}/${NO_ID}/items/${NO_ID}/newest-version`, expect: editorsOnly(404) },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];
