@@ -66,7 +66,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
           </TableHead>
           <TableBody>
             {edition.items.length === 0 ? <TableEmptyRow colSpan={5}>No plates yet. Add published plates from the list below.</TableEmptyRow> : null}
-            {edition.items.map((item, i) => (
+            {edition.items.map((item) => (
               <TableRow key={item.id}>
                 <TableCell>{item.position}</TableCell>
                 <TableCell>
@@ -120,7 +120,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
                     <p className="mt-2 text-sm">Large enough: no enlargement.</p>
                   ) : null}
                 </TableCell>
-                <TableCell>{readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} isFirst={i === 0} isLast={i === edition.items.length - 1} />}</TableCell>
+                <TableCell>{readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} position={item.position} count={edition.items.length} />}</TableCell>
               </TableRow>
             ))}
           </TableBody>
