@@ -1,20 +1,67 @@
 "use client";
 // Move a plate up or down in the edition, or take it out. Positions stay 1..n on the server.
+// After a move the refreshed page puts the row in its new place: the focus goes back to
+// the button that was pressed (or its sibling, when that one is now disabled at either
+// end), and the new position is announced politely through the page's live region.
 import { useRouter } from "next/navigation";
-import { useState } from "react";
+import { useCallback, useEffect, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
+import { useToast } from "@/components/ui/use-toast";
 import { callApi } from "@/components/forms/call-api";
+import { focusAfterMove, type OrderDirection } from "@/components/editions/order-focus";
 
-export function ItemOrderButtons({ editionId, itemId, plateTitle, isFirst, isLast }: { editionId: string; itemId: string; plateTitle: string; isFirst: boolean; isLast: boolean }) {
+export interface ItemOrderButtonsProps {
+  editionId: string;
+  itemId: string;
+  plateTitle: string;
+  /** 1..count, as the page last rendered it. */
+  position: number;
+  count: number;
+}
+
+export function ItemOrderButtons({ editionId, itemId, plateTitle, position, count }: ItemOrderButtonsProps) {
   const router = useRouter();
-  const [pending, setPending] = useState<string | null>(null);
+  const toast = useToast();
+  const [pending, setPending] = useState<OrderDirection | "remove" | null>(null);
   const [message, setMessage] = useState<string | null>(null);
+  const up = useRef<HTMLButtonElement>(null);
+  const down = useRef<HTMLButtonElement>(null);
+  // The move waiting for the refreshed page: which button was pressed, and where the server put the plate.
+  const moved = useRef<{ pressed: OrderDirection; position: number } | null>(null);
   const base = `/api/editions/${editionId}/items/${itemId}`;
+  const isFirst = position === 1;
+  const isLast = position === count;
 
-  async function run(what: "up" | "down" | "remove") {
-    setPending(what);
+  const settle = useCallback(() => {
+    const done = moved.current;
+    if (!done || done.position !== position) return;
+    // Done with this move before anything else: a later refresh must not take the focus again.
+    moved.current = null;
+    const target = focusAfterMove(done.pressed, position, count);
+    if (target) (target === "up" ? up : down).current?.focus();
+    toast.notify(`“${plateTitle}” is now number ${position} of ${count}.`);
+  }, [position, count, plateTitle, toast]);
+
+  // Runs when the refreshed page hands this row its new position, and once the pressed
+  // button is enabled again (a move that changed nothing brings no new position).
+  useEffect(() => {
+    if (pending === null) settle();
+  }, [pending, settle]);
+
+  async function move(direction: OrderDirection) {
+    setPending(direction);
     setMessage(null);
-    const res = what === "remove" ? await callApi("DELETE", base) : await callApi("POST", `${base}/move`, { direction: what });
+    const res = await callApi<{ position: number }>("POST", `${base}/move`, { direction });
+    setPending(null);
+    if (!res.ok) return setMessage(res.problem.message);
+    moved.current = { pressed: direction, position: res.data.position };
+    router.refresh();
+  }
+
+  async function remove() {
+    setPending("remove");
+    setMessage(null);
+    const res = await callApi("DELETE", base);
     setPending(null);
     if (!res.ok) return setMessage(res.problem.message);
     router.refresh();
@@ -22,13 +69,13 @@ export function ItemOrderButtons({ editionId, itemId, plateTitle, isFirst, isLas
 
   return (
     <div className="flex flex-col gap-2">
-      <Button size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => run("up")} aria-label={`Up: move “${plateTitle}” earlier`}>
+      <Button ref={up} size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => move("up")} aria-label={`Up: move “${plateTitle}” earlier`}>
         ↑ Up
       </Button>
-      <Button size="sm" disabled={isLast} pending={pending === "down"} onClick={() => run("down")} aria-label={`Down: move “${plateTitle}” later`}>
+      <Button ref={down} size="sm" disabled={isLast} pending={pending === "down"} onClick={() => move("down")} aria-label={`Down: move “${plateTitle}” later`}>
         ↓ Down
       </Button>
-      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={() => run("remove")} aria-label={`Take out “${plateTitle}”`}>
+      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={remove} aria-label={`Take out “${plateTitle}”`}>
         Take out
       </Button>
       {message ? (

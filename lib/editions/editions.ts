@@ -6,20 +6,13 @@ import { and, asc, desc, eq, gt, ilike, inArray, ne, or, sql, type SQL } from "d
 import type { Db, DbOrTx } from "@/db/client";
 import { editionItems, editions, plates, plateVersions, type EditionKind, type EditionSlot, type EditionState, type PlateState, type Rendition } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
-import { requirePermission, requireSignedIn, type Actor } from "@/lib/auth/actor";
+import { requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
-import { addItemSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema } from "./input";
+import { findEditionRow, isUuid, lockDraftEdition, lockEdition, lockItem, requireEditor, touch, type LockedEdition } from "./guards";
+import { addItemSchema, editionNameSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema, type EditionNameInput } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
-
-const EDITION = "That edition";
-const ITEM = "That plate in the edition";
-const isUuid = (id: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id);
-
-function requireEditor(actor: Actor | null, what: string): Actor {
-  return requirePermission(actor, "editions:use", what);
-}
 
 export interface OtherEditionDto {
   id: string;
@@ -43,7 +36,10 @@ export interface EditionItemDto {
   id: string;
   position: number;
   plate: { id: string; title: string; slug: string; state: PlateState; caption: string; observer: string };
+  /** The pinned plate version. */
   version: number;
+  /** The plate's newest version; above `version` when a newer one was made after this plate was chosen. */
+  currentVersion: number;
   slot: EditionSlot;
   slotLabel: string;
   customWidthMm: number | null;
@@ -118,6 +114,7 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
       id: editionItems.id,
       position: editionItems.position,
       version: editionItems.plateVersion,
+      currentVersion: plates.currentVersion,
       slot: editionItems.slot,
       customWidthMm: editionItems.customWidthMm,
       customDpi: editionItems.customDpi,
@@ -151,35 +148,6 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
       };
     }),
   };
-}
-
-async function findEditionRow(db: DbOrTx, editionId: string): Promise<Omit<EditionDto, "items" | "itemCount">> {
-  if (!isUuid(editionId)) throw notFound(EDITION);
-  const [row] = await db.select().from(editions).where(eq(editions.id, editionId)).limit(1);
-  if (!row) throw notFound(EDITION);
-  return {
-    id: row.id,
-    title: row.title,
-    kind: row.kind,
-    issueLabel: row.issueLabel,
-    embargoDate: row.embargoDate,
-    state: row.state,
-    createdAt: row.createdAt.toISOString(),
-    updatedAt: row.updatedAt.toISOString(),
-  };
-}
-
-/** Locks the edition for a change of its items and refuses one that was exported. */
-async function lockDraftEdition(tx: DbOrTx, editionId: string): Promise<{ title: string }> {
-  if (!isUuid(editionId)) throw notFound(EDITION);
-  const [row] = await tx.select({ title: editions.title, state: editions.state }).from(editions).where(eq(editions.id, editionId)).for("update");
-  if (!row) throw notFound(EDITION);
-  if (row.state !== "draft") throw new AppError("conflict", `"${row.title}" was exported; its plates are fixed.`);
-  return row;
-}
-
-async function touch(tx: DbOrTx, editionId: string): Promise<void> {
-  await tx.update(editions).set({ updatedAt: sql`now()` }).where(eq(editions.id, editionId));
 }
 
 /**
@@ -219,17 +187,6 @@ export async function addEditionItem(db: Db, actor: Actor | null, editionId: str
     await recordAudit(tx, { actorId: editor.userId, action: "edition.plate-added", subjectType: "edition", subjectId: editionId, detail: { plateId, version: plate.version, alsoIn: alsoIn.map((e) => e.id) } });
     return { itemId: item.id, alsoIn };
   });
-}
-
-async function lockItem(tx: DbOrTx, editionId: string, itemId: string): Promise<{ position: number; plateId: string; plateVersion: number }> {
-  if (!isUuid(itemId)) throw notFound(ITEM);
-  const [item] = await tx
-    .select({ position: editionItems.position, plateId: editionItems.plateId, plateVersion: editionItems.plateVersion })
-    .from(editionItems)
-    .where(and(eq(editionItems.id, itemId), eq(editionItems.editionId, editionId)))
-    .limit(1);
-  if (!item) throw notFound(ITEM);
-  return item;
 }
 
 /** Removes a plate; the ones after it move up so positions stay 1..n. */
@@ -300,6 +257,49 @@ export async function updateEditionItem(db: Db, actor: Actor | null, editionId: 
       .where(eq(editionItems.id, itemId));
     await touch(tx, editionId);
     await recordAudit(tx, { actorId: editor.userId, action: "edition.plate-laid-out", subjectType: "edition", subjectId: editionId, detail: { plateId: item.plateId, slot: values.slot, rendition: values.rendition } });
+  });
+}
+
+/** Title, kind and issue label. Allowed in any state: it only names the edition. */
+export async function renameEdition(db: Db, actor: Actor | null, editionId: string, input: unknown): Promise<EditionNameInput & { changed: boolean }> {
+  const editor = requireEditor(actor, "building editions");
+  const to = parseInput(editionNameSchema, input);
+  return db.transaction(async (tx) => {
+    const row = await lockEdition(tx, editionId);
+    const from = { title: row.title, kind: row.kind, issueLabel: row.issueLabel };
+    const changed = from.title !== to.title || from.kind !== to.kind || from.issueLabel !== to.issueLabel;
+    if (!changed) return { ...to, changed };
+    await tx.update(editions).set({ ...to, updatedAt: sql`now()` }).where(eq(editions.id, editionId));
+    await recordAudit(tx, { actorId: editor.userId, action: "edition.renamed", subjectType: "edition", subjectId: editionId, detail: { from, to } });
+    return { ...to, changed };
+  });
+}
+
+/**
+ * Every reason an edition may not be deleted, in one place; deleteEdition
+ * calls it with the edition row locked. An exported edition stays as the
+ * record of what went to print.
+ */
+async function refuseDeletion(_tx: DbOrTx, _editionId: string, edition: LockedEdition): Promise<void> {
+  if (edition.state !== "draft") throw new AppError("conflict", `"${edition.title}" was exported; it stays as a record of what went to print and cannot be deleted.`);
+}
+
+/** Deletes a draft edition and its items (the plates themselves stay). */
+export async function deleteEdition(db: Db, actor: Actor | null, editionId: string): Promise<void> {
+  const editor = requireEditor(actor, "deleting editions");
+  await db.transaction(async (tx) => {
+    const edition = await lockEdition(tx, editionId);
+    await refuseDeletion(tx, editionId, edition);
+    const items = await tx.select({ plateId: editionItems.plateId, version: editionItems.plateVersion }).from(editionItems).where(eq(editionItems.editionId, editionId)).orderBy(asc(editionItems.position));
+    // edition_items go with it (on delete cascade).
+    await tx.delete(editions).where(eq(editions.id, editionId));
+    await recordAudit(tx, {
+      actorId: editor.userId,
+      action: "edition.deleted",
+      subjectType: "edition",
+      subjectId: editionId,
+      detail: { title: edition.title, kind: edition.kind, issueLabel: edition.issueLabel, plates: items },
+    });
   });
 }
 

@@ -17,12 +17,14 @@ const embargoDate = z.preprocess((v) => (v === null || v === undefined ? "" : v)
 
 export const embargoSchema = z.object({ embargoDate });
 
-export const newEditionSchema = z.object({
-  title: z.string({ error: "expected a title" }).trim().min(1, { error: "a title is required" }).max(200, { error: "at most 200 characters" }),
-  kind: z.enum(EDITION_KINDS, { error: "expected newsletter or journal" }),
-  issueLabel: z.string().trim().max(80, { error: "at most 80 characters" }).default(""),
-  embargoDate,
-});
+const title = z.string({ error: "expected a title" }).trim().min(1, { error: "a title is required" }).max(200, { error: "at most 200 characters" });
+const kind = z.enum(EDITION_KINDS, { error: "expected newsletter or journal" });
+const issueLabel = z.string({ error: "expected an issue label, or nothing" }).trim().max(80, { error: "at most 80 characters" }).default("");
+
+export const newEditionSchema = z.object({ title, kind, issueLabel, embargoDate });
+
+/** Title, kind and issue label: only what the edition is called, so it may change in any state. */
+export const editionNameSchema = z.object({ title, kind, issueLabel });
 
 export const addItemSchema = z.object({
   plateId: z.uuid({ error: "expected a plate id" }),
@@ -51,5 +53,6 @@ export const updateItemSchema = z
 
 export const moveItemSchema = z.object({ direction: z.enum(["up", "down"], { error: "expected up or down" }) });
 
+export type EditionNameInput = z.infer<typeof editionNameSchema>;
 export type NewEditionInput = z.infer<typeof newEditionSchema>;
 export type UpdateItemInput = z.infer<typeof updateItemSchema>;

@@ -2,11 +2,13 @@
 // edition from published plates, positions stay 1..n through moves and
 // removals, a plate already in another edition is added with a warning, only
 // published plates go in, sizes are checked against the rendition, and only
-// editors and admins may build (members and curators get 403).
-import { eq } from "drizzle-orm";
+// editors and admins may build (members and curators get 403). Renaming works
+// in any state, deleting only for a draft, and an item moves to its plate's
+// newer version only while the edition is a draft.
+import { and, desc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { editionItems, plates, plateVersions, reductions, type PlateState } from "@/db/schema";
+import { auditLog, editionItems, editions, plates, plateVersions, reductions, type PlateState, type Rendition } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { addEditionItem, createEdition, findEdition, listEditionsOfPlate, listPickablePlates, moveEditionItem, removeEditionItem, setEditionEmbargo, updateEditionItem } from "@/lib/editions/editions";
@@ -19,6 +21,7 @@ const db = getDb();
 afterAll(closeDb);
 
 const tag = Date.now().toString(36);
+const NO_ID = "00000000-0000-4000-8000-000000000000";
 let editor: Actor;
 let admin: Actor;
 let curator: Actor;
@@ -209,5 +212,159 @@ describe("editions", () => {
     expect(html).toContain("Publication history");
     expect(html).toContain(`Kestrel Ridge Bulletin ${tag}`);
     expect(html).toMatch(/embargo until (<!-- -->)?2027-10-01/);
+  });
+});
+
+/** A newer version of a plate, made the current one, publishing only the given renditions. */
+async function addVersion(plateId: string, renditions: Rendition[]): Promise<number> {
+  const [last] = await db.select({ version: plateVersions.version, reductionId: plateVersions.reductionId, facts: plateVersions.facts }).from(plateVersions).where(eq(plateVersions.plateId, plateId)).orderBy(desc(plateVersions.version)).limit(1);
+  const [{ current }] = await db.select({ current: plates.currentVersion }).from(plates).where(eq(plates.id, plateId));
+  const version = current + 1;
+  await db.insert(plateVersions).values({
+    plateId,
+    version,
+    reductionId: last.reductionId,
+    renditions,
+    imageSizes: Object.fromEntries(renditions.map((r) => [r, { width: 2400, height: 1800 }])),
+    geometry: {},
+    facts: last.facts,
+  });
+  await db.update(plates).set({ currentVersion: version }).where(eq(plates.id, plateId));
+  return version;
+}
+
+const auditActions = async (editionId: string) =>
+  (await db.select({ action: auditLog.action, detail: auditLog.detail }).from(auditLog).where(and(eq(auditLog.subjectType, "edition"), eq(auditLog.subjectId, editionId))).orderBy(auditLog.id));
+
+async function signedIn(role: "editor" | "admin" | "curator" | "member"): Promise<Client> {
+  const c = new Client();
+  await c.signIn(DEMO_PEOPLE.find((p) => (role === "member" ? p.roles.join() === "member" : p.roles.includes(role)))!.email, DEMO_PASSWORD);
+  return c;
+}
+
+describe("renaming, deleting and newer plate versions", () => {
+  let ed: Client;
+  let mem: Client;
+  let versionPlates: string[] = [];
+
+  beforeAll(async () => {
+    ed = await signedIn("editor");
+    mem = await signedIn("member");
+    versionPlates = [await makePlate(21, "published"), await makePlate(22, "published"), await makePlate(23, "published")];
+  }, 60_000);
+
+  const start = async (title: string) => ((await ed.json("/api/editions", { title, kind: "newsletter", issueLabel: "No. 42" })).body as { id: string }).id;
+
+  it("renames over HTTP: the editor changes title, kind and issue label, in any state; a member is refused; a bad field is named", async () => {
+    const id = await start(`Renamed ${tag}`);
+    const res = await ed.json(`/api/editions/${id}/name`, { title: `  Kestrel Ridge Journal ${tag} `, kind: "journal", issueLabel: "Vol. 12, issue 3" }, "PATCH");
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual({ title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3", changed: true });
+    expect(await findEdition(db, editor, id)).toMatchObject({ title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" });
+    // The embargo PATCH still answers on its own path.
+    expect((await ed.json(`/api/editions/${id}`, { embargoDate: "2027-11-01" }, "PATCH")).status).toBe(200);
+
+    const bad = await ed.json(`/api/editions/${id}/name`, { title: "   ", kind: "magazine" }, "PATCH");
+    expect(bad.status).toBe(400);
+    const fields = (bad.body as { error: { fields: { field: string; message: string }[] } }).error.fields;
+    expect(fields.map((f) => f.field).sort()).toEqual(["kind", "title"]);
+    expect(fields.find((f) => f.field === "title")?.message).toMatch(/a title is required.*"   "/);
+    expect(fields.find((f) => f.field === "kind")?.message).toMatch(/newsletter or journal.*"magazine"/);
+
+    expect((await mem.json(`/api/editions/${id}/name`, { title: "Mine now", kind: "journal" }, "PATCH")).status).toBe(403);
+    expect((await new Client().json(`/api/editions/${id}/name`, { title: "Mine now", kind: "journal" }, "PATCH")).status).toBe(401);
+    expect((await ed.json(`/api/editions/${NO_ID}/name`, { title: "Nowhere", kind: "journal" }, "PATCH")).status).toBe(404);
+
+    // An exported edition can still be renamed: it is only its name.
+    await db.update(editions).set({ state: "exported" }).where(eq(editions.id, id));
+    const later = await ed.json(`/api/editions/${id}/name`, { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" }, "PATCH");
+    expect(later.status).toBe(200);
+    // The same name again changes nothing and writes no audit entry.
+    expect((await ed.json(`/api/editions/${id}/name`, { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" }, "PATCH")).body).toMatchObject({ changed: false });
+    const renames = (await auditActions(id)).filter((a) => a.action === "edition.renamed");
+    expect(renames.map((a) => a.detail)).toEqual([
+      { from: { title: `Renamed ${tag}`, kind: "newsletter", issueLabel: "No. 42" }, to: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" } },
+      { from: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, issue 3" }, to: { title: `Kestrel Ridge Journal ${tag}`, kind: "journal", issueLabel: "Vol. 12, no. 3" } },
+    ]);
+  });
+
+  it("deletes a draft edition with its items but not its plates, refuses an exported one, and audits it", async () => {
+    const id = await start(`To delete ${tag}`);
+    expect((await ed.json(`/api/editions/${id}/items`, { plateId: versionPlates[0] })).status).toBe(201);
+    expect((await mem.json(`/api/editions/${id}`, undefined, "DELETE")).status).toBe(403);
+    const gone = await ed.json(`/api/editions/${id}`, undefined, "DELETE");
+    expect(gone.status).toBe(200);
+    expect((await ed.json(`/api/editions/${id}`)).status).toBe(404);
+    expect(await db.$count(editionItems, eq(editionItems.editionId, id))).toBe(0);
+    expect(await db.$count(plates, eq(plates.id, versionPlates[0]))).toBe(1);
+    const [deleted] = (await auditActions(id)).filter((a) => a.action === "edition.deleted");
+    expect(deleted.detail).toMatchObject({ title: `To delete ${tag}`, plates: [{ plateId: versionPlates[0], version: 1 }] });
+    // A second delete finds nothing.
+    expect((await ed.json(`/api/editions/${id}`, undefined, "DELETE")).status).toBe(404);
+
+    const kept = await start(`Went to print ${tag}`);
+    await db.update(editions).set({ state: "exported" }).where(eq(editions.id, kept));
+    const refused = await ed.json(`/api/editions/${kept}`, undefined, "DELETE");
+    expect(refused.status).toBe(409);
+    expect((refused.body as { error: { message: string } }).error.message).toMatch(/was exported; it stays as a record of what went to print/);
+    expect((await findEdition(db, editor, kept)).id).toBe(kept);
+    expect((await auditActions(kept)).map((a) => a.action)).not.toContain("edition.deleted");
+  });
+
+  it("moves an item from its pinned version to the plate's current one, keeping or replacing the rendition, only while a draft", async () => {
+    const id = await start(`Versions ${tag}`);
+    const [keepsPlate, losesPlate, withdrawnPlate] = versionPlates;
+    for (const plateId of versionPlates) expect((await ed.json(`/api/editions/${id}/items`, { plateId })).status).toBe(201);
+    let items = (await findEdition(db, editor, id)).items;
+    const itemOf = (plateId: string) => items.find((i) => i.plate.id === plateId)!;
+    // Lay the second one out in the structure rendition, which its next version will not publish.
+    await updateEditionItem(db, editor, id, itemOf(losesPlate).id, { slot: "web", rendition: "structure" });
+    expect(itemOf(keepsPlate)).toMatchObject({ version: 1, currentVersion: 1 });
+    // Nothing newer yet: refused with the reason.
+    const same = await ed.json(`/api/editions/${id}/items/${itemOf(keepsPlate).id}/newest-version`, {});
+    expect(same.status).toBe(409);
+    expect((same.body as { error: { message: string } }).error.message).toMatch(/already uses version 1/);
+
+    await addVersion(keepsPlate, ["natural", "structure"]);
+    await addVersion(losesPlate, ["natural"]);
+    await addVersion(withdrawnPlate, ["natural"]);
+    await db.update(plates).set({ state: "withdrawn" }).where(eq(plates.id, withdrawnPlate));
+    items = (await findEdition(db, editor, id)).items;
+    // The pinned version stays until the editor moves it; the newer one is offered.
+    expect(itemOf(keepsPlate)).toMatchObject({ version: 1, currentVersion: 2, rendition: "natural" });
+
+    expect((await mem.json(`/api/editions/${id}/items/${itemOf(keepsPlate).id}/newest-version`, {})).status).toBe(403);
+    const kept = await ed.json(`/api/editions/${id}/items/${itemOf(keepsPlate).id}/newest-version`, {});
+    expect(kept.status).toBe(200);
+    expect(kept.body).toEqual({ fromVersion: 1, version: 2, rendition: "natural", renditionNote: null });
+    const moved = await ed.json(`/api/editions/${id}/items/${itemOf(losesPlate).id}/newest-version`, {});
+    expect(moved.status).toBe(200);
+    expect(moved.body).toMatchObject({ fromVersion: 1, version: 2, rendition: "natural" });
+    expect((moved.body as { renditionNote: string }).renditionNote).toMatch(/no structure rendition.*natural rendition is used instead/);
+    const withdrawn = await ed.json(`/api/editions/${id}/items/${itemOf(withdrawnPlate).id}/newest-version`, {});
+    expect(withdrawn.status).toBe(409);
+    expect((withdrawn.body as { error: { message: string } }).error.message).toMatch(/is withdrawn/);
+
+    items = (await findEdition(db, editor, id)).items;
+    expect(items.map((i) => [i.plate.id, i.version, i.rendition, i.position])).toEqual([
+      [keepsPlate, 2, "natural", 1],
+      [losesPlate, 2, "natural", 2],
+      [withdrawnPlate, 1, "natural", 3],
+    ]);
+    // The new version's size is what the check reads now.
+    expect(itemOf(losesPlate).available).toEqual({ width: 2400, height: 1800 });
+    const changes = (await auditActions(id)).filter((a) => a.action === "edition.plate-version-changed").map((a) => a.detail);
+    expect(changes).toEqual([
+      { plateId: keepsPlate, fromVersion: 1, version: 2, rendition: "natural", fromRendition: "natural" },
+      { plateId: losesPlate, fromVersion: 1, version: 2, rendition: "natural", fromRendition: "structure" },
+    ]);
+
+    // Exported: the plates are fixed, a newer version included.
+    await addVersion(keepsPlate, ["natural"]);
+    await db.update(editions).set({ state: "exported" }).where(eq(editions.id, id));
+    const late = await ed.json(`/api/editions/${id}/items/${itemOf(keepsPlate).id}/newest-version`, {});
+    expect(late.status).toBe(409);
+    expect((late.body as { error: { message: string } }).error.message).toMatch(/was exported/);
+    expect((await findEdition(db, editor, id)).items.find((i) => i.plate.id === keepsPlate)).toMatchObject({ version: 2, currentVersion: 3 });
   });
 });

@@ -205,6 +205,8 @@ const API_CASES: Case[] = [
   { route: ED, method: "POST", path: () => ED, body: { title: "", kind: "newsletter" }, expect: editorsOnly(400) },
   { route: `${ED}/[id]`, method: "GET", path: () => `${ED}/${NO_ID}`, expect: editorsOnly(404) },
   { route: `${ED}/[id]`, method: "PATCH", path: () => `${ED}/${NO_ID}`, body: { embargoDate: null }, expect: editorsOnly(404) },
+  { route: `${ED}/[id]`, method: "DELETE", path: () => `${ED}/${NO_ID}`, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/name`, method: "PATCH", path: () => `${ED}/${NO_ID}/name`, body: { title: "Matrix check", kind: "journal" }, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items`, method: "POST", path: () => `${ED}/${NO_ID}/items`, body: { plateId: NO_ID }, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]`, method: "PATCH", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, body: { slot: "web", rendition: "natural" }, expect: editorsOnly(404) },
   { route: `${ED}/[id]/items/[itemId]`, method: "DELETE", path: () => `${ED}/${NO_ID}/items/${NO_ID}`, expect: editorsOnly(404) },
@@ -214,6 +216,7 @@ const API_CASES: Case[] = [
   { route: `${ED}/[id]/exports/[exportId]`, method: "GET", path: () => `${ED}/${NO_ID}/exports/${NO_ID}`, expect: editorsOnly(404) },
   { route: `${ED}/[id]/exports/[exportId]/download`, method: "GET", path: () => `${ED}/${NO_ID}/exports/${NO_ID}/download`, expect: editorsOnly(404) },
   { route: `${ED}/[id]/reopen`, method: "POST", path: () => `${ED}/${NO_ID}/reopen`, body: {}, expect: editorsOnly(404) },
+  { route: `${ED}/[id]/items/[itemId]/newest-version`, method: "POST", path: () => `${ED}/${NO_ID}/items/${NO_ID}/newest-version`, expect: editorsOnly(404) },
   // Last: it aborts the upload the cases above use.
   { route: `${SET}/[id]/uploads/[uploadId]`, method: "DELETE", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}`, expect: ownSetWrite(200) },
 ];

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { embargoSchema, newEditionSchema, updateItemSchema } from "@/lib/editions/input";
+import { editionNameSchema, embargoSchema, newEditionSchema, updateItemSchema } from "@/lib/editions/input";
 import { parseInput } from "@/lib/validation";
 
 const fieldsOf = (fn: () => unknown) => {
@@ -28,5 +28,15 @@ describe("edition input", () => {
     const fields = fieldsOf(() => parseInput(updateItemSchema, { slot: "custom", customWidthMm: "", customDpi: "2400", rendition: "natural" }));
     expect(fields.map((f) => f.field).sort()).toEqual(["customDpi", "customWidthMm"]);
     expect(fieldsOf(() => parseInput(updateItemSchema, { slot: "poster", rendition: "natural" }))[0].field).toBe("slot");
+  });
+
+  it("renames with a trimmed title, a kind and an optional issue label, and names each bad field", () => {
+    expect(parseInput(editionNameSchema, { title: " Bulletin ", kind: "journal" })).toEqual({ title: "Bulletin", kind: "journal", issueLabel: "" });
+    const fields = fieldsOf(() => parseInput(editionNameSchema, { title: "", kind: "gazette", issueLabel: "x".repeat(81) }));
+    expect(Object.fromEntries(fields.map((f) => [f.field, f.message]))).toEqual({
+      title: 'a title is required (received "")',
+      kind: 'expected newsletter or journal (received "gazette")',
+      issueLabel: "at most 80 characters (received a text of 81 characters)",
+    });
   });
 });

@@ -3,10 +3,13 @@ import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
 import { AddPlateButton } from "@/components/editions/add-plate-button";
+import { DeleteEditionButton } from "@/components/editions/delete-edition-button";
+import { EditionNameForm } from "@/components/editions/edition-name-form";
 import { EmbargoForm } from "@/components/editions/embargo-form";
 import { ExportPanel } from "@/components/editions/export-panel";
 import { ItemLayoutForm } from "@/components/editions/item-layout-form";
 import { ItemOrderButtons } from "@/components/editions/item-order-buttons";
+import { NewestVersionButton } from "@/components/editions/newest-version-button";
 import { PageTitle } from "@/components/page-title";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
@@ -46,6 +49,13 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
         <Badge tone={edition.state === "exported" ? "ok" : "neutral"}>{edition.state}</Badge>
       </PageTitle>
 
+      <section aria-labelledby="name-h" className="mb-10">
+        <h2 id="name-h" className="mb-4 text-xl font-semibold">
+          Title and issue
+        </h2>
+        <EditionNameForm editionId={edition.id} title={edition.title} kind={edition.kind} issueLabel={edition.issueLabel} />
+      </section>
+
       <section aria-labelledby="embargo-h" className="mb-10">
         <h2 id="embargo-h" className="mb-4 text-xl font-semibold">
           Embargo
@@ -69,7 +79,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
           </TableHead>
           <TableBody>
             {edition.items.length === 0 ? <TableEmptyRow colSpan={5}>No plates yet. Add published plates from the list below.</TableEmptyRow> : null}
-            {edition.items.map((item, i) => (
+            {edition.items.map((item) => (
               <TableRow key={item.id}>
                 <TableCell>{item.position}</TableCell>
                 <TableCell>
@@ -79,6 +89,9 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
                   <p className="text-sm text-ink-muted">
                     Version {item.version}, by {item.plate.observer}
                   </p>
+                  {readOnly || item.plate.state !== "published" ? null : (
+                    <NewestVersionButton editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} version={item.version} currentVersion={item.currentVersion} />
+                  )}
                   {item.plate.state !== "published" ? (
                     <p role="note" className="mt-1 text-sm font-medium text-danger">
                       This plate is now {item.plate.state}.
@@ -92,6 +105,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
                 </TableCell>
                 <TableCell>
                   <ItemLayoutForm
+                    key={`${item.id}-v${item.version}`}
                     editionId={edition.id}
                     itemId={item.id}
                     plateTitle={item.plate.title}
@@ -123,7 +137,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
                     <p className="mt-2 text-sm">Large enough: no enlargement.</p>
                   ) : null}
                 </TableCell>
-                <TableCell>{readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} isFirst={i === 0} isLast={i === edition.items.length - 1} />}</TableCell>
+                <TableCell>{readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} position={item.position} count={edition.items.length} />}</TableCell>
               </TableRow>
             ))}
           </TableBody>
@@ -174,6 +188,17 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
           </Table>
         </section>
       )}
+
+      <section aria-labelledby="delete-h" className="mt-10">
+        <h2 id="delete-h" className="mb-4 text-xl font-semibold">
+          Delete the edition
+        </h2>
+        {readOnly ? (
+          <p className="text-sm">This edition was exported: it stays as a record of what went to print and cannot be deleted.</p>
+        ) : (
+          <DeleteEditionButton editionId={edition.id} title={edition.title} itemCount={edition.items.length} />
+        )}
+      </section>
     </>
   );
 }

@@ -1,5 +1,5 @@
 import { getDb } from "@/db/client";
-import { findEdition, setEditionEmbargo } from "@/lib/editions/editions";
+import { deleteEdition, findEdition, setEditionEmbargo } from "@/lib/editions/editions";
 import { embargoSchema } from "@/lib/editions/input";
 import { permission, route } from "@/lib/http/route";
 
@@ -9,3 +9,9 @@ export const GET = route({ access: permission("editions:use") }, async ({ actor,
 
 /** Sets or clears the embargo date. */
 export const PATCH = route({ access: permission("editions:use"), body: embargoSchema }, async ({ actor, params, body }) => setEditionEmbargo(getDb(), actor, params.id, body));
+
+/** Deletes a draft edition; an exported one is refused (409). */
+export const DELETE = route({ access: permission("editions:use") }, async ({ actor, params }) => {
+  await deleteEdition(getDb(), actor, params.id);
+  return { ok: true };
+});

@@ -66,7 +66,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
           {set.state === "approved" ? <li><a href="#plate-h">Plate</a></li> : null}
           <li><a href="#compare-h">Compare</a></li>
           <li><a href="#reductions-h">Reductions</a></li>
-          <li><a href="#frames-h">Frames</a></li>
+          <li><a href="#frames-h">Bracket and frames</a></li>
           <li><a href="#history-h">History and notes</a></li>
         </ul>
       </nav>
@@ -122,7 +122,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
         </section>
 
         <section aria-labelledby="frames-h" className="flex flex-col gap-4">
-          <h2 id="frames-h" className="text-xl font-semibold">Frames</h2>
+          <h2 id="frames-h" className="text-xl font-semibold">The bracket over time</h2>
           <BracketChart frames={set.frames} />
           {set.frames.length ? <FrameTriage setId={set.id} frames={set.frames} canEdit={false} /> : <p className="text-ink-muted">No frames.</p>}
         </section>
