@@ -4,7 +4,7 @@
 // 1..n: changes lock the edition row so two editors cannot interleave.
 import { and, asc, desc, eq, gt, ilike, inArray, ne, or, sql, type SQL } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
-import { editionItems, editions, plates, plateVersions, type EditionKind, type EditionSlot, type EditionState, type PlateState, type Rendition } from "@/db/schema";
+import { editionExports, editionItems, editions, plates, plateVersions, type EditionKind, type EditionSlot, type EditionState, type PlateState, type Rendition } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
@@ -280,8 +280,22 @@ export async function renameEdition(db: Db, actor: Actor | null, editionId: stri
  * calls it with the edition row locked. An exported edition stays as the
  * record of what went to print.
  */
-async function refuseDeletion(_tx: DbOrTx, _editionId: string, edition: LockedEdition): Promise<void> {
+async function refuseDeletion(tx: DbOrTx, editionId: string, edition: LockedEdition): Promise<void> {
   if (edition.state !== "draft") throw new AppError("conflict", `"${edition.title}" was exported; it stays as a record of what went to print and cannot be deleted.`);
+  // Reopened after an export, or exporting now: its bundles are that record too.
+  const [bundle] = await tx
+    .select({ state: editionExports.state })
+    .from(editionExports)
+    .where(and(eq(editionExports.editionId, editionId), inArray(editionExports.state, ["queued", "running", "done"])))
+    .limit(1);
+  if (bundle) {
+    throw new AppError(
+      "conflict",
+      bundle.state === "done"
+        ? `"${edition.title}" has print bundles; it stays as a record of what went to print and cannot be deleted.`
+        : `"${edition.title}" is being exported; wait for the bundle before deleting it.`,
+    );
+  }
 }
 
 /** Deletes a draft edition and its items (the plates themselves stay). */

@@ -299,6 +299,10 @@ print(json.dumps({"pa": sun.position_angle(north).deg, "sep": sun.separation(nor
     const list = (body as { exports: { state: string; downloadUrl: string | null; fileCount: number }[] }).exports;
     expect(list.filter((e) => e.state === "done")).toHaveLength(1);
     expect(list[0].fileCount).toBe(metadata.files.length + 1);
+    // A draft again, but its bundle is the record of what went to print: it cannot be deleted.
+    const del = await c.json(`/api/editions/${editionId}`, undefined, "DELETE");
+    expect(del.status).toBe(409);
+    expect(JSON.stringify(del.body)).toContain("has print bundles");
     await readFile(join(dir, metadata.files[0].name));
   });
 
