@@ -2,6 +2,7 @@
 // and the worker (worker/index.ts). A missing or malformed value stops the
 // process with the variable's name. Defaults for local development live in
 // .env.example, which the scripts export; nothing here invents a value.
+import { existsSync } from "node:fs";
 import { z } from "zod";
 
 const DEFAULT_SECRET = "development-only-secret-change-me-0123456789";
@@ -36,6 +37,11 @@ export const envSchema = z
     S3_BUCKET_ORIGINALS: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
     S3_BUCKET_DERIVED: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
     S3_BUCKET_EXPORTS: z.string({ error: "is missing" }).min(3, { error: "must be a bucket name" }),
+    /** A CMYK ICC profile for print bundles; libvips' built-in one when empty. */
+    EDITION_CMYK_ICC_PROFILE: z
+      .string()
+      .refine((v) => v === "" || existsSync(v), { error: "expected the path of a readable ICC profile file" })
+      .optional(),
     SMTP_URL: url(["smtp:", "smtps:"]),
     SMTP_IGNORE_TLS: bool.default(false),
     MAIL_FROM: z.string({ error: "is missing" }).min(3, { error: "must be a sender address" }),

@@ -47,6 +47,11 @@ describe("environment validation", () => {
     expect(problems[0].message).toContain("redis:");
   });
 
+  it("names a CMYK profile path that does not exist", () => {
+    expect(problemsOf({ ...GOOD, EDITION_CMYK_ICC_PROFILE: "/nowhere/press.icc" })).toEqual([{ name: "EDITION_CMYK_ICC_PROFILE", message: "expected the path of a readable ICC profile file" }]);
+    expect(parseEnv({ ...GOOD, EDITION_CMYK_ICC_PROFILE: "" }).EDITION_CMYK_ICC_PROFILE).toBe("");
+  });
+
   it("names every bad variable at once", () => {
     const problems = problemsOf({ ...GOOD, SMTP_URL: "nonsense", BETTER_AUTH_SECRET: "short", S3_FORCE_PATH_STYLE: "yes" });
     expect(problems.map((p) => p.name).sort()).toEqual(["BETTER_AUTH_SECRET", "S3_FORCE_PATH_STYLE", "SMTP_URL"]);
