@@ -5,7 +5,7 @@
 //      tiling one rendition (what any reduction must at least do);
 //  (b) our 8-bit merge over OpenCV's MergeDebevec (python3-opencv) on the same
 //      codes, each side timed around the merge alone.
-// Run: npm run bench            (the gallery: npm run bench -- gallery)
+// Run: npm run bench            (the gallery: npm run bench -- gallery; print bundles: npm run bench -- export)
 import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -103,7 +103,12 @@ async function main(): Promise<void> {
 }
 
 // `npm run bench -- gallery` measures the public gallery instead (needs the app running).
-const run = process.argv.includes("gallery") ? () => import("./bench-gallery").then(() => undefined) : main;
+// `npm run bench -- export` measures the print bundle (no services needed).
+const run = process.argv.includes("gallery")
+  ? () => import("./bench-gallery").then(() => undefined)
+  : process.argv.includes("export")
+    ? () => import("./bench-export").then(() => undefined)
+    : main;
 run().catch((error: unknown) => {
   console.error(error instanceof Error ? error.stack : error);
   process.exitCode = 1;
