@@ -92,7 +92,7 @@ async function main(): Promise<void> {
     times.proof = performance.now() - t;
     t = performance.now();
     const zip = new ZipFile();
-    for (const f of files) zip.addFile(f, f.split("/").at(-1)!, { compress: !f.endsWith(".jpg") });
+    for (const f of files) zip.addFile(f, f.split("/").at(-1)!, { compress: false });
     zip.end();
     await pipeline(zip.outputStream, createWriteStream(join(dir, "bundle.zip")));
     times.zip = performance.now() - t;

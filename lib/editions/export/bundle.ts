@@ -314,7 +314,8 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
     const zipName = `${zipStem.slice(0, 80)}.zip`;
     const zipPath = join(dir, "bundle.zip");
     const zip = new ZipFile();
-    for (const f of listed) zip.addFile(f.path, f.name, { compress: !/\.(jpg|pdf)$/.test(f.name) });
+    // Images and the PDF are compressed already: stored as they are, only the texts are deflated.
+    for (const f of listed) zip.addFile(f.path, f.name, { compress: /\.(txt|json)$/.test(f.name) });
     zip.addFile(join(dir, METADATA_FILE), METADATA_FILE);
     zip.end();
     await pipeline(zip.outputStream, createWriteStream(zipPath));

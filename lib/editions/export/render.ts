@@ -53,9 +53,16 @@ export interface RenderedFile {
   path: string;
 }
 
-function resized(source: Buffer, plan: PrintPlan, name: string): Sharp {
+/** The rendition resized once to the plan, as raw 16-bit RGB: every variant starts from it, so the PNG is decoded once. */
+async function resizedRaw(source: Buffer, plan: PrintPlan, name: string): Promise<{ data: Uint16Array; width: number; height: number }> {
   try {
-    return createSharp(source).resize({ width: plan.width, height: plan.height, fit: "fill", kernel: "lanczos3" });
+    const { data, info } = await createSharp(source)
+      .resize({ width: plan.width, height: plan.height, fit: "fill", kernel: "lanczos3" })
+      .toColourspace("rgb16")
+      .raw({ depth: "ushort" })
+      .toBuffer({ resolveWithObject: true });
+    if (info.channels !== 3) throw new Error(`expected 3 channels after conversion, got ${info.channels}`);
+    return { data: new Uint16Array(data.buffer, data.byteOffset, data.length / 2), width: info.width, height: info.height };
   } catch (err) {
     throw toMediaError(err, name, "the rendition");
   }
@@ -64,6 +71,8 @@ function resized(source: Buffer, plan: PrintPlan, name: string): Sharp {
 /** Writes the plate's files into dir under the given stem; returns them in bundle order. */
 export async function renderPlateFiles(source: Buffer, sourceName: string, plan: PrintPlan, stem: string, dir: string, options: RenderOptions): Promise<RenderedFile[]> {
   const out: RenderedFile[] = [];
+  const raw = await resizedRaw(source, plan, sourceName);
+  const resized = (): Sharp => createSharp(raw.data, { raw: { width: raw.width, height: raw.height, channels: 3 } });
   const write = async (kind: RenderedFile["kind"], suffix: string, make: () => Promise<Buffer>) => {
     const name = `${stem}${suffix}`;
     const path = join(dir, name);
@@ -76,14 +85,14 @@ export async function renderPlateFiles(source: Buffer, sourceName: string, plan:
   };
   // 16-bit TIFF needs an explicit compression or sharp writes 8 bits (STACK.md).
   await write("tiff-srgb", ".tif", () =>
-    resized(source, plan, sourceName).toColourspace("rgb16").withIccProfile("srgb").tiff({ compression: "lzw", predictor: "horizontal" }).toBuffer(),
+    resized().toColourspace("rgb16").withIccProfile("srgb").tiff({ compression: "lzw", predictor: "horizontal" }).toBuffer(),
   );
   await write("jpeg", ".jpg", () =>
-    resized(source, plan, sourceName).toColourspace("srgb").withIccProfile("srgb").jpeg({ quality: JPEG_QUALITY, chromaSubsampling: "4:4:4", mozjpeg: false }).toBuffer(),
+    resized().toColourspace("srgb").withIccProfile("srgb").jpeg({ quality: JPEG_QUALITY, chromaSubsampling: "4:4:4", mozjpeg: false }).toBuffer(),
   );
   if (options.cmyk) {
     await write("tiff-cmyk", "_cmyk.tif", () =>
-      resized(source, plan, sourceName)
+      resized()
         .withIccProfile(options.cmykProfilePath ?? "cmyk")
         .toColourspace("cmyk")
         .tiff({ compression: "lzw" })
@@ -91,7 +100,7 @@ export async function renderPlateFiles(source: Buffer, sourceName: string, plan:
     );
   }
   if (options.greyscale) {
-    await write("tiff-grey", "_grey.tif", () => resized(source, plan, sourceName).toColourspace("grey16").tiff({ compression: "lzw", predictor: "horizontal" }).toBuffer());
+    await write("tiff-grey", "_grey.tif", () => resized().toColourspace("grey16").tiff({ compression: "lzw", predictor: "horizontal" }).toBuffer());
   }
   return out;
 }
