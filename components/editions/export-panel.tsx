@@ -22,16 +22,27 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
   const router = useRouter();
   const [exports, setExports] = useState(initial);
   const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [pending, setPending] = useState(false);
+  const [reopenProblem, setReopenProblem] = useState<string | null>(null);
+  const [starting, setStarting] = useState(false);
+  const [reopening, setReopening] = useState(false);
+  const [pollProblem, setPollProblem] = useState<string | null>(null);
   const [announce, setAnnounce] = useState("");
   const active = exports.find((e) => e.state === "queued" || e.state === "running");
+  const activeId = active?.id ?? null;
   const lastStage = useRef<string | null>(null);
 
+  // Polls the export under way once a second, one request at a time; stops with a message when the server refuses.
   useEffect(() => {
-    if (!active) return;
-    const timer = window.setInterval(async () => {
-      const res = await callApi<{ export: ExportDto }>("GET", `/api/editions/${editionId}/exports/${active.id}`);
-      if (!res.ok) return;
+    if (!activeId) return;
+    let stopped = false;
+    let timer: number | undefined;
+    const tick = async () => {
+      const res = await callApi<{ export: ExportDto }>("GET", `/api/editions/${editionId}/exports/${activeId}`);
+      if (stopped) return;
+      if (!res.ok) {
+        setPollProblem(`Progress could not be read: ${res.problem.message} Reload the page to see where the export is.`);
+        return;
+      }
       const e = res.data.export;
       setExports((list) => list.map((x) => (x.id === e.id ? e : x)));
       if (e.stage && e.stage !== lastStage.current) {
@@ -39,21 +50,27 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
         setAnnounce(e.state === "done" ? "The print bundle is ready to download." : e.state === "failed" ? `The export failed: ${e.error ?? "no reason given"}` : e.stage);
       }
       if (e.state === "done" || e.state === "failed") router.refresh();
-    }, 1000);
-    return () => window.clearInterval(timer);
-  }, [active, editionId, router]);
+      else timer = window.setTimeout(tick, 1000);
+    };
+    timer = window.setTimeout(tick, 1000);
+    return () => {
+      stopped = true;
+      window.clearTimeout(timer);
+    };
+  }, [activeId, editionId, router]);
 
   async function start(ev: FormEvent<HTMLFormElement>) {
     ev.preventDefault();
     const form = new FormData(ev.currentTarget);
-    setPending(true);
+    setStarting(true);
     setProblem(null);
+    setPollProblem(null);
     const res = await callApi<{ export: ExportDto }>("POST", `/api/editions/${editionId}/exports`, {
       cmyk: form.get("cmyk") === "on",
       greyscale: form.get("greyscale") === "on",
       fileNameTemplate: String(form.get("fileNameTemplate") ?? ""),
     });
-    setPending(false);
+    setStarting(false);
     if (!res.ok) return setProblem(res.problem);
     lastStage.current = null;
     setAnnounce("Export started.");
@@ -61,10 +78,11 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
   }
 
   async function reopen() {
-    setPending(true);
+    setReopening(true);
+    setReopenProblem(null);
     const res = await callApi("POST", `/api/editions/${editionId}/reopen`, {});
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
+    setReopening(false);
+    if (!res.ok) return setReopenProblem(res.problem.message);
     setAnnounce("The edition is a draft again; its bundles stay below.");
     router.refresh();
   }
@@ -78,9 +96,14 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
       {editionState === "exported" ? (
         <div className="flex flex-wrap items-center gap-3 rounded-control border border-line p-3 text-sm">
           <p>This edition was exported, so its plates are fixed. Reopen it to change them; the bundles made so far stay.</p>
-          <Button type="button" size="md" variant="secondary" onClick={reopen} pending={pending} pendingLabel="Reopening…">
+          <Button type="button" size="md" variant="secondary" onClick={reopen} pending={reopening} pendingLabel="Reopening…">
             Reopen for changes
           </Button>
+          {reopenProblem ? (
+            <p role="alert" className="w-full font-medium text-danger">
+              {reopenProblem}
+            </p>
+          ) : null}
         </div>
       ) : null}
       <form onSubmit={start} noValidate className="space-y-4" aria-describedby="export-what">
@@ -101,7 +124,7 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
             {generalError}
           </p>
         ) : null}
-        <Button type="submit" size="md" pending={pending} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
+        <Button type="submit" size="md" pending={starting} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
           Make print bundle
         </Button>
         {itemCount === 0 ? <p className="text-sm text-ink-muted">Add a plate first.</p> : null}
@@ -110,6 +133,11 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
       <div>
         <h3 className="mb-2 text-lg font-semibold">Bundles</h3>
         {exports.length === 0 ? <p className="text-sm text-ink-muted">No bundles yet.</p> : null}
+        {pollProblem ? (
+          <p role="alert" className="mb-2 text-sm font-medium text-danger">
+            {pollProblem}
+          </p>
+        ) : null}
         <ul className="space-y-3">
           {exports.map((e) => (
             <li key={e.id} className="rounded-control border border-line p-3">
@@ -123,11 +151,7 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
               {e.state === "queued" || e.state === "running" ? (
                 <ProgressBar className="mt-2" label={e.stage ?? "Waiting for the worker"} value={Math.round(e.progress * 100)} />
               ) : null}
-              {e.state === "failed" ? (
-                <p role="alert" className="mt-2 text-sm font-medium text-danger">
-                  {e.error}
-                </p>
-              ) : null}
+              {e.state === "failed" ? <p className="mt-2 text-sm font-medium text-danger">Failed: {e.error}</p> : null}
               {e.state === "done" && e.downloadUrl ? (
                 <div className="mt-2 space-y-1 text-sm">
                   <p>

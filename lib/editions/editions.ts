@@ -10,6 +10,7 @@ import { requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
+import { findActiveExport } from "./export/active";
 import { findEditionRow, isUuid, lockDraftEdition, lockEdition, lockItem, requireEditor, touch, type LockedEdition } from "./guards";
 import { addItemSchema, editionNameSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema, type EditionNameInput } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
@@ -282,20 +283,14 @@ export async function renameEdition(db: Db, actor: Actor | null, editionId: stri
  */
 async function refuseDeletion(tx: DbOrTx, editionId: string, edition: LockedEdition): Promise<void> {
   if (edition.state !== "draft") throw new AppError("conflict", `"${edition.title}" was exported; it stays as a record of what went to print and cannot be deleted.`);
-  // Reopened after an export, or exporting now: its bundles are that record too.
+  if (await findActiveExport(tx, editionId)) throw new AppError("conflict", `"${edition.title}" is being exported; wait for the bundle before deleting it.`);
+  // Reopened after an export: its bundles are the record of what went to print.
   const [bundle] = await tx
-    .select({ state: editionExports.state })
+    .select({ id: editionExports.id })
     .from(editionExports)
-    .where(and(eq(editionExports.editionId, editionId), inArray(editionExports.state, ["queued", "running", "done"])))
+    .where(and(eq(editionExports.editionId, editionId), eq(editionExports.state, "done")))
     .limit(1);
-  if (bundle) {
-    throw new AppError(
-      "conflict",
-      bundle.state === "done"
-        ? `"${edition.title}" has print bundles; it stays as a record of what went to print and cannot be deleted.`
-        : `"${edition.title}" is being exported; wait for the bundle before deleting it.`,
-    );
-  }
+  if (bundle) throw new AppError("conflict", `"${edition.title}" has print bundles; it stays as a record of what went to print and cannot be deleted.`);
 }
 
 /** Deletes a draft edition and its items (the plates themselves stay). */

@@ -6,6 +6,7 @@ import type { DbOrTx } from "@/db/client";
 import { editionItems, editions, type EditionKind, type EditionState, type Rendition } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { findActiveExport } from "./export/active";
 
 export const EDITION = "That edition";
 export const ITEM = "That plate in the edition";
@@ -62,10 +63,12 @@ export async function lockEdition(tx: DbOrTx, editionId: string): Promise<Locked
   return row;
 }
 
-/** Locks the edition for a change of its items and refuses one that was exported. */
+/** Locks the edition for a change of its items and refuses one that was exported or is being exported. */
 export async function lockDraftEdition(tx: DbOrTx, editionId: string): Promise<LockedEdition> {
   const row = await lockEdition(tx, editionId);
   if (row.state !== "draft") throw new AppError("conflict", `"${row.title}" was exported; its plates are fixed.`);
+  // The bundle being made reads these plates: they wait until it is done.
+  if (await findActiveExport(tx, editionId)) throw new AppError("conflict", `"${row.title}" is being exported; its plates can change once the bundle is done.`);
   return row;
 }
 

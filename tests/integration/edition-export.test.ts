@@ -20,10 +20,11 @@ import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import yauzl from "yauzl";
 import { closeDb, getDb } from "@/db/client";
-import { editions, plates, plateVersions, reductions, users } from "@/db/schema";
+import { editionExports, editions, jobRuns, plates, plateVersions, reductions, users } from "@/db/schema";
 import { DEMO_PASSWORD } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
-import { addEditionItem, createEdition, updateEditionItem } from "@/lib/editions/editions";
+import { addEditionItem, createEdition, findEdition, updateEditionItem } from "@/lib/editions/editions";
+import { exportJobId, STALE_EXPORT_REASON } from "@/lib/editions/export/active";
 import { closeExportExifTool, readTags } from "@/lib/editions/export/embed";
 import { PT_PER_MM } from "@/lib/editions/export/proof";
 import { DeleteObjectCommand } from "@aws-sdk/client-s3";
@@ -327,4 +328,31 @@ print(json.dumps({"pa": sun.position_angle(north).deg, "sep": sun.separation(nor
     expect(mail.text).toContain("missing from storage");
     expect((await c.request(`/api/editions/${editionId}/exports/${exportId}/download`)).status).toBe(409);
   }, 120_000);
+
+  it("names a malformed option", async () => {
+    const c = new Client();
+    await c.signIn(editorPerson.email, DEMO_PASSWORD);
+    const bad = await c.json(`/api/editions/${editionId}/exports`, { cmyk: "yes" });
+    expect(bad.status).toBe(400);
+    expect(JSON.stringify(bad.body)).toMatch(/cmyk.*expected true or false/);
+  });
+
+  it("holds the plates while a bundle is made, and frees an edition whose export job the queue gave up on", async () => {
+    const c = new Client();
+    await c.signIn(editorPerson.email, DEMO_PASSWORD);
+    const [row] = await db.insert(editionExports).values({ editionId, state: "running", options: { cmyk: false, greyscale: false, fileNameTemplate: "{date}" }, requestedBy: editor.userId }).returning({ id: editionExports.id });
+    await db.insert(jobRuns).values({ id: exportJobId(row.id), name: "edition.export", payload: { exportId: row.id }, state: "running" });
+    const { items } = await findEdition(db, editor, editionId);
+    const change = await c.json(`/api/editions/${editionId}/items/${items[0].id}`, { slot: "web", rendition: "natural", captionOverride: "" }, "PATCH");
+    expect(change.status).toBe(409);
+    expect(JSON.stringify(change.body)).toContain("is being exported");
+    expect((await c.json(`/api/editions/${editionId}`, undefined, "DELETE")).status).toBe(409);
+    expect((await c.json(`/api/editions/${editionId}/exports`, {})).status).toBe(409);
+    // The queue fails the job (a worker killed twice mid-bundle): the export is settled as failed where it is next looked at.
+    await db.update(jobRuns).set({ state: "failed" }).where(eq(jobRuns.id, exportJobId(row.id)));
+    const { body } = await c.json(`/api/editions/${editionId}/exports`);
+    const settled = (body as { exports: { id: string; state: string; error: string | null }[] }).exports.find((e) => e.id === row.id)!;
+    expect(settled).toMatchObject({ state: "failed", error: STALE_EXPORT_REASON });
+    expect((await c.json(`/api/editions/${editionId}/items/${items[0].id}`, { slot: "web", rendition: "natural", captionOverride: "" }, "PATCH")).status).toBe(200);
+  });
 });

@@ -1,5 +1,5 @@
 import { UnrecoverableError } from "bullmq";
-import { eq, sql } from "drizzle-orm";
+import { and, eq, inArray, sql } from "drizzle-orm";
 import { editionExports, jobRuns } from "@/db/schema";
 import { failExport, finishExport, makeBundle } from "@/lib/editions/export/bundle";
 import { AppError } from "@/lib/errors";
@@ -16,17 +16,23 @@ import type { JobHandler } from "../registry";
 export const exportEdition: JobHandler<"edition.export"> = async ({ db, jobId, payload, report }) => {
   const [row] = await db.select({ state: editionExports.state }).from(editionExports).where(eq(editionExports.id, payload.exportId)).limit(1);
   if (!row) throw new UnrecoverableError(`export ${payload.exportId} does not exist`);
-  if (row.state === "done" || row.state === "failed") return;
-  await db.update(editionExports).set({ state: "running", startedAt: sql`now()`, error: null }).where(eq(editionExports.id, payload.exportId));
+  // Only an export still under way is taken: a finished or failed one, or one another run took meanwhile, is left alone.
+  const [taken] = await db
+    .update(editionExports)
+    .set({ state: "running", startedAt: sql`now()`, error: null })
+    .where(and(eq(editionExports.id, payload.exportId), inArray(editionExports.state, ["queued", "running"])))
+    .returning({ id: editionExports.id });
+  if (!taken) return;
   const progress = async (stage: string, fraction: number) => {
-    await db.update(editionExports).set({ stage, progress: fraction }).where(eq(editionExports.id, payload.exportId));
+    await db.update(editionExports).set({ stage, progress: fraction }).where(and(eq(editionExports.id, payload.exportId), eq(editionExports.state, "running")));
     await report(stage, fraction);
   };
+  let result: Awaited<ReturnType<typeof makeBundle>>;
   try {
-    const result = await makeBundle(db, payload.exportId, progress);
-    await finishExport(db, payload.exportId, result);
+    result = await makeBundle(db, payload.exportId, progress);
   } catch (err) {
-    if (err instanceof AppError || err instanceof MediaError || err instanceof RangeError) {
+    // Bad data (a plate withdrawn since, a rendition missing or unreadable, a template that cannot be followed): no retry.
+    if (err instanceof AppError || err instanceof MediaError) {
       await failExport(db, payload.exportId, err.message);
       throw new UnrecoverableError(err.message);
     }
@@ -34,8 +40,12 @@ export const exportEdition: JobHandler<"edition.export"> = async ({ db, jobId, p
     if ((run?.attempts ?? 0) >= JOBS["edition.export"].attempts) {
       await failExport(db, payload.exportId, `the bundle could not be made (${err instanceof Error ? err.message : String(err)})`);
     } else {
-      await db.update(editionExports).set({ state: "queued", stage: "Retrying after an error" }).where(eq(editionExports.id, payload.exportId));
+      await db
+        .update(editionExports)
+        .set({ state: "queued", stage: "Retrying after an error" })
+        .where(and(eq(editionExports.id, payload.exportId), eq(editionExports.state, "running")));
     }
     throw err;
   }
+  await finishExport(db, payload.exportId, result);
 };

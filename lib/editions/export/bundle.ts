@@ -7,14 +7,14 @@
 // edition or its plates is changed but the edition's state (exported) once
 // the ZIP is stored; a failure leaves the edition as it was.
 import { createHash } from "node:crypto";
-import { createWriteStream } from "node:fs";
+import { createReadStream, createWriteStream } from "node:fs";
 import { mkdtemp, readFile, rm, stat, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { pipeline } from "node:stream/promises";
-import { and, asc, eq, sql } from "drizzle-orm";
+import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { ZipFile } from "yazl";
-import type { DbOrTx } from "@/db/client";
+import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
@@ -117,13 +117,23 @@ export function masterSkyFromReport(report: Record<string, unknown>): MasterSky 
 }
 
 async function sha256File(path: string): Promise<string> {
-  return createHash("sha256")
-    .update(await readFile(path))
-    .digest("hex");
+  const hash = createHash("sha256");
+  await pipeline(createReadStream(path), hash);
+  return hash.digest("hex");
 }
 
 /** HHMMSS of an ISO instant, UTC. */
 const timeOf = (iso: string | null) => (iso ? iso.slice(11, 19).replace(/:/g, "") : "");
+
+/** A template the checks let through but the names cannot follow is the editor's input: said as such. */
+function namesOrRefuse(make: () => string[]): string[] {
+  try {
+    return make();
+  } catch (err) {
+    if (err instanceof RangeError) throw new AppError("invalid_input", `fileNameTemplate: ${err.message}`);
+    throw err;
+  }
+}
 
 export interface BundleResult {
   objectKey: string;
@@ -131,6 +141,7 @@ export interface BundleResult {
   bytes: number;
   files: ExportFileEntry[];
   warnings: string[];
+  plates: number;
 }
 
 /**
@@ -148,7 +159,7 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
   const options = row.options;
   const cmykProfilePath = process.env.EDITION_CMYK_ICC_PROFILE || undefined;
 
-  const stems = buildFileNames(
+  const stems = namesOrRefuse(() => buildFileNames(
     options.fileNameTemplate,
     items.map((it) => ({
       values: {
@@ -163,7 +174,7 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       extension: "",
     })),
     MAX_FILE_NAME_LENGTH - VARIANT_SUFFIX_ROOM,
-  );
+  ));
 
   const dir = await mkdtemp(join(tmpdir(), "crownlight-edition-export-"));
   try {
@@ -323,46 +334,60 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
     await report("Storing the ZIP", 0.95);
     const objectKey = `editions/${edition.id}/exports/${exportId}/${zipName}`;
     const bytes = await putObjectFile({ bucket: bucketName("exports"), key: objectKey }, zipPath, "application/zip");
-    return { objectKey, zipName, bytes, files: files.map((f) => ({ name: f.name, bytes: f.bytes })), warnings };
+    return { objectKey, zipName, bytes, files: files.map((f) => ({ name: f.name, bytes: f.bytes })), warnings, plates: items.length };
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
 }
 
-/** Marks the export done, the edition exported, audits, and tells the editor (once). */
-export async function finishExport(db: DbOrTx, exportId: string, result: BundleResult): Promise<void> {
-  const [row] = await db
-    .update(editionExports)
-    .set({ state: "done", progress: 1, stage: "Ready", objectKey: result.objectKey, zipName: result.zipName, bytes: result.bytes, files: result.files, warnings: result.warnings, error: null, finishedAt: sql`now()` })
-    .where(eq(editionExports.id, exportId))
-    .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
-  if (!row) return;
-  const [edition] = await db.update(editions).set({ state: "exported", updatedAt: sql`now()` }).where(eq(editions.id, row.editionId)).returning({ title: editions.title });
-  await recordAudit(db, { actorId: row.requestedBy, action: "edition.exported", subjectType: "edition", subjectId: row.editionId, detail: { exportId, bytes: result.bytes, files: result.files.length } });
-  await notifyExport(db, exportId, row.editionId, row.requestedBy, edition?.title ?? "the edition", { ok: true, bytes: result.bytes });
+const ACTIVE = ["queued", "running"] as const;
+
+/**
+ * Marks the export done and the edition exported, with the audit entry, in one
+ * transaction; only an export still under way changes (a repeated call does
+ * nothing). The e-mail is queued after the commit: a Redis hiccup then leaves
+ * the mail pending in the outbox, never the bundle undone.
+ */
+export async function finishExport(db: Db, exportId: string, result: BundleResult): Promise<void> {
+  const row = await db.transaction(async (tx) => {
+    const [done] = await tx
+      .update(editionExports)
+      .set({ state: "done", progress: 1, stage: "Ready", objectKey: result.objectKey, zipName: result.zipName, bytes: result.bytes, files: result.files, warnings: result.warnings, error: null, finishedAt: sql`now()` })
+      .where(and(eq(editionExports.id, exportId), inArray(editionExports.state, ACTIVE)))
+      .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
+    if (!done) return null;
+    await tx.update(editions).set({ state: "exported", updatedAt: sql`now()` }).where(eq(editions.id, done.editionId));
+    await recordAudit(tx, { actorId: done.requestedBy, action: "edition.exported", subjectType: "edition", subjectId: done.editionId, detail: { exportId, bytes: result.bytes, files: result.files.length } });
+    return done;
+  });
+  if (row) await notifyExport(db, exportId, row.editionId, row.requestedBy, { ok: true, bytes: result.bytes, plates: result.plates });
 }
 
+/** Marks an export under way as failed with its reason (a finished one stays finished) and tells the editor. */
 export async function failExport(db: DbOrTx, exportId: string, reason: string): Promise<void> {
   const [row] = await db
     .update(editionExports)
     .set({ state: "failed", error: reason, stage: "Failed", finishedAt: sql`now()` })
-    .where(eq(editionExports.id, exportId))
+    .where(and(eq(editionExports.id, exportId), inArray(editionExports.state, ACTIVE)))
     .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
-  if (!row) return;
-  const [edition] = await db.select({ title: editions.title }).from(editions).where(eq(editions.id, row.editionId)).limit(1);
-  await notifyExport(db, exportId, row.editionId, row.requestedBy, edition?.title ?? "the edition", { ok: false, reason });
+  if (row) await notifyExport(db, exportId, row.editionId, row.requestedBy, { ok: false, reason });
 }
 
-async function notifyExport(db: DbOrTx, exportId: string, editionId: string, userId: string | null, title: string, outcome: { ok: true; bytes: number } | { ok: false; reason: string }): Promise<void> {
+async function notifyExport(db: DbOrTx, exportId: string, editionId: string, userId: string | null, outcome: { ok: true; bytes: number; plates: number } | { ok: false; reason: string }): Promise<void> {
   if (!userId) return;
-  const [user] = await db.select({ name: users.name, email: users.email }).from(users).where(eq(users.id, userId)).limit(1);
-  if (!user) return;
-  const society = (await findSocietySettings(db)).name;
-  const url = appLink(`/editions/${editionId}#exports-h`);
-  if (outcome.ok) {
-    const [{ count }] = await db.select({ count: sql<number>`count(*)::int` }).from(editionItems).where(eq(editionItems.editionId, editionId));
-    await queueMailOnce(db, `edition-export-${exportId}`, editionExportReadyMail(society, user.email, user.name, { title, plates: count, size: formatBytes(outcome.bytes), url }));
-  } else {
-    await queueMailOnce(db, `edition-export-${exportId}`, editionExportFailedMail(society, user.email, user.name, { title, reason: outcome.reason, url }));
+  try {
+    const [user] = await db.select({ name: users.name, email: users.email }).from(users).where(eq(users.id, userId)).limit(1);
+    const [edition] = await db.select({ title: editions.title }).from(editions).where(eq(editions.id, editionId)).limit(1);
+    if (!user || !edition) return;
+    const society = (await findSocietySettings(db)).name;
+    const url = appLink(`/editions/${editionId}#exports-h`);
+    if (outcome.ok) {
+      await queueMailOnce(db, `edition-export-ready-${exportId}`, editionExportReadyMail(society, user.email, user.name, { title: edition.title, plates: outcome.plates, size: formatBytes(outcome.bytes), url }));
+    } else {
+      await queueMailOnce(db, `edition-export-failed-${exportId}`, editionExportFailedMail(society, user.email, user.name, { title: edition.title, reason: outcome.reason, url }));
+    }
+  } catch (err) {
+    // The bundle's state is already recorded; a mail that could not be queued stays pending in the outbox.
+    console.error(`[edition-export] the e-mail about export ${exportId} could not be queued:`, err);
   }
 }

@@ -2,8 +2,10 @@
 // configured (avm.exiftool-config beside this file; ExifTool's -config must
 // come before its other arguments). Writes the tags of metadata.ts into a
 // file in place and reads them back, for the bundle and for the tests.
-import { join } from "node:path";
+import { existsSync } from "node:fs";
+import { basename, join } from "node:path";
 import { DefaultExiftoolArgs, ExifTool, type WriteTags } from "exiftool-vendored";
+import { AppError } from "@/lib/errors";
 import type { ExifTagValue } from "./metadata";
 
 export const AVM_CONFIG_PATH = join(process.cwd(), "lib/editions/export/avm.exiftool-config");
@@ -21,9 +23,16 @@ export async function closeExportExifTool(): Promise<void> {
   await running?.end();
 }
 
-/** Writes the tags into the file in place; ExifTool's warnings become an error naming the file. */
+/**
+ * Writes the tags into the file in place. ExifTool reports a tag it refused
+ * (an unknown AVM tag when the config is missing, a malformed value) as a
+ * warning, not an error: any warning fails the write with the file's name.
+ */
 export async function embedTags(path: string, tags: Record<string, ExifTagValue>): Promise<void> {
-  await exportExifTool().write(path, tags as unknown as WriteTags, { writeArgs: ["-overwrite_original"] });
+  if (!existsSync(AVM_CONFIG_PATH)) throw new AppError("internal", `The ExifTool configuration for AVM is missing at ${AVM_CONFIG_PATH}; run the worker from the project folder.`);
+  const result = await exportExifTool().write(path, tags as unknown as WriteTags, { writeArgs: ["-overwrite_original"] });
+  const warnings = (result.warnings ?? []).filter((w) => !/Nothing to (do|write)/i.test(w));
+  if (warnings.length) throw new AppError("invalid_input", `ExifTool refused metadata for ${basename(path)}: ${warnings.join("; ")}`);
 }
 
 /** Group-qualified tags of a file with numbers as numbers (ExifTool -G1 -n). */

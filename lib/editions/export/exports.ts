@@ -4,7 +4,7 @@
 // edition for changes (its bundles stay). The work itself is bundle.ts, run by
 // the worker's edition.export job on the "export" queue.
 import { GetObjectCommand } from "@aws-sdk/client-s3";
-import { and, desc, eq, inArray, sql } from "drizzle-orm";
+import { and, desc, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import type { Db, DbOrTx } from "@/db/client";
 import { editionExports, editionItems, editions, plates, type ExportFileEntry, type ExportState } from "@/db/schema";
@@ -15,13 +15,21 @@ import { enqueue } from "@/lib/queue/enqueue";
 import { bucketName, getS3, isMissingObject } from "@/lib/storage";
 import { parseInput } from "@/lib/validation";
 import { checkTemplate, DEFAULT_FILE_NAME_TEMPLATE } from "../file-names";
+import { lockEdition } from "../guards";
+import { findActiveExport } from "./active";
 
 const EDITION = "That edition";
 const EXPORT = "That print bundle";
 
+// A checkbox sends "on" or nothing; JSON sends true or false. Anything else is refused by name.
+const flag = z.preprocess(
+  (v) => (v === "on" || v === "true" ? true : v === "false" ? false : v),
+  z.boolean({ error: 'expected true or false (or "on" from a checkbox)' }).default(false),
+);
+
 export const startExportSchema = z.object({
-  cmyk: z.preprocess((v) => v === "on" || v === "true" || v === true, z.boolean()).default(false),
-  greyscale: z.preprocess((v) => v === "on" || v === "true" || v === true, z.boolean()).default(false),
+  cmyk: flag,
+  greyscale: flag,
   fileNameTemplate: z
     .string({ error: "expected a file name template" })
     .trim()
@@ -97,12 +105,7 @@ export async function startExport(db: Db, actor: Actor | null, editionId: string
     if (incomplete.length) throw new AppError("conflict", `Plate ${incomplete[0].position} ("${incomplete[0].title}") has a custom slot without a width or dpi.`);
     const gone = items.filter((i) => i.state !== "published");
     if (gone.length) throw new AppError("conflict", `Plate ${gone[0].position} ("${gone[0].title}") is ${gone[0].state} now: remove it before exporting.`);
-    const [busy] = await tx
-      .select({ id: editionExports.id })
-      .from(editionExports)
-      .where(and(eq(editionExports.editionId, editionId), inArray(editionExports.state, ["queued", "running"])))
-      .limit(1);
-    if (busy) throw new AppError("conflict", `An export of "${edition.title}" is already under way; wait for it to finish.`);
+    if (await findActiveExport(tx, editionId)) throw new AppError("conflict", `An export of "${edition.title}" is already under way; wait for it to finish.`);
     const [created] = await tx.insert(editionExports).values({ editionId, options, requestedBy: editor.userId, stage: "Waiting for the worker" }).returning();
     await recordAudit(tx, { actorId: editor.userId, action: "edition.export-started", subjectType: "edition", subjectId: editionId, detail: { exportId: created.id, ...options } });
     return created;
@@ -119,6 +122,8 @@ export async function startExport(db: Db, actor: Actor | null, editionId: string
 export async function listExports(db: Db, actor: Actor | null, editionId: string): Promise<ExportDto[]> {
   requirePermission(actor, "editions:use", "print bundles");
   await requireEdition(db, editionId);
+  // Settles an export whose job the queue gave up on, so the list does not show it running for ever.
+  await findActiveExport(db, editionId);
   const rows = await db.select().from(editionExports).where(eq(editionExports.editionId, editionId)).orderBy(desc(editionExports.createdAt)).limit(50);
   return rows.map((r) => toDto(editionId, r));
 }
@@ -164,7 +169,7 @@ export async function openExportDownload(db: Db, actor: Actor | null, editionId:
 export async function reopenEdition(db: Db, actor: Actor | null, editionId: string): Promise<{ state: "draft" }> {
   const editor = requirePermission(actor, "editions:use", "reopening editions");
   await db.transaction(async (tx) => {
-    const edition = await requireEdition(tx, editionId);
+    const edition = await lockEdition(tx, editionId);
     if (edition.state === "draft") return;
     await tx.update(editions).set({ state: "draft", updatedAt: sql`now()` }).where(eq(editions.id, editionId));
     await recordAudit(tx, { actorId: editor.userId, action: "edition.reopened", subjectType: "edition", subjectId: editionId, detail: {} });

@@ -76,11 +76,14 @@ export async function renderPlateFiles(source: Buffer, sourceName: string, plan:
   const write = async (kind: RenderedFile["kind"], suffix: string, make: () => Promise<Buffer>) => {
     const name = `${stem}${suffix}`;
     const path = join(dir, name);
+    let bytes: Buffer;
     try {
-      await writeFile(path, await make());
+      bytes = await make();
     } catch (err) {
       throw toMediaError(err, sourceName, "the rendition");
     }
+    // A disk fault is not the rendition's: it propagates as it is, and the job is retried.
+    await writeFile(path, bytes);
     out.push({ kind, name, path });
   };
   // 16-bit TIFF needs an explicit compression or sharp writes 8 bits (STACK.md).

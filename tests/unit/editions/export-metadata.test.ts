@@ -2,6 +2,7 @@
 // spatial fields follow FITS conventions, GPS only for exact sites, the
 // copyright notice follows the licence, and the house-style texts.
 import { describe, expect, it } from "vitest";
+import { exportJobId } from "@/lib/editions/export/active";
 import { buildCaptionsText, buildCreditsText } from "@/lib/editions/export/house-style";
 import { avmSpatial, buildPlateMetadata, copyrightNotice, metadataTags, sunRaDecDeg, type ExportPlateInput } from "@/lib/editions/export/metadata";
 import { planPrintSize } from "@/lib/editions/export/render";
@@ -154,5 +155,11 @@ describe("house style", () => {
     expect(text).not.toContain("Embargoed");
     expect(text).toContain("Data: Nadia Fairweather. Processing: Tomasz Wielgosz. Kestrel Ridge Astronomical Society.");
     expect(text).toContain("Files: a.tif, a.jpg");
+  });
+});
+
+describe("export job ids", () => {
+  it("match the literal the stale-export query joins on (lib/editions/export/active.ts)", () => {
+    expect(exportJobId("0b9d8d7e-2f61-4c55-9a3e-5b1d2c3e4f50")).toBe("edition.export__exportId=0b9d8d7e-2f61-4c55-9a3e-5b1d2c3e4f50");
   });
 });
