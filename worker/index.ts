@@ -75,6 +75,9 @@ const workers = QUEUES.map((queue) => {
 // The sweep runs every hour; upsertJobScheduler keeps one schedule however many workers start.
 const sweeper = new Queue("media", { connection, prefix });
 await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { name: "uploads.sweep", data: {} });
+// Mail whose job never reached Redis (an enqueue that failed after its commit) is queued again every 5 minutes.
+const mailScheduler = new Queue("mail", { connection, prefix });
+await mailScheduler.upsertJobScheduler("outbox-resend-5min", { every: 5 * 60_000 }, { name: "outbox.resend", data: {} });
 
 console.log(`[worker] listening on queues: ${QUEUES.join(", ")}`);
 
@@ -85,6 +88,7 @@ async function shutdown(signal: string) {
   console.log(`[worker] ${signal}: finishing running jobs`);
   await Promise.all(workers.map((w) => w.close()));
   await sweeper.close();
+  await mailScheduler.close();
   await closeExportExifTool();
   connection.disconnect();
   await closeDb();

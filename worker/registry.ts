@@ -5,6 +5,7 @@ import type { JobName, JobPayload } from "@/lib/queue/jobs";
 import { exportEdition } from "./jobs/edition-export";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
+import { resendOutbox } from "./jobs/outbox-resend";
 import { runReduction } from "./jobs/reduction-run";
 import { sweepUploads } from "./jobs/uploads-sweep";
 
@@ -24,4 +25,5 @@ export const HANDLERS: { [N in JobName]: JobHandler<N> } = {
   "reduction.run": runReduction,
   "uploads.sweep": sweepUploads,
   "edition.export": exportEdition,
+  "outbox.resend": resendOutbox,
 };

@@ -14,6 +14,12 @@ export const JOBS = {
     payload: z.object({ outboxId: z.string().min(1) }),
     attempts: 5,
   },
+  // Every few minutes: queue again pending mail whose job never reached Redis.
+  "outbox.resend": {
+    queue: "mail",
+    payload: z.object({}),
+    attempts: 1,
+  },
   // Reads one uploaded original: checksum, format, metadata, thumbnail.
   "frame.ingest": {
     queue: "media",

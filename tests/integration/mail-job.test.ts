@@ -3,7 +3,7 @@ import { eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { jobRuns, outboxMessages } from "@/db/schema";
-import { queueMail } from "@/lib/email/outbox";
+import { queueMail, resendStrandedMail } from "@/lib/email/outbox";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
 import { requireTestDatabase } from "../support/env";
@@ -56,5 +56,22 @@ describe("the mail job (real Redis, worker and SMTP fake)", () => {
   it("refuses a payload that does not match the registry", async () => {
     const { enqueue } = await import("@/lib/queue/enqueue");
     await expect(enqueue(db, "mail.send", { outboxId: "" })).rejects.toThrow();
+  });
+
+  it("queues again a pending message whose job never reached Redis, once, and leaves young ones alone", async () => {
+    const to = `stranded.${randomUUID().slice(0, 8)}@mail-test.example`;
+    const strandedId = `stranded-${randomUUID()}`;
+    const youngId = `young-${randomUUID()}`;
+    // As if the commit went through and the enqueue after it failed: a row, no job.
+    await db.insert(outboxMessages).values({ id: strandedId, to, subject: "Your set was approved", text: "Approved.", createdAt: new Date(Date.now() - 10 * 60_000) });
+    await db.insert(outboxMessages).values({ id: youngId, to, subject: "Just written", text: "Not yet." });
+    const queued = await resendStrandedMail(db);
+    expect(queued).toContain(strandedId);
+    expect(queued).not.toContain(youngId);
+    const mail = await waitForMail(to, (m) => m.subject === "Your set was approved");
+    expect(mail.text).toContain("Approved.");
+    await waitForState(jobIdFor("mail.send", { outboxId: strandedId }), "done");
+    expect(await resendStrandedMail(db)).not.toContain(strandedId);
+    await db.delete(outboxMessages).where(eq(outboxMessages.id, youngId));
   });
 });
