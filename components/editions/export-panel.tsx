@@ -73,8 +73,9 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
     setStarting(false);
     if (!res.ok) return setProblem(res.problem);
     lastStage.current = null;
-    setAnnounce("Export started.");
+    setAnnounce("Export started. The plates are held until the bundle is done.");
     setExports((list) => [res.data.export, ...list]);
+    router.refresh();
   }
 
   async function reopen() {

@@ -39,7 +39,10 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
   const edition = await foundOr404(findEdition(db, actor, id));
   const pickable = await listPickablePlates(db, actor, id, q);
   const exports = await listExports(db, actor, id);
-  const readOnly = edition.state !== "draft";
+  // While a bundle is made its plates are held (the server refuses changes); after it, an exported edition is fixed.
+  const exporting = exports.some((e) => e.state === "queued" || e.state === "running");
+  const hasBundles = exports.some((e) => e.state === "done");
+  const readOnly = edition.state !== "draft" || exporting;
   return (
     <>
       <p className="mb-2 text-sm">
@@ -67,6 +70,7 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
         <h2 id="items-h" className="mb-4 text-xl font-semibold">
           Plates in this edition
         </h2>
+        {exporting ? <p className="mb-3 text-sm font-medium">A print bundle is being made from these plates: they can change once it is done.</p> : null}
         <Table caption="Plates in print order, with the size each slot needs against what the rendition has" captionHidden>
           <TableHead>
             <TableRow>
@@ -193,8 +197,10 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
         <h2 id="delete-h" className="mb-4 text-xl font-semibold">
           Delete the edition
         </h2>
-        {readOnly ? (
-          <p className="text-sm">This edition was exported: it stays as a record of what went to print and cannot be deleted.</p>
+        {exporting ? (
+          <p className="text-sm">A print bundle is being made; the edition can be deleted only when that is over.</p>
+        ) : edition.state !== "draft" || hasBundles ? (
+          <p className="text-sm">This edition has gone to print: it and its bundles stay as a record of what went to print and cannot be deleted.</p>
         ) : (
           <DeleteEditionButton editionId={edition.id} title={edition.title} itemCount={edition.items.length} />
         )}
