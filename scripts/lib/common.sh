@@ -65,6 +65,17 @@ spawn() {
   echo $! >"$RUN/$name.pid"
 }
 
+# ExifTool processes (exiftool-vendored keeps one perl process per writer, in a
+# process group of its own) outlive a web app or worker stopped by a signal, and
+# wait on their input for ever. This ends those of this checkout whose parent
+# is gone; one whose parent still runs (another lane's test, the app) is left.
+reap_orphan_exiftool() {
+  local pid
+  for pid in $(pgrep -f "$ROOT/node_modules/exiftool-vendored.pl/bin/exiftool" 2>/dev/null); do
+    [ "$(awk '/^PPid:/ {print $2}' "/proc/$pid/status" 2>/dev/null)" = 1 ] && kill "$pid" 2>/dev/null || true
+  done
+}
+
 # stop_group NAME: TERM to the whole group, then KILL after 10 s if needed.
 stop_group() {
   local name="$1" f="$RUN/$1.pid"
@@ -73,6 +84,7 @@ stop_group() {
     kill -TERM -- "-$pid" 2>/dev/null || kill -TERM "$pid" 2>/dev/null || true
     for _ in $(seq 1 100); do kill -0 "$pid" 2>/dev/null || break; sleep 0.1; done
     kill -KILL -- "-$pid" 2>/dev/null || true
+    reap_orphan_exiftool
     say "$name stopped"
   fi
   rm -f "$f"
