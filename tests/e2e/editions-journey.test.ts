@@ -8,7 +8,6 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import yauzl from "yauzl";
 import { closeDb, getDb } from "@/db/client";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
@@ -16,6 +15,7 @@ import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { APP, requireTestDatabase } from "../support/env";
 import { signIn } from "../support/sign-in";
+import { readZipEntries } from "../support/zip";
 import { makeExportablePlate, person } from "../integration/edition-fixtures";
 
 requireTestDatabase();
@@ -38,28 +38,6 @@ afterAll(async () => {
   await closeDb();
   if (dir) await rm(dir, { recursive: true, force: true });
 });
-
-function zipEntries(path: string): Promise<Map<string, Buffer>> {
-  return new Promise((resolve, reject) => {
-    yauzl.open(path, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return reject(err ?? new Error("no zip"));
-      const out = new Map<string, Buffer>();
-      zip.on("entry", (entry: yauzl.Entry) =>
-        zip.openReadStream(entry, (e, stream) => {
-          if (e || !stream) return reject(e ?? new Error("no stream"));
-          const chunks: Buffer[] = [];
-          stream.on("data", (c: Buffer) => chunks.push(c));
-          stream.on("end", () => {
-            out.set(entry.fileName, Buffer.concat(chunks));
-            zip.readEntry();
-          });
-        }),
-      );
-      zip.on("end", () => resolve(out));
-      zip.readEntry();
-    });
-  });
-}
 
 describe("the editor's edition", () => {
   it("goes from published plates to a downloaded print bundle", async () => {
@@ -109,7 +87,7 @@ describe("the editor's edition", () => {
     const path = join(dir, download.suggestedFilename());
     await download.saveAs(path);
     expect(download.suggestedFilename()).toMatch(/^Corona-Notes-.*_No.-42_print-bundle\.zip$/);
-    const entries = await zipEntries(path);
+    const entries = await readZipEntries(await readFile(path));
     const meta = JSON.parse(entries.get("metadata.json")!.toString("utf8")) as { files: { name: string; kind: string }[] };
     expect([...entries.keys()].filter((n) => n !== "metadata.json").sort()).toEqual(meta.files.map((f) => f.name).sort());
     expect(meta.files.filter((f) => f.kind === "tiff-cmyk")).toHaveLength(2);

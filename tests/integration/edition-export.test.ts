@@ -18,7 +18,6 @@ import { eq } from "drizzle-orm";
 import { PDFDocument } from "pdf-lib";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import yauzl from "yauzl";
 import { closeDb, getDb } from "@/db/client";
 import { editionExports, editions, jobRuns, plates, plateVersions, reductions, users } from "@/db/schema";
 import { DEMO_PASSWORD } from "@/db/seed/people";
@@ -34,6 +33,7 @@ import { requireTestDatabase } from "../support/env";
 import { Client } from "../support/http";
 import { waitForMail } from "../support/mailbox";
 import { waitFor } from "../support/wait";
+import { readZipEntries } from "../support/zip";
 import { makeExportablePlate, person, SKY } from "./edition-fixtures";
 
 requireTestDatabase();
@@ -48,29 +48,6 @@ afterAll(async () => {
 
 const editorPerson = person("editor");
 let editor: Actor;
-
-function unzip(bytes: Buffer): Promise<Map<string, Buffer>> {
-  return new Promise((resolve, reject) => {
-    yauzl.fromBuffer(bytes, { lazyEntries: true }, (err, zip) => {
-      if (err || !zip) return reject(err ?? new Error("no zip"));
-      const out = new Map<string, Buffer>();
-      zip.on("entry", (entry: yauzl.Entry) => {
-        zip.openReadStream(entry, (e, stream) => {
-          if (e || !stream) return reject(e ?? new Error("no stream"));
-          const chunks: Buffer[] = [];
-          stream.on("data", (c: Buffer) => chunks.push(c));
-          stream.on("end", () => {
-            out.set(entry.fileName, Buffer.concat(chunks));
-            zip.readEntry();
-          });
-        });
-      });
-      zip.on("end", () => resolve(out));
-      zip.on("error", reject);
-      zip.readEntry();
-    });
-  });
-}
 
 let editionId = "";
 const plateIds: string[] = [];
@@ -142,7 +119,7 @@ describe("edition export", () => {
     expect(res.status).toBe(200);
     expect(res.headers.get("content-type")).toBe("application/zip");
     expect(res.headers.get("content-disposition")).toMatch(/attachment; filename="Corona-Notes-.*_No.-41_print-bundle\.zip"/);
-    for (const [k, v] of await unzip(Buffer.from(await res.arrayBuffer()))) files.set(k, v);
+    for (const [k, v] of await readZipEntries(Buffer.from(await res.arrayBuffer()))) files.set(k, v);
     metadata = JSON.parse(files.get("metadata.json")!.toString("utf8"));
     const mail = await waitForMail(editorPerson.email, (m) => m.subject.includes(`Corona Notes ${tag}`));
     expect(mail.subject).toMatch(/^Print bundle ready/);

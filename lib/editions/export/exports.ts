@@ -15,7 +15,7 @@ import { enqueue } from "@/lib/queue/enqueue";
 import { bucketName, getS3, isMissingObject } from "@/lib/storage";
 import { parseInput } from "@/lib/validation";
 import { checkTemplate, DEFAULT_FILE_NAME_TEMPLATE } from "../file-names";
-import { lockEdition } from "../guards";
+import { findEditionRow, lockEdition } from "../guards";
 import { findActiveExport } from "./active";
 
 const EDITION = "That edition";
@@ -80,13 +80,6 @@ function toDto(editionId: string, r: typeof editionExports.$inferSelect): Export
   };
 }
 
-async function requireEdition(db: DbOrTx, editionId: string): Promise<{ id: string; title: string; state: string }> {
-  if (!isUuid(editionId)) throw notFound(EDITION);
-  const [row] = await db.select({ id: editions.id, title: editions.title, state: editions.state }).from(editions).where(eq(editions.id, editionId)).limit(1);
-  if (!row) throw notFound(EDITION);
-  return row;
-}
-
 /** Checks the edition can be exported and queues the job; one export at a time per edition. */
 export async function startExport(db: Db, actor: Actor | null, editionId: string, input: unknown): Promise<ExportDto> {
   const editor = requirePermission(actor, "editions:use", "exporting editions");
@@ -121,7 +114,7 @@ export async function startExport(db: Db, actor: Actor | null, editionId: string
 
 export async function listExports(db: Db, actor: Actor | null, editionId: string): Promise<ExportDto[]> {
   requirePermission(actor, "editions:use", "print bundles");
-  await requireEdition(db, editionId);
+  await findEditionRow(db, editionId);
   // Settles an export whose job the queue gave up on, so the list does not show it running for ever.
   await findActiveExport(db, editionId);
   const rows = await db.select().from(editionExports).where(eq(editionExports.editionId, editionId)).orderBy(desc(editionExports.createdAt)).limit(50);
