@@ -27,7 +27,22 @@ export interface LinearFrame {
   encoding: "linear" | "srgb8";
   /** Capture time in UTC milliseconds since the epoch, when known. */
   captureTimeMs?: number;
+  /**
+   * Sensor defects at fixed positions (hot, stuck, dead pixels), 1 = masked: left
+   * out of the limb fit, registration and merge, never interpolated into the data.
+   */
+  badPixels?: Uint8Array;
+  /** Where blackLevel came from; "calibrated" when bias or dark frames were already subtracted from the planes. */
+  blackLevelSource?: BlackLevelSource;
 }
+
+/**
+ * The offset (bias pedestal) of a linear frame, in order of preference:
+ * subtracted with bias or dark masters ("calibrated"), read from the file's own
+ * cards or tags ("file"), solved from the bracket ("solved"), or none known
+ * ("none": taken as zero and named in the report).
+ */
+export type BlackLevelSource = "calibrated" | "file" | "solved" | "none";
 
 export type RegistrationMode = "moon" | "corona";
 export type StructureFilter = "mgn" | "nrgf";

@@ -25,6 +25,8 @@ export interface FrameProvenance {
   exposureS: number;
   exposureSource: ExposureSource;
   captureTimeMs?: number;
+  /** Where the capture time came from: the file's own metadata, or the photographer (times typed or imported). */
+  captureTimeSource?: "file" | "override";
   isTimeZoneAssumed?: boolean;
   instrument?: string;
 }
@@ -95,10 +97,14 @@ export async function decodeBracketFiles(
   exposureOverrides: Map<string, number> = new Map(),
   onProgress?: (fraction: number) => void,
   inPool?: PrepareInPool,
+  captureTimeOverrides: Map<string, number> = new Map(),
 ): Promise<DecodedBracket> {
   checkFileList(files);
   for (const [name, exposureS] of exposureOverrides) {
     if (!(Number.isFinite(exposureS) && exposureS > 0)) throw new ReductionInputError("bad-exposure", `${name}: the exposure given, ${exposureS} s, is not a positive number of seconds`);
+  }
+  for (const [name, ms] of captureTimeOverrides) {
+    if (!Number.isFinite(ms)) throw new ReductionInputError("missing-capture-time", `${name}: the capture time given is not a valid time`);
   }
   const decoded: DecodedFrame[] = new Array(files.length);
   const pooled: (PooledFrame | undefined)[] = new Array(files.length);
@@ -120,6 +126,7 @@ export async function decodeBracketFiles(
   const provenance: FrameProvenance[] = decoded.map((d, k) => {
     const override = exposureOverrides.get(d.name);
     const exposureS = override ?? d.metadata.exposureS;
+    const timeOverride = captureTimeOverrides.get(d.name);
     return {
       name: d.name,
       path: files[k],
@@ -130,8 +137,9 @@ export async function decodeBracketFiles(
       planeCount: d.image.planes.length,
       exposureS: exposureS ?? NaN,
       exposureSource: override !== undefined ? "override" : d.format === "fits" ? "fits-header" : "exif",
-      captureTimeMs: d.metadata.captureTimeMs,
-      isTimeZoneAssumed: d.metadata.isTimeZoneAssumed,
+      captureTimeMs: timeOverride ?? d.metadata.captureTimeMs,
+      captureTimeSource: timeOverride !== undefined ? "override" : d.metadata.captureTimeMs !== undefined ? "file" : undefined,
+      isTimeZoneAssumed: timeOverride !== undefined ? false : d.metadata.isTimeZoneAssumed,
       instrument: describeInstrument(d),
     };
   });
@@ -156,7 +164,7 @@ export async function decodeBracketFiles(
     blackLevel: d.blackLevel,
     whiteLevel: d.whiteLevel,
     encoding: d.encoding,
-    captureTimeMs: d.metadata.captureTimeMs,
+    captureTimeMs: provenance[k].captureTimeMs,
   }));
   const prepared = pooled.map((p, k) => (p?.prepared && p.preparedExposureS === frames[k].exposureS ? p.prepared : undefined));
   return { frames, provenance, prepared };

@@ -65,6 +65,7 @@ export function buildReport(input: {
         decoded: { width: p.width, height: p.height, planes: p.planeCount },
         exposure: { seconds: f.exposureS, source: p.exposureSource },
         captureTimeUtc: p.captureTimeMs === undefined ? null : new Date(p.captureTimeMs).toISOString(),
+        captureTimeSource: p.captureTimeSource ?? null,
         isTimeZoneAssumed: p.isTimeZoneAssumed ?? null,
         limb: {
           x: roundTo(f.limb.x), y: roundTo(f.limb.y), radiusPx: roundTo(f.limb.radiusPx), rmsPx: roundTo(f.limb.rmsPx),

@@ -27,6 +27,11 @@ export interface RunReductionOptions {
   params?: Partial<ReductionParams>;
   /** Exposure in seconds by file name; wins over the file's own value. */
   exposureOverrides?: Map<string, number>;
+  /**
+   * Capture times by file name, UTC milliseconds as the camera's clock showed them
+   * (the clock offset still applies, as to times read from files); win over the file's own.
+   */
+  captureTimeOverrides?: Map<string, number>;
   /** Where the overrides came from (e.g. the CSV's name), for the report. */
   exposureOverrideSource?: string;
   /** URL the tiles folder will be served from; IIIF ids are built on it. */
@@ -91,7 +96,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     // Frames are decoded, linearized and limb-fitted in two worker threads; the
     // pipeline takes those results as its own first stage would have made them.
     const pool = createPreparePool();
-    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), { pool, params }).finally(() => pool.close());
+    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), { pool, params }, options.captureTimeOverrides).finally(() => pool.close());
     const { frames, provenance } = decodedBracket;
     applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
     decodedBracket.prepared.forEach((p, i) => {
