@@ -117,8 +117,8 @@ export function computeBearingDeg(a: GeoPoint, b: GeoPoint): number {
   return ((Math.atan2(y, x) / DEG) % 360 + 360) % 360;
 }
 
-/** The point s km from a along the great circle leaving at the bearing. */
-function moveAlong(a: GeoPoint, bearingDeg: number, distanceKm: number): GeoPoint {
+/** The point s km from a along the great circle leaving at the bearing (mean sphere). */
+export function moveAlong(a: GeoPoint, bearingDeg: number, distanceKm: number): GeoPoint {
   const d = distanceKm / EARTH_MEAN_RADIUS_KM;
   const phi1 = a.latDeg * DEG;
   const theta = bearingDeg * DEG;

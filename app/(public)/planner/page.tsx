@@ -7,6 +7,7 @@ import { Countdown } from "@/components/planner/countdown";
 import { FrameDrawing } from "@/components/planner/frame-drawing";
 import { LadderTable } from "@/components/planner/ladder-table";
 import { NightModeToggle } from "@/components/planner/night-mode";
+import { PartialPhaseAdvice } from "@/components/planner/partial-phase-advice";
 import { PlannerForm } from "@/components/planner/planner-form";
 import { SavePlanForm } from "@/components/planner/save-plan-form";
 import { TimelineTable } from "@/components/planner/timeline-table";
@@ -18,14 +19,15 @@ import { listEclipses } from "@/lib/eclipses/eclipses";
 import { AppError } from "@/lib/errors";
 import { listKits } from "@/lib/kits/kits";
 import { computeFieldPlan, isNotVisible, type PlanResult } from "@/lib/planner/plan";
-import { plannerQuerySchema, resolvePlan, type ResolvedPlan } from "@/lib/planner/resolve";
+import { describePathLines, findCentralPath, findTotalityReach, type PathLines, type TotalityReach } from "@/lib/planner/path";
+import { parsePlannerQuery, resolvePlan, type PlannerFieldProblem, type ResolvedPlan } from "@/lib/planner/resolve";
 import { listPlans } from "@/lib/planner/saved-plans";
 import { listSites } from "@/lib/sites/sites";
 import { savePlanAction } from "./actions";
 
 export const metadata: Metadata = { title: "Field planner" };
 
-export default async function PlannerPage({ searchParams }: { searchParams: Promise<Record<string, string>> }) {
+export default async function PlannerPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const raw = await searchParams;
   const db = getDb();
   const actor = await currentActor();
@@ -37,22 +39,58 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
     isMember ? listPlans(db, actor) : null,
   ]);
 
-  const parsed = plannerQuerySchema.safeParse(raw);
-  const query = parsed.success ? parsed.data : plannerQuerySchema.parse({});
-  let problem = parsed.success ? "" : parsed.error.issues.map((i) => `${String(i.path[0] ?? "input")}: ${i.message}`).join("; ");
+  const parsedQuery = parsePlannerQuery(raw);
+  let query = parsedQuery.query;
+  const fieldProblems: PlannerFieldProblem[] = [...parsedQuery.problems];
+  const known = [...catalogue.featured, ...catalogue.upcoming, ...catalogue.past];
+  if (query.eclipse && !known.some((e) => e.id === query.eclipse)) {
+    fieldProblems.push({ field: "eclipse", label: "Eclipse", message: `Eclipse: there is no solar eclipse on ${query.eclipse} in the catalogue; choose one from the list.` });
+    query = { ...query, eclipse: undefined };
+  }
+  let problem = "";
   let resolved: ResolvedPlan | null = null;
   let plan: PlanResult | null = null;
-  if (!problem) {
-    try {
-      resolved = await resolvePlan(db, actor, query);
-      plan = computeFieldPlan(resolved.input);
-    } catch (err) {
-      if (err instanceof AppError || isNotVisible(err)) problem = (err as Error).message;
-      else throw err;
+  try {
+    // A saved site or kit that is not (or no longer) the visitor's own: say so beside it and plan without it.
+    for (let attempt = 0; !resolved; attempt++) {
+      try {
+        resolved = await resolvePlan(db, actor, query);
+      } catch (err) {
+        const field = err instanceof AppError && err.code === "not_found" ? (query.site && /site/.test(err.message) ? "site" : query.kit && /kit/.test(err.message) ? "kit" : null) : null;
+        if (!field || attempt > 1) throw err;
+        fieldProblems.push({ field, label: field === "site" ? "One of your sites" : "One of your kits", message: `${field === "site" ? "Site" : "Kit"}: not one of yours here (sign in as its owner, or choose another).` });
+        query = { ...query, [field]: undefined };
+      }
     }
+    plan = computeFieldPlan(resolved.input);
+  } catch (err) {
+    if (err instanceof AppError || isNotVisible(err)) problem = (err as Error).message;
+    else throw err;
   }
   const eclipseChoices = [...catalogue.featured, ...catalogue.upcoming.filter((e) => !e.featured)];
-  const share = new URLSearchParams(Object.entries(raw).filter(([, v]) => typeof v === "string" && v !== ""));
+  // Only the values that were used go into the links: a refused one would only be refused again.
+  const refused = new Set<string>(fieldProblems.map((p) => p.field));
+  const share = new URLSearchParams(
+    Object.entries(raw).flatMap(([k, v]) => {
+      const text = Array.isArray(v) ? v[0] : v;
+      return typeof text === "string" && text !== "" && !refused.has(k) ? [[k, text] as [string, string]] : [];
+    }),
+  );
+  const eclipse = resolved?.eclipse ?? null;
+  const path = eclipse && eclipse.kind !== "partial" ? findCentralPath(eclipse) : null;
+  const pathLines: PathLines | null = path && eclipse && eclipse.kind !== "partial" ? describePathLines(path, eclipse.kind) : null;
+  const localKind = plan?.circumstances.kind ?? null;
+  let reach: TotalityReach | null = null;
+  if (plan && localKind === "partial" && path && resolved) reach = findTotalityReach(path, resolved.input.site);
+  let insideHref: string | null = null;
+  if (reach) {
+    const there = new URLSearchParams(share);
+    there.delete("site");
+    there.delete("place");
+    there.set("lat", reach.inside.latDeg.toFixed(3));
+    there.set("lon", reach.inside.lonDeg.toFixed(3));
+    insideHref = `/planner?${there}`;
+  }
   const c2 = plan?.timeline.find((e) => e.key === "C2");
   const site = resolved?.input.site;
 
@@ -62,7 +100,22 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
         <NightModeToggle />
       </PageTitle>
       <SolarSafetyNote className="mb-8" />
-      <PlannerForm query={query} eclipses={eclipseChoices} sites={sites} kits={kits} eclipseId={resolved?.eclipse.id ?? query.eclipse ?? eclipseChoices[0]?.id ?? ""} />
+      {fieldProblems.length ? (
+        <div className="mb-6" data-testid="address-problems">
+          <FormMessage tone="danger">
+            Some values in the address could not be used, so the plan below leaves them out: {fieldProblems.map((p) => p.message).join(" ")}
+          </FormMessage>
+        </div>
+      ) : null}
+      <PlannerForm
+        query={query}
+        eclipses={eclipseChoices}
+        sites={sites}
+        kits={kits}
+        eclipseId={resolved?.eclipse.id ?? eclipseChoices[0]?.id ?? ""}
+        path={pathLines}
+        problems={fieldProblems}
+      />
       {problem ? (
         <div className="mt-8">
           <FormMessage tone="danger">{problem}</FormMessage>
@@ -100,6 +153,9 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
               </Link>
             </div>
           </section>
+          {localKind !== "total" ? (
+            <PartialPhaseAdvice localKind={localKind === "annular" ? "annular" : "partial"} eclipseKind={resolved.eclipse.kind} reach={reach} planHref={insideHref} />
+          ) : null}
           <TimelineTable events={plan.timeline} timeZone={resolved.timeZone} />
           <LadderTable steps={plan.ladder} isos={resolved.input.isos} fNumber={resolved.input.kit.fNumber * (resolved.input.kit.teleconverter ?? 1)} />
           <section aria-labelledby="framing" className="grid gap-6 md:grid-cols-2">
