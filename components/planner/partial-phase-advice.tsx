@@ -1,9 +1,6 @@
-import type { GeoPoint } from "@/lib/astro/central-path";
+import Link from "next/link";
+import { formatPoint } from "@/components/eclipses/eclipse-table";
 import type { TotalityReach } from "@/lib/planner/path";
-
-function formatPoint(p: GeoPoint): string {
-  return `${Math.abs(p.latDeg).toFixed(2)}° ${p.latDeg >= 0 ? "N" : "S"}, ${Math.abs(p.lonDeg).toFixed(2)}° ${p.lonDeg >= 0 ? "E" : "W"}`;
-}
 
 /**
  * For a place that sees no totality: how far away totality (or annularity) is and in which
@@ -30,12 +27,12 @@ export function PartialPhaseAdvice({
       {localKind === "partial" ? (
         reach ? (
           <p className="mt-2" data-testid="totality-reach">
-            The nearest place that sees {goal} is about <strong>{reach.distanceKm} km</strong> to the <strong>{reach.direction}</strong> ({formatPoint(reach.point)}), at the
+            The nearest place that sees {goal} is about <strong>{reach.distanceKm} km</strong> to the <strong>{reach.direction}</strong> ({formatPoint(reach.point.latDeg, reach.point.lonDeg, 2)}), at the
             edge of the path shown on the map.{" "}
             {planHref ? (
-              <a href={planHref} className="underline">
+              <Link href={planHref} className="underline">
                 Plan for a place just inside the path
-              </a>
+              </Link>
             ) : null}
           </p>
         ) : (
