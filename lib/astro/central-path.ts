@@ -26,6 +26,7 @@
 import { AstroTime, Body, C_AUDAY, GeoMoon, GeoVector, KM_PER_AU, RotateVector, Rotation_EQJ_EQD, SiderealTime } from "astronomy-engine";
 import { AstroError } from "./errors";
 import { EARTH_EQUATORIAL_RADIUS_KM, MOON_K_UMBRAL, SUN_SEMI_DIAMETER_1AU_ARCSEC } from "./positions";
+import { findMinimumByGoldenSection } from "./search";
 import { makeAstroTime, validateUtcMs } from "./site-time";
 
 const DEG = Math.PI / 180;
@@ -235,30 +236,7 @@ function leastMarginKm(table: EphemerisTable, ground: GeoPoint, nearMs: number):
   const phi = ground.latDeg * DEG;
   const lam = ground.lonDeg * DEG;
   const up: Vec3 = [Math.cos(phi) * Math.cos(lam), Math.cos(phi) * Math.sin(lam), Math.sin(phi)];
-  const f = (ms: number) => marginKm(shadowAt(table, ms), fixed, up);
-  const g = (Math.sqrt(5) - 1) / 2;
-  let a = nearMs - PASSAGE_HALF_WINDOW_MS;
-  let b = nearMs + PASSAGE_HALF_WINDOW_MS;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let fc = f(c);
-  let fd = f(d);
-  while (b - a > 100) {
-    if (fc < fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - g * (b - a);
-      fc = f(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + g * (b - a);
-      fd = f(d);
-    }
-  }
-  return Math.min(fc, fd);
+  return findMinimumByGoldenSection((ms) => marginKm(shadowAt(table, ms), fixed, up), nearMs - PASSAGE_HALF_WINDOW_MS, nearMs + PASSAGE_HALF_WINDOW_MS, 100).value;
 }
 
 /** The limit on one side: the distance along the bearing where the least margin crosses zero, to 5 m. */
