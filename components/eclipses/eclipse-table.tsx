@@ -34,8 +34,9 @@ export function EclipseTable({ caption, rows }: { caption: string; rows: Eclipse
           {rows.map((e) => (
             <TableRow key={e.id}>
               <TableCell className="font-mono">
-                <Link href={`/eclipses/${e.id}`} aria-label={describeEclipse(e)}>
+                <Link href={`/eclipses/${e.id}`}>
                   {e.id}
+                  <span className="sr-only">: {describeEclipse(e)}</span>
                 </Link>{" "}
                 {e.peakAt.slice(11, 16)}
               </TableCell>
