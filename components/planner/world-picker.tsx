@@ -6,43 +6,12 @@ import type { GeometryCollection, Topology } from "topojson-specification";
 import land from "world-atlas/land-110m.json";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import type { GeoPoint } from "@/lib/astro/central-path";
 import type { PathLines } from "@/lib/planner/path";
+import { PathCloseUp } from "./path-close-up";
+import { drawPathLines, type Project } from "./path-drawing";
 
 const WIDTH = 720;
 const HEIGHT = 360;
-
-type Project = (p: GeoPoint) => [number, number];
-
-/** A line through the points, broken at gaps and where it crosses the map's edge at 180 degrees. */
-function polyline(points: (GeoPoint | null)[], project: Project): string {
-  let d = "";
-  let previous: GeoPoint | null = null;
-  for (const p of points) {
-    if (!p) {
-      previous = null;
-      continue;
-    }
-    const [x, y] = project(p);
-    const jump = previous !== null && Math.abs(p.lonDeg - previous.lonDeg) > 180;
-    d += `${previous === null || jump ? "M" : "L"}${x.toFixed(1)},${y.toFixed(1)}`;
-    previous = p;
-  }
-  return d;
-}
-
-/** The band between the limits as small quadrilaterals (none across the 180-degree edge). */
-function band(north: (GeoPoint | null)[], south: (GeoPoint | null)[], project: Project): string {
-  let d = "";
-  for (let i = 1; i < north.length; i++) {
-    const corners = [north[i - 1], north[i], south[i], south[i - 1]];
-    if (corners.some((c) => c === null)) continue;
-    const lons = (corners as GeoPoint[]).map((c) => c.lonDeg);
-    if (Math.max(...lons) - Math.min(...lons) > 180) continue;
-    d += (corners as GeoPoint[]).map((c, k) => `${k === 0 ? "M" : "L"}${project(c).map((v) => v.toFixed(1)).join(",")}`).join("") + "Z";
-  }
-  return d;
-}
 
 /**
  * Latitude, longitude and elevation fields with a world outline to pick a place
@@ -76,7 +45,7 @@ export function WorldPicker({
   const drawn = useMemo(() => {
     if (!path) return null;
     const project: Project = (p) => projection([p.lonDeg, p.latDeg]) ?? [0, 0];
-    return { band: band(path.north, path.south, project), central: polyline(path.central, project), north: polyline(path.north, project), south: polyline(path.south, project) };
+    return drawPathLines(path, project);
   }, [path, projection]);
   const pathWord = path?.kind === "annular" ? "annularity" : path?.kind === "hybrid" ? "totality or annularity" : "totality";
 
@@ -132,6 +101,7 @@ export function WorldPicker({
           </g>
         ) : null}
       </svg>
+      {path ? <PathCloseUp path={path} site={latDeg !== "" && lonDeg !== "" ? { latDeg: Number(latDeg), lonDeg: Number(lonDeg) } : null} /> : null}
       {path ? (
         <p id={legendId} className="flex flex-wrap items-center gap-x-4 gap-y-1 text-sm text-ink-muted">
           <span>
