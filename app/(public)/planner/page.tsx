@@ -81,7 +81,8 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
   const pathLines: PathLines | null = path && eclipse && eclipse.kind !== "partial" ? describePathLines(path, eclipse.kind) : null;
   const localKind = plan?.circumstances.kind ?? null;
   let reach: TotalityReach | null = null;
-  if (plan && localKind === "partial" && path && resolved) reach = findTotalityReach(path, resolved.input.site);
+  // Outside the path, and also where the eclipse is not seen at all: how far the path is.
+  if ((localKind === "partial" || (!plan && problem)) && path && resolved) reach = findTotalityReach(path, resolved.input.site);
   let insideHref: string | null = null;
   if (reach) {
     const there = new URLSearchParams(share);
@@ -119,6 +120,14 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
       {problem ? (
         <div className="mt-8">
           <FormMessage tone="danger">{problem}</FormMessage>
+          {reach && insideHref ? (
+            <p className="mt-3" data-testid="totality-reach">
+              The nearest place that sees {resolved?.eclipse.kind === "annular" ? "annularity" : "totality"} is about {reach.distanceKm} km to the {reach.direction}.{" "}
+              <Link href={insideHref} className="underline">
+                Plan for a place just inside the path
+              </Link>
+            </p>
+          ) : null}
         </div>
       ) : null}
       {plan && resolved && site ? (
