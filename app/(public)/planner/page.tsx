@@ -16,11 +16,8 @@ import { buttonClasses } from "@/components/ui/button";
 import { getDb } from "@/db/client";
 import { can } from "@/lib/auth/permissions";
 import { listEclipses } from "@/lib/eclipses/eclipses";
-import { AppError } from "@/lib/errors";
 import { listKits } from "@/lib/kits/kits";
-import { computeFieldPlan, isNotVisible, type PlanResult } from "@/lib/planner/plan";
-import { describePathLines, findCentralPath, findTotalityReach, type PathLines, type TotalityReach } from "@/lib/planner/path";
-import { parsePlannerQuery, resolvePlan, type PlannerFieldProblem, type ResolvedPlan } from "@/lib/planner/resolve";
+import { preparePlannerPage } from "@/lib/planner/page-plan";
 import { listPlans } from "@/lib/planner/saved-plans";
 import { listSites } from "@/lib/sites/sites";
 import { savePlanAction } from "./actions";
@@ -39,59 +36,10 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
     isMember ? listPlans(db, actor) : null,
   ]);
 
-  const parsedQuery = parsePlannerQuery(raw);
-  let query = parsedQuery.query;
-  const fieldProblems: PlannerFieldProblem[] = [...parsedQuery.problems];
-  const known = [...catalogue.featured, ...catalogue.upcoming, ...catalogue.past];
-  if (query.eclipse && !known.some((e) => e.id === query.eclipse)) {
-    fieldProblems.push({ field: "eclipse", label: "Eclipse", message: `Eclipse: there is no solar eclipse on ${query.eclipse} in the catalogue; choose one from the list.` });
-    query = { ...query, eclipse: undefined };
-  }
-  let problem = "";
-  let resolved: ResolvedPlan | null = null;
-  let plan: PlanResult | null = null;
-  try {
-    // A saved site or kit that is not (or no longer) the visitor's own: say so beside it and plan without it.
-    for (let attempt = 0; !resolved; attempt++) {
-      try {
-        resolved = await resolvePlan(db, actor, query);
-      } catch (err) {
-        const field = err instanceof AppError && err.code === "not_found" ? (query.site && /site/.test(err.message) ? "site" : query.kit && /kit/.test(err.message) ? "kit" : null) : null;
-        if (!field || attempt > 1) throw err;
-        fieldProblems.push({ field, label: field === "site" ? "One of your sites" : "One of your kits", message: `${field === "site" ? "Site" : "Kit"}: not one of yours here (sign in as its owner, or choose another).` });
-        query = { ...query, [field]: undefined };
-      }
-    }
-    plan = computeFieldPlan(resolved.input);
-  } catch (err) {
-    if (err instanceof AppError || isNotVisible(err)) problem = (err as Error).message;
-    else throw err;
-  }
+  const known = [...catalogue.featured, ...catalogue.upcoming, ...catalogue.past].map((e) => e.id);
+  const { query, fieldProblems, problem, resolved, plan, share, pathLines, reach, insideHref } = await preparePlannerPage(db, actor, raw, known);
   const eclipseChoices = [...catalogue.featured, ...catalogue.upcoming.filter((e) => !e.featured)];
-  // Only the values that were used go into the links: a refused one would only be refused again.
-  const refused = new Set<string>(fieldProblems.map((p) => p.field));
-  const share = new URLSearchParams(
-    Object.entries(raw).flatMap(([k, v]) => {
-      const text = Array.isArray(v) ? v[0] : v;
-      return typeof text === "string" && text !== "" && !refused.has(k) ? [[k, text] as [string, string]] : [];
-    }),
-  );
-  const eclipse = resolved?.eclipse ?? null;
-  const path = eclipse && eclipse.kind !== "partial" ? findCentralPath(eclipse) : null;
-  const pathLines: PathLines | null = path && eclipse && eclipse.kind !== "partial" ? describePathLines(path, eclipse.kind) : null;
   const localKind = plan?.circumstances.kind ?? null;
-  let reach: TotalityReach | null = null;
-  // Outside the path, and also where the eclipse is not seen at all: how far the path is.
-  if ((localKind === "partial" || (!plan && problem)) && path && resolved) reach = findTotalityReach(path, resolved.input.site);
-  let insideHref: string | null = null;
-  if (reach) {
-    const there = new URLSearchParams(share);
-    there.delete("site");
-    there.delete("place");
-    there.set("lat", reach.inside.latDeg.toFixed(3));
-    there.set("lon", reach.inside.lonDeg.toFixed(3));
-    insideHref = `/planner?${there}`;
-  }
   const c2 = plan?.timeline.find((e) => e.key === "C2");
   const site = resolved?.input.site;
 
