@@ -109,7 +109,13 @@ export function parsePlannerQuery(raw: Record<string, string | string[] | undefi
       problems.push({ field: key, label: PLANNER_FIELD_LABELS[key], message: `${PLANNER_FIELD_LABELS[key]}: ${expected}; the address gave “${shown}”.` });
     }
   }
-  return { query: plannerQuerySchema.parse(clean), problems };
+  const query = plannerQuerySchema.parse(clean);
+  // One typed size without the other draws nothing: say which one is missing.
+  if ((query.sw === undefined) !== (query.sh === undefined)) {
+    const missing = query.sw === undefined ? "sw" : "sh";
+    problems.push({ field: missing, label: PLANNER_FIELD_LABELS[missing], message: `${PLANNER_FIELD_LABELS[missing]}: needed as well when the other size is typed.` });
+  }
+  return { query, problems };
 }
 
 export interface ResolvedPlan {

@@ -100,6 +100,11 @@ describe("planner query", () => {
     for (const p of problems) expect(p.message).not.toMatch(/^(lat|sensor)\b/);
   });
 
+  it("asks for the other sensor size when only one is typed", () => {
+    const { problems } = parsePlannerQuery({ sw: "23.5", sh: "" });
+    expect(problems).toEqual([{ field: "sh", label: "Sensor height", message: "Sensor height: needed as well when the other size is typed." }]);
+  });
+
   it("takes a sensor from the list, and typed sizes over it", () => {
     expect(resolveSensor({ sensor: "full-frame" })).toEqual({ widthMm: 36, heightMm: 24 });
     expect(resolveSensor({ sensor: "full-frame", sw: 17.3, sh: 13 })).toEqual({ widthMm: 17.3, heightMm: 13 });
