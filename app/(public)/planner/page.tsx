@@ -39,6 +39,8 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
   const known = [...catalogue.featured, ...catalogue.upcoming, ...catalogue.past].map((e) => e.id);
   const { query, fieldProblems, problem, resolved, plan, share, pathLines, reach, insideHref } = await preparePlannerPage(db, actor, raw, known);
   const eclipseChoices = [...catalogue.featured, ...catalogue.upcoming.filter((e) => !e.featured)];
+  // A past eclipse reached from its own page stays chosen in the list.
+  if (resolved && !eclipseChoices.some((e) => e.id === resolved.eclipse.id)) eclipseChoices.push(resolved.eclipse);
   const localKind = plan?.circumstances.kind ?? null;
   const c2 = plan?.timeline.find((e) => e.key === "C2");
   const site = resolved?.input.site;
