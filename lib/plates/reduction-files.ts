@@ -10,6 +10,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { notFound } from "@/lib/errors";
 import { findReduction } from "@/lib/reductions/reductions";
 import { bucketName, getS3, isMissingObject } from "@/lib/storage";
+import { isPlateDownloadName } from "./download-names";
 import { LICENCE_INFO } from "./licences";
 
 const TILE = /^(natural|structure)(\.dzi|_files\/\d{1,2}\/\d{1,4}_\d{1,4}\.jpg|-iiif\/info\.json|-iiif\/(full|\d{1,6},\d{1,6},\d{1,6},\d{1,6})\/(max|\d{1,6},\d{0,6})\/0\/default\.jpg)$/;
@@ -70,7 +71,11 @@ async function decideAccess(db: DbOrTx, actor: Actor | null, reductionId: string
   return { access: "private", prefix: red?.outputs?.prefix ?? null };
 }
 
-export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reductionId: string, path: string, asDownload: boolean): Promise<Response> {
+/**
+ * Serves one file. `downloadName`, when it follows the plate download pattern for this very
+ * file (download-names.ts), becomes the saved file's name; any other value is ignored.
+ */
+export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reductionId: string, path: string, asDownload: boolean, downloadName?: string | null): Promise<Response> {
   const kind = classifyReductionPath(path);
   if (!kind || !/^[0-9a-f-]{36}$/i.test(reductionId)) throw notFound("That file");
   const { access, prefix } = await decideAccess(db, actor, reductionId, kind).catch(() => {
@@ -94,7 +99,8 @@ export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reduct
   });
   if (out.ContentLength !== undefined) headers.set("content-length", String(out.ContentLength));
   if (asDownload || kind === "download") {
-    headers.set("content-disposition", `attachment; filename="crownlight-${reductionId.slice(0, 8)}-${path.replace(/[^a-z0-9.]/gi, "-")}"`);
+    const name = downloadName && isPlateDownloadName(downloadName, path) ? downloadName : `crownlight-${reductionId.slice(0, 8)}-${path.replace(/[^a-z0-9.]/gi, "-")}`;
+    headers.set("content-disposition", `attachment; filename="${name}"`);
   }
   const body = out.Body?.transformToWebStream();
   return new Response(body ?? null, { status: 200, headers });
