@@ -41,7 +41,7 @@ export const DEFAULT_DEFECT_THRESHOLDS: DefectThresholds = {
   deadResponse: 0.5,
   brightResponse: 1.5,
   sameValueShare: 0.1,
-  bracketContrast: 3,
+  bracketContrast: 2,
   bracketSigma: 8,
   bracketMinFrames: 2,
 };

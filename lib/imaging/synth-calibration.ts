@@ -190,7 +190,8 @@ function exposeSensor(
         out[i] = sensor.whiteLevel;
         continue;
       }
-      const light = lightDn ? Math.max(0, lightDn(c, i)) * resp[i] : 0;
+      // A sampled light keeps its negative read-noise excursions: clamping them would bias dark areas upwards.
+      const light = lightDn ? (lightIsSampled ? lightDn(c, i) : Math.max(0, lightDn(c, i))) * resp[i] : 0;
       const darkSignal = dead.has(i) ? 0 : sensor.darkCurrentDnPerS[i] * exposureS;
       // Light that is already a noisy realisation (a synthetic light frame) gets no second photon noise.
       const mean = lightIsSampled ? darkSignal : light + darkSignal;
