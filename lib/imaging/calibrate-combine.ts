@@ -8,7 +8,10 @@ import { ImagingError, requireNumberInRange } from "./errors";
  * shipped by Debian, called by ccdproc 2.4's Combiner.sigma_clipping): per pixel,
  * a centre and a spread of the values still kept; a value is rejected when it lies
  * strictly below centre - lowSigma x spread or strictly above centre + highSigma x
- * spread; repeated until nothing more is rejected or maxRounds is reached.
+ * spread; repeated on the values kept until nothing more is rejected or maxRounds
+ * is reached. As astropy's fast C path (used for these string options along an
+ * axis) does, the last bounds then decide over all values, so a value rejected in an
+ * early round is kept again when the later, tighter set gives wider bounds.
  *
  * The defaults are ccdproc's own (read in ccdproc/combiner.py of 2.4.0):
  * low_thresh = high_thresh = 3, func = "mean", dev_func = "std" (numpy's, ddof 0),
@@ -95,6 +98,8 @@ export function combineSigmaClippedMedian(stack: Float32Array[], options?: Sigma
     for (let k = 0; k < n; k++) values[k] = stack[k][i];
     let m = n;
     for (let k = 0; k < n; k++) kept[k] = values[k];
+    let lo = -Infinity;
+    let hi = Infinity;
     for (let round = 0; round < o.maxRounds && m > 0; round++) {
       let centre: number;
       let spread: number;
@@ -122,13 +127,17 @@ export function combineSigmaClippedMedian(stack: Float32Array[], options?: Sigma
           spread = MAD_TO_SIGMA * medianOfSorted(work, m);
         }
       }
-      const lo = centre - o.lowSigma * spread;
-      const hi = centre + o.highSigma * spread;
+      lo = centre - o.lowSigma * spread;
+      hi = centre + o.highSigma * spread;
       let next = 0;
       for (let k = 0; k < m; k++) if (!(kept[k] < lo || kept[k] > hi)) kept[next++] = kept[k];
       if (next === m) break;
       m = next;
     }
+    // astropy's C implementation returns the last bounds and masks every value outside them:
+    // a value rejected in an early round comes back when later bounds are wider.
+    m = 0;
+    for (let k = 0; k < n; k++) if (!(values[k] < lo || values[k] > hi)) kept[m++] = values[k];
     rejected += n - m;
     if (m === 0) {
       for (let k = 0; k < n; k++) kept[k] = values[k];

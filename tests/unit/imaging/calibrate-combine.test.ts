@@ -34,6 +34,19 @@ describe("combineSigmaClippedMedian", () => {
     expect(combineSigmaClippedMedian(stackOf([1, 2, 3, 4, 100])).combined[0]).toBe(3);
   });
 
+  it("lets the last bounds decide over all values, as astropy's C path does", () => {
+    // Computed with astropy 5.2 (Debian) sigma_clip(sigma=3, maxiters=5, cenfunc="median", stdfunc="mad_std",
+    // axis=0): round 1 bounds 594.55..603.45 drop 594, round 2 bounds 592.83..606.17 take it back; nothing is masked.
+    const values = [602, 603, 598, 598, 600, 601, 596, 600, 594, 599, 599, 599, 602];
+    const r = combineSigmaClippedMedian(stackOf(values), { centre: "median", spread: "mad-std", maxRounds: 5 });
+    expect(r.rejectedFraction).toBe(0);
+    expect(r.combined[0]).toBe(599);
+    // One round only: 594 stays out.
+    const once = combineSigmaClippedMedian(stackOf(values), { centre: "median", spread: "mad-std", maxRounds: 1 });
+    expect(once.rejectedFraction).toBeCloseTo(1 / 13, 12);
+    expect(once.combined[0]).toBe(599.5);
+  });
+
   it("clips the low side by lowSigma and the high side by highSigma", () => {
     // Median 10, MAD 1: -40 and 60 lie 34 sigma out, 8 and 12 only 1.35.
     const values = [8, 9, 10, 11, 12, 9, 10, 11, 10, 10, -40, 60];
