@@ -63,6 +63,8 @@ export interface FrameFlags {
    * quality is "failed" the numbers are whatever the fit reached (0 if none) and mean nothing.
    */
   limb?: { cx: number; cy: number; radiusPx: number; rmsPx: number; quality: "good" | "doubtful" | "failed" };
+  /** Colour planes of the decoded image (1 grey, 3 colour); calibration frames must match the lights'. */
+  planeCount?: number;
 }
 
 export const frames = pgTable(

@@ -8,6 +8,7 @@ import { frames } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { findOwnOpenSet } from "./access";
+import { findCalibrationFaultInSet, isCalibrationKind, toFrameShape } from "./calibration-check";
 import { toFrameDto } from "./bracket-sets";
 import type { FrameDto } from "./dto";
 import type { CorrectFrameInput } from "./schemas";
@@ -19,6 +20,11 @@ export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: strin
   if (!frame) throw notFound("That frame");
   if (frame.ingestState === "refused" && input.included === true) {
     throw new AppError("conflict", `${frame.originalFileName} was refused (${frame.refusalReason ?? "no reason recorded"}) and cannot be included.`);
+  }
+  if (input.kind !== undefined && isCalibrationKind(input.kind) && frame.ingestState === "ingested") {
+    // Still being ingested: the ingest makes the same check once the frame is decoded.
+    const fault = await findCalibrationFaultInSet(db, set.id, frame.id, input.kind, toFrameShape(frame));
+    if (fault) throw new AppError("invalid_input", fault, [{ field: "kind", message: fault }]);
   }
   const [row] = await db
     .update(frames)
