@@ -149,15 +149,53 @@ export function combineSigmaClippedMedian(stack: Float32Array[], options?: Sigma
   return { combined, rejectedFraction: rejected / (n * size) };
 }
 
+/**
+ * Moves the k-th smallest of a[lo..hi] to a[k], smaller ones before it and larger
+ * after (Hoare's selection, "Algorithm 65: FIND", CACM 4:321, 1961, with a
+ * median-of-three pivot): linear time on average, where a full sort of a
+ * many-megapixel plane is not.
+ */
+function selectKth(a: Float32Array, k: number): void {
+  let lo = 0;
+  let hi = a.length - 1;
+  while (hi > lo) {
+    const mid = (lo + hi) >> 1;
+    // Median of three as the pivot guards against sorted and constant runs.
+    const x = a[lo], y = a[mid], z = a[hi];
+    const pivot = x < y ? (y < z ? y : x < z ? z : x) : x < z ? x : y < z ? z : y;
+    let i = lo;
+    let j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        const t = a[i];
+        a[i] = a[j];
+        a[j] = t;
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return;
+  }
+}
+
 /** Exact median of the values (where valid is 1, when given; NaN left out), as numpy's median; NaN when none. */
 export function computeMedian(values: Float32Array, valid?: Uint8Array): number {
   const picked = new Float32Array(values.length);
   let count = 0;
   for (let i = 0; i < values.length; i++) if ((!valid || valid[i]) && !Number.isNaN(values[i])) picked[count++] = values[i];
   if (count === 0) return NaN;
-  const sorted = picked.subarray(0, count).sort();
+  const a = picked.subarray(0, count);
   const h = count >> 1;
-  return count % 2 === 1 ? sorted[h] : (sorted[h - 1] + sorted[h]) / 2;
+  selectKth(a, h);
+  if (count % 2 === 1) return a[h];
+  // Even count: the other middle value is the largest of those before a[h].
+  let below = -Infinity;
+  for (let i = 0; i < h; i++) if (a[i] > below) below = a[i];
+  return (below + a[h]) / 2;
 }
 
 /** Median and robust spread (MAD x 1.4826, astropy's mad_std) of the values, optionally where valid is 1. */

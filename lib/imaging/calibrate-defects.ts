@@ -69,8 +69,8 @@ export interface DefectInput {
   frames: { bias: LinearFrame[]; darks: LinearFrame[]; flats: LinearFrame[] };
 }
 
-/** Median of the 8 neighbours (fewer at the border) of pixel (x, y). */
-function neighbourMedian(p: Float32Array, width: number, height: number, x: number, y: number, scratch: Float32Array): number {
+/** Median of the 8 neighbours (fewer at the border) of pixel (x, y), by insertion into the scratch array. */
+function neighbourMedian(p: Float32Array, width: number, height: number, x: number, y: number, scratch: Float64Array): number {
   let n = 0;
   for (let dy = -1; dy <= 1; dy++) {
     const yy = y + dy;
@@ -78,11 +78,16 @@ function neighbourMedian(p: Float32Array, width: number, height: number, x: numb
     for (let dx = -1; dx <= 1; dx++) {
       const xx = x + dx;
       if ((dx === 0 && dy === 0) || xx < 0 || xx >= width) continue;
-      scratch[n++] = p[yy * width + xx];
+      const v = p[yy * width + xx];
+      let j = n++;
+      while (j > 0 && scratch[j - 1] > v) {
+        scratch[j] = scratch[j - 1];
+        j--;
+      }
+      scratch[j] = v;
     }
   }
-  const s = scratch.subarray(0, n).sort();
-  return n % 2 === 1 ? s[n >> 1] : (s[(n >> 1) - 1] + s[n >> 1]) / 2;
+  return n % 2 === 1 ? scratch[n >> 1] : (scratch[(n >> 1) - 1] + scratch[n >> 1]) / 2;
 }
 
 function rawMedianAt(frames: LinearFrame[], c: number, i: number): number {
@@ -120,7 +125,7 @@ export function classifyDefects(input: DefectInput, t: DefectThresholds): { map:
   const size = width * height;
   // 1 hot, 2 dead, 3 stuck: the larger wins across planes.
   const category = new Uint8Array(size);
-  const scratch = new Float32Array(8);
+  const scratch = new Float64Array(8);
   const offsetRef = bias ?? (darks.length > 0 && !darks[0].biasSubtracted ? darks[0].planes : undefined);
   for (let c = 0; c < planeCount; c++) {
     const hot = new Uint8Array(size);

@@ -78,6 +78,15 @@ describe("computeMedian and computeRobustStats", () => {
     expect(computeMedian(Float32Array.of(4, 1, 3, 2))).toBe(2.5);
     expect(computeMedian(Float32Array.of(4, 1, 3, 2), Uint8Array.of(1, 1, 1, 0))).toBe(3);
     expect(computeMedian(new Float32Array(0))).toBeNaN();
+    // Selection, not sorting, finds the median: the same as a full sort on odd, even, constant and tied data.
+    for (const n of [1, 2, 7, 1000, 1001, 4096]) {
+      for (const make of [(i: number) => (i * 7919) % 101, () => 5, (i: number) => n - i, (i: number) => (i % 3) - 1]) {
+        const values = Float32Array.from({ length: n }, (_, i) => make(i));
+        const sorted = values.slice().sort();
+        const expected = n % 2 ? sorted[n >> 1] : (sorted[(n >> 1) - 1] + sorted[n >> 1]) / 2;
+        expect(computeMedian(values)).toBe(expected);
+      }
+    }
     const s = computeRobustStats(Float32Array.of(1, 2, 3, 4, 100));
     expect(s.median).toBe(3);
     expect(s.sigma).toBeCloseTo(MAD_TO_SIGMA, 6);
