@@ -18,13 +18,13 @@ export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: strin
   if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
   const [frame] = await db.select().from(frames).where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id))).limit(1);
   if (!frame) throw notFound("That frame");
-  if (frame.ingestState === "refused" && input.included === true) {
-    throw new AppError("conflict", `${frame.originalFileName} was refused (${frame.refusalReason ?? "no reason recorded"}) and cannot be included.`);
-  }
   if (input.kind !== undefined && isCalibrationKind(input.kind) && frame.ingestState === "ingested") {
-    // Still being ingested: the ingest makes the same check once the frame is decoded.
+    // A frame still being ingested: the ingest makes the same check once it is decoded.
     const fault = await findCalibrationFaultInSet(db, set.id, frame.id, input.kind, toFrameShape(frame));
     if (fault) throw new AppError("invalid_input", fault, [{ field: "kind", message: fault }]);
+  }
+  if (frame.ingestState === "refused" && input.included === true) {
+    throw new AppError("conflict", `${frame.originalFileName} was refused (${frame.refusalReason ?? "no reason recorded"}) and cannot be included.`);
   }
   const [row] = await db
     .update(frames)

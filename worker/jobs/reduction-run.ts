@@ -13,9 +13,9 @@ import type { SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { AppError } from "@/lib/errors";
 import { JOBS } from "@/lib/queue/jobs";
 import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
-import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
 import { buildDerivedPrefix, toSafeFileName } from "@/lib/storage/keys";
 import { downloadObjectToFile, putObjectBytes } from "@/lib/storage/objects";
+import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
 import { bucketName } from "@/lib/storage/s3";
 import type { JobHandler } from "../registry";
 
@@ -98,22 +98,30 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
     const overrides = new Map<string, number>();
     const frameIds: Record<string, string> = {};
     const seen = new Set<string>();
-    // Calibration frames (bias, dark, flat) go into the same folder: names stay unique across all, and the
-    // photographer's exposure corrections reach a dark as they reach a light.
-    const calibrationFiles: NonNullable<RunReductionOptions["calibrationFiles"]> = { bias: [], dark: [], flat: [] };
-    const toFetch = [...frameRows.map((f) => ({ ...f, kind: "light" as const })), ...calibrationRows];
-    for (const [i, f] of toFetch.entries()) {
+    for (const [i, f] of frameRows.entries()) {
       // Names must be unique in a bracket; the report names frames by them.
       let name = toSafeFileName(f.originalFileName);
       if (seen.has(name)) name = `${f.id.slice(0, 8)}-${name}`;
       seen.add(name);
       const local = path.join(work, "in", name);
       await downloadObjectToFile({ bucket: bucketName("originals"), key: f.originalKey }, local);
-      if (f.kind === "light") files.push(local);
-      else calibrationFiles[f.kind].push(local);
+      files.push(local);
       frameIds[name] = f.id;
       if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
-      await setProgress("fetch", (i + 1) / toFetch.length);
+      await setProgress("fetch", (i + 1) / frameRows.length);
+    }
+    // The set's calibration frames (bias, dark, flat) go into the same folder, after the lights: names stay
+    // unique across all, and the photographer's exposure corrections reach a dark as they reach a light.
+    const calibrationFiles: NonNullable<RunReductionOptions["calibrationFiles"]> = { bias: [], dark: [], flat: [] };
+    for (const f of calibrationRows) {
+      let name = toSafeFileName(f.originalFileName);
+      if (seen.has(name)) name = `${f.id.slice(0, 8)}-${name}`;
+      seen.add(name);
+      const local = path.join(work, "in", name);
+      await downloadObjectToFile({ bucket: bucketName("originals"), key: f.originalKey }, local);
+      calibrationFiles[f.kind].push(local);
+      frameIds[name] = f.id;
+      if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
     }
 
     const sky: SkyOptions | undefined = site
