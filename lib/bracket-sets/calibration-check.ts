@@ -7,7 +7,8 @@ import { and, eq, ne } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { frames, type FrameFlags, type FrameKind } from "@/db/schema";
 
-export type CalibrationFrameKind = Exclude<FrameKind, "light">;
+export const CALIBRATION_KINDS = ["bias", "dark", "flat"] as const satisfies readonly FrameKind[];
+export type CalibrationFrameKind = (typeof CALIBRATION_KINDS)[number];
 
 export function isCalibrationKind(kind: FrameKind): kind is CalibrationFrameKind {
   return kind === "bias" || kind === "dark" || kind === "flat";

@@ -4,15 +4,12 @@
 // in groups of their own).
 import { and, asc, eq, inArray } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { frames, type FrameFlags, type FrameKind } from "@/db/schema";
-import { findCalibrationFault, toFrameShape } from "@/lib/bracket-sets/calibration-check";
-
-export const CALIBRATION_KINDS = ["bias", "dark", "flat"] as const satisfies readonly FrameKind[];
-export type CalibrationKind = (typeof CALIBRATION_KINDS)[number];
+import { frames, type FrameFlags } from "@/db/schema";
+import { CALIBRATION_KINDS, findCalibrationFault, toFrameShape, type CalibrationFrameKind } from "@/lib/bracket-sets/calibration-check";
 
 export interface CalibrationFrameRow {
   id: string;
-  kind: CalibrationKind;
+  kind: CalibrationFrameKind;
   originalFileName: string;
   originalKey: string;
   exposureS: number | null;
@@ -33,7 +30,7 @@ export async function findCalibrationFrames(db: DbOrTx, setId: string): Promise<
     .from(frames)
     .where(and(eq(frames.bracketSetId, setId), inArray(frames.kind, [...CALIBRATION_KINDS]), eq(frames.included, true), eq(frames.ingestState, "ingested")))
     .orderBy(asc(frames.kind), asc(frames.originalFileName), asc(frames.id));
-  return rows.map((r) => ({ ...r, kind: r.kind as CalibrationKind }));
+  return rows.map((r) => ({ ...r, kind: r.kind as CalibrationFrameKind }));
 }
 
 /**
