@@ -1,6 +1,7 @@
 // Reduces a bracket from files on disk into a new output folder.
 // Run: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK]
-//   [--clock-offset SECONDS] [--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv] FILE...
+//   [--clock-offset SECONDS] [--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv]
+//   [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...
 // Progress goes to stderr; exit 2 for bad input (the message names the file,
 // line or option), 1 for anything else.
 import { basename } from "node:path";
@@ -36,6 +37,7 @@ async function main(): Promise<void> {
     exposureOverrideSource: args.exposuresCsv ? basename(args.exposuresCsv) : undefined,
     registration: args.registration,
     sky: { site, clockOffsetS: args.clockOffsetS, northAngleDeg: args.northAngleDeg, camera: args.camera },
+    calibrationFiles: args.calibrationFiles,
     onProgress: createProgressPrinter(),
   });
   const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number; sky: { plateScaleArcsecPerPx?: number; northAngleDeg?: number; pAngleDeg?: number } };

@@ -44,6 +44,8 @@ export type ExposureSource = (typeof EXPOSURE_SOURCES)[number];
 
 /** Automatic findings of ingest; more keys join as triage grows. */
 export interface FrameFlags {
+  /** Colour planes of the decoded image (1 grey, 3 colour); calibration frames must match the lights'. */
+  planeCount?: number;
   /** Fraction of pixels at or above 0.92 of the white level in any plane. */
   clippedFraction?: number;
   /** The file gave no time zone, so its clock was taken to read UTC. */

@@ -7,7 +7,7 @@ import type { CameraOrientation, MountKind } from "@/lib/astro/mount-rotation";
 export const REDUCE_USAGE =
   "usage: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK.gpx|csv] [--clock-offset SECONDS] " +
   "[--north-angle DEG | --mount equatorial|alt-az|fixed-tripod|hand-held|stabilised [--camera-roll DEG] [--flip-h] [--flip-v]] " +
-  "[--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] FILE...";
+  "[--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...";
 
 export interface ReduceArgs {
   outDir: string;
@@ -25,6 +25,8 @@ export interface ReduceArgs {
   northAngleDeg?: number;
   /** The kit's mount and flips, from which the north angle follows when it is not given. */
   camera?: CameraOrientation;
+  /** Calibration frames (each option repeatable), present when any was given. */
+  calibrationFiles?: { bias: string[]; dark: string[]; flat: string[] };
 }
 
 const MOUNT_KINDS: readonly MountKind[] = ["equatorial", "alt-az", "fixed-tripod", "hand-held", "stabilised"];
@@ -38,6 +40,9 @@ function parseNumberOption(values: Map<string, string>, key: string, unit: strin
   return Number(text);
 }
 const FLAG_OPTIONS = new Set(["recover-response", "flip-h", "flip-v"]);
+/** Options that may be given several times, one file each. */
+const LIST_OPTIONS = ["bias", "dark", "flat"] as const;
+type ListOption = (typeof LIST_OPTIONS)[number];
 
 function badOption(message: string): ReductionInputError {
   return new ReductionInputError("bad-option", `${message}\n${REDUCE_USAGE}`);
@@ -47,15 +52,22 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
   const values = new Map<string, string>();
   const flags = new Set<string>();
   const files: string[] = [];
+  const lists: Record<ListOption, string[]> = { bias: [], dark: [], flat: [] };
   for (let i = 0; i < argv.length; i++) {
     const arg = argv[i];
     if (arg === "--") { files.push(...argv.slice(i + 1)); break; }
     if (!arg.startsWith("--")) { files.push(arg); continue; }
     const [key, inline] = arg.slice(2).split(/=(.*)/s, 2);
     if (FLAG_OPTIONS.has(key)) { flags.add(key); continue; }
-    if (!VALUE_OPTIONS.has(key)) throw badOption(`unknown option --${key}`);
+    const isList = (LIST_OPTIONS as readonly string[]).includes(key);
+    if (!VALUE_OPTIONS.has(key) && !isList) throw badOption(`unknown option --${key}`);
     const value = inline ?? argv[++i];
     if (value === undefined || value.startsWith("--")) throw badOption(`--${key}: a value is required`);
+    if (isList) {
+      if (value.trim() === "") throw badOption(`--${key}: a file is required`);
+      lists[key as ListOption].push(value);
+      continue;
+    }
     if (values.has(key)) throw badOption(`--${key} is given twice`);
     values.set(key, value);
   }
@@ -69,6 +81,11 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
   const filter = values.get("filter");
   if (filter !== undefined && filter !== "mgn" && filter !== "nrgf") throw badOption(`--filter: expected mgn or nrgf, got "${filter}"`);
   if (files.length === 0) throw badOption("no frames given: list the bracket's files after the options");
+  const calibrationPaths = [...lists.bias, ...lists.dark, ...lists.flat];
+  const twice = calibrationPaths.find((path, k) => calibrationPaths.indexOf(path) !== k);
+  if (twice !== undefined) throw badOption(`${twice}: given twice among --bias, --dark and --flat (each file is one kind of calibration frame)`);
+  const asLight = calibrationPaths.find((path) => files.includes(path));
+  if (asLight !== undefined) throw badOption(`${asLight}: given both as a calibration frame and as a frame of the bracket`);
   const mount = values.get("mount");
   if (mount !== undefined && !(MOUNT_KINDS as readonly string[]).includes(mount)) throw badOption(`--mount: expected one of ${MOUNT_KINDS.join(", ")}, got "${mount}"`);
   if (mount !== undefined && values.has("north-angle")) throw badOption("--north-angle and --mount: give one of them (the angle, or the mount it follows from)");
@@ -83,5 +100,6 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
     siteText: values.get("site"), siteFile: values.get("site-file"),
     clockOffsetS: parseNumberOption(values, "clock-offset", "seconds"), northAngleDeg: parseNumberOption(values, "north-angle", "degrees"),
     camera,
+    ...(calibrationPaths.length > 0 ? { calibrationFiles: { bias: lists.bias, dark: lists.dark, flat: lists.flat } } : {}),
   };
 }

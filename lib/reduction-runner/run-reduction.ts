@@ -52,6 +52,12 @@ export interface RunReductionOptions {
   registration?: RunnerRegistrationMode;
   /** Observer site, camera clock offset and image orientation; with a site the master gets a helioprojective WCS. */
   sky?: SkyOptions;
+  /**
+   * Calibration frames on disk by kind (bias, dark, flat): combined into masters
+   * (lib/imaging/calibrate.ts buildCalibrationMasters) and applied to every light
+   * frame before anything else. Absent or empty lists: no calibration frames.
+   */
+  calibrationFiles?: { bias: string[]; dark: string[]; flat: string[] };
   onProgress?: RunProgressFn;
 }
 

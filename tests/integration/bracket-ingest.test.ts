@@ -174,10 +174,13 @@ describe("frame ingest by the worker", () => {
     for (const r of rows) expect(await findObjectSize({ bucket: bucketName("originals"), key: r.originalKey })).toBe(sent.get(r.originalFileName)!.length);
   });
 
-  it("lets the photographer give the missing exposure, mark a dark frame and exclude a frame; never include a refused one", async () => {
+  it("lets the photographer give the missing exposure and exclude a frame; refuses a dark frame of another size; never includes a refused one", async () => {
     const tiffId = ids["corona-16bit.tif"];
-    const fixed = await correctFrame(db, alice, setId, tiffId, { exposureS: 0.5, kind: "dark" });
-    expect([fixed.exposureS, fixed.exposureSource, fixed.kind, fixed.needsExposure]).toEqual([0.5, "photographer", "dark", false]);
+    // Marking it a dark frame is refused as a whole: it is not the size of the set's other light frame
+    // (tests/integration/calibration-frames.test.ts has a dark frame that fits).
+    await expect(correctFrame(db, alice, setId, tiffId, { exposureS: 0.5, kind: "dark" })).rejects.toThrow(/^corona-16bit\.tif: 2100 x 2100 pixels, but the light frames of this set are 64 x 48/);
+    const fixed = await correctFrame(db, alice, setId, tiffId, { exposureS: 0.5 });
+    expect([fixed.exposureS, fixed.exposureSource, fixed.kind, fixed.needsExposure]).toEqual([0.5, "photographer", "light", false]);
     expect((await correctFrame(db, alice, setId, tiffId, { included: false })).included).toBe(false);
     await expect(correctFrame(db, alice, setId, ids["bomb.png"], { included: true })).rejects.toMatchObject({ code: "conflict" });
   });

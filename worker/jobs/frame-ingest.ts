@@ -2,7 +2,9 @@
 // hashing it (SHA-256), refuse a duplicate of a frame already in the set, decode
 // it (format from content, metadata from EXIF or FITS cards), store a JPEG
 // thumbnail under derived/, measure what triage shows (clipped fraction,
-// histogram, sharpness, limb), and fill in the frame row. Bad input marks the frame
+// histogram, sharpness, limb), and fill in the frame row. A frame already marked
+// bias, dark or flat is refused when it cannot serve as one (8-bit, or not the
+// size or planes of the set's light frames). Bad input marks the frame
 // "refused" with a reason naming the file and the fault and fails at once
 // (UnrecoverableError); S3 or database faults throw normally and are retried.
 // The original is only ever read.
@@ -14,6 +16,7 @@ import { UnrecoverableError } from "bullmq";
 import { and, eq, ne, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, frames, type FrameFlags } from "@/db/schema";
+import { findCalibrationFaultInSet, isCalibrationKind } from "@/lib/bracket-sets/calibration-check";
 import { analyseFrame } from "@/lib/bracket-sets/frame-analysis";
 import { findGroupForNewFrame } from "@/lib/bracket-sets/grouping";
 import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
@@ -91,6 +94,7 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
       sizeBytes: frames.sizeBytes,
       exposureSource: frames.exposureSource,
       ingestState: frames.ingestState,
+      kind: frames.kind,
     })
     .from(frames)
     .innerJoin(bracketSets, eq(bracketSets.id, frames.bracketSetId))
@@ -125,6 +129,14 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
       throw err;
     }
 
+    // A frame marked bias, dark or flat before its ingest ended: checked now that its size and depth are known.
+    const planeCount = decoded.image.planes.length;
+    if (isCalibrationKind(frame.kind)) {
+      const shape = { originalFileName: name, format: decoded.format, width: decoded.image.width, height: decoded.image.height, bitDepth: decoded.bitDepth, planeCount };
+      const fault = await findCalibrationFaultInSet(db, frame.bracketSetId, frame.id, frame.kind, shape);
+      if (fault) await refuse(db, frame, fault, { planeCount });
+    }
+
     await report("thumbnail", 0.7);
     const thumbnail = await encodeThumbnail(toThumbnailPlanes(decoded.image, decoded));
     const thumbnailKey = buildThumbnailKey(frame.bracketSetId, frame.id);
@@ -132,7 +144,7 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
 
     await report("analysing", 0.8);
     const m = decoded.metadata;
-    const flags: FrameFlags = { clippedFraction: measureClippedFraction(decoded.image, decoded.whiteLevel) };
+    const flags: FrameFlags = { clippedFraction: measureClippedFraction(decoded.image, decoded.whiteLevel), planeCount };
     try {
       // Histogram, sharpness and limb help triage; a fault in them must not refuse a sound frame.
       Object.assign(flags, analyseFrame(decoded.image, decoded));

@@ -15,6 +15,7 @@ import { JOBS } from "@/lib/queue/jobs";
 import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { buildDerivedPrefix, toSafeFileName } from "@/lib/storage/keys";
 import { downloadObjectToFile, putObjectBytes } from "@/lib/storage/objects";
+import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
 import { bucketName } from "@/lib/storage/s3";
 import type { JobHandler } from "../registry";
 
@@ -50,8 +51,9 @@ async function failForGood(db: DbOrTx, reductionId: string, reason: string): Pro
 
 /**
  * Runs one reduction: the included, ingested light frames of the chosen group
- * (selectReductionFrames, the same choice the start form checked) are fetched
- * from S3, reduced by the imaging core, and every output is stored under the
+ * (selectReductionFrames, the same choice the start form checked) and the set's
+ * included, ingested bias, dark and flat frames (findCalibrationFrames) are
+ * fetched from S3, reduced by the imaging core, and every output is stored under the
  * reduction's own prefix. A reduction already done is left alone (a repeated
  * job changes nothing); a retried one rewrites the same keys, so nothing is
  * duplicated. Originals are only read.
@@ -67,10 +69,14 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
   const [kit] = set.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
   const params: StoredReductionParams = red.params;
   let frameRows: Awaited<ReturnType<typeof selectReductionFrames>>;
+  let calibrationRows: Awaited<ReturnType<typeof findCalibrationFrames>>;
   try {
     frameRows = await selectReductionFrames(db, set, params.groupNumber ?? null);
+    calibrationRows = await findCalibrationFrames(db, set.id);
+    const mismatch = findCalibrationMismatch(frameRows, calibrationRows);
+    if (mismatch) throw new AppError("invalid_input", mismatch);
   } catch (err) {
-    // Frames excluded or regrouped since the start: bad input, no retry.
+    // Frames excluded or regrouped since the start, or calibration frames that do not fit the lights: bad input, no retry.
     if (err instanceof AppError) {
       await failForGood(db, red.id, err.message);
       throw new UnrecoverableError(err.message);
@@ -104,6 +110,19 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
       await setProgress("fetch", (i + 1) / frameRows.length);
     }
+    // The set's calibration frames (bias, dark, flat) go into the same folder, after the lights: names stay
+    // unique across all, and the photographer's exposure corrections reach a dark as they reach a light.
+    const calibrationFiles: NonNullable<RunReductionOptions["calibrationFiles"]> = { bias: [], dark: [], flat: [] };
+    for (const f of calibrationRows) {
+      let name = toSafeFileName(f.originalFileName);
+      if (seen.has(name)) name = `${f.id.slice(0, 8)}-${name}`;
+      seen.add(name);
+      const local = path.join(work, "in", name);
+      await downloadObjectToFile({ bucket: bucketName("originals"), key: f.originalKey }, local);
+      calibrationFiles[f.kind].push(local);
+      frameIds[name] = f.id;
+      if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
+    }
 
     const sky: SkyOptions | undefined = site
       ? {
@@ -125,6 +144,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       frameIds,
       registration: params.registration,
       sky,
+      calibrationFiles: calibrationRows.length > 0 ? calibrationFiles : undefined,
       exposureOverrides: overrides,
       exposureOverrideSource: "the photographer's corrections",
       // IIIF ids name where the app serves this reduction's tiles, not the worker's temporary folder.
