@@ -314,8 +314,9 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
   let count = 0;
   const usable = (i: number) => referenceValid[i] && movingValid[i] && movingValid[i - 1] && movingValid[i + 1] && movingValid[i - width] && movingValid[i + width];
   // Robust scale of the noise-normalized residuals (1.4826 MAD) for Tukey's biweight
-  // (Beaton and Tukey 1974, c = 4.685): a trail, a cosmic ray or a hot pixel in one
-  // frame is structure the other lacks, and must not pull the alignment.
+  // (Beaton and Tukey 1974) at c = 6 robust sigmas, wider than the usual 4.685 so that
+  // the corona's own residuals keep nearly full weight: a trail, a cosmic ray or a hot
+  // pixel in one frame (tens of sigmas) is structure the other lacks, and must not pull the alignment.
   const normalized: number[] = [];
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
@@ -324,7 +325,7 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
     }
   }
   normalized.sort((a, b) => a - b);
-  const cutoff = 4.685 * 1.4826 * (normalized[normalized.length >> 1] ?? 0);
+  const cutoff = 6 * 1.4826 * (normalized[normalized.length >> 1] ?? 0);
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
       const i = v * width + u;

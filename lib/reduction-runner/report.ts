@@ -3,6 +3,7 @@
 // Pixel coordinates here are 0-based pixel centres (lib/imaging's convention);
 // the FITS header writes them 1-based.
 import type { ReductionResult } from "@/lib/imaging/pipeline";
+import type { CalibrationReport } from "./calibration";
 import type { FrameProvenance } from "./decode-frames";
 import { buildSkyReport, type SkyReportInput } from "./report-sky";
 import type { MasterSummary } from "./master-summary";
@@ -20,6 +21,8 @@ export interface ReductionReport {
   overall: Record<string, unknown>;
   timingsMs: Record<string, number>;
   outputs: Record<string, unknown>;
+  /** Calibration masters used (or defects found in the bracket), for the page. */
+  calibration: { source: CalibrationReport["source"]; badPixelCount: number; masters: unknown } | null;
   /** Frames the reduction could not use, each with its reason; the reduction went on without them. */
   framesLeftOut: { name: string; frameId: string | null; reason: string }[];
   notes: string[];
@@ -45,6 +48,7 @@ export function buildReport(input: {
   renditionSize?: { width: number; height: number; scale: number; longSidePx: number };
   /** What the runner had to decide for the person to know (why there is no WCS, an orientation it could not find). */
   notes?: string[];
+  calibration?: CalibrationReport;
 }): ReductionReport {
   const { result, provenance } = input;
   const sky = buildSkyReport(input.sky ?? { registrationMode: result.overall.parameters.registration, clockOffsetS: 0 });
@@ -130,6 +134,7 @@ export function buildReport(input: {
         ]),
       ),
     },
+    calibration: input.calibration ? { source: input.calibration.source, badPixelCount: input.calibration.badPixelCount, masters: input.calibration.summary ?? null } : null,
     framesLeftOut: result.leftOut.map((l) => ({ name: l.name, frameId: input.frameIds?.[l.name] ?? null, reason: l.reason })),
     notes: [
       ...(input.notes ?? []),

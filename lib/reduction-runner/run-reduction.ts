@@ -12,6 +12,7 @@ import { ReductionInputError } from "./errors";
 import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
+import { calibrateBracket, loadCalibrationMasters } from "./calibration";
 import { createPreparePool } from "./prepare-pool";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
 import { buildReport, type ReductionReport } from "./report";
@@ -101,9 +102,15 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     progress("decode", 0);
     // Frames are decoded, linearized and limb-fitted in two worker threads; the
     // pipeline takes those results as its own first stage would have made them.
+    // Calibration comes before anything else the pipeline does, so the pool's prepared
+    // frames (made from uncalibrated data) serve only a bracket without it.
+    const masters = await loadCalibrationMasters(options.calibrationFiles, overrides);
     const pool = createPreparePool();
-    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), { pool, params }, options.captureTimeOverrides).finally(() => pool.close());
+    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), masters ? undefined : { pool, params }, options.captureTimeOverrides).finally(() => pool.close());
     const { frames, provenance } = decodedBracket;
+    const calibration = calibrateBracket(frames, masters);
+    // Defects found in the bracket change the prepared frames' masks: the pipeline prepares again.
+    if (calibration.source !== "none") decodedBracket.prepared.fill(undefined);
     applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
     decodedBracket.prepared.forEach((p, i) => {
       if (p) p.linear.captureTimeMs = frames[i].captureTimeMs;
@@ -174,7 +181,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     lap("summary");
 
     timingsMs.total = performance.now() - started;
-    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds, notes: sky.notes,
+    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds, notes: sky.notes, calibration,
       renditionSize: { width: size.width, height: size.height, scale: size.scale, longSidePx: outputLongSidePx },
       sky: { registrationMode, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun, helio },
     });

@@ -47,12 +47,20 @@ function measurable(result: ReductionResult, truth: SynthTruth, plane: number, m
  * The master is in reference-frame pixels; the truth in scene pixels. The tests
  * build brackets whose reference frame has no pointing error, so the two agree.
  */
-export function measureBracketQuality(result: ReductionResult, truth: SynthTruth, plane = truth.radiance.length === 3 ? 1 : 0, marginPx = 6): BracketQuality {
+export function measureBracketQuality(result: ReductionResult, truth: SynthTruth, plane = truth.radiance.length === 3 ? 1 : 0, marginPx = 6, options: { upToScale?: boolean } = {}): BracketQuality {
   const { width, height } = result.master;
   const ok = measurable(result, truth, plane, marginPx);
   const master = result.master.planes[plane];
   const rel = new Float32Array(width * height);
-  for (let i = 0; i < rel.length; i++) if (ok[i]) rel[i] = master[i] / truth.radiance[plane][i] - 1;
+  // upToScale: a flat normalised to its median leaves the radiance scaled by the sensor's median response; compare shapes.
+  let scale = 1;
+  if (options.upToScale) {
+    const ratios: number[] = [];
+    for (let i = 0; i < rel.length; i += 3) if (ok[i]) ratios.push(master[i] / truth.radiance[plane][i]);
+    ratios.sort((a, b) => a - b);
+    scale = ratios[ratios.length >> 1];
+  }
+  for (let i = 0; i < rel.length; i++) if (ok[i]) rel[i] = master[i] / (scale * truth.radiance[plane][i]) - 1;
   const errors: number[] = [];
   for (let i = 0; i < rel.length; i++) if (ok[i]) errors.push(Math.abs(rel[i]));
   const sorted = Float64Array.from(errors).sort();
