@@ -16,12 +16,29 @@ export interface ModelBracketOptions {
   captureStartMs?: number;
   /** Per-frame camera pointing errors (shifts up to 3 px, turns up to 0.2 deg); default true. */
   hasPointingErrors?: boolean;
+  /**
+   * A camera as real ones deliver brackets: an offset of a few hundred DN left in
+   * FITS and 16-bit TIFF data and named nowhere, 40 hot pixels fixed on the sensor,
+   * a satellite trail across one frame, a thin cloud over another (transmission
+   * 0.6), and no capture times in the files.
+   */
+  isRealCamera?: boolean;
 }
 
 /** Log-spaced exposures from minS to maxS, to 4 significant digits. */
 export function computeExposureLadder(frames: number, minS = 1 / 2000, maxS = 1): number[] {
   if (frames === 1) return [minS];
   return Array.from({ length: frames }, (_, k) => Number((minS * (maxS / minS) ** (k / (frames - 1))).toPrecision(4)));
+}
+
+/** The faults of isRealCamera, placed by the seeded generator. */
+function realCameraFaults(width: number, height: number, frameCount: number, rng: () => number) {
+  return {
+    blackLevel: 384,
+    sensorDefects: Array.from({ length: 40 }, () => ({ kind: "hot" as const, x: Math.floor(rng() * width), y: Math.floor(rng() * height), dnPerS: 500 + 3000 * rng() })),
+    trail: { frame: Math.floor(frameCount / 3), from: { x: 0, y: height * rng() }, to: { x: width - 1, y: height * rng() }, sigmaPx: 1.5, peakDn: 3000 },
+    clouds: frameCount > 3 ? [{ frame: frameCount - 2, transmission: 0.6 }] : [],
+  };
 }
 
 export function createModelBracket(options: ModelBracketOptions): SynthBracket {
@@ -45,9 +62,12 @@ export function createModelBracket(options: ModelBracketOptions): SynthBracket {
     rotationsDeg,
     moonDriftPxPerFrame: { dx: driftPx, dy: -driftPx / 3 },
     captureStartMs: options.captureStartMs,
+    ...(options.isRealCamera ? realCameraFaults(width, height, exposuresS.length, rng) : {}),
   });
-  const { radiance, ...geometry } = truth;
+  const { radiance, trailDn, ...geometry } = truth;
+  void trailDn;
   return {
+    ...(options.isRealCamera ? { offsetInFiles: "unlabelled" as const, hasCaptureTimes: false } : {}),
     width,
     height,
     blackLevel: truth.blackLevel,

@@ -10,10 +10,17 @@ export interface SynthArgs {
   formats: SynthFormat[];
   /** Time zone of the EXIF clock, minutes east of UTC (Luxor in summer: +180). */
   utcOffsetMin: number;
+  /** A camera as real ones are: see RealCameraOptions in from-model.ts. */
+  camera: "clean" | "real";
+  /** Longest exposure of the ladder, s (default 1). */
+  longestS: number;
+  /** Each exposure taken this many times. */
+  repeat: number;
 }
 
 export const SYNTH_USAGE =
-  "usage: npx tsx scripts/synth.ts --out DIR [--width 1200] [--height 800] [--frames 7] [--seed 1] [--formats tiff,jpeg,fits,dng] [--utc-offset-min 180]";
+  "usage: npx tsx scripts/synth.ts --out DIR [--width 1200] [--height 800] [--frames 7] [--seed 1] [--formats tiff,jpeg,fits,dng] [--utc-offset-min 180]\n" +
+  "  [--camera clean|real] (real: an offset left unlabelled in FITS and TIFF, hot pixels, a trail, a passing cloud, no capture times) [--longest SECONDS] [--repeat N]";
 
 function readInteger(value: string | undefined, option: string, min: number, max: number): number {
   const number = Number(value);
@@ -21,6 +28,17 @@ function readInteger(value: string | undefined, option: string, min: number, max
     throw new Error(`--${option}: expected an integer from ${min} to ${max}, got ${value === undefined ? "nothing" : `"${value}"`}`);
   }
   return number;
+}
+
+function readCamera(value: string | undefined): "clean" | "real" {
+  if (value === undefined || value === "clean" || value === "real") return value ?? "clean";
+  throw new Error(`--camera: expected clean or real, got "${value}"\n${SYNTH_USAGE}`);
+}
+
+function readSeconds(value: string | undefined): number {
+  const n = Number(value);
+  if (!(value !== undefined && /^\d+(\.\d+)?$/.test(value) && n >= 0.01 && n <= 30)) throw new Error(`--longest: expected seconds from 0.01 to 30, got "${value}"`);
+  return n;
 }
 
 export function parseSynthArgs(argv: string[]): SynthArgs {
@@ -31,7 +49,7 @@ export function parseSynthArgs(argv: string[]): SynthArgs {
     const [key, inline] = arg.slice(2).split("=", 2);
     values.set(key, inline ?? argv[++i]);
   }
-  const known = new Set(["out", "width", "height", "frames", "seed", "formats", "utc-offset-min"]);
+  const known = new Set(["out", "width", "height", "frames", "seed", "formats", "utc-offset-min", "camera", "longest", "repeat"]);
   for (const key of values.keys()) if (!known.has(key)) throw new Error(`unknown option --${key}\n${SYNTH_USAGE}`);
   const outDir = values.get("out");
   if (!outDir) throw new Error(`--out: a folder to write into is required\n${SYNTH_USAGE}`);
@@ -47,5 +65,8 @@ export function parseSynthArgs(argv: string[]): SynthArgs {
     seed: values.has("seed") ? readInteger(values.get("seed"), "seed", 0, 2 ** 32 - 1) : 1,
     formats: [...new Set(formats)] as SynthFormat[],
     utcOffsetMin: values.has("utc-offset-min") ? readInteger(values.get("utc-offset-min"), "utc-offset-min", -720, 840) : 180,
+    camera: readCamera(values.get("camera")),
+    longestS: values.has("longest") ? readSeconds(values.get("longest")) : 1,
+    repeat: values.has("repeat") ? readInteger(values.get("repeat"), "repeat", 1, 5) : 1,
   };
 }
