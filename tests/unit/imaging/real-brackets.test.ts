@@ -84,7 +84,7 @@ describe("offsets left in linear data and named nowhere", () => {
 });
 
 describe("repeated exposures with a trail and hot pixels that move with the pointing", () => {
-  const exposuresS = [1 / 1000, 1 / 250, 1 / 60, 1 / 15, 1 / 4].flatMap((t) => [t, t, t]);
+  const exposuresS = [1 / 500, 1 / 60, 1 / 15, 1 / 4, 1].flatMap((t) => [t, t, t]);
   const defects = hotPixels(40, 7);
   const trailFrame = 10;
   const { result, truth } = reduceCase(exposuresS, {
