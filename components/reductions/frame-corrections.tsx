@@ -37,12 +37,40 @@ function describePlacement(f: Frame): string {
  * taken out) and which frames it left out and why, so that every correction and
  * every frame left out is named on the page.
  */
+// lib/imaging/calibrate.ts CalibrationSummary["darkModel"], in words.
+const DARK_MODELS: Record<string, string> = {
+  scaled: "scaled by exposure time over the bias",
+  fitted: "fitted per pixel (offset and dark current) from darks at several exposures",
+  "nearest-unscaled": "the nearest dark used as it is",
+  none: "",
+};
+
+function plural(n: number, one: string, many = `${one}s`): string {
+  return `${n} ${n === 1 ? one : many}`;
+}
+
+/** One sentence on the calibration the reduction applied. */
+function describeCalibration(calibration: ReductionReportView["calibration"]): string {
+  if (!calibration || calibration.source === "none") return "No calibration frames were given and no sensor defects were found in the bracket.";
+  if (calibration.source === "bracket") return `No calibration frames were given; ${plural(calibration.badPixelCount, "sensor defect")} (pixels that stay bright at one place on the sensor through the bracket) were found in the frames themselves and masked.`;
+  const m = calibration.masters;
+  const parts: string[] = [];
+  if (m?.bias) parts.push(`a bias master from ${plural(m.bias.frameNames.length, "frame")}`);
+  if (m && m.darks.length > 0) {
+    const model = DARK_MODELS[m.darkModel] ? `, ${DARK_MODELS[m.darkModel]}` : "";
+    parts.push(`dark masters at ${plural(m.darks.length, "exposure")} from ${plural(m.darks.reduce((s, d) => s + d.frameNames.length, 0), "frame")}${model}`);
+  }
+  if (m?.flat) parts.push(`a flat from ${plural(m.flat.frameNames.length, "frame")}, normalised to its median`);
+  return `Calibrated with ${parts.join("; ") || "the set's calibration frames"}; ${plural(calibration.badPixelCount, "sensor defect")} (hot, stuck or dead pixels) masked in every frame.`;
+}
+
 export function FrameCorrections({ report }: { report: ReductionReportView }) {
   const leftOut = report.framesLeftOut ?? [];
   const notes = (report.notes ?? []).filter((n) => !n.startsWith("Tile pyramids") && !n.startsWith("master.fits carries") && !n.startsWith("Renditions, preview"));
   const remarks = report.frames.flatMap((f) => [f.offset?.note, f.transmissionNote, f.registrationNote].filter((x): x is string => Boolean(x)).map((text) => ({ name: f.name, text })));
   return (
     <div className="flex flex-col gap-6">
+      <p>{describeCalibration(report.calibration)}</p>
       {notes.length > 0 ? (
         <ul className="flex flex-col gap-2" aria-label="What the reduction decided">
           {notes.map((n) => (

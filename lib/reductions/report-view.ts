@@ -60,6 +60,23 @@ export const reportViewSchema = z.object({
     })
     .catch({ referenceFrame: null, dynamicRangeStops: null, masterSize: null }),
   timingsMs: z.record(z.string(), z.number()).catch({}),
+  calibration: z
+    .object({
+      source: z.enum(["masters", "bracket", "none"]).catch("none"),
+      badPixelCount: z.number().catch(0),
+      masters: z
+        .object({
+          bias: z.object({ frameNames: z.array(z.string()) }).nullable().optional().catch(null),
+          darks: z.array(z.object({ exposureS: z.number(), frameNames: z.array(z.string()) })).catch([]),
+          darkModel: z.string().catch("none"),
+          flat: z.object({ frameNames: z.array(z.string()) }).nullable().optional().catch(null),
+        })
+        .nullable()
+        .catch(null),
+    })
+    .nullable()
+    .optional()
+    .catch(null),
   framesLeftOut: z.array(z.object({ name: z.string(), frameId: z.string().nullable().catch(null), reason: z.string() })).optional().catch([]),
   notes: z.array(z.string()).optional().catch([]),
   outputs: z
