@@ -8,7 +8,7 @@ export const MAX_TRACK_POINTS = 200_000;
  * limit. The parse is linear in the length, so a track at the limit is read in
  * bounded time on the request (about a second here; see the README).
  */
-export const MAX_TRACK_CHARS = 20_000_000;
+export const MAX_TRACK_CHARS = 20 * 1024 ** 2;
 
 /** The limit as people read it. */
 export const MAX_TRACK_LABEL = "20 MB";
