@@ -75,8 +75,10 @@ function send(url: URL, method: string, headers: Headers, body: RequestInit["bod
   else if (body != null) throw new Error("Client.request sends string or byte bodies only");
   const outgoing: Record<string, string> = Object.fromEntries(headers);
   if (bytes) outgoing["content-length"] = String(bytes.length);
+  let answered = false;
   return new Promise((resolve, reject) => {
     const req = http.request(url, { method, headers: outgoing, localAddress }, (res) => {
+      answered = true;
       const chunks: Buffer[] = [];
       res.on("data", (c: Buffer) => chunks.push(c));
       res.on("error", reject);
@@ -91,7 +93,10 @@ function send(url: URL, method: string, headers: Headers, body: RequestInit["bod
         resolve(new Response(noBody ? null : Buffer.concat(chunks), { status, headers: h }));
       });
     });
-    req.on("error", reject);
+    // A server may answer before reading the whole body (a 413) and close: that is the answer.
+    req.on("error", (err) => {
+      if (!answered) reject(err);
+    });
     if (bytes) req.write(bytes);
     req.end();
   });

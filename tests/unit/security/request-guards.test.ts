@@ -1,9 +1,10 @@
 // The checks every route handler makes before reading a request.
+import path from "node:path";
+import { pathToFileURL } from "node:url";
 import { describe, expect, it } from "vitest";
 import { AppError } from "@/lib/errors";
 import { readJsonBody, requireSameOrigin } from "@/lib/http/request-guards";
 import { contentSecurityPolicy, s3Origins, strictTransportSecurity } from "@/lib/http/security-headers";
-import nextConfig from "@/next.config.mjs";
 import { SERVER_ACTION_BODY_LIMIT_BYTES } from "@/lib/http/security-headers";
 
 const APP_URL = "http://127.0.0.1:3000";
@@ -31,7 +32,8 @@ describe("same-origin check", () => {
   });
 
   it("refuses another site, an opaque origin and cross-site fetch metadata with 403", () => {
-    for (const headers of [{ origin: "https://evil.example", host: "127.0.0.1:3000" }, { origin: "null" }, { "sec-fetch-site": "cross-site" }, { "sec-fetch-site": "same-site" }]) {
+    const cases: Record<string, string>[] = [{ origin: "https://evil.example", host: "127.0.0.1:3000" }, { origin: "null" }, { "sec-fetch-site": "cross-site" }, { "sec-fetch-site": "same-site" }];
+    for (const headers of cases) {
       const err = refusal(() => requireSameOrigin(req("POST", headers), APP_URL));
       expect(err.status).toBe(403);
       expect(err.message).toMatch(/another site/);
@@ -93,7 +95,8 @@ describe("security headers", () => {
     expect(contentSecurityPolicy({ nonce: "n", isDev: false, appUrl: "https://eclipse.kestrel-ridge.example", s3: [] })).toContain("upgrade-insecure-requests");
   });
 
-  it("keeps the proxy's server-action limit equal to Next.js's own", () => {
+  it("keeps the proxy's server-action limit equal to Next.js's own", async () => {
+    const nextConfig: unknown = (await import(pathToFileURL(path.resolve("next.config.mjs")).href)).default;
     const experimental = (nextConfig as { experimental: { serverActions: { bodySizeLimit: string }; proxyClientMaxBodySize: string } }).experimental;
     const bytes = (s: string) => Number(/^(\d+)mb$/.exec(s)![1]) * 1024 ** 2;
     expect(bytes(experimental.serverActions.bodySizeLimit)).toBe(SERVER_ACTION_BODY_LIMIT_BYTES);
