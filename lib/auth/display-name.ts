@@ -7,7 +7,6 @@ export const DISPLAY_NAME_MAX = 80;
 export const DISPLAY_NAME_MIN = 2;
 
 // C0 and C1 controls, and the bidirectional embedding, override and isolate marks.
-// eslint-disable-next-line no-control-regex -- control characters are what it looks for
 const CONTROL_RE = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/u;
 // A scheme, "www.", or a dotted host such as evil.example or mail.example.org.
 const URL_RE = /[a-z][a-z0-9+.-]*:\/\/|www\.|[\p{L}\p{N}-]{2,}\.[\p{L}]{2,}/iu;

@@ -4,7 +4,7 @@
 import type { z } from "zod";
 import { findActor, requirePermission, requireSignedIn, type Actor } from "@/lib/auth/actor";
 import type { Action } from "@/lib/auth/permissions";
-import { AppError, toErrorBody } from "@/lib/errors";
+import { toErrorBody } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { MAX_JSON_BODY_BYTES, readJsonBody, requireSameOrigin } from "./request-guards";
 

@@ -8,7 +8,6 @@ const MAX_LENGTH = 2000;
 function isPlainPath(s: string): boolean {
   if (!s.startsWith("/") || s.startsWith("//")) return false;
   // Backslashes, and control characters (tab, CR, LF, ...), which browsers drop.
-  // eslint-disable-next-line no-control-regex -- control characters are what it looks for
   return !/[\\\u0000-\u001f\u007f]/.test(s);
 }
 
