@@ -91,7 +91,10 @@ describe("after sign-in", () => {
     // Every other variant: the path the form would follow, followed by Chromium itself.
     for (const next of HOSTILE_NEXT) {
       const target = safeNextPath(next);
-      await page.evaluate((t) => window.location.assign(t), target);
+      const navigated = page.waitForEvent("framenavigated");
+      // Deferred, so that the navigation does not cut the evaluation short.
+      await page.evaluate((t) => void setTimeout(() => window.location.assign(t), 0), target);
+      await navigated;
       await page.waitForLoadState("load");
       expect(new URL(page.url()).origin, JSON.stringify(next)).toBe(APP);
     }
