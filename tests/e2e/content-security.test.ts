@@ -81,6 +81,22 @@ describe("Content-Security-Policy", () => {
   }
 });
 
+describe("sign-up", () => {
+  it("refuses a common password with a message that says why", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 390, height: 844 } });
+    const page = await ctx.newPage();
+    await page.goto("/sign-up");
+    await page.getByLabel("Name").fill("Ansel Brightwater");
+    await page.getByLabel("E-mail").fill(`common.${tag}@csp-test.example`);
+    await page.getByLabel("Password", { exact: true }).fill("1234567890");
+    await page.getByLabel("Password again").fill("1234567890");
+    await page.getByRole("button", { name: "Create account" }).click();
+    await page.getByText("lists of common passwords that attackers try first").waitFor();
+    await snap(page, "csp-sign-up-common-password");
+    await ctx.close();
+  });
+});
+
 describe("after sign-in", () => {
   it("a hostile ?next= lands on the app, never another origin", async () => {
     const ctx = await browser.newContext({ baseURL: APP });
