@@ -109,7 +109,10 @@ describe("after sign-in", () => {
       const target = safeNextPath(next);
       const navigated = page.waitForEvent("framenavigated");
       // Deferred, so that the navigation does not cut the evaluation short.
-      await page.evaluate((t) => void setTimeout(() => window.location.assign(t), 0), target);
+      await page.evaluate((t) => void setTimeout(() => window.location.assign(t), 0), target).catch((err: Error) => {
+        // Our own navigation may end the evaluation before it answers.
+        if (!/Execution context was destroyed/.test(err.message)) throw err;
+      });
       await navigated;
       await page.waitForLoadState("load");
       expect(new URL(page.url()).origin, JSON.stringify(next)).toBe(APP);
