@@ -8,7 +8,11 @@ const nextConfig = {
   serverExternalPackages: ["sharp", "pg", "exiftool-vendored", "bullmq", "ioredis"],
   experimental: {
     // Track files of moving sites are sent as text through a server action.
+    // proxy.ts refuses larger bodies with a message naming the limit
+    // (SERVER_ACTION_BODY_LIMIT_BYTES in lib/http/security-headers.ts), and the
+    // proxy must pass on the whole body, so its buffer is as large.
     serverActions: { bodySizeLimit: "25mb" },
+    proxyClientMaxBodySize: "25mb",
     // forbidden() and unauthorized() from next/navigation for pages.
     authInterrupts: true,
   },

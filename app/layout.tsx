@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { headers } from "next/headers";
 import type { ReactNode } from "react";
 import { SiteFooter } from "@/components/shell/site-footer";
 import { SiteHeader } from "@/components/shell/site-header";
@@ -25,12 +26,13 @@ export async function generateMetadata(): Promise<Metadata> {
 }
 
 export default async function RootLayout({ children }: { children: ReactNode }) {
-  const [settings, actor] = await Promise.all([findSocietySettings(getDb()), currentActor()]);
+  const [settings, actor, requestHeaders] = await Promise.all([findSocietySettings(getDb()), currentActor(), headers()]);
   const nav = navFor(actor?.roles ?? []).map((e) => ({ href: e.href, label: e.label }));
   return (
     <html lang="en" className={`${sans.variable} ${mono.variable}`} suppressHydrationWarning>
       <head>
-        <ThemeScript />
+        {/* proxy.ts sends the nonce the Content-Security-Policy allows. */}
+        <ThemeScript nonce={requestHeaders.get("x-nonce") ?? undefined} />
       </head>
       <body className="flex min-h-screen flex-col bg-surface font-sans text-ink antialiased">
         <ToastProvider>

@@ -47,6 +47,17 @@ export const envSchema = z
     MAIL_FROM: z.string({ error: "is missing" }).min(3, { error: "must be a sender address" }),
     BETTER_AUTH_SECRET: z.string({ error: "is missing" }).min(32, { error: "must be at least 32 characters" }),
     BETTER_AUTH_URL: url(["http:", "https:"]),
+    /**
+     * How many proxies in front of the app append to X-Forwarded-For. 0 (the
+     * default): the header is ignored and the client is the socket's peer, so a
+     * client cannot choose the address that rate limits count. N: the address N
+     * entries from the right of the header (what the outermost of our proxies saw).
+     */
+    TRUSTED_PROXY_HOPS: z
+      .string()
+      .regex(/^\d$/, { error: "expected a whole number of proxies from 0 to 9" })
+      .default("0")
+      .transform(Number),
   })
   .superRefine((env, ctx) => {
     // The committed development secret is refused wherever the app is served

@@ -2,6 +2,8 @@
 // sentence rather than showing internal text.
 export function describeAuthError(error: { status?: number; code?: string; message?: string } | null | undefined): string {
   if (!error) return "";
+  // Our own checks (lib/auth/auth-hooks.ts) write their message for people.
+  if (error.code === "TOO_MANY_FAILED_SIGN_INS" || error.code === "INVALID_NAME" || error.code === "PASSWORD_TOO_COMMON") return error.message ?? "";
   if (error.status === 429) return "Too many attempts from here. Wait a minute, then try again.";
   switch (error.code) {
     case "INVALID_EMAIL_OR_PASSWORD":

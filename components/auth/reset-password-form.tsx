@@ -47,7 +47,7 @@ export function ResetPasswordForm({ token, linkError }: { token?: string; linkEr
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4">
       {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
-      <Field label="New password" hint="At least 10 characters.">
+      <Field label="New password" hint="At least 10 characters, and not a common password.">
         <Input name="password" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
       </Field>
       <Field label="New password again">

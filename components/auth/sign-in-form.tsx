@@ -5,14 +5,10 @@ import { useState, type FormEvent } from "react";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
+import { safeNextPath } from "@/lib/http/safe-next";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
 import { FormMessage } from "./form-message";
-
-/** Only same-site paths are followed after sign-in, never another origin. */
-function safeNext(next: string | undefined): string {
-  return next && next.startsWith("/") && !next.startsWith("//") ? next : "/";
-}
 
 export function SignInForm({ next }: { next?: string }) {
   const router = useRouter();
@@ -33,7 +29,8 @@ export function SignInForm({ next }: { next?: string }) {
       setError(describeAuthError(error));
       return;
     }
-    router.push(safeNext(next));
+    // Only a plain path on this site is followed, never another origin.
+    router.push(safeNextPath(next));
     router.refresh();
   }
 

@@ -5,6 +5,7 @@ import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
+import { DISPLAY_NAME_MAX, DISPLAY_NAME_MIN } from "@/lib/auth/display-name";
 import { FormMessage } from "./form-message";
 
 export function SignUpForm() {
@@ -46,12 +47,12 @@ export function SignUpForm() {
     <form onSubmit={onSubmit} className="flex flex-col gap-4">
       {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
       <Field label="Name" hint="As it should appear in photo credits.">
-        <Input name="name" autoComplete="name" required minLength={2} maxLength={100} />
+        <Input name="name" autoComplete="name" required minLength={DISPLAY_NAME_MIN} maxLength={DISPLAY_NAME_MAX} />
       </Field>
       <Field label="E-mail">
         <Input name="email" type="email" autoComplete="email" required />
       </Field>
-      <Field label="Password" hint="At least 10 characters.">
+      <Field label="Password" hint="At least 10 characters, and not a common password.">
         <Input name="password" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
       </Field>
       <Field label="Password again">

@@ -6,6 +6,7 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
 import type { FormAction } from "@/components/forms/action-result";
+import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "@/lib/sites/limits";
 
 
 const PRECISION_OPTIONS = [
@@ -32,8 +33,8 @@ export function SiteForm({ action }: { action: FormAction }) {
     setReadError("");
     setTrack(null);
     if (!file) return;
-    if (file.size > 20_000_000) {
-      setReadError(`${file.name} is larger than 20 MB.`);
+    if (file.size > MAX_TRACK_CHARS) {
+      setReadError(`${file.name} is larger than ${MAX_TRACK_LABEL}, the most a track file may have.`);
       return;
     }
     setTrack({ name: file.name, text: await file.text() });

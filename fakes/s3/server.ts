@@ -20,7 +20,10 @@ for (const key of ["S3_BUCKET_ORIGINALS", "S3_BUCKET_DERIVED", "S3_BUCKET_EXPORT
   }
 }
 
-const origins = new Set<string>(["http://127.0.0.1:3000", "http://localhost:3000", "http://127.0.0.1:3100", "http://localhost:3100"]);
+// The development app, and the test app of every lane (scripts/test.sh: port 3100 + lane).
+const origins = new Set<string>(
+  [3000, ...Array.from({ length: 10 }, (_, lane) => 3100 + lane)].flatMap((port) => [`http://127.0.0.1:${port}`, `http://localhost:${port}`]),
+);
 if (process.env.APP_URL) origins.add(new URL(process.env.APP_URL).origin);
 
 const cors = `<CORSConfiguration>

@@ -82,7 +82,7 @@ export {
   resolveMarkedShutterS,
   buildExposureLadder,
 } from "./exposure";
-export { type TrackPoint, parseGpxTrack, parseCsvTrack, parseIsoUtcMs } from "./track-parse";
+export { type TrackPoint, type ScanStats, type TrackParseOptions, parseGpxTrack, parseCsvTrack, parseIsoUtcMs } from "./track-parse";
 export { interpolateTrack, DEFAULT_TRACK_CLAMP_S } from "./track-interpolate";
 export { type CatalogueEclipseKind, type CatalogueEclipse, listSolarEclipses } from "./catalogue";
 export {

@@ -12,14 +12,69 @@ export interface TrackPoint {
   elevationM?: number;
 }
 
-const TRKPT_RE = /<trkpt\b([^>]*?)(\/>|>([\s\S]*?)<\/trkpt\s*>)/g;
 /** A time zone or Z is required: a track time without one could be any of 25 hours. */
 const ISO_UTC_RE = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:?\d{2})$/;
 
-function lineAt(text: string, index: number): number {
-  let line = 1;
-  for (let i = 0; i < index; i++) if (text.charCodeAt(i) === 10) line++;
-  return line;
+/**
+ * Work a parse did, in characters examined. Every search below moves forward
+ * only, so the count stays a small multiple of the text's length; tests use it
+ * to show that the cost is linear (a track is sent by any member).
+ */
+export interface ScanStats {
+  charsExamined: number;
+}
+
+export interface TrackParseOptions {
+  /** Refuse the track as soon as it has more points than this. */
+  maxPoints?: number;
+  stats?: ScanStats;
+}
+
+/** Line numbers for increasing positions in one text, each character read once. */
+class LineCounter {
+  private index = 0;
+  private line = 1;
+
+  constructor(
+    private readonly text: string,
+    private readonly stats: ScanStats,
+  ) {}
+
+  at(index: number): number {
+    for (let i = this.index; i < index; i++) if (this.text.charCodeAt(i) === 10) this.line++;
+    if (index > this.index) {
+      this.stats.charsExamined += index - this.index;
+      this.index = index;
+    }
+    return this.line;
+  }
+}
+
+/** indexOf that adds the stretch it read to the stats. */
+function find(text: string, needle: string, from: number, stats: ScanStats): number {
+  const at = text.indexOf(needle, from);
+  stats.charsExamined += (at < 0 ? text.length : at + needle.length) - from;
+  return at;
+}
+
+function isNameEnd(code: number): boolean {
+  // whitespace, '>' or '/': the element name ends here (<time> but not <timezone>)
+  return code === 32 || code === 9 || code === 10 || code === 13 || code === 62 || code === 47;
+}
+
+/** The next start tag of `name` at or after `from`: where it begins and the index of its '>', or null. */
+function findStartTag(text: string, name: string, from: number, stats: ScanStats): { start: number; close: number } | null {
+  let pos = from;
+  for (;;) {
+    const start = find(text, `<${name}`, pos, stats);
+    if (start < 0) return null;
+    if (!isNameEnd(text.charCodeAt(start + name.length + 1))) {
+      pos = start + 1;
+      continue;
+    }
+    const close = find(text, ">", start + name.length + 1, stats);
+    return { start, close };
+  }
 }
 
 function readAttribute(attributes: string, name: string): string | null {
@@ -27,9 +82,13 @@ function readAttribute(attributes: string, name: string): string | null {
   return m ? (m[2] ?? m[3]) : null;
 }
 
-function readChild(body: string, name: string): string | null {
-  const m = new RegExp(`<${name}\\b[^>]*>([\\s\\S]*?)</${name}\\s*>`).exec(body);
-  return m ? m[1].trim() : null;
+/** The text of the first <name> child in a point's body, or null when there is none (or it is not closed). */
+function readChild(body: string, name: string, stats: ScanStats): string | null {
+  const tag = findStartTag(body, name, 0, stats);
+  if (!tag || tag.close < 0) return null;
+  if (body.charCodeAt(tag.close - 1) === 47) return "";
+  const end = find(body, `</${name}`, tag.close + 1, stats);
+  return end < 0 ? null : body.slice(tag.close + 1, end).trim();
 }
 
 function parseNumber(raw: string | null): number {
@@ -73,27 +132,54 @@ function checkOrder(points: TrackPoint[], where: string[]): void {
   }
 }
 
-/** Points of every track segment of a GPX file, in file order. */
-export function parseGpxTrack(gpx: string): TrackPoint[] {
+function checkCount(points: TrackPoint[], options: TrackParseOptions): void {
+  if (options.maxPoints !== undefined && points.length > options.maxPoints) {
+    throw new AstroError("bad-track", `the track has more than the ${options.maxPoints} points a track may hold`, "track");
+  }
+}
+
+/**
+ * Points of every track segment of a GPX file, in file order. One pass: each
+ * search starts where the previous one ended, so the work grows with the
+ * file's length, never with its square.
+ */
+export function parseGpxTrack(gpx: string, options: TrackParseOptions = {}): TrackPoint[] {
   if (typeof gpx !== "string" || !/<gpx\b/.test(gpx)) {
     throw new AstroError("bad-track", "the file is not GPX: no <gpx> element", "track");
   }
+  const stats = options.stats ?? { charsExamined: 0 };
+  const lines = new LineCounter(gpx, stats);
   const points: TrackPoint[] = [];
   const where: string[] = [];
-  for (const m of gpx.matchAll(TRKPT_RE)) {
-    const label = `track point ${points.length + 1} (line ${lineAt(gpx, m.index ?? 0)})`;
-    const body = m[3] ?? "";
-    const rawTime = readChild(body, "time");
-    const rawEle = readChild(body, "ele");
+  let pos = 0;
+  for (;;) {
+    const tag = findStartTag(gpx, "trkpt", pos, stats);
+    if (!tag) break;
+    const label = `track point ${points.length + 1} (line ${lines.at(tag.start)})`;
+    if (tag.close < 0) throw new AstroError("bad-track", `${label}: the <trkpt> tag is not closed with ">"`, "track");
+    const selfClosing = gpx.charCodeAt(tag.close - 1) === 47;
+    const attributes = gpx.slice(tag.start + 6, selfClosing ? tag.close - 1 : tag.close);
+    let body = "";
+    pos = tag.close + 1;
+    if (!selfClosing) {
+      const end = find(gpx, "</trkpt", pos, stats);
+      if (end < 0) throw new AstroError("bad-track", `${label}: the point has no closing </trkpt>`, "track");
+      body = gpx.slice(pos, end);
+      const endClose = find(gpx, ">", end, stats);
+      pos = endClose < 0 ? gpx.length : endClose + 1;
+    }
+    const rawTime = readChild(body, "time", stats);
+    const rawEle = readChild(body, "ele", stats);
     const p: TrackPoint = {
-      latDeg: parseNumber(readAttribute(m[1], "lat")),
-      lonDeg: parseNumber(readAttribute(m[1], "lon")),
+      latDeg: parseNumber(readAttribute(attributes, "lat")),
+      lonDeg: parseNumber(readAttribute(attributes, "lon")),
       timeMs: rawTime === null ? NaN : parseIsoUtcMs(rawTime),
     };
     if (rawEle !== null) p.elevationM = parseNumber(rawEle);
     checkPoint(label, p, rawTime);
     points.push(p);
     where.push(label);
+    checkCount(points, options);
   }
   checkOrder(points, where);
   return points;
@@ -107,7 +193,7 @@ function splitCsvLine(line: string): string[] {
  * A CSV track: a header row naming the columns time (ISO 8601 UTC), lat, lon and optionally
  * elevation_m, in any order; other columns are ignored; blank lines are skipped.
  */
-export function parseCsvTrack(csv: string): TrackPoint[] {
+export function parseCsvTrack(csv: string, options: TrackParseOptions = {}): TrackPoint[] {
   if (typeof csv !== "string") throw new AstroError("bad-track", "the CSV track must be text", "track");
   const lines = csv.replace(/^\uFEFF/, "").split(/\r?\n/);
   const headerIndex = lines.findIndex((l) => l.trim() !== "");
@@ -127,7 +213,10 @@ export function parseCsvTrack(csv: string): TrackPoint[] {
 
   const points: TrackPoint[] = [];
   const where: string[] = [];
+  const stats = options.stats ?? { charsExamined: 0 };
+  stats.charsExamined += csv.length; // the split above
   for (let n = headerIndex + 1; n < lines.length; n++) {
+    stats.charsExamined += lines[n].length;
     if (lines[n].trim() === "") continue;
     const label = `line ${n + 1}`;
     const f = splitCsvLine(lines[n]);
@@ -141,6 +230,7 @@ export function parseCsvTrack(csv: string): TrackPoint[] {
     checkPoint(label, p, rawTime || null);
     points.push(p);
     where.push(label);
+    checkCount(points, options);
   }
   checkOrder(points, where);
   return points;

@@ -12,9 +12,13 @@ import { queueMail } from "@/lib/email/outbox";
 import { passwordResetMail, verificationMail } from "@/lib/email/templates";
 import { getEnv } from "@/lib/env";
 import { getProducerRedis } from "@/lib/queue/connection";
+import { CLIENT_ADDRESS_HEADER } from "@/lib/http/client-address";
 import { createRedisRateStore } from "@/lib/rate-limit/redis-store";
+import { createAuthHooks } from "./auth-hooks";
+import { displayNameProblem } from "./display-name";
+import { PASSWORD_MAX, PASSWORD_MIN } from "./password-policy";
 
-/** Sign-in attempts per address and minute before answers become 429. */
+/** Sign-in attempts per client address and minute before answers become 429 (failures per e-mail: auth-hooks.ts). */
 export const SIGN_IN_ATTEMPTS_PER_MINUTE = 10;
 
 function createAuth() {
@@ -22,6 +26,7 @@ function createAuth() {
   const db = getDb();
   const appOrigin = new URL(env.APP_URL).origin;
   const altOrigin = appOrigin.includes("127.0.0.1") ? appOrigin.replace("127.0.0.1", "localhost") : appOrigin.replace("localhost", "127.0.0.1");
+  const rateStore = createRedisRateStore(getProducerRedis(), "crownlight:auth-rate:");
 
   return betterAuth({
     appName: "Crownlight",
@@ -32,13 +37,13 @@ function createAuth() {
     emailAndPassword: {
       enabled: true,
       requireEmailVerification: true,
-      minPasswordLength: 10,
-      maxPasswordLength: 128,
+      minPasswordLength: PASSWORD_MIN,
+      maxPasswordLength: PASSWORD_MAX,
       resetPasswordTokenExpiresIn: 3600,
       revokeSessionsOnPasswordReset: true,
       async sendResetPassword({ user, url }) {
         const society = (await findSocietySettings(db)).name;
-        await queueMail(db, passwordResetMail(society, user.email, user.name, url));
+        await queueMail(db, passwordResetMail(society, user.email, url));
       },
     },
     emailVerification: {
@@ -47,7 +52,7 @@ function createAuth() {
       expiresIn: 24 * 3600,
       async sendVerificationEmail({ user, url }) {
         const society = (await findSocietySettings(db)).name;
-        await queueMail(db, verificationMail(society, user.email, user.name, url));
+        await queueMail(db, verificationMail(society, user.email, url));
       },
     },
     session: { expiresIn: 30 * 24 * 3600, updateAge: 24 * 3600 },
@@ -55,7 +60,7 @@ function createAuth() {
       enabled: true,
       window: 60,
       max: 200,
-      customStorage: createRedisRateStore(getProducerRedis(), "crownlight:auth-rate:"),
+      customStorage: rateStore,
       customRules: {
         "/sign-in/email": { window: 60, max: SIGN_IN_ATTEMPTS_PER_MINUTE },
         "/sign-up/email": { window: 60, max: 10 },
@@ -63,9 +68,19 @@ function createAuth() {
         "/send-verification-email": { window: 60, max: 5 },
       },
     },
+    hooks: createAuthHooks(rateStore),
     databaseHooks: {
       user: {
+        // The endpoints' hooks answer with the reason first; this holds for any other way in.
+        update: {
+          async before(user) {
+            if ("name" in user && displayNameProblem(user.name)) return false;
+          },
+        },
         create: {
+          async before(user) {
+            if (displayNameProblem(user.name)) return false;
+          },
           async after(user) {
             await insertRole(db, user.id, "member", null);
           },
@@ -73,7 +88,8 @@ function createAuth() {
       },
     },
     advanced: {
-      ipAddress: { ipAddressHeaders: ["x-forwarded-for", "x-real-ip"] },
+      // Stamped by the web process from the socket (and trusted proxies only): lib/http/client-address.ts.
+      ipAddress: { ipAddressHeaders: [CLIENT_ADDRESS_HEADER] },
     },
   });
 }

@@ -10,8 +10,12 @@ function wrap(society: string, paragraphs: string[], link: { href: string; label
     .join("")}<p><a href="${esc(link.href)}">${esc(link.label)}</a></p><p style="color:#666">${esc(society)}</p></div>`;
 }
 
-export function verificationMail(society: string, to: string, name: string, url: string): MailDraft {
-  const lines = [`Hello ${name},`, `Please confirm that ${to} is your address for the ${society} eclipse workspace.`];
+/**
+ * Sent to whatever address was typed at sign-up, before anyone knows who typed
+ * it: so it carries no text of theirs (not even the name), only the society's.
+ */
+export function verificationMail(society: string, to: string, url: string): MailDraft {
+  const lines = [`Someone signed up for the ${society} eclipse workspace with this address.`, `Please confirm that ${to} is your address.`];
   return {
     to,
     subject: `Confirm your address for ${society}`,
@@ -20,8 +24,9 @@ export function verificationMail(society: string, to: string, name: string, url:
   };
 }
 
-export function passwordResetMail(society: string, to: string, name: string, url: string): MailDraft {
-  const lines = [`Hello ${name},`, "Someone asked to set a new password for your account. The link works for one hour."];
+/** Also asked for by anyone who types the address: no text of the account's own comes first. */
+export function passwordResetMail(society: string, to: string, url: string): MailDraft {
+  const lines = [`Someone asked to set a new password for the ${society} account of ${to}.`, "The link works for one hour."];
   return {
     to,
     subject: `Set a new password for ${society}`,
@@ -126,12 +131,18 @@ export function reviewDecisionMail(
 }
 
 /** To a curator: a visitor reported a plate from its public page. */
-export function plateReportedMail(society: string, to: string, curatorName: string, report: { plateTitle: string; kind: string; message: string; url: string }): MailDraft {
+export function plateReportedMail(society: string, to: string, curatorName: string, report: { plateTitle: string; kind: string; message: string; url: string; quietMinutes: number }): MailDraft {
   return draft(
     society,
     to,
     `Plate reported (${report.kind}): ${report.plateTitle}`,
-    [`Hello ${curatorName},`, `A visitor reported the plate "${report.plateTitle}" as a question of ${report.kind}. They wrote:`, report.message, "The report waits in the plate editor, where you can withdraw the plate for the time being and answer the visitor."],
+    [
+      `Hello ${curatorName},`,
+      `A visitor reported the plate "${report.plateTitle}" as a question of ${report.kind}. They wrote:`,
+      report.message,
+      "The report waits in the plate editor, where you can withdraw the plate for the time being and answer the visitor.",
+      `Further reports on this plate in the next ${report.quietMinutes} minutes are not mailed one by one: the plate editor lists every open report.`,
+    ],
     { href: report.url, label: "Open the plate editor" },
   );
 }

@@ -4,8 +4,9 @@
 import type { z } from "zod";
 import { findActor, requirePermission, requireSignedIn, type Actor } from "@/lib/auth/actor";
 import type { Action } from "@/lib/auth/permissions";
-import { AppError, toErrorBody } from "@/lib/errors";
+import { toErrorBody } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
+import { MAX_JSON_BODY_BYTES, readJsonBody, requireSameOrigin } from "./request-guards";
 
 type Access = { kind: "public" } | { kind: "signed-in" } | { kind: "permission"; action: Action };
 
@@ -25,6 +26,8 @@ interface RouteOptions<QS extends z.ZodType | undefined, BS extends z.ZodType | 
   access: Access;
   query?: QS;
   body?: BS;
+  /** Largest JSON body accepted, in bytes (MAX_JSON_BODY_BYTES unless said). */
+  maxBodyBytes?: number;
 }
 
 type Infer<S> = S extends z.ZodType ? z.infer<S> : undefined;
@@ -42,6 +45,8 @@ export function route<QS extends z.ZodType | undefined = undefined, BS extends z
 ) {
   return async (req: Request, ctx: { params: Promise<Record<string, string | string[]>> }): Promise<Response> => {
     try {
+      // Cross-site forms and scripts cannot change anything, whatever the cookie's SameSite.
+      requireSameOrigin(req);
       const actor = options.access.kind === "public" ? await findActor(req.headers).catch(() => null) : await findActor(req.headers);
       if (options.access.kind === "signed-in") requireSignedIn(actor);
       if (options.access.kind === "permission") requirePermission(actor, options.access.action);
@@ -52,15 +57,7 @@ export function route<QS extends z.ZodType | undefined = undefined, BS extends z
         ? parseInput(options.query, Object.fromEntries(new URL(req.url).searchParams))
         : undefined;
       let body: unknown = undefined;
-      if (options.body) {
-        let raw: unknown;
-        try {
-          raw = await req.json();
-        } catch {
-          throw new AppError("invalid_input", "The request body must be JSON.");
-        }
-        body = parseInput(options.body, raw);
-      }
+      if (options.body) body = parseInput(options.body, await readJsonBody(req, options.maxBodyBytes ?? MAX_JSON_BODY_BYTES));
       const result = await handler({ req, actor, params, query: query as Infer<QS>, body: body as Infer<BS> });
       return result instanceof Response ? result : json(result ?? { ok: true });
     } catch (err) {

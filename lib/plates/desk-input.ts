@@ -1,5 +1,6 @@
 // What the plate editor sends, checked in the browser (live) and on the server
 // (the rule). Client-safe: no database, no Node modules.
+import "@/lib/zod-in-browser";
 import { z } from "zod";
 import type { PlateLicence, PlateReportKind, Rendition, WithdrawalKind } from "@/db/schema/plates";
 

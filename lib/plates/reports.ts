@@ -15,8 +15,16 @@ import { enqueue } from "@/lib/queue/enqueue";
 import { parseInput } from "@/lib/validation";
 import { plateReportSchema, reportAnswerSchema } from "./desk-input";
 
-/** Reports per client address and per plate: generous for people, tight for scripts. */
+/** Reports per client address: generous for people, tight for scripts. */
 export const REPORT_RATE = { window: 600, max: 5 } as const;
+/** Reports about one plate from everyone together, so that many addresses cannot flood it either. */
+export const PLATE_REPORT_RATE = { window: 3600, max: 20 } as const;
+/**
+ * Curators are e-mailed about the first report on a plate in this window; the
+ * reports that follow within it are kept and listed in the plate editor (the
+ * mail says so), so a burst of reports about one plate sends one e-mail.
+ */
+export const REPORT_MAIL_WINDOW_S = 15 * 60;
 
 export interface RateLimiter {
   consume(key: string, rule: { window: number; max: number }): Promise<{ allowed: boolean; retryAfter: number | null }>;
@@ -40,7 +48,8 @@ async function queueAfterCommit(db: Db, ids: string[]): Promise<void> {
 
 /**
  * A visitor's report on a plate the public can see (published, or withdrawn
- * with its page kept). Rate-limited per client address; curators are e-mailed.
+ * with its page kept). Rate-limited per client address and per plate; curators
+ * are e-mailed about the first report in a quiet window (REPORT_MAIL_WINDOW_S).
  */
 export async function submitPlateReport(db: Db, slug: string, input: unknown, client: { address: string; limiter: RateLimiter }): Promise<{ id: string }> {
   const values = parseInput(plateReportSchema, input);
@@ -50,10 +59,16 @@ export async function submitPlateReport(db: Db, slug: string, input: unknown, cl
     .where(and(eq(plates.slug, slug), inArray(plates.state, ["published", "withdrawn"])))
     .limit(1);
   if (!plate) throw notFound("That plate");
-  const decision = await client.limiter.consume(`plate-report:${client.address}`, REPORT_RATE);
-  if (!decision.allowed) {
-    throw new AppError("rate_limited", `Too many reports from your address; try again in ${Math.ceil((decision.retryAfter ?? REPORT_RATE.window) / 60)} minutes.`);
+  const fromClient = await client.limiter.consume(`plate-report:${client.address}`, REPORT_RATE);
+  if (!fromClient.allowed) {
+    throw new AppError("rate_limited", `Too many reports from your address; try again in ${Math.ceil((fromClient.retryAfter ?? REPORT_RATE.window) / 60)} minutes.`);
   }
+  const aboutPlate = await client.limiter.consume(`plate-report-plate:${plate.id}`, PLATE_REPORT_RATE);
+  if (!aboutPlate.allowed) {
+    throw new AppError("rate_limited", `This plate has had many reports in the last hour and curators are looking at them; try again in ${Math.ceil((aboutPlate.retryAfter ?? PLATE_REPORT_RATE.window) / 60)} minutes.`);
+  }
+  // One window, one mail: the first report in it claims the mail.
+  const mailCurators = (await client.limiter.consume(`plate-report-mail:${plate.id}`, { window: REPORT_MAIL_WINDOW_S, max: 1 })).allowed;
   const society = (await findSocietySettings(db)).name;
   const curators = await db
     .select({ name: users.name, email: users.email })
@@ -67,9 +82,9 @@ export async function submitPlateReport(db: Db, slug: string, input: unknown, cl
       .values({ plateId: plate.id, kind: values.kind, message: values.message, reporterEmail: values.email })
       .returning({ id: plateReports.id });
     const ids: string[] = [];
-    for (const c of curators) {
+    for (const c of mailCurators ? curators : []) {
       const mailId = randomUUID();
-      await tx.insert(outboxMessages).values({ id: mailId, ...plateReportedMail(society, c.email, c.name, { plateTitle: plate.title, kind: values.kind, message: values.message, url }) });
+      await tx.insert(outboxMessages).values({ id: mailId, ...plateReportedMail(society, c.email, c.name, { plateTitle: plate.title, kind: values.kind, message: values.message, url, quietMinutes: REPORT_MAIL_WINDOW_S / 60 }) });
       ids.push(mailId);
     }
     // The reporter's address stays out of the audit log; the report row keeps it.

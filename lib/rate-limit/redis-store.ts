@@ -32,6 +32,13 @@ export function createRedisRateStore(redis: Redis, prefix = "crownlight:rate:") 
       if (count <= rule.max) return { allowed: true, retryAfter: null };
       return { allowed: false, retryAfter: ttl };
     },
+    /** The count so far in the current window, and seconds left in it; nothing is counted. */
+    async peek(key: string): Promise<{ count: number; retryAfter: number | null }> {
+      const res = await redis.multi().get(prefix + key).ttl(prefix + key).exec();
+      if (!res) throw new Error("rate limiter: Redis transaction was aborted");
+      const ttl = Number(res[1][1]);
+      return { count: Number(res[0][1] ?? 0), retryAfter: ttl > 0 ? ttl : null };
+    },
     async reset(key: string): Promise<void> {
       await redis.del(prefix + key);
     },

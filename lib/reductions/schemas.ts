@@ -1,6 +1,7 @@
 // The parameters of a reduction, checked in the browser (the start form) and on
 // the server (the route and the service) with the same schema. Client-safe: no
 // database or Node imports.
+import "@/lib/zod-in-browser";
 import { z } from "zod";
 
 export const REGISTRATION_MODES = ["sun", "moon", "corona"] as const;

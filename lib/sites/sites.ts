@@ -6,6 +6,7 @@ import type { DbOrTx } from "@/db/client";
 import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "./limits";
 import { parseTrackText } from "./track-file";
 
 const coord = (what: string, limit: number) =>
@@ -32,7 +33,10 @@ export const movingSiteSchema = z.object({
   ...common,
   kind: z.literal("moving"),
   trackFileName: z.string().trim().min(1, { error: "choose a GPX or CSV file" }).max(200),
-  trackText: z.string().min(1, { error: "the track file is empty" }).max(20_000_000, { error: "the track file is larger than 20 MB" }),
+  trackText: z
+    .string()
+    .min(1, { error: "the track file is empty" })
+    .max(MAX_TRACK_CHARS, { error: `the track file is larger than ${MAX_TRACK_LABEL}, the most a track file may have` }),
 });
 
 export const siteInputSchema = z.discriminatedUnion("kind", [fixedSiteSchema, movingSiteSchema], { error: "expected kind fixed or moving" });

@@ -19,6 +19,7 @@ import { closeQueues } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
+import { violationsOn, watchCsp } from "../support/csp";
 import { APP, requireTestDatabase } from "../support/env";
 import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
 import { waitFor } from "../support/wait";
@@ -89,6 +90,8 @@ describe("the public gallery", () => {
   it("filters, opens a plate, zooms, compares, shares the view, and passes axe", async () => {
     const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 } });
     await ctx.grantPermissions(["clipboard-read", "clipboard-write"], { origin: APP });
+    // The viewer, its tiles and the comparison all run under the Content-Security-Policy.
+    const csp = await watchCsp(ctx);
     const page = await ctx.newPage();
     await page.goto("/gallery");
     await page.getByLabel("Photographer").selectOption({ label: photographer });
@@ -154,6 +157,9 @@ describe("the public gallery", () => {
     expect(await again.getByRole("radio", { name: "Structure" }).isChecked()).toBe(true);
     expect(await again.getByRole("checkbox", { name: "Rings at 1 to 4 solar radii" }).isChecked()).toBe(true);
     expect(await seriousViolations(again)).toEqual([]);
+    expect(await violationsOn(page)).toEqual([]);
+    expect(await violationsOn(again)).toEqual([]);
+    expect(csp.consoleErrors).toEqual([]);
     await ctx.close();
   }, 180_000);
 

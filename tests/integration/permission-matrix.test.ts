@@ -2,6 +2,7 @@
 // a curator, an editor and an admin, and checks the status codes. A route file
 // that is not in the matrix fails the test, so new routes must be added here.
 import fs from "node:fs";
+import { createRequire } from "node:module";
 import path from "node:path";
 import sharp from "sharp";
 import { eq } from "drizzle-orm";
@@ -422,3 +423,111 @@ describe("permission matrix", () => {
     expect(fields.find((f) => f.field === "role")?.message).toMatch(/expected one of member, curator, editor, admin.*"emperor"/);
   });
 });
+
+// ---- Server actions (issue 15, part B) -------------------------------------
+// Every "use server" export, called over HTTP the way React calls it (the
+// Next-Action header and the arguments encoded by React's own encodeReply) by
+// every role, with an empty form. The wrapper checks the session and the
+// permission before the input, so a refused role gets the sign-in or roles
+// message, and a permitted one gets as far as the form's own field problems:
+// nothing is created. Action ids come from the build the tests run against.
+
+type ActionOutcome = "sign-in" | "refused" | "fields";
+const ACTION_OK = { visitor: "sign-in", member: "fields", curator: "fields", editor: "fields", admin: "fields" } as const;
+const ACTION_ADMIN = { visitor: "sign-in", member: "refused", curator: "refused", editor: "refused", admin: "fields" } as const;
+
+/** Each server action: its file, its export, and who may call it. */
+const ACTION_CASES: { file: string; name: string; expect: Record<Who, ActionOutcome> }[] = [
+  { file: "app/(desk)/admin/settings/actions.ts", name: "saveSettingsAction", expect: ACTION_ADMIN },
+  { file: "app/(desk)/admin/eclipses/actions.ts", name: "editEclipseAction", expect: ACTION_ADMIN },
+  { file: "app/(desk)/admin/people/actions.ts", name: "changeRoleAction", expect: ACTION_ADMIN },
+  { file: "app/(studio)/studio/sites/actions.ts", name: "createSiteAction", expect: ACTION_OK },
+  { file: "app/(studio)/studio/sites/actions.ts", name: "deleteSiteAction", expect: ACTION_OK },
+  { file: "app/(studio)/studio/sets/actions.ts", name: "createBracketSetAction", expect: ACTION_OK },
+  { file: "app/(studio)/studio/kits/actions.ts", name: "createKitAction", expect: ACTION_OK },
+  { file: "app/(studio)/studio/kits/actions.ts", name: "updateKitAction", expect: ACTION_OK },
+  { file: "app/(studio)/studio/kits/actions.ts", name: "deleteKitAction", expect: ACTION_OK },
+  { file: "app/(public)/planner/actions.ts", name: "savePlanAction", expect: ACTION_OK },
+];
+
+/** Every exported server action in the source: "use server" files and their exports. */
+function serverActionsInSource(): string[] {
+  const out: string[] = [];
+  const walk = (dir: string) => {
+    for (const e of fs.readdirSync(dir, { withFileTypes: true })) {
+      const p = path.join(dir, e.name);
+      if (e.isDirectory()) walk(p);
+      else if (/\.(ts|tsx)$/.test(e.name)) {
+        const text = fs.readFileSync(p, "utf8");
+        if (!/^\s*["']use server["']/.test(text)) continue;
+        for (const m of text.matchAll(/^export (?:const|async function) (\w+)/gm)) out.push(`${path.relative(path.resolve("."), p)}#${m[1]}`);
+      }
+    }
+  };
+  for (const root of ["app", "lib", "components"]) walk(path.resolve(root));
+  return out.sort();
+}
+
+interface ManifestEntry {
+  exportedName?: string;
+  filename?: string;
+  workers: Record<string, unknown>;
+}
+
+function distDir(): string {
+  const lane = process.env.TEST_LANE ?? "0";
+  return process.env.NEXT_DIST_DIR ?? `.next-test${lane === "0" ? "" : `_lane${lane}`}`;
+}
+
+/** The action's id and a page that serves it, from the build's server-reference manifest. */
+function findAction(file: string, name: string): { id: string; page: string } {
+  const manifest = JSON.parse(fs.readFileSync(path.join(distDir(), "server", "server-reference-manifest.json"), "utf8")) as { node: Record<string, ManifestEntry> };
+  const found = Object.entries(manifest.node).find(([, v]) => v.filename === file && v.exportedName === name);
+  if (!found) throw new Error(`${file}#${name} is not in the build's server-reference manifest`);
+  // "app/(studio)/studio/sites/[id]/page" -> a page URL without dynamic segments, if there is one.
+  const pages = Object.keys(found[1].workers).map((w) => w.replace(/^app/, "").replace(/\/page$/, "").replace(/\/\([^/]+\)/g, "") || "/");
+  const page = pages.find((p) => !p.includes("[")) ?? pages[0].replace(/\[[^\]]+\]/g, "00000000-0000-4000-8000-000000000000");
+  return { id: found[0], page };
+}
+
+const encodeReply = (createRequire(import.meta.url)("next/dist/compiled/react-server-dom-turbopack/client.node") as {
+  encodeReply: (args: unknown[]) => Promise<FormData | string>;
+}).encodeReply;
+
+async function callAction(client: Client, file: string, name: string): Promise<{ status: number; outcome: string; message: string }> {
+  const { id, page } = findAction(file, name);
+  const encoded = await encodeReply([null, new FormData()]);
+  const form = typeof encoded === "string" ? null : encoded;
+  const boundary = `----matrix${Date.now().toString(16)}`;
+  const body = form
+    ? Buffer.concat([...[...form.entries()].map(([k, v]) => Buffer.from(`--${boundary}\r\ncontent-disposition: form-data; name="${k}"\r\n\r\n${String(v)}\r\n`)), Buffer.from(`--${boundary}--\r\n`)])
+    : Buffer.from(encoded as string);
+  const res = await client.request(page, {
+    method: "POST",
+    headers: { "next-action": id, accept: "text/x-component", "content-type": form ? `multipart/form-data; boundary=${boundary}` : "text/plain;charset=UTF-8" },
+    body,
+  });
+  const text = await res.text();
+  const m = /"ok":(true|false),"message":"((?:[^"\\]|\\.)*)"/.exec(text);
+  if (!m) return { status: res.status, outcome: `no result (${text.slice(0, 120)})`, message: "" };
+  const message = JSON.parse(`"${m[2]}"`) as string;
+  const outcome = message === "Sign in to continue." ? "sign-in" : message.startsWith("Your roles do not allow") ? "refused" : /marked field/.test(message) ? "fields" : `other: ${message}`;
+  return { status: res.status, outcome, message };
+}
+
+describe("permission matrix: server actions", () => {
+  it("covers every server action in the source", () => {
+    expect(serverActionsInSource()).toEqual(ACTION_CASES.map((c) => `${c.file}#${c.name}`).sort());
+  });
+
+  for (const c of ACTION_CASES) {
+    for (const who of WHO) {
+      it(`server action ${c.name} as ${who}: ${c.expect[who]}`, async () => {
+        const { status, outcome } = await callAction(clients[who], c.file, c.name);
+        expect(status).toBe(200);
+        expect(outcome).toBe(c.expect[who]);
+      });
+    }
+  }
+});
+// ---- end of server actions --------------------------------------------------

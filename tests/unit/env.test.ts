@@ -75,4 +75,12 @@ describe("environment validation", () => {
       expect((err as Error).message).toMatch(/MAIL_FROM is missing/);
     }
   });
+
+  it("reads TRUSTED_PROXY_HOPS as a small whole number, 0 by default", () => {
+    expect(parseEnv(GOOD).TRUSTED_PROXY_HOPS).toBe(0);
+    expect(parseEnv({ ...GOOD, TRUSTED_PROXY_HOPS: "2" }).TRUSTED_PROXY_HOPS).toBe(2);
+    for (const bad of ["-1", "1.5", "two", "10", " 1"]) {
+      expect(problemsOf({ ...GOOD, TRUSTED_PROXY_HOPS: bad })).toEqual([{ name: "TRUSTED_PROXY_HOPS", message: "expected a whole number of proxies from 0 to 9" }]);
+    }
+  });
 });

@@ -22,6 +22,16 @@ describe("Redis rate store", () => {
     expect(refused.retryAfter).toBeLessThanOrEqual(60);
   });
 
+  it("peeks at a count without adding to it", async () => {
+    const store = createRedisRateStore(redis as never, "t:");
+    expect(await store.peek("sign-in-failures:a@b.example")).toEqual({ count: 0, retryAfter: null });
+    for (let i = 0; i < 2; i++) await store.consume("sign-in-failures:a@b.example", { window: 900, max: 10 });
+    const seen = await store.peek("sign-in-failures:a@b.example");
+    expect(seen.count).toBe(2);
+    expect(seen.retryAfter).toBeGreaterThan(0);
+    expect((await store.peek("sign-in-failures:a@b.example")).count).toBe(2);
+  });
+
   it("keeps separate counts per key", async () => {
     const store = createRedisRateStore(redis as never, "t:");
     const rule = { window: 60, max: 1 };

@@ -1,4 +1,5 @@
 import { getDb } from "@/db/client";
+import { clientAddressOf } from "@/lib/http/client-address";
 import { json, PUBLIC, route } from "@/lib/http/route";
 import { plateReportSchema } from "@/lib/plates/desk-input";
 import { submitPlateReport } from "@/lib/plates/reports";
@@ -9,7 +10,7 @@ export const dynamic = "force-dynamic";
 
 // Visitors report without an account; the limiter keeps scripts from flooding curators' mail.
 export const POST = route({ access: PUBLIC, body: plateReportSchema }, async ({ req, params, body }) => {
-  const address = req.headers.get("x-forwarded-for")?.split(",")[0]?.trim() || req.headers.get("x-real-ip") || "unknown";
+  const address = clientAddressOf(req.headers);
   const limiter = createRedisRateStore(getProducerRedis(), "crownlight:report-rate:");
   return json(await submitPlateReport(getDb(), params.slug, body, { address, limiter }), { status: 201 });
 });
