@@ -8,7 +8,7 @@ describe("natural rendition", () => {
   const ramp = Float32Array.from({ length: n }, (_, i) => 10 * Math.pow(1e4, i / (n - 1))); // four decades
 
   it("maps the black point to 0 and the white point to 1 and is monotonic", () => {
-    const r = renderNatural({ width: n, height: 1, planes: [ramp] }, { blackPoint: 10, whitePoint: 1e5 });
+    const r = renderNatural({ width: n, height: 1, planes: [ramp] }, { blackPoint: 10, whitePoint: 1e5, shoulderKnee: 1 });
     const out = r.image.planes[0];
     expect(out[0]).toBe(0);
     expect(out[n - 1]).toBeCloseTo(1, 6);
