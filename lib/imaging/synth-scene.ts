@@ -284,9 +284,11 @@ export function createScene(o: SceneOptions, sun: { x: number; y: number }, rng:
       });
     }
   }
-  // Faint fine rays everywhere: a sum of cosines in position angle, a few per cent deep.
+  // Faint fine rays everywhere: a sum of cosines in position angle, a few per cent deep,
+  // none finer than about 8 px at 1.2 R (finer ones would alias into pixel-scale noise).
   const texture = new Float32Array(columns);
-  const rays = Array.from({ length: 24 }, () => ({ m: 20 + Math.floor(rng() * 220), phase: rng() * 2 * Math.PI, amplitude: uniform(rng, 0.002, 0.008) }));
+  const maxM = Math.max(12, Math.min(240, Math.floor((2 * Math.PI * 1.2 * sunR) / 8)));
+  const rays = Array.from({ length: 24 }, () => ({ m: 8 + Math.floor(rng() * (maxM - 8)), phase: rng() * 2 * Math.PI, amplitude: uniform(rng, 0.002, 0.008) }));
   for (let c = 0; c < columns; c++) {
     const phi = (2 * Math.PI * c) / columns - Math.PI;
     let v = 1;
