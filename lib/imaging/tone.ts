@@ -135,10 +135,11 @@ function computeRingPercentile(lum: Float32Array, width: number, height: number,
 }
 
 /**
- * Share of the ring's pixels whose every display plane is at or above
- * `threshold` (0..1; 1 - 0.5 / 65535 is full white in a 16-bit file): the
- * natural rendition's burnt-out share at the limb. Pixels outside `valid` are
- * left out (the Moon).
+ * Share of the ring's pixels whose brightest display plane is at or above
+ * `threshold` (0..1; 1 - 0.5 / 65535 is the top code of a 16-bit file): the
+ * natural rendition's burnt-out share at the limb. The brightest plane, not
+ * all three: a colour scaled down to keep its hue (renderNatural) has lost its
+ * gradations just as a white pixel has. Pixels outside `valid` are left out (the Moon).
  */
 export function measureWhiteFraction(image: PlaneImage, ring: LimbRing, threshold = 1 - 0.5 / 65535, valid?: Uint8Array): number {
   requireRing(ring);
@@ -146,7 +147,7 @@ export function measureWhiteFraction(image: PlaneImage, ring: LimbRing, threshol
   forEachInRing(image.width, image.height, ring, (i) => {
     if (valid && !valid[i]) return;
     count++;
-    if (image.planes.every((p) => p[i] >= threshold)) white++;
+    if (image.planes.some((p) => p[i] >= threshold)) white++;
   });
   return count > 0 ? white / count : 0;
 }
@@ -203,14 +204,15 @@ function computeRadialGain(lum: Float32Array, width: number, height: number, rin
 
 /**
  * Natural rendition: x = (g I - black) / (white - black) in linear light, g the
- * optional radial gain; the stretch and the highlight shoulder give the
- * luminance's display value (sRGB encoded, IEC 61966-2-1), and every colour is
- * scaled in linear light by the same factor, so hues survive (Lupton et al.
- * 2004, PASP 116:133). A colour whose brightest plane would exceed 1 is scaled
- * down as a whole rather than clipped plane by plane, which keeps saturated
- * prominences pink instead of turning them white (Lupton et al. 2004). The
- * curve sets encoded values, not linear light: a log-like curve followed by the
- * sRGB encoding would compress the highlights twice. Returns display values in 0..1.
+ * optional radial gain; the stretch gives the luminance's display value (sRGB
+ * encoded, IEC 61966-2-1), and every colour is scaled in linear light by the
+ * same factor, so hues survive (Lupton et al. 2004, PASP 116:133). The
+ * highlight shoulder then acts on the brightest plane and scales the others
+ * with it: a bright colour is never clipped plane by plane (which turns
+ * prominences white; Lupton et al. 2004 scale a saturated colour as a whole)
+ * and keeps its gradations up to well above the white point. The curve sets
+ * encoded values, not linear light: a log-like curve followed by the sRGB
+ * encoding would compress the highlights twice. Returns display values in 0..1.
  *
  * With limbRing the white point sits at the top of the inner corona, not at a
  * percentile of the whole frame: the ring from the limb to 1.1 R is a fraction
@@ -266,14 +268,19 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
   for (let i = 0; i < n; i++) {
     const x = (lum[i] - black) / span;
     const g = gain ? gain[i] : 1;
-    const factor = x > 0 ? (decodeSrgb(applyShoulder(applyStretch(Math.min(x, 1e6), beta, curve), knee)) / x) * g : 0;
+    const factor = x > 0 ? (decodeSrgb(applyStretch(Math.min(x, 1e6), beta, curve)) / x) * g : 0;
     let top = 0;
     for (let c = 0; c < channels; c++) {
       const v = ((image.planes[c][i] - black / g) / span) * factor;
       linear[c] = v;
       if (v > top) top = v;
     }
-    const fit = top > 1 ? 1 / top : 1;
+    // The shoulder acts on the brightest plane, and every plane follows it.
+    let fit = 1;
+    if (top > 0) {
+      const e = encodeSrgb(top);
+      if (e > knee) fit = decodeSrgb(applyShoulder(e, knee)) / top;
+    }
     for (let c = 0; c < channels; c++) planes[c][i] = encode(linear[c] * fit);
   }
   return { image: { width, height, planes }, blackPoint: black, whitePoint: white, beta, curve };
