@@ -284,22 +284,30 @@ export function createScene(o: SceneOptions, sun: { x: number; y: number }, rng:
       });
     }
   }
-  // Faint fine rays everywhere: a sum of cosines in position angle, a few per cent deep,
-  // none finer than about 8 px at 1.2 R (finer ones would alias into pixel-scale noise).
+  // Faint fine rays everywhere: a sum of cosines in position angle, a few per cent deep.
+  // Each ray shows only where its period is at least 4 px (it fades in from 2 px),
+  // so the finest rays appear farther out: finer ones would alias into pixel-scale noise.
+  const rays = Array.from({ length: 24 }, () => ({ m: 8 + Math.floor(rng() * 160), phase: rng() * 2 * Math.PI, amplitude: uniform(rng, 0.006, 0.02) }));
+  const rayWaves = rays.map((ray) => Float32Array.from({ length: columns }, (_, c) => ray.amplitude * Math.cos(ray.m * ((2 * Math.PI * c) / columns - Math.PI) + ray.phase)));
   const texture = new Float32Array(columns);
-  const maxM = Math.max(12, Math.min(240, Math.floor((2 * Math.PI * 1.2 * sunR) / 8)));
-  const rays = Array.from({ length: 24 }, () => ({ m: 8 + Math.floor(rng() * (maxM - 8)), phase: rng() * 2 * Math.PI, amplitude: uniform(rng, 0.002, 0.008) }));
-  for (let c = 0; c < columns; c++) {
-    const phi = (2 * Math.PI * c) / columns - Math.PI;
-    let v = 1;
-    for (const ray of rays) v += ray.amplitude * Math.cos(ray.m * phi + ray.phase);
-    texture[c] = v;
-  }
+  const fillTexture = (r: number) => {
+    texture.fill(1);
+    // The inner corona is the most finely structured: rays three times as deep at the limb.
+    const depth = 1 + 2 * Math.exp(-(r - 1) / 0.3);
+    rays.forEach((ray, k) => {
+      const periodPx = (2 * Math.PI * r * sunR) / ray.m;
+      const weight = depth * Math.min(1, Math.max(0, (periodPx - 2) / 2));
+      if (weight === 0) return;
+      const wave = rayWaves[k];
+      for (let c = 0; c < columns; c++) texture[c] += weight * wave[c];
+    });
+  };
   const uMin = 1 / rMax;
   const corona = new Float32Array(CORONA_ROWS * columns);
   const features = { poleAngle, helmets, plumes, texture };
   for (let j = 0; j < CORONA_ROWS; j++) {
     const u = 1 - ((1 - uMin) * j) / (CORONA_ROWS - 1);
+    fillTexture(1 / u);
     fillCoronaRow(corona.subarray(j * columns, (j + 1) * columns), columns, 1 / u, features);
   }
 
