@@ -2,7 +2,7 @@
 // with the lunar disk masked.
 import { blurGaussianFast } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
-import { estimateNoiseVariance } from "./structure-noise";
+import { denoiseLocally, estimateNoiseVariance } from "./structure-noise";
 import { computePercentiles } from "./tone";
 
 export interface LunarDisk {
@@ -38,6 +38,13 @@ export interface NrgfOptions {
   valid?: Uint8Array;
   /** Width of the radial bins, px; default 1. */
   binWidthPx?: number;
+  /** Noise variance of each pixel of `plane`, its units squared; estimated from the plane when absent. */
+  noiseVariance?: Float32Array;
+  /**
+   * Filter the plane by the local signal-to-noise ratio first (denoiseLocally),
+   * so the normalization does not lift the outer field's noise into grain; default true.
+   */
+  snrWeighting?: boolean;
 }
 
 /**
@@ -45,7 +52,9 @@ export interface NrgfOptions {
  * 236:263: I'(r, phi) = (I(r, phi) - <I(r)>_phi) / sigma_phi(I(r)). Mean and
  * standard deviation over position angle are taken in rings of binWidthPx and
  * interpolated linearly in radius between ring mean radii, so a steep radial
- * fall-off inside a ring does not leak into the result.
+ * fall-off inside a ring does not leak into the result. With snrWeighting
+ * (default) the plane is first filtered by its local signal-to-noise ratio
+ * (denoiseLocally), our addition.
  */
 export function applyNrgf(plane: Float32Array, width: number, height: number, options: NrgfOptions): FilteredPlane {
   const binWidth = options.binWidthPx ?? 1;
@@ -54,6 +63,7 @@ export function applyNrgf(plane: Float32Array, width: number, height: number, op
   if (!Number.isFinite(cx) || !Number.isFinite(cy)) throw new ImagingError("bad-parameter", `sunCentre must be finite, got (${cx}, ${cy})`);
   if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
   const valid = createValidMask(width, height, options.lunarDisk, options.valid);
+  if (options.snrWeighting ?? true) plane = denoiseLocally(plane, width, height, { valid, noiseVariance: options.noiseVariance });
   const maxR = Math.hypot(Math.max(cx, width - 1 - cx), Math.max(cy, height - 1 - cy));
   const bins = Math.ceil(maxR / binWidth) + 2;
   const count = new Float64Array(bins), sumR = new Float64Array(bins), sum = new Float64Array(bins), sum2 = new Float64Array(bins);

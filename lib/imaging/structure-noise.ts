@@ -107,3 +107,56 @@ export function createStructureMask(width: number, height: number, coverage: Uin
   }
   return out;
 }
+
+export interface LocalDenoiseOptions {
+  valid?: Uint8Array;
+  /** Noise variance per pixel, the plane's units squared; estimated from the plane when absent. */
+  noiseVariance?: Float32Array;
+  /** Width (sigma) of the local window, px; default 2.5. */
+  widthPx?: number;
+}
+
+/**
+ * Local Wiener (Lee) filter: out = m + g (B - m), m the local mean and g =
+ * S / (S + N) with S = max(0, v - 1.5 N), v the local variance and N the noise
+ * variance that survives B - m (Lee 1980, IEEE PAMI 2:165, from memory; the
+ * factor 1.5 as in MGN's weighting, see radial.ts). Where structure stands
+ * above the noise the pixel is kept; where only noise is left it moves to
+ * the local mean. Windows are normalized over valid pixels; invalid pixels
+ * are returned unchanged.
+ */
+export function denoiseLocally(plane: Float32Array, width: number, height: number, options: LocalDenoiseOptions = {}): Float32Array {
+  const w = options.widthPx ?? 2.5;
+  requireNumberInRange("widthPx", w, 0.5, 1000);
+  const n = width * height;
+  if (plane.length !== n) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
+  const valid = options.valid;
+  if (options.noiseVariance && options.noiseVariance.length !== n) throw new ImagingError("size-mismatch", `noiseVariance has ${options.noiseVariance.length} values, expected ${width} x ${height}`);
+  const noise = options.noiseVariance ?? estimateNoiseVariance(plane, width, height, valid);
+  // Work relative to the valid mean so that float32 blurs keep their precision.
+  let sum = 0, count = 0;
+  for (let i = 0; i < n; i++) if (!valid || valid[i]) { sum += plane[i]; count++; }
+  const offset = count > 0 ? sum / count : 0;
+  const data = new Float32Array(n), weight = new Float32Array(n);
+  for (let i = 0; i < n; i++) if (!valid || valid[i]) { data[i] = plane[i] - offset; weight[i] = 1; }
+  const scratch = new Float32Array(n);
+  const norm = blurGaussianFast(weight, width, height, w, undefined, scratch);
+  const mean = blurGaussianFast(data, width, height, w, undefined, scratch);
+  const sq = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    mean[i] = norm[i] > 1e-6 ? mean[i] / norm[i] : 0;
+    if (weight[i]) sq[i] = (data[i] - mean[i]) ** 2;
+  }
+  const localVar = blurGaussianFast(sq, width, height, w, sq, scratch);
+  const nu = Math.max(0, 1 - 3 / (4 * Math.PI * w * w));
+  const out = Float32Array.from(plane);
+  for (let i = 0; i < n; i++) {
+    if (!weight[i] || !(norm[i] > 1e-6)) continue;
+    const v = localVar[i] / norm[i];
+    const noiseVar = nu * noise[i];
+    const signal = Math.max(0, v - 1.5 * noiseVar);
+    const gain = signal + noiseVar > 0 ? signal / (signal + noiseVar) : 1;
+    out[i] = offset + mean[i] + gain * (data[i] - mean[i]);
+  }
+  return out;
+}
