@@ -191,12 +191,11 @@ function computeRadialGain(lum: Float32Array, width: number, height: number, rin
   const gain = new Float32Array(width * height).fill(1);
   const first = profile[Math.floor(innerPx / binPx)];
   if (!(first > 0)) return gain;
+  const binGain = profile.map((p) => (p > 0 ? Math.pow(p / first, -alpha) : 1));
   for (let y = 0; y < height; y++) {
     for (let x = 0; x < width; x++) {
       const r = Math.hypot(x - cx, y - cy);
-      if (r < innerPx) continue;
-      const p = profile[Math.min(bins - 1, Math.floor(r / binPx))];
-      if (p > 0) gain[y * width + x] = Math.pow(p / first, -alpha);
+      if (r >= innerPx) gain[y * width + x] = binGain[Math.min(bins - 1, Math.floor(r / binPx))];
     }
   }
   return gain;
