@@ -292,8 +292,8 @@ export function createScene(o: SceneOptions, sun: { x: number; y: number }, rng:
   const texture = new Float32Array(columns);
   const fillTexture = (r: number) => {
     texture.fill(1);
-    // The inner corona is the most finely structured: rays three times as deep at the limb.
-    const depth = 1 + 2 * Math.exp(-(r - 1) / 0.3);
+    // The inner corona is the most finely structured: rays ten times as deep at the limb as far out.
+    const depth = 0.3 + 2.7 * Math.exp(-(r - 1) / 0.3);
     rays.forEach((ray, k) => {
       const periodPx = (2 * Math.PI * r * sunR) / ray.m;
       const weight = depth * Math.min(1, Math.max(0, (periodPx - 2) / 2));
