@@ -9,10 +9,11 @@ import { addFrameToMerge, createMergeAccumulator, finishMerge, toPilot, type Fra
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import { estimateMoonTrack } from "./moon-track";
 import { measureBracketLevels, type FrameLevels, type LevelSource } from "./frame-levels";
+import { createStructureMask } from "./structure-noise";
 import { registerFrames, type FrameRegistration, type RegistrationFrame } from "./register";
 import { warpMask, warpPlanes, type WarpTarget } from "./resample";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
-import { composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
+import { applyAffine, composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import { computePercentiles, renderNatural, renderStructure } from "./tone";
 import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type BlackLevelSource, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
@@ -439,12 +440,25 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
   const outsideMoon = createValidMask(width, height, referenceMoon);
   const luminance = computeLuminancePlane(master.planes);
-  const natural = renderNatural(master, { valid: outsideMoon, luminance });
+  // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
+  const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
+  const natural = renderNatural(master, { valid: outsideMoon, luminance, limbRing });
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
+  // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
+  // within the largest frame displacement (plus the bicubic reach of 2 px) miss some frames.
+  let reachPx = 0;
+  for (const r of usedRegistration) {
+    for (const [x, y] of [[0, 0], [width - 1, 0], [0, height - 1], [width - 1, height - 1]]) {
+      const p = applyAffine(r.masterToFrame, x, y);
+      reachPx = Math.max(reachPx, Math.hypot(p.x - x, p.y - y));
+    }
+  }
+  const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
+  const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
   // The strength weighs local structure against the overall image: MGN's h is its complement.
   const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, h: 1 - filterStrength })
-    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk }), luminance, filterStrength);
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
   const structure = renderStructure(filtered, width, height);
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   progress("renditions", 1);

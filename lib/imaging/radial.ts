@@ -2,6 +2,7 @@
 // with the lunar disk masked.
 import { blurGaussianFast } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
+import { denoiseLocally, estimateNoiseVariance } from "./structure-noise";
 import { computePercentiles } from "./tone";
 
 export interface LunarDisk {
@@ -37,6 +38,13 @@ export interface NrgfOptions {
   valid?: Uint8Array;
   /** Width of the radial bins, px; default 1. */
   binWidthPx?: number;
+  /** Noise variance of each pixel of `plane`, its units squared; estimated from the plane when absent. */
+  noiseVariance?: Float32Array;
+  /**
+   * Filter the plane by the local signal-to-noise ratio first (denoiseLocally),
+   * so the normalization does not lift the outer field's noise into grain; default true.
+   */
+  snrWeighting?: boolean;
 }
 
 /**
@@ -44,7 +52,9 @@ export interface NrgfOptions {
  * 236:263: I'(r, phi) = (I(r, phi) - <I(r)>_phi) / sigma_phi(I(r)). Mean and
  * standard deviation over position angle are taken in rings of binWidthPx and
  * interpolated linearly in radius between ring mean radii, so a steep radial
- * fall-off inside a ring does not leak into the result.
+ * fall-off inside a ring does not leak into the result. With snrWeighting
+ * (default) the plane is first filtered by its local signal-to-noise ratio
+ * (denoiseLocally), our addition.
  */
 export function applyNrgf(plane: Float32Array, width: number, height: number, options: NrgfOptions): FilteredPlane {
   const binWidth = options.binWidthPx ?? 1;
@@ -53,6 +63,7 @@ export function applyNrgf(plane: Float32Array, width: number, height: number, op
   if (!Number.isFinite(cx) || !Number.isFinite(cy)) throw new ImagingError("bad-parameter", `sunCentre must be finite, got (${cx}, ${cy})`);
   if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
   const valid = createValidMask(width, height, options.lunarDisk, options.valid);
+  if (options.snrWeighting ?? true) plane = denoiseLocally(plane, width, height, { valid, noiseVariance: options.noiseVariance });
   const maxR = Math.hypot(Math.max(cx, width - 1 - cx), Math.max(cy, height - 1 - cy));
   const bins = Math.ceil(maxR / binWidth) + 2;
   const count = new Float64Array(bins), sumR = new Float64Array(bins), sum = new Float64Array(bins), sum2 = new Float64Array(bins);
@@ -158,7 +169,26 @@ export interface MgnOptions {
   gamma?: number;
   /** Gaussian kernel widths w (sigma), px; default 1.25, 2.5, 5, 10, 20, 40. */
   widthsPx?: number[];
+  /**
+   * Noise variance of each pixel of `plane`, in its units squared (from the
+   * merge; see combineLuminanceVariance). Estimated from the plane itself when
+   * absent (estimateNoiseVariance).
+   */
+  noiseVariance?: Float32Array;
+  /** Weight each scale's enhancement by its local signal-to-noise ratio; default true. false gives the published filter unchanged. */
+  snrWeighting?: boolean;
 }
+
+/**
+ * The signal variance is the local variance less this many times the expected
+ * noise variance: the local variance is itself estimated from a few dozen
+ * pixels, and subtracting a little more than the mean noise keeps its chance
+ * excesses from passing as structure (over-subtraction, as in spectral noise
+ * subtraction, Berouti, Schwartz and Makhoul 1979, ICASSP; from memory).
+ */
+const NOISE_OVERSUBTRACTION = 1.5;
+/** Width of the Lee estimate behind MGN's gamma image, px: wide enough to smooth noise where no structure stands out. */
+const LEE_WIDTH_PX = 5;
 
 /** Defaults from memory of Morgan and Druckmueller (2014) (REFERENCES.md). */
 export const MGN_DEFAULTS = { k: 0.7, h: 0.7, gamma: 3.2, widthsPx: [1.25, 2.5, 5, 10, 20, 40] };
@@ -174,6 +204,17 @@ export const MGN_DEFAULTS = { k: 0.7, h: 0.7, gamma: 3.2, widthsPx: [1.25, 2.5, 
  * (Knutsson and Westin 1993), so the dark lunar disk does not bleed into the
  * inner corona; blurs are recursive (Young and van Vliet 1995), the wide ones
  * on a reduced grid (blurGaussianFast).
+ *
+ * With snrWeighting (our addition, so that noise is not amplified into grain):
+ * the local variance (B - B*k_w)^2 * k_w holds the signal's variance S and the
+ * noise's, N_w = nu_w sigma^2 with nu_w = 1 - 3 / (4 pi w^2) the share of white
+ * noise that survives B - B*k_w (derived: 1 - 2 k_w(0) + sum k_w^2 for a
+ * Gaussian). Each scale's arctan term is weighted by the Wiener gain
+ * S / (S + N_w), S = max(0, local variance - 1.5 N_w) (Lee 1980, IEEE PAMI
+ * 2:165, from memory; see NOISE_OVERSUBTRACTION): 1 where structure stands
+ * above the noise, towards 0 where only noise is left. The gamma image is taken
+ * of the same Lee estimate at the width LEE_WIDTH_PX, mean + gain (B - mean),
+ * so the global term is not grainy either.
  */
 export function applyMgn(plane: Float32Array, width: number, height: number, options: MgnOptions = {}): FilteredPlane {
   const k = options.k ?? MGN_DEFAULTS.k;
@@ -207,6 +248,26 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
       weight[i] = 1;
     }
   }
+  // Noise variance in the units of `masked` ((B - a0) / range), smoothed over a few pixels.
+  let noise: Float32Array | undefined;
+  if (options.snrWeighting ?? true) {
+    if (options.noiseVariance) {
+      if (options.noiseVariance.length !== n) throw new ImagingError("size-mismatch", `noiseVariance has ${options.noiseVariance.length} values, expected ${width} x ${height}`);
+      const scaled = new Float32Array(n);
+      const w = new Float32Array(n);
+      const inv = 1 / (range * range);
+      for (let i = 0; i < n; i++) if (valid[i] && options.noiseVariance[i] >= 0) { scaled[i] = options.noiseVariance[i] * inv; w[i] = 1; }
+      const scratchN = new Float32Array(n);
+      const num = blurGaussianFast(scaled, width, height, 2, undefined, scratchN);
+      const den = blurGaussianFast(w, width, height, 2, undefined, scratchN);
+      for (let i = 0; i < n; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
+      noise = num;
+    } else noise = estimateNoiseVariance(masked, width, height, valid);
+  }
+  // The finest width's local mean and gain give the Lee estimate behind the gamma image.
+  const leeWidth = widths.reduce((best, w) => (w <= LEE_WIDTH_PX && w > best ? w : best), Math.min(...widths));
+  let leeMean: Float32Array | undefined;
+  let leeGain: Float32Array | undefined;
   const sumArctan = new Float32Array(n);
   const diff = new Float32Array(n);
   // Buffers reused for every width (see blurGaussian on why).
@@ -227,21 +288,36 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   for (const w of widths) {
     blurMaskWeight(weight, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch);
     blurGaussianFast(masked, width, height, w, local, scratch);
+    // The Lee estimate for the gamma image comes from the widest scale up to LEE_WIDTH_PX (or the finest).
+    const first = noise !== undefined && w === leeWidth;
+    if (first) leeMean = new Float32Array(n);
     for (let i = 0; i < n; i++) {
       diff[i] = valid[i] && norm[i] > 1e-6 ? masked[i] - local[i] / norm[i] : 0;
+      if (first) leeMean![i] = masked[i] - diff[i];
       local[i] = diff[i] * diff[i];
     }
     const localVar = blurGaussianFast(local, width, height, w, local, scratch);
+    const nu = Math.max(0, 1 - 3 / (4 * Math.PI * w * w));
+    if (first) leeGain = new Float32Array(n);
     for (let i = 0; i < n; i++) {
       if (!valid[i]) continue;
-      const sd = norm[i] > 1e-6 ? Math.sqrt(Math.max(0, localVar[i] / norm[i])) : 0;
-      sumArctan[i] += sd > 0 ? computeArctan((k * diff[i]) / sd) : 0;
+      const variance = norm[i] > 1e-6 ? Math.max(0, localVar[i] / norm[i]) : 0;
+      const sd = Math.sqrt(variance);
+      let gain = 1;
+      if (noise) {
+        const noiseVar = nu * noise[i];
+        const signal = Math.max(0, variance - NOISE_OVERSUBTRACTION * noiseVar);
+        gain = signal + noiseVar > 0 ? signal / (signal + noiseVar) : 1;
+        if (first) leeGain![i] = gain;
+      }
+      sumArctan[i] += sd > 0 ? gain * computeArctan((k * diff[i]) / sd) : 0;
     }
   }
   const invGamma = 1 / gamma;
   for (let i = 0; i < n; i++) {
     if (!valid[i]) continue;
-    const g = Math.pow(Math.max(0, masked[i]), invGamma);
+    const b = leeMean && leeGain ? leeMean[i] + leeGain[i] * (masked[i] - leeMean[i]) : masked[i];
+    const g = Math.pow(Math.max(0, b), invGamma);
     data[i] = h * g + ((1 - h) / widths.length) * sumArctan[i];
   }
   return { data, valid };

@@ -4,21 +4,11 @@
 // and read noise and clipping. File writers live in lib/media.
 import { blurGaussian } from "./blur";
 import { ImagingError } from "./errors";
-import { createRng, sampleGaussian, samplePoisson, type Rng } from "./random";
+import { createRng, sampleGaussian, samplePoisson } from "./random";
+import { createScene, evaluateCorona, evaluateProminences } from "./synth-scene";
 import { applyAffine, invertAffine, toAffine, type SimilarityTransform } from "./similarity";
 
-/**
- * Baumbach (1937) K+F corona brightness in units of the mean solar disk, r in
- * solar radii (REFERENCES.md, from memory): I(r) = 1e-6 (0.0532 r^-2.5 + 1.425 r^-7 + 2.565 r^-17).
- */
-export function computeBaumbachBrightness(rSun: number): number {
-  // Powers by multiplication: this runs for every pixel of every synthetic frame.
-  const inv = 1 / rSun;
-  const inv2 = inv * inv;
-  const inv7 = inv2 * inv2 * inv2 * inv;
-  const inv17 = inv7 * inv7 * inv2 * inv;
-  return 1e-6 * (0.0532 * inv2 * Math.sqrt(inv) + 1.425 * inv7 + 2.565 * inv17);
-}
+export { computeBaumbachBrightness } from "./synth-scene";
 
 export interface SynthOptions {
   width: number;
@@ -47,7 +37,7 @@ export interface SynthOptions {
   limbRateDnPerS?: number;
   streamerCount?: number;
   prominenceCount?: number;
-  /** Peak prominence brightness over the limb corona; default 6. */
+  /** Peak prominence brightness over the K+F corona at 1.1 R; default 4 (see PROMINENCE_OVER_INNER_CORONA). */
   prominenceContrast?: number;
   /** Earthshine over the mean solar disk; default 1e-9. */
   earthshineRatio?: number;
@@ -111,87 +101,13 @@ export interface SynthTruth {
   trailDn?: Float32Array;
 }
 
-interface Streamer { angle: number; amplitude: number; widthRad: number }
-interface Ray { m: number; phase: number; amplitude: number }
-interface Prominence { x: number; y: number; sigma: number; peak: number }
-
 const CORONA_COLOUR = [1.0, 0.96, 0.88];
-const PROMINENCE_COLOUR = [1.0, 0.32, 0.28];
+/** Hydrogen Balmer light (H-alpha with H-beta and H-gamma) that the eye sees as pink-red. */
+const PROMINENCE_COLOUR = [1.0, 0.3, 0.42];
 const EARTHSHINE_COLOUR = [0.82, 0.9, 1.0];
 
 function requireOption(ok: boolean, field: string, detail: string): void {
   if (!ok) throw new ImagingError("bad-parameter", `synthesizeBracket: ${field} ${detail}`);
-}
-
-interface Scene {
-  sunX: number; sunY: number; sunR: number; scale: number;
-  streamers: Streamer[]; prominences: Prominence[];
-  /** Fine-ray modulation tabulated over position angle (RAY_TABLE_SIZE steps over 2 pi), for speed. */
-  rayTable: Float64Array;
-}
-
-const RAY_TABLE_SIZE = 16384;
-
-function createScene(o: Required<Pick<SynthOptions, "sunRadiusPx">> & SynthOptions, sun: { x: number; y: number }, rng: Rng): Scene {
-  const streamers: Streamer[] = [];
-  for (let k = 0; k < (o.streamerCount ?? 5); k++) {
-    streamers.push({ angle: rng() * 2 * Math.PI, amplitude: 0.6 + 1.6 * rng(), widthRad: 0.12 + 0.25 * rng() });
-  }
-  const rays: Ray[] = [];
-  for (let k = 0; k < 28; k++) rays.push({ m: 12 + Math.floor(rng() * 150), phase: rng() * 2 * Math.PI, amplitude: 0.22 / Math.sqrt(28) * (0.5 + rng()) });
-  const prominences: Prominence[] = [];
-  const limbRate = o.limbRateDnPerS ?? 4e6;
-  for (let k = 0; k < (o.prominenceCount ?? 4); k++) {
-    const angle = rng() * 2 * Math.PI;
-    const height = o.sunRadiusPx * (1.0 + 0.05 * rng());
-    prominences.push({
-      x: sun.x + height * Math.cos(angle),
-      y: sun.y + height * Math.sin(angle),
-      sigma: Math.max(1.5, o.sunRadiusPx * (0.015 + 0.025 * rng())),
-      peak: limbRate * (o.prominenceContrast ?? 6) * (0.5 + rng()),
-    });
-  }
-  const rayTable = new Float64Array(RAY_TABLE_SIZE + 1);
-  for (let k = 0; k <= RAY_TABLE_SIZE; k++) {
-    const phi = (2 * Math.PI * k) / RAY_TABLE_SIZE - Math.PI;
-    let v = 1;
-    for (const ray of rays) v += ray.amplitude * Math.cos(ray.m * phi + ray.phase);
-    rayTable[k] = v;
-  }
-  return { sunX: sun.x, sunY: sun.y, sunR: o.sunRadiusPx, scale: limbRate / computeBaumbachBrightness(1), streamers, prominences, rayTable };
-}
-
-// Corona and prominences at a scene point, DN/s, before colour.
-function evaluateCorona(s: Scene, x: number, y: number): number {
-  const dx = x - s.sunX;
-  const dy = y - s.sunY;
-  const r = Math.sqrt(dx * dx + dy * dy) / s.sunR;
-  if (r < 1) return 0;
-  const phi = Math.atan2(dy, dx);
-  let modulation = 0.45;
-  for (let k = 0; k < s.streamers.length; k++) {
-    const st = s.streamers[k];
-    let d = phi - st.angle;
-    if (d > Math.PI) d -= 2 * Math.PI;
-    else if (d < -Math.PI) d += 2 * Math.PI;
-    // Streamers narrow with height: width w0 / sqrt(r).
-    const e = (-0.5 * d * d * r) / (st.widthRad * st.widthRad);
-    if (e > -30) modulation += st.amplitude * Math.exp(e);
-  }
-  const u = ((phi + Math.PI) / (2 * Math.PI)) * RAY_TABLE_SIZE;
-  const k = Math.min(RAY_TABLE_SIZE - 1, Math.floor(u));
-  const rays = s.rayTable[k] + (u - k) * (s.rayTable[k + 1] - s.rayTable[k]);
-  return s.scale * computeBaumbachBrightness(r) * modulation * rays;
-}
-
-function evaluateProminences(s: Scene, x: number, y: number): number {
-  let v = 0;
-  for (let k = 0; k < s.prominences.length; k++) {
-    const p = s.prominences[k];
-    const d2 = (x - p.x) ** 2 + (y - p.y) ** 2;
-    if (d2 < 25 * p.sigma * p.sigma) v += p.peak * Math.exp((-0.5 * d2) / (p.sigma * p.sigma));
-  }
-  return v;
 }
 
 /** A straight streak with a Gaussian cross-section, DN per pixel, in frame pixels. */

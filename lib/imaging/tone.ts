@@ -1,24 +1,54 @@
 // Renditions for display: natural (tone-mapped light) and structure (a radial
 // filter scaled to 0..1), and quantizers for 16-bit PNG and 8-bit tiles.
-import { ImagingError } from "./errors";
+import { ImagingError, requireNumberInRange } from "./errors";
 import { createRng } from "./random";
-import { computeLuminance, createSrgbEncoder, ditherToUint8 } from "./srgb";
+import { computeLuminance, createSrgbEncoder, decodeSrgb, ditherToUint8, encodeSrgb } from "./srgb";
 import type { FilteredPlane } from "./radial";
 import type { PlaneImage } from "./types";
 
 export type StretchCurve = "asinh" | "log";
 
+/** A ring about a centre, px: the brightest inner corona just outside the lunar limb. */
+export interface LimbRing {
+  x: number;
+  y: number;
+  innerPx: number;
+  outerPx: number;
+}
+
 export interface NaturalOptions {
   curve?: StretchCurve;
-  /** Linear values mapped to display 0 and 1; chosen from percentiles of valid pixels when absent. */
+  /** Linear values mapped to display 0 and to the top of the curve; chosen from the valid pixels when absent. */
   blackPoint?: number;
   whitePoint?: number;
-  /** Percentiles (0..100) for the automatic points; defaults 1 and 99.9 (common practice). */
+  /** Percentiles (0..100) for the automatic points; defaults 1 and 99.99 (common practice for the black point; see whitePoint). */
   blackPercentile?: number;
   whitePercentile?: number;
+  /**
+   * The ring from the lunar limb to about 1.1 solar radii. When given (and no
+   * whitePoint), the white point is the ringPercentile-th percentile of the
+   * valid luminance in it, so the inner corona up to the limb stays below white.
+   */
+  limbRing?: LimbRing;
+  /** Percentile (0..100) of the ring's luminance taken as the white point; default 99.5. */
+  ringPercentile?: number;
+  /**
+   * Start of the highlight shoulder in display light, (0, 1]; default 0.8. Above
+   * it the curve rolls off exponentially towards 1 instead of clipping, so light
+   * above the white point (prominences) keeps its gradations; 1 clips at white.
+   */
+  shoulderKnee?: number;
+  /**
+   * Radial compression alpha in [0, 1): before the stretch, light at radius r
+   * from the ring's centre is multiplied by (P(r) / P(inner))^-alpha, P the
+   * mean luminance over position angle, so the steep radial fall-off of the
+   * corona takes less of the display range and its structure more. Needs
+   * limbRing; default 0.3 with limbRing, else 0.
+   */
+  radialCompression?: number;
   /** Stretch strength beta; chosen so the median valid pixel lands at targetMedian when absent. */
   beta?: number;
-  /** Display light (linear, before sRGB encoding) for the median valid pixel; default 0.05 (common practice). */
+  /** Display light (linear, before sRGB encoding) for the median valid pixel; default 0.03 (our choice: the outer field a dark grey). */
   targetMedian?: number;
   /** 1 = pixel counts for the percentiles (the lunar disk is usually left out). */
   valid?: Uint8Array;
@@ -41,6 +71,17 @@ export interface NaturalRendition {
 export function applyStretch(x: number, beta: number, curve: StretchCurve): number {
   if (x <= 0) return 0;
   return curve === "asinh" ? Math.asinh(beta * x) / Math.asinh(beta) : Math.log1p(beta * x) / Math.log1p(beta);
+}
+
+/**
+ * Highlight shoulder (our own, no published recipe): identity up to the knee k,
+ * then y = k + (1 - k)(1 - exp(-(s - k) / (1 - k))), which meets the identity
+ * with the same slope at k and approaches 1 without reaching it.
+ */
+export function applyShoulder(s: number, knee: number): number {
+  if (s <= knee) return s;
+  if (knee >= 1) return 1;
+  return knee + (1 - knee) * (1 - Math.exp(-(s - knee) / (1 - knee)));
 }
 
 /**
@@ -67,26 +108,146 @@ function computeLuminanceOf(image: PlaneImage): Float32Array {
   return out;
 }
 
+/** Visits the pixel indices inside a ring (its bounding box only). */
+function forEachInRing(width: number, height: number, ring: LimbRing, visit: (i: number) => void): void {
+  const { x: cx, y: cy, innerPx, outerPx } = ring;
+  const in2 = innerPx * innerPx, out2 = outerPx * outerPx;
+  for (let y = Math.max(0, Math.floor(cy - outerPx)); y <= Math.min(height - 1, Math.ceil(cy + outerPx)); y++) {
+    for (let x = Math.max(0, Math.floor(cx - outerPx)); x <= Math.min(width - 1, Math.ceil(cx + outerPx)); x++) {
+      const d2 = (x - cx) ** 2 + (y - cy) ** 2;
+      if (d2 >= in2 && d2 <= out2) visit(y * width + x);
+    }
+  }
+}
+
+function requireRing(ring: LimbRing): void {
+  const ok = [ring.x, ring.y, ring.innerPx, ring.outerPx].every(Number.isFinite) && ring.innerPx >= 0 && ring.outerPx > ring.innerPx;
+  if (!ok) throw new ImagingError("bad-parameter", `limbRing must have a finite centre and 0 <= innerPx < outerPx, got ${JSON.stringify(ring)}`);
+}
+
+/** The given percentile of the valid luminance inside the ring (NaN when the ring holds no valid pixel). */
+function computeRingPercentile(lum: Float32Array, width: number, height: number, ring: LimbRing, percentile: number, valid?: Uint8Array): number {
+  const mask = new Uint8Array(lum.length);
+  forEachInRing(width, height, ring, (i) => {
+    if (!valid || valid[i]) mask[i] = 1;
+  });
+  return computePercentiles(lum, [percentile], mask)[0];
+}
+
 /**
- * Natural rendition: x = (I - black) / (white - black) in linear light, the
- * stretch applied to the luminance and every colour scaled by the same factor
- * (so hues survive; Lupton et al. 2004, PASP 116:133), then sRGB encoding
- * (IEC 61966-2-1). Returns display values in 0..1.
+ * Share of the ring's pixels whose brightest display plane is at or above
+ * `threshold` (0..1; 1 - 0.5 / 65535 is the top code of a 16-bit file): the
+ * natural rendition's burnt-out share at the limb. The brightest plane, not
+ * all three: a colour scaled down to keep its hue (renderNatural) has lost its
+ * gradations just as a white pixel has. Pixels outside `valid` are left out (the Moon).
+ */
+export function measureWhiteFraction(image: PlaneImage, ring: LimbRing, threshold = 1 - 0.5 / 65535, valid?: Uint8Array): number {
+  requireRing(ring);
+  let count = 0, white = 0;
+  forEachInRing(image.width, image.height, ring, (i) => {
+    if (valid && !valid[i]) return;
+    count++;
+    if (image.planes.some((p) => p[i] >= threshold)) white++;
+  });
+  return count > 0 ? white / count : 0;
+}
+
+/**
+ * Radial gain (P(r) / P(r0))^-alpha on the luminance about the ring's centre, r0
+ * its inner radius: P is the mean valid luminance in rings 2 px wide, smoothed
+ * over five rings and made non-increasing outwards (so a prominence or a
+ * streamer does not dent the gain); 1 inside r0.
+ */
+function computeRadialGain(lum: Float32Array, width: number, height: number, ring: LimbRing, alpha: number, valid?: Uint8Array): Float32Array {
+  const { x: cx, y: cy, innerPx } = ring;
+  const binPx = 2;
+  const maxR = Math.hypot(Math.max(cx, width - cx), Math.max(cy, height - cy));
+  const bins = Math.ceil(maxR / binPx) + 1;
+  const sum = new Float64Array(bins), count = new Float64Array(bins);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const i = y * width + x;
+      if (valid && !valid[i]) continue;
+      const r = Math.hypot(x - cx, y - cy);
+      if (r < innerPx || !(lum[i] > 0)) continue;
+      const b = Math.floor(r / binPx);
+      sum[b] += lum[i];
+      count[b]++;
+    }
+  }
+  const profile = new Float64Array(bins).fill(NaN);
+  for (let b = 0; b < bins; b++) {
+    let s = 0, c = 0;
+    for (let k = Math.max(0, b - 2); k <= Math.min(bins - 1, b + 2); k++) { s += sum[k]; c += count[k]; }
+    if (c > 0) profile[b] = s / c;
+  }
+  // Non-increasing outwards; empty rings take the last value.
+  let last = NaN;
+  for (let b = 0; b < bins; b++) {
+    if (!Number.isFinite(profile[b])) profile[b] = last;
+    else if (Number.isFinite(last) && profile[b] > last) profile[b] = last;
+    last = profile[b];
+  }
+  const gain = new Float32Array(width * height).fill(1);
+  const first = profile[Math.floor(innerPx / binPx)];
+  if (!(first > 0)) return gain;
+  const binGain = profile.map((p) => (p > 0 ? Math.pow(p / first, -alpha) : 1));
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const r = Math.hypot(x - cx, y - cy);
+      if (r >= innerPx) gain[y * width + x] = binGain[Math.min(bins - 1, Math.floor(r / binPx))];
+    }
+  }
+  return gain;
+}
+
+/**
+ * Natural rendition: x = (g I - black) / (white - black) in linear light, g the
+ * optional radial gain; the stretch gives the luminance's display value (sRGB
+ * encoded, IEC 61966-2-1), and every colour is scaled in linear light by the
+ * same factor, so hues survive (Lupton et al. 2004, PASP 116:133). The
+ * highlight shoulder then acts on the brightest plane and scales the others
+ * with it: a bright colour is never clipped plane by plane (which turns
+ * prominences white; Lupton et al. 2004 scale a saturated colour as a whole)
+ * and keeps its gradations up to well above the white point. The curve sets
+ * encoded values, not linear light: a log-like curve followed by the sRGB
+ * encoding would compress the highlights twice. Returns display values in 0..1.
+ *
+ * With limbRing the white point sits at the top of the inner corona, not at a
+ * percentile of the whole frame: the ring from the limb to 1.1 R is a fraction
+ * of a per cent of a wide field, so any whole-frame percentile burns part of it.
  */
 export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): NaturalRendition {
   const curve = options.curve ?? "asinh";
   if (curve !== "asinh" && curve !== "log") throw new ImagingError("bad-parameter", `curve must be "asinh" or "log", got ${String(curve)}`);
-  const lum = options.luminance ?? computeLuminanceOf(image);
-  const [autoBlack, autoWhite, median] = computePercentiles(lum, [options.blackPercentile ?? 1, options.whitePercentile ?? 99.9, 50], options.valid);
+  const knee = options.shoulderKnee ?? 0.8;
+  requireNumberInRange("shoulderKnee", knee, 0.05, 1);
+  const ring = options.limbRing;
+  if (ring) requireRing(ring);
+  const alpha = options.radialCompression ?? (ring ? 0.3 : 0);
+  requireNumberInRange("radialCompression", alpha, 0, 0.95);
+  if (alpha > 0 && !ring) throw new ImagingError("bad-parameter", "radialCompression needs limbRing (the centre to compress about)");
+  const { width, height } = image;
+  const source = options.luminance ?? computeLuminanceOf(image);
+  const gain = alpha > 0 ? computeRadialGain(source, width, height, ring!, alpha, options.valid) : undefined;
+  const lum = gain ? source.map((v, i) => v * gain[i]) : source;
+  const [autoBlack, autoWhite, median] = computePercentiles(lum, [options.blackPercentile ?? 1, options.whitePercentile ?? 99.99, 50], options.valid);
   const black = options.blackPoint ?? autoBlack;
-  const white = options.whitePoint ?? autoWhite;
+  let white = options.whitePoint;
+  if (white === undefined && ring) {
+    const ringPercentile = options.ringPercentile ?? 99.5;
+    requireNumberInRange("ringPercentile", ringPercentile, 0, 100);
+    const top = computeRingPercentile(lum, width, height, ring, ringPercentile, options.valid);
+    if (Number.isFinite(top)) white = top;
+  }
+  white ??= autoWhite;
   if (!(Number.isFinite(black) && Number.isFinite(white) && white > black)) {
     throw new ImagingError("bad-parameter", `whitePoint (${white}) must exceed blackPoint (${black}); is the image empty or flat?`);
   }
   const span = white - black;
   let beta = options.beta;
   if (beta === undefined) {
-    const target = options.targetMedian ?? 0.05;
+    const target = encodeSrgb(options.targetMedian ?? 0.03);
     const xm = Math.min(1, Math.max(1e-9, (median - black) / span));
     // Bisection on ln beta: the stretched median grows with beta.
     let lo = 0, hi = Math.log(1e7);
@@ -98,15 +259,30 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
     beta = Math.exp((lo + hi) / 2);
   }
   if (!(beta > 0 && Number.isFinite(beta))) throw new ImagingError("bad-parameter", `beta must be positive, got ${beta}`);
-  const n = image.width * image.height;
+  const n = width * height;
+  const channels = image.planes.length;
   const planes = image.planes.map(() => new Float32Array(n));
   const encode = createSrgbEncoder();
+  const linear = new Float64Array(channels);
   for (let i = 0; i < n; i++) {
     const x = (lum[i] - black) / span;
-    const factor = x > 0 ? applyStretch(Math.min(x, 1e6), beta, curve) / x : 0;
-    for (let c = 0; c < planes.length; c++) planes[c][i] = encode(((image.planes[c][i] - black) / span) * factor);
+    const g = gain ? gain[i] : 1;
+    const factor = x > 0 ? (decodeSrgb(applyStretch(Math.min(x, 1e6), beta, curve)) / x) * g : 0;
+    let top = 0;
+    for (let c = 0; c < channels; c++) {
+      const v = ((image.planes[c][i] - black / g) / span) * factor;
+      linear[c] = v;
+      if (v > top) top = v;
+    }
+    // The shoulder acts on the brightest plane, and every plane follows it.
+    let fit = 1;
+    if (top > 0) {
+      const e = encodeSrgb(top);
+      if (e > knee) fit = decodeSrgb(applyShoulder(e, knee)) / top;
+    }
+    for (let c = 0; c < channels; c++) planes[c][i] = encode(linear[c] * fit);
   }
-  return { image: { width: image.width, height: image.height, planes }, blackPoint: black, whitePoint: white, beta, curve };
+  return { image: { width, height, planes }, blackPoint: black, whitePoint: white, beta, curve };
 }
 
 /** Structure rendition: the filtered plane scaled to 0..1 between the given percentiles of valid values; invalid pixels 0. */

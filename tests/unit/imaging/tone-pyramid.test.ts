@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { applyStretch, quantizeToUint16, quantizeToUint8, renderNatural, renderStructure } from "@/lib/imaging/tone";
+import { applyShoulder, applyStretch, measureWhiteFraction, quantizeToUint16, quantizeToUint8, renderNatural, renderStructure } from "@/lib/imaging/tone";
 import { buildPyramid, computePyramidLevelSizes, halveImageLinear } from "@/lib/imaging/pyramid";
 import { decodeSrgb, encodeSrgb } from "@/lib/imaging/srgb";
 
@@ -8,7 +8,7 @@ describe("natural rendition", () => {
   const ramp = Float32Array.from({ length: n }, (_, i) => 10 * Math.pow(1e4, i / (n - 1))); // four decades
 
   it("maps the black point to 0 and the white point to 1 and is monotonic", () => {
-    const r = renderNatural({ width: n, height: 1, planes: [ramp] }, { blackPoint: 10, whitePoint: 1e5 });
+    const r = renderNatural({ width: n, height: 1, planes: [ramp] }, { blackPoint: 10, whitePoint: 1e5, shoulderKnee: 1 });
     const out = r.image.planes[0];
     expect(out[0]).toBe(0);
     expect(out[n - 1]).toBeCloseTo(1, 6);
@@ -79,5 +79,55 @@ describe("pyramid in linear light", () => {
     const built = buildPyramid({ width: 37, height: 20, planes: [new Float32Array(740)] });
     const expected = computePyramidLevelSizes(37, 20).reverse();
     expect(built.map((l) => [l.width, l.height])).toEqual(expected.map((s) => [s.width, s.height]));
+  });
+});
+
+describe("natural rendition: white point, shoulder and colour", () => {
+  it("rolls off above the knee smoothly, never reaching 1, and clips at white with knee 1", () => {
+    expect(applyShoulder(0.5, 0.8)).toBe(0.5);
+    // Same slope on both sides of the knee (derived: d/ds of k + (1 - k)(1 - exp(-(s - k)/(1 - k))) is 1 at s = k).
+    expect((applyShoulder(0.8 + 1e-6, 0.8) - 0.8) / 1e-6).toBeCloseTo(1, 4);
+    expect(applyShoulder(1, 0.8)).toBeCloseTo(0.8 + 0.2 * (1 - Math.exp(-1)), 12);
+    expect(applyShoulder(50, 0.8)).toBeLessThanOrEqual(1);
+    expect(applyShoulder(2, 1)).toBe(1);
+  });
+
+  it("takes the white point from the ring outside the limb when given one", () => {
+    // A bright ring (radius 10 to 12 px) of 1000 on a field of 1 to 10, and one hot pixel of 1e6 far out.
+    const w = 64, h = 64;
+    const plane = new Float32Array(w * h);
+    for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) {
+      const r = Math.hypot(x - 32, y - 32);
+      plane[y * w + x] = r >= 10 && r <= 12 ? 1000 : 1 + (9 * x) / w;
+    }
+    plane[3] = 1e6;
+    const ring = { x: 32, y: 32, innerPx: 10, outerPx: 12 };
+    const r = renderNatural({ width: w, height: h, planes: [plane] }, { limbRing: ring, radialCompression: 0, ringPercentile: 99 });
+    expect(r.whitePoint).toBe(1000);
+    expect(measureWhiteFraction(r.image, ring)).toBe(0);
+    expect(() => renderNatural({ width: w, height: h, planes: [plane] }, { limbRing: { ...ring, outerPx: 5 } })).toThrow(/limbRing/);
+    expect(() => renderNatural({ width: w, height: h, planes: [plane] }, { radialCompression: 0.3 })).toThrow(/needs limbRing/);
+  });
+
+  it("keeps a saturated colour's hue: far above white, red stays twice green and nothing clips", () => {
+    const image = { width: 1, height: 2, planes: [Float32Array.of(0, 4000), Float32Array.of(0, 2000), Float32Array.of(0, 1000)] };
+    const r = renderNatural(image, { blackPoint: 0, whitePoint: 100, beta: 5 });
+    const [red, green, blue] = r.image.planes.map((p) => decodeSrgb(p[1]));
+    expect(red / green).toBeCloseTo(2, 3);
+    expect(green / blue).toBeCloseTo(2, 3);
+    expect(red).toBeLessThan(1);
+    expect(red).toBeGreaterThan(0.8);
+  });
+
+  it("compresses the radial fall-off about the ring's centre: light far out gains on light near the limb", () => {
+    const w = 120, h = 120;
+    const plane = new Float32Array(w * h);
+    for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) plane[y * w + x] = 1e4 * Math.max(1, Math.hypot(x - 60, y - 60) / 20) ** -4;
+    const ring = { x: 60, y: 60, innerPx: 20, outerPx: 22 };
+    const flat = renderNatural({ width: w, height: h, planes: [plane] }, { limbRing: ring, radialCompression: 0 });
+    const squeezed = renderNatural({ width: w, height: h, planes: [plane] }, { limbRing: ring, radialCompression: 0.5 });
+    const near = 60 * w + 82, far = 60 * w + 115;
+    // The far field's display value rises relative to the limb's.
+    expect(squeezed.image.planes[0][far] / squeezed.image.planes[0][near]).toBeGreaterThan(flat.image.planes[0][far] / flat.image.planes[0][near]);
   });
 });
