@@ -4,6 +4,7 @@ import { z } from "zod";
 import { FRAME_KINDS } from "@/db/schema";
 import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
 import { DEFAULT_GROUP_GAP_S } from "./grouping";
+import { strictNumber } from "@/lib/strict-number";
 
 const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
 
@@ -14,7 +15,7 @@ export const createBracketSetSchema = z.object({
   // A form's "No kit" sends an empty string.
   kitId: z.preprocess((v) => (v === "" ? null : v), uuid("one of your kits").nullish()).transform((v) => v ?? null),
   notes: z.string().trim().max(4000).optional().default(""),
-  clockOffsetS: z.coerce.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).min(-86_400).max(86_400).optional().default(0),
+  clockOffsetS: strictNumber(z.number({ error: "expected seconds" }).min(-86_400).max(86_400).optional().default(0)),
 });
 export type CreateBracketSetInput = z.infer<typeof createBracketSetSchema>;
 
@@ -89,7 +90,7 @@ export const groupActionSchema = z.discriminatedUnion(
     z.object({ action: z.literal("split"), frameId: uuid("the frame that starts the new group") }),
     z.object({
       action: z.literal("merge"),
-      groupNumber: z.coerce.number({ error: "expected a group number" }).int({ error: "expected a whole group number" }).min(2, { error: "the first group has no group before it" }).max(999),
+      groupNumber: strictNumber(z.number({ error: "expected a group number" }).int({ error: "expected a whole group number" }).min(2, { error: "the first group has no group before it" }).max(999)),
     }),
     z.object({
       action: z.literal("auto"),

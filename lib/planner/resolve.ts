@@ -9,10 +9,11 @@ import { AppError } from "@/lib/errors";
 import { findKit } from "@/lib/kits/kits";
 import { findOwnSite } from "@/lib/sites/sites";
 import type { PlanInput } from "./plan";
+import { strictNumber } from "@/lib/strict-number";
 
 const optionalNumber = (min: number, max: number, what: string) =>
   z
-    .union([z.literal(""), z.coerce.number({ error: `expected a number (${what})` }).min(min, { error: `must be at least ${min} (${what})` }).max(max, { error: `must be at most ${max} (${what})` })])
+    .union([z.literal(""), strictNumber(z.number({ error: `expected a number (${what})` }).min(min, { error: `must be at least ${min} (${what})` }).max(max, { error: `must be at most ${max} (${what})` }))])
     .optional()
     .transform((v) => (v === "" || v === undefined ? undefined : v));
 

@@ -6,17 +6,28 @@ import type { DbOrTx } from "@/db/client";
 import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { strictNumber } from "@/lib/strict-number";
 import { parseTrackText } from "./track-file";
 
+// Degrees in plain decimal notation only: "0x20" is refused, not read as 32.
 const coord = (what: string, limit: number) =>
-  z.coerce
-    .number({ error: `expected a number of degrees (${what})` })
-    .refine(Number.isFinite, { error: "expected a number" })
-    .min(-limit, { error: `must be between -${limit} and ${limit} degrees` })
-    .max(limit, { error: `must be between -${limit} and ${limit} degrees` });
+  strictNumber(
+    z
+      .number({ error: `expected a number of degrees in decimal notation (${what})` })
+      .min(-limit, { error: `must be between -${limit} and ${limit} degrees` })
+      .max(limit, { error: `must be between -${limit} and ${limit} degrees` }),
+  );
 
 const common = {
   name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
+  // What public pages call the place; the name above stays private.
+  publicLabel: z
+    .string()
+    .trim()
+    .max(80, { error: "must be at most 80 characters" })
+    .refine((v) => !/[\u0000-\u001f\u007f]/.test(v), { error: "must not hold control characters" })
+    .optional()
+    .default(""),
   precision: z.enum(LOCATION_PRECISIONS, { error: `expected one of ${LOCATION_PRECISIONS.join(", ")}` }).default("rounded"),
 };
 
@@ -25,7 +36,7 @@ export const fixedSiteSchema = z.object({
   kind: z.literal("fixed"),
   latDeg: coord("latitude", 90),
   lonDeg: coord("longitude", 180),
-  elevationM: z.coerce.number({ error: "expected metres" }).min(-500, { error: "must be at least -500 m" }).max(9000, { error: "must be at most 9000 m" }).default(0),
+  elevationM: strictNumber(z.number({ error: "expected metres in decimal notation" }).min(-500, { error: "must be at least -500 m" }).max(9000, { error: "must be at most 9000 m" }).default(0)),
 });
 
 export const movingSiteSchema = z.object({
@@ -41,6 +52,7 @@ export type SiteInput = z.infer<typeof siteInputSchema>;
 export interface SiteDto {
   id: string;
   name: string;
+  publicLabel: string;
   kind: Site["kind"];
   latDeg: number;
   lonDeg: number;
@@ -57,6 +69,7 @@ function toDto(s: Site): SiteDto {
   return {
     id: s.id,
     name: s.name,
+    publicLabel: s.publicLabel,
     kind: s.kind,
     latDeg: s.latDeg,
     lonDeg: s.lonDeg,
@@ -72,7 +85,7 @@ function toDto(s: Site): SiteDto {
 /** The values to store for an input; a moving site's track is parsed and checked here. */
 function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
   if (input.kind === "fixed") {
-    return { name: input.name, kind: "fixed", precision: input.precision, latDeg: input.latDeg, lonDeg: input.lonDeg, elevationM: input.elevationM, track: null, trackFileName: null };
+    return { name: input.name, publicLabel: input.publicLabel, kind: "fixed", precision: input.precision, latDeg: input.latDeg, lonDeg: input.lonDeg, elevationM: input.elevationM, track: null, trackFileName: null };
   }
   let track: TrackPoint[];
   try {
@@ -83,6 +96,7 @@ function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
   const first = track[0];
   return {
     name: input.name,
+    publicLabel: input.publicLabel,
     kind: "moving",
     precision: input.precision,
     latDeg: first.latDeg,

@@ -41,8 +41,8 @@ export default async function EclipsePage({ params }: Props) {
   const c = circumstancesAtPeak(eclipse.peakLatDeg, eclipse.peakLonDeg, eclipse.peakAt);
   const sites = new Map<string, { name: string; country: string | null; count: number }>();
   for (const p of plates) {
-    const key = `${p.siteName}|${p.siteCountry}`;
-    const s = sites.get(key) ?? { name: p.siteName, country: p.siteCountry, count: 0 };
+    const key = `${p.siteLabel ?? ""}|${p.siteCountry}`;
+    const s = sites.get(key) ?? { name: p.siteLabel ?? "", country: p.siteCountry, count: 0 };
     s.count += 1;
     sites.set(key, s);
   }
@@ -103,8 +103,7 @@ export default async function EclipsePage({ params }: Props) {
             <ul className="flex flex-col gap-1">
               {[...sites.values()].map((s) => (
                 <li key={`${s.name}|${s.country}`}>
-                  {s.name}
-                  {s.country ? `, ${s.country}` : ""}: {s.count} plate{s.count === 1 ? "" : "s"}
+                  {[s.name, s.country].filter(Boolean).join(", ") || "A site kept private"}: {s.count} plate{s.count === 1 ? "" : "s"}
                 </li>
               ))}
             </ul>
