@@ -6,6 +6,7 @@ import type { DbOrTx } from "@/db/client";
 import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { forgetPublicAccess } from "@/lib/plates/reduction-files";
 import { strictNumber } from "@/lib/strict-number";
 import { parseTrackText } from "./track-file";
 
@@ -140,6 +141,8 @@ export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, in
     .set({ ...toRow(input), updatedAt: sql`now()` })
     .where(and(eq(sites.id, id), eq(sites.ownerId, a.userId)))
     .returning();
+  // A changed precision reaches the public master.fits at once in this process.
+  forgetPublicAccess();
   return toDto(row);
 }
 

@@ -33,6 +33,7 @@ import { buildCaptionsText, buildCreditsText, type HouseStyleEntry } from "./hou
 import { buildPlateMetadata, metadataTags, type ExportPlateInput, type MasterSky, type PlateMetadata } from "./metadata";
 import { buildProofPdf, type ProofPage } from "./proof";
 import { planPrintSize, renderPlateFiles, type PrintPlan, type RenderedFile } from "./render";
+import { toPublicObserver } from "@/lib/sites/precision";
 
 /** Largest rendition PNG read into memory (a 16-bit RGB 8000 x 8000 image is 384 MB raw, far less as PNG). */
 const MAX_RENDITION_BYTES = 1024 ** 3;
@@ -72,7 +73,7 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
       plate: plates,
       facts: plateVersions.facts,
       outputs: reductions.outputs,
-      site: { name: sites.name, precision: sites.precision, latDeg: sites.latDeg, lonDeg: sites.lonDeg, elevationM: sites.elevationM },
+      site: { name: sites.publicLabel, precision: sites.precision, latDeg: sites.latDeg, lonDeg: sites.lonDeg, elevationM: sites.elevationM },
       kitId: kits.id,
       kit: { name: kits.name, camera: kits.camera, focalMm: kits.focalMm, fNumber: kits.fNumber },
     })
@@ -88,7 +89,7 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
   return rows.map(({ outputs, kitId, kit, site, ...r }) => ({
     ...r,
     prefix: typeof outputs?.prefix === "string" ? outputs.prefix : null,
-    site: site?.name ? site : null,
+    site: site?.precision ? site : null,
     kit: kitId ? kit : null,
   }));
 }
@@ -206,6 +207,8 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       let sky: MasterSky | null = null;
       try {
         sky = masterSkyFromReport(JSON.parse((await readSmallObject({ bucket: bucketName("derived"), key: `${it.prefix}report.json` })).toString("utf8")) as Record<string, unknown>);
+        // The report has the exact observer; the bundle is for print, so it gets the site's public place only.
+        if (sky?.observer) sky.observer = toPublicObserver(sky.observer, it.site?.precision ?? "hidden");
       } catch (err) {
         if (!isMissingObject(err) && !(err instanceof SyntaxError)) throw err;
       }

@@ -6,5 +6,5 @@ export const dynamic = "force-dynamic";
 
 // Tiles (IIIF Image API level 0 and Deep Zoom), preview and downloads of a reduction.
 export const GET = route({ access: PUBLIC }, async ({ req, actor, params }) =>
-  serveReductionFile(getDb(), actor, params.id, params.path, new URL(req.url).searchParams.get("download") === "1"),
+  serveReductionFile(getDb(), actor, params.id, params.path, new URL(req.url).searchParams.get("download") === "1", req.headers.get("if-none-match")),
 );
