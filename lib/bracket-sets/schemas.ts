@@ -5,6 +5,7 @@ import { FRAME_KINDS } from "@/db/schema";
 import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
 import { DEFAULT_GROUP_GAP_S } from "./grouping";
 import { strictNumber } from "@/lib/strict-number";
+import { MAX_EXPOSURE_S, MIN_EXPOSURE_S } from "@/lib/media/exposure";
 
 const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
 
@@ -44,7 +45,12 @@ export const signPartsSchema = z.object({
 
 export const correctFrameSchema = z
   .object({
-    exposureS: z.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).gt(0, { error: "must be more than 0 s" }).max(3600, { error: "must be at most 3600 s" }).optional(),
+    exposureS: z
+      .number({ error: "expected seconds" })
+      .refine(Number.isFinite, { error: "expected a number of seconds" })
+      .min(MIN_EXPOSURE_S, { error: `must be at least ${MIN_EXPOSURE_S} s (a microsecond)` })
+      .max(MAX_EXPOSURE_S, { error: `must be at most ${MAX_EXPOSURE_S} s` })
+      .optional(),
     kind: z.enum(FRAME_KINDS, { error: `expected one of ${FRAME_KINDS.join(", ")}` }).optional(),
     included: z.boolean({ error: "expected true or false" }).optional(),
   })

@@ -201,8 +201,12 @@ describe("a rounded site in public", () => {
 
   it("serves a master whose observer astropy finds on the 0.1 degree grid, with the same WCS and pixels as the exact master", async () => {
     const pub = await fetch(`${APP}/iiif/reductions/${c.reductionId}/master.fits`);
-    expect(pub.headers.get("content-length")).toBe(String((await pub.clone().arrayBuffer()).byteLength));
-    const shown = await readHeader("rounded-public.fits", await pub.arrayBuffer());
+    const publicBytes = await pub.arrayBuffer();
+    // The length announced is the rewritten file's (the server may compress and drop it instead).
+    const announced = pub.headers.get("content-length");
+    if (announced !== null && !pub.headers.get("content-encoding")) expect(Number(announced)).toBe(publicBytes.byteLength);
+    expect(publicBytes.byteLength % 2880).toBe(0);
+    const shown = await readHeader("rounded-public.fits", publicBytes);
     const exact = await c.owner.request(`/api/reductions/${c.reductionId}/files/master.fits`);
     expect(exact.status).toBe(200);
     expect(exact.headers.get("cache-control")).toBe("private, no-store");
