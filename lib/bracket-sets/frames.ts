@@ -7,6 +7,7 @@ import type { DbOrTx } from "@/db/client";
 import { frames } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { isPlausibleExposure, MAX_EXPOSURE_S, MIN_EXPOSURE_S } from "@/lib/media/exposure";
 import { bucketName, deleteObject } from "@/lib/storage";
 import { findOwnOpenSet } from "./access";
 import { toFrameDto } from "./bracket-sets";
@@ -16,6 +17,11 @@ import type { CorrectFrameInput } from "./schemas";
 export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string, input: CorrectFrameInput): Promise<FrameDto> {
   const { set } = await findOwnOpenSet(db, actor, setId);
   if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
+  // The route's schema checks this too; every caller of this function gets the same rule.
+  if (input.exposureS !== undefined && !isPlausibleExposure(input.exposureS)) {
+    const message = `must be between ${MIN_EXPOSURE_S} and ${MAX_EXPOSURE_S} s (received ${input.exposureS})`;
+    throw new AppError("invalid_input", `The exposure of a frame ${message}.`, [{ field: "exposureS", message }]);
+  }
   const [frame] = await db.select().from(frames).where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id))).limit(1);
   if (!frame) throw notFound("That frame");
   if (frame.ingestState === "refused" && input.included === true) {

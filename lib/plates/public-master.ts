@@ -109,14 +109,15 @@ export async function streamPublicMaster(body: ReadableStream<Uint8Array>, preci
   const reader = body.getReader();
   let buffered = new Uint8Array(0);
   let headerLength: number | null = null;
-  while (headerLength === null) {
+  // Read until the whole header (END and the rest of its block) is in hand.
+  while (headerLength === null || buffered.length < headerLength) {
     const { done, value } = await reader.read();
     if (done) break;
     const next = new Uint8Array(buffered.length + value.length);
     next.set(buffered);
     next.set(value, buffered.length);
     buffered = next;
-    headerLength = findFitsHeaderLength(buffered);
+    headerLength ??= findFitsHeaderLength(buffered);
     if (headerLength === null && buffered.length > MAX_HEADER_BYTES) break;
   }
   if (headerLength === null || headerLength > buffered.length) {
