@@ -50,6 +50,23 @@ export const movingSiteSchema = z.object({
 export const siteInputSchema = z.discriminatedUnion("kind", [fixedSiteSchema, movingSiteSchema], { error: "expected kind fixed or moving" });
 export type SiteInput = z.infer<typeof siteInputSchema>;
 
+/** Editing a site: a moving site keeps its track unless a new file is given. */
+export const siteEditSchema = z.discriminatedUnion(
+  "kind",
+  [
+    fixedSiteSchema.extend({ id: z.uuid({ error: "expected a site id" }) }),
+    movingSiteSchema.extend({
+      id: z.uuid({ error: "expected a site id" }),
+      trackFileName: z.string().trim().max(200).optional(),
+      trackText: z.string().max(20_000_000, { error: "the track file is larger than 20 MB" }).optional(),
+    }),
+  ],
+  { error: "expected kind fixed or moving" },
+);
+export type SiteEdit = z.infer<typeof siteEditSchema>;
+/** What an edit changes: a site's fields, where a moving site's track may be left out. */
+export type SiteChange = SiteEdit extends infer E ? (E extends SiteEdit ? Omit<E, "id"> : never) : never;
+
 export interface SiteDto {
   id: string;
   name: string;
@@ -133,12 +150,22 @@ export async function createSite(db: DbOrTx, actor: Actor | null, input: SiteInp
   return toDto(row);
 }
 
-export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, input: SiteInput): Promise<SiteDto> {
+export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, input: SiteInput | SiteChange): Promise<SiteDto> {
   const a = requirePermission(actor, "studio:use");
-  await findOwnSite(db, a, id);
+  const current = await findOwnSite(db, a, id);
+  let values: Partial<typeof sites.$inferInsert>;
+  if (input.kind === "moving" && !input.trackText) {
+    // No new track: a moving site keeps the one it has; a fixed site needs one to become moving.
+    if (current.kind !== "moving" || !current.track) {
+      throw new AppError("invalid_input", "A moving site needs its track: choose a GPX or CSV file.", [{ field: "trackText", message: "choose a GPX or CSV file" }]);
+    }
+    values = { name: input.name, publicLabel: input.publicLabel, precision: input.precision };
+  } else {
+    values = toRow(input as SiteInput);
+  }
   const [row] = await db
     .update(sites)
-    .set({ ...toRow(input), updatedAt: sql`now()` })
+    .set({ ...values, updatedAt: sql`now()` })
     .where(and(eq(sites.id, id), eq(sites.ownerId, a.userId)))
     .returning();
   // A changed precision reaches the public master.fits at once in this process.
