@@ -16,7 +16,7 @@ import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { ZipFile } from "yazl";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry } from "@/db/schema";
+import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry, type LocationPrecision } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
 import { editionExportFailedMail, editionExportReadyMail } from "@/lib/email/templates";
@@ -117,6 +117,18 @@ export function masterSkyFromReport(report: Record<string, unknown>): MasterSky 
   return out;
 }
 
+/**
+ * The master's sky geometry as a print bundle may carry it: the report holds the
+ * exact observer, and the bundle is for publication, so the Sun's place is
+ * computed from the site at its public precision (from the Earth's centre for
+ * a hidden site, within the solar parallax of 8.8 arcsec).
+ */
+export function publicSkyFromReport(report: Record<string, unknown>, precision: LocationPrecision): MasterSky | null {
+  const sky = masterSkyFromReport(report);
+  if (sky?.observer) sky.observer = toPublicObserver(sky.observer, precision);
+  return sky;
+}
+
 async function sha256File(path: string): Promise<string> {
   const hash = createHash("sha256");
   await pipeline(createReadStream(path), hash);
@@ -206,9 +218,7 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       if (!meta.width || !meta.height) throw new AppError("invalid_input", `${sourceName} has no readable size.`);
       let sky: MasterSky | null = null;
       try {
-        sky = masterSkyFromReport(JSON.parse((await readSmallObject({ bucket: bucketName("derived"), key: `${it.prefix}report.json` })).toString("utf8")) as Record<string, unknown>);
-        // The report has the exact observer; the bundle is for print, so it gets the site's public place only.
-        if (sky?.observer) sky.observer = toPublicObserver(sky.observer, it.site?.precision ?? "hidden");
+        sky = publicSkyFromReport(JSON.parse((await readSmallObject({ bucket: bucketName("derived"), key: `${it.prefix}report.json` })).toString("utf8")) as Record<string, unknown>, it.site?.precision ?? "hidden");
       } catch (err) {
         if (!isMissingObject(err) && !(err instanceof SyntaxError)) throw err;
       }

@@ -7,6 +7,8 @@ import { encodeFits } from "@/lib/media";
 import { cardKey, cardNumber, findFitsHeaderLength, splitFitsHeader } from "@/lib/media/fits-header-edit";
 import { geodeticFromObsGeo, streamPublicMaster, toPublicMasterCards } from "@/lib/plates/public-master";
 import { buildHelioWcsCards, computeObsGeoM } from "@/lib/reduction-runner/helio-wcs";
+import { publicSkyFromReport } from "@/lib/editions/export/bundle";
+import { avmSpatial } from "@/lib/editions/export/metadata";
 import { toPublicObserver, toPublicSite } from "@/lib/sites/precision";
 
 const EXACT = { latDeg: 25.68734, lonDeg: 32.63921, elevationM: 81 };
@@ -126,5 +128,32 @@ describe("what public pages get of a site", () => {
     expect(toPublicObserver(EXACT, "rounded")).toEqual({ latDeg: 25.7, lonDeg: 32.6, elevationM: 100 });
     expect(toPublicObserver(EXACT, "exact")).toEqual(EXACT);
     expect(toPublicObserver(EXACT, "hidden")).toBeNull();
+  });
+});
+
+describe("the print bundle's sky geometry", () => {
+  const report = {
+    overall: {
+      masterSize: { width: 1600, height: 1200 },
+      sky: { sunCentrePx: { x: 800, y: 600 }, plateScaleArcsecPerPx: 2, northAngleDeg: 30, moonSilhouetteUtc: "2027-08-02T10:05:00.000Z", observer: EXACT },
+    },
+  };
+
+  it("keeps an exact observer, rounds a rounded one, and uses the Earth's centre for a hidden one", () => {
+    expect(publicSkyFromReport(report, "exact")?.observer).toEqual(EXACT);
+    expect(publicSkyFromReport(report, "rounded")?.observer).toEqual({ latDeg: 25.7, lonDeg: 32.6, elevationM: 100 });
+    expect(publicSkyFromReport(report, "hidden")?.observer).toBeNull();
+    const text = JSON.stringify([publicSkyFromReport(report, "rounded"), publicSkyFromReport(report, "hidden")]);
+    for (const exact of ["25.687", "32.639"]) expect(text).not.toContain(exact);
+  });
+
+  it("still places the Sun for a hidden site: geocentric, within the solar parallax (8.8 arcsec at most, from memory) of the topocentric place", () => {
+    const hidden = avmSpatial(publicSkyFromReport(report, "hidden"), 1600, 1200)!;
+    const exact = avmSpatial(publicSkyFromReport(report, "exact"), 1600, 1200)!;
+    const [ra1, dec1] = hidden.referenceValue;
+    const [ra2, dec2] = exact.referenceValue;
+    const sepArcsec = Math.hypot((ra1 - ra2) * Math.cos((dec1 * Math.PI) / 180), dec1 - dec2) * 3600;
+    expect(sepArcsec).toBeGreaterThan(0);
+    expect(sepArcsec).toBeLessThan(9);
   });
 });
