@@ -335,14 +335,10 @@ async function prepareBracketSet(): Promise<void> {
   // A third set whose reduction a published plate shows.
   ids.publishedReductionId = await storeFinishedReduction(site.id, "Matrix published set");
   await createPlateFromReduction(db, {
+    ...PLATE_TEXTS,
     reductionId: ids.publishedReductionId,
     slug: `matrix-published-${ids.publishedReductionId.slice(0, 8)}`,
     title: "Matrix published plate",
-    caption: "A caption.",
-    description: "",
-    altText: "An image used by the permission matrix.",
-    acquiredBy: "Matrix Person",
-    processedBy: "Crownlight pipeline",
     licence: "CC-BY-4.0",
     renditions: ["natural"],
     publish: true,
