@@ -1,6 +1,7 @@
 // Numbers and dates read strictly wherever people or files give them: "0x20"
 // is not 32 degrees, month 13 is not January of the next year.
 import { describe, expect, it } from "vitest";
+import { parseExposure } from "@/components/bracket-sets/exposure-text";
 import { parseCsvTrack, parseGpxTrack } from "@/lib/astro/track-parse";
 import { correctFrameSchema } from "@/lib/bracket-sets/schemas";
 import { kitInputSchema } from "@/lib/kits/kits";
@@ -31,6 +32,11 @@ describe("forms and files read numbers strictly", () => {
     // A blank elevation takes its default; a blank latitude is refused, not read as 0.
     expect(parseInput(fixedSiteSchema, { ...site, elevationM: "" }).elevationM).toBe(0);
     expect(() => parseInput(fixedSiteSchema, { ...site, latDeg: " " })).toThrow(/^latDeg: /);
+  });
+
+  it("reads an exposure typed in the frame table strictly", () => {
+    expect([parseExposure("1/250"), parseExposure("0.004"), parseExposure("2 s")]).toEqual([0.004, 0.004, 2]);
+    expect([parseExposure("0x10"), parseExposure(" "), parseExposure("Infinity")]).toEqual([null, null, null]);
   });
 
   it("refuses a kit's focal length written in hex", () => {
