@@ -40,6 +40,8 @@ async function main(): Promise<void> {
   });
   const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number; sky: { plateScaleArcsecPerPx?: number; northAngleDeg?: number; pAngleDeg?: number } };
   console.log(`${report.frames.length} frames reduced into ${outDir} (reference ${overall.referenceFrame}, ${overall.dynamicRangeStops} stops, ${report.timingsMs.total} ms)`);
+  for (const left of report.framesLeftOut) console.log(`left out ${left.name}: ${left.reason}`);
+  for (const note of report.notes.slice(0, report.notes.length - 2)) console.log(note);
   const { sky } = overall;
   if (sky.plateScaleArcsecPerPx !== undefined) {
     console.log(`plate scale ${sky.plateScaleArcsecPerPx} arcsec/px, P ${sky.pAngleDeg} deg, celestial north ${sky.northAngleDeg} deg counter-clockwise from image up`);
@@ -58,6 +60,10 @@ for (const signal of ["SIGINT", "SIGTERM"] as const) {
 main()
   .catch((error: unknown) => {
     process.stderr.write(`${error instanceof Error ? error.message : String(error)}\n`);
+    // The library's messages are for people using the app too; here the options that help can be named.
+    const code = (error as { code?: string }).code;
+    if (code === "bad-site") process.stderr.write("give the site with --site LAT,LON,ELEV or --site-file TRACK (GPX or CSV)\n");
+    if (code === "missing-capture-time") process.stderr.write("give each frame's capture time in its file, or reduce with --register corona or --register moon (no WCS then)\n");
     process.exitCode = isBadInputError(error) ? 2 : 1;
   })
   .finally(() => closeExifWriter());

@@ -3,6 +3,7 @@ import type { ReactNode } from "react";
 import type { PublicPlateDto } from "@/lib/plates/public";
 import { formatExposure } from "@/components/bracket-sets/exposure-text";
 import { describeTiming } from "@/components/reductions/labels";
+import { PlateDownloads } from "./plate-downloads";
 
 /** The pipeline's stages in the order they run; "reduce" and "total" are sums of others. */
 const STAGE_ORDER = ["decode", "sky-geometry", "linearize-and-limb", "register", "response", "warp-and-merge", "renditions", "write-master", "write-renditions", "tiles", "summary"];
@@ -123,15 +124,7 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
             . Credit: {plate.acquiredBy} (data), {plate.processedBy} (processing), {society}.
             {plate.licence.allowsDownload ? "" : " Full-resolution files are not offered under this licence."}
           </p>
-          <ul className="flex flex-col gap-2 text-sm">
-            {plate.downloads.map((d) => (
-              <li key={d.url}>
-                <a href={d.url} download className="underline">
-                  {d.label}
-                </a>
-              </li>
-            ))}
-          </ul>
+          <PlateDownloads plate={plate} />
         </section>
       ) : null}
 

@@ -4,7 +4,9 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import type { EclipseDto } from "@/lib/eclipses/eclipses";
 import type { KitDto } from "@/lib/kits/kits";
-import type { PlannerQuery } from "@/lib/planner/resolve";
+import type { PathLines } from "@/lib/planner/path";
+import type { PlannerFieldProblem, PlannerQuery } from "@/lib/planner/resolve";
+import { SENSOR_FORMATS } from "@/lib/planner/sensor-formats";
 import type { SiteDto } from "@/lib/sites/sites";
 import { WorldPicker } from "./world-picker";
 
@@ -20,31 +22,38 @@ export function PlannerForm({
   sites,
   kits,
   eclipseId,
+  path,
+  problems = [],
 }: {
   query: PlannerQuery;
   eclipses: EclipseDto[];
   sites: SiteDto[] | null;
   kits: KitDto[] | null;
   eclipseId: string;
+  path?: PathLines | null;
+  /** Values from the address that were refused, shown beside their fields. */
+  problems?: PlannerFieldProblem[];
 }) {
+  const errorFor = (field: keyof PlannerQuery) => problems.find((p) => p.field === field)?.message;
+  const sensorChoice = query.sw !== undefined && query.sh !== undefined ? "custom" : (query.sensor ?? "");
   return (
     <form method="get" action="/planner" className="flex flex-col gap-6 rounded-card border border-line bg-surface-raised p-5 print:hidden">
       <div className="grid gap-4 sm:grid-cols-2">
-        <Field label="Eclipse">
+        <Field label="Eclipse" error={errorFor("eclipse")}>
           <Select
             name="eclipse"
             defaultValue={eclipseId}
             options={eclipses.map((e) => ({ value: e.id, label: `${e.id} ${e.kind}${e.name ? `: ${e.name}` : ""}` }))}
           />
         </Field>
-        <Field label="Time zone for local times">
+        <Field label="Time zone for local times" error={errorFor("tz")}>
           <Select name="tz" defaultValue={query.tz} options={ZONES.map((z) => ({ value: z, label: z }))} />
         </Field>
       </div>
       <fieldset className="flex flex-col gap-4">
         <legend className="mb-2 text-lg font-semibold">Where</legend>
         {sites && sites.length ? (
-          <Field label="One of your sites" hint="Leave on “typed or picked place” to use the fields below.">
+          <Field label="One of your sites" error={errorFor("site")} hint="Leave on “typed or picked place” to use the fields below.">
             <Select
               name="site"
               defaultValue={query.site ?? ""}
@@ -52,16 +61,16 @@ export function PlannerForm({
             />
           </Field>
         ) : null}
-        <Field label="Place name (optional)">
+        <Field label="Place name (optional)" error={errorFor("place")}>
           <Input name="place" defaultValue={query.place ?? ""} maxLength={80} />
         </Field>
-        <WorldPicker lat={query.lat} lon={query.lon} elev={query.elev} />
+        <WorldPicker lat={query.lat} lon={query.lon} elev={query.elev} path={path} errors={{ lat: errorFor("lat"), lon: errorFor("lon"), elev: errorFor("elev") }} />
         <p className="text-sm text-ink-muted">With no place given, the planner uses the point of greatest eclipse.</p>
       </fieldset>
       <fieldset className="grid gap-4 sm:grid-cols-4">
         <legend className="mb-2 text-lg font-semibold">With what</legend>
         {kits && kits.length ? (
-          <Field label="One of your kits" className="sm:col-span-4">
+          <Field label="One of your kits" className="sm:col-span-4" error={errorFor("kit")}>
             <Select
               name="kit"
               defaultValue={query.kit ?? ""}
@@ -69,13 +78,13 @@ export function PlannerForm({
             />
           </Field>
         ) : null}
-        <Field label="f-number">
+        <Field label="f-number" error={errorFor("f")}>
           <Input name="f" type="number" step="any" min={0.5} max={128} defaultValue={query.f ?? 8} />
         </Field>
-        <Field label="Focal length (mm)" hint="For the framing drawing.">
+        <Field label="Focal length (mm)" hint="For the framing drawing." error={errorFor("focal")}>
           <Input name="focal" type="number" step="any" min={1} defaultValue={query.focal ?? ""} />
         </Field>
-        <Field label="Mount">
+        <Field label="Mount" error={errorFor("mount")}>
           <Select
             name="mount"
             defaultValue={query.mount ?? ""}
@@ -89,8 +98,21 @@ export function PlannerForm({
             ]}
           />
         </Field>
-        <Field label="ISO speeds" hint="Up to six, separated by commas.">
+        <Field label="ISO speeds" hint="Up to six, separated by commas." error={errorFor("isos")}>
           <Input name="isos" defaultValue={query.isos.join(",")} />
+        </Field>
+        <Field label="Sensor" hint="For the framing drawing: a common format, or type its size." className="sm:col-span-2" error={errorFor("sensor")}>
+          <Select
+            name="sensor"
+            defaultValue={sensorChoice}
+            options={[{ value: "", label: "Not given" }, ...SENSOR_FORMATS.map((f) => ({ value: f.key, label: f.label })), { value: "custom", label: "Another size (typed beside)" }]}
+          />
+        </Field>
+        <Field label="Sensor width (mm)" hint="Typed sizes win over the list." error={errorFor("sw")}>
+          <Input name="sw" type="number" step="any" min={1} max={100} defaultValue={query.sw ?? ""} inputMode="decimal" />
+        </Field>
+        <Field label="Sensor height (mm)" hint="Both sizes are needed." error={errorFor("sh")}>
+          <Input name="sh" type="number" step="any" min={1} max={100} defaultValue={query.sh ?? ""} inputMode="decimal" />
         </Field>
       </fieldset>
       <div>

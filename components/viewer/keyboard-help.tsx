@@ -2,14 +2,14 @@
 import { useId, useState } from "react";
 import { buttonClasses } from "@/components/ui/button";
 
-/** The keys the image answers to once it has focus (OpenSeadragon's own handling, less mirroring, which we switch off). */
+/** The keys the image answers to once it has focus (our zoom steps, the library's panning and turning; mirroring is switched off). */
 export const VIEWER_KEYS: { keys: string[]; action: string }[] = [
   { keys: ["Arrow keys", "W A S D"], action: "Move the image" },
-  { keys: ["+", "Shift + ↑"], action: "Zoom in" },
-  { keys: ["−", "Shift + ↓"], action: "Zoom out" },
-  { keys: ["0"], action: "Show the whole image" },
-  { keys: ["R"], action: "Rotate right a quarter turn" },
-  { keys: ["Shift + R"], action: "Rotate left a quarter turn" },
+  { keys: ["+", "Shift + ↑"], action: "Zoom in 1.5 times, as one wheel notch does" },
+  { keys: ["−", "Shift + ↓"], action: "Zoom out 1.5 times" },
+  { keys: ["0"], action: "Fit the whole image" },
+  { keys: ["R"], action: "Turn a quarter right" },
+  { keys: ["Shift + R"], action: "Turn a quarter left" },
   { keys: ["Tab"], action: "Leave the image for the controls" },
 ];
 

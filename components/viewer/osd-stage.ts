@@ -19,14 +19,30 @@ export interface StageFrame {
 export interface StageEvents {
   /** After an animation ends (pan, zoom, rotation), and once when the images are in. */
   onSettled: () => void;
+  /** As soon as a zoom or a turn is asked for (the target, before the animation runs). */
+  onTarget?: () => void;
   /** The hint shown over the image when a one-finger drag or a plain wheel is left to the page. */
   gestureHint: (gesture: "drag" | "scroll", modifierKey: string) => string;
 }
 
 /** Keys of OpenSeadragon's own keyboard handling that we switch off: mirroring breaks the overlays' sky directions. */
 const BLOCKED_KEY_CODES = new Set(["KeyF", "KeyJ", "KeyK"]);
-/** How much one press of the zoom buttons zooms (common practice: about the same as a wheel notch pair). */
+/** How much one zoom step zooms: a wheel notch, a key press and a button press alike (common practice: about 1.5). */
 export const ZOOM_STEP = 1.5;
+/**
+ * Keys that zoom by one step per press (and per key repeat), handled here: the library's own
+ * keyboard zoom runs while a key is held, so a tap zoomed by a barely visible amount.
+ */
+const ZOOM_KEYS: Record<string, (shift: boolean) => 1 | -1 | 0> = {
+  Equal: () => 1,
+  NumpadAdd: () => 1,
+  Minus: () => -1,
+  NumpadSubtract: () => -1,
+  ArrowUp: (shift) => (shift ? 1 : 0),
+  KeyW: (shift) => (shift ? 1 : 0),
+  ArrowDown: (shift) => (shift ? -1 : 0),
+  KeyS: (shift) => (shift ? -1 : 0),
+};
 export const ROTATION_STEP_DEG = 90;
 /** Relative zoom and centre offset (in view widths) under which a view counts as the whole image. */
 const HOME_TOLERANCE = 0.01;
@@ -79,6 +95,7 @@ export class PlateStage {
       // People who ask for less motion get jumps that are nearly immediate (a spring still needs a little time).
       animationTime: window.matchMedia?.("(prefers-reduced-motion: reduce)").matches ? 0.05 : 0.8,
       rotationIncrement: ROTATION_STEP_DEG,
+      zoomPerScroll: ZOOM_STEP,
       gestureSettingsMouse: { clickToZoom: false, dblClickToZoom: true },
       gestureSettingsTouch: { pinchRotate: false, flickEnabled: true },
     });
@@ -109,8 +126,21 @@ export class PlateStage {
   private listen(): void {
     this.viewer.addHandler("viewport-change", () => this.refresh());
     this.viewer.addHandler("animation-finish", () => this.events.onSettled());
+    this.viewer.addHandler("zoom", () => this.events.onTarget?.());
+    this.viewer.addHandler("rotate", () => this.events.onTarget?.());
     this.viewer.addHandler("canvas-key", (event) => {
-      if (BLOCKED_KEY_CODES.has(event.originalEvent.code)) event.preventDefaultAction = true;
+      const key = event.originalEvent as KeyboardEvent;
+      if (BLOCKED_KEY_CODES.has(key.code)) {
+        event.preventDefaultAction = true;
+        return;
+      }
+      if (key.ctrlKey || key.altKey || key.metaKey) return;
+      const direction = ZOOM_KEYS[key.code]?.(key.shiftKey) ?? 0;
+      if (direction !== 0) {
+        event.preventDefaultAction = true;
+        key.preventDefault();
+        this.zoomBy(direction > 0 ? ZOOM_STEP : 1 / ZOOM_STEP);
+      }
     });
     this.viewer.addHandler("canvas-cooperative-gesture", (event) => {
       const modifier = /Mac|iPhone|iPad/i.test(navigator.platform || navigator.userAgent || "") ? "⌘" : "Ctrl";
@@ -187,7 +217,7 @@ export class PlateStage {
 
   getFrame = (): StageFrame | null => this.frame;
 
-  /** Magnification relative to the whole image fitted in the viewer. */
+  /** Magnification relative to the whole image fitted in the viewer (the target while an animation runs). */
   zoomTimes(): number {
     const viewport = this.viewer.viewport;
     return viewport.getZoom(false) / viewport.getHomeZoom();

@@ -36,6 +36,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
   const [overlays, setOverlays] = useState<ReadonlySet<OverlayKey>>(new Set());
   const [fullPage, setFullPage] = useState(false);
   const [zoomReadout, setZoomReadout] = useState("");
+  const [rotationDeg, setRotationDeg] = useState(0);
   const [announcement, setAnnouncement] = useState("");
   const [settledCount, setSettledCount] = useState(0);
 
@@ -82,6 +83,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
     (s: PlateStage) => {
       const zoom = `${s.zoomTimes().toFixed(1)}`;
       setZoomReadout(`${zoom}×`);
+      setRotationDeg(s.rotationDeg());
       setSettledCount((n) => n + 1);
       const g = latest.current.geometry;
       clearTimeout(announceTimer.current);
@@ -111,11 +113,18 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
     let cancelled = false;
     let created: PlateStage | null = null;
     const settled = () => created && onSettled(created);
+    // The readouts follow the target at once; announcements and the address wait for the view to settle.
+    const target = () => {
+      if (!created) return;
+      setZoomReadout(`${created.zoomTimes().toFixed(1)}×`);
+      setRotationDeg(created.rotationDeg());
+    };
     PlateStage.create(
       host,
       renditions,
       {
         onSettled: settled,
+        onTarget: target,
         gestureHint: (gesture, modifier) => (gesture === "drag" ? "Use two fingers to move the image" : `Hold ${modifier} and turn the wheel to zoom`),
       },
       () => cancelled,
@@ -224,6 +233,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
         disabled={disabled}
         fullPage={fullPage}
         zoomReadout={zoomReadout}
+        rotationDeg={rotationDeg}
         onZoomIn={() => stage?.zoomBy(ZOOM_STEP)}
         onZoomOut={() => stage?.zoomBy(1 / ZOOM_STEP)}
         onHome={() => stage?.goHome()}

@@ -85,3 +85,15 @@ export {
 export { type TrackPoint, parseGpxTrack, parseCsvTrack, parseIsoUtcMs } from "./track-parse";
 export { interpolateTrack, DEFAULT_TRACK_CLAMP_S } from "./track-interpolate";
 export { type CatalogueEclipseKind, type CatalogueEclipse, listSolarEclipses } from "./catalogue";
+export {
+  type GeoPoint,
+  type CentralPath,
+  type CentralPathSample,
+  type NearestPathPoint,
+  computeCentralPath,
+  computeCentralPathAt,
+  findNearestPathPoint,
+  describeBearing,
+  computeSurfaceDistanceKm,
+  computeBearingDeg,
+} from "./central-path";

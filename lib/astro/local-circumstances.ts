@@ -21,6 +21,7 @@ import {
   computeTopocentricVectors,
 } from "./positions";
 import { SiteLocation, convertAstroTimeToUtcMs, makeAstroTime, makeObserver, validateUtcMs } from "./site-time";
+import { findMinimumByGoldenSection } from "./search";
 import { interpolateTrack } from "./track-interpolate";
 import { TrackPoint } from "./track-parse";
 
@@ -109,31 +110,9 @@ function bisect(f: (ms: number) => number, aMs: number, bMs: number, what: strin
   return (lo + hi) / 2;
 }
 
-/** Instant of least separation by golden-section search (separation is unimodal over the bracket). */
+/** Instant of least separation by golden-section search to 10 ms (separation is unimodal over the bracket). */
 function minimizeSeparation(siteAt: SiteAt, aMs: number, bMs: number): number {
-  const g = (Math.sqrt(5) - 1) / 2;
-  let a = aMs;
-  let b = bMs;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let fc = measureDisks(siteAt, c).separationArcsec;
-  let fd = measureDisks(siteAt, d).separationArcsec;
-  while (b - a > 10) {
-    if (fc < fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - g * (b - a);
-      fc = measureDisks(siteAt, c).separationArcsec;
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + g * (b - a);
-      fd = measureDisks(siteAt, d).separationArcsec;
-    }
-  }
-  return (a + b) / 2;
+  return findMinimumByGoldenSection((ms) => measureDisks(siteAt, ms).separationArcsec, aMs, bMs, 10).x;
 }
 
 /** Area of the Sun's disk (radius a) covered by the Moon's (radius b) at centre distance c, as a fraction. */

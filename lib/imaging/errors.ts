@@ -15,8 +15,12 @@ export class ImagingError extends Error {
   readonly code: ImagingErrorCode;
   readonly frameName?: string;
 
+  /** The message without the frame's name in front. */
+  readonly detail: string;
+
   constructor(code: ImagingErrorCode, message: string, frameName?: string) {
     super(frameName ? `${frameName}: ${message}` : message);
+    this.detail = message;
     this.name = "ImagingError";
     this.code = code;
     this.frameName = frameName;

@@ -68,13 +68,16 @@ interface EdgePoints {
 // own sampling (pixel area 1/12, bilinear 1/6, central difference 1/3). Measured on
 // noiseless synthetic frames, radius minus the model's: -0.28, -0.50 and -0.90 px for
 // PSF sigma 0, 1 and 2 px at a 32 px Sun; -0.15, -0.27 and -0.51 px at 80 px. The
-// centre stays within 0.02 px (the bias is the same all round), so registration and
-// the Moon path do not feel it; the radius, and a plate scale taken from it, does:
-// 1.5 % at a 33 px Moon, under 0.1 % at the hundreds of pixels of real frames.
+// centre stays within 0.02 px (the bias is the same all round), but the radius, and
+// the plate scale the WCS takes from it, does not. So each edge is moved outward by
+// k s^2 measured on its own ray (correctFalloffBias): s^2 from the width of the
+// gradient peak (the log-parabola's curvature is -1 / s^2), k from the light's
+// logarithmic fall beyond the edge, above the dark level inside it.
 function traceEdges(plane: Float32Array, width: number, height: number, centre: Circle, halfWindowPx: number, options: LimbFitOptions): EdgePoints {
   const rayCount = Math.max(90, Math.min(1440, Math.round((2 * Math.PI * centre.r) / 1.5)));
   const steps = Math.max(5, Math.ceil(2 * halfWindowPx)) + 1;
-  const profile = new Float64Array(steps);
+  // The profile runs FALLOFF_SAMPLES beyond the window, where correctFalloffBias measures the light's fall.
+  const profile = new Float64Array(steps + FALLOFF_SAMPLES);
   const xs = new Float64Array(rayCount);
   const ys = new Float64Array(rayCount);
   const clipped = new Uint8Array(rayCount);
@@ -86,7 +89,7 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
     const theta = (2 * Math.PI * k) / rayCount;
     const c = Math.cos(theta);
     const s = Math.sin(theta);
-    for (let j = 0; j < steps; j++) {
+    for (let j = 0; j < profile.length; j++) {
       const r = rStart + j;
       const x = centre.cx + r * c;
       const y = centre.cy + r * s;
@@ -115,7 +118,7 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
       delta = den < 0 ? (0.5 * (gm - gp)) / den : 0;
     }
     if (Math.abs(delta) > 1) continue;
-    const rEdge = rStart + best + delta;
+    const rEdge = rStart + best + delta + correctFalloffBias(profile, best, gm, bestGradient, gp, clipLevel);
     xs[count] = centre.cx + rEdge * c;
     ys[count] = centre.cy + rEdge * s;
     // Clipped light within three samples outside the edge moves the gradient maximum inward.
@@ -132,6 +135,88 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
     count++;
   }
   return { xs, ys, clipped, count, rayCount };
+}
+
+/**
+ * Outward shift, px, that undoes the inward bias k s^2 of a gradient maximum in
+ * front of light falling off as e^(-k x) (see the notes above traceEdges). s^2
+ * is the variance of the measured gradient peak (three gradient samples spaced
+ * one pixel apart about the maximum, log-parabola curvature -1 / s^2); k is the
+ * fall of ln(light - dark) over the samples from 2 s beyond the edge, the dark
+ * level taken from the samples inside. Zero where it cannot be measured (clipped
+ * or noisy light, a peak that is not Gaussian), and at most half a pixel.
+ */
+/** Samples beyond the search window, for the fall of the light outside the edge. */
+const FALLOFF_SAMPLES = 8;
+
+function correctFalloffBias(profile: Float64Array, best: number, gm: number, g0: number, gp: number, clipLevel: number): number {
+  if (!(gm > 0 && gp > 0 && g0 > 0)) return 0;
+  const curvature = Math.log(gm) - 2 * Math.log(g0) + Math.log(gp);
+  if (!(curvature < 0)) return 0;
+  const s2 = -1 / curvature;
+  const steps = Math.min(profile.length, best + Math.max(2, Math.ceil(2 * Math.sqrt(s2))) + FALLOFF_SAMPLES);
+  let dark = Infinity;
+  for (let j = 0; j <= Math.max(0, best - 3); j++) dark = Math.min(dark, profile[j]);
+  if (!Number.isFinite(dark)) return 0;
+  const from = best + Math.max(2, Math.ceil(2 * Math.sqrt(s2)));
+  if (from + 2 >= steps) return 0;
+  // Least-squares slope of ln(light - dark) against radius over the samples beyond the edge.
+  let n = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+  for (let j = from; j < steps; j++) {
+    const v = profile[j] - dark;
+    if (!(v > 0) || profile[j] >= clipLevel) return 0;
+    const y = Math.log(v);
+    n++; sx += j; sy += y; sxx += j * j; sxy += j * y;
+  }
+  if (n < 3) return 0;
+  const slope = (n * sxy - sx * sy) / (n * sxx - sx * sx);
+  const k = -slope;
+  if (!(k > 0)) return 0;
+  return Math.min(1, solveFalloffShift(k, s2));
+}
+
+/** Standard normal cumulative distribution (Abramowitz and Stegun 7.1.26 for erf, error under 1.5e-7). */
+function normalCdf(z: number): number {
+  const x = Math.abs(z) / Math.SQRT2;
+  const t = 1 / (1 + 0.3275911 * x);
+  const erf = 1 - ((((1.061405429 * t - 1.453152027) * t + 1.421413741) * t - 0.284496736) * t + 0.254829592) * t * Math.exp(-x * x);
+  return z >= 0 ? 0.5 * (1 + erf) : 0.5 * (1 - erf);
+}
+
+/**
+ * The exact inward shift of the gradient maximum of H(x) e^(-k x) blurred by a
+ * Gaussian of variance s^2, where k s is not small. The blurred gradient is
+ * g(x) = G(x) - k E(x), E(x) = e^(-k x + k^2 s^2 / 2) Phi((x - k s^2) / s), and
+ * E' = g, so the maximum solves h(x) = G'(x) - k g(x) = 0, found by bisection
+ * (to first order x = -k s^2). The measured peak width is that of g, a little
+ * narrower than s when k s nears one: s^2 is adjusted once so that the model's
+ * peak has the measured width. Returns -x (px, outward).
+ */
+export function solveFalloffShift(k: number, measuredS2: number): number {
+  const locate = (s2: number) => {
+    const s = Math.sqrt(s2);
+    const gauss = (x: number) => Math.exp((-0.5 * x * x) / s2) / (s * Math.sqrt(2 * Math.PI));
+    const e = (x: number) => Math.exp(-k * x + 0.5 * k * k * s2) * normalCdf((x - k * s2) / s);
+    const g = (x: number) => gauss(x) - k * e(x);
+    const h = (x: number) => (-x / s2) * gauss(x) - k * g(x);
+    let lo = -(2 * k * s2 + 2 * s);
+    let hi = 0;
+    if (!(h(lo) > 0)) return { x: -k * s2, g };
+    for (let it = 0; it < 50; it++) {
+      const mid = 0.5 * (lo + hi);
+      if (h(mid) > 0) lo = mid;
+      else hi = mid;
+    }
+    return { x: 0.5 * (lo + hi), g };
+  };
+  let s2 = measuredS2;
+  const first = locate(s2);
+  const [gm, g0, gp] = [first.g(first.x - 1), first.g(first.x), first.g(first.x + 1)];
+  if (gm > 0 && g0 > 0 && gp > 0) {
+    const curvature = Math.log(gm) - 2 * Math.log(g0) + Math.log(gp);
+    if (curvature < 0) s2 *= measuredS2 / (-1 / curvature);
+  }
+  return -locate(s2).x;
 }
 
 function selectPoints(points: EdgePoints, keep: (i: number) => boolean): { xs: Float64Array; ys: Float64Array } {

@@ -21,6 +21,8 @@ export interface LinearizedFrame {
   clipped: Uint8Array;
   /** 1 where the luminance lies in the noise floor. */
   noiseFloor: Uint8Array;
+  /** Sensor defects (hot, stuck, dead) of the frame, 1 = masked; absent when none are known. */
+  masked?: Uint8Array;
   /** Estimated dark noise, planes' units. */
   noiseSigma: number;
   /** The value below which a pixel is in the noise floor, planes' units. */
@@ -172,6 +174,9 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, options
     clipLevel = table[Math.min(255, Math.ceil(clipCode))];
     luminance = computeLuminancePlane(planes);
   }
+  if (frame.saturated) for (let i = 0; i < n; i++) if (frame.saturated[i]) clipped[i] = 1;
+  // Defects never reach the limb fit or registration as light: their luminance is the median of their sound neighbours.
+  if (frame.badPixels) luminance = repairDefects(luminance, frame.badPixels, width, height);
   const noiseSigma = frame.encoding === "linear" ? estimateDarkNoiseSigma(luminance, width, height) : (options.responseTable ?? createSrgbDecodeTable())[1];
   const noiseFloorLevel = frame.encoding === "linear" ? NOISE_FLOOR_SIGMAS * noiseSigma : (options.responseTable ?? createSrgbDecodeTable())[NOISE_FLOOR_CODE];
   const noiseFloor = new Uint8Array(n);
@@ -187,8 +192,31 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, options
     clipLevel,
     clipped: dilateMask(clipped, width, height, 1),
     noiseFloor,
+    masked: frame.badPixels,
     noiseSigma,
     noiseFloorLevel,
     captureTimeMs: frame.captureTimeMs,
   };
+}
+
+/** A copy of the plane with each masked pixel replaced by the median of the unmasked ones among its 8 neighbours. */
+export function repairDefects(plane: Float32Array, masked: Uint8Array, width: number, height: number): Float32Array {
+  if (masked.length !== plane.length) throw new ImagingError("size-mismatch", `defect map has ${masked.length} pixels, the frame ${plane.length}`);
+  const out = Float32Array.from(plane);
+  const around: number[] = [];
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const i = y * width + x;
+      if (!masked[i]) continue;
+      around.length = 0;
+      for (let v = Math.max(0, y - 1); v <= Math.min(height - 1, y + 1); v++) {
+        for (let u = Math.max(0, x - 1); u <= Math.min(width - 1, x + 1); u++) if (!masked[v * width + u]) around.push(plane[v * width + u]);
+      }
+      if (around.length > 0) {
+        around.sort((a, b) => a - b);
+        out[i] = around[around.length >> 1];
+      }
+    }
+  }
+  return out;
 }

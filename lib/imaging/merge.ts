@@ -4,6 +4,17 @@
 //    over the frames not clipped at the pixel (Granados et al. 2010, CVPR,
 //    "Optimal HDR reconstruction with linear digital cameras", from memory: the
 //    read-noise-free limit of their weights).
+//    Two refinements keep hand-overs between exposures invisible: a frame's weight
+//    falls smoothly to zero as its counts approach the clip level (a cosine taper
+//    over the top 40 % below it), so no frame switches off abruptly where it
+//    saturates; and a second pass (createMergeAccumulator with a pilot) weighs
+//    each frame by its share of signal over signal plus read noise at the pilot's
+//    radiance, s = t E / (t E + sigma_r^2), which is the read-noise term of
+//    Granados et al. (2010) for a gain of about one electron per DN, and finds
+//    outliers (trails, cosmic rays, hot pixels that moved with tracking) against
+//    the leave-one-out estimate of the other frames. A positive outlier in one
+//    frame also pulls the pilot, so every other frame looks a little low there:
+//    only the single worst frame at each pixel is taken out, once all frames are in.
 //  - 8-bit data: Debevec and Malik (1997), SIGGRAPH, eq. 6:
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
 import { ImagingError } from "./errors";
@@ -20,6 +31,10 @@ export interface MergeFrameInput {
   covered?: Uint8Array;
   /** Value at which the frame clips, planes' units: gives a lower bound where every frame clipped. */
   clipLevel: number;
+  /** 1 = a sensor defect (hot, stuck, dead) warped into master pixels: left out, with no lower bound. */
+  masked?: Uint8Array;
+  /** Dark (read) noise sigma of the frame, planes' units; used by the pilot pass's weights and outlier test. */
+  noiseSigma?: number;
 }
 
 export interface FrameWeightStats {
@@ -29,6 +44,8 @@ export interface FrameWeightStats {
   wellExposedFraction: number;
   /** The frame's share of all merge weight in the master. */
   weightShare: number;
+  /** Master pixels the outlier test took from this frame (trail, cosmic ray, defect), fraction of those it covered. */
+  rejectedFraction: number;
 }
 
 export interface MergeResult {
@@ -78,6 +95,52 @@ export interface MergeAccumulator {
   codeOf?: (linear: number) => number;
   /** Per-frame mask of contributing pixels, reused by every frame (fresh pages are costly to fault in). */
   useScratch?: Uint8Array;
+  /** photon: per-pixel weight of this frame (clip taper, and the noise share with a pilot), reused frame after frame. */
+  weightScratch?: Float32Array;
+  /** The first pass, finished: its radiance serves the second pass's weights and leave-one-out outlier test. */
+  pilot?: PhotonPilot;
+  /** Second pass: per pixel, the frame that disagrees most with the others, and what it added. */
+  worst?: WorstFrame;
+  frameRejected: number[];
+  frameConsidered: number[];
+}
+
+/** Per pixel, the frame with the largest outlier score so far and its contribution, so that it can be taken out at the end. */
+interface WorstFrame {
+  score: Float32Array;
+  frame: Int16Array;
+  contribution: Float32Array[];
+  weight: Float32Array;
+  wellExposed: Uint8Array;
+}
+
+/** What the second pass needs of the first: its sums and exposure weights, per pixel. */
+export interface PhotonPilot {
+  sums: Float32Array[];
+  weights: Float64Array;
+}
+
+/** Share of the clip level above which a frame's weight starts to fall (cosine taper to zero at the clip level). */
+export const CLIP_TAPER_START = 0.6;
+/** Outliers: a score above this many sigmas of the leave-one-out prediction (after the frame's own z scale is measured). */
+export const OUTLIER_SIGMAS = 5;
+/** Around an outlier, the worst frame goes at this lower score too, so that a trail's wings below the threshold go with it. */
+const OUTLIER_WING_SIGMAS = 2.5;
+/** Outliers grow by this many pixels (the wings' reach). */
+const REJECT_GROW_PX = 2;
+/**
+ * Negative deviations count at this share: trails, cosmic rays and hot pixels add
+ * light, and a frame that only looks low because another frame's outlier pulled the
+ * pilot must not be taken for the culprit.
+ */
+const NEGATIVE_SCORE_SHARE = 0.6;
+
+/** Weight factor of a count v against the clip level: 1 below CLIP_TAPER_START of it, a raised cosine to 0 at it. */
+export function computeClipTaper(v: number, clipLevel: number): number {
+  const u = v / clipLevel;
+  if (u <= CLIP_TAPER_START) return 1;
+  if (u >= 1) return 0;
+  return 0.5 * (1 + Math.cos((Math.PI * (u - CLIP_TAPER_START)) / (1 - CLIP_TAPER_START)));
 }
 
 export function createMergeAccumulator(
@@ -86,6 +149,7 @@ export function createMergeAccumulator(
   channels: number,
   weighting: MergeWeighting,
   codeOf?: (linear: number) => number,
+  pilot?: PhotonPilot,
 ): MergeAccumulator {
   if (weighting === "debevec-hat" && !codeOf) throw new ImagingError("bad-parameter", "debevec-hat merge needs a map from linear value to 8-bit code");
   const n = width * height;
@@ -96,8 +160,89 @@ export function createMergeAccumulator(
     weights: Array.from({ length: weightPlanes }, () => new Float64Array(n)),
     fallback: new Float32Array(n),
     coverage: new Uint16Array(n),
-    frameWeight: [], frameContributing: [], frameWellExposed: [], codeOf,
+    frameWeight: [], frameContributing: [], frameWellExposed: [], frameRejected: [], frameConsidered: [], codeOf, pilot,
+    worst: pilot
+      ? { score: new Float32Array(n), frame: new Int16Array(n).fill(-1), contribution: Array.from({ length: channels }, () => new Float32Array(n)), weight: new Float32Array(n), wellExposed: new Uint8Array(n) }
+      : undefined,
   };
+}
+
+/** The finished first pass as the second pass's pilot. */
+export function toPilot(acc: MergeAccumulator): PhotonPilot {
+  if (acc.weighting !== "photon") throw new ImagingError("bad-parameter", "only the linear merge has a second pass");
+  return { sums: acc.sums, weights: acc.weights[0] };
+}
+
+/** Grows a mask by r pixels (square), in place of a fresh allocation when given scratch. */
+function growMask(mask: Uint8Array, width: number, height: number, r: number): Uint8Array {
+  const out = new Uint8Array(mask.length);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      if (!mask[y * width + x]) continue;
+      for (let v = Math.max(0, y - r); v <= Math.min(height - 1, y + r); v++) out.fill(1, v * width + Math.max(0, x - r), v * width + Math.min(width - 1, x + r) + 1);
+    }
+  }
+  return out;
+}
+
+/**
+ * Second pass, per frame: z = (y - t E_loo) / sigma for each plane, with E_loo the
+ * first pass's estimate without this frame and sigma^2 = y + sigma_r^2 + t^2 E_loo / T_loo
+ * (photon noise at one electron per DN, read noise, the leave-one-out estimate's
+ * own noise). The frame's z values are then divided by their own robust spread
+ * (1.4826 MAD), which absorbs a gain other than one. The score is the worst plane's
+ * z, negative ones at NEGATIVE_SCORE_SHARE; 0 where there is nothing to compare.
+ */
+function scoreOutliers(acc: MergeAccumulator, frame: MergeFrameInput, use: Uint8Array, taper: Float32Array): Float32Array {
+  const pilot = acc.pilot!;
+  const n = acc.width * acc.height;
+  const t = frame.exposureS;
+  const read2 = (frame.noiseSigma ?? 0) ** 2;
+  const z = new Float32Array(n);
+  for (let i = 0; i < n; i++) {
+    if (!use[i]) continue;
+    const tLoo = pilot.weights[i] - taper[i] * t;
+    if (!(tLoo > 1e-3 * t)) continue;
+    let worst = 0;
+    for (let c = 0; c < acc.channels; c++) {
+      const y = frame.planes[c][i];
+      const eLoo = (pilot.sums[c][i] - taper[i] * y) / tLoo;
+      const predicted = t * eLoo;
+      const variance = Math.max(predicted, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
+      const zc = (y - predicted) / Math.sqrt(variance);
+      if (Math.abs(zc) > Math.abs(worst)) worst = zc;
+    }
+    z[i] = worst;
+  }
+  // The frame's own z scale, from a regular sample of the pixels with a leave-one-out estimate.
+  const step = Math.max(1, Math.floor(n / 200_000)) | 1;
+  const sample: number[] = [];
+  for (let i = 0; i < n; i += step) if (use[i] && z[i] !== 0) sample.push(Math.abs(z[i]));
+  sample.sort((a, b) => a - b);
+  const scale = sample.length > 100 ? Math.max(0.25, 1.4826 * sample[sample.length >> 1]) : 1;
+  for (let i = 0; i < n; i++) z[i] = z[i] > 0 ? z[i] / scale : (NEGATIVE_SCORE_SHARE * -z[i]) / scale;
+  return z;
+}
+
+/** Takes the worst frame out where it is an outlier (and in the grown wings around one); counts what each frame lost. */
+function removeOutliers(acc: MergeAccumulator): void {
+  const worst = acc.worst!;
+  const n = acc.width * acc.height;
+  const hit = new Uint8Array(n);
+  let any = false;
+  for (let i = 0; i < n; i++) if (worst.frame[i] >= 0 && worst.score[i] > OUTLIER_SIGMAS) { hit[i] = 1; any = true; }
+  if (!any) return;
+  const wings = growMask(hit, acc.width, acc.height, REJECT_GROW_PX);
+  const exposure = acc.weights[0];
+  for (let i = 0; i < n; i++) {
+    if (!wings[i] || worst.frame[i] < 0 || worst.score[i] <= (hit[i] ? OUTLIER_SIGMAS : OUTLIER_WING_SIGMAS)) continue;
+    // Keep the pixel when the worst frame was its only light: a lone frame has nothing to disagree with.
+    if (!(exposure[i] - worst.weight[i] > 1e-6 * exposure[i])) continue;
+    exposure[i] -= worst.weight[i];
+    for (let c = 0; c < acc.channels; c++) acc.sums[c][i] -= worst.contribution[c][i];
+    if (worst.wellExposed[i] && acc.coverage[i] > 0) acc.coverage[i]--;
+    acc.frameRejected[worst.frame[i]]++;
+  }
 }
 
 export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): void {
@@ -113,30 +258,71 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
   let well = 0;
   // Pass 1: masks, coverage and the clipped fallback (shared by every plane).
   const use = acc.useScratch?.length === n ? acc.useScratch.fill(0) : (acc.useScratch = new Uint8Array(n));
+  const { masked } = frame;
   for (let i = 0; i < n; i++) {
     if (covered && !covered[i]) continue;
+    if (masked && masked[i]) continue;
     if (clipped[i]) {
       if (bound > fallback[i]) fallback[i] = bound;
       continue;
     }
     use[i] = 1;
+  }
+  let considered = 0;
+  if (acc.weighting === "photon") {
+    // Per-pixel weight factor: the clip taper on the brightest plane, then (second pass) the noise share.
+    const taper = acc.weightScratch?.length === n ? acc.weightScratch : (acc.weightScratch = new Float32Array(n));
+    for (let i = 0; i < n; i++) {
+      if (!use[i]) { taper[i] = 0; continue; }
+      let v = frame.planes[0][i];
+      for (let c = 1; c < acc.channels; c++) if (frame.planes[c][i] > v) v = frame.planes[c][i];
+      taper[i] = computeClipTaper(v, frame.clipLevel);
+    }
+    const score = acc.pilot ? scoreOutliers(acc, frame, use, taper) : undefined;
+    if (acc.pilot) {
+      const read2 = (frame.noiseSigma ?? 0) ** 2;
+      const lum = acc.pilot.sums[acc.channels === 3 ? 1 : 0];
+      for (let i = 0; i < n; i++) {
+        if (!use[i]) continue;
+        const expected = acc.pilot.weights[i] > 0 ? (t * lum[i]) / acc.pilot.weights[i] : 0;
+        taper[i] *= expected > 0 ? expected / (expected + read2) : 1;
+      }
+    }
+    const exposure = acc.weights[0];
+    for (let i = 0; i < n; i++) {
+      if (!use[i] || !(taper[i] > 0)) { use[i] = 0; continue; }
+      exposure[i] += taper[i] * t;
+      weightSum += taper[i] * t;
+    }
+    for (let c = 0; c < acc.channels; c++) {
+      const sum = acc.sums[c];
+      const p = frame.planes[c];
+      for (let i = 0; i < n; i++) if (use[i]) sum[i] += taper[i] * p[i];
+    }
+    const worst = acc.worst;
+    if (score && worst) {
+      const index = acc.frameWeight.length;
+      for (let i = 0; i < n; i++) {
+        if (!use[i]) continue;
+        considered++;
+        if (score[i] <= worst.score[i]) continue;
+        worst.score[i] = score[i];
+        worst.frame[i] = index;
+        worst.weight[i] = taper[i] * t;
+        worst.wellExposed[i] = noiseFloor[i] ? 0 : 1;
+        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = taper[i] * frame.planes[c][i];
+      }
+    }
+  }
+  for (let i = 0; i < n; i++) {
+    if (!use[i]) continue;
     contributing++;
     if (!noiseFloor[i]) {
       coverage[i]++;
       well++;
     }
   }
-  // Pass 2: one tight loop per plane.
-  if (acc.weighting === "photon") {
-    const exposure = acc.weights[0];
-    for (let i = 0; i < n; i++) if (use[i]) exposure[i] += t;
-    weightSum = t * contributing;
-    for (let c = 0; c < acc.channels; c++) {
-      const sum = acc.sums[c];
-      const p = frame.planes[c];
-      for (let i = 0; i < n; i++) if (use[i]) sum[i] += p[i];
-    }
-  } else {
+  if (acc.weighting !== "photon") {
     const logT = Math.log(t);
     const codeOf = acc.codeOf!;
     for (let c = 0; c < acc.channels; c++) {
@@ -156,12 +342,15 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
     }
   }
   acc.frameWeight.push(weightSum);
+  acc.frameRejected.push(0);
+  acc.frameConsidered.push(considered);
   acc.frameContributing.push(contributing / n);
   acc.frameWellExposed.push(well / n);
 }
 
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
+  if (acc.worst) removeOutliers(acc);
   const radiance = acc.sums.map((sum, c) => {
     const out = new Float32Array(n);
     const weight = acc.weighting === "photon" ? acc.weights[0] : acc.weights[c];
@@ -184,6 +373,7 @@ export function finishMerge(acc: MergeAccumulator): MergeResult {
       contributingFraction: acc.frameContributing[k],
       wellExposedFraction: acc.frameWellExposed[k],
       weightShare: total > 0 ? w / total : 0,
+      rejectedFraction: acc.frameConsidered[k] > 0 ? acc.frameRejected[k] / acc.frameConsidered[k] : 0,
     })),
   };
 }

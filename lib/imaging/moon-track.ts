@@ -38,7 +38,12 @@ function computeCentreSigma(limb: LimbFit): number {
 export function estimateMoonTrack(inputs: MoonTrackInput[]): MoonTrack {
   const own = inputs.map(toMaster);
   const sound = inputs.map((f, i) => i).filter((i) => inputs[i].limb.verdict === "sound");
-  if (sound.length === 0) return { disks: own, sources: inputs.map(() => "own-doubtful-fit") };
+  if (sound.length === 0) {
+    const found = own.filter((d) => Number.isFinite(d.x) && Number.isFinite(d.radiusPx));
+    const pick = (key: "x" | "y" | "radiusPx") => found.map((d) => d[key]).sort((a, b) => a - b)[found.length >> 1];
+    const fallback = found.length > 0 ? { x: pick("x"), y: pick("y"), radiusPx: pick("radiusPx") } : { x: NaN, y: NaN, radiusPx: NaN };
+    return { disks: own.map((d) => (Number.isFinite(d.x) ? d : fallback)), sources: inputs.map(() => "own-doubtful-fit") };
+  }
   const radii = sound.map((i) => own[i].radiusPx).sort((a, b) => a - b);
   const radiusPx = radii[radii.length >> 1];
   // Weighted least squares of x(t) and y(t) over every timed fit, weights 1 / sigma^2:
@@ -78,10 +83,16 @@ export function estimateMoonTrack(inputs: MoonTrackInput[]): MoonTrack {
     } else if (path && Number.isFinite(f.captureTimeMs)) {
       disks.push({ ...path(f.captureTimeMs!), radiusPx });
       sources.push("path");
-    } else {
+    } else if (Number.isFinite(own[i].x) && Number.isFinite(own[i].y)) {
       // Without times the Moon's motion is unknown: the frame's own fit, on the sound radius.
       disks.push({ x: own[i].x, y: own[i].y, radiusPx });
       sources.push("own-doubtful-fit");
+    } else {
+      // No limb of its own and no times: the Moon where the sound fits put it (it moves well under a radius in a bracket).
+      const xs = sound.map((k) => own[k].x).sort((a, b) => a - b);
+      const ys = sound.map((k) => own[k].y).sort((a, b) => a - b);
+      disks.push({ x: xs[xs.length >> 1], y: ys[ys.length >> 1], radiusPx });
+      sources.push("path");
     }
   });
   return { disks, sources };

@@ -5,18 +5,19 @@ import { dilateMask } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
 import { fitLimb, type LimbFit } from "./limb-fit";
 import { linearizeFrame, validateFrame, type LinearizedFrame } from "./linearize";
-import { addFrameToMerge, createMergeAccumulator, finishMerge, type FrameWeightStats, type MergeFrameInput, type MergeResult } from "./merge";
+import { addFrameToMerge, createMergeAccumulator, finishMerge, toPilot, type FrameWeightStats, type MergeAccumulator, type MergeFrameInput, type MergeResult } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import { estimateMoonTrack } from "./moon-track";
-import { registerFrames, type RegistrationFrame } from "./register";
+import { measureBracketLevels, type FrameLevels, type LevelSource } from "./frame-levels";
+import { registerFrames, type FrameRegistration, type RegistrationFrame } from "./register";
 import { warpMask, warpPlanes, type WarpTarget } from "./resample";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
 import { composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import { computePercentiles, renderNatural, renderStructure } from "./tone";
-import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
+import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type BlackLevelSource, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
 
-export const PIPELINE_VERSION = "crownlight-imaging 0.1.0";
+export const PIPELINE_VERSION = "crownlight-imaging 0.2.0";
 
 /** Master pixels this close to a lunar limb take light only from frames that agree on Moon or corona there. */
 const LIMB_MARGIN_PX = 3;
@@ -35,7 +36,22 @@ export interface FrameReport {
   registrationPeak: number;
   /** The frame this one was registered against; null for the reference. */
   registeredAgainst: string | null;
+  /** How the frame was placed: on the corona, or (when that failed, with `registrationNote`) by its limb alone. */
+  registrationMethod: "reference" | "corona" | "limb";
+  registrationNote?: string;
+  /** The frame's offset (bias pedestal) in DN and where it came from; undefined for 8-bit frames. */
+  offset?: { dn: number; source: BlackLevelSource; sigmaDn?: number; note?: string };
+  /** Light the frame recorded against the others' (1 = as expected from its exposure), and the exposure the merge used. */
+  transmission: number;
+  effectiveExposureS: number;
+  transmissionNote?: string;
   weights: FrameWeightStats;
+}
+
+/** A frame the reduction could not use, and why. */
+export interface FrameLeftOut {
+  name: string;
+  reason: string;
 }
 
 export interface ReductionResult {
@@ -48,6 +64,8 @@ export interface ReductionResult {
   /** Display values 0..1 of the radial filter on the luminance (one plane). */
   structure: PlaneImage;
   frames: FrameReport[];
+  /** Frames left out (no limb and no corona registration, say), with their reasons; the reduction went on without them. */
+  leftOut: FrameLeftOut[];
   overall: {
     referenceFrame: string;
     /** The Moon at the reference frame's instant, master pixels (see moon-track.ts). */
@@ -72,6 +90,39 @@ export interface PreparedFrame {
   linear: LinearizedFrame;
   luminance: Float32Array;
   limb: LimbFit;
+}
+
+/**
+ * A frame's light is corrected (its exposure scaled in the merge) when it differs
+ * from what its exposure implies by more than this share and by more than four
+ * times its own uncertainty: shutters commonly miss their marked times by a few
+ * per cent, and a thin cloud dims a frame by tens of per cent (common practice).
+ */
+export const TRANSMISSION_TOLERANCE = 0.02;
+/** Below this transmission a frame is named as dimmed (a passing cloud, most often). */
+const DIMMED_BELOW = 0.9;
+
+/** Words for a frame's measured transmission, or undefined when it was taken as it is. */
+function describeTransmission(tau: number): string | undefined {
+  if (tau === 1) return undefined;
+  const pct = Math.round(100 * tau);
+  if (tau < DIMMED_BELOW) return `dimmed to ${pct} % of the light the other frames saw (a passing cloud, most likely): its exposure counts as ${pct} % and its weight is lowered to match`;
+  return `recorded ${pct} % of the light its stated exposure implies (the shutter's real time differs): its exposure is corrected`;
+}
+
+/** Offsets and transmissions of linear frames, measured on the registered bracket (frame-levels.ts). */
+function measureFrameLevels(frames: LinearFrame[], ready: PreparedFrame[], registration: FrameRegistration[], referenceLimb: LimbFit, width: number, height: number): FrameLevels {
+  const sources: LevelSource[] = ready.map((p, i) => {
+    const excluded = p.linear.masked ? Uint8Array.from(p.linear.clipped, (c, k) => c | p.linear.masked![k]) : p.linear.clipped;
+    return { width, height, luminance: p.luminance, excluded, masterToFrame: registration[i].masterToFrame, noiseSigma: p.linear.noiseSigma };
+  });
+  // Keep well clear of the Moon, which moves between frames, and of its limb light.
+  const moon = { x: referenceLimb.x, y: referenceLimb.y, radiusPx: 1.06 * referenceLimb.radiusPx + 4 };
+  const levelFrames = frames.map((f) => ({ exposureS: f.exposureS, isOffsetKnown: f.blackLevelSource === "calibrated" || f.blackLevelSource === "file" }));
+  // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
+  const placed = registration.map((r) => r.method !== "failed");
+  const result = measureBracketLevels(sources.map((src, i) => (placed[i] ? src : { ...src, excluded: new Uint8Array(width * height).fill(1) })), levelFrames, width, height, moon);
+  return result;
 }
 
 /** Refuses a bracket that cannot be reduced, naming the frame at fault. */
@@ -126,12 +177,15 @@ export function recoverBracketResponse(frames: LinearFrame[], masterToFrame?: Af
   return convertResponseToTable(g);
 }
 
-/** Per-frame stage: linearize, mask and fit the limb. Throws limb-not-found naming the frame. */
+/**
+ * Per-frame stage: linearize, mask and fit the limb. A limb that cannot be found
+ * (a long exposure saturated far beyond it, say) comes back with verdict
+ * "failed": the frame may still register on the corona.
+ */
 export function prepareFrame(frame: LinearFrame, params: ReductionParams, responseTable?: Float64Array): PreparedFrame {
   const linear = linearizeFrame(frame, params.clipFraction, { responseTable, keepPlanes: frame.encoding !== "linear" });
   const luminance = linear.luminance;
   const limb = fitLimb(luminance, linear.width, linear.height, { clipLevel: linear.clipLevel, clipped: linear.clipped, noiseSigma: linear.noiseSigma });
-  if (limb.verdict === "failed") throw new ImagingError("limb-not-found", `the lunar limb could not be found: ${limb.reasons.join("; ")}`, frame.name);
   return { linear, luminance, limb };
 }
 
@@ -147,6 +201,7 @@ export function warpFrameForMerge(
   frameMoon: LunarDisk,
   referenceMoon: LunarDisk,
   scratch?: WarpTarget,
+  effectiveExposureS?: number,
 ): MergeFrameInput {
   const { linear } = prepared;
   const { width, height } = linear;
@@ -158,6 +213,8 @@ export function warpFrameForMerge(
   let covered: Uint8Array;
   let clipped = linear.clipped;
   let noiseFloor = linear.noiseFloor;
+  // Bicubic samples two pixels around: a defect spoils every master pixel whose support holds it.
+  let masked = linear.masked ? dilateMask(linear.masked, width, height, 2) : undefined;
   if (identity) {
     planes = isLinear ? source.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p))) : source;
     covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
@@ -171,6 +228,7 @@ export function warpFrameForMerge(
     const dilated = dilateMask(linear.clipped, width, height, 1, masks ? [masks[0], masks[1]] : undefined);
     clipped = warpMask(dilated, width, height, masterToFrame, window, 1, masks?.[2]);
     noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1, masks?.[3]);
+    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0);
   }
   if (isLinear) {
     const black = frame.blackLevel;
@@ -193,7 +251,7 @@ export function warpFrameForMerge(
       }
     }
   }
-  return { planes, exposureS: linear.exposureS, clipped, noiseFloor, covered, clipLevel: linear.clipLevel };
+  return { planes, exposureS: effectiveExposureS ?? linear.exposureS, clipped, noiseFloor, covered, clipLevel: linear.clipLevel, masked, noiseSigma: linear.noiseSigma };
 }
 
 /** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
@@ -242,8 +300,9 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   // 8-bit frames are linearized with the sRGB curve for limb fits and registration; a
   // recovered response, when asked for, replaces it for the merge (see below).
   let responseTable = isEncoded ? createSrgbDecodeTable() : undefined;
+  const work: LinearFrame[] = frames.slice();
   const ready: PreparedFrame[] = [];
-  frames.forEach((f, i) => {
+  work.forEach((f, i) => {
     ready.push(prepared[i] ?? prepareFrame(f, params, responseTable));
     progress("limb", (i + 1) / frames.length);
   });
@@ -251,31 +310,79 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
 
   progress("register", 0);
   const offsets = params.moonMinusSunPx;
-  const regFrames: RegistrationFrame[] = ready.map((p) => ({
+  const toRegistration = (p: PreparedFrame): RegistrationFrame => ({
     name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
-    noiseSigma: p.linear.noiseSigma, limb: { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx }, moonMinusSunPx: offsets?.[p.linear.name],
-  }));
+    noiseSigma: p.linear.noiseSigma, moonMinusSunPx: offsets?.[p.linear.name],
+    limb: p.limb.verdict === "failed" ? { x: NaN, y: NaN, radiusPx: NaN } : { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx },
+  });
   // Always register on the corona; "moon" mode then moves each frame so that its
   // Moon (or, with offsets, its ephemeris Sun) lands on the reference's, using
   // the Moon path rather than limb fits that clipping has biased.
-  const registration = registerFrames(regFrames, { mode: "corona" });
-  const ref = registration.referenceIndex;
-  let track = estimateMoonTrack(ready.map((p, i) => ({
-    limb: p.limb, masterToFrame: registration.frames[i].masterToFrame, captureTimeMs: frames[i].captureTimeMs, exposureS: p.linear.exposureS,
+  let registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
+  lap("register");
+
+  // Offsets and transmissions from the bracket itself (frame-levels.ts); an offset
+  // found in the data changes the frame's counts, masks and log images, so the
+  // frames are registered again on the corrected light.
+  let levels: FrameLevels | undefined;
+  const transmissionUsed = work.map(() => 1);
+  if (!isEncoded) {
+    progress("levels", 0);
+    levels = measureFrameLevels(work, ready, registration.frames, ready[registration.referenceIndex].limb, width, height);
+    let moved = false;
+    work.forEach((f, i) => {
+      const source = f.blackLevelSource ?? "none";
+      if ((source === "none" || source === "solved") && !levels!.undetermined.includes(i)) {
+        const o = levels!.offsets[i];
+        work[i] = { ...f, blackLevel: f.blackLevel + o, blackLevelSource: "solved" };
+        ready[i] = { ...ready[i], linear: linearizeFrame(work[i], params.clipFraction, { keepPlanes: false }) };
+        ready[i].luminance = ready[i].linear.luminance;
+        if (Math.abs(o) > 3 * Math.max(ready[i].linear.noiseSigma, 1e-9)) moved = true;
+      }
+      const tau = levels!.transmissions[i];
+      const sigma = levels!.transmissionSigmas[i];
+      if (Number.isFinite(tau) && Math.abs(tau - 1) > Math.max(TRANSMISSION_TOLERANCE, 4 * (Number.isFinite(sigma) ? sigma : Infinity))) transmissionUsed[i] = tau;
+    });
+    lap("levels");
+    if (moved) {
+      registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
+      lap("register");
+    }
+  }
+
+  // Frames that neither the corona nor their limb could place are left out, named; the rest go on.
+  const leftOut: FrameLeftOut[] = [];
+  const keep: number[] = [];
+  registration.frames.forEach((r, i) => {
+    if (r.method === "failed") leftOut.push({ name: frames[i].name, reason: r.reason ?? "it could not be registered" });
+    else keep.push(i);
+  });
+  if (keep.length < 2) {
+    throw new ImagingError("too-few-frames", `only ${keep.length} frame could be placed on the Sun: ${leftOut.map((l) => `${l.name}: ${l.reason}`).join("; ")}`);
+  }
+  const use = <T,>(list: T[]) => keep.map((i) => list[i]);
+  const usedFrames = use(work);
+  const usedReady = use(ready);
+  const usedRegistration: FrameRegistration[] = use(registration.frames);
+  const usedTransmission = use(transmissionUsed);
+  const ref = keep.indexOf(registration.referenceIndex);
+
+  let track = estimateMoonTrack(usedReady.map((p, i) => ({
+    limb: p.limb, masterToFrame: usedRegistration[i].masterToFrame, captureTimeMs: usedFrames[i].captureTimeMs, exposureS: p.linear.exposureS,
   })));
   if (params.registration === "moon") {
     const anchor = (i: number) => {
-      const off = offsets?.[frames[i].name] ?? { dx: 0, dy: 0 };
+      const off = offsets?.[usedFrames[i].name] ?? { dx: 0, dy: 0 };
       return { x: track.disks[i].x - off.dx, y: track.disks[i].y - off.dy };
     };
     const refAnchor = anchor(ref);
-    registration.frames.forEach((r, i) => {
+    usedRegistration.forEach((r, i) => {
       const a = anchor(i);
       r.masterToFrame = composeAffine(r.masterToFrame, { a: 1, b: 0, tx: a.x - refAnchor.x, ty: a.y - refAnchor.y });
     });
     // Every anchor now sits on the reference's, so each frame's Moon is the reference anchor plus its own offset.
     track = {
-      disks: frames.map((f, i) => {
+      disks: usedFrames.map((f, i) => {
         const off = offsets?.[f.name] ?? { dx: 0, dy: 0 };
         return { x: refAnchor.x + off.dx, y: refAnchor.y + off.dy, radiusPx: track.disks[i].radiusPx };
       }),
@@ -283,9 +390,8 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     };
   }
   lap("register");
-  // Luminance served the limb fits and registration only: letting each frame's copy
+  // Luminance served the limb fits, levels and registration only: letting each frame's copy
   // go here keeps a bracket's worth of it from sitting beside the merge buffers.
-  regFrames.length = 0;
   for (const p of ready) {
     p.luminance = RELEASED_PLANE;
     p.linear.luminance = RELEASED_PLANE;
@@ -294,9 +400,9 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const referenceMoon: LunarDisk = track.disks[ref];
   if (isEncoded && params.recoverResponse) {
     progress("response", 0);
-    responseTable = recoverBracketResponse(frames, registration.frames.map((r) => r.masterToFrame), referenceMoon);
-    ready.forEach((p, i) => {
-      p.linear = linearizeFrame(frames[i], params.clipFraction, { responseTable });
+    responseTable = recoverBracketResponse(usedFrames, usedRegistration.map((r) => r.masterToFrame), referenceMoon);
+    usedReady.forEach((p, i) => {
+      p.linear = linearizeFrame(usedFrames[i], params.clipFraction, { responseTable });
     });
     lap("response");
   }
@@ -306,17 +412,29 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     covered: new Uint8Array(width * height),
     masks: Array.from({ length: 4 }, () => new Uint8Array(width * height)),
   };
-  const acc = createMergeAccumulator(width, height, frames[0].image.planes.length, isEncoded ? "debevec-hat" : "photon", isEncoded ? createCodeLookup(responseTable!) : undefined);
-  ready.forEach((p, i) => {
-    addFrameToMerge(acc, warpFrameForMerge(frames[i], p, registration.frames[i].masterToFrame, track.disks[i], referenceMoon, scratch));
-    progress("merge", (i + 1) / ready.length);
-  });
+  const channels = frames[0].image.planes.length;
+  const effectiveExposures = usedReady.map((p, i) => p.linear.exposureS * usedTransmission[i]);
+  const mergePass = (acc: MergeAccumulator, stage: string) => {
+    usedReady.forEach((p, i) => {
+      addFrameToMerge(acc, warpFrameForMerge(usedFrames[i], p, usedRegistration[i].masterToFrame, track.disks[i], referenceMoon, scratch, effectiveExposures[i]));
+      progress(stage, (i + 1) / usedReady.length);
+    });
+    return acc;
+  };
+  let acc: MergeAccumulator;
+  if (isEncoded) {
+    acc = mergePass(createMergeAccumulator(width, height, channels, "debevec-hat", createCodeLookup(responseTable!)), "merge");
+  } else {
+    // Linear data: a first pass gives the pilot radiance; the second weighs by it and rejects outliers against it.
+    const pilot = mergePass(createMergeAccumulator(width, height, channels, "photon"), "merge-pilot");
+    acc = mergePass(createMergeAccumulator(width, height, channels, "photon", undefined, toPilot(pilot)), "merge");
+  }
   const merged: MergeResult = finishMerge(acc);
   const master: PlaneImage = { width, height, planes: merged.radiance };
   lap("warp-and-merge");
 
   progress("renditions", 0);
-  const refOffset = offsets?.[frames[ref].name];
+  const refOffset = offsets?.[usedFrames[ref].name];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
   const outsideMoon = createValidMask(width, height, referenceMoon);
@@ -338,15 +456,34 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     poorlyExposedCount: merged.poorlyExposedCount,
     natural: natural.image,
     structure,
-    frames: ready.map((p, i) => ({
-      name: p.linear.name, width, height, exposureS: p.linear.exposureS, limb: p.limb,
-      transform: fromAffine(registration.frames[i].masterToFrame, width, height),
-      registrationPeak: registration.frames[i].peak,
-      registeredAgainst: registration.frames[i].neighbour >= 0 ? frames[registration.frames[i].neighbour].name : null,
-      weights: merged.frameStats[i],
-    })),
+    frames: usedReady.map((p, i) => {
+      const k = keep[i];
+      const r = usedRegistration[i];
+      const source = work[k].blackLevelSource ?? (isEncoded ? undefined : "none");
+      const undetermined = levels?.undetermined.includes(k) ?? false;
+      const tau = usedTransmission[i];
+      return {
+        name: p.linear.name, width, height, exposureS: p.linear.exposureS, limb: p.limb,
+        transform: fromAffine(r.masterToFrame, width, height),
+        registrationPeak: r.peak,
+        registeredAgainst: r.neighbour >= 0 ? frames[r.neighbour].name : null,
+        registrationMethod: r.method === "failed" ? "limb" : r.method,
+        registrationNote: r.method === "limb" ? `placed by its limb fit alone: ${r.reason}` : undefined,
+        offset: isEncoded ? undefined : {
+          dn: work[k].blackLevel,
+          source: source!,
+          sigmaDn: source === "solved" && levels ? levels.offsetSigmas[k] : undefined,
+          note: undetermined && source === "none" ? "its offset could not be determined: no other frame sees enough of the same sky well; taken as zero" : undefined,
+        },
+        transmission: tau,
+        effectiveExposureS: effectiveExposures[i],
+        transmissionNote: describeTransmission(tau),
+        weights: merged.frameStats[i],
+      };
+    }),
+    leftOut,
     overall: {
-      referenceFrame: frames[ref].name,
+      referenceFrame: usedFrames[ref].name,
       moonCentre: { x: referenceMoon.x, y: referenceMoon.y },
       moonRadiusPx: referenceMoon.radiusPx,
       moonSource: track.sources[ref],

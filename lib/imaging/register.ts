@@ -41,6 +41,21 @@ export interface RegistrationFrame {
   limb: { x: number; y: number; radiusPx: number };
   /** Moon minus Sun in master pixels, when the ephemeris gives it. */
   moonMinusSunPx?: { dx: number; dy: number };
+  /**
+   * True when the frame's own limb could not be found and `limb` is the reference
+   * frame's (see assumeMissingLimbs): the frame starts from the reference's pointing.
+   */
+  limbAssumed?: boolean;
+}
+
+/**
+ * Frames whose limb fit failed (NaN) take the limb of the given reference, so
+ * that they start from its pointing (pointing errors within a bracket are a few
+ * pixels) and mask the Moon where it is; such frames are marked limbAssumed.
+ */
+export function assumeMissingLimbs(frames: RegistrationFrame[], referenceIndex: number): RegistrationFrame[] {
+  const ref = frames[referenceIndex];
+  return frames.map((f) => (Number.isFinite(f.limb.x) && Number.isFinite(f.limb.radiusPx) ? f : { ...f, limb: { ...ref.limb }, moonMinusSunPx: ref.moonMinusSunPx, limbAssumed: true }));
 }
 
 export interface RegistrationOptions {
@@ -57,6 +72,15 @@ export interface FrameRegistration {
   peak: number;
   /** Index of the frame this one was compared with; -1 for the reference. */
   neighbour: number;
+  /**
+   * "corona": refined on the corona; "limb": the corona comparison failed and the
+   * limb fit (with the ephemeris offset when known) placed the frame; "failed":
+   * neither could, and `reason` says why; "reference": the reference frame.
+   */
+  method: "reference" | "corona" | "limb" | "failed";
+  reason?: string;
+  /** Correlation of the aligned high-passed corona with the neighbour's (see MIN_STRUCTURE_CORRELATION). */
+  similarity?: number;
 }
 
 /** Signal-to-noise a pixel needs to take part in registration (common practice: log noise below 10 %). */
@@ -108,9 +132,14 @@ interface RegionGrid extends Required<WarpWindow> {
   moonRadiusPx: number;
 }
 
-function defineRegion(ref: RegistrationFrame): RegionGrid {
+/**
+ * The comparison window around the Sun: `radiiAcross` Moon radii on a side
+ * (6 by default: out to 3 radii, where short and middle exposures hold the
+ * corona's structure), at most the frame.
+ */
+function defineRegion(ref: RegistrationFrame, radiiAcross = 6): RegionGrid {
   const anchor = computeAnchor(ref);
-  const extent = Math.min(6 * ref.limb.radiusPx, ref.width, ref.height);
+  const extent = Math.min(radiiAcross * ref.limb.radiusPx, ref.width, ref.height);
   const step = Math.max(1, Math.ceil(extent / MAX_WINDOW));
   const size = Math.min(MAX_WINDOW, Math.ceil(extent / step));
   return {
@@ -166,7 +195,8 @@ function buildLogImage(frame: RegistrationFrame, source: SourceImage, masterToFr
   const n = region.width * region.height;
   const values = new Float64Array(n);
   const valid = new Uint8Array(n);
-  const floor = Math.max(MIN_SNR * frame.noiseSigma, 1e-30);
+  // A step-s source pixel is the mean of s^2 frame pixels: its dark noise is sigma / s.
+  const floor = Math.max((MIN_SNR * frame.noiseSigma) / region.step, 1e-30);
   // The Moon of this frame, in master coordinates, with a margin for the PSF and the fit.
   const toMaster = invertAffine(masterToFrame);
   const moon = applyAffine(toMaster, frame.limb.x, frame.limb.y);
@@ -282,10 +312,23 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
   const jtr = new Float64Array(k);
   const row = new Float64Array(k);
   let count = 0;
+  const usable = (i: number) => referenceValid[i] && movingValid[i] && movingValid[i - 1] && movingValid[i + 1] && movingValid[i - width] && movingValid[i + width];
+  // Robust scale of the noise-normalized residuals (1.4826 MAD) for Tukey's biweight
+  // (Beaton and Tukey 1974, c = 4.685): a trail, a cosmic ray or a hot pixel in one
+  // frame is structure the other lacks, and must not pull the alignment.
+  const normalized: number[] = [];
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
       const i = v * width + u;
-      if (!referenceValid[i] || !movingValid[i] || !movingValid[i - 1] || !movingValid[i + 1] || !movingValid[i - width] || !movingValid[i + width]) continue;
+      if (usable(i)) normalized.push(Math.abs(reference[i] - moving[i]) * Math.sqrt(weights ? weights[i] : 1));
+    }
+  }
+  normalized.sort((a, b) => a - b);
+  const cutoff = 4.685 * 1.4826 * (normalized[normalized.length >> 1] ?? 0);
+  for (let v = 1; v < height - 1; v++) {
+    for (let u = 1; u < width - 1; u++) {
+      const i = v * width + u;
+      if (!usable(i)) continue;
       // Gradients per master pixel.
       const gx = (moving[i + 1] - moving[i - 1]) / (2 * step);
       const gy = (moving[i + width] - moving[i - width]) / (2 * step);
@@ -296,7 +339,10 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
       row[2] = -gx * y + gy * x;
       if (withScale) row[3] = gx * x + gy * y;
       const r = reference[i] - moving[i];
-      const w = weights ? weights[i] : 1;
+      const base = weights ? weights[i] : 1;
+      const u2 = cutoff > 0 ? (Math.abs(r) * Math.sqrt(base)) / cutoff : 0;
+      if (u2 >= 1) continue;
+      const w = base * (1 - u2 * u2) ** 2;
       for (let p = 0; p < k; p++) {
         jtr[p] += w * row[p] * r;
         for (let q = 0; q < k; q++) jtj[p * k + q] += w * row[p] * row[q];
@@ -346,7 +392,7 @@ export function refineAgainstNeighbour(
   neighbourTransform: AffineSimilarity,
   region: RegionGrid,
   options: { estimateScale?: boolean; maxIterations?: number; searchRadiusPx?: number } = {},
-): { masterToFrame: AffineSimilarity; peak: number; iterations: number; confined: boolean } {
+): { masterToFrame: AffineSimilarity; peak: number; iterations: number; confined: boolean; similarity: number } {
   const searchRadiusPx = options.searchRadiusPx ?? computeSearchRadiusPx(region.moonRadiusPx);
   const source = createSourceImage(frame, region.step);
   const neighbourSource = createSourceImage(neighbour, region.step);
@@ -382,7 +428,33 @@ export function refineAgainstNeighbour(
     const radius = 0.4 * region.width * region.step;
     if (Math.hypot(delta[0], delta[1]) + Math.abs(delta[2]) * radius + Math.abs(delta[3] ?? 0) * radius < 2e-3) break;
   }
-  return { masterToFrame: m, peak, iterations, confined };
+  // Aligned frames of one corona share its structure: their high-passed log images
+  // correlate. A blank, fogged or wrongly chosen frame does not, whatever the fit said.
+  const moving = buildLogImage(frame, source, m, region);
+  const { common } = intersectMasks(refLog.valid, moving.valid);
+  const similarity = correlateNormalized(highPass(moving, region, common), highPass(refLog, region, common), common);
+  if (!(similarity >= MIN_STRUCTURE_CORRELATION)) {
+    throw new ImagingError("registration-failed", `its corona shares no structure with ${neighbour.name} (correlation ${similarity.toFixed(2)})`, frame.name);
+  }
+  return { masterToFrame: m, peak, iterations, confined, similarity };
+}
+
+/** Below this normalized correlation of the aligned high-passed images, a frame is taken not to show the corona its neighbour shows. */
+export const MIN_STRUCTURE_CORRELATION = 0.1;
+
+/** Pearson correlation of two images over the common pixels (0 when either is flat there). */
+export function correlateNormalized(a: Float64Array, b: Float64Array, common: Uint8Array): number {
+  let n = 0, sa = 0, sb = 0;
+  for (let i = 0; i < common.length; i++) if (common[i]) { n++; sa += a[i]; sb += b[i]; }
+  if (n < 2) return 0;
+  const ma = sa / n, mb = sb / n;
+  let saa = 0, sbb = 0, sab = 0;
+  for (let i = 0; i < common.length; i++) {
+    if (!common[i]) continue;
+    const da = a[i] - ma, db = b[i] - mb;
+    saa += da * da; sbb += db * db; sab += da * db;
+  }
+  return saa > 0 && sbb > 0 ? sab / Math.sqrt(saa * sbb) : 0;
 }
 
 /** Among registered frames, the one whose valid pixels overlap frame i's most (the latest registered on a tie). */
@@ -402,9 +474,12 @@ export function chooseNeighbour(valid: Uint8Array[], i: number, registered: numb
 /** Registers every frame to the reference; see the notes at the top of this file. */
 export function registerFrames(frames: RegistrationFrame[], options: RegistrationOptions): { referenceIndex: number; frames: FrameRegistration[] } {
   if (frames.length === 0) throw new ImagingError("too-few-frames", "registration needs frames");
-  const referenceIndex = options.referenceIndex ?? chooseReferenceFrame(frames.map((f) => f.exposureS));
+  const withLimb = frames.map((f, i) => i).filter((i) => Number.isFinite(frames[i].limb.x) && Number.isFinite(frames[i].limb.radiusPx));
+  if (withLimb.length === 0) throw new ImagingError("limb-not-found", "the lunar limb could not be found in any frame");
+  const referenceIndex = options.referenceIndex ?? withLimb[chooseReferenceFrame(withLimb.map((i) => frames[i].exposureS))];
+  frames = assumeMissingLimbs(frames, referenceIndex);
   const start = computeInitialTransforms(frames, referenceIndex);
-  const result: FrameRegistration[] = frames.map((_, i) => ({ masterToFrame: start[i], peak: NaN, neighbour: -1 }));
+  const result: FrameRegistration[] = frames.map((_, i) => ({ masterToFrame: start[i], peak: NaN, neighbour: -1, method: i === referenceIndex ? "reference" : "failed" }));
   const region = defineRegion(frames[referenceIndex]);
   const order = frames.map((_, i) => i).sort((a, b) => frames[a].exposureS - frames[b].exposureS || a - b);
   const refPos = order.indexOf(referenceIndex);
@@ -412,19 +487,45 @@ export function registerFrames(frames: RegistrationFrame[], options: Registratio
   // frame it shares the most well-exposed corona with (at the start maps), which is
   // usually its neighbour in exposure but not when that one is clipped or faint where this one is good.
   const validAtStart = frames.map((f, i) => buildLogImage(f, createSourceImage(f, region.step), start[i], region).valid);
+  // Long exposures are saturated over the inner corona and well exposed only far out:
+  // when the usual window holds too little of both frames, they are compared over the whole frame.
+  let wide: RegionGrid | undefined;
   const registered = [referenceIndex];
   for (const chain of [order.slice(0, refPos).reverse(), order.slice(refPos + 1)]) {
     for (const i of chain) {
       const neighbour = chooseNeighbour(validAtStart, i, registered);
-      const refined = refineAgainstNeighbour(frames[i], start[i], frames[neighbour], result[neighbour].masterToFrame, region, { estimateScale: options.estimateScale });
-      result[i] = { masterToFrame: refined.masterToFrame, peak: refined.peak, neighbour };
-      registered.push(i);
+      // A frame without its own limb starts from the reference's pointing: allow a wider search.
+      const searchRadiusPx = frames[i].limbAssumed ? Math.max(3 * computeSearchRadiusPx(region.moonRadiusPx), 12) : undefined;
+      const attempt = (r: RegionGrid) => refineAgainstNeighbour(frames[i], start[i], frames[neighbour], result[neighbour].masterToFrame, r, { estimateScale: options.estimateScale, searchRadiusPx });
+      try {
+        let refined;
+        try {
+          refined = attempt(region);
+        } catch (error) {
+          if (!(error instanceof ImagingError && error.code === "registration-failed")) throw error;
+          wide ??= defineRegion(frames[referenceIndex], Infinity);
+          refined = attempt(wide);
+        }
+        result[i] = { masterToFrame: refined.masterToFrame, peak: refined.peak, neighbour, method: "corona", similarity: refined.similarity };
+        registered.push(i);
+      } catch (error) {
+        if (!(error instanceof ImagingError)) throw error;
+        // The limb (and the ephemeris, when offsets are given) still places a frame whose limb was found.
+        if (!frames[i].limbAssumed) {
+          result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "limb", reason: error.detail };
+          registered.push(i);
+        } else {
+          result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "failed", reason: `${error.detail}, and its lunar limb could not be found either` };
+        }
+      }
     }
   }
   if (options.mode === "moon") {
     // Keep rotation and scale from the corona; put each frame's anchor (Moon, or Sun by ephemeris) onto the reference's.
     const refAnchor = computeAnchor(frames[referenceIndex]);
     frames.forEach((f, i) => {
+      // An assumed limb is the reference's, not this frame's Moon: such a frame keeps its corona registration.
+      if (f.limbAssumed) return;
       const m = result[i].masterToFrame;
       const a = computeAnchor(f);
       result[i].masterToFrame = { a: m.a, b: m.b, tx: a.x - (m.a * refAnchor.x - m.b * refAnchor.y), ty: a.y - (m.b * refAnchor.x + m.a * refAnchor.y) };

@@ -56,7 +56,28 @@ export interface SynthOptions {
   noise?: boolean;
   captureStartMs?: number;
   frameIntervalS?: number;
+  /** Offset (bias pedestal) per frame in DN, overriding blackLevel frame by frame; a real camera's pedestal may drift a little. */
+  blackLevels?: number[];
+  /** A satellite or aircraft trail in one frame: a straight streak in frame pixels, peak DN above the scene (it crosses in far less than the exposure). */
+  trail?: SynthTrail;
+  /** A passing thin cloud: the scene's light is multiplied by this transmission (0..1] in the given frames. */
+  clouds?: { frame: number; transmission: number }[];
+  /** Defects fixed on the sensor (frame pixels, the same in every frame): a hot pixel adds dark current, a stuck one always reads its level. */
+  sensorDefects?: SynthDefect[];
 }
+
+export interface SynthTrail {
+  frame: number;
+  from: { x: number; y: number };
+  to: { x: number; y: number };
+  /** Gaussian profile across the streak, px. */
+  sigmaPx: number;
+  peakDn: number;
+}
+
+export type SynthDefect =
+  | { kind: "hot"; x: number; y: number; dnPerS: number }
+  | { kind: "stuck"; x: number; y: number; levelDn: number };
 
 export interface SynthFrame {
   name: string;
@@ -64,6 +85,8 @@ export interface SynthFrame {
   captureTimeMs: number;
   /** DN including the black level, rounded and clipped at the white level. */
   planes: Float32Array[];
+  /** This frame's offset (bias pedestal), DN. */
+  blackLevel: number;
 }
 
 export interface SynthTruth {
@@ -82,6 +105,10 @@ export interface SynthTruth {
   transforms: SimilarityTransform[];
   whiteLevel: number;
   blackLevel: number;
+  /** Offset of each frame, DN. */
+  blackLevels: number[];
+  /** Light of the trail, if any, in its frame's pixels, DN (for checks of what a merge leaves of it). */
+  trailDn?: Float32Array;
 }
 
 interface Streamer { angle: number; amplitude: number; widthRad: number }
@@ -167,6 +194,29 @@ function evaluateProminences(s: Scene, x: number, y: number): number {
   return v;
 }
 
+/** A straight streak with a Gaussian cross-section, DN per pixel, in frame pixels. */
+function renderTrail(trail: SynthTrail, width: number, height: number): Float32Array {
+  const out = new Float32Array(width * height);
+  const dx = trail.to.x - trail.from.x;
+  const dy = trail.to.y - trail.from.y;
+  const length = Math.hypot(dx, dy);
+  const ux = length > 0 ? dx / length : 1;
+  const uy = length > 0 ? dy / length : 0;
+  const reach = 4 * trail.sigmaPx;
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const px = x - trail.from.x;
+      const py = y - trail.from.y;
+      const along = px * ux + py * uy;
+      if (along < 0 || along > length) continue;
+      const across = Math.abs(px * uy - py * ux);
+      if (across > reach) continue;
+      out[y * width + x] = trail.peakDn * Math.exp((-0.5 * across * across) / (trail.sigmaPx * trail.sigmaPx));
+    }
+  }
+  return out;
+}
+
 const SUPERSAMPLE_EDGE = [-0.375, -0.125, 0.125, 0.375];
 
 /**
@@ -193,6 +243,9 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
   const whiteLevel = o.whiteLevel ?? 16383;
   const blackLevel = o.blackLevel ?? 512;
   requireOption(whiteLevel > blackLevel && blackLevel >= 0, "whiteLevel", `must exceed blackLevel (${blackLevel}), got ${whiteLevel}`);
+  requireOption(o.blackLevels === undefined || (o.blackLevels.length === exposuresS.length && o.blackLevels.every((b) => b >= 0 && b < whiteLevel)), "blackLevels", `must give one offset in [0, whiteLevel) per exposure (${exposuresS.length})`);
+  for (const c of o.clouds ?? []) requireOption(Number.isInteger(c.frame) && c.frame >= 0 && c.frame < exposuresS.length && c.transmission > 0 && c.transmission <= 1, "clouds", `need a frame index and a transmission in (0, 1], got ${JSON.stringify(c)}`);
+  requireOption(o.trail === undefined || (Number.isInteger(o.trail.frame) && o.trail.frame >= 0 && o.trail.frame < exposuresS.length && o.trail.sigmaPx > 0), "trail", "needs a frame index and a positive width");
   const readNoise = o.readNoiseDn ?? 2.5;
   const gain = o.electronsPerDn ?? 1;
   const psf = o.psfSigmaPx ?? 1;
@@ -211,6 +264,8 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
   const moonInFrame: { x: number; y: number }[] = [];
   const moonMinusSunPx: { dx: number; dy: number }[] = [];
   const frames: SynthFrame[] = [];
+  const blackLevels: number[] = [];
+  let trailDn: Float32Array | undefined;
   const start = o.captureStartMs ?? Date.UTC(2027, 7, 2, 10, 3, 0);
   const interval = o.frameIntervalS ?? 1.5;
 
@@ -277,17 +332,31 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
       rates.push(psf > 0 ? blurGaussian(r, width, height, psf) : r);
     }
     const exposureS = exposuresS[f];
+    const frameBlack = o.blackLevels?.[f] ?? blackLevel;
+    const transmission = o.clouds?.find((c) => c.frame === f)?.transmission ?? 1;
+    const trail = o.trail?.frame === f ? renderTrail(o.trail, width, height) : undefined;
+    if (trail) trailDn = trail;
+    const hot = new Map<number, number>();
+    const stuck = new Map<number, number>();
+    for (const d of o.sensorDefects ?? []) {
+      const i = Math.round(d.y) * width + Math.round(d.x);
+      if (d.kind === "hot") hot.set(i, d.dnPerS);
+      else stuck.set(i, d.levelDn);
+    }
     const planes = rates.map((rate) => {
       const dn = new Float32Array(plane);
       for (let i = 0; i < plane; i++) {
-        const mean = Math.max(0, rate[i]) * exposureS;
+        const mean = Math.max(0, rate[i]) * exposureS * transmission + (trail ? trail[i] : 0) + (hot.get(i) ?? 0) * exposureS;
         let v = o.noise === false ? mean : samplePoisson(rng, mean * gain) / gain + readNoise * sampleGaussian(rng);
-        v = Math.round(v + blackLevel);
+        v = Math.round(v + frameBlack);
+        const level = stuck.get(i);
+        if (level !== undefined) v = level;
         dn[i] = v < 0 ? 0 : v > whiteLevel ? whiteLevel : v;
       }
       return dn;
     });
-    frames.push({ name: `synthetic-${String(f + 1).padStart(2, "0")}.fits`, exposureS, captureTimeMs: start + f * interval * 1000, planes });
+    blackLevels.push(frameBlack);
+    frames.push({ name: `synthetic-${String(f + 1).padStart(2, "0")}.fits`, exposureS, captureTimeMs: start + f * interval * 1000, planes, blackLevel: frameBlack });
   }
 
   const radiance: Float32Array[] = [];
@@ -308,6 +377,6 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
   }
   return {
     frames,
-    truth: { radiance, sunCentre: sun, sunRadiusPx, moonRadiusPx: moonR, moonScene, moonInFrame, moonMinusSunPx, transforms, whiteLevel, blackLevel },
+    truth: { radiance, sunCentre: sun, sunRadiusPx, moonRadiusPx: moonR, moonScene, moonInFrame, moonMinusSunPx, transforms, whiteLevel, blackLevel, blackLevels, trailDn },
   };
 }

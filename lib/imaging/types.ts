@@ -32,6 +32,12 @@ export interface LinearFrame {
    * out of the limb fit, registration and merge, never interpolated into the data.
    */
   badPixels?: Uint8Array;
+  /**
+   * Pixels that reached the sensor's white level before calibration, 1 = saturated.
+   * Calibrated planes (offset subtracted, divided by a flat) no longer show where the
+   * sensor clipped, so the calibration step hands the mask on; it counts as clipped.
+   */
+  saturated?: Uint8Array;
   /** Where blackLevel came from; "calibrated" when bias or dark frames were already subtracted from the planes. */
   blackLevelSource?: BlackLevelSource;
 }

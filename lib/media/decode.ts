@@ -19,8 +19,27 @@ export interface DecodedFrame {
   /** Pedestal and saturation in the planes' units (data numbers). */
   blackLevel: number;
   whiteLevel: number;
+  /** "file" when the file states its offset (or the raw decoder removed it), "none" when a linear file says nothing. */
+  blackLevelSource?: "file" | "none";
   encoding: "linear" | "srgb8";
   metadata: FrameMetadata;
+}
+
+/**
+ * The offset (bias pedestal) a FITS file states, DN in the stored data's units:
+ * BLKLEVEL or BLACKLEV give it directly. PEDESTAL is written by some acquisition
+ * software as the value to add to reach zero-based data (negative, e.g. -100 for a
+ * 100 DN pedestal) and by others as the pedestal itself; either way its size is the
+ * offset. Undefined when no card says it.
+ */
+export function readFitsOffset(header: Map<string, unknown>): number | undefined {
+  for (const key of ["BLKLEVEL", "BLACKLEV"]) {
+    const v = header.get(key);
+    if (typeof v === "number" && Number.isFinite(v) && v >= 0) return v;
+  }
+  const pedestal = header.get("PEDESTAL");
+  if (typeof pedestal === "number" && Number.isFinite(pedestal)) return Math.abs(pedestal);
+  return undefined;
 }
 
 /** FITS saturation: the SATURATE card when given, else the largest value the integer type holds. */
@@ -50,12 +69,14 @@ export async function decodeFrame(input: Buffer | string, name: string): Promise
     if (planes.length !== 1 && planes.length !== 3) {
       throw new MediaError("unsupported", name, `NAXIS3 = ${planes.length}: a frame has 1 plane (mono) or 3 (red, green, blue), not ${planes.length}`);
     }
+    const offset = readFitsOffset(fits.header);
     return {
       name,
       format,
       image: { width, height, planes },
       bitDepth: Math.abs(fits.bitpix),
-      blackLevel: 0,
+      blackLevel: offset ?? 0,
+      blackLevelSource: offset === undefined ? "none" : "file",
       whiteLevel: fitsWhiteLevel(fits.bitpix, fits.bzero, fits.bscale, fits.header),
       encoding: "linear",
       metadata: readFitsMetadata(fits.header, name),
@@ -79,6 +100,8 @@ async function decodeRasterFrame(input: Buffer | string, name: string, format: M
     bitDepth: pixels.bitDepth,
     blackLevel: 0,
     whiteLevel: is8 ? 255 : 65535,
+    // LibRaw subtracts the raw file's own black level; a 16-bit raster says nothing of its offset.
+    blackLevelSource: is8 ? undefined : isRaw ? "file" : "none",
     encoding: is8 ? "srgb8" : "linear",
     metadata,
   };
@@ -100,6 +123,7 @@ export function toLinearFrame(decoded: DecodedFrame, exposureOverrideS?: number)
     exposureS,
     blackLevel: decoded.blackLevel,
     whiteLevel: decoded.whiteLevel,
+    blackLevelSource: decoded.blackLevelSource,
     encoding: decoded.encoding,
     captureTimeMs: decoded.metadata.captureTimeMs,
   };

@@ -25,8 +25,8 @@ export function describePhenomenon(p: string): string {
 export function buildTimelineCalendar(plan: PlanResult, context: { eclipseId: string; siteName: string; latDeg: number; lonDeg: number }): string {
   const events: EventAttributes[] = plan.timeline.map((e) => ({
     uid: `${context.eclipseId}-${e.key}-${context.latDeg.toFixed(4)}-${context.lonDeg.toFixed(4)}@crownlight`,
-    // iCalendar times have whole seconds; contact times carry milliseconds.
-    start: Math.round(e.utcMs / 1000) * 1000,
+    // The timeline is already in whole seconds (iCalendar has no fractions), as the page shows it.
+    start: e.utcMs,
     startInputType: "utc",
     startOutputType: "utc",
     // Contacts are instants; a one-minute event shows in every calendar.

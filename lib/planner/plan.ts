@@ -68,14 +68,20 @@ const EDGE_PHENOMENA: Phenomenon[] = ["bailys-beads", "chromosphere"];
 
 export const PLAN_PHENOMENA: Phenomenon[] = [...PARTIAL_PHENOMENA, ...EDGE_PHENOMENA, ...TOTALITY_PHENOMENA];
 
+/** Contact times are known to about a second; everything shown to people is rounded to the nearest one. */
+export function roundToSecondMs(utcMs: number): number {
+  return Math.round(utcMs / 1000) * 1000;
+}
+
 function event(key: TimelineKey, label: string, c: ContactEvent, c2: number | null, advice: string): TimelineEvent {
   return {
     key,
     label,
-    utcMs: c.utcMs,
+    // Whole seconds, once: the page, the countdown and the calendar file all show this same instant.
+    utcMs: roundToSecondMs(c.utcMs),
     sunAltDeg: c.sunApparentAltDeg,
     sunAzDeg: c.sunAzDeg,
-    fromSecondContactS: c2 === null ? null : Math.round((c.utcMs - c2) / 1000),
+    fromSecondContactS: c2 === null ? null : Math.round((roundToSecondMs(c.utcMs) - roundToSecondMs(c2)) / 1000),
     advice,
   };
 }
@@ -123,7 +129,8 @@ export function computeFieldPlan(input: PlanInput): PlanResult {
     : input.site;
   const state = computeSunMoonState(at, circumstances.maximum.utcMs);
   const pDeg = state.pDeg;
-  const ladder = buildExposureLadder({ fNumber: input.kit.fNumber * (input.kit.teleconverter ?? 1), isos: input.isos, phenomena: PLAN_PHENOMENA });
+  // Without totality there is no corona to bracket: only the filtered partial phase.
+  const ladder = buildExposureLadder({ fNumber: input.kit.fNumber * (input.kit.teleconverter ?? 1), isos: input.isos, phenomena: central ? PLAN_PHENOMENA : PARTIAL_PHENOMENA });
 
   let northInImageDeg: number | null = null;
   if (input.kit.mount) {

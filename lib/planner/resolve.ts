@@ -10,24 +10,31 @@ import { findKit } from "@/lib/kits/kits";
 import { findOwnSite } from "@/lib/sites/sites";
 import type { PlanInput } from "./plan";
 import { strictNumber } from "@/lib/strict-number";
+import { SENSOR_FORMAT_KEYS, resolveSensor } from "./sensor-formats";
 
-const optionalNumber = (min: number, max: number, what: string) =>
-  z
-    .union([z.literal(""), strictNumber(z.number({ error: `expected a number (${what})` }).min(min, { error: `must be at least ${min} (${what})` }).max(max, { error: `must be at most ${max} (${what})` }))])
+// Numbers in plain decimal notation only (lib/strict-number.ts): "0x20" is not 32.
+const optionalNumber = (min: number, max: number, unit: string) => {
+  const expected = `expected a number from ${min} to ${max}${unit ? ` ${unit}` : ""}`;
+  return z
+    .union([z.literal(""), strictNumber(z.number({ error: expected }).min(min, { error: expected }).max(max, { error: expected }))], { error: expected })
     .optional()
     .transform((v) => (v === "" || v === undefined ? undefined : v));
+};
 
 export const plannerQuerySchema = z.object({
   eclipse: z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date like 2027-08-02" }).optional(),
-  site: z.union([z.literal(""), z.uuid({ error: "expected a saved site" })]).optional(),
-  lat: optionalNumber(-90, 90, "latitude in degrees"),
-  lon: optionalNumber(-180, 180, "longitude in degrees"),
-  elev: optionalNumber(-500, 9000, "elevation in metres"),
-  place: z.string().trim().max(80).optional(),
-  kit: z.union([z.literal(""), z.uuid({ error: "expected a saved kit" })]).optional(),
-  f: optionalNumber(0.5, 128, "f-number"),
-  focal: optionalNumber(1, 20_000, "focal length in mm"),
-  mount: z.union([z.literal(""), z.enum(MOUNTS)]).optional(),
+  site: z.union([z.literal(""), z.uuid()], { error: "expected one of your saved sites" }).optional(),
+  lat: optionalNumber(-90, 90, "degrees (north positive)"),
+  lon: optionalNumber(-180, 180, "degrees (east positive)"),
+  elev: optionalNumber(-500, 9000, "metres"),
+  place: z.string().trim().max(80, { error: "expected at most 80 characters" }).optional(),
+  kit: z.union([z.literal(""), z.uuid()], { error: "expected one of your saved kits" }).optional(),
+  f: optionalNumber(0.5, 128, ""),
+  focal: optionalNumber(1, 20_000, "mm"),
+  mount: z.union([z.literal(""), z.enum(MOUNTS)], { error: "expected one of the mounts in the list" }).optional(),
+  sensor: z.union([z.literal(""), z.literal("custom"), z.enum(SENSOR_FORMAT_KEYS)], { error: "expected one of the sensor formats in the list" }).optional(),
+  sw: optionalNumber(1, 100, "mm"),
+  sh: optionalNumber(1, 100, "mm"),
   isos: z
     .string()
     .optional()
@@ -47,13 +54,71 @@ export const plannerQuerySchema = z.object({
       try {
         new Intl.DateTimeFormat("en", { timeZone: zone });
       } catch {
-        ctx.addIssue({ code: "custom", message: `unknown time zone "${zone}"` });
+        ctx.addIssue({ code: "custom", message: "expected a time zone from the list, such as Europe/Madrid" });
         return z.NEVER;
       }
       return zone;
     }),
 });
 export type PlannerQuery = z.infer<typeof plannerQuerySchema>;
+
+/** What a visitor reads beside each field of the planner's form. */
+export const PLANNER_FIELD_LABELS: Record<keyof PlannerQuery, string> = {
+  eclipse: "Eclipse",
+  site: "One of your sites",
+  lat: "Latitude",
+  lon: "Longitude",
+  elev: "Elevation",
+  place: "Place name",
+  kit: "One of your kits",
+  f: "",
+  focal: "Focal length",
+  mount: "Mount",
+  sensor: "Sensor",
+  sw: "Sensor width",
+  sh: "Sensor height",
+  isos: "ISO speeds",
+  tz: "Time zone",
+};
+
+export interface PlannerFieldProblem {
+  field: keyof PlannerQuery;
+  label: string;
+  /** A sentence for people: the label, what was expected and what came. */
+  message: string;
+}
+
+/**
+ * The planner's address read field by field, for the page: a bad value is left out (the
+ * field falls back to its default) and reported beside its field, so one typo in a shared
+ * link never throws the rest of the plan away.
+ */
+export function parsePlannerQuery(raw: Record<string, string | string[] | undefined>): { query: PlannerQuery; problems: PlannerFieldProblem[] } {
+  const shape = plannerQuerySchema.shape;
+  const clean: Record<string, string> = {};
+  const problems: PlannerFieldProblem[] = [];
+  for (const key of Object.keys(shape) as (keyof PlannerQuery)[]) {
+    const value = raw[key];
+    // A key given twice (?lat=1&lat=2): the first one counts.
+    const text = Array.isArray(value) ? value[0] : value;
+    if (text === undefined) continue;
+    const one = shape[key].safeParse(text);
+    if (one.success) {
+      clean[key] = text;
+    } else {
+      const shown = text.length > 40 ? `${text.slice(0, 40)}…` : text;
+      const expected = one.error.issues[0]?.message ?? "a different value";
+      problems.push({ field: key, label: PLANNER_FIELD_LABELS[key], message: `${PLANNER_FIELD_LABELS[key]}: ${expected}; the address gave “${shown}”.` });
+    }
+  }
+  const query = plannerQuerySchema.parse(clean);
+  // One typed size without the other draws nothing: say which one is missing.
+  if ((query.sw === undefined) !== (query.sh === undefined)) {
+    const missing = query.sw === undefined ? "sw" : "sh";
+    problems.push({ field: missing, label: PLANNER_FIELD_LABELS[missing], message: `${PLANNER_FIELD_LABELS[missing]}: needed as well when the other size is typed.` });
+  }
+  return { query, problems };
+}
 
 export interface ResolvedPlan {
   input: PlanInput;
@@ -91,7 +156,15 @@ export async function resolvePlan(db: DbOrTx, actor: Actor | null, q: PlannerQue
   }
 
   let kitSource: ResolvedPlan["kitSource"] = "typed";
-  let kit: PlanInput["kit"] = { name: "Lens", fNumber: q.f ?? 8, focalMm: q.focal, mount: q.mount || undefined };
+  const sensor = resolveSensor(q);
+  let kit: PlanInput["kit"] = {
+    name: "Lens",
+    fNumber: q.f ?? 8,
+    focalMm: q.focal,
+    mount: q.mount || undefined,
+    sensorWidthMm: sensor?.widthMm,
+    sensorHeightMm: sensor?.heightMm,
+  };
   if (q.kit) {
     const k = await findKit(db, actor, q.kit);
     kit = { ...k, name: k.name };

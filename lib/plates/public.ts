@@ -6,6 +6,7 @@ import type { DbOrTx } from "@/db/client";
 import { bracketSets, kits, plates, plateVersions, reductions, sites, users, type Plate, type PlateGeometry, type Rendition } from "@/db/schema";
 import { notFound } from "@/lib/errors";
 import { toPublicSite, type PublicPosition } from "@/lib/sites/precision";
+import { REDUCTION_FILE_OF, plateDownloadName, type PlateDownloadKind } from "./download-names";
 import { LICENCE_INFO, type LicenceInfo } from "./licences";
 
 /** Where a reduction's public files are served; the tiles folder's names follow the worker's layout. */
@@ -39,6 +40,15 @@ export interface PublicRenditionDto {
   dziUrl: string;
 }
 
+export interface PlateDownloadDto {
+  kind: PlateDownloadKind;
+  label: string;
+  url: string;
+  format: string;
+  /** The name the file is saved under (lib/plates/download-files.ts). */
+  fileName: string;
+}
+
 export interface PlateVersionLinkDto {
   version: number;
   createdAt: string;
@@ -69,7 +79,7 @@ export interface PublicPlateDto extends PlateCardDto {
     referenceFrame: string | null;
     dynamicRangeStops: number | null;
   };
-  downloads: { label: string; url: string; format: string }[];
+  downloads: PlateDownloadDto[];
   versions: PlateVersionLinkDto[];
   withdrawn: { at: string; reason: string; kind: "temporary" | "permanent" } | null;
   reductionId: string;
@@ -216,16 +226,25 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
         const size = v.imageSizes[key];
         return size ? [{ key, width: size.width, height: size.height, iiifInfoUrl: `${base}/${key}-iiif/info.json`, dziUrl: `${base}/${key}.dzi` }] : [];
       });
-  const downloads = withdrawn
+  const downloads: PlateDownloadDto[] = withdrawn
     ? []
     : [
         // Credits and licence are embedded in this file's XMP (lib/plates/web-jpeg.ts).
-        { label: "Web JPEG", url: `/api/plates/${encodeURIComponent(plate.slug)}/web-jpeg?version=${v.version}`, format: "image/jpeg" },
+        {
+          kind: "web" as const,
+          label: "Web JPEG",
+          url: `/api/plates/${encodeURIComponent(plate.slug)}/web-jpeg?version=${v.version}`,
+          format: "image/jpeg",
+          fileName: plateDownloadName(plate.slug, v.version, "web"),
+        },
         ...(licence.allowsDownload
           ? [
-              ...v.renditions.map((key) => ({ label: `${key === "natural" ? "Natural" : "Structure"} rendition, 16-bit PNG`, url: `${base}/${key}.png`, format: "image/png" })),
-              { label: "Master, FITS", url: `${base}/master.fits`, format: "application/fits" },
-            ]
+              ...v.renditions.map((key) => ({ kind: key, label: `${key === "natural" ? "Natural" : "Structure"} rendition, 16-bit PNG`, format: "image/png" })),
+              { kind: "master" as const, label: "Master, FITS", format: "application/fits" },
+            ].map((d) => {
+              const fileName = plateDownloadName(plate.slug, v.version, d.kind);
+              return { ...d, fileName, url: `${base}/${REDUCTION_FILE_OF[d.kind]}?name=${fileName}` };
+            })
           : []),
       ];
   const params = (red?.params ?? {}) as unknown as Record<string, unknown>;

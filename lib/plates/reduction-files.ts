@@ -11,6 +11,7 @@ import { notFound } from "@/lib/errors";
 import { findReduction } from "@/lib/reductions/reductions";
 import { bucketName, getS3, isMissingObject } from "@/lib/storage";
 import { PRIVATE_NO_STORE, PUBLIC_REVALIDATE } from "@/lib/http/cache";
+import { isPlateDownloadName } from "./download-names";
 import { LICENCE_INFO } from "./licences";
 import { streamPublicMaster } from "./public-master";
 
@@ -106,11 +107,21 @@ function matchesEtag(ifNoneMatch: string | null, etag: string): boolean {
 }
 
 /**
+ * Serves one file. `downloadName`, when it follows the plate download pattern for this very
+ * file (download-names.ts), becomes the saved file's name; any other value is ignored.
  * Public files are cached for 5 minutes and then revalidated (an unchanged file
  * answers 304 by its entity tag), so a withdrawn plate's files leave shared
  * caches within minutes instead of a year; private files are never stored.
  */
-export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reductionId: string, path: string, asDownload: boolean, ifNoneMatch: string | null = null): Promise<Response> {
+export async function serveReductionFile(
+  db: DbOrTx,
+  actor: Actor | null,
+  reductionId: string,
+  path: string,
+  asDownload: boolean,
+  downloadName?: string | null,
+  ifNoneMatch: string | null = null,
+): Promise<Response> {
   const kind = classifyReductionPath(path);
   if (!kind || !/^[0-9a-f-]{36}$/i.test(reductionId)) throw notFound("That file");
   const { access, prefix, precision } = await decideAccess(db, actor, reductionId, kind).catch(() => {
@@ -142,7 +153,8 @@ export async function serveReductionFile(db: DbOrTx, actor: Actor | null, reduct
     }
   }
   if (asDownload || kind === "download") {
-    headers.set("content-disposition", `attachment; filename="crownlight-${reductionId.slice(0, 8)}-${path.replace(/[^a-z0-9.]/gi, "-")}"`);
+    const name = downloadName && isPlateDownloadName(downloadName, path) ? downloadName : `crownlight-${reductionId.slice(0, 8)}-${path.replace(/[^a-z0-9.]/gi, "-")}`;
+    headers.set("content-disposition", `attachment; filename="${name}"`);
   }
   let body = out.Body?.transformToWebStream() ?? null;
   let length = out.ContentLength;

@@ -17,6 +17,7 @@ import { plates, plateVersions, reductions, type PlateLicence } from "@/db/schem
 import { AppError } from "@/lib/errors";
 import { createSharp } from "@/lib/media/sharp-setup";
 import { bucketName, isMissingObject, putObjectBytes, readSmallObject } from "@/lib/storage";
+import { plateDownloadName } from "./download-names";
 import { LICENCE_INFO } from "./licences";
 import { PUBLIC_REVALIDATE } from "@/lib/http/cache";
 
@@ -179,7 +180,7 @@ export async function serveWebJpeg(db: DbOrTx, slug: string, version?: number): 
     headers: {
       "content-type": "image/jpeg",
       "content-length": String(bytes.length),
-      "content-disposition": `attachment; filename="${plate.slug}-v${n}.jpg"`,
+      "content-disposition": `attachment; filename="${plateDownloadName(plate.slug, n, "web")}"`,
       // Credits can be corrected after publishing, which rewrites the file.
       "cache-control": PUBLIC_REVALIDATE,
       "x-content-type-options": "nosniff",

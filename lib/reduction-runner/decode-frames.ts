@@ -162,6 +162,7 @@ export async function decodeBracketFiles(
     image: d.image,
     exposureS: provenance[k].exposureS,
     blackLevel: d.blackLevel,
+    blackLevelSource: d.blackLevelSource,
     whiteLevel: d.whiteLevel,
     encoding: d.encoding,
     captureTimeMs: provenance[k].captureTimeMs,

@@ -14,7 +14,7 @@ async function handle(request: PrepareRequest): Promise<PrepareReply> {
   const exposureS = request.exposureOverrideS ?? decoded.metadata.exposureS;
   if (!(exposureS !== undefined && Number.isFinite(exposureS) && exposureS > 0)) return { id: request.id, ok: true, decoded };
   const frame: LinearFrame = {
-    name: decoded.name, image: decoded.image, exposureS, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel,
+    name: decoded.name, image: decoded.image, exposureS, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel, blackLevelSource: decoded.blackLevelSource,
     encoding: decoded.encoding, captureTimeMs: decoded.metadata.captureTimeMs,
   };
   try {

@@ -20,6 +20,8 @@ export interface ReductionReport {
   overall: Record<string, unknown>;
   timingsMs: Record<string, number>;
   outputs: Record<string, unknown>;
+  /** Frames the reduction could not use, each with its reason; the reduction went on without them. */
+  framesLeftOut: { name: string; frameId: string | null; reason: string }[];
   notes: string[];
 }
 
@@ -41,6 +43,8 @@ export function buildReport(input: {
   frameIds?: Record<string, string>;
   /** Size the renditions, preview and tiles were written at. */
   renditionSize?: { width: number; height: number; scale: number; longSidePx: number };
+  /** What the runner had to decide for the person to know (why there is no WCS, an orientation it could not find). */
+  notes?: string[];
 }): ReductionReport {
   const { result, provenance } = input;
   const sky = buildSkyReport(input.sky ?? { registrationMode: result.overall.parameters.registration, clockOffsetS: 0 });
@@ -77,10 +81,19 @@ export function buildReport(input: {
           dx: roundTo(f.transform.dx), dy: roundTo(f.transform.dy), rotationDeg: roundTo(f.transform.rotationDeg, 5), scale: roundTo(f.transform.scale, 6),
         },
         registration: { peak: roundTo(f.registrationPeak), against: f.registeredAgainst },
+        registrationMethod: f.registrationMethod,
+        registrationNote: f.registrationNote ?? null,
+        offset: f.offset
+          ? { dn: roundTo(f.offset.dn, 2), source: f.offset.source, sigmaDn: f.offset.sigmaDn === undefined ? null : roundTo(f.offset.sigmaDn, 2), note: f.offset.note ?? null }
+          : null,
+        transmission: roundTo(f.transmission),
+        effectiveExposureS: roundTo(f.effectiveExposureS, 7),
+        transmissionNote: f.transmissionNote ?? null,
         weights: {
           contributingFraction: roundTo(f.weights.contributingFraction),
           wellExposedFraction: roundTo(f.weights.wellExposedFraction),
           weightShare: roundTo(f.weights.weightShare),
+          rejectedFraction: roundTo(f.weights.rejectedFraction, 6),
         },
         sky: sky.frames.get(f.name) ?? null,
       };
@@ -117,10 +130,12 @@ export function buildReport(input: {
         ]),
       ),
     },
+    framesLeftOut: result.leftOut.map((l) => ({ name: l.name, frameId: input.frameIds?.[l.name] ?? null, reason: l.reason })),
     notes: [
+      ...(input.notes ?? []),
       hasWcs
         ? "master.fits carries a helioprojective WCS (HPLN-TAN, HPLT-TAN); its rows are stored top row first, as in the PNGs, and PC accounts for it."
-        : "No helioprojective WCS: no observer site and capture times were given; positions are master pixels.",
+        : "No helioprojective WCS: the observer's site, every frame's capture time and the image orientation are all needed for one; positions are master pixels.",
       "Tile pyramids are halved in linear light; sharp only encodes the tiles.",
       ...(input.renditionSize && input.renditionSize.scale !== 1
         ? [`Renditions, preview and tiles are scaled by ${roundTo(input.renditionSize.scale, 6)} in linear light (long side ${Math.max(input.renditionSize.width, input.renditionSize.height)} px); master.fits and every pixel position in this report are at the master's full size.`]

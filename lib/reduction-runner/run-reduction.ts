@@ -74,10 +74,10 @@ export function checkOutputOptions(params: ReductionParams, outputLongSidePx: nu
 export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
   const started = performance.now();
   const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
-  const registrationMode: RunnerRegistrationMode = options.registration ?? params.registration;
+  const askedMode: RunnerRegistrationMode = options.registration ?? params.registration;
   const overrides = options.exposureOverrides ?? new Map<string, number>();
   checkFileList(options.files);
-  checkSkyOptions(registrationMode, options.sky);
+  checkSkyOptions(askedMode, options.sky);
   checkOverridesMatchFiles(overrides, options.files, options.exposureOverrideSource);
   checkOutputOptions(params, options.outputLongSidePx);
   const outputLongSidePx = options.outputLongSidePx ?? 0;
@@ -105,7 +105,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     lap("decode");
 
     progress("sky", 0);
-    const sky = resolveSkyGeometry(frames, params, registrationMode, options.sky);
+    const sky = resolveSkyGeometry(frames, params, askedMode, options.sky);
+    const registrationMode = sky.registrationMode;
     if (sky.sun) lap("sky-geometry");
 
     // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
@@ -167,7 +168,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     lap("summary");
 
     timingsMs.total = performance.now() - started;
-    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds,
+    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds, notes: sky.notes,
       renditionSize: { width: size.width, height: size.height, scale: size.scale, longSidePx: outputLongSidePx },
       sky: { registrationMode, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun, helio },
     });

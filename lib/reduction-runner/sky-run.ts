@@ -31,7 +31,7 @@ export function checkSkyOptions(mode: RunnerRegistrationMode, sky: SkyOptions | 
     throw new ReductionInputError("bad-option", `--register: expected sun, moon or corona, got "${String(mode)}"`);
   }
   if (mode === "sun" && !sky?.site) {
-    throw new ReductionInputError("bad-site", "--register sun: the observer's site is required; give --site LAT,LON,ELEV or --site-file TRACK (GPX or CSV)");
+    throw new ReductionInputError("bad-site", "registration on the Sun needs the observer's site: give where the frames were taken (a fixed place, or a track for a ship or an aircraft)");
   }
   if (sky?.clockOffsetS !== undefined && !Number.isFinite(sky.clockOffsetS)) {
     throw new ReductionInputError("bad-option", `--clock-offset: expected a number of seconds, got ${sky.clockOffsetS}`);
@@ -68,6 +68,15 @@ export interface SkyGeometry {
   sun?: SunRegistration;
   /** The WCS geometry once the pipeline has placed the reference Moon; undefined without a site. */
   completeGeometry: (result: ReductionResult) => HelioGeometry | undefined;
+  /** What the reduction had to decide for itself, in words for the report and the page (no WCS and why, north unknown). */
+  notes: string[];
+  /** The registration actually run: "sun" falls back to "corona" when the image orientation cannot be found. */
+  registrationMode: RunnerRegistrationMode;
+}
+
+/** Without sky geometry: the pipeline runs in the mode asked ("sun" needs the sky and is refused earlier). */
+function withoutSky(params: ReductionParams, mode: RunnerRegistrationMode, notes: string[]): SkyGeometry {
+  return { pipelineParams: { ...params, registration: mode === "sun" ? "moon" : mode }, completeGeometry: () => undefined, notes, registrationMode: mode };
 }
 
 /**
@@ -76,18 +85,35 @@ export interface SkyGeometry {
  * them (each frame's Moon anchor moved onto the ephemeris Sun), "corona" passes
  * them as the registration start, and "moon" keeps the lunar limb (prominence
  * layers) and uses them only to place the Sun for the WCS.
+ * A site with frames that lack capture times still reduces on the corona or the
+ * Moon, without a WCS (registration on the Sun needs the times and is refused);
+ * an image orientation that cannot be found turns "sun" into "corona", and the
+ * master has no WCS. Both are said in `notes`.
  */
 export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParams, mode: RunnerRegistrationMode, sky: SkyOptions | undefined): SkyGeometry {
-  if (!sky?.site) return { pipelineParams: { ...params, registration: mode === "sun" ? "moon" : mode }, completeGeometry: () => undefined };
+  if (!sky?.site) return withoutSky(params, mode, []);
   const timings = frames.map((f) => ({ name: f.name, captureTimeMs: f.captureTimeMs, exposureS: f.exposureS }));
-  requireCaptureTimes(timings, mode === "sun" ? "--register sun" : "the helioprojective WCS (--site)");
+  const untimed = timings.filter((t) => !Number.isFinite(t.captureTimeMs)).map((t) => t.name);
+  if (untimed.length > 0) {
+    if (mode === "sun") requireCaptureTimes(timings, "registration on the Sun");
+    return withoutSky(params, mode, [
+      `The master has no helioprojective WCS: ${describeNames(untimed)} ${untimed.length === 1 ? "has" : "have"} no capture time, and the Sun's place in the sky at each frame needs it. The frames were registered on the ${mode === "moon" ? "lunar limb" : "corona"}.`,
+    ]);
+  }
   const skies = computeFrameSkies(timings, sky.site);
-  const sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg ?? northAngleFromMount(sky.camera, skies));
+  let sun: SunRegistration;
+  try {
+    sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg ?? northAngleFromMount(sky.camera, skies));
+  } catch (error) {
+    if (!(error instanceof ReductionInputError && error.code === "orientation-unknown")) throw error;
+    return withoutSky(params, mode === "sun" ? "corona" : mode, [
+      `North is unknown and the master has no helioprojective WCS: ${error.message.replace(/^Image orientation unknown: /, "")}. ${mode === "sun" ? "The frames were registered on the corona instead of the Sun. " : ""}Give the kit's mount or a north angle to place the image on the sky.`,
+    ]);
+  }
   const pipelineParams: ReductionParams =
     mode === "moon" ? { ...params, registration: "moon" } : { ...params, registration: mode === "sun" ? "moon" : "corona", moonMinusSunPx: sun.offsetsPx };
   const completeGeometry = (result: ReductionResult): HelioGeometry => {
-    const ref = skies.findIndex((s) => s.name === result.overall.referenceFrame);
-    const refSky = skies[ref];
+    const refSky = skies.find((s) => s.name === result.overall.referenceFrame)!;
     const own = sun.offsetsPx[refSky.name];
     // The pipeline states the Sun when it had offsets; on the lunar limb, the Sun sits at the reference Moon minus its offset.
     const sunCentrePx = result.overall.sunCentre ?? { x: result.overall.moonCentre.x - own.dx, y: result.overall.moonCentre.y - own.dy };
@@ -102,5 +128,12 @@ export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParam
       moonSilhouetteMs: refSky.midExposureMs,
     };
   };
-  return { pipelineParams, skies, sun, completeGeometry };
+  return { pipelineParams, skies, sun, completeGeometry, notes: [], registrationMode: mode };
+}
+
+/** "a.fits", "a.fits and b.fits", or "a.fits, b.fits and 3 more". */
+function describeNames(names: string[]): string {
+  if (names.length === 1) return names[0];
+  if (names.length <= 3) return `${names.slice(0, -1).join(", ")} and ${names[names.length - 1]}`;
+  return `${names.slice(0, 2).join(", ")} and ${names.length - 2} more frames`;
 }

@@ -40,7 +40,7 @@ export function requireCaptureTimes(frames: FrameTiming[], why: string): void {
   if (missing.length > 0) {
     throw new ReductionInputError(
       "missing-capture-time",
-      `${missing.map((f) => f.name).join(", ")}: no capture time in the file (EXIF DateTimeOriginal or FITS DATE-OBS); ${why} needs each frame's time`,
+      `${missing.map((f) => f.name).join(", ")}: no capture time, neither in the file (its EXIF DateTimeOriginal or FITS DATE-OBS) nor given by the photographer; ${why} needs each frame's time`,
     );
   }
 }

@@ -18,6 +18,7 @@ import { chooseReferenceFrame, registerFrames } from "@/lib/imaging/register";
 import { applyAffine, invertAffine } from "@/lib/imaging/similarity";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
+import { ImagingError } from "@/lib/imaging/errors";
 import { ReductionInputError } from "./errors";
 import { convertSkyOffsetToPx, estimateNorthAngle, type FrameSky, type NorthAngleEstimate } from "./sun-geometry";
 
@@ -52,13 +53,15 @@ function estimateFromBracket(frames: LinearFrame[], prepared: PreparedFrame[], s
   const registration = registerFrames(
     prepared.map((p) => ({
       name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
-      noiseSigma: p.linear.noiseSigma, limb: { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx },
+      noiseSigma: p.linear.noiseSigma,
+      limb: p.limb.verdict === "failed" ? { x: NaN, y: NaN, radiusPx: NaN } : { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx },
     })),
     { mode: "corona", referenceIndex },
   );
-  const samples = prepared.map((p, i) => {
+  const samples = prepared.flatMap((p, i) => {
+    if (p.limb.verdict === "failed" || registration.frames[i].method === "failed") return [];
     const moon = applyAffine(invertAffine(registration.frames[i].masterToFrame), p.limb.x, p.limb.y);
-    return { x: moon.x, y: moon.y, weight: weighLimb(p), northArcsec: skies[i].state.moonMinusSun.northArcsec, eastArcsec: skies[i].state.moonMinusSun.eastArcsec };
+    return [{ x: moon.x, y: moon.y, weight: weighLimb(p), northArcsec: skies[i].state.moonMinusSun.northArcsec, eastArcsec: skies[i].state.moonMinusSun.eastArcsec }];
   });
   const estimate = estimateNorthAngle(samples, scaleArcsecPerPx);
   if (!(estimate.sigmaDeg <= MAX_NORTH_ANGLE_SIGMA_DEG)) {
@@ -66,7 +69,7 @@ function estimateFromBracket(frames: LinearFrame[], prepared: PreparedFrame[], s
     throw new ReductionInputError(
       "orientation-unknown",
       `Image orientation unknown: the Moon moved only ${estimate.spreadPx.toFixed(2)} px against the corona over the bracket's ${spanS.toFixed(1)} s, too little to find ` +
-        `it (estimate ${estimate.northAngleDeg.toFixed(1)} +- ${estimate.sigmaDeg.toFixed(1)} deg); say how the camera was mounted (the kit's mount, or --north-angle on the command line)`,
+        `it (estimate ${estimate.northAngleDeg.toFixed(1)} +- ${estimate.sigmaDeg.toFixed(1)} deg)`,
     );
   }
   return estimate;
@@ -81,7 +84,9 @@ export function resolveSunRegistration(frames: LinearFrame[], skies: FrameSky[],
   const table = frames[0].encoding === "srgb8" ? createSrgbDecodeTable() : undefined;
   const prepared = frames.map((f) => prepareFrame(f, params, table));
   const sound = prepared.filter((p) => p.limb.verdict === "sound");
-  const limbRadiusPx = computeMedian((sound.length > 0 ? sound : prepared).map((p) => p.limb.radiusPx));
+  const found = prepared.filter((p) => p.limb.verdict !== "failed");
+  if (found.length === 0) throw new ImagingError("limb-not-found", "the lunar limb could not be found in any frame, so the plate scale cannot be measured");
+  const limbRadiusPx = computeMedian((sound.length > 0 ? sound : found).map((p) => p.limb.radiusPx));
   const plateScaleArcsecPerPx = computeMeasuredPlateScaleArcsecPerPx(skies[referenceIndex].state.moon.semiDiameterArcsec, limbRadiusPx);
   let estimate: NorthAngleEstimate | undefined;
   let angle = northAngleDeg;

@@ -12,7 +12,17 @@ const frameSchema = z.object({
   exposure: z.object({ seconds: num }).nullable().catch(null),
   captureTimeUtc: z.string().nullable().optional().catch(null),
   limb: z.object({ x: num, y: num, radiusPx: num, rmsPx: num, inlierFraction: num, verdict: z.string().catch("unknown") }).nullable().catch(null),
-  weights: z.object({ weightShare: num }).nullable().catch(null),
+  weights: z.object({ weightShare: num, rejectedFraction: num.optional().catch(null) }).nullable().catch(null),
+  registrationMethod: z.enum(["reference", "corona", "limb"]).nullable().optional().catch(null),
+  registrationNote: z.string().nullable().optional().catch(null),
+  offset: z
+    .object({ dn: num, source: z.enum(["calibrated", "file", "solved", "none"]).catch("none"), sigmaDn: num.optional().catch(null), note: z.string().nullable().optional().catch(null) })
+    .nullable()
+    .optional()
+    .catch(null),
+  transmission: num.optional().catch(null),
+  effectiveExposureS: num.optional().catch(null),
+  transmissionNote: z.string().nullable().optional().catch(null),
 });
 
 const ringSchema = z.object({ innerR: z.number(), outerR: z.number(), meanR: z.number(), meanLuminance: z.number(), pixelCount: z.number(), ringFraction: z.number().catch(1) });
@@ -50,6 +60,8 @@ export const reportViewSchema = z.object({
     })
     .catch({ referenceFrame: null, dynamicRangeStops: null, masterSize: null }),
   timingsMs: z.record(z.string(), z.number()).catch({}),
+  framesLeftOut: z.array(z.object({ name: z.string(), frameId: z.string().nullable().catch(null), reason: z.string() })).optional().catch([]),
+  notes: z.array(z.string()).optional().catch([]),
   outputs: z
     .object({
       coverage: z.string().nullable().optional().catch(null),

@@ -13,6 +13,8 @@ export interface SynthBracketFrame {
   planes: (Float32Array | Uint16Array)[];
   exposureS: number;
   captureTimeMs: number;
+  /** This frame's own offset in DN when it differs from the bracket's blackLevel. */
+  blackLevel?: number;
 }
 
 export interface SynthBracket {
@@ -23,6 +25,15 @@ export interface SynthBracket {
   frames: SynthBracketFrame[];
   /** Serializable description of the scene, written to truth.json. */
   truth: Record<string, unknown>;
+  /**
+   * How FITS and 16-bit TIFF files carry the sensor's offset: "subtracted" (the
+   * default: files hold DN - black), "card" (FITS keeps the pedestal and states it
+   * in a BLKLEVEL card; TIFF as unlabelled), "unlabelled" (the pedestal stays in
+   * the data and nothing says so, as many astronomy cameras write).
+   */
+  offsetInFiles?: "subtracted" | "card" | "unlabelled";
+  /** false: files carry no capture time (as TIFFs exported by a raw converter often do). Default true. */
+  hasCaptureTimes?: boolean;
   /** Planes written to truth-radiance.fits (DN/s), when given. */
   radiance?: Float32Array[];
 }

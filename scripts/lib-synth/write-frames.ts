@@ -29,9 +29,18 @@ function normalize(bracket: SynthBracket): (dn: number) => number {
   return (dn) => Math.min(1, Math.max(0, (dn - bracket.blackLevel) / range));
 }
 
+/** The offset a file of this frame keeps in its data: none when the writer subtracts it. */
+function keptOffset(bracket: SynthBracket, frame: SynthBracketFrame): number {
+  return (bracket.offsetInFiles ?? "subtracted") === "subtracted" ? 0 : (frame.blackLevel ?? bracket.blackLevel);
+}
+
 async function writeTiffFrame(bracket: SynthBracket, frame: SynthBracketFrame, path: string): Promise<void> {
   const { width, height } = bracket;
-  const level = normalize(bracket);
+  const kept = keptOffset(bracket, frame);
+  const black = frame.blackLevel ?? bracket.blackLevel;
+  const range = bracket.whiteLevel - bracket.blackLevel;
+  // A pedestal kept in the file stays at its DN, on the same 16-bit scale as the light.
+  const level = (dn: number) => Math.min(1, Math.max(0, (dn - black + kept) / range));
   const channels = frame.planes.length as 1 | 3;
   const data = toInterleaved(frame.planes, width * height, new Uint16Array(width * height * channels), (dn) => Math.round(level(dn) * 65535));
   await createSharp(data, { raw: { width, height, channels } })
@@ -59,19 +68,23 @@ async function writeJpegFrame(bracket: SynthBracket, frame: SynthBracketFrame, p
 
 async function writeFitsFrame(bracket: SynthBracket, frame: SynthBracketFrame, path: string): Promise<void> {
   const { width, height, blackLevel, whiteLevel } = bracket;
-  const planes = frame.planes.map((plane) => Uint16Array.from(plane, (dn) => Math.max(0, Math.min(65535, Math.round(dn - blackLevel)))));
+  const black = frame.blackLevel ?? blackLevel;
+  const kept = keptOffset(bracket, frame);
+  const planes = frame.planes.map((plane) => Uint16Array.from(plane, (dn) => Math.max(0, Math.min(65535, Math.round(dn - black + kept)))));
+  const hasTime = bracket.hasCaptureTimes ?? true;
   await writeFitsFile(path, {
     width,
     height,
     planes,
     cards: [
       { key: "EXPTIME", value: frame.exposureS, comment: "exposure time in seconds" },
-      { key: "DATE-OBS", value: new Date(frame.captureTimeMs).toISOString().replace("Z", ""), comment: "UTC start of the exposure" },
+      ...(hasTime ? [{ key: "DATE-OBS", value: new Date(frame.captureTimeMs).toISOString().replace("Z", ""), comment: "UTC start of the exposure" }] : []),
       { key: "INSTRUME", value: `${SYNTH_MAKE} ${SYNTH_MODEL}`, comment: "synthetic data, not an observation" },
-      { key: "SATURATE", value: whiteLevel - blackLevel, comment: "DN at which pixels clip" },
+      { key: "SATURATE", value: whiteLevel - black + kept, comment: "DN at which pixels clip" },
+      ...(bracket.offsetInFiles === "card" ? [{ key: "BLKLEVEL", value: kept, comment: "sensor offset (bias pedestal) in the data, DN" }] : []),
       { key: "ISOSPEED", value: SYNTH_ISO },
     ],
-    history: [`Synthetic frame: sensor black level ${blackLevel} DN subtracted before writing.`],
+    history: [kept > 0 ? `Synthetic frame: the sensor offset (${kept} DN) stays in the data.` : `Synthetic frame: sensor black level ${black} DN subtracted before writing.`],
   });
 }
 

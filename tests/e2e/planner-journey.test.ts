@@ -1,10 +1,15 @@
-// A visitor plans for a typed place and downloads the iCalendar file; a member
-// saves a kit and a site and finds them in the planner.
+// A visitor plans for a typed place and downloads the iCalendar file (its times
+// equal the page's to the second); sees the path of totality on the map; plans
+// from outside the path (distance, direction, partial-phase advice) and follows
+// the link into it; picks a sensor format for the framing; opens an address with
+// bad values and gets messages beside the fields. Phone-size checks with axe.
+// A member saves a kit and a site and finds them in the planner.
 import { randomUUID } from "node:crypto";
 import fs from "node:fs";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { APP } from "../support/env";
 
@@ -37,6 +42,95 @@ describe("field planner", () => {
     const text = fs.readFileSync((await download.path())!, "utf8");
     expect(text).toMatch(/^BEGIN:VCALENDAR/);
     expect(text.match(/BEGIN:VEVENT/g)).toHaveLength(5);
+    // Every event starts at the second the page's timeline shows in its UTC column.
+    const starts = [...text.matchAll(/DTSTART:\d{8}T(\d{2})(\d{2})(\d{2})Z/g)].map((m) => `${m[1]}:${m[2]}:${m[3]}`);
+    const utcColumn = await page.getByRole("table", { name: "Timeline" }).locator("tbody tr td:nth-child(2)").allInnerTexts();
+    expect(starts).toHaveLength(5);
+    expect(starts).toEqual(utcColumn.map((t) => t.trim()));
+
+    // The map draws the path of totality from the ephemeris: a band, the central line and both limits.
+    const drawn = page.getByTestId("path-of-totality").locator("path");
+    expect(await drawn.count()).toBe(4);
+    for (const d of await drawn.evaluateAll((els) => els.map((e) => e.getAttribute("d") ?? ""))) expect(d.length).toBeGreaterThan(100);
+    await page.getByText(/Shaded: the path of totality, computed from the positions of the Sun and Moon/).waitFor();
+    await ctx.close();
+  });
+
+  it("tells a visitor outside the path how far totality is, advises on the partial phase, and leads into the path", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const page = await ctx.newPage();
+    // Tunis: north of the 2027 path (DESIGN.md: the eclipse is only partial there).
+    await page.goto("/planner?eclipse=2027-08-02&place=Tunis&lat=36.8&lon=10.18");
+    await page.getByRole("heading", { name: "No totality here" }).waitFor({ timeout: 20_000 });
+    const reach = await page.getByTestId("totality-reach").innerText();
+    expect(reach).toMatch(/about \d+ km to the south/);
+    // Partial-phase advice with the filter cautions, and no corona rows in the ladder.
+    await page.getByRole("heading", { name: "Photographing the partial phase" }).waitFor();
+    await page.getByText(/The filter stays on from first to fourth contact/).waitFor();
+    const ladder = await page.getByRole("table", { name: /Exposure ladder/ }).innerText();
+    expect(ladder).toMatch(/Partial phase, ND 5.0 filter/);
+    expect(ladder).not.toMatch(/Corona|Prominences/);
+    await snap(page, "13-planner-outside-path");
+    await page.getByRole("link", { name: "Plan for a place just inside the path" }).click();
+    await page.getByRole("heading", { name: /2027-08-02: total eclipse at/ }).waitFor({ timeout: 20_000 });
+    expect(await page.getByRole("heading", { name: "No totality here" }).count()).toBe(0);
+    await ctx.close();
+  });
+
+  it("draws the frame for a sensor format picked from the list", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const page = await ctx.newPage();
+    await page.goto("/planner?eclipse=2027-08-02&lat=25.69&lon=32.64");
+    await page.getByLabel("Focal length (mm)").fill("800");
+    await page.getByLabel("Sensor", { exact: true }).selectOption({ label: "Full frame (36 × 24 mm)" });
+    await page.getByRole("button", { name: "Plan", exact: true }).click();
+    await page.waitForURL(/sensor=full-frame/);
+    // 36 x 24 mm at 800 mm: 9281 by 6188 arcsec (computed), over the day's solar radius of about 946 arcsec.
+    await page.getByText(/The sensor covers 9\.8 by 6\.5 solar radii\./).first().waitFor({ timeout: 20_000 });
+    // A typed size wins over the list.
+    await page.getByLabel("Sensor width (mm)").fill("17.3");
+    await page.getByLabel("Sensor height (mm)").fill("13");
+    await page.getByRole("button", { name: "Plan", exact: true }).click();
+    await page.getByText(/The sensor covers 4\.7 by 3\.5 solar radii\./).first().waitFor({ timeout: 20_000 });
+    await ctx.close();
+  });
+
+  it("answers bad values in the address with messages beside the fields", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const page = await ctx.newPage();
+    const res = await page.goto("/planner?eclipse=2027-13-45&lat=abc&lon=500&isos=1,2&sensor=potato&tz=Mars%2FOlympus&f=0");
+    expect(res?.status()).toBe(200);
+    await page.getByTestId("address-problems").waitFor();
+    // Beside each field, in words a visitor reads (no field keys).
+    const latField = page.getByLabel("Latitude (°, north positive)");
+    expect(await latField.getAttribute("aria-invalid")).toBe("true");
+    await page.getByText("Latitude: expected a number from -90 to 90 degrees (north positive); the address gave “abc”.", { exact: true }).waitFor();
+    await page.getByText("Longitude: expected a number from -180 to 180 degrees (east positive); the address gave “500”.", { exact: true }).waitFor();
+    await page.getByText(/^Sensor: expected one of the sensor formats in the list/).waitFor();
+    await page.getByText(/^Time zone: expected a time zone from the list/).waitFor();
+    await page.getByText(/^ISO speeds: expected one to six ISO speeds/).waitFor();
+    await page.getByText(/^Eclipse: there is no solar eclipse on 2027-13-45/).waitFor();
+    // The rest still plans: the next total eclipse at its point of greatest eclipse.
+    await page.getByRole("heading", { name: /total eclipse at Point of greatest eclipse/ }).waitFor({ timeout: 20_000 });
+    const body = await page.locator("main").innerText();
+    expect(body).not.toMatch(/\b(lat|lon|isos|tz|sw|sh):/);
+    await ctx.close();
+  });
+
+  it("fits a phone and passes axe", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const page = await ctx.newPage();
+    for (const [address, shot] of [
+      ["/planner?eclipse=2027-08-02&place=Cadiz&lat=36.53&lon=-6.29&focal=400&sensor=aps-c&mount=equatorial", "14-planner-phone"],
+      ["/planner?eclipse=2027-08-02&place=Tunis&lat=36.8&lon=10.18", "15-planner-phone-outside"],
+    ] as const) {
+      await page.goto(address);
+      await page.getByRole("heading", { name: /2027-08-02: (total|partial) eclipse at/ }).waitFor({ timeout: 20_000 });
+      await snap(page, shot);
+      const widths = await page.evaluate(() => ({ scroll: document.documentElement.scrollWidth, inner: window.innerWidth }));
+      expect(widths.scroll).toBeLessThanOrEqual(widths.inner);
+      expect(await seriousViolations(page)).toEqual([]);
+    }
     await ctx.close();
   });
 

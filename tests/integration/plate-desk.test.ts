@@ -135,7 +135,7 @@ describe("the plate desk", () => {
     const res = await new Client().request(web!.url);
     expect(res.status).toBe(200);
     expect(res.headers.get("content-type")).toBe("image/jpeg");
-    expect(res.headers.get("content-disposition")).toBe(`attachment; filename="${slug}-v1.jpg"`);
+    expect(res.headers.get("content-disposition")).toBe(`attachment; filename="${slug}-v1-web.jpg"`);
     const dir = await mkdtemp(join(tmpdir(), "plate-desk-"));
     try {
       const file = join(dir, "web.jpg");

@@ -5,7 +5,9 @@ import { describe, expect, it } from "vitest";
 import { buildLadderCsv, buildTimelineCalendar } from "@/lib/planner/exports";
 import { computeFieldPlan } from "@/lib/planner/plan";
 import { planFileName } from "@/lib/planner/route-helpers";
-import { plannerQuerySchema } from "@/lib/planner/resolve";
+import { findCentralPath, findTotalityReach, roundDistanceKm } from "@/lib/planner/path";
+import { parsePlannerQuery, plannerQuerySchema } from "@/lib/planner/resolve";
+import { resolveSensor } from "@/lib/planner/sensor-formats";
 
 // 2027-08-02 greatest eclipse from our own catalogue search; the planner only
 // needs a date near the maximum.
@@ -57,6 +59,19 @@ describe("field plan", () => {
     expect(ics).toContain("GEO:25.69;32.64");
   });
 
+  it("keeps every timeline instant in whole seconds, so the calendar and the page show the same second", () => {
+    const ics = buildTimelineCalendar(plan, { eclipseId: "2027-08-02", siteName: "Luxor", latDeg: 25.69, lonDeg: 32.64 });
+    const starts = [...ics.matchAll(/DTSTART:(\d{8}T\d{6}Z)/g)].map((m) => m[1]);
+    expect(starts).toHaveLength(plan.timeline.length);
+    plan.timeline.forEach((e, i) => {
+      expect(e.utcMs % 1000).toBe(0);
+      // What the timeline table prints in its UTC column (HH:MM:SS) is this instant's clock.
+      expect(starts[i]).toBe(new Date(e.utcMs).toISOString().replace(/[-:]/g, "").slice(0, 15) + "Z");
+    });
+    // Rounded, not cut: within half a second of the contact itself.
+    expect(Math.abs(plan.timeline[1].utcMs - plan.circumstances.secondContact!.utcMs)).toBeLessThanOrEqual(500);
+  });
+
   it("writes a CSV ladder with a header and quoted cells where needed (RFC 4180)", () => {
     const csv = buildLadderCsv(plan);
     const lines = csv.trimEnd().split("\r\n");
@@ -72,6 +87,29 @@ describe("planner query", () => {
     expect(r.success).toBe(false);
     const fields = r.error!.issues.map((i) => i.path[0]).sort();
     expect(fields).toEqual(["isos", "lat", "tz"]);
+  });
+
+  it("reads the address field by field: a bad value is reported in words and the rest is kept", () => {
+    const { query, problems } = parsePlannerQuery({ lat: "abc", lon: "12.5", isos: "100,800", sensor: "potato", tz: ["Europe/Madrid", "UTC"] });
+    expect(query.lat).toBeUndefined();
+    expect(query.lon).toBe(12.5);
+    expect(query.isos).toEqual([100, 800]);
+    expect(query.tz).toBe("Europe/Madrid");
+    expect(problems.map((p) => p.field).sort()).toEqual(["lat", "sensor"]);
+    expect(problems.find((p) => p.field === "lat")!.message).toBe("Latitude: expected a number from -90 to 90 degrees (north positive); the address gave “abc”.");
+    for (const p of problems) expect(p.message).not.toMatch(/^(lat|sensor)\b/);
+  });
+
+  it("asks for the other sensor size when only one is typed", () => {
+    const { problems } = parsePlannerQuery({ sw: "23.5", sh: "" });
+    expect(problems).toEqual([{ field: "sh", label: "Sensor height", message: "Sensor height: needed as well when the other size is typed." }]);
+  });
+
+  it("takes a sensor from the list, and typed sizes over it", () => {
+    expect(resolveSensor({ sensor: "full-frame" })).toEqual({ widthMm: 36, heightMm: 24 });
+    expect(resolveSensor({ sensor: "full-frame", sw: 17.3, sh: 13 })).toEqual({ widthMm: 17.3, heightMm: 13 });
+    expect(resolveSensor({ sw: 17.3 })).toBeNull();
+    expect(resolveSensor({})).toBeNull();
   });
 
   it("defaults to ISO 100 and 400 in UTC", () => {
@@ -100,5 +138,32 @@ describe("field plan on a moving site", () => {
     expect(moving.timeline[1].utcMs).not.toBe(still.timeline[1].utcMs);
     // First contact happens where the ship was at 08:3x, still near its start: within a few seconds.
     expect(Math.abs(moving.timeline[0].utcMs - still.timeline[0].utcMs)).toBeLessThan(60_000);
+  });
+});
+
+describe("outside the path", () => {
+  const eclipse = { id: "2027-08-02", peakAt: new Date(PEAK).toISOString() };
+
+  it("gives a partial site the partial ladder only, and the way to totality", () => {
+    const tunis = { latDeg: 36.8, lonDeg: 10.18, elevationM: 0, name: "Tunis" };
+    const plan = computeFieldPlan({ eclipseId: "2027-08-02", eclipsePeakUtcMs: PEAK, site: tunis, kit: { name: "lens", fNumber: 8 }, isos: [100] });
+    expect(plan.circumstances.kind).toBe("partial");
+    expect(new Set(plan.ladder.map((s) => s.phenomenon))).toEqual(new Set(["partial-nd5", "partial-nd4"]));
+    const reach = findTotalityReach(findCentralPath(eclipse)!, tunis)!;
+    expect(reach.direction).toMatch(/^south/);
+    // The suggested place is inside the path: it sees totality.
+    const inside = computeFieldPlan({ eclipseId: "2027-08-02", eclipsePeakUtcMs: PEAK, site: { ...reach.inside, elevationM: 0, name: "inside" }, kit: { name: "lens", fNumber: 8 }, isos: [100] });
+    expect(inside.circumstances.kind).toBe("total");
+  });
+
+  it("remembers a path once computed", () => {
+    expect(findCentralPath(eclipse)).toBe(findCentralPath(eclipse));
+  });
+
+  it("rounds distances the way people say them", () => {
+    expect(roundDistanceKm(0.3)).toBe(1);
+    expect(roundDistanceKm(7.6)).toBe(8);
+    expect(roundDistanceKm(43)).toBe(45);
+    expect(roundDistanceKm(236)).toBe(240);
   });
 });

@@ -46,7 +46,7 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     ],
     geometry: {},
     disclosure: { pipelineVersion: "crownlight-imaging 0.1.0", registration: "sun", filter: "mgn", filterStrength: 0.3, stages: [], moonSilhouetteUtc: null, referenceFrame: null, dynamicRangeStops: null },
-    downloads: [{ label: "Master, FITS", url: `/iiif/reductions/${RID}/master.fits`, format: "application/fits" }],
+    downloads: [{ kind: "master", label: "Master, FITS", url: `/iiif/reductions/${RID}/master.fits?name=corona-v1-master.fits`, format: "application/fits", fileName: "corona-v1-master.fits" }],
     versions: [],
     withdrawn: null,
     reductionId: RID,

@@ -7,6 +7,7 @@ import { Countdown } from "@/components/planner/countdown";
 import { FrameDrawing } from "@/components/planner/frame-drawing";
 import { LadderTable } from "@/components/planner/ladder-table";
 import { NightModeToggle } from "@/components/planner/night-mode";
+import { PartialPhaseAdvice } from "@/components/planner/partial-phase-advice";
 import { PlannerForm } from "@/components/planner/planner-form";
 import { SavePlanForm } from "@/components/planner/save-plan-form";
 import { TimelineTable } from "@/components/planner/timeline-table";
@@ -15,17 +16,15 @@ import { buttonClasses } from "@/components/ui/button";
 import { getDb } from "@/db/client";
 import { can } from "@/lib/auth/permissions";
 import { listEclipses } from "@/lib/eclipses/eclipses";
-import { AppError } from "@/lib/errors";
 import { listKits } from "@/lib/kits/kits";
-import { computeFieldPlan, isNotVisible, type PlanResult } from "@/lib/planner/plan";
-import { plannerQuerySchema, resolvePlan, type ResolvedPlan } from "@/lib/planner/resolve";
+import { preparePlannerPage } from "@/lib/planner/page-plan";
 import { listPlans } from "@/lib/planner/saved-plans";
 import { listSites } from "@/lib/sites/sites";
 import { savePlanAction } from "./actions";
 
 export const metadata: Metadata = { title: "Field planner" };
 
-export default async function PlannerPage({ searchParams }: { searchParams: Promise<Record<string, string>> }) {
+export default async function PlannerPage({ searchParams }: { searchParams: Promise<Record<string, string | string[] | undefined>> }) {
   const raw = await searchParams;
   const db = getDb();
   const actor = await currentActor();
@@ -37,22 +36,12 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
     isMember ? listPlans(db, actor) : null,
   ]);
 
-  const parsed = plannerQuerySchema.safeParse(raw);
-  const query = parsed.success ? parsed.data : plannerQuerySchema.parse({});
-  let problem = parsed.success ? "" : parsed.error.issues.map((i) => `${String(i.path[0] ?? "input")}: ${i.message}`).join("; ");
-  let resolved: ResolvedPlan | null = null;
-  let plan: PlanResult | null = null;
-  if (!problem) {
-    try {
-      resolved = await resolvePlan(db, actor, query);
-      plan = computeFieldPlan(resolved.input);
-    } catch (err) {
-      if (err instanceof AppError || isNotVisible(err)) problem = (err as Error).message;
-      else throw err;
-    }
-  }
+  const known = [...catalogue.featured, ...catalogue.upcoming, ...catalogue.past].map((e) => e.id);
+  const { query, fieldProblems, problem, resolved, plan, share, pathLines, reach, insideHref } = await preparePlannerPage(db, actor, raw, known);
   const eclipseChoices = [...catalogue.featured, ...catalogue.upcoming.filter((e) => !e.featured)];
-  const share = new URLSearchParams(Object.entries(raw).filter(([, v]) => typeof v === "string" && v !== ""));
+  // A past eclipse reached from its own page stays chosen in the list.
+  if (resolved && !eclipseChoices.some((e) => e.id === resolved.eclipse.id)) eclipseChoices.push(resolved.eclipse);
+  const localKind = plan?.circumstances.kind ?? null;
   const c2 = plan?.timeline.find((e) => e.key === "C2");
   const site = resolved?.input.site;
 
@@ -62,10 +51,33 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
         <NightModeToggle />
       </PageTitle>
       <SolarSafetyNote className="mb-8" />
-      <PlannerForm query={query} eclipses={eclipseChoices} sites={sites} kits={kits} eclipseId={resolved?.eclipse.id ?? query.eclipse ?? eclipseChoices[0]?.id ?? ""} />
+      {fieldProblems.length ? (
+        <div className="mb-6" data-testid="address-problems">
+          <FormMessage tone="danger">
+            Some values in the address could not be used, so the plan below leaves them out: {fieldProblems.map((p) => p.message).join(" ")}
+          </FormMessage>
+        </div>
+      ) : null}
+      <PlannerForm
+        query={query}
+        eclipses={eclipseChoices}
+        sites={sites}
+        kits={kits}
+        eclipseId={resolved?.eclipse.id ?? eclipseChoices[0]?.id ?? ""}
+        path={pathLines}
+        problems={fieldProblems}
+      />
       {problem ? (
         <div className="mt-8">
           <FormMessage tone="danger">{problem}</FormMessage>
+          {reach && insideHref ? (
+            <p className="mt-3" data-testid="totality-reach">
+              The nearest place that sees {resolved?.eclipse.kind === "annular" ? "annularity" : "totality"} is about {reach.distanceKm} km to the {reach.direction}.{" "}
+              <Link href={insideHref} className="underline">
+                Plan for a place just inside the path
+              </Link>
+            </p>
+          ) : null}
         </div>
       ) : null}
       {plan && resolved && site ? (
@@ -100,6 +112,9 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
               </Link>
             </div>
           </section>
+          {localKind !== "total" ? (
+            <PartialPhaseAdvice localKind={localKind === "annular" ? "annular" : "partial"} eclipseKind={resolved.eclipse.kind} reach={reach} planHref={insideHref} />
+          ) : null}
           <TimelineTable events={plan.timeline} timeZone={resolved.timeZone} />
           <LadderTable steps={plan.ladder} isos={resolved.input.isos} fNumber={resolved.input.kit.fNumber * (resolved.input.kit.teleconverter ?? 1)} />
           <section aria-labelledby="framing" className="grid gap-6 md:grid-cols-2">

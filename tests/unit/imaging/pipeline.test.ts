@@ -73,7 +73,7 @@ describe("reduceBracket on a noiseless synthetic bracket", () => {
       expect(hi - lo).toBeGreaterThan(0.5);
     }
     expect(result.structure.planes.length).toBe(1);
-    expect(Object.keys(result.overall.timingsMs)).toEqual(["linearize-and-limb", "register", "warp-and-merge", "renditions"]);
+    expect(Object.keys(result.overall.timingsMs)).toEqual(["linearize-and-limb", "register", "levels", "warp-and-merge", "renditions"]);
     expect(stages).toContain("merge");
   });
 });
@@ -160,9 +160,10 @@ describe("reduceBracket refuses bad brackets with a clear error", () => {
       reduceBracket([linear[0], blank], DEFAULT_REDUCTION_PARAMS);
       expect.unreachable();
     } catch (error) {
+      // The blank frame is left out (no limb, no corona to register); one frame alone cannot be merged.
       expect(error).toBeInstanceOf(ImagingError);
-      expect((error as ImagingError).code).toBe("limb-not-found");
-      expect((error as ImagingError).frameName).toBe("lens-cap.fits");
+      expect((error as ImagingError).code).toBe("too-few-frames");
+      expect((error as ImagingError).message).toMatch(/only 1 frame could be placed on the Sun: lens-cap\.fits: .*lunar limb could not be found/);
     }
     expect(() => reduceBracket(linear, { ...DEFAULT_REDUCTION_PARAMS, filter: "sharpen" as "mgn" })).toThrow(/filter must be/);
   });

@@ -3,10 +3,12 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { foundOr404 } from "@/app/_server/found";
 import { formatPoint } from "@/components/eclipses/eclipse-table";
+import { describeEclipse } from "@/components/eclipses/eclipse-words";
 import { PlateCard } from "@/components/gallery/plate-card";
 import { PageTitle } from "@/components/page-title";
 import { EmptyState } from "@/components/ui/empty-state";
 import { getDb } from "@/db/client";
+import { computeCentralPathAt } from "@/lib/astro/central-path";
 import { findLocalCircumstances, type LocalCircumstances } from "@/lib/astro/local-circumstances";
 import { findEclipse } from "@/lib/eclipses/eclipses";
 import { listPublishedPlates } from "@/lib/plates/public";
@@ -15,11 +17,12 @@ type Props = { params: Promise<{ id: string }> };
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
   const { id } = await params;
-  return { title: `Eclipse of ${id}`, description: `Circumstances and the society's plates of the solar eclipse of ${id}.` };
+  return { title: `Solar eclipse of ${id}`, description: `Circumstances and the society's plates of the solar eclipse of ${id}.` };
 }
 
+/** To the nearest second, as the planner shows contact times. */
 function hms(ms: number): string {
-  return new Date(ms).toISOString().slice(11, 19);
+  return new Date(Math.round(ms / 1000) * 1000).toISOString().slice(11, 19);
 }
 
 /** Contacts at the point of greatest eclipse, computed from the ephemeris; null when the eclipse has no central line. */
@@ -39,16 +42,29 @@ export default async function EclipsePage({ params }: Props) {
   const eclipse = await foundOr404(findEclipse(db, id));
   const { plates } = await listPublishedPlates(db, { eclipseId: id, limit: 60 });
   const c = circumstancesAtPeak(eclipse.peakLatDeg, eclipse.peakLonDeg, eclipse.peakAt);
-  const sites = new Map<string, { name: string; country: string | null; count: number }>();
+  const sites = new Map<string, { name: string; country: string | null; plates: { slug: string; title: string }[] }>();
   for (const p of plates) {
     const key = `${p.siteLabel ?? ""}|${p.siteCountry}`;
-    const s = sites.get(key) ?? { name: p.siteLabel ?? "", country: p.siteCountry, count: 0 };
-    s.count += 1;
+    const s = sites.get(key) ?? { name: p.siteLabel ?? "", country: p.siteCountry, plates: [] };
+    s.plates.push({ slug: p.slug, title: p.title });
     sites.set(key, s);
   }
+  // One instant for "greatest eclipse" everywhere on the page: the maximum computed at its point
+  // (the catalogue's search instant differs by a second or two: it leaves out the Moon's light time).
+  const greatestMs = c ? c.maximum.utcMs : Date.parse(eclipse.peakAt);
+  const width = c && eclipse.kind !== "partial" ? (computeCentralPathAt(Date.parse(eclipse.peakAt), greatestMs)?.widthKm ?? null) : null;
+  const title = describeEclipse(eclipse);
   return (
     <>
-      <PageTitle title={eclipse.name ?? `The ${eclipse.kind} solar eclipse of ${eclipse.id}`} lead={`Greatest eclipse at ${eclipse.peakAt.slice(11, 19)} UTC, ${formatPoint(eclipse.peakLatDeg, eclipse.peakLonDeg)}.`}>
+      <PageTitle
+        title={title}
+        lead={
+          <>
+            {eclipse.name ? <span className="block font-medium text-ink">{eclipse.name}</span> : null}
+            Greatest eclipse at <span data-testid="greatest-eclipse">{hms(greatestMs)}</span> UTC, {formatPoint(eclipse.peakLatDeg, eclipse.peakLonDeg)}.
+          </>
+        }
+      >
         <Link href={`/planner?eclipse=${eclipse.id}`}>Plan for this eclipse</Link>
       </PageTitle>
       <div className="flex flex-col gap-10">
@@ -66,9 +82,9 @@ export default async function EclipsePage({ params }: Props) {
                   <dd className="font-mono">{hms(c.secondContact.utcMs)} UTC</dd>
                 </>
               ) : null}
-              <dt className="text-ink-muted">Maximum</dt>
+              <dt className="text-ink-muted">Maximum (greatest eclipse)</dt>
               <dd className="font-mono">
-                {hms(c.maximum.utcMs)} UTC, Sun {c.maximum.sunApparentAltDeg.toFixed(0)}° high
+                <span data-testid="maximum-time">{hms(c.maximum.utcMs)}</span> UTC, Sun {c.maximum.sunApparentAltDeg.toFixed(0)}° high
               </dd>
               {c.thirdContact ? (
                 <>
@@ -86,6 +102,12 @@ export default async function EclipsePage({ params }: Props) {
                   </dd>
                 </>
               ) : null}
+              {width !== null ? (
+                <>
+                  <dt className="text-ink-muted">Path width</dt>
+                  <dd className="font-mono">{Math.round(width)} km</dd>
+                </>
+              ) : null}
               <dt className="text-ink-muted">Magnitude</dt>
               <dd className="font-mono">{c.magnitude.toFixed(3)}</dd>
             </dl>
@@ -100,12 +122,31 @@ export default async function EclipsePage({ params }: Props) {
             Sites with results
           </h2>
           {sites.size ? (
-            <ul className="flex flex-col gap-1">
-              {[...sites.values()].map((s) => (
-                <li key={`${s.name}|${s.country}`}>
-                  {[s.name, s.country].filter(Boolean).join(", ") || "A site kept private"}: {s.count} plate{s.count === 1 ? "" : "s"}
-                </li>
-              ))}
+            <ul className="flex flex-col gap-2" aria-labelledby="sites-h">
+              {[...sites.values()].map((s) => {
+                const place = [s.name, s.country].filter(Boolean).join(", ") || "A site kept private";
+                return (
+                  <li key={`${s.name}|${s.country}`}>
+                    {s.plates.length === 1 ? (
+                      <Link href={`/plates/${s.plates[0].slug}`}>{place}</Link>
+                    ) : (
+                      <>
+                        <span className="font-medium">{place}</span>:{" "}
+                        {s.plates.map((p, i) => (
+                          <span key={p.slug}>
+                            {i > 0 ? ", " : ""}
+                            <Link href={`/plates/${p.slug}`}>{p.title}</Link>
+                          </span>
+                        ))}
+                      </>
+                    )}
+                    <span className="text-ink-muted">
+                      {" "}
+                      ({s.plates.length} plate{s.plates.length === 1 ? "" : "s"})
+                    </span>
+                  </li>
+                );
+              })}
             </ul>
           ) : (
             <p className="text-ink-muted">No published results yet.</p>

@@ -5,6 +5,7 @@ import { foundOr404 } from "@/app/_server/found";
 import { PageTitle } from "@/components/page-title";
 import { PageSection } from "@/components/ui/page-section";
 import { CoverageMap } from "@/components/reductions/coverage-map";
+import { FrameCorrections } from "@/components/reductions/frame-corrections";
 import { FrameLimbs } from "@/components/reductions/frame-limbs";
 import { RadialProfilePlot } from "@/components/reductions/radial-profile-plot";
 import { ReductionDownloads, ReductionMeasurements, ReductionParameters, Renditions, StageLog, type ShownParams } from "@/components/reductions/reduction-details";
@@ -61,6 +62,12 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
             <p role="alert" className="mt-8 rounded-control border border-warn/50 bg-warn/10 px-3 py-2 text-warn">
               {view.reportProblem} The renditions and downloads are still available; frame fits, profile and coverage cannot be shown.
             </p>
+          ) : null}
+
+          {report ? (
+            <PageSection id="corrections" title="Corrections and frames left out">
+              <FrameCorrections report={report} />
+            </PageSection>
           ) : null}
 
           <PageSection id="measurements" title="Measurements">

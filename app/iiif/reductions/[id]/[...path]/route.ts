@@ -5,6 +5,7 @@ import { serveReductionFile } from "@/lib/plates/reduction-files";
 export const dynamic = "force-dynamic";
 
 // Tiles (IIIF Image API level 0 and Deep Zoom), preview and downloads of a reduction.
-export const GET = route({ access: PUBLIC }, async ({ req, actor, params }) =>
-  serveReductionFile(getDb(), actor, params.id, params.path, new URL(req.url).searchParams.get("download") === "1", req.headers.get("if-none-match")),
-);
+export const GET = route({ access: PUBLIC }, async ({ req, actor, params }) => {
+  const search = new URL(req.url).searchParams;
+  return serveReductionFile(getDb(), actor, params.id, params.path, search.get("download") === "1", search.get("name"), req.headers.get("if-none-match"));
+});
