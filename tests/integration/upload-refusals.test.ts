@@ -7,26 +7,20 @@
 import { eq } from "drizzle-orm";
 import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { closeDb, getDb } from "@/db/client";
+import { getDb } from "@/db/client";
 import { frames, type Frame } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { correctFrame, removeRefusedFrame } from "@/lib/bracket-sets";
 import { encodeFits } from "@/lib/media/fits-write";
-import { closeProducerRedis } from "@/lib/queue/connection";
-import { closeQueues } from "@/lib/queue/enqueue";
 import { bucketName, findObjectSize } from "@/lib/storage";
 import { ingestFrame } from "@/worker/jobs/frame-ingest";
 import { requireTestDatabase } from "../support/env";
 import { waitFor } from "../support/wait";
-import { createMember, createSetFor, uploadFile } from "./bracket-upload-helpers";
+import { closeUploadTest, createMember, createSetFor, uploadFile } from "./bracket-upload-helpers";
 
 requireTestDatabase();
 const db = getDb();
-afterAll(async () => {
-  await closeQueues();
-  await closeProducerRedis();
-  await closeDb();
-});
+afterAll(closeUploadTest);
 
 const ingested = (frameId: string): Promise<Frame> =>
   waitFor(`ingest of frame ${frameId}`, async () => {
