@@ -27,7 +27,8 @@ async function run(job: Job): Promise<void> {
     await job.updateProgress(Math.round(fraction * 100));
     await mirrorJob(db, id, { stage, progress: Math.max(0, Math.min(1, fraction)) });
   };
-  await HANDLERS[name]({ db, jobId: id, payload: parsed.data as never, report });
+  const isLastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
+  await HANDLERS[name]({ db, jobId: id, payload: parsed.data as never, report, isLastAttempt });
 }
 
 /** A whole number of milliseconds from env, at least 1 s; a bad value stops the worker naming the variable. */

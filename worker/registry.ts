@@ -15,6 +15,8 @@ export interface JobContext<N extends JobName> {
   payload: JobPayload<N>;
   /** Reports stage and progress (0..1); mirrored to PostgreSQL. */
   report: (stage: string, fraction: number) => Promise<void>;
+  /** True on the job's last attempt: a handler whose failure would leave a row waiting for ever records the failure itself. */
+  isLastAttempt: boolean;
 }
 
 export type JobHandler<N extends JobName> = (ctx: JobContext<N>) => Promise<void>;

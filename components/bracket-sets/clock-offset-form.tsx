@@ -7,6 +7,7 @@ import type { FrameDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
 import { callApi } from "./api-client";
 import { useApiAction } from "./use-api-action";
+import { parseStrictNumber } from "@/lib/strict-number";
 
 type Mode = "typed" | "frame";
 
@@ -22,8 +23,8 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
     let body: Record<string, unknown>;
     if (mode === "typed") {
       const text = String(form.get("clockOffsetS") ?? "").trim();
-      const value = Number(text);
-      if (text === "" || !Number.isFinite(value)) {
+      const value = parseStrictNumber(text);
+      if (Number.isNaN(value)) {
         setResult({ tone: "danger", text: `Clock offset: "${text}" is not a number of seconds.`, field: "clockOffsetS" });
         return;
       }

@@ -240,7 +240,23 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
                   <a href={`/api/bracket-sets/${setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
                     {f.fileName}
                   </a>
-                  {f.ingestState === "refused" ? <p className="mt-1 font-sans text-danger">Refused: {f.refusalReason}</p> : null}
+                  {f.ingestState === "refused" ? (
+                    <div className="mt-1 font-sans">
+                      <p className="text-danger">Refused: {f.refusalReason}</p>
+                      {canEdit ? (
+                        <Button
+                          size="sm"
+                          variant="quiet"
+                          className="mt-1"
+                          pending={busy === `remove-${f.id}`}
+                          aria-label={`Remove the refused frame ${f.fileName}`}
+                          onClick={() => void run(`remove-${f.id}`, () => callApi(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "DELETE" }), `${f.fileName} was removed; you can send the file again.`)}
+                        >
+                          Remove
+                        </Button>
+                      ) : null}
+                    </div>
+                  ) : null}
                 </th>
                 <td className="px-3 py-2 font-mono" title={f.captureAt ? `Camera clock: ${f.captureAt}` : undefined}>
                   {timeOf(f)}
@@ -267,7 +283,11 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
                     <span className="font-mono">{formatExposure(f.exposureS)}</span>
                   )}
                   {f.exposureSource === "photographer" ? <span className="block text-xs text-ink-muted">set by you</span> : null}
-                  {f.needsExposure ? <span className="block text-xs font-medium text-danger">the file gives none</span> : null}
+                  {f.needsExposure ? (
+                    <span className="block text-xs font-medium text-danger">
+                      {f.flags.implausibleExposureS !== undefined ? `the file says ${f.flags.implausibleExposureS} s, which cannot be right: give the exposure` : "the file gives none"}
+                    </span>
+                  ) : null}
                 </td>
                 <td className="px-3 py-2 font-mono">
                   {f.iso ?? "—"} · {f.fNumber ?? "—"}

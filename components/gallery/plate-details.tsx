@@ -54,16 +54,18 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
             <Link href={`/eclipses/${plate.eclipseId}`}>Total solar eclipse of {plate.eclipseId}</Link>
           </Row>
           <Row term="Site">
-            {plate.site.name}
-            {plate.site.kind === "moving" ? " (moving: ship or aircraft)" : ""}
             {pos ? (
-              <span className="block font-mono text-ink-muted">
-                {pos.latDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°, {pos.lonDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°{pos.precision === "rounded" ? " (rounded to about 10 km)" : ""}
-              </span>
+              <>
+                {plate.site.label}
+                {plate.site.kind === "moving" ? `${plate.site.label ? " " : ""}(moving: ship or aircraft)` : ""}
+                <span className="block font-mono text-ink-muted">
+                  {pos.latDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°, {pos.lonDeg.toFixed(pos.precision === "exact" ? 4 : 1)}°{pos.precision === "rounded" ? " (rounded to about 10 km)" : ""}
+                </span>
+                {plate.siteCountry ? <span className="block text-ink-muted">{plate.siteCountry}</span> : null}
+              </>
             ) : (
-              <span className="block text-ink-muted">The observer keeps the exact position private.</span>
+              <span className="text-ink-muted">The observer keeps the site private.</span>
             )}
-            {plate.siteCountry ? <span className="block text-ink-muted">{plate.siteCountry}</span> : null}
           </Row>
           {plate.captureSpan ? (
             <Row term="Time">

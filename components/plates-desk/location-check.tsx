@@ -10,10 +10,10 @@ export function LocationCheck({ location }: { location: LocationCheckDto | null 
   return (
     <div className="flex max-w-3xl flex-col gap-2 text-sm">
       <p>
-        Site “{location.siteName}”, precision <strong>{location.precision}</strong>.{" "}
+        Site “{location.siteName}” (the photographer&apos;s private name), precision <strong>{location.precision}</strong>.{" "}
         {shown
-          ? `The public page shows ${fmt(shown.latDeg, "N", "S", shown.precision === "exact" ? 5 : 1)}, ${fmt(shown.lonDeg, "E", "W", shown.precision === "exact" ? 5 : 1)}${shown.precision === "rounded" ? " (rounded to about 10 km)" : ""}.`
-          : "The public page shows the site's name and country only, no position."}
+          ? `The public page shows ${location.publicLabel ? `the label “${location.publicLabel}”, ` : "no label, "}the country and ${fmt(shown.latDeg, "N", "S", shown.precision === "exact" ? 5 : 1)}, ${fmt(shown.lonDeg, "E", "W", shown.precision === "exact" ? 5 : 1)}${shown.precision === "rounded" ? " (rounded to about 10 km)" : ""}.`
+          : "The public page shows nothing of the site: no name, no country, no position."}
       </p>
       {location.warning ? (
         <p role="note" className="rounded-control border border-warn/50 bg-warn/10 p-3">

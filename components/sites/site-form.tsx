@@ -7,26 +7,31 @@ import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
 import type { FormAction } from "@/components/forms/action-result";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "@/lib/sites/limits";
+import type { SiteDto } from "@/lib/sites/sites";
 
 
 const PRECISION_OPTIONS = [
-  { value: "exact", label: "Exact: public pages may show the position as entered" },
-  { value: "rounded", label: "Rounded: public pages show it to about 10 km" },
-  { value: "hidden", label: "Hidden: public pages show no position" },
+  { value: "exact", label: "Exact: public pages and files may show the position as entered" },
+  { value: "rounded", label: "Rounded: public pages and files show it to about 10 km" },
+  { value: "hidden", label: "Hidden: public pages and files show no position, label or country" },
 ];
 
 /**
  * A fixed site takes coordinates; a moving one a GPX or CSV track, read in the
- * browser and sent as text (the server parses and checks every point).
+ * browser and sent as text (the server parses and checks every point). Given a
+ * site, the form edits it; a moving site then keeps its track unless a new file
+ * is chosen.
  */
-export function SiteForm({ action }: { action: FormAction }) {
+export function SiteForm({ action, site }: { action: FormAction; site?: SiteDto }) {
   const [state, formAction] = useActionState(action, null);
-  const [kind, setKind] = useState<"fixed" | "moving">("fixed");
+  const [kind, setKind] = useState<"fixed" | "moving">(site?.kind ?? "fixed");
+  const keepsTrack = site?.kind === "moving" && kind === "moving";
   const [track, setTrack] = useState<{ name: string; text: string } | null>(null);
   const [readError, setReadError] = useState("");
   const err = (f: string) => state?.fields?.find((x) => x.field === f)?.message;
   // After a refused submission, show what was typed (React resets the form).
   const v = (name: string, fallback = "") => state?.values?.[name] ?? fallback;
+  const initial = (name: keyof SiteDto) => (site && site[name] !== null ? String(site[name]) : "");
 
   async function onFile(e: ChangeEvent<HTMLInputElement>) {
     const file = e.target.files?.[0];
@@ -43,8 +48,16 @@ export function SiteForm({ action }: { action: FormAction }) {
   return (
     <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex flex-col gap-5">
       {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
-      <Field label="Site name" hint="For example “Luxor, west bank” or “MV Sfax Star, deck 6”." error={err("name")} required>
-        <Input name="name" defaultValue={v("name")} required maxLength={80} />
+      {site ? <input type="hidden" name="id" value={site.id} /> : null}
+      <Field label="Site name" hint="Yours only: for example “Luxor, the hotel roof” or “MV Sfax Star, deck 6”. Public pages never show it." error={err("name")} required>
+        <Input name="name" defaultValue={v("name", initial("name"))} required maxLength={80} />
+      </Field>
+      <Field
+        label="Public label"
+        hint="What public pages call the place when the location is exact or rounded, such as a town or a sea: “Luxor”, “Gulf of Gabes”. Leave it empty to show the country only."
+        error={err("publicLabel")}
+      >
+        <Input name="publicLabel" defaultValue={v("publicLabel", initial("publicLabel"))} maxLength={80} />
       </Field>
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 font-medium">Kind of site</legend>
@@ -60,23 +73,23 @@ export function SiteForm({ action }: { action: FormAction }) {
       {kind === "fixed" ? (
         <div className="grid gap-5 sm:grid-cols-3">
           <Field label="Latitude (°)" hint="North positive, e.g. 25.69." error={err("latDeg")} required>
-            <Input name="latDeg" type="number" step="any" min={-90} max={90} inputMode="decimal" defaultValue={v("latDeg")} required />
+            <Input name="latDeg" type="number" step="any" min={-90} max={90} inputMode="decimal" defaultValue={v("latDeg", site?.kind === "fixed" ? initial("latDeg") : "")} required />
           </Field>
           <Field label="Longitude (°)" hint="East positive, e.g. 32.64." error={err("lonDeg")} required>
-            <Input name="lonDeg" type="number" step="any" min={-180} max={180} inputMode="decimal" defaultValue={v("lonDeg")} required />
+            <Input name="lonDeg" type="number" step="any" min={-180} max={180} inputMode="decimal" defaultValue={v("lonDeg", site?.kind === "fixed" ? initial("lonDeg") : "")} required />
           </Field>
           <Field label="Elevation (m)" hint="Above sea level." error={err("elevationM")}>
-            <Input name="elevationM" type="number" step="any" defaultValue={v("elevationM", "0")} inputMode="decimal" />
+            <Input name="elevationM" type="number" step="any" defaultValue={v("elevationM", site?.kind === "fixed" ? initial("elevationM") : "0")} inputMode="decimal" />
           </Field>
         </div>
       ) : (
         <Field
           label="Track file (GPX or CSV)"
-          hint="CSV: a header row with time (ISO 8601, UTC), lat, lon and optionally elevation_m."
+          hint={`CSV: a header row with time (ISO 8601, UTC), lat, lon and optionally elevation_m.${keepsTrack ? ` Leave it empty to keep ${site?.trackFileName ?? "the present track"}.` : ""}`}
           error={readError || err("trackText") || err("trackFileName")}
-          required
+          required={!keepsTrack}
         >
-          <Input type="file" accept=".gpx,.csv,application/gpx+xml,text/csv" onChange={onFile} required />
+          <Input type="file" accept=".gpx,.csv,application/gpx+xml,text/csv" onChange={onFile} required={!keepsTrack} />
         </Field>
       )}
       {kind === "moving" && track ? (
@@ -86,10 +99,10 @@ export function SiteForm({ action }: { action: FormAction }) {
         </>
       ) : null}
       <Field label="Location on public pages" error={err("precision")}>
-        <Select name="precision" defaultValue={v("precision", "rounded")} options={PRECISION_OPTIONS} />
+        <Select name="precision" defaultValue={v("precision", site?.precision ?? "rounded")} options={PRECISION_OPTIONS} />
       </Field>
       <div>
-        <SubmitButton>Save site</SubmitButton>
+        <SubmitButton>{site ? "Save changes" : "Save site"}</SubmitButton>
       </div>
     </form>
   );

@@ -50,6 +50,11 @@ export interface FrameFlags {
   clippedFraction?: number;
   /** The file gave no time zone, so its clock was taken to read UTC. */
   isTimeZoneAssumed?: boolean;
+  /**
+   * The exposure the file gave, when it lay outside the plausible range
+   * (lib/media/exposure.ts): it is not used, and the photographer gives one.
+   */
+  implausibleExposureS?: number;
   /** Set on a refused duplicate: the frame that holds the same bytes. */
   duplicateOfFrameId?: string;
   /** 64 pixel counts of the luminance, bins of equal width from 0 to the white level. */
@@ -105,8 +110,9 @@ export const frames = pgTable(
   },
   (t) => [
     index("frames_bracket_set_idx").on(t.bracketSetId),
-    // The same bytes twice in one set are detected, never stored as two frames.
-    uniqueIndex("frames_bracket_set_sha256_key").on(t.bracketSetId, t.sha256),
+    // The same bytes twice in one set are detected, never stored as two frames; a refused
+    // frame holds no claim on its bytes, so the same file can come again (renamed, say).
+    uniqueIndex("frames_bracket_set_sha256_key").on(t.bracketSetId, t.sha256).where(sql`${t.ingestState} <> 'refused'`),
     check("frames_positive_exposure", sql`${t.exposureS} is null or ${t.exposureS} > 0`),
     check("frames_group_number_positive", sql`${t.groupNumber} >= 1`),
   ],

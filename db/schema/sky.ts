@@ -38,7 +38,10 @@ export const sites = pgTable(
     ownerId: text("owner_id")
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),
+    // Private: the owner's own name for the place (it may be a street or a car park).
     name: text("name").notNull(),
+    // What public pages call the place (a town, a region); empty shows none. Never shown for a hidden site.
+    publicLabel: text("public_label").notNull().default(""),
     kind: text("kind", { enum: SITE_KINDS }).notNull(),
     // Fixed sites: the place; moving sites: the first point of the track.
     latDeg: doublePrecision("lat_deg").notNull(),

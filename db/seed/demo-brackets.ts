@@ -38,8 +38,12 @@ async function findActor(db: Db, email: string): Promise<Actor> {
 }
 
 async function ensureSite(db: Db, actor: Actor, party: DemoParty): Promise<{ id: string; track: NonNullable<typeof sites.$inferSelect.track> | null }> {
-  const [found] = await db.select({ id: sites.id, track: sites.track }).from(sites).where(and(eq(sites.ownerId, actor.userId), eq(sites.name, party.site.name))).limit(1);
-  if (found) return found;
+  const [found] = await db.select({ id: sites.id, track: sites.track, publicLabel: sites.publicLabel }).from(sites).where(and(eq(sites.ownerId, actor.userId), eq(sites.name, party.site.name))).limit(1);
+  if (found) {
+    // A site seeded before sites had public labels gets the demo's label once.
+    if (!found.publicLabel) await db.update(sites).set({ publicLabel: party.site.publicLabel }).where(and(eq(sites.id, found.id), eq(sites.ownerId, actor.userId)));
+    return { id: found.id, track: found.track };
+  }
   const created = await createSite(db, actor, party.site);
   const [row] = await db.select({ id: sites.id, track: sites.track }).from(sites).where(eq(sites.id, created.id)).limit(1);
   return row;

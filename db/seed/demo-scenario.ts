@@ -43,7 +43,7 @@ export function buildShipTrackCsv(): string {
 export const DEMO_PARTIES: DemoParty[] = [
   {
     email: "oskar.lindqvist@kestrel-ridge.example",
-    site: { kind: "fixed", name: "Luxor, west bank of the Nile", latDeg: 25.69, lonDeg: 32.64, elevationM: 80, precision: "rounded" },
+    site: { kind: "fixed", name: "Luxor, west bank of the Nile", publicLabel: "Luxor", latDeg: 25.69, lonDeg: 32.64, elevationM: 80, precision: "rounded" },
     kit: {
       name: "Tracking mount, 100 mm lens, mono camera",
       camera: "Cooled mono camera",
@@ -69,7 +69,7 @@ export const DEMO_PARTIES: DemoParty[] = [
   },
   {
     email: "nadia.fairweather@kestrel-ridge.example",
-    site: { kind: "fixed", name: "Cadiz, Campo del Sur", latDeg: 36.53, lonDeg: -6.29, elevationM: 10, precision: "exact" },
+    site: { kind: "fixed", name: "Cadiz, Campo del Sur", publicLabel: "Cadiz", latDeg: 36.53, lonDeg: -6.29, elevationM: 10, precision: "exact" },
     kit: {
       name: "Tripod, 120 mm lens, colour camera",
       camera: "Colour mirrorless camera",
@@ -95,7 +95,7 @@ export const DEMO_PARTIES: DemoParty[] = [
   },
   {
     email: "priya.raman-holt@kestrel-ridge.example",
-    site: { kind: "moving", name: "Ship's deck, Gulf of Gabes off Sfax", trackFileName: "gulf-of-gabes-track.csv", trackText: buildShipTrackCsv(), precision: "rounded" },
+    site: { kind: "moving", name: "Ship's deck, Gulf of Gabes off Sfax", publicLabel: "Gulf of Gabes (at sea)", trackFileName: "gulf-of-gabes-track.csv", trackText: buildShipTrackCsv(), precision: "rounded" },
     kit: {
       name: "Gyro-levelled alt-az head, 90 mm lens, colour camera",
       camera: "Colour mirrorless camera",

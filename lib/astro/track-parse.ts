@@ -4,6 +4,7 @@
 // <time> children; everything else in the file is ignored. Errors name the
 // point (1-based, in file order) and its line.
 import { AstroError } from "./errors";
+import { parseStrictNumber } from "@/lib/strict-number";
 
 export interface TrackPoint {
   timeMs: number;
@@ -91,9 +92,9 @@ function readChild(body: string, name: string, stats: ScanStats): string | null 
   return end < 0 ? null : body.slice(tag.close + 1, end).trim();
 }
 
+/** Plain decimal notation only (lib/strict-number.ts): "0x20" is not 32. */
 function parseNumber(raw: string | null): number {
-  if (raw === null || raw.trim() === "") return NaN;
-  return Number(raw.trim());
+  return raw === null ? NaN : parseStrictNumber(raw);
 }
 
 /** Parses an ISO 8601 instant that names its offset; NaN when it does not. */

@@ -7,6 +7,8 @@ import type { DbOrTx } from "@/db/client";
 import { frames } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
+import { isPlausibleExposure, MAX_EXPOSURE_S, MIN_EXPOSURE_S } from "@/lib/media/exposure";
+import { bucketName, deleteObject } from "@/lib/storage";
 import { findOwnOpenSet } from "./access";
 import { findCalibrationFaultInSet, isCalibrationKind, toFrameShape } from "./calibration-check";
 import { toFrameDto } from "./bracket-sets";
@@ -16,6 +18,11 @@ import type { CorrectFrameInput } from "./schemas";
 export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string, input: CorrectFrameInput): Promise<FrameDto> {
   const { set } = await findOwnOpenSet(db, actor, setId);
   if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
+  // The route's schema checks this too; every caller of this function gets the same rule.
+  if (input.exposureS !== undefined && !isPlausibleExposure(input.exposureS)) {
+    const message = `must be between ${MIN_EXPOSURE_S} and ${MAX_EXPOSURE_S} s (received ${input.exposureS})`;
+    throw new AppError("invalid_input", `The exposure of a frame ${message}.`, [{ field: "exposureS", message }]);
+  }
   const [frame] = await db.select().from(frames).where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id))).limit(1);
   if (!frame) throw notFound("That frame");
   if (input.kind !== undefined && isCalibrationKind(input.kind) && frame.ingestState === "ingested") {
@@ -37,4 +44,31 @@ export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: strin
     .where(and(eq(frames.id, frame.id), eq(frames.bracketSetId, set.id)))
     .returning();
   return toFrameDto(row, set.clockOffsetS);
+}
+
+/**
+ * Removes a refused frame from the owner's open set: its row, its original and
+ * any thumbnail. Only a refused frame: an ingested one is excluded instead, so
+ * that nothing a reduction used ever disappears. Its bytes can then be sent again.
+ */
+export async function removeRefusedFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<void> {
+  const { set } = await findOwnOpenSet(db, actor, setId);
+  if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
+  const [frame] = await db
+    .select({ id: frames.id, ingestState: frames.ingestState, originalKey: frames.originalKey, thumbnailKey: frames.thumbnailKey, originalFileName: frames.originalFileName })
+    .from(frames)
+    .where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id)))
+    .limit(1);
+  if (!frame) throw notFound("That frame");
+  if (frame.ingestState !== "refused") {
+    throw new AppError("conflict", `${frame.originalFileName} was not refused, so it stays; leave it out of reductions by excluding it instead.`);
+  }
+  const removed = await db
+    .delete(frames)
+    .where(and(eq(frames.id, frame.id), eq(frames.bracketSetId, set.id), eq(frames.ingestState, "refused")))
+    .returning({ id: frames.id });
+  if (!removed.length) throw notFound("That frame");
+  // The row is gone first: a failure below leaves only an unreferenced object, never a frame without its original.
+  await deleteObject({ bucket: bucketName("originals"), key: frame.originalKey }).catch((err: unknown) => console.error(`[frames] original of removed frame ${frame.id} stays in storage:`, err));
+  if (frame.thumbnailKey) await deleteObject({ bucket: bucketName("derived"), key: frame.thumbnailKey }).catch(() => undefined);
 }

@@ -4,6 +4,8 @@ import { z } from "zod";
 import { FRAME_KINDS } from "@/db/schema";
 import { MAX_PARTS_PER_SIGNING } from "@/lib/storage/limits";
 import { DEFAULT_GROUP_GAP_S } from "./grouping";
+import { strictNumber } from "@/lib/strict-number";
+import { MAX_EXPOSURE_S, MIN_EXPOSURE_S } from "@/lib/media/exposure";
 
 const uuid = (what: string) => z.uuid({ error: `expected the id of ${what}` });
 
@@ -14,7 +16,7 @@ export const createBracketSetSchema = z.object({
   // A form's "No kit" sends an empty string.
   kitId: z.preprocess((v) => (v === "" ? null : v), uuid("one of your kits").nullish()).transform((v) => v ?? null),
   notes: z.string().trim().max(4000).optional().default(""),
-  clockOffsetS: z.coerce.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).min(-86_400).max(86_400).optional().default(0),
+  clockOffsetS: strictNumber(z.number({ error: "expected seconds" }).min(-86_400).max(86_400).optional().default(0)),
 });
 export type CreateBracketSetInput = z.infer<typeof createBracketSetSchema>;
 
@@ -43,7 +45,12 @@ export const signPartsSchema = z.object({
 
 export const correctFrameSchema = z
   .object({
-    exposureS: z.number({ error: "expected seconds" }).refine(Number.isFinite, { error: "expected a number of seconds" }).gt(0, { error: "must be more than 0 s" }).max(3600, { error: "must be at most 3600 s" }).optional(),
+    exposureS: z
+      .number({ error: "expected seconds" })
+      .refine(Number.isFinite, { error: "expected a number of seconds" })
+      .min(MIN_EXPOSURE_S, { error: `must be at least ${MIN_EXPOSURE_S} s (a microsecond)` })
+      .max(MAX_EXPOSURE_S, { error: `must be at most ${MAX_EXPOSURE_S} s` })
+      .optional(),
     kind: z.enum(FRAME_KINDS, { error: `expected one of ${FRAME_KINDS.join(", ")}` }).optional(),
     included: z.boolean({ error: "expected true or false" }).optional(),
   })
@@ -89,7 +96,7 @@ export const groupActionSchema = z.discriminatedUnion(
     z.object({ action: z.literal("split"), frameId: uuid("the frame that starts the new group") }),
     z.object({
       action: z.literal("merge"),
-      groupNumber: z.coerce.number({ error: "expected a group number" }).int({ error: "expected a whole group number" }).min(2, { error: "the first group has no group before it" }).max(999),
+      groupNumber: strictNumber(z.number({ error: "expected a group number" }).int({ error: "expected a whole group number" }).min(2, { error: "the first group has no group before it" }).max(999)),
     }),
     z.object({
       action: z.literal("auto"),

@@ -3,6 +3,7 @@
 import { z } from "zod";
 import { EDITION_KINDS, EDITION_SLOTS, RENDITIONS } from "@/db/schema";
 import { CUSTOM_DPI, CUSTOM_MM } from "./print-sizes";
+import { strictNumber } from "@/lib/strict-number";
 
 const DATE_EXPECTED = "expected a date as YYYY-MM-DD, or nothing for no embargo";
 // null and "" both mean no embargo; one schema, so a bad value gets this message and not a union's "Invalid input".
@@ -31,7 +32,7 @@ export const addItemSchema = z.object({
   rendition: z.enum(RENDITIONS, { error: "expected natural or structure" }).optional(),
 });
 
-const optionalNumber = z.preprocess((v) => (v === "" || v === null ? undefined : v), z.coerce.number({ error: "expected a number" }).optional());
+const optionalNumber = z.preprocess((v) => (v === null ? undefined : v), strictNumber(z.number({ error: "expected a number" }).optional()));
 
 export const updateItemSchema = z
   .object({

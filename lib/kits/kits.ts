@@ -6,12 +6,12 @@ import type { DbOrTx } from "@/db/client";
 import { kits, MOUNTS, type Kit } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { notFound } from "@/lib/errors";
+import { strictNumber } from "@/lib/strict-number";
 
-// Form fields arrive as strings: numbers are coerced, checkboxes are "on" or absent.
+// Form fields arrive as strings: numbers are read strictly (lib/strict-number.ts), checkboxes are "on" or absent.
 const positive = (what: string, max: number) =>
-  z.coerce
+  z
     .number({ error: `expected a number (${what})` })
-    .refine(Number.isFinite, { error: "expected a number" })
     .gt(0, { error: `must be greater than 0 (${what})` })
     .max(max, { error: `must be at most ${max} (${what})` });
 const checkbox = z.union([z.literal("on"), z.literal("true"), z.literal("false"), z.boolean()]).optional().transform((v) => v === true || v === "on" || v === "true");
@@ -19,12 +19,12 @@ const checkbox = z.union([z.literal("on"), z.literal("true"), z.literal("false")
 export const kitInputSchema = z.object({
   name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
   camera: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
-  sensorWidthMm: positive("mm", 100),
-  sensorHeightMm: positive("mm", 100),
-  pixelPitchUm: positive("micrometres", 50),
-  focalMm: positive("mm", 20_000),
-  teleconverter: positive("factor", 4).default(1),
-  fNumber: positive("f-number", 128),
+  sensorWidthMm: strictNumber(positive("mm", 100)),
+  sensorHeightMm: strictNumber(positive("mm", 100)),
+  pixelPitchUm: strictNumber(positive("micrometres", 50)),
+  focalMm: strictNumber(positive("mm", 20_000)),
+  teleconverter: strictNumber(positive("factor", 4).default(1)),
+  fNumber: strictNumber(positive("f-number", 128)),
   mount: z.enum(MOUNTS, { error: `expected one of ${MOUNTS.join(", ")}` }),
   flipHorizontal: checkbox,
   flipVertical: checkbox,

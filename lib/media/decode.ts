@@ -66,6 +66,9 @@ export async function decodeFrame(input: Buffer | string, name: string): Promise
   if (format === "fits") {
     const fits = await readFits(bytes, name);
     const { width, height, planes } = fits;
+    if (planes.length !== 1 && planes.length !== 3) {
+      throw new MediaError("unsupported", name, `NAXIS3 = ${planes.length}: a frame has 1 plane (mono) or 3 (red, green, blue), not ${planes.length}`);
+    }
     const offset = readFitsOffset(fits.header);
     return {
       name,
@@ -76,7 +79,7 @@ export async function decodeFrame(input: Buffer | string, name: string): Promise
       blackLevelSource: offset === undefined ? "none" : "file",
       whiteLevel: fitsWhiteLevel(fits.bitpix, fits.bzero, fits.bscale, fits.header),
       encoding: "linear",
-      metadata: readFitsMetadata(fits.header),
+      metadata: readFitsMetadata(fits.header, name),
     };
   }
   return decodeRasterFrame(bytes, name, format);
@@ -87,7 +90,7 @@ async function decodeRasterFrame(input: Buffer | string, name: string, format: M
   const isRaw = RAW_FORMATS.has(format);
   const [pixels, metadata] = await Promise.all([
     isRaw ? decodeCameraRaw(input, name) : decodeRaster(input, name),
-    readExifMetadata(input),
+    readExifMetadata(input, name),
   ]);
   const is8 = pixels.bitDepth === 8;
   return {

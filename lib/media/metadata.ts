@@ -3,6 +3,7 @@
 // DateTimeOriginal as the server's local time, and FITS DATE-OBS is UTC by the
 // standard's default TIMESYS (FITS 4.0 section 9.2.1).
 import exifr from "exifr";
+import { MediaError } from "./errors";
 import type { FitsValue } from "./fits-cards";
 
 export interface FrameMetadata {
@@ -45,6 +46,17 @@ function text(value: unknown): string | undefined {
 }
 
 /**
+ * UTC milliseconds of a calendar date and time, or undefined when the parts name
+ * no real instant (month 13, 31 April, 25 h): Date.UTC would silently roll them
+ * over into the next month or day.
+ */
+export function utcFromParts(y: number, mo: number, d: number, h = 0, mi = 0, s = 0): number | undefined {
+  if (mo < 1 || mo > 12 || d < 1 || h > 23 || mi > 59 || s > 59) return undefined;
+  const ms = Date.UTC(y, mo - 1, d, h, mi, s);
+  return new Date(ms).getUTCDate() === d ? ms : undefined;
+}
+
+/**
  * UTC milliseconds from EXIF 2.32 strings: DateTimeOriginal "YYYY:MM:DD HH:MM:SS",
  * SubSecTimeOriginal (decimal digits of the second), OffsetTimeOriginal "+HH:MM".
  */
@@ -54,7 +66,11 @@ export function buildExifCaptureTime(dateTime: string, subSec?: string, offset?:
   const [, y, mo, d, h, mi, s] = match.map(Number);
   const digits = (subSec ?? "").trim().replace(/\D.*$/, "");
   const fractionMs = digits ? Number(`0.${digits}`) * 1000 : 0;
-  const local = Date.UTC(y, mo - 1, d, h, mi, s) + fractionMs;
+  const start = utcFromParts(y, mo, d, h, mi, s);
+  // "0000:00:00 00:00:00" is how cameras whose clock was never set write "unknown".
+  if (start === undefined && y === 0 && mo === 0 && d === 0) return undefined;
+  if (start === undefined) throw new RangeError(`DateTimeOriginal "${dateTime.trim()}" is not a real date and time`);
+  const local = start + fractionMs;
   const zone = /^([+-])(\d{2}):?(\d{2})$/.exec((offset ?? "").trim());
   if (!zone) return { captureTimeMs: local, isTimeZoneAssumed: true };
   const offsetMs = (zone[1] === "-" ? -1 : 1) * (Number(zone[2]) * 60 + Number(zone[3])) * 60_000;
@@ -62,7 +78,7 @@ export function buildExifCaptureTime(dateTime: string, subSec?: string, offset?:
 }
 
 /** EXIF of a JPEG, TIFF, PNG or TIFF-based raw; an empty object when the file has none. */
-export async function readExifMetadata(input: Uint8Array | string): Promise<FrameMetadata> {
+export async function readExifMetadata(input: Uint8Array | string, fileName = typeof input === "string" ? input : "the file"): Promise<FrameMetadata> {
   let tags: Record<string, unknown> | undefined;
   try {
     tags = await exifr.parse(input instanceof Uint8Array ? Buffer.from(input.buffer, input.byteOffset, input.byteLength) : input, {
@@ -92,26 +108,42 @@ export async function readExifMetadata(input: Uint8Array | string): Promise<Fram
   };
   const dateTime = text(tags.DateTimeOriginal);
   if (dateTime) {
-    const built = buildExifCaptureTime(dateTime, text(String(tags.SubSecTimeOriginal ?? "")), text(tags.OffsetTimeOriginal) ?? text(tags.OffsetTime));
+    let built: ReturnType<typeof buildExifCaptureTime>;
+    try {
+      built = buildExifCaptureTime(dateTime, text(String(tags.SubSecTimeOriginal ?? "")), text(tags.OffsetTimeOriginal) ?? text(tags.OffsetTime));
+    } catch (err) {
+      throw new MediaError("corrupt", fileName, `EXIF ${(err as Error).message}; nothing was rolled over into another day`);
+    }
     if (built) Object.assign(metadata, built);
   }
   return dropUndefined(metadata);
 }
 
-/** ISO 8601 DATE-OBS (with TIME-OBS when DATE-OBS holds the date only), read as UTC. */
+/**
+ * ISO 8601 DATE-OBS (with TIME-OBS when DATE-OBS holds the date only), read as
+ * UTC; undefined when the text is not in that form, a RangeError when it is but
+ * names no real instant (month 13).
+ */
 export function parseFitsDate(dateObs: string, timeObs?: string): number | undefined {
   const full = /^\d{4}-\d{2}-\d{2}$/.test(dateObs.trim()) && timeObs ? `${dateObs.trim()}T${timeObs.trim()}` : dateObs.trim();
   const match = /^(\d{4})-(\d{2})-(\d{2})(?:T(\d{2}):(\d{2}):(\d{2})(\.\d+)?)?$/.exec(full);
   if (!match) return undefined;
   const [, y, mo, d, h = "0", mi = "0", s = "0", fraction = ""] = match;
   const fractionMs = fraction ? Number(fraction) * 1000 : 0;
-  return Date.UTC(Number(y), Number(mo) - 1, Number(d), Number(h), Number(mi), Number(s)) + fractionMs;
+  const start = utcFromParts(Number(y), Number(mo), Number(d), Number(h), Number(mi), Number(s));
+  if (start === undefined) throw new RangeError(`"${full}" is not a real date and time`);
+  return start + fractionMs;
 }
 
 /** Capture description from FITS cards (EXPTIME or EXPOSURE, DATE-OBS, GAIN, INSTRUME, TELESCOP, FOCALLEN, XPIXSZ). */
-export function readFitsMetadata(header: Map<string, FitsValue>): FrameMetadata {
+export function readFitsMetadata(header: Map<string, FitsValue>, fileName = "FITS file"): FrameMetadata {
   const dateObs = text(header.get("DATE-OBS"));
-  const captureTimeMs = dateObs ? parseFitsDate(dateObs, text(header.get("TIME-OBS"))) : undefined;
+  let captureTimeMs: number | undefined;
+  try {
+    captureTimeMs = dateObs ? parseFitsDate(dateObs, text(header.get("TIME-OBS"))) : undefined;
+  } catch (err) {
+    throw new MediaError("fits-header", fileName, `card DATE-OBS${header.has("TIME-OBS") ? " (with TIME-OBS)" : ""}: ${(err as Error).message}; nothing was rolled over into another day`);
+  }
   return dropUndefined({
     exposureS: positiveNumber(header.get("EXPTIME")) ?? positiveNumber(header.get("EXPOSURE")),
     captureTimeMs,

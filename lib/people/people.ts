@@ -9,6 +9,7 @@ import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { ROLES, type Role } from "@/lib/auth/roles";
 import { AppError, notFound } from "@/lib/errors";
+import { strictNumber } from "@/lib/strict-number";
 
 export interface PersonDto {
   id: string;
@@ -28,8 +29,8 @@ export interface PeoplePage {
 
 export const peopleQuerySchema = z.object({
   q: z.string().trim().max(100).optional().default(""),
-  page: z.coerce.number().int().min(1).max(10_000).optional().default(1),
-  pageSize: z.coerce.number().int().min(5).max(100).optional().default(20),
+  page: strictNumber(z.number().int().min(1).max(10_000).optional().default(1)),
+  pageSize: strictNumber(z.number().int().min(5).max(100).optional().default(20)),
 });
 export type PeopleQuery = z.infer<typeof peopleQuerySchema>;
 

@@ -9,12 +9,14 @@ import { AppError } from "@/lib/errors";
 import { findKit } from "@/lib/kits/kits";
 import { findOwnSite } from "@/lib/sites/sites";
 import type { PlanInput } from "./plan";
+import { strictNumber } from "@/lib/strict-number";
 import { SENSOR_FORMAT_KEYS, resolveSensor } from "./sensor-formats";
 
+// Numbers in plain decimal notation only (lib/strict-number.ts): "0x20" is not 32.
 const optionalNumber = (min: number, max: number, unit: string) => {
   const expected = `expected a number from ${min} to ${max}${unit ? ` ${unit}` : ""}`;
   return z
-    .union([z.literal(""), z.coerce.number({ error: expected }).min(min, { error: expected }).max(max, { error: expected })], { error: expected })
+    .union([z.literal(""), strictNumber(z.number({ error: expected }).min(min, { error: expected }).max(max, { error: expected }))], { error: expected })
     .optional()
     .transform((v) => (v === "" || v === undefined ? undefined : v));
 };

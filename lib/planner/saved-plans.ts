@@ -7,15 +7,16 @@ import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { findKit } from "@/lib/kits/kits";
 import { findOwnSite } from "@/lib/sites/sites";
 import { findEclipse } from "@/lib/eclipses/eclipses";
+import { strictNumber } from "@/lib/strict-number";
 
 export const savePlanSchema = z.object({
   name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
   eclipse: z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date" }),
   site: z.union([z.literal(""), z.uuid()]).optional(),
   kit: z.union([z.literal(""), z.uuid()]).optional(),
-  lat: z.coerce.number().min(-90).max(90),
-  lon: z.coerce.number().min(-180).max(180),
-  elev: z.coerce.number().min(-500).max(9000).default(0),
+  lat: strictNumber(z.number().min(-90).max(90)),
+  lon: strictNumber(z.number().min(-180).max(180)),
+  elev: strictNumber(z.number().min(-500).max(9000).default(0)),
   isos: z.string().transform((v) => v.split(",").map(Number)).pipe(z.array(z.number().int().min(25).max(409_600)).min(1).max(6)),
 });
 export type SavePlanInput = z.infer<typeof savePlanSchema>;

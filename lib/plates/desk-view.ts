@@ -52,6 +52,8 @@ export async function listDeskPlates(db: Db, actor: Actor | null, state?: PlateS
 
 export interface LocationCheckDto {
   siteName: string;
+  /** What the public page calls the site; null when it shows no label (none given, or hidden). */
+  publicLabel: string | null;
   precision: LocationPrecision;
   /** What the public page shows; null when the site is hidden. */
   shown: PublicPosition | null;
@@ -59,9 +61,10 @@ export interface LocationCheckDto {
   warning: string | null;
 }
 
-export function checkLocation(site: { name: string; latDeg: number; lonDeg: number; precision: LocationPrecision }): LocationCheckDto {
+export function checkLocation(site: { name: string; publicLabel: string; latDeg: number; lonDeg: number; precision: LocationPrecision }): LocationCheckDto {
   return {
     siteName: site.name,
+    publicLabel: site.precision === "hidden" ? null : site.publicLabel.trim() || null,
     precision: site.precision,
     shown: toPublicPosition(site.latDeg, site.lonDeg, site.precision),
     warning:
@@ -97,7 +100,7 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     .innerJoin(users, eq(users.id, bracketSets.ownerId))
     .where(eq(bracketSets.id, plate.bracketSetId))
     .limit(1);
-  const [site] = await db.select({ name: sites.name, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1);
+  const [site] = await db.select({ name: sites.name, publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1);
   const versions = await db
     .select({ version: plateVersions.version, reductionId: plateVersions.reductionId, renditions: plateVersions.renditions, changeNote: plateVersions.changeNote, createdAt: plateVersions.createdAt })
     .from(plateVersions)

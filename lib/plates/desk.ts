@@ -13,6 +13,7 @@ import { parseInput } from "@/lib/validation";
 import { draftPlateSchema, newVersionSchema, plateEditSchema, withdrawSchema, type PlateEditInput } from "./desk-input";
 import { createPlateFromReduction, readReductionForPlate, slugify } from "./publish";
 import { makeWebJpeg } from "./web-jpeg";
+import { forgetPublicAccess } from "./reduction-files";
 
 export { countWords, CAPTION_MAX_WORDS } from "./desk-input";
 
@@ -184,6 +185,7 @@ export async function publishPlate(db: Db, actor: Actor | null, plateId: string)
     if (!done.length) throw new AppError("conflict", `"${plate.title}" changed while you were publishing it; reload and try again.`);
     await recordAudit(tx, { actorId: curator.userId, action: "plate.published", subjectType: "plate", subjectId: plateId, detail: { version: plate.currentVersion } });
   });
+  forgetPublicAccess();
 }
 
 /**
@@ -206,6 +208,8 @@ export async function withdrawPlate(db: Db, actor: Actor | null, plateId: string
       .where(eq(plates.id, plateId));
     await recordAudit(tx, { actorId: curator.userId, action: "plate.withdrawn", subjectType: "plate", subjectId: plateId, detail: { from: plate.state, kind, reason } });
   });
+  // Its files stop answering at once in this process (others follow within seconds).
+  forgetPublicAccess();
 }
 
 /** A plate withdrawn for the time being goes back to the gallery. One withdrawn for good stays withdrawn. */
@@ -221,6 +225,8 @@ export async function restorePlate(db: Db, actor: Actor | null, plateId: string)
       .where(eq(plates.id, plateId));
     await recordAudit(tx, { actorId: curator.userId, action: "plate.restored", subjectType: "plate", subjectId: plateId, detail: { reason: plate.withdrawnReason } });
   });
+  // Its images answer again at once, not after the remembered "not public" expires.
+  forgetPublicAccess();
 }
 
 /**
@@ -247,6 +253,7 @@ export async function addPlateVersion(db: Db, actor: Actor | null, plateId: stri
     await recordAudit(tx, { actorId: curator.userId, action: "plate.version-added", subjectType: "plate", subjectId: plateId, detail: { from: locked.current, to: next, reductionId, changeNote } });
     return next;
   });
+  forgetPublicAccess();
   if (plate.state !== "draft") await makeWebJpeg(db, plateId, version);
   return { version };
 }

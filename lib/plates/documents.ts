@@ -7,6 +7,7 @@ import { notFound } from "@/lib/errors";
 import { plateCreditLine } from "./credit";
 import { buildEclipseCollection, buildPlateManifest } from "./iiif";
 import { findPublicPlate, listPublishedPlates, type PlateCardDto } from "./public";
+import { PUBLIC_REVALIDATE } from "@/lib/http/cache";
 
 function appUrl(): string {
   return getEnv().APP_URL.replace(/\/+$/, "");
@@ -17,7 +18,7 @@ function iiifJson(doc: Record<string, unknown>): Response {
     headers: {
       "content-type": 'application/ld+json;profile="http://iiif.io/api/presentation/3/context.json"',
       "access-control-allow-origin": "*",
-      "cache-control": "public, max-age=300",
+      "cache-control": PUBLIC_REVALIDATE,
     },
   });
 }

@@ -6,8 +6,32 @@ import type { PlateCardDto, PublicPlateDto } from "./public";
 
 const PRESENTATION_CONTEXT = "http://iiif.io/api/presentation/3/context.json";
 type LanguageMap = Record<string, string[]>;
-const en = (text: string): LanguageMap => ({ en: [text] });
-const label = (name: string, value: string) => ({ label: en(name), value: en(value) });
+
+const escapeHtml = (text: string) => text.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+
+/**
+ * Presentation 3.0 section 4.4: in summary and in the values of metadata and
+ * requiredStatement, a string that begins with "<" is HTML (clients keep a few
+ * tags and drop the rest). Our texts are plain text typed by people, so one that
+ * begins with "<" is sent as an HTML span holding the escaped text: a viewer
+ * shows the characters as typed, and no tag of theirs ever reaches it. Any
+ * other string is plain text to every conforming viewer.
+ */
+export function toIiifText(text: string): string {
+  return text.startsWith("<") ? `<span>${escapeHtml(text)}</span>` : text;
+}
+
+/**
+ * Labels take no HTML at all (section 4.4); a label that begins with "<" gets a
+ * zero-width space in front, so that no viewer mistakes it for markup.
+ */
+export function toIiifLabel(text: string): string {
+  return text.startsWith("<") ? `\u200b${text}` : text;
+}
+
+const en = (text: string): LanguageMap => ({ en: [toIiifLabel(text)] });
+const enText = (text: string): LanguageMap => ({ en: [toIiifText(text)] });
+const label = (name: string, value: string) => ({ label: en(name), value: enText(value) });
 
 export function manifestUrl(appUrl: string, slug: string, version?: number): string {
   return `${appUrl}/iiif/plates/${slug}${version ? `/v/${version}` : ""}/manifest.json`;
@@ -17,13 +41,23 @@ export function collectionUrl(appUrl: string, eclipseId: string): string {
   return `${appUrl}/iiif/eclipses/${eclipseId}/collection.json`;
 }
 
+/** The site as the public may see it: its public label, country and position at its precision; nothing for a hidden site. */
+function describeSite(plate: PublicPlateDto): string {
+  const pos = plate.site.position;
+  if (!pos) return "kept private by the observer";
+  const digits = pos.precision === "exact" ? 4 : 1;
+  const place = [plate.site.label, plate.siteCountry].filter(Boolean).join(", ");
+  const where = `${pos.latDeg.toFixed(digits)}°, ${pos.lonDeg.toFixed(digits)}°${pos.precision === "rounded" ? ", rounded to about 10 km" : ""}`;
+  return place ? `${place} (${where})` : where;
+}
+
 /** `credit` is the plate's credit line (lib/plates/credit.ts), the manifest's required statement. */
 export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, credit: string): Record<string, unknown> {
   const id = manifestUrl(appUrl, plate.slug, plate.isCurrentVersion ? undefined : plate.version);
   const filesBase = `${appUrl}/iiif/reductions/${plate.reductionId}`;
   const metadata = [
     label("Eclipse", `Total solar eclipse of ${plate.eclipseId}`),
-    label("Site", plate.site.position ? `${plate.site.name} (${plate.site.position.latDeg.toFixed(plate.site.position.precision === "exact" ? 4 : 1)}°, ${plate.site.position.lonDeg.toFixed(plate.site.position.precision === "exact" ? 4 : 1)}°)` : plate.site.name),
+    label("Site", describeSite(plate)),
     ...(plate.captureSpan ? [label("Time (UTC)", `${plate.captureSpan.start} to ${plate.captureSpan.end}`)] : []),
     ...(plate.kit ? [label("Instrument", `${plate.kit.camera}, ${plate.kit.focalMm} mm f/${plate.kit.fNumber}`)] : []),
     ...(plate.exposuresS.length ? [label("Exposures (s)", plate.exposuresS.map((e) => e.toPrecision(3)).join(", "))] : []),
@@ -68,7 +102,7 @@ export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, credit
     id,
     type: "Manifest",
     label: en(plate.title),
-    ...(plate.caption ? { summary: en(plate.caption) } : {}),
+    ...(plate.caption ? { summary: enText(plate.caption) } : {}),
     metadata,
     requiredStatement: label("Attribution", credit),
     rights: plate.licence.rightsUri,

@@ -1,11 +1,11 @@
 // What the public may read of plates: published plates only, as DTOs, with a
 // site's position never finer than its precision allows. A withdrawn plate
 // answers with its metadata and the reason, but no images.
-import { and, desc, eq, ilike, inArray, lt, or, sql, type SQL } from "drizzle-orm";
+import { and, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, kits, plates, plateVersions, reductions, sites, users, type Plate, type PlateGeometry, type Rendition } from "@/db/schema";
 import { notFound } from "@/lib/errors";
-import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
+import { toPublicSite, type PublicPosition } from "@/lib/sites/precision";
 import { REDUCTION_FILE_OF, plateDownloadName, type PlateDownloadKind } from "./download-names";
 import { LICENCE_INFO, type LicenceInfo } from "./licences";
 
@@ -20,8 +20,10 @@ export interface PlateCardDto {
   caption: string;
   altText: string;
   eclipseId: string;
+  /** Null for a hidden site. */
   siteCountry: string | null;
-  siteName: string;
+  /** The site's public label (never its private name); null when it has none or is hidden. */
+  siteLabel: string | null;
   /** At the site's precision; null when the observer keeps it private. */
   sitePosition: PublicPosition | null;
   photographer: string;
@@ -61,7 +63,7 @@ export interface PublicPlateDto extends PlateCardDto {
   acquiredBy: string;
   processedBy: string;
   licence: LicenceInfo;
-  site: { name: string; kind: string; position: PublicPosition | null };
+  site: { label: string | null; kind: string; position: PublicPosition | null };
   kit: { name: string; camera: string; focalMm: number; fNumber: number } | null;
   exposuresS: number[];
   captureSpan: { start: string; end: string } | null;
@@ -95,18 +97,25 @@ export interface PlateFilters {
   limit?: number;
 }
 
-type CardSite = { name: string; latDeg: number; lonDeg: number; precision: "exact" | "rounded" | "hidden" } | null | undefined;
+type CardSite = { publicLabel: string; latDeg: number; lonDeg: number; precision: "exact" | "rounded" | "hidden" } | null | undefined;
+
+/** Only these columns of a site ever reach a public query: never its private name. */
+const CARD_SITE_COLUMNS = { publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision };
+
+/** A plate's country, unless its site is hidden: the filters and facets never reveal it either. */
+const PUBLIC_COUNTRY = sql<string | null>`case when ${sites.precision} = 'hidden' then null else ${plates.siteCountry} end`;
 
 function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }, site: CardSite): PlateCardDto {
+  const shown = site ? toPublicSite(site, p.siteCountry) : { label: null, country: null, position: null };
   return {
     slug: p.slug,
     title: p.title,
     caption: p.caption,
     altText: p.altText,
     eclipseId: p.eclipseId,
-    siteCountry: p.siteCountry,
-    siteName: site?.name ?? "",
-    sitePosition: site ? toPublicPosition(site.latDeg, site.lonDeg, site.precision) : null,
+    siteCountry: shown.country,
+    siteLabel: shown.label,
+    sitePosition: shown.position,
     photographer: p.acquiredBy,
     renditions: v.renditions,
     previewUrl: `${reductionFilesBase(v.reductionId)}/preview.jpg`,
@@ -120,7 +129,7 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
   const where: SQL[] = [eq(plates.state, "published")];
   if (filters.eclipseId) where.push(eq(plates.eclipseId, filters.eclipseId));
   if (filters.featuredOnly) where.push(eq(plates.featured, true));
-  if (filters.country) where.push(eq(plates.siteCountry, filters.country));
+  if (filters.country) where.push(eq(plates.siteCountry, filters.country), ne(sites.precision, "hidden"));
   if (filters.photographer) where.push(eq(plates.acquiredBy, filters.photographer));
   if (filters.rendition) where.push(sql`${plateVersions.renditions} @> ${JSON.stringify([filters.rendition])}::jsonb`);
   if (filters.q?.trim()) {
@@ -139,7 +148,7 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
       plate: plates,
       reductionId: plateVersions.reductionId,
       renditions: plateVersions.renditions,
-      site: { name: sites.name, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision },
+      site: CARD_SITE_COLUMNS,
     })
     .from(plates)
     .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, plates.currentVersion)))
@@ -159,8 +168,10 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
 /** Values for the gallery's filters, from published plates only. */
 export async function listPlateFacets(db: DbOrTx): Promise<{ eclipses: string[]; countries: string[]; photographers: string[] }> {
   const rows = await db
-    .selectDistinct({ eclipseId: plates.eclipseId, country: plates.siteCountry, photographer: plates.acquiredBy })
+    .selectDistinct({ eclipseId: plates.eclipseId, country: PUBLIC_COUNTRY, photographer: plates.acquiredBy })
     .from(plates)
+    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .innerJoin(sites, eq(sites.id, bracketSets.siteId))
     .where(eq(plates.state, "published"));
   const uniq = (xs: (string | null)[]) => [...new Set(xs.filter((x): x is string => !!x))].sort();
   return { eclipses: uniq(rows.map((r) => r.eclipseId)).reverse(), countries: uniq(rows.map((r) => r.country)), photographers: uniq(rows.map((r) => r.photographer)) };
@@ -200,7 +211,7 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
     .innerJoin(users, eq(users.id, bracketSets.ownerId))
     .where(eq(bracketSets.id, plate.bracketSetId))
     .limit(1);
-  const [site] = set ? await db.select().from(sites).where(eq(sites.id, set.siteId)).limit(1) : [];
+  const [site] = set ? await db.select({ ...CARD_SITE_COLUMNS, kind: sites.kind }).from(sites).where(eq(sites.id, set.siteId)).limit(1) : [];
   const [kit] = set?.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
 
   const m = (red?.measurements ?? {}) as Record<string, unknown>;
@@ -237,15 +248,16 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
           : []),
       ];
   const params = (red?.params ?? {}) as unknown as Record<string, unknown>;
+  const card = cardOf(plate, v, site);
   return {
-    ...cardOf(plate, v, site),
+    ...card,
     version: v.version,
     isCurrentVersion: v.version === plate.currentVersion,
     description: plate.description,
     acquiredBy: plate.acquiredBy,
     processedBy: plate.processedBy,
     licence,
-    site: site ? { name: site.name, kind: site.kind, position: toPublicPosition(site.latDeg, site.lonDeg, site.precision) } : { name: "", kind: "fixed", position: null },
+    site: { label: card.siteLabel, kind: site?.kind ?? "fixed", position: card.sitePosition },
     kit: kit ? { name: kit.name, camera: kit.camera, focalMm: kit.focalMm, fNumber: kit.fNumber } : null,
     exposuresS: facts.exposuresS,
     captureSpan: facts.captureStartUtc && facts.captureEndUtc ? { start: facts.captureStartUtc, end: facts.captureEndUtc } : null,

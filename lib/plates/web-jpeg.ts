@@ -19,6 +19,7 @@ import { createSharp } from "@/lib/media/sharp-setup";
 import { bucketName, isMissingObject, putObjectBytes, readSmallObject } from "@/lib/storage";
 import { plateDownloadName } from "./download-names";
 import { LICENCE_INFO } from "./licences";
+import { PUBLIC_REVALIDATE } from "@/lib/http/cache";
 
 /** Long side of the JPEG made from natural.png when the reduction has no preview. */
 export const WEB_JPEG_LONG_SIDE_PX = 2048;
@@ -181,7 +182,7 @@ export async function serveWebJpeg(db: DbOrTx, slug: string, version?: number): 
       "content-length": String(bytes.length),
       "content-disposition": `attachment; filename="${plateDownloadName(plate.slug, n, "web")}"`,
       // Credits can be corrected after publishing, which rewrites the file.
-      "cache-control": "public, max-age=300",
+      "cache-control": PUBLIC_REVALIDATE,
       "x-content-type-options": "nosniff",
     },
   });

@@ -3,6 +3,7 @@ import type { StructureFilter } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
 import type { RunnerRegistrationMode } from "./sky-run";
 import type { CameraOrientation, MountKind } from "@/lib/astro/mount-rotation";
+import { parseStrictNumber } from "@/lib/strict-number";
 
 export const REDUCE_USAGE =
   "usage: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK.gpx|csv] [--clock-offset SECONDS] " +
@@ -36,8 +37,9 @@ const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site",
 function parseNumberOption(values: Map<string, string>, key: string, unit: string): number | undefined {
   const text = values.get(key);
   if (text === undefined) return undefined;
-  if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(text.trim())) throw badOption(`--${key}: expected a number of ${unit}, got "${text}"`);
-  return Number(text);
+  const n = parseStrictNumber(text);
+  if (Number.isNaN(n)) throw badOption(`--${key}: expected a number of ${unit}, got "${text}"`);
+  return n;
 }
 const FLAG_OPTIONS = new Set(["recover-response", "flip-h", "flip-v"]);
 /** Options that may be given several times, one file each. */

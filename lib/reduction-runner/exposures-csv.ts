@@ -5,6 +5,7 @@
 import { readFile } from "node:fs/promises";
 import { basename } from "node:path";
 import { ReductionInputError } from "./errors";
+import { parseStrictNumber } from "@/lib/strict-number";
 
 /** Splits one CSV record into fields (RFC 4180 quoting, no line breaks inside quotes). */
 function splitCsvLine(line: string, where: string): string[] {
@@ -34,8 +35,7 @@ function splitCsvLine(line: string, where: string): string[] {
 export function parseExposureText(text: string): number {
   const fraction = /^(\d+(?:\.\d+)?)\s*\/\s*(\d+(?:\.\d+)?)$/.exec(text);
   if (fraction) return Number(fraction[1]) / Number(fraction[2]);
-  if (!/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(text)) return NaN;
-  return Number(text);
+  return parseStrictNumber(text);
 }
 
 /** File name -> exposure in seconds. `csvName` names the CSV in messages. */

@@ -10,6 +10,7 @@ import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
 import { REVIEW_STATES, type ReviewState } from "./state-machine";
+import { strictNumber } from "@/lib/strict-number";
 
 /** The states the desk shows: a set still gathering frames is the photographer's alone. */
 export const QUEUE_STATES = REVIEW_STATES.filter((s) => s !== "gathering") as Exclude<ReviewState, "gathering">[];
@@ -26,7 +27,7 @@ export const queueQuerySchema = z.object({
   mine: z.preprocess(blankToUndefined, z.enum(["1"], { error: "expected 1 or nothing" }).optional()),
   sort: z.preprocess(blankToUndefined, z.enum(QUEUE_SORTS, { error: `expected one of ${QUEUE_SORTS.join(", ")}` }).default("submitted")),
   dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"], { error: "expected asc or desc" }).default("asc")),
-  page: z.preprocess(blankToUndefined, z.coerce.number({ error: "expected a page number" }).int().min(1).max(10_000).default(1)),
+  page: strictNumber(z.number({ error: "expected a page number" }).int().min(1).max(10_000).default(1)),
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
 

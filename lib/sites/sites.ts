@@ -7,17 +7,29 @@ import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/sch
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "./limits";
+import { forgetPublicAccess } from "@/lib/plates/reduction-files";
+import { strictNumber } from "@/lib/strict-number";
 import { parseTrackText } from "./track-file";
 
+// Degrees in plain decimal notation only: "0x20" is refused, not read as 32.
 const coord = (what: string, limit: number) =>
-  z.coerce
-    .number({ error: `expected a number of degrees (${what})` })
-    .refine(Number.isFinite, { error: "expected a number" })
-    .min(-limit, { error: `must be between -${limit} and ${limit} degrees` })
-    .max(limit, { error: `must be between -${limit} and ${limit} degrees` });
+  strictNumber(
+    z
+      .number({ error: `expected a number of degrees in decimal notation (${what})` })
+      .min(-limit, { error: `must be between -${limit} and ${limit} degrees` })
+      .max(limit, { error: `must be between -${limit} and ${limit} degrees` }),
+  );
 
 const common = {
   name: z.string().trim().min(2, { error: "needs at least 2 characters" }).max(80),
+  // What public pages call the place; the name above stays private.
+  publicLabel: z
+    .string()
+    .trim()
+    .max(80, { error: "must be at most 80 characters" })
+    .refine((v) => !/[\u0000-\u001f\u007f]/.test(v), { error: "must not hold control characters" })
+    .optional()
+    .default(""),
   precision: z.enum(LOCATION_PRECISIONS, { error: `expected one of ${LOCATION_PRECISIONS.join(", ")}` }).default("rounded"),
 };
 
@@ -26,7 +38,7 @@ export const fixedSiteSchema = z.object({
   kind: z.literal("fixed"),
   latDeg: coord("latitude", 90),
   lonDeg: coord("longitude", 180),
-  elevationM: z.coerce.number({ error: "expected metres" }).min(-500, { error: "must be at least -500 m" }).max(9000, { error: "must be at most 9000 m" }).default(0),
+  elevationM: strictNumber(z.number({ error: "expected metres in decimal notation" }).min(-500, { error: "must be at least -500 m" }).max(9000, { error: "must be at most 9000 m" }).default(0)),
 });
 
 export const movingSiteSchema = z.object({
@@ -42,9 +54,27 @@ export const movingSiteSchema = z.object({
 export const siteInputSchema = z.discriminatedUnion("kind", [fixedSiteSchema, movingSiteSchema], { error: "expected kind fixed or moving" });
 export type SiteInput = z.infer<typeof siteInputSchema>;
 
+/** Editing a site: a moving site keeps its track unless a new file is given. */
+export const siteEditSchema = z.discriminatedUnion(
+  "kind",
+  [
+    fixedSiteSchema.extend({ id: z.uuid({ error: "expected a site id" }) }),
+    movingSiteSchema.extend({
+      id: z.uuid({ error: "expected a site id" }),
+      trackFileName: z.string().trim().max(200).optional(),
+      trackText: z.string().max(20_000_000, { error: "the track file is larger than 20 MB" }).optional(),
+    }),
+  ],
+  { error: "expected kind fixed or moving" },
+);
+export type SiteEdit = z.infer<typeof siteEditSchema>;
+/** What an edit changes: a site's fields, where a moving site's track may be left out. */
+export type SiteChange = SiteEdit extends infer E ? (E extends SiteEdit ? Omit<E, "id"> : never) : never;
+
 export interface SiteDto {
   id: string;
   name: string;
+  publicLabel: string;
   kind: Site["kind"];
   latDeg: number;
   lonDeg: number;
@@ -61,6 +91,7 @@ function toDto(s: Site): SiteDto {
   return {
     id: s.id,
     name: s.name,
+    publicLabel: s.publicLabel,
     kind: s.kind,
     latDeg: s.latDeg,
     lonDeg: s.lonDeg,
@@ -76,7 +107,7 @@ function toDto(s: Site): SiteDto {
 /** The values to store for an input; a moving site's track is parsed and checked here. */
 function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
   if (input.kind === "fixed") {
-    return { name: input.name, kind: "fixed", precision: input.precision, latDeg: input.latDeg, lonDeg: input.lonDeg, elevationM: input.elevationM, track: null, trackFileName: null };
+    return { name: input.name, publicLabel: input.publicLabel, kind: "fixed", precision: input.precision, latDeg: input.latDeg, lonDeg: input.lonDeg, elevationM: input.elevationM, track: null, trackFileName: null };
   }
   let track: TrackPoint[];
   try {
@@ -87,6 +118,7 @@ function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
   const first = track[0];
   return {
     name: input.name,
+    publicLabel: input.publicLabel,
     kind: "moving",
     precision: input.precision,
     latDeg: first.latDeg,
@@ -122,14 +154,26 @@ export async function createSite(db: DbOrTx, actor: Actor | null, input: SiteInp
   return toDto(row);
 }
 
-export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, input: SiteInput): Promise<SiteDto> {
+export async function updateSite(db: DbOrTx, actor: Actor | null, id: string, input: SiteInput | SiteChange): Promise<SiteDto> {
   const a = requirePermission(actor, "studio:use");
-  await findOwnSite(db, a, id);
+  const current = await findOwnSite(db, a, id);
+  let values: Partial<typeof sites.$inferInsert>;
+  if (input.kind === "moving" && !input.trackText) {
+    // No new track: a moving site keeps the one it has; a fixed site needs one to become moving.
+    if (current.kind !== "moving" || !current.track) {
+      throw new AppError("invalid_input", "A moving site needs its track: choose a GPX or CSV file.", [{ field: "trackText", message: "choose a GPX or CSV file" }]);
+    }
+    values = { name: input.name, publicLabel: input.publicLabel, precision: input.precision };
+  } else {
+    values = toRow(input as SiteInput);
+  }
   const [row] = await db
     .update(sites)
-    .set({ ...toRow(input), updatedAt: sql`now()` })
+    .set({ ...values, updatedAt: sql`now()` })
     .where(and(eq(sites.id, id), eq(sites.ownerId, a.userId)))
     .returning();
+  // A changed precision reaches the public master.fits at once in this process.
+  forgetPublicAccess();
   return toDto(row);
 }
 

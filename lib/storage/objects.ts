@@ -4,7 +4,7 @@ import { createReadStream, createWriteStream } from "node:fs";
 import { stat } from "node:fs/promises";
 import { Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
-import { GetObjectCommand, HeadObjectCommand, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
+import { DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
 import type { ObjectRef } from "./multipart";
 import { getS3 } from "./s3";
@@ -68,4 +68,9 @@ export async function putObjectFile(ref: ObjectRef, path: string, contentType: s
   const { size } = await stat(path);
   await new Upload({ client: s3, params: { Bucket: ref.bucket, Key: ref.key, Body: createReadStream(path), ContentType: contentType, ContentLength: size }, queueSize: 2 }).done();
   return size;
+}
+
+/** Deletes one object; one already gone counts as deleted (S3 answers the same). */
+export async function deleteObject(ref: ObjectRef, s3: S3Client = getS3()): Promise<void> {
+  await s3.send(new DeleteObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
 }

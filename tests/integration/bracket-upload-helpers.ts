@@ -2,13 +2,22 @@
 // in the test database, and a file sent the way the browser sends it (start,
 // sign part URLs, PUT each part to S3, complete).
 import { randomUUID } from "node:crypto";
-import type { Db } from "@/db/client";
+import { closeDb, type Db } from "@/db/client";
+import { closeProducerRedis } from "@/lib/queue/connection";
+import { closeQueues } from "@/lib/queue/enqueue";
 import { insertRole } from "@/db/queries/roles";
 import { sites, users } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { completeFrameUpload, createBracketSet, signParts, startFrameUpload, type FrameDto, type UploadDto } from "@/lib/bracket-sets";
 
 export const ECLIPSE_ID = "2027-08-02";
+
+/** Closes what an upload test opened: the producer's queues and Redis, then the database. */
+export async function closeUploadTest(): Promise<void> {
+  await closeQueues();
+  await closeProducerRedis();
+  await closeDb();
+}
 
 export async function createMember(db: Db, name: string, roles: Actor["roles"] = ["member"]): Promise<Actor> {
   const id = randomUUID();

@@ -9,7 +9,7 @@ import { kits, sites, users } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
 import { createKit, findKit, kitInputSchema, listKits } from "@/lib/kits/kits";
-import { createSite, listSites, siteInputSchema } from "@/lib/sites/sites";
+import { createSite, listSites, siteEditSchema, siteInputSchema, updateSite, type SiteChange } from "@/lib/sites/sites";
 import { parseInput } from "@/lib/validation";
 import { requireTestDatabase } from "../support/env";
 
@@ -104,5 +104,21 @@ describe("sites", () => {
     const site = await createSite(db, alice, parseInput(siteInputSchema, { name: "Ship", kind: "moving", trackFileName: "ship.gpx", trackText: gpx }));
     expect(site).toMatchObject({ kind: "moving", trackPoints: 2, latDeg: 34.6, lonDeg: 11.4, precision: "rounded" });
     expect(await listSites(db, bruno)).toHaveLength(0);
+  });
+
+  it("lets the owner edit a site's public label and precision, keeping a moving site's track; nobody else", async () => {
+    const ship = (await listSites(db, alice)).find((x) => x.name === "Ship")!;
+    const edit = parseInput(siteEditSchema, { id: ship.id, name: "Ship, deck 6", publicLabel: "Gulf of Gabes", kind: "moving", precision: "hidden" });
+    const { id, ...change } = edit;
+    const saved = await updateSite(db, alice, id, change as SiteChange);
+    expect(saved).toMatchObject({ name: "Ship, deck 6", publicLabel: "Gulf of Gabes", precision: "hidden", trackPoints: 2, trackFileName: "ship.gpx" });
+    await expect(updateSite(db, bruno, id, change as SiteChange)).rejects.toMatchObject({ code: "not_found" });
+    // A fixed site cannot become moving without a track.
+    const fixed = await createSite(db, alice, parseInput(siteInputSchema, { name: "Roof", kind: "fixed", latDeg: "25.69", lonDeg: "32.64" }));
+    const toMoving = parseInput(siteEditSchema, { id: fixed.id, name: "Roof", kind: "moving", precision: "rounded" });
+    await expect(updateSite(db, alice, fixed.id, { ...toMoving } as SiteChange)).rejects.toMatchObject({ code: "invalid_input", fields: [{ field: "trackText" }] });
+    expect((await listSites(db, alice)).find((x) => x.id === fixed.id)).toMatchObject({ kind: "fixed", latDeg: 25.69 });
+    // A public label is plain text of at most 80 characters.
+    expect(fieldsOf(() => parseInput(siteEditSchema, { id: fixed.id, name: "Roof", kind: "fixed", latDeg: "25.69", lonDeg: "32.64", publicLabel: "x".repeat(81) }))).toEqual(["publicLabel"]);
   });
 });

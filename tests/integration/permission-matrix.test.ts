@@ -9,6 +9,8 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { reductions, sites } from "@/db/schema";
+import { encodeFits } from "@/lib/media";
+import { createPlateFromReduction } from "@/lib/plates/publish";
 import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { Client } from "../support/http";
@@ -30,8 +32,10 @@ interface Ids {
   setId: string;
   uploadId: string;
   frameId: string;
-  /** A finished reduction of another of the member's sets, with a report.json stored. */
+  /** A finished reduction of another of the member's sets, with a report.json and a preview stored; no plate shows it. */
   reductionId: string;
+  /** A finished reduction of a third set of the member's, shown by a published plate. */
+  publishedReductionId: string;
 }
 
 interface Case {
@@ -42,6 +46,8 @@ interface Case {
   path: (ids: Ids) => string;
   body?: unknown | ((ids: Ids) => unknown);
   expect: Record<Who, number>;
+  /** Tells apart several cases of one route in the test names. */
+  label?: string;
 }
 
 const everyone = (status: number): Record<Who, number> => ({ visitor: status, member: status, curator: status, editor: status, admin: status });
@@ -107,6 +113,8 @@ const API_CASES: Case[] = [
   // Nothing was sent, so the owner is told which part is missing (409).
   { route: `${SET}/[id]/uploads/[uploadId]/complete`, method: "POST", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/complete`, body: {}, expect: ownSetWrite(409) },
   { route: `${SET}/[id]/frames/[frameId]`, method: "PATCH", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, body: { included: true }, expect: ownSetWrite(200) },
+  // Only a refused frame can be removed: the member's frame was ingested, so its owner is told 409.
+  { route: `${SET}/[id]/frames/[frameId]`, method: "DELETE", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, expect: ownSetWrite(409) },
   // The frame's files: the owner and curators; everyone else is told they do not exist.
   { route: `${SET}/[id]/frames/[frameId]/thumbnail`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/thumbnail`, expect: ownSetRead },
   { route: `${SET}/[id]/frames/[frameId]/original`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/original`, expect: ownSetRead },
@@ -132,9 +140,18 @@ const API_CASES: Case[] = [
   {
     route: "/iiif/reductions/[id]/[...path]",
     method: "GET",
+    label: "no such reduction",
     path: () => "/iiif/reductions/00000000-0000-4000-8000-000000000000/natural-iiif/info.json",
     expect: everyone(404),
   },
+  // The member's unpublished reduction: its owner and curators only; everyone else is told it does not exist.
+  { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "unpublished preview", path: ({ reductionId }) => `/iiif/reductions/${reductionId}/preview.jpg`, expect: { visitor: 404, member: 200, curator: 200, editor: 404, admin: 404 } },
+  { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "unpublished master", path: ({ reductionId }) => `/iiif/reductions/${reductionId}/master.fits`, expect: { visitor: 404, member: 200, curator: 200, editor: 404, admin: 404 } },
+  // A reduction a published plate shows: its preview and (CC BY allows downloads) its master, for everyone.
+  { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "published preview", path: ({ publishedReductionId }) => `/iiif/reductions/${publishedReductionId}/preview.jpg`, expect: everyone(200) },
+  { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "published master", path: ({ publishedReductionId }) => `/iiif/reductions/${publishedReductionId}/master.fits`, expect: everyone(200) },
+  // Never report.json on this route, published or not: it holds the exact site.
+  { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "published report", path: ({ publishedReductionId }) => `/iiif/reductions/${publishedReductionId}/report.json`, expect: everyone(404) },
   // An id that names no reduction: not found for everyone signed in.
   {
     route: "/api/reductions/[id]",
@@ -283,7 +300,7 @@ function routeTemplates(): string[] {
 
 const clients = {} as Record<Who, Client>;
 let memberId = "";
-const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "", reductionId: "" };
+const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "", reductionId: "", publishedReductionId: "" };
 
 async function ok<T>(call: Promise<{ status: number; body: unknown }>, status: number): Promise<T> {
   const res = await call;
@@ -315,16 +332,39 @@ async function prepareBracketSet(): Promise<void> {
   ids.uploadId = open.id;
   // A finished reduction written directly (no set here has frames enough to reduce): its row and its report.
   // It lives in a set of its own, so the cases above see a set with no finished reduction.
-  const reduced = await ok<{ id: string }>(clients.member.json(SET, { name: "Matrix reduced set", eclipseId: "2027-08-02", siteId: site.id }), 201);
+  ids.reductionId = await storeFinishedReduction(site.id, "Matrix reduced set");
+  // A third set whose reduction a published plate shows.
+  ids.publishedReductionId = await storeFinishedReduction(site.id, "Matrix published set");
+  await createPlateFromReduction(db, {
+    ...PLATE_TEXTS,
+    reductionId: ids.publishedReductionId,
+    slug: `matrix-published-${ids.publishedReductionId.slice(0, 8)}`,
+    title: "Matrix published plate",
+    licence: "CC-BY-4.0",
+    renditions: ["natural"],
+    publish: true,
+    createdBy: null,
+  });
+}
+
+/** A finished reduction written directly in a new set of the member's: its row, report, pyramid descriptor, preview and master. */
+async function storeFinishedReduction(siteId: string, setName: string): Promise<string> {
+  const db = getDb();
+  const reduced = await ok<{ id: string }>(clients.member.json(SET, { name: setName, eclipseId: "2027-08-02", siteId }), 201);
   const [red] = await db
     .insert(reductions)
     .values({ bracketSetId: reduced.id, requestedBy: memberId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 })
     .returning({ id: reductions.id });
   const prefix = `${buildDerivedPrefix(reduced.id)}reductions/${red.id}/`;
   const report = { reportVersion: 1, pipelineVersion: "matrix", frames: [], overall: {}, timingsMs: {}, outputs: {}, notes: [] };
-  await putObjectBytes({ bucket: bucketName("derived"), key: `${prefix}report.json` }, Buffer.from(JSON.stringify(report)), "application/json");
-  await db.update(reductions).set({ outputs: { prefix, report: `${prefix}report.json` } }).where(eq(reductions.id, red.id));
-  ids.reductionId = red.id;
+  const derived = (key: string) => ({ bucket: bucketName("derived"), key: prefix + key });
+  await putObjectBytes(derived("report.json"), Buffer.from(JSON.stringify(report)), "application/json");
+  await putObjectBytes(derived("tiles/natural-iiif/info.json"), Buffer.from(JSON.stringify({ width: 8, height: 8 })), "application/json");
+  await putObjectBytes(derived("preview.jpg"), await sharp({ create: { width: 8, height: 8, channels: 3, background: "#204060" } }).jpeg().toBuffer(), "image/jpeg");
+  const master = encodeFits({ width: 4, height: 3, planes: [new Float32Array(12).fill(1)], cards: [{ key: "OBSGEO-X", value: 5_000_000.5, real: true }] });
+  await putObjectBytes(derived("master.fits"), Buffer.from(master), "application/fits");
+  await db.update(reductions).set({ outputs: { prefix, report: `${prefix}report.json`, tiles: `${prefix}tiles/` } }).where(eq(reductions.id, red.id));
+  return red.id;
 }
 
 afterAll(closeDb);
@@ -348,7 +388,7 @@ describe("permission matrix", () => {
 
   for (const c of API_CASES) {
     for (const who of WHO) {
-      it(`${c.method} ${c.route} as ${who} answers ${c.expect[who]}`, async () => {
+      it(`${c.method} ${c.route}${c.label ? ` (${c.label})` : ""} as ${who} answers ${c.expect[who]}`, async () => {
         const body = typeof c.body === "function" ? c.body(ids) : c.body;
         const { status } = await clients[who].json(c.path(ids), body, c.method);
         expect(status).toBe(c.expect[who]);

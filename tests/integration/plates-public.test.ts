@@ -10,7 +10,9 @@ import { bracketSets, plates, reductions, sites } from "@/db/schema";
 import { createPlateFromReduction } from "@/lib/plates/publish";
 import { findPublicPlate, listPublishedPlates } from "@/lib/plates/public";
 import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { APP, requireTestDatabase } from "../support/env";
+import { Client } from "../support/http";
 import { createMember, createSetFor } from "./bracket-upload-helpers";
 
 requireTestDatabase();
@@ -122,7 +124,13 @@ describe("public plate queries", () => {
   it("serve a published plate's tiles to anyone, cacheable, and a draft's to no visitor", async () => {
     const pub = await fetch(`${APP}/iiif/reductions/${publicReductionId}/natural-iiif/info.json`);
     expect(pub.status).toBe(200);
-    expect(pub.headers.get("cache-control")).toBe("public, max-age=31536000, immutable");
+    // A withdrawal must leave shared caches within minutes: revalidated after 5 minutes, by entity tag.
+    expect(pub.headers.get("cache-control")).toBe("public, max-age=300, must-revalidate");
+    const etag = pub.headers.get("etag");
+    expect(etag).toBeTruthy();
+    const again = await fetch(`${APP}/iiif/reductions/${publicReductionId}/natural-iiif/info.json`, { headers: { "if-none-match": etag! } });
+    expect(again.status).toBe(304);
+    expect(again.headers.get("cache-control")).toBe("public, max-age=300, must-revalidate");
     expect(pub.headers.get("access-control-allow-origin")).toBe("*");
     expect((await fetch(`${APP}/iiif/reductions/${draftReductionId}/natural-iiif/info.json`)).status).toBe(404);
     expect((await fetch(`${APP}/iiif/reductions/${publicReductionId}/report.json`)).status).toBe(404);
@@ -133,5 +141,21 @@ describe("public plate queries", () => {
     expect((await fetch(`${APP}/iiif/plates/${slugs.withdrawn}/manifest.json`)).status).toBe(404);
     expect((await fetch(`${APP}/plates/${slugs.withdrawn}`)).status).toBe(200);
     expect((await fetch(`${APP}/plates/${slugs.draft}`)).status).toBe(404);
+  });
+
+  it("stop serving a plate's files as soon as it is withdrawn, and serve them again as soon as it is restored", async () => {
+    const curator = new Client();
+    await curator.signIn(DEMO_PEOPLE.find((p) => p.roles.includes("curator"))!.email, DEMO_PASSWORD);
+    const [plate] = await db.select({ id: plates.id }).from(plates).where(eq(plates.slug, slugs.exact));
+    const tile = `${APP}/iiif/reductions/${publicReductionId}/natural-iiif/info.json`;
+    expect((await fetch(tile)).status).toBe(200);
+    expect((await curator.json(`/api/review/plates/${plate.id}/withdraw`, { reason: "Checking the credits", kind: "temporary" })).status).toBe(200);
+    const gone = await fetch(tile);
+    expect(gone.status).toBe(404);
+    // No cache may keep the refusal either.
+    expect(gone.headers.get("cache-control")).toBe("no-store");
+    expect((await curator.json(`/api/review/plates/${plate.id}/restore`, {})).status).toBe(200);
+    // Not after the 5 s the route remembers a reduction's access: at once.
+    expect((await fetch(tile)).status).toBe(200);
   });
 });

@@ -5,7 +5,7 @@
 import { normalize } from "@iiif/parser";
 import { describe, expect, it } from "vitest";
 import { plateCreditLine } from "@/lib/plates/credit";
-import { buildEclipseCollection, buildPlateManifest } from "@/lib/plates/iiif";
+import { buildEclipseCollection, buildPlateManifest, toIiifText } from "@/lib/plates/iiif";
 import { LICENCE_INFO } from "@/lib/plates/licences";
 import type { PublicPlateDto } from "@/lib/plates/public";
 
@@ -24,7 +24,7 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     altText: "A dark Moon ringed by pearly streamers.",
     eclipseId: "2027-08-02",
     siteCountry: "Egypt",
-    siteName: "Luxor, west bank",
+    siteLabel: "Luxor",
     sitePosition: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" },
     photographer: "Oskar Lindqvist",
     renditions: ["natural", "structure"],
@@ -36,7 +36,7 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     acquiredBy: "Oskar Lindqvist",
     processedBy: "crownlight-imaging 0.1.0",
     licence: LICENCE_INFO["CC-BY-4.0"],
-    site: { name: "Luxor, west bank", kind: "fixed", position: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" } },
+    site: { label: "Luxor", kind: "fixed", position: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" } },
     kit: { name: "Refractor", camera: "Mono camera", focalMm: 600, fNumber: 7 },
     exposuresS: [0.002, 0.008, 0.033, 0.125],
     captureSpan: { start: "2027-08-02T10:04:40.001Z", end: "2027-08-02T10:04:46.062Z" },
@@ -94,6 +94,39 @@ describe("plate manifest", () => {
   it("names an older version's manifest by its version", () => {
     const old = buildPlateManifest(plate({ version: 1, isCurrentVersion: false }), APP, "Oskar Lindqvist / KRAS");
     expect(old.id).toBe(`${APP}/iiif/plates/luxor-corona-2027/v/1/manifest.json`);
+  });
+});
+
+describe("text values cannot be taken for HTML (Presentation 3.0, section 4.4)", () => {
+  // A value that begins with "<" is HTML to a conforming viewer; ours are plain text.
+  const hostile = '<img src=x onerror="alert(1)">';
+  const m = buildPlateManifest(
+    plate({ title: hostile, caption: `${hostile} caption`, acquiredBy: hostile, siteLabel: hostile, site: { label: hostile, kind: "fixed", position: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" } } }),
+    APP,
+    hostile,
+  ) as { label: { en: string[] }; summary: { en: string[] }; metadata: { value: { en: string[] } }[]; requiredStatement: { value: { en: string[] } } };
+  const htmlValues = [...m.summary.en, ...m.metadata.flatMap((x) => x.value.en), ...m.requiredStatement.value.en];
+
+  it("sends no value that a viewer would read as an element other than an escaped span", () => {
+    for (const v of htmlValues) {
+      if (v.startsWith("<")) {
+        // HTML by the rule: then it must be one span whose content holds no tag.
+        expect(v).toMatch(/^<span>[^<>]*<\/span>$/);
+      }
+      // Never the raw tag at the start, where the spec makes it HTML.
+      expect(v.startsWith("<img")).toBe(false);
+    }
+    expect(m.requiredStatement.value.en[0]).toBe("<span>&lt;img src=x onerror=&quot;alert(1)&quot;&gt;</span>");
+  });
+
+  it("keeps text that does not begin with '<' as it was typed", () => {
+    expect(m.summary.en[0]).toBe("<span>&lt;img src=x onerror=&quot;alert(1)&quot;&gt; caption</span>");
+    expect(toIiifText("Streamers & plumes, see <b>north</b>")).toBe("Streamers & plumes, see <b>north</b>");
+  });
+
+  it("labels, which take no HTML at all, never begin with '<'", () => {
+    expect(m.label.en[0].startsWith("<")).toBe(false);
+    expect(m.label.en[0]).toBe(`\u200b${hostile}`);
   });
 });
 

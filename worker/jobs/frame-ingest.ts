@@ -21,6 +21,8 @@ import { analyseFrame } from "@/lib/bracket-sets/frame-analysis";
 import { findGroupForNewFrame } from "@/lib/bracket-sets/grouping";
 import { measureClippedFraction, toThumbnailPlanes } from "@/lib/bracket-sets/frame-preview";
 import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
+import { isPlausibleExposure } from "@/lib/media/exposure";
+import { JOBS } from "@/lib/queue/jobs";
 import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
 import type { JobHandler } from "../registry";
 
@@ -42,11 +44,12 @@ async function refuse(db: DbOrTx, frame: FrameToIngest, reason: string, flags: F
   throw new UnrecoverableError(reason);
 }
 
+/** A frame of the set that holds these bytes; a refused frame holds no claim on them (the same file may come again, renamed). */
 async function findDuplicate(db: DbOrTx, frame: FrameToIngest, sha256: string): Promise<{ id: string; originalFileName: string } | undefined> {
   const [first] = await db
     .select({ id: frames.id, originalFileName: frames.originalFileName })
     .from(frames)
-    .where(and(eq(frames.bracketSetId, frame.bracketSetId), eq(frames.sha256, sha256), ne(frames.id, frame.id)))
+    .where(and(eq(frames.bracketSetId, frame.bracketSetId), eq(frames.sha256, sha256), ne(frames.id, frame.id), ne(frames.ingestState, "refused")))
     .limit(1);
   return first;
 }
@@ -84,7 +87,33 @@ async function findNewFrameGroup(db: DbOrTx, frame: FrameToIngest, captureAt: Da
   return findGroupForNewFrame(others.map((o) => ({ captureMs: o.captureAt?.getTime() ?? null, groupNumber: o.groupNumber })), captureAt.getTime());
 }
 
-export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, report }) => {
+/**
+ * The ingest job. Bad input refuses the frame at once; any other fault is
+ * retried, and on the last attempt refuses the frame with the fault as its
+ * reason, so that no frame stays "received" for ever.
+ */
+export const ingestFrame: JobHandler<"frame.ingest"> = async (ctx) => {
+  try {
+    await ingestFrameOnce(ctx);
+  } catch (err) {
+    if (err instanceof UnrecoverableError || !ctx.isLastAttempt) throw err;
+    const [frame] = await ctx.db
+      .select({ id: frames.id, bracketSetId: frames.bracketSetId, originalKey: frames.originalKey, originalFileName: frames.originalFileName, sizeBytes: frames.sizeBytes, exposureSource: frames.exposureSource })
+      .from(frames)
+      .where(eq(frames.id, ctx.payload.frameId))
+      .limit(1);
+    if (!frame) throw err;
+    // The detail goes to the log; the photographer reads what to do (an internal message may name our services).
+    console.error(`[ingest] ${frame.originalFileName}: failed on its last attempt:`, err);
+    await refuse(
+      ctx.db,
+      frame,
+      `${frame.originalFileName}: could not be read after ${JOBS["frame.ingest"].attempts} attempts; the file may be damaged or in a form Crownlight cannot read. Remove it and send it again; if it is refused again, tell a curator.`,
+    );
+  }
+};
+
+async function ingestFrameOnce({ db, payload, report }: Parameters<JobHandler<"frame.ingest">>[0]): Promise<void> {
   const [frame] = await db
     .select({
       id: frames.id,
@@ -155,8 +184,11 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
     // A set already split into groups: the newcomer joins the group of the frame nearest in time.
     const captureAt = m.captureTimeMs === undefined ? null : new Date(m.captureTimeMs);
     const groupNumber = await findNewFrameGroup(db, frame, captureAt);
-    // An exposure the photographer already gave wins over the file's.
-    const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: m.exposureS ?? null, exposureSource: m.exposureS ? ("file" as const) : null };
+    // An exposure the photographer already gave wins over the file's; one outside
+    // the plausible range is not used, and the frame waits for the photographer's.
+    const fileExposureS = m.exposureS !== undefined && isPlausibleExposure(m.exposureS) ? m.exposureS : undefined;
+    if (m.exposureS !== undefined && fileExposureS === undefined) flags.implausibleExposureS = m.exposureS;
+    const exposure = frame.exposureSource === "photographer" ? {} : { exposureS: fileExposureS ?? null, exposureSource: fileExposureS ? ("file" as const) : null };
     await db
       .update(frames)
       .set({
@@ -182,4 +214,4 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async ({ db, payload, rep
   } finally {
     await rm(dir, { recursive: true, force: true });
   }
-};
+}

@@ -16,7 +16,7 @@ import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { ZipFile } from "yazl";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry } from "@/db/schema";
+import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry, type LocationPrecision } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
 import { editionExportFailedMail, editionExportReadyMail } from "@/lib/email/templates";
@@ -33,6 +33,7 @@ import { buildCaptionsText, buildCreditsText, type HouseStyleEntry } from "./hou
 import { buildPlateMetadata, metadataTags, type ExportPlateInput, type MasterSky, type PlateMetadata } from "./metadata";
 import { buildProofPdf, type ProofPage } from "./proof";
 import { planPrintSize, renderPlateFiles, type PrintPlan, type RenderedFile } from "./render";
+import { toPublicObserver } from "@/lib/sites/precision";
 
 /** Largest rendition PNG read into memory (a 16-bit RGB 8000 x 8000 image is 384 MB raw, far less as PNG). */
 const MAX_RENDITION_BYTES = 1024 ** 3;
@@ -72,7 +73,7 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
       plate: plates,
       facts: plateVersions.facts,
       outputs: reductions.outputs,
-      site: { name: sites.name, precision: sites.precision, latDeg: sites.latDeg, lonDeg: sites.lonDeg, elevationM: sites.elevationM },
+      site: { name: sites.publicLabel, precision: sites.precision, latDeg: sites.latDeg, lonDeg: sites.lonDeg, elevationM: sites.elevationM },
       kitId: kits.id,
       kit: { name: kits.name, camera: kits.camera, focalMm: kits.focalMm, fNumber: kits.fNumber },
     })
@@ -88,7 +89,7 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
   return rows.map(({ outputs, kitId, kit, site, ...r }) => ({
     ...r,
     prefix: typeof outputs?.prefix === "string" ? outputs.prefix : null,
-    site: site?.name ? site : null,
+    site: site?.precision ? site : null,
     kit: kitId ? kit : null,
   }));
 }
@@ -114,6 +115,18 @@ export function masterSkyFromReport(report: Record<string, unknown>): MasterSky 
     out.observer = { latDeg: observer.latDeg as number, lonDeg: observer.lonDeg as number, elevationM: num(observer.elevationM) ?? 0 };
   }
   return out;
+}
+
+/**
+ * The master's sky geometry as a print bundle may carry it: the report holds the
+ * exact observer, and the bundle is for publication, so the Sun's place is
+ * computed from the site at its public precision (from the Earth's centre for
+ * a hidden site, within the solar parallax of 8.8 arcsec).
+ */
+export function publicSkyFromReport(report: Record<string, unknown>, precision: LocationPrecision): MasterSky | null {
+  const sky = masterSkyFromReport(report);
+  if (sky?.observer) sky.observer = toPublicObserver(sky.observer, precision);
+  return sky;
 }
 
 async function sha256File(path: string): Promise<string> {
@@ -205,7 +218,7 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       if (!meta.width || !meta.height) throw new AppError("invalid_input", `${sourceName} has no readable size.`);
       let sky: MasterSky | null = null;
       try {
-        sky = masterSkyFromReport(JSON.parse((await readSmallObject({ bucket: bucketName("derived"), key: `${it.prefix}report.json` })).toString("utf8")) as Record<string, unknown>);
+        sky = publicSkyFromReport(JSON.parse((await readSmallObject({ bucket: bucketName("derived"), key: `${it.prefix}report.json` })).toString("utf8")) as Record<string, unknown>, it.site?.precision ?? "hidden");
       } catch (err) {
         if (!isMissingObject(err) && !(err instanceof SyntaxError)) throw err;
       }

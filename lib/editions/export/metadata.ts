@@ -15,7 +15,7 @@
 //   first negative (east to the left), Rotation is CROTA2, which for such an
 //   image is the angle of celestial north counter-clockwise from image up.
 // - GPS only when the site's precision is "exact" (the photographer's choice).
-import { Body, Equator, MakeTime, Observer } from "astronomy-engine";
+import { Body, Equator, EquatorFromVector, GeoVector, MakeTime, Observer } from "astronomy-engine";
 import type { LocationPrecision, PlateLicence, Rendition } from "@/db/schema";
 import { LICENCE_INFO } from "@/lib/plates/licences";
 
@@ -34,7 +34,8 @@ export interface MasterSky {
   northAngleDeg?: number;
   /** The instant the reduction's geometry refers to (the Moon silhouette's). */
   referenceUtc?: string;
-  observer?: { latDeg: number; lonDeg: number; elevationM: number };
+  /** Where the Sun's position is computed from: the site at its public precision, or null (a hidden site) for the Earth's centre. */
+  observer?: { latDeg: number; lonDeg: number; elevationM: number } | null;
 }
 
 export interface ExportPlateInput {
@@ -113,9 +114,14 @@ export function copyrightNotice(owner: string, year: string, licence: PlateLicen
   return `© ${year} ${owner}. Licensed under ${info.shortName}.`;
 }
 
-/** The Sun's ICRS (J2000 mean equator) right ascension and declination seen from the site, degrees. */
-export function sunRaDecDeg(utc: string, observer: { latDeg: number; lonDeg: number; elevationM: number }): [number, number] {
-  const eq = Equator(Body.Sun, MakeTime(new Date(utc)), new Observer(observer.latDeg, observer.lonDeg, observer.elevationM), false, true);
+/**
+ * The Sun's ICRS (J2000 mean equator) right ascension and declination seen from
+ * the site, degrees; from the Earth's centre when the site is hidden (null),
+ * which differs by the solar parallax, 8.8 arcsec at most.
+ */
+export function sunRaDecDeg(utc: string, observer: { latDeg: number; lonDeg: number; elevationM: number } | null): [number, number] {
+  const time = MakeTime(new Date(utc));
+  const eq = observer ? Equator(Body.Sun, time, new Observer(observer.latDeg, observer.lonDeg, observer.elevationM), false, true) : EquatorFromVector(GeoVector(Body.Sun, time, true));
   return [eq.ra * 15, eq.dec];
 }
 
@@ -125,7 +131,7 @@ export function sunRaDecDeg(utc: string, observer: { latDeg: number; lonDeg: num
  * centre, plate scale, celestial north, instant and observer (its WCS).
  */
 export function avmSpatial(sky: MasterSky | null, width: number, height: number): AvmSpatial | null {
-  if (!sky?.sunCentrePx || !sky.plateScaleArcsecPerPx || sky.northAngleDeg === undefined || !sky.referenceUtc || !sky.observer) return null;
+  if (!sky?.sunCentrePx || !sky.plateScaleArcsecPerPx || sky.northAngleDeg === undefined || !sky.referenceUtc || sky.observer === undefined) return null;
   const k = width / sky.masterWidth;
   // Pixel centres: master pixel i spans [i, i+1), so its centre maps to (i + 0.5) k - 0.5.
   const x = (sky.sunCentrePx.x + 0.5) * k - 0.5;

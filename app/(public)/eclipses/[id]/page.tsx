@@ -44,8 +44,8 @@ export default async function EclipsePage({ params }: Props) {
   const c = circumstancesAtPeak(eclipse.peakLatDeg, eclipse.peakLonDeg, eclipse.peakAt);
   const sites = new Map<string, { name: string; country: string | null; plates: { slug: string; title: string }[] }>();
   for (const p of plates) {
-    const key = `${p.siteName}|${p.siteCountry}`;
-    const s = sites.get(key) ?? { name: p.siteName, country: p.siteCountry, plates: [] };
+    const key = `${p.siteLabel ?? ""}|${p.siteCountry}`;
+    const s = sites.get(key) ?? { name: p.siteLabel ?? "", country: p.siteCountry, plates: [] };
     s.plates.push({ slug: p.slug, title: p.title });
     sites.set(key, s);
   }
@@ -124,7 +124,7 @@ export default async function EclipsePage({ params }: Props) {
           {sites.size ? (
             <ul className="flex flex-col gap-2" aria-labelledby="sites-h">
               {[...sites.values()].map((s) => {
-                const place = `${s.name || "Site not named"}${s.country ? `, ${s.country}` : ""}`;
+                const place = [s.name, s.country].filter(Boolean).join(", ") || "A site kept private";
                 return (
                   <li key={`${s.name}|${s.country}`}>
                     {s.plates.length === 1 ? (

@@ -4,10 +4,17 @@ import { redirect } from "next/navigation";
 import { z } from "zod";
 import { serverAction } from "@/app/_server/action";
 import { getDb } from "@/db/client";
-import { createSite, deleteSite, siteInputSchema } from "@/lib/sites/sites";
+import { createSite, deleteSite, siteEditSchema, siteInputSchema, updateSite, type SiteChange } from "@/lib/sites/sites";
 
 export const createSiteAction = serverAction("studio:use", siteInputSchema, async (actor, input) => {
   const site = await createSite(getDb(), actor, input);
+  revalidatePath("/studio/sites");
+  redirect(`/studio/sites/${site.id}?saved=1`);
+});
+
+export const updateSiteAction = serverAction("studio:use", siteEditSchema, async (actor, edit) => {
+  const { id, ...change } = edit;
+  const site = await updateSite(getDb(), actor, id, change as SiteChange);
   revalidatePath("/studio/sites");
   redirect(`/studio/sites/${site.id}?saved=1`);
 });

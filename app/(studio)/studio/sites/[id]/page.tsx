@@ -6,9 +6,10 @@ import { FormMessage } from "@/components/auth/form-message";
 import { ConfirmDelete } from "@/components/forms/confirm-delete";
 import { PageTitle } from "@/components/page-title";
 import { getDb } from "@/db/client";
-import { toPublicPosition } from "@/lib/sites/precision";
+import { SiteForm } from "@/components/sites/site-form";
+import { toPublicSite } from "@/lib/sites/precision";
 import { findSite } from "@/lib/sites/sites";
-import { deleteSiteAction } from "../actions";
+import { deleteSiteAction, updateSiteAction } from "../actions";
 
 export const metadata: Metadata = { title: "Site" };
 
@@ -17,7 +18,8 @@ export default async function SitePage({ params, searchParams }: { params: Promi
   const { saved } = await searchParams;
   const actor = await requirePagePermission("studio:use", `/studio/sites/${id}`);
   const site = await foundOr404(findSite(getDb(), actor, id));
-  const pub = toPublicPosition(site.latDeg, site.lonDeg, site.precision);
+  const shown = toPublicSite(site, null);
+  const pub = shown.position;
   return (
     <>
       <PageTitle title={site.name} lead={site.kind === "fixed" ? "A fixed site" : "A moving site with a track"}>
@@ -39,11 +41,26 @@ export default async function SitePage({ params, searchParams }: { params: Promi
           </>
         ) : null}
         <dt className="text-ink-muted">Public pages show</dt>
-        <dd className="font-mono">{pub ? `${pub.latDeg}°, ${pub.lonDeg}° (${pub.precision})` : "no position (hidden)"}</dd>
+        <dd>
+          {pub ? (
+            <>
+              {shown.label ? `“${shown.label}”, ` : "no label, "}the country and <span className="font-mono">{`${pub.latDeg}°, ${pub.lonDeg}°`}</span> ({pub.precision})
+            </>
+          ) : (
+            "nothing of the site: no position, label or country (hidden)"
+          )}
+        </dd>
       </dl>
       <p className="mt-6">
         <Link href={`/planner?site=${site.id}`}>Plan the eclipse from this site</Link>
       </p>
+      <section aria-labelledby="edit-site" className="mt-10 max-w-2xl border-t border-line pt-6">
+        <h2 id="edit-site" className="mb-3 text-xl font-semibold">
+          Change this site
+        </h2>
+        <p className="mb-4 text-sm text-ink-muted">A new precision applies to public pages and files at once, plates already published included.</p>
+        <SiteForm action={updateSiteAction} site={site} />
+      </section>
       <section aria-labelledby="delete-site" className="mt-10 border-t border-line pt-6">
         <h2 id="delete-site" className="mb-3 text-xl font-semibold">
           Delete

@@ -7,5 +7,5 @@ export const dynamic = "force-dynamic";
 // Tiles (IIIF Image API level 0 and Deep Zoom), preview and downloads of a reduction.
 export const GET = route({ access: PUBLIC }, async ({ req, actor, params }) => {
   const search = new URL(req.url).searchParams;
-  return serveReductionFile(getDb(), actor, params.id, params.path, search.get("download") === "1", search.get("name"));
+  return serveReductionFile(getDb(), actor, params.id, params.path, search.get("download") === "1", search.get("name"), req.headers.get("if-none-match"));
 });

@@ -6,9 +6,9 @@ import { loadPlate, plateMetadata } from "../../plate-route";
 type Props = { params: Promise<{ slug: string; version: string }> };
 
 function versionOf(text: string): number {
-  const v = Number(text);
-  if (!Number.isInteger(v) || v < 1) notFound();
-  return v;
+  // Digits only: "0x2" or "2e0" name no version.
+  if (!/^[1-9]\d{0,5}$/.test(text)) notFound();
+  return Number(text);
 }
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
