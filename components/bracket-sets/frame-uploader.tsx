@@ -12,7 +12,7 @@ import type { FrameDto, SignedPartsDto, UploadDto, UploadPartsDto } from "@/lib/
 import { Button } from "@/components/ui/button";
 import { ProgressBar } from "@/components/ui/progress-bar";
 import { callApi } from "./api-client";
-import { formatBytes, type UploadLimits } from "./upload-limits";
+import { FILE_INPUT_CLASSES, FRAME_EXTENSIONS, formatBytes, type UploadLimits } from "./upload-limits";
 
 type FrameMeta = Meta & { frameId?: string };
 type FrameBody = Record<string, never>;
@@ -26,7 +26,24 @@ type FileRow = {
   state: "waiting" | "uploading" | "paused" | "done" | "refused";
   resumed: boolean;
   message?: string;
+  /** The frame the upload became, once the server has recorded it. */
+  frameId?: string;
 };
+
+/** Where a sent file ended: measured, refused with the reason, a duplicate, or still being checked. */
+type Outcome = { tone: "ok" | "danger" | "neutral"; text: string };
+
+function outcomeOf(frame: FrameDto | undefined, wasSeen: boolean, byId: ReadonlyMap<string, FrameDto>): Outcome {
+  if (!frame) return wasSeen ? { tone: "neutral", text: "Removed from the set" } : { tone: "neutral", text: "Sent; being checked and measured" };
+  if (frame.ingestState === "received") return { tone: "neutral", text: "Sent; being checked and measured" };
+  if (frame.ingestState === "refused") {
+    const first = frame.flags.duplicateOfFrameId ? byId.get(frame.flags.duplicateOfFrameId) : undefined;
+    if (frame.flags.duplicateOfFrameId) return { tone: "danger", text: `Duplicate: the same file as ${first?.fileName ?? "a frame"} already in the set, so it was not stored twice` };
+    return { tone: "danger", text: `Refused: ${frame.refusalReason ?? "no reason was recorded"}` };
+  }
+  const missing = [frame.needsExposure ? "give its exposure" : "", frame.needsTime ? "give its capture time" : ""].filter(Boolean);
+  return { tone: "ok", text: `Measured${missing.length ? `; ${missing.join(" and ")} in the frame table` : ""}` };
+}
 
 const PARALLEL_PARTS = 4;
 
@@ -39,7 +56,7 @@ function subscribeOnline(onChange: () => void): () => void {
   };
 }
 
-function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>): FileRow {
+function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>, frameIds: ReadonlyMap<string, string>): FileRow {
   const p = f.progress;
   const size = f.size ?? 0;
   let state: FileRow["state"] = "waiting";
@@ -55,10 +72,11 @@ function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>): FileRow {
     state,
     resumed: resumedIds.has(f.id),
     message: f.error ?? undefined,
+    frameId: frameIds.get(f.id),
   };
 }
 
-export function FrameUploader({ setId, limits, openUploads }: { setId: string; limits: UploadLimits; openUploads: UploadDto[] }) {
+export function FrameUploader({ setId, limits, openUploads, frames }: { setId: string; limits: UploadLimits; openUploads: UploadDto[]; frames: FrameDto[] }) {
   const router = useRouter();
   const inputId = useId();
   const statusId = useId();
@@ -67,6 +85,13 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   const [isDragging, setIsDragging] = useState(false);
   const [notice, setNotice] = useState("");
   const resumedIds = useRef(new Set<string>());
+  // Uppy's file id -> the frame it became, from the completion's answer; frames seen on the page, to tell "removed" from "not yet read".
+  const frameIds = useRef(new Map<string, string>());
+  const seenFrames = useRef(new Set<string>());
+  const framesById = useMemo(() => new Map(frames.map((f) => [f.id, f])), [frames]);
+  useEffect(() => {
+    for (const f of frames) seenFrames.current.add(f.id);
+  }, [frames]);
   // Uploads the server still holds open (from an earlier page), matched by name and size.
   const pending = useRef(new Map(openUploads.map((u) => [`${u.fileName}\u0000${u.sizeBytes}`, u])));
   const [interrupted, setInterrupted] = useState(openUploads);
@@ -78,7 +103,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
       id: `frames-${setId}`,
       autoProceed: true,
       allowMultipleUploadBatches: true,
-      restrictions: { maxFileSize: limits.maxFileSizeBytes, maxNumberOfFiles: limits.maxFilesPerSet },
+      restrictions: { maxFileSize: limits.maxFileSizeBytes, maxNumberOfFiles: limits.maxFilesPerSet, allowedFileTypes: [...FRAME_EXTENSIONS] },
     }).use(AwsS3<FrameMeta, FrameBody>, {
       shouldUseMultipart: true,
       limit: PARALLEL_PARTS,
@@ -114,7 +139,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   }, [setId, limits]);
 
   useEffect(() => {
-    const sync = () => setRows(uppy.getFiles().map((f) => rowOf(f, resumedIds.current)));
+    const sync = () => setRows(uppy.getFiles().map((f) => rowOf(f, resumedIds.current, frameIds.current)));
     const refreshSoon = () => {
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
       refreshTimer.current = setTimeout(() => router.refresh(), 400);
@@ -136,13 +161,19 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
     uppy.on("state-update", sync);
     uppy.on("file-added", onAdded);
     uppy.on("restriction-failed", onRestricted);
-    uppy.on("upload-success", refreshSoon);
+    const onSuccess = (file: FrameFile | undefined, response: { uploadURL?: string }) => {
+      const frameId = /\/frames\/([0-9a-f-]{36})$/.exec(response?.uploadURL ?? "")?.[1];
+      if (file && frameId) frameIds.current.set(file.id, frameId);
+      sync();
+      refreshSoon();
+    };
+    uppy.on("upload-success", onSuccess);
     uppy.on("upload-error", refreshSoon);
     return () => {
       uppy.off("state-update", sync);
       uppy.off("file-added", onAdded);
       uppy.off("restriction-failed", onRestricted);
-      uppy.off("upload-success", refreshSoon);
+      uppy.off("upload-success", onSuccess);
       uppy.off("upload-error", refreshSoon);
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
     };
@@ -176,10 +207,14 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   const paused = rows.filter((r) => r.state === "paused").length;
   const failed = rows.filter((r) => r.state === "refused").length;
   const done = rows.filter((r) => r.state === "done").length;
+  const outcomes = rows.map((r) => (r.state === "done" && r.frameId ? outcomeOf(framesById.get(r.frameId), seenFrames.current.has(r.frameId), framesById) : null));
+  const measured = outcomes.filter((o) => o?.tone === "ok").length;
+  const refusedLater = outcomes.filter((o) => o?.tone === "danger").length;
   const summary = rows.length
     ? `${done} of ${rows.length} file${rows.length === 1 ? "" : "s"} sent, ${formatBytes(sent)} of ${formatBytes(total)}` +
       (paused ? `, ${paused} paused` : "") +
-      (failed ? `, ${failed} refused` : "")
+      (failed ? `, ${failed} refused` : "") +
+      (done ? `; ${measured} measured${refusedLater ? `, ${refusedLater} refused on checking` : ""}` : "")
     : "No files chosen yet.";
 
   return (
@@ -203,12 +238,13 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
           id={inputId}
           type="file"
           multiple
+          accept={FRAME_EXTENSIONS.join(",")}
           aria-describedby={`${inputId}-hint`}
           onChange={(e) => {
             addFiles(e.target.files);
             e.target.value = "";
           }}
-          className="text-sm"
+          className={FILE_INPUT_CLASSES}
         />
         <p id={`${inputId}-hint`} className="text-sm text-ink-muted">
           Up to {formatBytes(limits.maxFileSizeBytes)} a file and {limits.maxFilesPerSet} files a set. Files go straight to storage in{" "}
@@ -244,7 +280,10 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
       ) : null}
 
       <div className="flex flex-col gap-3">
-        <ProgressBar label="All files" value={total ? sent : undefined} max={total || 1} valueText={summary} tone={failed ? "danger" : done === rows.length && rows.length ? "ok" : "accent"} />
+        {/* No bar until a file is chosen: an empty bar would move as if something were under way. */}
+        {rows.length ? (
+          <ProgressBar label="All files" value={sent} max={total || 1} valueText={summary} tone={failed ? "danger" : done === rows.length ? "ok" : "accent"} />
+        ) : null}
         <p id={statusId} role="status" aria-live="polite" className="text-sm text-ink-muted">
           {summary}
         </p>
@@ -273,7 +312,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
 
       {rows.length ? (
         <ul className="flex flex-col gap-3" aria-label="Files being sent">
-          {rows.map((r) => (
+          {rows.map((r, i) => (
             <li key={r.id} className="rounded-card border border-line p-3">
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <span className="font-mono text-sm break-all">{r.name}</span>
@@ -291,7 +330,9 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
                 valueText={r.state === "done" ? "sent" : r.state === "refused" ? "refused" : `${Math.round((100 * r.uploaded) / (r.size || 1))} %`}
               />
               <div className="mt-2 flex flex-wrap items-center gap-2 text-sm">
-                <span>{stateText(r)}</span>
+                <span className={outcomes[i] ? (outcomes[i].tone === "ok" ? "font-medium text-ok" : outcomes[i].tone === "danger" ? "font-medium text-danger" : "") : ""}>
+                  {outcomes[i]?.text ?? stateText(r)}
+                </span>
                 {r.state === "uploading" || r.state === "waiting" ? (
                   <Button size="sm" variant="quiet" onClick={() => uppy.pauseResume(r.id)} aria-label={`Pause ${r.name}`}>
                     Pause

@@ -124,7 +124,7 @@ export async function findBracketSet(db: DbOrTx, actor: Actor | null, setId: str
     .from(frames)
     .where(eq(frames.bracketSetId, set.id))
     .orderBy(asc(frames.groupNumber), asc(cameraCaptureAt), asc(frames.originalFileName), asc(frames.id));
-  const blurred = markBlurred(frameRows.map((f) => ({ sharpness: f.flags.sharpness, isLight: f.kind === "light" && f.ingestState === "ingested" })));
+  const blurred = markBlurred(frameRows.map((f) => ({ sharpness: f.flags.sharpness, isLight: f.kind === "light" && f.ingestState === "ingested", exposureS: f.exposureS })));
   const openRows = await db.select().from(uploads).where(and(eq(uploads.bracketSetId, set.id), eq(uploads.state, "open"))).orderBy(asc(uploads.createdAt));
   return {
     ...toSummary(set, a, owner?.name ?? "", frameRows.length),

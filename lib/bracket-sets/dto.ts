@@ -92,3 +92,17 @@ export interface SignedPartsDto {
   expiresAt: string;
   urls: { partNumber: number; url: string }[];
 }
+
+export interface RemovedFrameDto {
+  id: string;
+  fileName: string;
+  /** False when a finished reduction of the set was made while the frame was in it: its original stays stored for that record. */
+  isOriginalDeleted: boolean;
+}
+
+export interface FrameTimesResultDto {
+  timesSet: number;
+  exposuresSet: number;
+  /** Frame names in the order they were given times, for the confirmation. */
+  fileNames: string[];
+}

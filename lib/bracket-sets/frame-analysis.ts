@@ -187,18 +187,32 @@ export function analyseFrame(image: PlaneImage, frame: FrameEncoding): Pick<Fram
   };
 }
 
-/**
- * Which frames are blurred, relative to their set: a light frame whose
- * sharpness is below half the median sharpness of the set's light frames.
- * Frames without a sharpness, calibration frames, and sets with fewer than
- * three measured light frames are never marked.
- */
-export function markBlurred(items: { sharpness?: number; isLight: boolean }[]): boolean[] {
-  const values = items.filter((f) => f.isLight && typeof f.sharpness === "number" && Number.isFinite(f.sharpness)).map((f) => f.sharpness as number);
-  if (values.length < MIN_FRAMES_FOR_BLUR) return items.map(() => false);
+/** Frames within this factor of a frame's exposure (two stops either way) are its peers for sharpness. */
+export const SHARPNESS_PEER_EXPOSURE_FACTOR = 4;
+
+function medianOf(values: number[]): number {
   const sorted = [...values].sort((a, b) => a - b);
   const mid = sorted.length >> 1;
-  const median = sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
-  const limit = BLURRED_FRACTION_OF_MEDIAN * median;
-  return items.map((f) => f.isLight && typeof f.sharpness === "number" && f.sharpness < limit);
+  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
+}
+
+/**
+ * Which frames are blurred, relative to their set: a light frame whose
+ * sharpness is below half the median sharpness of its peers. With exposures
+ * known, the peers are the light frames within two stops of its exposure (itself
+ * included): a long exposure, smooth by its purpose (the outer corona, the inner
+ * one clipped flat), is compared with long exposures, not with the shortest
+ * ones. Without an exposure the peers are all the set's light frames. Frames
+ * without a sharpness, calibration frames, and frames with fewer than three
+ * measured peers are never marked.
+ */
+export function markBlurred(items: { sharpness?: number; isLight: boolean; exposureS?: number | null }[]): boolean[] {
+  const measured = items.filter((f) => f.isLight && typeof f.sharpness === "number" && Number.isFinite(f.sharpness));
+  return items.map((f) => {
+    if (!f.isLight || typeof f.sharpness !== "number" || !Number.isFinite(f.sharpness)) return false;
+    const own = f.exposureS;
+    const peers = measured.filter((p) => !(own && own > 0) || (p.exposureS && p.exposureS > 0 && p.exposureS <= own * SHARPNESS_PEER_EXPOSURE_FACTOR && p.exposureS >= own / SHARPNESS_PEER_EXPOSURE_FACTOR));
+    if (peers.length < MIN_FRAMES_FOR_BLUR) return false;
+    return f.sharpness < BLURRED_FRACTION_OF_MEDIAN * medianOf(peers.map((p) => p.sharpness as number));
+  });
 }

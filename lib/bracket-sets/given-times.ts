@@ -9,6 +9,7 @@ import { frames, type Frame } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
 import { findOwnOpenSet } from "./access";
+import type { FrameTimesResultDto } from "./dto";
 import { assignIntervalTimes, describeCsvProblems, MAX_INTERVAL_S, MIN_INTERVAL_S, parseCameraTime, parseTimesCsv } from "./frame-times";
 
 /** A CSV of a few thousand frames is well under this; the limit keeps a wrong file (a raw image) out. */
@@ -37,13 +38,6 @@ export const frameTimesSchema = z.discriminatedUnion(
   { error: "expected method csv or interval" },
 );
 export type FrameTimesInput = z.infer<typeof frameTimesSchema>;
-
-export interface FrameTimesResultDto {
-  timesSet: number;
-  exposuresSet: number;
-  /** Frame names in the order they were given times, for the confirmation. */
-  fileNames: string[];
-}
 
 type FrameRow = Pick<Frame, "id" | "originalFileName" | "kind" | "ingestState" | "captureAt" | "givenCaptureAt">;
 

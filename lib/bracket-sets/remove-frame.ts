@@ -15,13 +15,7 @@ import { AppError, notFound } from "@/lib/errors";
 import { bucketName, buildThumbnailKey } from "@/lib/storage";
 import { getS3 } from "@/lib/storage/s3";
 import { findOwnOpenSet } from "./access";
-
-export interface RemovedFrameDto {
-  id: string;
-  fileName: string;
-  /** False when a finished reduction of the set was made while the frame was in it: its original stays stored for that record. */
-  isOriginalDeleted: boolean;
-}
+import type { RemovedFrameDto } from "./dto";
 
 async function deleteStored(bucket: string, key: string): Promise<void> {
   // S3 answers a delete of a missing key with success, so a repeated removal is harmless.
