@@ -23,6 +23,8 @@ const KINDS = ["light", "dark", "flat", "bias"] as const;
 /** Cells of the frame table; on a phone each row becomes a card and each cell shows its header above its value. */
 const CELL = "px-3 py-2 max-md:px-0 max-md:py-1 max-md:before:block max-md:before:text-xs max-md:before:font-medium max-md:before:text-ink-muted max-md:before:content-[attr(data-label)]";
 const HEAD = "border-b border-line-strong px-3 py-2.5";
+/** The server's limit for an exposure (an hour); said on the row before anything is sent. */
+const MAX_EXPOSURE_S = 3600;
 
 function isFlagged(f: TriageFrame, shortest: ReadonlyMap<number, number>): boolean {
   return (
@@ -106,9 +108,12 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
       setMessage((m) => m ?? { tone: "ok", text: done });
       router.refresh();
     } catch (err) {
-      const text = (err as Error).message;
+      // A field's own message, without the echo of what was sent: the row shows the value already.
+      const fieldText = err instanceof ApiError && err.fields[0] ? err.fields[0].message.replace(/\s*\(received [^)]*\)$/, "") : null;
+      const name = frames.find((f) => f.id === row?.id)?.fileName;
+      const text = fieldText && name ? `${name}: ${fieldText}.` : (err as Error).message;
       setMessage({ tone: "danger", text });
-      if (row) setProblems((p) => ({ ...p, [row.id]: { field: row.field, text: err instanceof ApiError && err.fields[0] ? err.fields[0].message : text } }));
+      if (row) setProblems((p) => ({ ...p, [row.id]: { field: row.field, text: fieldText ?? text } }));
     } finally {
       setBusy(null);
     }
@@ -118,8 +123,9 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
     run(`frame-${f.id}`, () => callApi(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "PATCH", body }), done, { id: f.id, field });
 
   function saveExposure(f: TriageFrame, value: number | null, typed: string) {
-    if (value === null) {
-      const text = typed.trim() === "" ? "give the exposure, such as 1/250 or 0.004" : `"${typed}" is not a time; write it as 1/250, 0.004 or 2`;
+    if (value === null || value > MAX_EXPOSURE_S) {
+      const text =
+        value !== null ? `must be at most ${MAX_EXPOSURE_S} s` : typed.trim() === "" ? "give the exposure, such as 1/250 or 0.004" : `"${typed}" is not a time; write it as 1/250, 0.004 or 2`;
       setProblems((p) => ({ ...p, [f.id]: { field: "exposure", text } }));
       setMessage({ tone: "danger", text: `${f.fileName}: ${text}.` });
       return;
@@ -162,7 +168,7 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
         Frames
       </h2>
       <p className="text-sm text-ink-muted">
-        {counts.all} frames: {counts.included} included, {counts.flagged} flagged, {counts.refused} refused. Times are true UTC (camera clock minus its offset). A time you type is what the camera's clock showed, in UTC; the offset applies to it too.
+        {counts.all} frames: {counts.included} included, {counts.flagged} flagged, {counts.refused} refused. Times are true UTC (camera clock minus its offset). A time you type is what the camera&apos;s clock showed, in UTC; the offset applies to it too.
       </p>
       <div className="flex flex-wrap items-end gap-4" role="group" aria-label="Filter frames">
         <label className="flex flex-col gap-1 text-sm">

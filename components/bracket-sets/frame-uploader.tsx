@@ -87,11 +87,10 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
   const resumedIds = useRef(new Set<string>());
   // Uppy's file id -> the frame it became, from the completion's answer; frames seen on the page, to tell "removed" from "not yet read".
   const frameIds = useRef(new Map<string, string>());
-  const seenFrames = useRef(new Set<string>());
+  const [seenFrames, setSeenFrames] = useState<ReadonlySet<string>>(() => new Set());
   const framesById = useMemo(() => new Map(frames.map((f) => [f.id, f])), [frames]);
-  useEffect(() => {
-    for (const f of frames) seenFrames.current.add(f.id);
-  }, [frames]);
+  // Frames the page has shown: one that is gone later was removed (state adjusted while rendering, as React advises for derived state).
+  if (frames.some((f) => !seenFrames.has(f.id))) setSeenFrames(new Set([...seenFrames, ...frames.map((f) => f.id)]));
   // Uploads the server still holds open (from an earlier page), matched by name and size.
   const pending = useRef(new Map(openUploads.map((u) => [`${u.fileName}\u0000${u.sizeBytes}`, u])));
   const [interrupted, setInterrupted] = useState(openUploads);
@@ -207,7 +206,7 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
   const paused = rows.filter((r) => r.state === "paused").length;
   const failed = rows.filter((r) => r.state === "refused").length;
   const done = rows.filter((r) => r.state === "done").length;
-  const outcomes = rows.map((r) => (r.state === "done" && r.frameId ? outcomeOf(framesById.get(r.frameId), seenFrames.current.has(r.frameId), framesById) : null));
+  const outcomes = rows.map((r) => (r.state === "done" && r.frameId ? outcomeOf(framesById.get(r.frameId), seenFrames.has(r.frameId), framesById) : null));
   const measured = outcomes.filter((o) => o?.tone === "ok").length;
   const refusedLater = outcomes.filter((o) => o?.tone === "danger").length;
   const summary = rows.length
