@@ -95,6 +95,7 @@ describe("a member's bracket, from disk to a reduction", () => {
     await page.getByRole("link", { name: "New bracket set" }).click();
     await page.getByLabel("Name").fill(setName);
     await page.getByLabel("Site").selectOption({ label: siteName });
+    await page.getByLabel("Kit").selectOption({ label: "No kit" });
     await page.getByRole("button", { name: "Create bracket set" }).click();
     await page.getByRole("heading", { name: setName }).waitFor({ timeout: 20_000 });
     const setUrl = page.url();

@@ -133,3 +133,28 @@ describe("runs offered and reasons in words", () => {
     expect(describeOrientation({ name: "Lens", mount: "hand-held" }, -12.5)).toMatchObject({ source: "given", text: expect.stringContaining("12.5° clockwise") });
   });
 });
+
+describe("the file picker and the reach chart's gaps", () => {
+  it("offers exactly the extensions ingest reads", async () => {
+    const { FRAME_EXTENSIONS } = await import("@/components/bracket-sets/upload-limits");
+    const { EXTENSION_FORMATS } = await import("@/lib/media/sniff");
+    expect([...FRAME_EXTENSIONS].sort()).toEqual(Object.keys(EXTENSION_FORMATS).sort());
+  });
+
+  it("finds stretches no frame covers well, from the limb out", async () => {
+    const { findReachGaps } = await import("@/lib/bracket-sets/triage");
+    // Two bands that meet, then a hole from 2.4 to 3.1, and a band inside another.
+    const bands = [
+      { from: 1.05, to: 1.6 },
+      { from: 1.6, to: 2.4 },
+      { from: 3.1, to: 5.0 },
+      { from: 3.5, to: 4.0 },
+      { from: null, to: null },
+    ];
+    expect(findReachGaps(bands, 1)).toEqual([
+      { from: 1, to: 1.05 },
+      { from: 2.4, to: 3.1 },
+    ]);
+    expect(findReachGaps([], 1)).toEqual([]);
+  });
+});
