@@ -12,6 +12,7 @@ import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionProgress } from "@/components/reductions/reduction-progress";
 import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
 import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
+import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
 import { getDb } from "@/db/client";
 import { findBracketSet } from "@/lib/bracket-sets";
 import { checkSetGeometry } from "@/lib/bracket-sets/set-checks";
@@ -54,12 +55,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
 
       <AutoRefresh active={othersRunning} message="Another reduction of this set is in progress; the list below follows it." intervalMs={4000} />
 
-      {checks.scaleWarning ? (
-        <p role="note" className="mb-8 max-w-3xl rounded-card border border-warn/60 bg-warn/10 p-4 text-sm">
-          <strong className="block font-semibold">The kit and the frames do not agree on the plate scale.</strong>
-          {checks.scaleWarning}
-        </p>
-      ) : null}
+      <ScaleWarning text={checks.scaleWarning} />
 
       <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, error: reduction.error }} />
 

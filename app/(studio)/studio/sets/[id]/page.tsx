@@ -3,6 +3,7 @@ import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
 import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
+import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
 import { BracketChart } from "@/components/bracket-sets/bracket-chart";
 import { BracketReach } from "@/components/bracket-sets/bracket-reach";
 import { FrameTimesPanel } from "@/components/bracket-sets/frame-times-panel";
@@ -98,12 +99,7 @@ export default async function BracketSetPage({ params, searchParams }: { params:
 
       {justSubmitted && set.state === "awaiting-review" && set.isOwn ? <SubmittedNotice /> : null}
 
-      {checks.scaleWarning ? (
-        <p role="note" className="mb-8 max-w-3xl rounded-card border border-warn/60 bg-warn/10 p-4 text-sm">
-          <strong className="block font-semibold">The kit and the frames do not agree on the plate scale.</strong>
-          {checks.scaleWarning}
-        </p>
-      ) : null}
+      <ScaleWarning text={checks.scaleWarning} />
 
       {curatorsMessage ? (
         <section aria-labelledby="curators-message-h" className="mb-8 max-w-3xl rounded-card border border-warn/60 bg-warn/10 p-4">
