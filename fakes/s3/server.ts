@@ -20,7 +20,9 @@ for (const key of ["S3_BUCKET_ORIGINALS", "S3_BUCKET_DERIVED", "S3_BUCKET_EXPORT
   }
 }
 
-const origins = new Set<string>(["http://127.0.0.1:3000", "http://localhost:3000", "http://127.0.0.1:3100", "http://localhost:3100"]);
+// The development app (3000) and the test app of every lane (3100 + lane, TEST_LANE 0 to 9: scripts/test.sh).
+const origins = new Set<string>(["http://127.0.0.1:3000", "http://localhost:3000"]);
+for (let lane = 0; lane <= 9; lane++) for (const host of ["127.0.0.1", "localhost"]) origins.add(`http://${host}:${3100 + lane}`);
 if (process.env.APP_URL) origins.add(new URL(process.env.APP_URL).origin);
 
 const cors = `<CORSConfiguration>
