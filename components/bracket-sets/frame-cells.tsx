@@ -108,10 +108,13 @@ export function TimeCell({
           </Button>
         ) : null}
       </div>
-      <span className="text-xs text-ink-muted">
-        {trueTime && f.correctedCaptureAt !== f.captureAt ? `true ${trueTime}, ` : ""}
-        {source ?? ""}
-      </span>
+      {trueTime || source ? (
+        <span className="text-xs text-ink-muted">
+          {trueTime ? `true time ${trueTime}` : ""}
+          {trueTime && source ? ", " : ""}
+          {source ?? ""}
+        </span>
+      ) : null}
       {f.needsTime ? <span className="text-xs font-medium text-danger">no capture time</span> : null}
       <Problem id={errorId} text={problem} />
     </form>

@@ -55,7 +55,8 @@ export function ReductionStartForm({
   const isOffered = (m: RegistrationModeInput) => choices?.[m].isOffered ?? true;
   const wanted = initial.registration ?? "sun";
   // A choice the frames do not allow is never preselected: the first one they allow is.
-  const [registration, setRegistration] = useState<RegistrationModeInput>(isOffered(wanted) ? wanted : (REGISTRATION_MODES.find(isOffered) ?? "corona"));
+  // The corona first: it needs neither times nor orientation, and it is what the Sun's centre falls back to.
+  const [registration, setRegistration] = useState<RegistrationModeInput>(isOffered(wanted) ? wanted : ((["corona", "moon", "sun"] as const).find(isOffered) ?? "corona"));
   const notes = REGISTRATION_MODES.filter((m) => choices?.[m].note).map((m) => ({ m, note: choices![m].note as string }));
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
