@@ -6,11 +6,24 @@
 import { useId, useState, type FormEvent } from "react";
 import type { FrameTimesResultDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
-import { callApi } from "./api-client";
+import { callApi, withFieldLabels } from "./api-client";
 import { FILE_INPUT_CLASSES } from "./upload-limits";
 import { useApiAction } from "./use-api-action";
 
 const FIELD = "rounded-control border border-line-strong bg-surface-raised px-3 py-2";
+
+/** Names of the form's fields as the page shows them, for the server's field-by-field refusals. */
+const FIELD_LABELS: Record<string, string> = {
+  firstAt: "First frame's time",
+  intervalS: "Interval",
+  scope: "Which frames",
+  text: "The CSV",
+  fileName: "The CSV's name",
+};
+
+function sendTimes(setId: string, body: Record<string, unknown>): Promise<FrameTimesResultDto> {
+  return withFieldLabels(callApi<FrameTimesResultDto>(`/api/bracket-sets/${setId}/frame-times`, { body }), FIELD_LABELS);
+}
 
 function describeResult(r: FrameTimesResultDto): string {
   const parts = [r.timesSet ? `${r.timesSet} capture time${r.timesSet === 1 ? "" : "s"}` : "", r.exposuresSet ? `${r.exposuresSet} exposure${r.exposuresSet === 1 ? "" : "s"}` : ""].filter(Boolean);
@@ -31,17 +44,14 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
       return;
     }
     const text = await file.text();
-    await csv.run(() => callApi<FrameTimesResultDto>(`/api/bracket-sets/${setId}/frame-times`, { body: { method: "csv", fileName: file.name, text } }), (r) => `${file.name}: ${describeResult(r)}`);
+    await csv.run(() => sendTimes(setId, { method: "csv", fileName: file.name, text }), (r) => `${file.name}: ${describeResult(r)}`);
   }
 
   async function sendInterval(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const data = new FormData(e.currentTarget);
     await interval.run(
-      () =>
-        callApi<FrameTimesResultDto>(`/api/bracket-sets/${setId}/frame-times`, {
-          body: { method: "interval", firstAt: String(data.get("firstAt") ?? ""), intervalS: String(data.get("intervalS") ?? ""), scope: String(data.get("scope") ?? "missing") },
-        }),
+      () => sendTimes(setId, { method: "interval", firstAt: String(data.get("firstAt") ?? ""), intervalS: String(data.get("intervalS") ?? ""), scope: String(data.get("scope") ?? "missing") }),
       (r) => `${describeResult(r)} In shot order: ${r.fileNames.slice(0, 3).join(", ")}${r.fileNames.length > 3 ? ", …" : ""}.`,
     );
   }

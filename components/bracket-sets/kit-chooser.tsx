@@ -3,7 +3,7 @@ import Link from "next/link";
 import { useId, useState, type FormEvent } from "react";
 import type { OrientationOutlook } from "@/lib/bracket-sets/orientation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "./api-client";
+import { callApi, withFieldLabels } from "./api-client";
 import { useApiAction } from "./use-api-action";
 
 /**
@@ -38,7 +38,7 @@ export function KitChooser({
     e.preventDefault();
     const text = String(new FormData(e.currentTarget).get("northAngleDeg") ?? "").trim();
     void north.run(
-      () => callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { northAngleDeg: text === "" ? null : text } }),
+      () => withFieldLabels(callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { northAngleDeg: text === "" ? null : text } }), { northAngleDeg: "North angle" }),
       () => (text === "" ? "The north angle is forgotten; the kit's mount decides again." : "North angle saved; new reductions use it."),
     );
   };

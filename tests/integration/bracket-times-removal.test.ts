@@ -38,8 +38,8 @@ beforeAll(async () => {
   curator = await createMember(db, "A Curator", ["member", "curator"]);
   setId = await createSetFor(db, owner, "Cadiz, times test");
   for (const name of names) {
-    const f = await uploadFile(db, owner, setId, name, new TextEncoder().encode(`II*\u0000 ${name} ${randomUUID()}`) as Uint8Array<ArrayBuffer>).catch(async () => {
-      // Not a real TIFF: completion refuses it but records the frame; find it by name.
+    const f = await uploadFile(db, owner, setId, name, new TextEncoder().encode(`not an image: ${name} ${randomUUID()}`) as Uint8Array<ArrayBuffer>).catch(async () => {
+      // Not an image: completion refuses it (unknown content) but records the frame; find it by name.
       const [row] = await db.select({ id: frames.id }).from(frames).where(and(eq(frames.bracketSetId, setId), eq(frames.originalFileName, name)));
       return { id: row.id };
     });
