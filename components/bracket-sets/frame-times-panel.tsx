@@ -74,7 +74,7 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
           : "Every light frame has a capture time. "}
         Give times as the camera&apos;s clock showed them: the set&apos;s clock offset is applied to them exactly as to the times in the files. A time you give wins over the file&apos;s, which is kept.
       </p>
-      <div className="grid gap-6 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
         <form onSubmit={(e) => void sendCsv(e)} className="flex flex-col gap-3 rounded-card border border-line p-4" aria-describedby={`${id}-csv-hint`}>
           <h3 className="font-semibold">From a CSV, by file name</h3>
           <p id={`${id}-csv-hint`} className="text-sm text-ink-muted">

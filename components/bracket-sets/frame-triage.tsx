@@ -275,7 +275,7 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
                       <span className="text-ink-muted">{f.ingestState === "received" ? "checking…" : "no thumbnail"}</span>
                     )}
                   </td>
-                  <th scope="row" className={`${CELL} max-md:col-span-2 font-mono font-normal [overflow-wrap:anywhere]`} data-label="File">
+                  <th scope="row" className={`${CELL} max-md:col-span-2 font-mono font-normal break-words md:min-w-44`} data-label="File">
                     <a href={`/api/bracket-sets/${setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
                       <FileName name={f.fileName} />
                     </a>

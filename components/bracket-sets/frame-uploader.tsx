@@ -135,7 +135,9 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
         await callApi<UploadDto>(`${base}/${uploadId}`, { method: "DELETE", signal });
       },
     });
-  }, [setId, limits]);
+    // Keyed on the values, not the object: the page's server data are read again while frames are checked,
+    // and a new Uppy for each read would drop the list and stall the files being sent.
+  }, [setId, limits.maxFileSizeBytes, limits.maxFilesPerSet, limits.partSizeBytes]);
 
   useEffect(() => {
     const sync = () => setRows(uppy.getFiles().map((f) => rowOf(f, resumedIds.current, frameIds.current)));

@@ -57,7 +57,16 @@ export function ReductionStartForm({
   // A choice the frames do not allow is never preselected: the first one they allow is.
   // The corona first: it needs neither times nor orientation, and it is what the Sun's centre falls back to.
   const [registration, setRegistration] = useState<RegistrationModeInput>(isOffered(wanted) ? wanted : ((["corona", "moon", "sun"] as const).find(isOffered) ?? "corona"));
-  const notes = REGISTRATION_MODES.filter((m) => choices?.[m].note).map((m) => ({ m, note: choices![m].note as string }));
+  // One line per distinct note: the corona and the Moon's limb often share theirs.
+  const notes: { modes: RegistrationModeInput[]; note: string; isOffered: boolean }[] = [];
+  for (const m of REGISTRATION_MODES) {
+    const note = choices?.[m].note;
+    if (!note) continue;
+    const same = notes.find((n) => n.note === note && n.isOffered === isOffered(m));
+    if (same) same.modes.push(m);
+    else notes.push({ modes: [m], note, isOffered: isOffered(m) });
+  }
+  const short = (m: RegistrationModeInput) => REGISTRATION_LABELS[m].replace(/ \(.*\)$/, "");
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
@@ -99,16 +108,16 @@ export function ReductionStartForm({
   return (
     <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
       {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
-      <div className="grid gap-5 sm:grid-cols-2">
+      <div className="grid grid-cols-1 gap-5 sm:grid-cols-2">
         <Field
           label="Align frames on"
           error={err("registration")}
           hint={
             notes.length ? (
               <span className="flex flex-col gap-1">
-                {notes.map(({ m, note }) => (
-                  <span key={m} className={m === registration || !isOffered(m) ? "text-warn" : undefined}>
-                    {!isOffered(m) ? `Not offered: ${note}` : `${REGISTRATION_LABELS[m].replace(/ \(.*\)$/, "")}: ${note}`}
+                {notes.map((n) => (
+                  <span key={n.modes.join()} className={n.modes.includes(registration) || !n.isOffered ? "text-warn" : undefined}>
+                    {!n.isOffered ? `Not offered: ${n.note}` : `${n.modes.map(short).join(" and ")}: ${n.note}`}
                   </span>
                 ))}
               </span>

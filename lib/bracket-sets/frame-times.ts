@@ -109,8 +109,8 @@ function baseName(path: string): string {
  * Reads a times CSV: a header row naming `file` and at least one of
  * `capture_time` and `exposure_s` (any order, other columns ignored; comma,
  * semicolon or tab between fields). An empty cell leaves that value as it is.
- * Every bad row is named with its line and column; rows are returned only when
- * there is none.
+ * Every bad row is named with its line and column. The rows come back with the
+ * problems so a caller can check their names too; use them only when there is none.
  */
 export function parseTimesCsv(text: string, dayUtc?: string): { rows: TimesCsvRow[]; problems: CsvProblem[] } {
   const lines = text.replace(/^\uFEFF/, "").split(/\r\n|\n|\r/);
@@ -162,7 +162,7 @@ export function parseTimesCsv(text: string, dayUtc?: string): { rows: TimesCsvRo
     rows.push(row);
   }
   if (rows.length === 0 && problems.length === 0) add(headerAt + 1, null, "the file has a header row but no frames under it");
-  return problems.length ? { rows: [], problems } : { rows, problems };
+  return { rows, problems };
 }
 
 /** "line 4, column capture_time: ..." for each problem: what the photographer reads. */

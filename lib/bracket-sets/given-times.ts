@@ -90,6 +90,7 @@ export async function giveFrameTimes(db: DbOrTx, actor: Actor | null, setId: str
       updates.push({ id: candidates[0].id, captureMs: row.captureMs, exposureS: row.exposureS, source: "csv" });
     }
     if (problems.length) {
+      problems.sort((a, b) => a.line - b.line);
       throw new AppError("invalid_input", describeCsvProblems(input.fileName, problems), problems.slice(0, 12).map((p) => ({ field: p.column ?? "csv", message: `line ${p.line}: ${p.message}` })));
     }
     await setFrames(db, set.id, updates);

@@ -58,10 +58,12 @@ export function checkKitScale(limbRadiiPx: number[], kit: OpticsKit, site: { lat
 
 /** The warning, with both numbers. */
 export function describeScaleMismatch(check: ScaleCheck, kitName: string): string {
-  const pct = Math.round(Math.abs(check.difference) * 100);
+  const ratio = check.measuredArcsecPerPx / check.expectedArcsecPerPx;
+  // Small differences in per cent; a wrong lens or pitch is clearer as a factor.
+  const apart = ratio >= 1.5 || ratio <= 1 / 1.5 ? `a factor of ${Math.max(ratio, 1 / ratio).toFixed(1)} apart` : `${Math.round(Math.abs(check.difference) * 100)} % apart`;
   return (
     `The frames show ${check.measuredArcsecPerPx.toFixed(2)}″ per pixel (the Moon's limb measures ${check.limbRadiusPx.toFixed(0)} px in radius), ` +
-    `but the kit “${kitName}” gives ${check.expectedArcsecPerPx.toFixed(2)}″ per pixel, ${pct} % ${check.difference > 0 ? "finer" : "coarser"} than measured. ` +
+    `but the kit “${kitName}” gives ${check.expectedArcsecPerPx.toFixed(2)}″ per pixel: ${apart}. ` +
     `The Sun is about ${check.measuredSunDiameterPx.toFixed(0)} px across in these frames; the kit says ${check.expectedSunDiameterPx.toFixed(0)} px. ` +
     `Check the kit's focal length, teleconverter and pixel pitch, or choose the kit these frames were taken with.`
   );

@@ -21,6 +21,7 @@ import { findOutputContentType } from "@/lib/reductions/output-paths";
 import { APP, requireTestDatabase } from "../support/env";
 import { launchBrowser, snap } from "../support/browser";
 import { seriousViolations } from "../support/axe";
+import { expectNoSidewaysScroll } from "../support/layout";
 import { createSetFor } from "../integration/bracket-upload-helpers";
 import { writeBracketFixture, type BracketFixture } from "../unit/reduction-runner/bracket-fixture";
 
@@ -185,8 +186,7 @@ describe("the reduction page", () => {
     await page.setViewportSize({ width: 390, height: 844 });
     await page.goto(`/studio/reductions/${reductionId}`);
     await page.getByRole("heading", { name: "Renditions" }).waitFor({ timeout: 15_000 });
-    const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
-    expect(scrollWidth, `the page is ${scrollWidth} px wide in a ${innerWidth} px window`).toBeLessThanOrEqual(innerWidth);
+    await expectNoSidewaysScroll(page);
     expect(await seriousViolations(page)).toEqual([]);
     await snap(page, "reduction-04-phone");
     await page.setViewportSize({ width: 1280, height: 720 });

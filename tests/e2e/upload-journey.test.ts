@@ -14,7 +14,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import type { Browser, Page } from "playwright-core";
+import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { bracketSets, frames as frameRows, kits, sites, users } from "@/db/schema";
@@ -23,6 +23,7 @@ import { synthesizeBracket } from "@/lib/imaging/synth-model";
 import { encodeFits } from "@/lib/media/fits-write";
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
+import { expectNoSidewaysScroll } from "../support/layout";
 import { signIn } from "../support/sign-in";
 import { APP, requireTestDatabase } from "../support/env";
 
@@ -37,12 +38,6 @@ const kitName = `Refractor 600 mm ${Date.now().toString(36)}`;
 const setName = `Second contact, 600 mm refractor ${Date.now().toString(36)}`;
 const START_MS = Date.UTC(2027, 7, 2, 10, 4, 40);
 const INTERVAL_S = 2;
-
-/** Nothing on the page is wider than the window: no sideways scroll at this size. */
-async function expectNoSidewaysScroll(page: Page): Promise<void> {
-  const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
-  expect(scrollWidth, `the page is ${scrollWidth} px wide in a ${innerWidth} px window`).toBeLessThanOrEqual(innerWidth);
-}
 
 beforeAll(async () => {
   browser = await launchBrowser();
