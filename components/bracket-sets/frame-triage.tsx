@@ -224,7 +224,7 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
           ))}
         </ul>
       ) : null}
-      <div className="w-full rounded-card border border-line md:overflow-x-auto max-md:border-0" tabIndex={0} role="region" aria-labelledby={`${baseId}-cap`}>
+      <div className="relative w-full rounded-card border border-line md:overflow-x-auto max-md:border-0" tabIndex={0} role="region" aria-labelledby={`${baseId}-cap`}>
         <table className="w-full border-collapse text-left text-sm max-md:block">
           <caption id={`${baseId}-cap`} className="sr-only">
             Frames of this bracket set, {visible.length} shown

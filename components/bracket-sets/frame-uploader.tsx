@@ -11,7 +11,7 @@ import { useEffect, useId, useMemo, useRef, useState, useSyncExternalStore, type
 import type { FrameDto, SignedPartsDto, UploadDto, UploadPartsDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
 import { ProgressBar } from "@/components/ui/progress-bar";
-import { callApi } from "./api-client";
+import { ApiError, callApi } from "./api-client";
 import { FILE_INPUT_CLASSES, FRAME_EXTENSIONS, formatBytes, type UploadLimits } from "./upload-limits";
 
 type FrameMeta = Meta & { frameId?: string };
@@ -80,7 +80,11 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
   const router = useRouter();
   const inputId = useId();
   const statusId = useId();
-  const [rows, setRows] = useState<FileRow[]>([]);
+  const [uppyRows, setRows] = useState<FileRow[]>([]);
+  // Files the server refused on arrival (a fault of the file, not of the connection): taken out of Uppy so that
+  // a later batch does not send them again, and kept here with the reason.
+  const [refusedRows, setRefusedRows] = useState<FileRow[]>([]);
+  const rows = useMemo(() => [...uppyRows, ...refusedRows], [uppyRows, refusedRows]);
   const isOnline = useSyncExternalStore(subscribeOnline, () => navigator.onLine, () => true);
   const [isDragging, setIsDragging] = useState(false);
   const [notice, setNotice] = useState("");
@@ -169,13 +173,20 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
       refreshSoon();
     };
     uppy.on("upload-success", onSuccess);
-    uppy.on("upload-error", refreshSoon);
+    const onError = (file: FrameFile | undefined, error: Error) => {
+      if (file && error instanceof ApiError && error.status >= 400 && error.status < 500) {
+        setRefusedRows((list) => [...list, { ...rowOf(file, resumedIds.current, frameIds.current), state: "refused", message: error.message }]);
+        uppy.removeFile(file.id);
+      }
+      refreshSoon();
+    };
+    uppy.on("upload-error", onError);
     return () => {
       uppy.off("state-update", sync);
       uppy.off("file-added", onAdded);
       uppy.off("restriction-failed", onRestricted);
       uppy.off("upload-success", onSuccess);
-      uppy.off("upload-error", refreshSoon);
+      uppy.off("upload-error", onError);
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
     };
   }, [uppy, router]);
@@ -296,13 +307,16 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
             <Button size="sm" onClick={() => uppy.resumeAll()} disabled={paused === 0}>
               Resume all
             </Button>
-            <Button size="sm" onClick={() => void uppy.retryAll()} disabled={failed === 0}>
-              Try refused again
+            <Button size="sm" onClick={() => void uppy.retryAll()} disabled={uppyRows.every((r) => r.state !== "refused")}>
+              Try failed files again
             </Button>
             <Button
               size="sm"
               variant="quiet"
-              onClick={() => rows.filter((r) => r.state === "done" || r.state === "refused").forEach((r) => uppy.removeFile(r.id))}
+              onClick={() => {
+                uppyRows.filter((r) => r.state === "done" || r.state === "refused").forEach((r) => uppy.removeFile(r.id));
+                setRefusedRows([]);
+              }}
               disabled={done + failed === 0}
             >
               Clear finished from this list
@@ -345,7 +359,12 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
                   </Button>
                 ) : null}
                 {r.state !== "done" ? (
-                  <Button size="sm" variant="quiet" onClick={() => uppy.removeFile(r.id)} aria-label={`Cancel ${r.name}`}>
+                  <Button
+                    size="sm"
+                    variant="quiet"
+                    onClick={() => (refusedRows.some((x) => x.id === r.id) ? setRefusedRows((list) => list.filter((x) => x.id !== r.id)) : uppy.removeFile(r.id))}
+                    aria-label={`Cancel ${r.name}`}
+                  >
                     Cancel
                   </Button>
                 ) : null}
