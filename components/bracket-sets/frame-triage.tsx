@@ -324,7 +324,7 @@ export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId
                       <Button
                         size="sm"
                         variant="quiet"
-                        aria-label={`Start a new group at ${f.fileName}`}
+                        aria-label={`Split here: start a new group at ${f.fileName}`}
                         onClick={() => void groupAction({ action: "split", frameId: f.id }, `A new group starts at ${f.fileName}.`)}
                       >
                         Split here
