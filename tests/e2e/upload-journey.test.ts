@@ -199,8 +199,8 @@ describe("a member's bracket, from disk to a reduction", () => {
     await page.getByRole("button", { name: "Start reduction" }).click();
     await page.waitForURL(/\/studio\/reductions\/[0-9a-f-]{36}$/, { timeout: 20_000 });
     await snap(page, "24-reduction-running");
-    await page.getByRole("img", { name: /structure/i }).first().waitFor({ timeout: 180_000 });
-    expect(await page.getByRole("img", { name: /natural/i }).first().isVisible()).toBe(true);
+    await page.getByRole("img", { name: `Structure rendition of the corona from ${setName}` }).waitFor({ timeout: 180_000 });
+    await page.getByRole("img", { name: `Natural rendition of the corona from ${setName}` }).waitFor({ timeout: 15_000 });
     await expect(page.getByRole("note").filter({ hasText: "The kit and the frames do not agree on the plate scale." }).count()).resolves.toBe(1);
     await snap(page, "25-reduction-done");
 
