@@ -21,7 +21,7 @@ type Show = "all" | "included" | "excluded" | "flagged" | "refused";
 
 const KINDS = ["light", "dark", "flat", "bias"] as const;
 /** Cells of the frame table; on a phone each row becomes a card and each cell shows its header above its value. */
-const CELL = "px-3 py-2 max-md:px-0 max-md:py-1 max-md:before:block max-md:before:text-xs max-md:before:font-medium max-md:before:text-ink-muted max-md:before:content-[attr(data-label)]";
+const CELL = "px-3 py-2 max-md:px-0 max-md:py-1 max-md:before:block max-md:before:text-xs max-md:before:font-sans max-md:before:font-medium max-md:before:text-ink-muted max-md:before:content-[attr(data-label)]";
 const HEAD = "border-b border-line-strong px-3 py-2.5";
 /** The server's limit for an exposure (an hour); said on the row before anything is sent. */
 const MAX_EXPOSURE_S = 3600;
