@@ -44,3 +44,17 @@ export async function callApi<T>(path: string, init: { method?: string; body?: u
   }
   return data as T;
 }
+
+/**
+ * A refusal in the page's words: when the server names fields, each is given by
+ * its label on the page (not its key) and without the echo of what was sent.
+ * Other errors pass unchanged (their message is already written for people).
+ */
+export async function withFieldLabels<T>(call: Promise<T>, labels: Record<string, string>): Promise<T> {
+  try {
+    return await call;
+  } catch (err) {
+    if (!(err instanceof ApiError) || !err.fields.some((f) => f.field in labels)) throw err;
+    throw new ApiError(err.fields.map((f) => `${labels[f.field] ?? "A value"}: ${f.message.replace(/\s*\(received [^)]*\)$/, "")}.`).join(" "), err.status, err.fields);
+  }
+}

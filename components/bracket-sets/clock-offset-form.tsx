@@ -84,7 +84,7 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
           />
         </div>
       ) : (
-        <div className="grid gap-4 sm:grid-cols-2">
+        <div className="grid grid-cols-1 gap-4 sm:grid-cols-2">
           <div className="flex flex-col gap-1.5">
             <label htmlFor={`${id}-f`} className="text-sm font-medium">
               Frame that shows the clock

@@ -5,31 +5,32 @@
 // the table works from the keyboard. Corrections go to the route handlers and
 // the page re-reads its data.
 import { useRouter } from "next/navigation";
-import { useId, useMemo, useState, type FormEvent } from "react";
-import type { FrameDto } from "@/lib/bracket-sets/dto";
-import { Badge } from "@/components/ui/badge";
+import { useId, useMemo, useState } from "react";
+import type { FrameDto, RemovedFrameDto } from "@/lib/bracket-sets/dto";
+import { findShortestExposures, judgeClipping } from "@/lib/bracket-sets/triage";
 import { Button } from "@/components/ui/button";
 import { SortableHeader, type SortDirection } from "@/components/ui/sortable-header";
-import { callApi } from "./api-client";
-import { formatExposure, parseExposure } from "./exposure-text";
+import { ApiError, callApi } from "./api-client";
+import { formatExposure } from "./exposure-text";
+import { ExposureCell, FileName, Findings, RemoveCell, TimeCell, type RowProblem } from "./frame-cells";
 import { FrameHistogram } from "./frame-histogram";
 
-type TriageFrame = FrameDto & { groupNumber?: number };
+type TriageFrame = FrameDto;
 type SortKey = "time" | "name" | "exposure" | "clipped" | "sharpness" | "group";
 type Show = "all" | "included" | "excluded" | "flagged" | "refused";
 
 const KINDS = ["light", "dark", "flat", "bias"] as const;
-/** Above this clipped fraction a frame is flagged: common practice keeps clipping to a few per cent. */
-const CLIPPED_FLAG = 0.05;
+/** Cells of the frame table; on a phone each row becomes a card and each cell shows its header above its value. */
+const CELL = "px-3 py-2 max-md:px-0 max-md:py-1 max-md:before:block max-md:before:text-xs max-md:before:font-sans max-md:before:font-medium max-md:before:text-ink-muted max-md:before:content-[attr(data-label)]";
+const HEAD = "border-b border-line-strong px-3 py-2.5";
+/** The server's limit for an exposure (an hour); said on the row before anything is sent. */
+const MAX_EXPOSURE_S = 3600;
 
-function timeOf(f: TriageFrame): string {
-  return f.correctedCaptureAt ? `${f.correctedCaptureAt.slice(11, 23)}` : "—";
-}
-
-function isFlagged(f: TriageFrame): boolean {
+function isFlagged(f: TriageFrame, shortest: ReadonlyMap<number, number>): boolean {
   return (
     f.needsExposure ||
-    (f.flags.clippedFraction ?? 0) > CLIPPED_FLAG ||
+    f.needsTime ||
+    judgeClipping(f, shortest) === "fault" ||
     f.flags.isBlurred === true ||
     (f.flags.limb !== undefined && f.flags.limb.quality !== "good")
   );
@@ -53,7 +54,7 @@ function compare(a: TriageFrame, b: TriageFrame, key: SortKey): number {
   }
 }
 
-export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames: TriageFrame[]; canEdit: boolean }) {
+export function FrameTriage({ setId, frames, canEdit, eclipseDay = "" }: { setId: string; frames: TriageFrame[]; canEdit: boolean; eclipseDay?: string }) {
   const router = useRouter();
   const baseId = useId();
   const [sort, setSort] = useState<{ key: SortKey; dir: Exclude<SortDirection, "none"> }>({ key: "time", dir: "ascending" });
@@ -62,6 +63,8 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
   const [query, setQuery] = useState("");
   const [busy, setBusy] = useState<string | null>(null);
   const [message, setMessage] = useState<{ tone: "ok" | "danger"; text: string } | null>(null);
+  const [problems, setProblems] = useState<Record<string, RowProblem>>({});
+  const shortest = useMemo(() => findShortestExposures(frames), [frames]);
 
   const groups = useMemo(() => [...new Set(frames.map((f) => f.groupNumber ?? 1))].sort((a, b) => a - b), [frames]);
   const visible = useMemo(() => {
@@ -75,7 +78,7 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
         case "excluded":
           return !f.included;
         case "flagged":
-          return isFlagged(f);
+          return isFlagged(f, shortest);
         case "refused":
           return f.ingestState === "refused";
         default:
@@ -84,7 +87,7 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
     });
     const sign = sort.dir === "ascending" ? 1 : -1;
     return list.sort((a, b) => sign * compare(a, b, sort.key));
-  }, [frames, kind, query, show, sort]);
+  }, [frames, kind, query, show, sort, shortest]);
 
   const header = (key: SortKey, label: string) => (
     <SortableHeader
@@ -95,33 +98,59 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
     </SortableHeader>
   );
 
-  async function run(label: string, work: () => Promise<unknown>, done: string) {
+  /** One call for a row: a refusal is shown on that row, beside the field at fault, as well as in the status line. */
+  async function run(label: string, work: () => Promise<unknown>, done: string, row?: { id: string; field: RowProblem["field"] }) {
     setBusy(label);
     setMessage(null);
+    if (row) setProblems((p) => Object.fromEntries(Object.entries(p).filter(([k]) => k !== row.id)));
     try {
       await work();
-      setMessage({ tone: "ok", text: done });
+      setMessage((m) => m ?? { tone: "ok", text: done });
       router.refresh();
     } catch (err) {
-      setMessage({ tone: "danger", text: (err as Error).message });
+      // A field's own message, without the echo of what was sent: the row shows the value already.
+      const fieldText = err instanceof ApiError && err.fields[0] ? err.fields[0].message.replace(/\s*\(received [^)]*\)$/, "") : null;
+      const name = frames.find((f) => f.id === row?.id)?.fileName;
+      const text = fieldText && name ? `${name}: ${fieldText}.` : (err as Error).message;
+      setMessage({ tone: "danger", text });
+      if (row) setProblems((p) => ({ ...p, [row.id]: { field: row.field, text: fieldText ?? text } }));
     } finally {
       setBusy(null);
     }
   }
 
-  const patchFrame = (f: TriageFrame, body: Record<string, unknown>, done: string) =>
-    run(`frame-${f.id}`, () => callApi(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "PATCH", body }), done);
+  const patchFrame = (f: TriageFrame, body: Record<string, unknown>, done: string, field: RowProblem["field"] = "row") =>
+    run(`frame-${f.id}`, () => callApi(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "PATCH", body }), done, { id: f.id, field });
 
-  function onExposure(e: FormEvent<HTMLFormElement>, f: TriageFrame) {
-    e.preventDefault();
-    const text = String(new FormData(e.currentTarget).get("exposure") ?? "");
-    const value = parseExposure(text);
-    if (value === null) {
-      setMessage({ tone: "danger", text: `${f.fileName}: exposure "${text}" is not a time; write it as 1/250, 0.004 or 2.` });
+  function saveExposure(f: TriageFrame, value: number | null, typed: string) {
+    if (value === null || value > MAX_EXPOSURE_S) {
+      const text =
+        value !== null ? `must be at most ${MAX_EXPOSURE_S} s` : typed.trim() === "" ? "give the exposure, such as 1/250 or 0.004" : `"${typed}" is not a time; write it as 1/250, 0.004 or 2`;
+      setProblems((p) => ({ ...p, [f.id]: { field: "exposure", text } }));
+      setMessage({ tone: "danger", text: `${f.fileName}: ${text}.` });
       return;
     }
-    void patchFrame(f, { exposureS: value }, `${f.fileName}: exposure set to ${formatExposure(value)}.`);
+    void patchFrame(f, { exposureS: value }, `${f.fileName}: exposure set to ${formatExposure(value)}.`, "exposure");
   }
+
+  function saveTime(f: TriageFrame, text: string | null) {
+    if (text !== null && text.trim() === "") {
+      setProblems((p) => ({ ...p, [f.id]: { field: "time", text: "give the time the camera's clock showed, such as 10:04:31.25" } }));
+      return;
+    }
+    void patchFrame(f, { captureAt: text }, text === null ? `${f.fileName}: the time you gave is forgotten; the file's own time counts again.` : `${f.fileName}: capture time saved.`, "time");
+  }
+
+  const removeFrame = (f: TriageFrame) =>
+    run(
+      `remove-${f.id}`,
+      async () => {
+        const removed = await callApi<RemovedFrameDto>(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "DELETE" });
+        if (!removed.isOriginalDeleted) setMessage({ tone: "ok", text: `${f.fileName} is removed; its original stays stored for the reductions already made with it.` });
+      },
+      `${f.fileName} is removed from the set.`,
+      { id: f.id, field: "row" },
+    );
 
   const groupAction = (body: Record<string, unknown>, done: string) =>
     run("groups", () => callApi(`/api/bracket-sets/${setId}/groups`, { body }), done);
@@ -129,7 +158,7 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
   const counts = {
     all: frames.length,
     included: frames.filter((f) => f.included && f.ingestState !== "refused").length,
-    flagged: frames.filter(isFlagged).length,
+    flagged: frames.filter((f) => isFlagged(f, shortest)).length,
     refused: frames.filter((f) => f.ingestState === "refused").length,
   };
 
@@ -139,7 +168,7 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
         Frames
       </h2>
       <p className="text-sm text-ink-muted">
-        {counts.all} frames: {counts.included} included, {counts.flagged} flagged, {counts.refused} refused. Times are true UTC (camera clock minus its offset).
+        {counts.all} frames: {counts.included} included, {counts.flagged} flagged, {counts.refused} refused. Times are true UTC (camera clock minus its offset). A time you type is what the camera&apos;s clock showed, in UTC; the offset applies to it too.
       </p>
       <div className="flex flex-wrap items-end gap-4" role="group" aria-label="Filter frames">
         <label className="flex flex-col gap-1 text-sm">
@@ -195,157 +224,131 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
           ))}
         </ul>
       ) : null}
-      <div className="w-full overflow-x-auto rounded-card border border-line" tabIndex={0} role="region" aria-labelledby={`${baseId}-cap`}>
-        <table className="w-full border-collapse text-left text-sm">
+      <div className="relative w-full rounded-card border border-line md:overflow-x-auto max-md:border-0" tabIndex={0} role="region" aria-labelledby={`${baseId}-cap`}>
+        <table className="w-full border-collapse text-left text-sm max-md:block">
           <caption id={`${baseId}-cap`} className="sr-only">
             Frames of this bracket set, {visible.length} shown
           </caption>
-          <thead>
+          <thead className="max-md:sr-only">
             <tr>
-              <th scope="col" className="border-b border-line-strong px-3 py-2.5">
+              <th scope="col" className={HEAD}>
                 Thumbnail
               </th>
               {header("name", "File")}
               {header("time", "Time (UTC)")}
               {header("exposure", "Exposure")}
-              <th scope="col" className="border-b border-line-strong px-3 py-2.5">
+              <th scope="col" className={HEAD}>
                 ISO · f/
               </th>
-              <th scope="col" className="border-b border-line-strong px-3 py-2.5">
+              <th scope="col" className={HEAD}>
                 Kind
               </th>
               {header("clipped", "Clipped")}
               {header("sharpness", "Findings")}
-              <th scope="col" className="border-b border-line-strong px-3 py-2.5">
+              <th scope="col" className={HEAD}>
                 Histogram
               </th>
               {header("group", "Group")}
-              <th scope="col" className="border-b border-line-strong px-3 py-2.5">
+              <th scope="col" className={HEAD}>
                 Included
               </th>
+              {canEdit ? (
+                <th scope="col" className={HEAD}>
+                  <span className="sr-only">Remove</span>
+                </th>
+              ) : null}
             </tr>
           </thead>
-          <tbody>
-            {visible.map((f) => (
-              <tr key={f.id} className="border-b border-line align-top last:border-b-0">
-                <td className="px-3 py-2">
-                  {f.hasThumbnail ? (
-                    // eslint-disable-next-line @next/next/no-img-element -- a private, already small thumbnail
-                    <img src={`/api/bracket-sets/${setId}/frames/${f.id}/thumbnail`} alt={`Thumbnail of ${f.fileName}`} width={80} height={54} className="h-14 w-20 rounded object-contain bg-black" loading="lazy" />
-                  ) : (
-                    <span className="text-ink-muted">{f.ingestState === "received" ? "checking…" : "none"}</span>
-                  )}
-                </td>
-                <th scope="row" className="px-3 py-2 font-mono font-normal break-all">
-                  <a href={`/api/bracket-sets/${setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
-                    {f.fileName}
-                  </a>
-                  {f.ingestState === "refused" ? (
-                    <div className="mt-1 font-sans">
-                      <p className="text-danger">Refused: {f.refusalReason}</p>
-                      {canEdit ? (
-                        <Button
-                          size="sm"
-                          variant="quiet"
-                          className="mt-1"
-                          pending={busy === `remove-${f.id}`}
-                          aria-label={`Remove the refused frame ${f.fileName}`}
-                          onClick={() => void run(`remove-${f.id}`, () => callApi(`/api/bracket-sets/${setId}/frames/${f.id}`, { method: "DELETE" }), `${f.fileName} was removed; you can send the file again.`)}
-                        >
-                          Remove
-                        </Button>
-                      ) : null}
-                    </div>
-                  ) : null}
-                </th>
-                <td className="px-3 py-2 font-mono" title={f.captureAt ? `Camera clock: ${f.captureAt}` : undefined}>
-                  {timeOf(f)}
-                </td>
-                <td className="px-3 py-2">
-                  {canEdit && f.ingestState === "ingested" ? (
-                    <form onSubmit={(e) => onExposure(e, f)} className="flex items-center gap-1">
-                      <label className="sr-only" htmlFor={`${baseId}-exp-${f.id}`}>
-                        Exposure of {f.fileName}
-                      </label>
-                      <input
-                        id={`${baseId}-exp-${f.id}`}
-                        name="exposure"
-                        defaultValue={f.exposureS === null ? "" : formatExposure(f.exposureS).replace(/ s$/, "")}
-                        placeholder="1/250"
-                        aria-invalid={f.needsExposure || undefined}
-                        className={`w-20 rounded-control border bg-surface-raised px-2 py-1 font-mono ${f.needsExposure ? "border-danger" : "border-line-strong"}`}
-                      />
-                      <Button size="sm" type="submit" variant="quiet" aria-label={`Save the exposure of ${f.fileName}`} pending={busy === `frame-${f.id}`}>
-                        Save
+          <tbody className="max-md:flex max-md:flex-col max-md:gap-3">
+            {visible.map((f) => {
+              const problem = problems[f.id];
+              return (
+                <tr
+                  key={f.id}
+                  className="border-b border-line align-top last:border-b-0 max-md:grid max-md:grid-cols-2 max-md:gap-x-3 max-md:rounded-card max-md:border max-md:p-3 max-md:last:border-b"
+                >
+                  <td className={`${CELL} max-md:col-span-2`} data-label="">
+                    {f.hasThumbnail ? (
+                      // eslint-disable-next-line @next/next/no-img-element -- a private, already small thumbnail
+                      <img src={`/api/bracket-sets/${setId}/frames/${f.id}/thumbnail`} alt={`Thumbnail of ${f.fileName}`} width={80} height={54} className="h-14 w-20 rounded bg-black object-contain" loading="lazy" />
+                    ) : (
+                      <span className="text-ink-muted">{f.ingestState === "received" ? "checking…" : "no thumbnail"}</span>
+                    )}
+                  </td>
+                  <th scope="row" className={`${CELL} max-md:col-span-2 font-mono font-normal break-words md:min-w-44`} data-label="File">
+                    <a href={`/api/bracket-sets/${setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
+                      <FileName name={f.fileName} />
+                    </a>
+                    {f.ingestState === "refused" ? <p className="mt-1 font-sans text-danger">Refused: {f.refusalReason}</p> : null}
+                    {problem?.field === "row" ? <p className="mt-1 font-sans text-xs font-medium text-danger">{problem.text}</p> : null}
+                  </th>
+                  <td className={`${CELL} max-md:col-span-2`} data-label="Camera clock time (UTC)">
+                    <TimeCell f={f} day={eclipseDay} canEdit={canEdit} pending={busy === `frame-${f.id}`} problem={problem?.field === "time" ? problem.text : undefined} onSave={saveTime} />
+                  </td>
+                  <td className={`${CELL} max-md:col-span-2`} data-label="Exposure">
+                    <ExposureCell f={f} canEdit={canEdit} pending={busy === `frame-${f.id}`} problem={problem?.field === "exposure" ? problem.text : undefined} onSave={saveExposure} />
+                  </td>
+                  <td className={`${CELL} font-mono`} data-label="ISO · f/">
+                    {f.iso ?? "—"} · {f.fNumber ?? "—"}
+                  </td>
+                  <td className={CELL} data-label="Kind">
+                    {canEdit && f.ingestState !== "refused" ? (
+                      <select
+                        aria-label={`Kind of ${f.fileName}`}
+                        value={f.kind}
+                        onChange={(e) => void patchFrame(f, { kind: e.target.value }, `${f.fileName} is now a ${e.target.value} frame.`)}
+                        className="rounded-control border border-line-strong bg-surface-raised px-2 py-1"
+                      >
+                        {KINDS.map((k) => (
+                          <option key={k} value={k}>
+                            {k}
+                          </option>
+                        ))}
+                      </select>
+                    ) : (
+                      f.kind
+                    )}
+                  </td>
+                  <td className={`${CELL} font-mono`} data-label="Clipped">
+                    {f.flags.clippedFraction === undefined ? "—" : `${(100 * f.flags.clippedFraction).toFixed(1)} %`}
+                  </td>
+                  <td className={`${CELL} max-md:col-span-2`} data-label="Findings">
+                    <Findings f={f} shortest={shortest} />
+                  </td>
+                  <td className={CELL} data-label="Histogram">
+                    <FrameHistogram bins={f.flags.histogram} label={f.fileName} />
+                  </td>
+                  <td className={CELL} data-label="Group">
+                    <span className="font-mono">{f.groupNumber ?? 1}</span>
+                    {canEdit && f.correctedCaptureAt ? (
+                      <Button
+                        size="sm"
+                        variant="quiet"
+                        aria-label={`Split here: start a new group at ${f.fileName}`}
+                        onClick={() => void groupAction({ action: "split", frameId: f.id }, `A new group starts at ${f.fileName}.`)}
+                      >
+                        Split here
                       </Button>
-                    </form>
-                  ) : (
-                    <span className="font-mono">{formatExposure(f.exposureS)}</span>
-                  )}
-                  {f.exposureSource === "photographer" ? <span className="block text-xs text-ink-muted">set by you</span> : null}
-                  {f.needsExposure ? (
-                    <span className="block text-xs font-medium text-danger">
-                      {f.flags.implausibleExposureS !== undefined ? `the file says ${f.flags.implausibleExposureS} s, which cannot be right: give the exposure` : "the file gives none"}
-                    </span>
+                    ) : null}
+                  </td>
+                  <td className={CELL} data-label="Included">
+                    <input
+                      type="checkbox"
+                      aria-label={`Include ${f.fileName} in reductions`}
+                      checked={f.included && f.ingestState !== "refused"}
+                      disabled={!canEdit || f.ingestState === "refused"}
+                      onChange={(e) => void patchFrame(f, { included: e.target.checked }, `${f.fileName} is ${e.target.checked ? "included" : "excluded"}.`)}
+                      className="h-5 w-5"
+                    />
+                  </td>
+                  {canEdit ? (
+                    <td className={CELL} data-label="">
+                      <RemoveCell f={f} pending={busy === `remove-${f.id}`} onRemove={(x) => void removeFrame(x)} />
+                    </td>
                   ) : null}
-                </td>
-                <td className="px-3 py-2 font-mono">
-                  {f.iso ?? "—"} · {f.fNumber ?? "—"}
-                </td>
-                <td className="px-3 py-2">
-                  {canEdit && f.ingestState !== "refused" ? (
-                    <select
-                      aria-label={`Kind of ${f.fileName}`}
-                      value={f.kind}
-                      onChange={(e) => void patchFrame(f, { kind: e.target.value }, `${f.fileName} is now a ${e.target.value} frame.`)}
-                      className="rounded-control border border-line-strong bg-surface-raised px-2 py-1"
-                    >
-                      {KINDS.map((k) => (
-                        <option key={k} value={k}>
-                          {k}
-                        </option>
-                      ))}
-                    </select>
-                  ) : (
-                    f.kind
-                  )}
-                </td>
-                <td className="px-3 py-2 font-mono">
-                  {f.flags.clippedFraction === undefined ? "—" : `${(100 * f.flags.clippedFraction).toFixed(1)} %`}
-                </td>
-                <td className="px-3 py-2">
-                  <Findings f={f} />
-                </td>
-                <td className="px-3 py-2">
-                  <FrameHistogram bins={f.flags.histogram} label={f.fileName} />
-                </td>
-                <td className="px-3 py-2">
-                  <span className="font-mono">{f.groupNumber ?? 1}</span>
-                  {canEdit && f.correctedCaptureAt ? (
-                    <Button
-                      size="sm"
-                      variant="quiet"
-                      aria-label={`Start a new group at ${f.fileName}`}
-                      onClick={() => void groupAction({ action: "split", frameId: f.id }, `A new group starts at ${f.fileName}.`)}
-                    >
-                      Split here
-                    </Button>
-                  ) : null}
-                </td>
-                <td className="px-3 py-2">
-                  <input
-                    type="checkbox"
-                    aria-label={`Include ${f.fileName} in reductions`}
-                    checked={f.included && f.ingestState !== "refused"}
-                    disabled={!canEdit || f.ingestState === "refused"}
-                    onChange={(e) =>
-                      void patchFrame(f, { included: e.target.checked }, `${f.fileName} is ${e.target.checked ? "included" : "excluded"}.`)
-                    }
-                    className="h-5 w-5"
-                  />
-                </td>
-              </tr>
-            ))}
+                </tr>
+              );
+            })}
           </tbody>
         </table>
       </div>
@@ -353,28 +356,3 @@ export function FrameTriage({ setId, frames, canEdit }: { setId: string; frames:
   );
 }
 
-function Findings({ f }: { f: TriageFrame }) {
-  const items: { tone: "ok" | "warn" | "danger" | "neutral"; text: string }[] = [];
-  if (f.ingestState === "received") items.push({ tone: "neutral", text: "being checked" });
-  if ((f.flags.clippedFraction ?? 0) > CLIPPED_FLAG) items.push({ tone: "warn", text: "much clipping" });
-  if (f.flags.isBlurred) items.push({ tone: "warn", text: "soft" });
-  const limb = f.flags.limb;
-  if (limb) {
-    items.push({
-      tone: limb.quality === "good" ? "ok" : limb.quality === "doubtful" ? "warn" : "danger",
-      text: limb.quality === "failed" ? "no limb found" : `limb ${limb.quality} (${limb.rmsPx.toFixed(1)} px)`,
-    });
-  }
-  if (f.flags.sharpness !== undefined) items.push({ tone: "neutral", text: `sharpness ${f.flags.sharpness.toPrecision(3)}` });
-  if (f.flags.duplicateOfFrameId) items.push({ tone: "danger", text: "duplicate" });
-  if (items.length === 0) return <span className="text-ink-muted">—</span>;
-  return (
-    <ul className="flex flex-col gap-1">
-      {items.map((i) => (
-        <li key={i.text}>
-          <Badge tone={i.tone}>{i.text}</Badge>
-        </li>
-      ))}
-    </ul>
-  );
-}

@@ -11,8 +11,8 @@ import { useEffect, useId, useMemo, useRef, useState, useSyncExternalStore, type
 import type { FrameDto, SignedPartsDto, UploadDto, UploadPartsDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
 import { ProgressBar } from "@/components/ui/progress-bar";
-import { callApi } from "./api-client";
-import { formatBytes, type UploadLimits } from "./upload-limits";
+import { ApiError, callApi } from "./api-client";
+import { FILE_INPUT_CLASSES, FRAME_EXTENSIONS, formatBytes, type UploadLimits } from "./upload-limits";
 
 type FrameMeta = Meta & { frameId?: string };
 type FrameBody = Record<string, never>;
@@ -26,7 +26,24 @@ type FileRow = {
   state: "waiting" | "uploading" | "paused" | "done" | "refused";
   resumed: boolean;
   message?: string;
+  /** The frame the upload became, once the server has recorded it. */
+  frameId?: string;
 };
+
+/** Where a sent file ended: measured, refused with the reason, a duplicate, or still being checked. */
+type Outcome = { tone: "ok" | "danger" | "neutral"; text: string };
+
+function outcomeOf(frame: FrameDto | undefined, wasSeen: boolean, byId: ReadonlyMap<string, FrameDto>): Outcome {
+  if (!frame) return wasSeen ? { tone: "neutral", text: "Removed from the set" } : { tone: "neutral", text: "Sent; being checked and measured" };
+  if (frame.ingestState === "received") return { tone: "neutral", text: "Sent; being checked and measured" };
+  if (frame.ingestState === "refused") {
+    const first = frame.flags.duplicateOfFrameId ? byId.get(frame.flags.duplicateOfFrameId) : undefined;
+    if (frame.flags.duplicateOfFrameId) return { tone: "danger", text: `Duplicate: the same file as ${first?.fileName ?? "a frame"} already in the set, so it was not stored twice` };
+    return { tone: "danger", text: `Refused: ${frame.refusalReason ?? "no reason was recorded"}` };
+  }
+  const missing = [frame.needsExposure ? "give its exposure" : "", frame.needsTime ? "give its capture time" : ""].filter(Boolean);
+  return { tone: "ok", text: `Measured${missing.length ? `; ${missing.join(" and ")} in the frame table` : ""}` };
+}
 
 const PARALLEL_PARTS = 4;
 
@@ -39,7 +56,7 @@ function subscribeOnline(onChange: () => void): () => void {
   };
 }
 
-function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>): FileRow {
+function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>, frameIds: ReadonlyMap<string, string>): FileRow {
   const p = f.progress;
   const size = f.size ?? 0;
   let state: FileRow["state"] = "waiting";
@@ -55,18 +72,29 @@ function rowOf(f: FrameFile, resumedIds: ReadonlySet<string>): FileRow {
     state,
     resumed: resumedIds.has(f.id),
     message: f.error ?? undefined,
+    frameId: frameIds.get(f.id),
   };
 }
 
-export function FrameUploader({ setId, limits, openUploads }: { setId: string; limits: UploadLimits; openUploads: UploadDto[] }) {
+export function FrameUploader({ setId, limits, openUploads, frames }: { setId: string; limits: UploadLimits; openUploads: UploadDto[]; frames: FrameDto[] }) {
   const router = useRouter();
   const inputId = useId();
   const statusId = useId();
-  const [rows, setRows] = useState<FileRow[]>([]);
+  const [uppyRows, setRows] = useState<FileRow[]>([]);
+  // Files the server refused on arrival (a fault of the file, not of the connection): taken out of Uppy so that
+  // a later batch does not send them again, and kept here with the reason.
+  const [refusedRows, setRefusedRows] = useState<FileRow[]>([]);
+  const rows = useMemo(() => [...uppyRows, ...refusedRows], [uppyRows, refusedRows]);
   const isOnline = useSyncExternalStore(subscribeOnline, () => navigator.onLine, () => true);
   const [isDragging, setIsDragging] = useState(false);
   const [notice, setNotice] = useState("");
   const resumedIds = useRef(new Set<string>());
+  // Uppy's file id -> the frame it became, from the completion's answer; frames seen on the page, to tell "removed" from "not yet read".
+  const frameIds = useRef(new Map<string, string>());
+  const [seenFrames, setSeenFrames] = useState<ReadonlySet<string>>(() => new Set());
+  const framesById = useMemo(() => new Map(frames.map((f) => [f.id, f])), [frames]);
+  // Frames the page has shown: one that is gone later was removed (state adjusted while rendering, as React advises for derived state).
+  if (frames.some((f) => !seenFrames.has(f.id))) setSeenFrames(new Set([...seenFrames, ...frames.map((f) => f.id)]));
   // Uploads the server still holds open (from an earlier page), matched by name and size.
   const pending = useRef(new Map(openUploads.map((u) => [`${u.fileName}\u0000${u.sizeBytes}`, u])));
   const [interrupted, setInterrupted] = useState(openUploads);
@@ -78,7 +106,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
       id: `frames-${setId}`,
       autoProceed: true,
       allowMultipleUploadBatches: true,
-      restrictions: { maxFileSize: limits.maxFileSizeBytes, maxNumberOfFiles: limits.maxFilesPerSet },
+      restrictions: { maxFileSize: limits.maxFileSizeBytes, maxNumberOfFiles: limits.maxFilesPerSet, allowedFileTypes: [...FRAME_EXTENSIONS] },
     }).use(AwsS3<FrameMeta, FrameBody>, {
       shouldUseMultipart: true,
       limit: PARALLEL_PARTS,
@@ -111,10 +139,12 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
         await callApi<UploadDto>(`${base}/${uploadId}`, { method: "DELETE", signal });
       },
     });
-  }, [setId, limits]);
+    // Keyed on the values, not the object: the page's server data are read again while frames are checked,
+    // and a new Uppy for each read would drop the list and stall the files being sent.
+  }, [setId, limits.maxFileSizeBytes, limits.maxFilesPerSet, limits.partSizeBytes]);
 
   useEffect(() => {
-    const sync = () => setRows(uppy.getFiles().map((f) => rowOf(f, resumedIds.current)));
+    const sync = () => setRows(uppy.getFiles().map((f) => rowOf(f, resumedIds.current, frameIds.current)));
     const refreshSoon = () => {
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
       refreshTimer.current = setTimeout(() => router.refresh(), 400);
@@ -136,14 +166,27 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
     uppy.on("state-update", sync);
     uppy.on("file-added", onAdded);
     uppy.on("restriction-failed", onRestricted);
-    uppy.on("upload-success", refreshSoon);
-    uppy.on("upload-error", refreshSoon);
+    const onSuccess = (file: FrameFile | undefined, response: { uploadURL?: string }) => {
+      const frameId = /\/frames\/([0-9a-f-]{36})$/.exec(response?.uploadURL ?? "")?.[1];
+      if (file && frameId) frameIds.current.set(file.id, frameId);
+      sync();
+      refreshSoon();
+    };
+    uppy.on("upload-success", onSuccess);
+    const onError = (file: FrameFile | undefined, error: Error) => {
+      if (file && error instanceof ApiError && error.status >= 400 && error.status < 500) {
+        setRefusedRows((list) => [...list, { ...rowOf(file, resumedIds.current, frameIds.current), state: "refused", message: error.message }]);
+        uppy.removeFile(file.id);
+      }
+      refreshSoon();
+    };
+    uppy.on("upload-error", onError);
     return () => {
       uppy.off("state-update", sync);
       uppy.off("file-added", onAdded);
       uppy.off("restriction-failed", onRestricted);
-      uppy.off("upload-success", refreshSoon);
-      uppy.off("upload-error", refreshSoon);
+      uppy.off("upload-success", onSuccess);
+      uppy.off("upload-error", onError);
       if (refreshTimer.current) clearTimeout(refreshTimer.current);
     };
   }, [uppy, router]);
@@ -176,10 +219,14 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
   const paused = rows.filter((r) => r.state === "paused").length;
   const failed = rows.filter((r) => r.state === "refused").length;
   const done = rows.filter((r) => r.state === "done").length;
+  const outcomes = rows.map((r) => (r.state === "done" && r.frameId ? outcomeOf(framesById.get(r.frameId), seenFrames.has(r.frameId), framesById) : null));
+  const measured = outcomes.filter((o) => o?.tone === "ok").length;
+  const refusedLater = outcomes.filter((o) => o?.tone === "danger").length;
   const summary = rows.length
     ? `${done} of ${rows.length} file${rows.length === 1 ? "" : "s"} sent, ${formatBytes(sent)} of ${formatBytes(total)}` +
       (paused ? `, ${paused} paused` : "") +
-      (failed ? `, ${failed} refused` : "")
+      (failed ? `, ${failed} refused` : "") +
+      (done ? `; ${measured} measured${refusedLater ? `, ${refusedLater} refused on checking` : ""}` : "")
     : "No files chosen yet.";
 
   return (
@@ -203,12 +250,13 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
           id={inputId}
           type="file"
           multiple
+          accept={FRAME_EXTENSIONS.join(",")}
           aria-describedby={`${inputId}-hint`}
           onChange={(e) => {
             addFiles(e.target.files);
             e.target.value = "";
           }}
-          className="text-sm"
+          className={FILE_INPUT_CLASSES}
         />
         <p id={`${inputId}-hint`} className="text-sm text-ink-muted">
           Up to {formatBytes(limits.maxFileSizeBytes)} a file and {limits.maxFilesPerSet} files a set. Files go straight to storage in{" "}
@@ -244,7 +292,10 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
       ) : null}
 
       <div className="flex flex-col gap-3">
-        <ProgressBar label="All files" value={total ? sent : undefined} max={total || 1} valueText={summary} tone={failed ? "danger" : done === rows.length && rows.length ? "ok" : "accent"} />
+        {/* No bar until a file is chosen: an empty bar would move as if something were under way. */}
+        {rows.length ? (
+          <ProgressBar label="All files" value={sent} max={total || 1} valueText={summary} tone={failed ? "danger" : done === rows.length ? "ok" : "accent"} />
+        ) : null}
         <p id={statusId} role="status" aria-live="polite" className="text-sm text-ink-muted">
           {summary}
         </p>
@@ -256,13 +307,16 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
             <Button size="sm" onClick={() => uppy.resumeAll()} disabled={paused === 0}>
               Resume all
             </Button>
-            <Button size="sm" onClick={() => void uppy.retryAll()} disabled={failed === 0}>
-              Try refused again
+            <Button size="sm" onClick={() => void uppy.retryAll()} disabled={uppyRows.every((r) => r.state !== "refused")}>
+              Try failed files again
             </Button>
             <Button
               size="sm"
               variant="quiet"
-              onClick={() => rows.filter((r) => r.state === "done" || r.state === "refused").forEach((r) => uppy.removeFile(r.id))}
+              onClick={() => {
+                uppyRows.filter((r) => r.state === "done" || r.state === "refused").forEach((r) => uppy.removeFile(r.id));
+                setRefusedRows([]);
+              }}
               disabled={done + failed === 0}
             >
               Clear finished from this list
@@ -273,7 +327,7 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
 
       {rows.length ? (
         <ul className="flex flex-col gap-3" aria-label="Files being sent">
-          {rows.map((r) => (
+          {rows.map((r, i) => (
             <li key={r.id} className="rounded-card border border-line p-3">
               <div className="flex flex-wrap items-center justify-between gap-2">
                 <span className="font-mono text-sm break-all">{r.name}</span>
@@ -291,7 +345,9 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
                 valueText={r.state === "done" ? "sent" : r.state === "refused" ? "refused" : `${Math.round((100 * r.uploaded) / (r.size || 1))} %`}
               />
               <div className="mt-2 flex flex-wrap items-center gap-2 text-sm">
-                <span>{stateText(r)}</span>
+                <span className={outcomes[i] ? (outcomes[i].tone === "ok" ? "font-medium text-ok" : outcomes[i].tone === "danger" ? "font-medium text-danger" : "") : ""}>
+                  {outcomes[i]?.text ?? stateText(r)}
+                </span>
                 {r.state === "uploading" || r.state === "waiting" ? (
                   <Button size="sm" variant="quiet" onClick={() => uppy.pauseResume(r.id)} aria-label={`Pause ${r.name}`}>
                     Pause
@@ -303,7 +359,12 @@ export function FrameUploader({ setId, limits, openUploads }: { setId: string; l
                   </Button>
                 ) : null}
                 {r.state !== "done" ? (
-                  <Button size="sm" variant="quiet" onClick={() => uppy.removeFile(r.id)} aria-label={`Cancel ${r.name}`}>
+                  <Button
+                    size="sm"
+                    variant="quiet"
+                    onClick={() => (refusedRows.some((x) => x.id === r.id) ? setRefusedRows((list) => list.filter((x) => x.id !== r.id)) : uppy.removeFile(r.id))}
+                    aria-label={`Cancel ${r.name}`}
+                  >
                     Cancel
                   </Button>
                 ) : null}

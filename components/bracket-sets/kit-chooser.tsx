@@ -1,27 +1,60 @@
 "use client";
-import { useId, useState } from "react";
+import Link from "next/link";
+import { useId, useState, type FormEvent } from "react";
+import type { OrientationOutlook } from "@/lib/bracket-sets/orientation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "./api-client";
+import { callApi, withFieldLabels } from "./api-client";
 import { useApiAction } from "./use-api-action";
 
-/** The set's kit, changeable while frames may still be corrected. Without one, a Sun-centred reduction must guess the orientation. */
-export function KitChooser({ setId, kitId, kits }: { setId: string; kitId: string | null; kits: { id: string; name: string }[] }) {
+/**
+ * The set's kit and where north will come from, changeable while frames may
+ * still be corrected. Asked before a run: when no kit or a mount without a
+ * reference (hand-held, stabilised) leaves north to be estimated, the page says
+ * so and offers the kit, a new kit, or the north angle itself.
+ */
+export function KitChooser({
+  setId,
+  kitId,
+  kits,
+  outlook,
+  northAngleDeg,
+}: {
+  setId: string;
+  kitId: string | null;
+  kits: { id: string; name: string }[];
+  outlook: OrientationOutlook;
+  northAngleDeg: number | null;
+}) {
   const id = useId();
   const [value, setValue] = useState(kitId ?? "");
-  const { pending, message, run } = useApiAction();
+  const kit = useApiAction();
+  const north = useApiAction();
   const save = () =>
-    run(
+    kit.run(
       () => callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { kitId: value || null } }),
       () => (value ? "Kit saved; new reductions use its plate scale and mount." : "The set has no kit now."),
     );
+  const saveNorth = (e: FormEvent<HTMLFormElement>) => {
+    e.preventDefault();
+    const text = String(new FormData(e.currentTarget).get("northAngleDeg") ?? "").trim();
+    void north.run(
+      () => withFieldLabels(callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { northAngleDeg: text === "" ? null : text } }), { northAngleDeg: "North angle" }),
+      () => (text === "" ? "The north angle is forgotten; the kit's mount decides again." : "North angle saved; new reductions use it."),
+    );
+  };
+  const status = (m: typeof kit.message) => (
+    <p role="status" aria-live="polite" className="text-sm font-medium">
+      {m ? <span className={m.tone === "ok" ? "text-ok" : "text-danger"}>{m.text}</span> : null}
+    </p>
+  );
   return (
-    <div className="flex flex-col gap-2">
+    <div className="flex flex-col gap-4">
       <div className="flex flex-wrap items-end gap-3">
         <div className="flex flex-col gap-1.5">
           <label htmlFor={id} className="text-sm font-medium">
             Kit the frames were taken with
           </label>
-          <select id={id} value={value} onChange={(e) => setValue(e.target.value)} className="rounded-control border border-line-strong bg-surface-raised px-3 py-2">
+          <select id={id} value={value} onChange={(e) => setValue(e.target.value)} className="max-w-full rounded-control border border-line-strong bg-surface-raised px-3 py-2">
             <option value="">No kit</option>
             {kits.map((k) => (
               <option key={k.id} value={k.id}>
@@ -30,19 +63,39 @@ export function KitChooser({ setId, kitId, kits }: { setId: string; kitId: strin
             ))}
           </select>
         </div>
-        <Button onClick={() => void save()} pending={pending} pendingLabel="Saving…" disabled={value === (kitId ?? "")}>
+        <Button onClick={() => void save()} pending={kit.pending} pendingLabel="Saving…" disabled={value === (kitId ?? "")}>
           Save kit
         </Button>
+        <Link href={kitId ? `/studio/kits/${kitId}` : "/studio/kits/new"} className="pb-2 text-sm">
+          {kitId ? "Edit this kit's mount and optics" : "Make a new kit"}
+        </Link>
       </div>
-      {!kitId ? (
-        <p className="text-sm text-warn">
-          Without a kit, a reduction aligned on the Sun must find the image orientation from the Moon&apos;s motion in the bracket, which a bracket of a few seconds rarely allows.
-          Choose the kit whose mount says how the camera was turned.
+      {status(kit.message)}
+      <div className={`max-w-3xl rounded-card border p-4 ${outlook.needsAnswer ? "border-warn/60 bg-warn/10" : "border-line"}`}>
+        <h3 className="font-semibold">North in the image</h3>
+        <p className={`mt-1 text-sm ${outlook.needsAnswer ? "text-warn" : "text-ink-muted"}`}>{outlook.text}</p>
+        <form onSubmit={saveNorth} className="mt-3 flex flex-wrap items-end gap-3">
+          <label className="flex flex-col gap-1 text-sm font-medium">
+            North angle (degrees counter-clockwise from the top of the image)
+            <input
+              name="northAngleDeg"
+              defaultValue={northAngleDeg === null ? "" : String(northAngleDeg)}
+              inputMode="decimal"
+              autoComplete="off"
+              size={8}
+              aria-describedby={`${id}-north-hint`}
+              className="w-32 rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
+            />
+          </label>
+          <Button type="submit" pending={north.pending} pendingLabel="Saving…">
+            Save north angle
+          </Button>
+        </form>
+        <p id={`${id}-north-hint`} className="mt-1 text-xs text-ink-muted">
+          For example from a star field or a plate solve of a frame taken with the same set-up. Leave it empty to let the kit&apos;s mount decide.
         </p>
-      ) : null}
-      <p role="status" aria-live="polite" className="text-sm font-medium">
-        {message ? <span className={message.tone === "ok" ? "text-ok" : "text-danger"}>{message.text}</span> : null}
-      </p>
+        {status(north.message)}
+      </div>
     </div>
   );
 }

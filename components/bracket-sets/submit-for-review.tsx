@@ -1,12 +1,27 @@
 "use client";
+import { useRouter } from "next/navigation";
+import { useEffect, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { callApi } from "./api-client";
-import { useApiAction } from "./use-api-action";
 
 /** Hands the set to the curators; it can no longer be changed until they ask for changes. */
 export function SubmitForReview({ setId, hasReduction }: { setId: string; hasReduction: boolean }) {
-  const { pending, message, run } = useApiAction();
-  const submit = () => run(() => callApi(`/api/bracket-sets/${setId}/submit`, { method: "POST", body: {} }), () => "Submitted. The curators have been told by e-mail.");
+  const router = useRouter();
+  const [pending, setPending] = useState(false);
+  const [problem, setProblem] = useState<string | null>(null);
+  const submit = async () => {
+    setPending(true);
+    setProblem(null);
+    try {
+      await callApi(`/api/bracket-sets/${setId}/submit`, { method: "POST", body: {} });
+      // The page shows the confirmation at its top (this form goes away with the set's state) and moves the focus there.
+      router.replace(`/studio/sets/${setId}?submitted=1`, { scroll: true });
+      router.refresh();
+    } catch (err) {
+      setProblem((err as Error).message);
+      setPending(false);
+    }
+  };
   return (
     <div className="flex flex-col gap-2">
       <div>
@@ -17,9 +32,24 @@ export function SubmitForReview({ setId, hasReduction }: { setId: string; hasRed
       <p className="text-sm text-ink-muted">
         {hasReduction ? "Curators check the frames and the reductions, then publish or ask you for changes." : "Submitting needs at least one finished reduction."}
       </p>
-      <p role="status" aria-live="polite" className="text-sm font-medium">
-        {message ? <span className={message.tone === "ok" ? "text-ok" : "text-danger"}>{message.text}</span> : null}
+      <p role="status" aria-live="polite" className="text-sm font-medium text-danger">
+        {problem}
       </p>
+    </div>
+  );
+}
+
+/** The confirmation after submitting, at the top of the page: it takes the focus so that keyboard and screen-reader users land on it. */
+export function SubmittedNotice() {
+  const ref = useRef<HTMLDivElement>(null);
+  useEffect(() => {
+    ref.current?.focus();
+    ref.current?.scrollIntoView({ block: "center" });
+  }, []);
+  return (
+    <div ref={ref} tabIndex={-1} role="status" aria-live="polite" className="mb-8 max-w-3xl rounded-card border border-ok/60 bg-ok/10 p-4 outline-none focus-visible:ring-2 focus-visible:ring-focus">
+      <h2 className="text-lg font-semibold text-ok">Submitted for review</h2>
+      <p className="mt-1">The curators have been told by e-mail. The set stays as it is until they publish it or ask you for changes; you will hear from them either way.</p>
     </div>
   );
 }

@@ -62,7 +62,11 @@ export function KitForm({ action, initial, submitLabel }: { action: FormAction; 
         {num("focalMm", "Focal length (mm)", "Of the lens or telescope alone.")}
         {num("teleconverter", "Teleconverter factor", "1 without one; 1.4 or 2 with.")}
         {num("fNumber", "f-number", "Of the lens alone; the teleconverter is applied for you.")}
-        <Field label="Mount" error={err("mount")}>
+        <Field
+          label="Mount"
+          error={err("mount")}
+          hint="It tells a reduction where north is in the image: an equatorial mount keeps it fixed, a levelled tripod or alt-azimuth mount keeps the zenith up. Hand-held and stabilised cameras say nothing, so alignment on the Sun must estimate north from the Moon's motion, which a bracket of a few seconds rarely allows; give the north angle on the bracket set's page when you know it."
+        >
           <Select name="mount" defaultValue={v("mount")} options={MOUNT_OPTIONS} />
         </Field>
         <fieldset className="flex flex-col gap-2">

@@ -13,7 +13,7 @@ export function CoverageMap({ coverage, src }: { coverage: CoverageView; src: st
     `Coverage map: brighter where more of the ${coverage.frameCount} frames contributed. ` +
     `On average ${coverage.meanFrames?.toFixed(1) ?? "?"} frames per pixel; ${(uncovered * 100).toFixed(1)}% of the master has no frame.`;
   return (
-    <div className="grid gap-6 md:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+    <div className="grid grid-cols-1 gap-6 md:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
       <figure className="flex flex-col gap-2">
         {/* eslint-disable-next-line @next/next/no-img-element -- a small output served by our own route */}
         <img src={src} alt={alt} width={coverage.map?.width} height={coverage.map?.height} className="h-auto w-full rounded-control border border-line bg-black [image-rendering:pixelated]" />

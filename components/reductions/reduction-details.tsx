@@ -108,7 +108,7 @@ export function Renditions({ reductionId, setName, structurePreview }: { reducti
     { key: "structure", title: "Structure", text: "Radially filtered to show the corona's structure.", src: buildOutputUrl(reductionId, structurePreview), full: "structure.png" },
   ];
   return (
-    <div className="grid gap-6 lg:grid-cols-2">
+    <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
       {items.map((r) => (
         <figure key={r.key} className="flex flex-col gap-2">
           <a href={buildOutputUrl(reductionId, r.full)} className="block overflow-hidden rounded-card border border-line bg-black">

@@ -45,6 +45,7 @@ export function ReductionList({ reductions, caption = "Reductions of this bracke
               <TableCell>{p.groupNumber ? `Group ${p.groupNumber}` : "All included"}</TableCell>
               <TableCell>
                 <Badge tone={STATE_TONES[r.state]}>{r.state}</Badge>
+                {r.state === "failed" && r.error ? <p className="mt-1 max-w-md text-sm text-danger">{r.error}</p> : null}
                 {r.state === "running" ? (
                   <span className="ml-2 text-ink-muted">
                     {describeStage(r.stage)}, {Math.round(r.progress * 100)}%

@@ -29,8 +29,8 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   const router = useRouter();
   const [current, setCurrent] = useState<ReductionProgressState>(initial);
   const [failures, setFailures] = useState(0);
-  // Only a change to done (seen by polling) refreshes; a page rendered done already shows the results.
-  const refreshed = useRef(initial.state === "done");
+  // Only a change to done or failed (seen by polling) refreshes, so the results, the reason and the list of reductions are read again.
+  const refreshed = useRef(!isActive(initial.state));
 
   useEffect(() => {
     if (!isActive(current.state)) return;
@@ -58,7 +58,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   }, [current, failures, reductionId]);
 
   useEffect(() => {
-    if (current.state === "done" && !refreshed.current) {
+    if (!isActive(current.state) && !refreshed.current) {
       refreshed.current = true;
       router.refresh();
     }

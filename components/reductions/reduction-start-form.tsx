@@ -7,7 +7,8 @@ import { Checkbox } from "@/components/ui/checkbox";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
-import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, reductionParamsSchema, type ReductionParamsInput } from "@/lib/reductions/schemas";
+import type { RunChoice } from "@/lib/reductions/run-options";
+import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, REGISTRATION_MODES, reductionParamsSchema, type ReductionParamsInput, type RegistrationModeInput } from "@/lib/reductions/schemas";
 import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
 
 type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
@@ -36,8 +37,36 @@ function readForm(form: HTMLFormElement): Record<string, unknown> {
  * schema the server uses (problems under their labels), then posted; on success
  * the browser goes to the new reduction's page, where its progress shows.
  */
-export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = "Start reduction" }: { setId: string; groups: number[]; initial?: Partial<ReductionParamsInput>; submitLabel?: string }) {
+export function ReductionStartForm({
+  setId,
+  groups,
+  initial = {},
+  submitLabel = "Start reduction",
+  choices,
+}: {
+  setId: string;
+  groups: number[];
+  initial?: Partial<ReductionParamsInput>;
+  submitLabel?: string;
+  /** Which alignments the set's frames allow, and why not (lib/reductions/run-options); all are offered when absent. */
+  choices?: Record<RegistrationModeInput, RunChoice>;
+}) {
   const router = useRouter();
+  const isOffered = (m: RegistrationModeInput) => choices?.[m].isOffered ?? true;
+  const wanted = initial.registration ?? "sun";
+  // A choice the frames do not allow is never preselected: the first one they allow is.
+  // The corona first: it needs neither times nor orientation, and it is what the Sun's centre falls back to.
+  const [registration, setRegistration] = useState<RegistrationModeInput>(isOffered(wanted) ? wanted : ((["corona", "moon", "sun"] as const).find(isOffered) ?? "corona"));
+  // One line per distinct note: the corona and the Moon's limb often share theirs.
+  const notes: { modes: RegistrationModeInput[]; note: string; isOffered: boolean }[] = [];
+  for (const m of REGISTRATION_MODES) {
+    const note = choices?.[m].note;
+    if (!note) continue;
+    const same = notes.find((n) => n.note === note && n.isOffered === isOffered(m));
+    if (same) same.modes.push(m);
+    else notes.push({ modes: [m], note, isOffered: isOffered(m) });
+  }
+  const short = (m: RegistrationModeInput) => REGISTRATION_LABELS[m].replace(/ \(.*\)$/, "");
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
@@ -79,9 +108,30 @@ export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = 
   return (
     <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
       {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
-      <div className="grid gap-5 sm:grid-cols-2">
-        <Field label="Align frames on" error={err("registration")} hint="The Sun's centre needs the site and the frames' capture times.">
-          <Select name="registration" defaultValue={initial.registration ?? "sun"} options={Object.entries(REGISTRATION_LABELS).map(([value, label]) => ({ value, label }))} />
+      <div className="grid grid-cols-1 gap-5 sm:grid-cols-2">
+        <Field
+          label="Align frames on"
+          error={err("registration")}
+          hint={
+            notes.length ? (
+              <span className="flex flex-col gap-1">
+                {notes.map((n) => (
+                  <span key={n.modes.join()} className={n.modes.includes(registration) || !n.isOffered ? "text-warn" : undefined}>
+                    {!n.isOffered ? `Not offered: ${n.note}` : `${n.modes.map(short).join(" and ")}: ${n.note}`}
+                  </span>
+                ))}
+              </span>
+            ) : (
+              "The Sun's centre needs the site and the frames' capture times."
+            )
+          }
+        >
+          <Select
+            name="registration"
+            value={registration}
+            onChange={(e) => setRegistration(e.target.value as RegistrationModeInput)}
+            options={REGISTRATION_MODES.map((value) => ({ value, label: isOffered(value) ? REGISTRATION_LABELS[value] : `${REGISTRATION_LABELS[value]}: not offered, see below`, disabled: !isOffered(value) }))}
+          />
         </Field>
         <Field label="Structure filter" error={err("filter")} hint="Used for the structure rendition; the natural rendition is not filtered.">
           <Select name="filter" defaultValue={initial.filter ?? "mgn"} options={Object.entries(FILTER_LABELS).map(([value, label]) => ({ value, label }))} />

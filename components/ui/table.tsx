@@ -11,13 +11,15 @@ export type TableProps = ComponentProps<"table"> & {
 
 /**
  * A semantic table. The wrapper scrolls sideways on narrow screens and is focusable
- * and labelled by the caption so keyboard users can scroll it too.
+ * and labelled by the caption so keyboard users can scroll it too. Positioned
+ * (relative) so that visually hidden labels inside it (sr-only, absolutely
+ * positioned) stay inside the scroll box instead of widening the page.
  */
 export function Table({ caption, captionHidden = false, wrapperClassName, className, children, ...rest }: TableProps) {
   const captionId = useId();
   return (
     <div
-      className={cx("w-full overflow-x-auto rounded-card border border-line", wrapperClassName)}
+      className={cx("relative w-full overflow-x-auto rounded-card border border-line", wrapperClassName)}
       tabIndex={0}
       role="region"
       aria-labelledby={captionId}

@@ -28,6 +28,8 @@ export const bracketSets = pgTable(
     notes: text("notes").notNull().default(""),
     // Seconds the camera clock ran ahead of UTC (negative: behind); true time = clock - offset.
     clockOffsetS: real("clock_offset_s").notNull().default(0),
+    // Position angle of celestial north in the image (degrees counter-clockwise from up, after flips), when the photographer knows it; wins over the kit's mount.
+    northAngleDeg: real("north_angle_deg"),
     state: text("state", { enum: BRACKET_SET_STATES }).notNull().default("gathering"),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
@@ -41,6 +43,9 @@ export const INGEST_STATES = ["received", "ingested", "refused"] as const;
 export type IngestState = (typeof INGEST_STATES)[number];
 export const EXPOSURE_SOURCES = ["file", "photographer"] as const;
 export type ExposureSource = (typeof EXPOSURE_SOURCES)[number];
+/** How the photographer gave a frame's capture time: a CSV by file name, a first time and an interval, or typed in the table. */
+export const GIVEN_TIME_SOURCES = ["csv", "interval", "table"] as const;
+export type GivenTimeSource = (typeof GIVEN_TIME_SOURCES)[number];
 
 /** Automatic findings of ingest; more keys join as triage grows. */
 export interface FrameFlags {
@@ -70,6 +75,12 @@ export interface FrameFlags {
    * quality is "failed" the numbers are whatever the fit reached (0 if none) and mean nothing.
    */
   limb?: { cx: number; cy: number; radiusPx: number; rmsPx: number; quality: "good" | "doubtful" | "failed" };
+  /**
+   * The frame's well-exposed reach: radii about the fitted limb centre, in units of the
+   * limb radius, where the ring's median luminance is above the frame's noise floor and
+   * below its clip level (lib/bracket-sets/frame-reach.ts). Null ends: none such ring.
+   */
+  reach?: { fromR: number | null; toR: number | null; edgeR: number; clippedToR: number | null };
 }
 
 export const frames = pgTable(
@@ -95,6 +106,9 @@ export const frames = pgTable(
     iso: doublePrecision("iso"),
     // As the camera clock read, converted to UTC; the set's clock offset is applied on reading.
     captureAt: timestamp("capture_at", { withTimezone: true, precision: 3 }),
+    // A capture time the photographer gave (camera clock, like captureAt); wins over the file's. The file's stays as read.
+    givenCaptureAt: timestamp("given_capture_at", { withTimezone: true, precision: 3 }),
+    givenCaptureSource: text("given_capture_source", { enum: GIVEN_TIME_SOURCES }),
     make: text("make"),
     model: text("model"),
     kind: text("kind", { enum: FRAME_KINDS }).notNull().default("light"),
@@ -115,6 +129,7 @@ export const frames = pgTable(
     uniqueIndex("frames_bracket_set_sha256_key").on(t.bracketSetId, t.sha256).where(sql`${t.ingestState} <> 'refused'`),
     check("frames_positive_exposure", sql`${t.exposureS} is null or ${t.exposureS} > 0`),
     check("frames_group_number_positive", sql`${t.groupNumber} >= 1`),
+    check("frames_given_capture_source", sql`(${t.givenCaptureAt} is null) = (${t.givenCaptureSource} is null)`),
   ],
 );
 

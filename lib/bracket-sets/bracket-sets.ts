@@ -8,6 +8,7 @@ import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { countParts } from "@/lib/storage/limits";
 import { canReadAll, findOwnOpenSet, findVisibleSet, requireReader } from "./access";
+import { cameraCaptureAt } from "./camera-time";
 import { clockOffsetFromFrame } from "./clock";
 import type { BracketSetDto, BracketSetSummaryDto, FrameDto, UploadDto } from "./dto";
 import { markBlurred } from "./frame-analysis";
@@ -24,6 +25,7 @@ export function toSummary(set: BracketSet, actor: Actor, ownerName: string, fram
     isOwn: set.ownerId === actor.userId,
     state: set.state,
     clockOffsetS: set.clockOffsetS,
+    northAngleDeg: set.northAngleDeg,
     frameCount,
     createdAt: set.createdAt.toISOString(),
     updatedAt: set.updatedAt.toISOString(),
@@ -32,6 +34,8 @@ export function toSummary(set: BracketSet, actor: Actor, ownerName: string, fram
 
 /** `isBlurred` is decided against the set's other frames (markBlurred); without it the stored flags stand. */
 export function toFrameDto(f: Frame, clockOffsetS: number, isBlurred?: boolean): FrameDto {
+  // A time the photographer gave wins over the file's; both are camera clock.
+  const camera = f.givenCaptureAt ?? f.captureAt;
   return {
     id: f.id,
     fileName: f.originalFileName,
@@ -46,8 +50,11 @@ export function toFrameDto(f: Frame, clockOffsetS: number, isBlurred?: boolean):
     needsExposure: f.ingestState === "ingested" && f.exposureS === null,
     fNumber: f.fNumber,
     iso: f.iso,
-    captureAt: f.captureAt?.toISOString() ?? null,
-    correctedCaptureAt: f.captureAt ? new Date(f.captureAt.getTime() - clockOffsetS * 1000).toISOString() : null,
+    captureAt: camera?.toISOString() ?? null,
+    correctedCaptureAt: camera ? new Date(camera.getTime() - clockOffsetS * 1000).toISOString() : null,
+    fileCaptureAt: f.captureAt?.toISOString() ?? null,
+    captureTimeSource: f.givenCaptureSource ?? (f.captureAt ? "file" : null),
+    needsTime: f.kind === "light" && f.ingestState === "ingested" && camera === null,
     make: f.make,
     model: f.model,
     kind: f.kind,
@@ -116,8 +123,8 @@ export async function findBracketSet(db: DbOrTx, actor: Actor | null, setId: str
     .select()
     .from(frames)
     .where(eq(frames.bracketSetId, set.id))
-    .orderBy(asc(frames.groupNumber), asc(frames.captureAt), asc(frames.originalFileName), asc(frames.id));
-  const blurred = markBlurred(frameRows.map((f) => ({ sharpness: f.flags.sharpness, isLight: f.kind === "light" && f.ingestState === "ingested" })));
+    .orderBy(asc(frames.groupNumber), asc(cameraCaptureAt), asc(frames.originalFileName), asc(frames.id));
+  const blurred = markBlurred(frameRows.map((f) => ({ sharpness: f.flags.sharpness, isLight: f.kind === "light" && f.ingestState === "ingested", exposureS: f.exposureS })));
   const openRows = await db.select().from(uploads).where(and(eq(uploads.bracketSetId, set.id), eq(uploads.state, "open"))).orderBy(asc(uploads.createdAt));
   return {
     ...toSummary(set, a, owner?.name ?? "", frameRows.length),
@@ -156,18 +163,33 @@ async function setKit(db: DbOrTx, actor: Actor | null, setId: string, kitId: str
   return toSummary(updated, a, a.name, n);
 }
 
+/** North in the image as the photographer knows it (degrees counter-clockwise from up); wins over the kit's mount; null forgets it. */
+async function setNorthAngle(db: DbOrTx, actor: Actor | null, setId: string, northAngleDeg: number | null): Promise<BracketSetSummaryDto> {
+  const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
+  // Kept in -180..180 so the page shows one value for one direction.
+  const normalised = northAngleDeg === null ? null : ((((northAngleDeg + 180) % 360) + 360) % 360) - 180;
+  const [updated] = await db
+    .update(bracketSets)
+    .set({ northAngleDeg: normalised, updatedAt: sql`now()` })
+    .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
+    .returning();
+  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
+  return toSummary(updated, a, a.name, n);
+}
+
 export async function updateBracketSet(db: DbOrTx, actor: Actor | null, setId: string, input: UpdateBracketSetInput): Promise<BracketSetSummaryDto> {
+  if (input.northAngleDeg !== undefined) return setNorthAngle(db, actor, setId, input.northAngleDeg);
   if (input.kitId !== undefined) return setKit(db, actor, setId, input.kitId);
   if (input.clockOffsetS !== undefined) return setClockOffset(db, actor, setId, input.clockOffsetS);
   const { set } = await findOwnOpenSet(db, actor, setId);
   const frameId = input.clockFrameId;
   if (!frameId || !z.uuid().safeParse(frameId).success) throw notFound("That frame");
   const [frame] = await db
-    .select({ fileName: frames.originalFileName, captureAt: frames.captureAt })
+    .select({ fileName: frames.originalFileName, captureAt: frames.captureAt, givenCaptureAt: frames.givenCaptureAt })
     .from(frames)
     .where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id)))
     .limit(1);
   if (!frame) throw notFound("That frame");
-  const offsetS = clockOffsetFromFrame({ fileName: frame.fileName, captureMs: frame.captureAt?.getTime() ?? null }, input.clockShownAt ?? "");
+  const offsetS = clockOffsetFromFrame({ fileName: frame.fileName, captureMs: (frame.givenCaptureAt ?? frame.captureAt)?.getTime() ?? null }, input.clockShownAt ?? "");
   return setClockOffset(db, actor, setId, offsetS);
 }

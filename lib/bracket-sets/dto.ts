@@ -1,6 +1,6 @@
 // What leaves the server about bracket sets, frames and uploads: chosen fields,
 // dates as ISO text, no storage keys and no owner ids.
-import type { BracketSetState, ExposureSource, FrameFlags, FrameKind, IngestState, UploadState } from "@/db/schema";
+import type { BracketSetState, ExposureSource, FrameFlags, FrameKind, GivenTimeSource, IngestState, UploadState } from "@/db/schema";
 
 export interface BracketSetSummaryDto {
   id: string;
@@ -12,6 +12,8 @@ export interface BracketSetSummaryDto {
   isOwn: boolean;
   state: BracketSetState;
   clockOffsetS: number;
+  /** North in the image as the photographer gave it (degrees counter-clockwise from up); null: from the kit's mount, or estimated. */
+  northAngleDeg: number | null;
   frameCount: number;
   createdAt: string;
   updatedAt: string;
@@ -32,10 +34,16 @@ export interface FrameDto {
   needsExposure: boolean;
   fNumber: number | null;
   iso: number | null;
-  /** As the camera clock read, in UTC. */
+  /** As the camera clock read, in UTC: the photographer's time when given, else the file's. */
   captureAt: string | null;
   /** With the set's clock offset applied: true time = clock - offset. */
   correctedCaptureAt: string | null;
+  /** The file's own time, kept as read even when the photographer gave another. */
+  fileCaptureAt: string | null;
+  /** Where captureAt comes from: the file, or how the photographer gave it. */
+  captureTimeSource: "file" | GivenTimeSource | null;
+  /** A checked light frame with no capture time at all: a Sun-centred reduction cannot use it. */
+  needsTime: boolean;
   make: string | null;
   model: string | null;
   kind: FrameKind;
@@ -83,4 +91,18 @@ export interface SignedPartsDto {
   uploadId: string;
   expiresAt: string;
   urls: { partNumber: number; url: string }[];
+}
+
+export interface RemovedFrameDto {
+  id: string;
+  fileName: string;
+  /** False when a finished reduction of the set was made while the frame was in it: its original stays stored for that record. */
+  isOriginalDeleted: boolean;
+}
+
+export interface FrameTimesResultDto {
+  timesSet: number;
+  exposuresSet: number;
+  /** Frame names in the order they were given times, for the confirmation. */
+  fileNames: string[];
 }

@@ -6,6 +6,7 @@ import { downsampleMeanOf } from "@/lib/imaging/coarse-disk";
 import { fitLimb } from "@/lib/imaging/limb-fit";
 import type { PlaneImage } from "@/lib/imaging/types";
 import type { FrameFlags } from "@/db/schema";
+import { measureReach } from "./frame-reach";
 
 export const HISTOGRAM_BINS = 64;
 /** Long side of the luminance the sharpness is measured on, so the figure compares frames of any size. */
@@ -113,8 +114,11 @@ export function measureSharpnessOf(lum: Luminance): number {
   return Math.max(0, s2 / m - lapMean * lapMean) / imageVar;
 }
 
+/** The clip level as a share of the white level: the imaging core's (DESIGN.md section 3, "about 0.92 of the white level"). */
+const CLIP_FRACTION = 0.92;
+
 /** IEC 61966-2-1 decoding of an 8-bit code to linear light in 0..1 (REFERENCES.md, sRGB). */
-function decodeSrgb(code: number): number {
+export function decodeSrgb(code: number): number {
   const v = code / 255;
   return v <= 0.04045 ? v / 12.92 : ((v + 0.055) / 1.055) ** 2.4;
 }
@@ -129,17 +133,36 @@ type LimbFlag = NonNullable<FrameFlags["limb"]>;
  * is "good"). When the fit failed, the numbers are whatever it reached (0 when
  * it found no circle) and mean nothing.
  */
-export function measureLimb(image: PlaneImage, frame: { encoding: "linear" | "srgb8"; blackLevel: number; whiteLevel: number }): LimbFlag {
+export interface FrameEncoding {
+  encoding: "linear" | "srgb8";
+  blackLevel: number;
+  whiteLevel: number;
+}
+
+/** Linear light of the shrunken luminance (black level off, sRGB decoded), with the clip level in the same units when the frame has one. */
+export interface LinearLuminance extends Luminance {
+  clipLevel: number | undefined;
+}
+
+/** The luminance shrunk to about 512 px on the long side, in linear light: what the limb fit and the reach measure read. */
+export function shrinkLinearLuminance(image: PlaneImage, frame: FrameEncoding): LinearLuminance {
   const lum = shrinkLuminance(image, LIMB_SIDE_PX);
   const linear = new Float32Array(lum.data.length);
   for (let i = 0; i < linear.length; i++) {
     const v = lum.data[i];
     linear[i] = frame.encoding === "srgb8" ? decodeSrgb(v) : Number.isFinite(v) ? Math.max(0, v - frame.blackLevel) : 0;
   }
-  // Clipped light biases the edge inward; the fit leaves such rays out when it may.
   const white = frame.encoding === "srgb8" ? 1 : frame.whiteLevel - frame.blackLevel;
-  const clipLevel = Number.isFinite(white) && white > 0 ? 0.92 * white : undefined;
-  const fit = fitLimb(linear, lum.width, lum.height, { clipLevel });
+  return { data: linear, width: lum.width, height: lum.height, factor: lum.factor, clipLevel: Number.isFinite(white) && white > 0 ? CLIP_FRACTION * white : undefined };
+}
+
+export function measureLimb(image: PlaneImage, frame: FrameEncoding): LimbFlag {
+  return measureLimbOf(shrinkLinearLuminance(image, frame));
+}
+
+function measureLimbOf(lum: LinearLuminance): LimbFlag {
+  // Clipped light biases the edge inward; the fit leaves such rays out when it may.
+  const fit = fitLimb(lum.data, lum.width, lum.height, { clipLevel: lum.clipLevel });
   const f = lum.factor;
   const finite = (v: number) => (Number.isFinite(v) ? v : 0);
   return {
@@ -152,26 +175,44 @@ export function measureLimb(image: PlaneImage, frame: { encoding: "linear" | "sr
 }
 
 /** Everything ingest records about the frame's pixels beside the clipped fraction. */
-export function analyseFrame(image: PlaneImage, frame: { encoding: "linear" | "srgb8"; blackLevel: number; whiteLevel: number }): Pick<FrameFlags, "histogram" | "sharpness" | "limb"> {
+export function analyseFrame(image: PlaneImage, frame: FrameEncoding): Pick<FrameFlags, "histogram" | "sharpness" | "limb" | "reach"> {
+  const lum = shrinkLinearLuminance(image, frame);
+  const limb = measureLimbOf(lum);
+  const reach = limb.quality === "failed" ? undefined : measureReach(lum, limb, frame.encoding);
   return {
     histogram: measureHistogram(image, frame.whiteLevel),
     sharpness: measureSharpness(image),
-    limb: measureLimb(image, frame),
+    limb,
+    ...(reach ? { reach } : {}),
   };
+}
+
+/** Frames within this factor of a frame's exposure (two stops either way) are its peers for sharpness. */
+export const SHARPNESS_PEER_EXPOSURE_FACTOR = 4;
+
+function medianOf(values: number[]): number {
+  const sorted = [...values].sort((a, b) => a - b);
+  const mid = sorted.length >> 1;
+  return sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
 }
 
 /**
  * Which frames are blurred, relative to their set: a light frame whose
- * sharpness is below half the median sharpness of the set's light frames.
- * Frames without a sharpness, calibration frames, and sets with fewer than
- * three measured light frames are never marked.
+ * sharpness is below half the median sharpness of its peers. With exposures
+ * known, the peers are the light frames within two stops of its exposure (itself
+ * included): a long exposure, smooth by its purpose (the outer corona, the inner
+ * one clipped flat), is compared with long exposures, not with the shortest
+ * ones. Without an exposure the peers are all the set's light frames. Frames
+ * without a sharpness, calibration frames, and frames with fewer than three
+ * measured peers are never marked.
  */
-export function markBlurred(items: { sharpness?: number; isLight: boolean }[]): boolean[] {
-  const values = items.filter((f) => f.isLight && typeof f.sharpness === "number" && Number.isFinite(f.sharpness)).map((f) => f.sharpness as number);
-  if (values.length < MIN_FRAMES_FOR_BLUR) return items.map(() => false);
-  const sorted = [...values].sort((a, b) => a - b);
-  const mid = sorted.length >> 1;
-  const median = sorted.length % 2 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2;
-  const limit = BLURRED_FRACTION_OF_MEDIAN * median;
-  return items.map((f) => f.isLight && typeof f.sharpness === "number" && f.sharpness < limit);
+export function markBlurred(items: { sharpness?: number; isLight: boolean; exposureS?: number | null }[]): boolean[] {
+  const measured = items.filter((f) => f.isLight && typeof f.sharpness === "number" && Number.isFinite(f.sharpness));
+  return items.map((f) => {
+    if (!f.isLight || typeof f.sharpness !== "number" || !Number.isFinite(f.sharpness)) return false;
+    const own = f.exposureS;
+    const peers = measured.filter((p) => !(own && own > 0) || (p.exposureS && p.exposureS > 0 && p.exposureS <= own * SHARPNESS_PEER_EXPOSURE_FACTOR && p.exposureS >= own / SHARPNESS_PEER_EXPOSURE_FACTOR));
+    if (peers.length < MIN_FRAMES_FOR_BLUR) return false;
+    return f.sharpness < BLURRED_FRACTION_OF_MEDIAN * medianOf(peers.map((p) => p.sharpness as number));
+  });
 }

@@ -16,11 +16,11 @@ export async function changeGroups(db: DbOrTx, actor: Actor | null, setId: strin
   const { set } = await findOwnOpenSet(db, actor, setId);
   await db.transaction(async (tx) => {
     const rows = await tx
-      .select({ id: frames.id, fileName: frames.originalFileName, captureAt: frames.captureAt, groupNumber: frames.groupNumber })
+      .select({ id: frames.id, fileName: frames.originalFileName, captureAt: frames.captureAt, givenCaptureAt: frames.givenCaptureAt, groupNumber: frames.groupNumber })
       .from(frames)
       .where(eq(frames.bracketSetId, set.id))
       .for("update");
-    const grouped: GroupedFrame[] = rows.map((r) => ({ id: r.id, fileName: r.fileName, captureMs: r.captureAt?.getTime() ?? null, groupNumber: r.groupNumber }));
+    const grouped: GroupedFrame[] = rows.map((r) => ({ id: r.id, fileName: r.fileName, captureMs: (r.givenCaptureAt ?? r.captureAt)?.getTime() ?? null, groupNumber: r.groupNumber }));
     const next =
       input.action === "split"
         ? splitGroup(grouped, input.frameId)

@@ -53,8 +53,12 @@ export const correctFrameSchema = z
       .optional(),
     kind: z.enum(FRAME_KINDS, { error: `expected one of ${FRAME_KINDS.join(", ")}` }).optional(),
     included: z.boolean({ error: "expected true or false" }).optional(),
+    /** A capture time as the camera clock showed it (ISO 8601 with zone, or a UTC time of day on the eclipse's date); null forgets the one given. */
+    captureAt: z.string({ error: "expected a time" }).trim().min(1, { error: "needs a time" }).max(64, { error: "must be at most 64 characters" }).nullable().optional(),
   })
-  .refine((v) => v.exposureS !== undefined || v.kind !== undefined || v.included !== undefined, { error: "give exposureS, kind or included" });
+  .refine((v) => v.exposureS !== undefined || v.kind !== undefined || v.included !== undefined || v.captureAt !== undefined, {
+    error: "give an exposure, a kind, whether the frame is included, or a capture time",
+  });
 export type CorrectFrameInput = z.infer<typeof correctFrameSchema>;
 
 /**
@@ -70,10 +74,17 @@ export const updateBracketSetSchema = z
       .optional(),
     /** The kit the frames were taken with; null takes it away. Given alone. */
     kitId: z.preprocess((v) => (v === "" ? null : v), uuid("one of your kits").nullable()).optional(),
+    /** North in the image, degrees counter-clockwise from up (after flips); null forgets it. Given alone. */
+    northAngleDeg: z.preprocess(
+      (v) => (v === "" ? null : v),
+      z.coerce.number({ error: "expected degrees" }).refine(Number.isFinite, { error: "expected a number of degrees" }).min(-360, { error: "must be within -360 to 360 degrees" }).max(360, { error: "must be within -360 to 360 degrees" }).nullable(),
+    ).optional(),
   })
   .superRefine((v, ctx) => {
     const byFrame = v.clockFrameId !== undefined || v.clockShownAt !== undefined;
-    if (v.kitId !== undefined) {
+    if (v.northAngleDeg !== undefined) {
+      if (v.kitId !== undefined || v.clockOffsetS !== undefined || byFrame) ctx.addIssue({ code: "custom", path: ["northAngleDeg"], message: "change the north angle on its own" });
+    } else if (v.kitId !== undefined) {
       if (v.clockOffsetS !== undefined || byFrame) ctx.addIssue({ code: "custom", path: ["kitId"], message: "change the kit on its own, not with the clock" });
     } else if (v.clockOffsetS !== undefined && byFrame) {
       ctx.addIssue({ code: "custom", path: ["clockOffsetS"], message: "give either clockOffsetS, or clockFrameId with clockShownAt, not both" });

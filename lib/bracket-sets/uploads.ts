@@ -117,7 +117,8 @@ export async function listParts(db: DbOrTx, actor: Actor | null, setId: string, 
 export async function abortFrameUpload(db: DbOrTx, actor: Actor | null, setId: string, uploadId: string): Promise<UploadDto> {
   const { set } = await findOwnOpenSet(db, actor, setId);
   const u = await findUpload(db, set.id, uploadId);
-  if (u.state === "completed") throw new AppError("conflict", `${u.fileName}: the upload is complete; exclude the frame instead.`);
+  // Cancelling an upload that has already completed (or was cancelled) changes nothing and is no fault:
+  // the uploader's list may cancel a file whose last part just arrived. The frame, if any, is removed on its own.
   if (u.state !== "open") return toUploadDto(u);
   await abortMultipartUpload(refOf(u));
   const [row] = await db

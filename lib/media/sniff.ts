@@ -31,7 +31,8 @@ export const FORMAT_NAMES: Record<MediaFormat, string> = {
   nef: "NEF", arw: "ARW", orf: "ORF", raf: "RAF",
 };
 
-const EXTENSION_FORMATS: Record<string, MediaFormat> = {
+/** File name extensions of the formats we read; the uploader offers only these. */
+export const EXTENSION_FORMATS: Record<string, MediaFormat> = {
   ".jpg": "jpeg", ".jpeg": "jpeg", ".jpe": "jpeg",
   ".png": "png",
   ".tif": "tiff", ".tiff": "tiff",

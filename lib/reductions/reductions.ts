@@ -9,10 +9,13 @@ import { bracketSets, frames, reductions, users, type Frame, type Reduction, typ
 import type { Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { findVisibleSet } from "@/lib/bracket-sets/access";
+import { cameraCaptureAt } from "@/lib/bracket-sets/camera-time";
 import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
 import { reductionFailedMail, reductionFinishedMail } from "@/lib/email/templates";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
+import { rewordRunnerMessage } from "./failure-text";
+import { refuseRunChoice } from "./run-options";
 
 export { reductionParamsSchema, type ReductionParamsInput, type ReductionParamsRequest } from "./schemas";
 import { reductionParamsSchema, type ReductionParamsInput, type ReductionParamsRequest } from "./schemas";
@@ -45,7 +48,8 @@ const toDto = (r: Reduction): ReductionDto => ({
   state: r.state,
   stage: r.stage,
   progress: r.progress,
-  error: r.error,
+  // Reasons stored before the worker worded them for people may still name the runner's options.
+  error: r.error === null ? null : rewordRunnerMessage(r.error),
   pipelineVersion: r.pipelineVersion,
   measurements: r.measurements ?? null,
   createdAt: r.createdAt.toISOString(),
@@ -58,7 +62,7 @@ export async function findReducibleFrames(db: DbOrTx, setId: string): Promise<Fr
     .select()
     .from(frames)
     .where(and(eq(frames.bracketSetId, setId), eq(frames.kind, "light"), eq(frames.included, true), eq(frames.ingestState, "ingested")))
-    .orderBy(asc(frames.captureAt), asc(frames.originalFileName), asc(frames.id));
+    .orderBy(asc(cameraCaptureAt), asc(frames.originalFileName), asc(frames.id));
 }
 
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
@@ -110,7 +114,14 @@ export async function startReduction(db: DbOrTx, actor: Actor | null, setId: str
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
   const isOwner = set.ownerId === a.userId;
   if (!isOwner && !can(a.roles, "review:use")) throw forbidden("reducing another photographer's bracket set");
-  await selectReductionFrames(db, set, input.groupNumber);
+  const chosen = await selectReductionFrames(db, set, input.groupNumber);
+  // Offered on the page only when the frames allow it; refused here in the same words.
+  const refusal = refuseRunChoice(
+    input.registration,
+    chosen.map((f) => ({ fileName: f.originalFileName, hasTime: (f.givenCaptureAt ?? f.captureAt) !== null })),
+    true,
+  );
+  if (refusal) throw new AppError("invalid_input", refusal, [{ field: "registration", message: refusal }]);
   // Every parameter is kept with the reduction, the group included, so the worker takes the same frames.
   const params: StoredReductionParams = input;
   const [row] = await db.insert(reductions).values({ bracketSetId: setId, requestedBy: a.userId, params }).returning();

@@ -3,7 +3,9 @@
 // then sees its results: both renditions, the radial profile, the coverage map,
 // the stage log and the downloads. The outputs are made by the real runner from
 // a small synthetic bracket (our own generator) and stored in the S3 fake, as
-// the worker stores them. Screenshots go to .artifacts/.
+// the worker stores them. The list of the set's reductions follows another run
+// that fails, with its reason in words; the page fits a phone. Screenshots go
+// to .artifacts/.
 import { readdirSync, readFileSync, rmSync } from "node:fs";
 import { join } from "node:path";
 import { eq } from "drizzle-orm";
@@ -18,6 +20,8 @@ import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
 import { findOutputContentType } from "@/lib/reductions/output-paths";
 import { APP, requireTestDatabase } from "../support/env";
 import { launchBrowser, snap } from "../support/browser";
+import { seriousViolations } from "../support/axe";
+import { expectNoSidewaysScroll } from "../support/layout";
 import { createSetFor } from "../integration/bracket-upload-helpers";
 import { writeBracketFixture, type BracketFixture } from "../unit/reduction-runner/bracket-fixture";
 
@@ -153,5 +157,38 @@ describe("the reduction page", () => {
     await page.getByRole("alert").filter({ hasText: /light frame/ }).waitFor({ timeout: 15_000 });
     expect(page.url()).toBe(`${APP}/studio/reductions/${reductionId}`);
     expect(await db.select({ id: reductions.id }).from(reductions).where(eq(reductions.bracketSetId, setId))).toHaveLength(1);
+  }, 60_000);
+
+  it("follows another run of the set until it fails, and says why in words", async () => {
+    const [other] = await db
+      .insert(reductions)
+      .values({ bracketSetId: setId, requestedBy: (await db.select({ id: users.id }).from(users).where(eq(users.email, member.email)))[0].id, params: { ...params, registration: "sun" }, state: "running", stage: "register", progress: 0.2 })
+      .returning({ id: reductions.id });
+    await page.goto(`/studio/reductions/${reductionId}`);
+    const list = page.getByRole("table", { name: "Reductions of Luxor: long lens, second bracket, newest first" });
+    await expect(list.getByText("running").count()).resolves.toBe(1);
+    // The worker fails it with the reason it stores for people (lib/reductions/failure-text.ts).
+    await db
+      .update(reductions)
+      .set({ state: "failed", error: "These frames have no capture time: a.tif. Give their times on the bracket set's page.", finishedAt: new Date() })
+      .where(eq(reductions.id, other.id));
+    await list.getByText("failed").waitFor({ timeout: 20_000 });
+    await expect(list.getByText("These frames have no capture time: a.tif.", { exact: false }).isVisible()).resolves.toBe(true);
+    expect(await page.getByText(/--[a-z]/).count()).toBe(0);
+    // An older reason that still names the command line is worded on reading.
+    await db.update(reductions).set({ error: "--register sun: the observer's site is required" }).where(eq(reductions.id, other.id));
+    await page.reload();
+    await expect(list.getByText("alignment on the Sun's centre: the observer's site is required", { exact: false }).count()).resolves.toBe(1);
+    await db.delete(reductions).where(eq(reductions.id, other.id));
+  }, 60_000);
+
+  it("fits a phone without sideways scroll and passes axe", async () => {
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.goto(`/studio/reductions/${reductionId}`);
+    await page.getByRole("heading", { name: "Renditions" }).waitFor({ timeout: 15_000 });
+    await expectNoSidewaysScroll(page);
+    expect(await seriousViolations(page)).toEqual([]);
+    await snap(page, "reduction-04-phone");
+    await page.setViewportSize({ width: 1280, height: 720 });
   }, 60_000);
 });

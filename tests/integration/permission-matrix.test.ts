@@ -113,8 +113,16 @@ const API_CASES: Case[] = [
   // Nothing was sent, so the owner is told which part is missing (409).
   { route: `${SET}/[id]/uploads/[uploadId]/complete`, method: "POST", path: ({ setId, uploadId }) => `${SET}/${setId}/uploads/${uploadId}/complete`, body: {}, expect: ownSetWrite(409) },
   { route: `${SET}/[id]/frames/[frameId]`, method: "PATCH", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, body: { included: true }, expect: ownSetWrite(200) },
-  // Only a refused frame can be removed: the member's frame was ingested, so its owner is told 409.
-  { route: `${SET}/[id]/frames/[frameId]`, method: "DELETE", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}`, expect: ownSetWrite(409) },
+  // Removal is checked on an id that names no frame, so the matrix's frame stays: the owner is told it is not found.
+  { route: `${SET}/[id]/frames/[frameId]`, method: "DELETE", path: ({ setId }) => `${SET}/${setId}/frames/${NO_ID}`, expect: ownSetWrite(404) },
+  // A CSV naming no frame of the set changes nothing: the owner is told which line (400).
+  {
+    route: `${SET}/[id]/frame-times`,
+    method: "POST",
+    path: ({ setId }) => `${SET}/${setId}/frame-times`,
+    body: { method: "csv", fileName: "times.csv", text: "file,capture_time\nno-such-frame.fits,2027-08-02T10:04:40Z\n" },
+    expect: ownSetWrite(400),
+  },
   // The frame's files: the owner and curators; everyone else is told they do not exist.
   { route: `${SET}/[id]/frames/[frameId]/thumbnail`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/thumbnail`, expect: ownSetRead },
   { route: `${SET}/[id]/frames/[frameId]/original`, method: "GET", path: ({ setId, frameId }) => `${SET}/${setId}/frames/${frameId}/original`, expect: ownSetRead },

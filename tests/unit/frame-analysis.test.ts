@@ -142,6 +142,25 @@ describe("markBlurred", () => {
     expect(marks).toEqual([false, false, true, false, false, false]);
   });
 
+  it("compares a long exposure with its peers within two stops, not with the short ones", () => {
+    // A ladder 1/1000 .. 1 s: the two long frames are smooth, as their purpose makes them, and sharp among themselves.
+    const ladder = [
+      { sharpness: 1.0, isLight: true, exposureS: 1 / 1000 },
+      { sharpness: 0.95, isLight: true, exposureS: 1 / 250 },
+      { sharpness: 0.9, isLight: true, exposureS: 1 / 60 },
+      { sharpness: 0.3, isLight: true, exposureS: 1 / 4 },
+      { sharpness: 0.28, isLight: true, exposureS: 1 },
+    ];
+    expect(markBlurred(ladder)).toEqual([false, false, false, false, false]);
+    // Three frames at 1/250 s: the one at a third of its peers' median is soft.
+    const repeated = [
+      { sharpness: 1.0, isLight: true, exposureS: 1 / 250 },
+      { sharpness: 0.98, isLight: true, exposureS: 1 / 250 },
+      { sharpness: 0.33, isLight: true, exposureS: 1 / 250 },
+    ];
+    expect(markBlurred(repeated)).toEqual([false, false, true]);
+  });
+
   it("marks nothing with fewer than three measured light frames", () => {
     expect(markBlurred([{ sharpness: 1, isLight: true }, { sharpness: 0.01, isLight: true }])).toEqual([false, false]);
   });

@@ -80,11 +80,11 @@ async function claimChecksum(db: DbOrTx, frame: FrameToIngest, sha256: string): 
 async function findNewFrameGroup(db: DbOrTx, frame: FrameToIngest, captureAt: Date | null): Promise<number | null> {
   if (!captureAt) return null;
   const others = await db
-    .select({ captureAt: frames.captureAt, groupNumber: frames.groupNumber })
+    .select({ captureAt: frames.captureAt, givenCaptureAt: frames.givenCaptureAt, groupNumber: frames.groupNumber })
     .from(frames)
     .where(and(eq(frames.bracketSetId, frame.bracketSetId), ne(frames.id, frame.id)));
   if (!others.some((o) => o.groupNumber !== 1)) return null;
-  return findGroupForNewFrame(others.map((o) => ({ captureMs: o.captureAt?.getTime() ?? null, groupNumber: o.groupNumber })), captureAt.getTime());
+  return findGroupForNewFrame(others.map((o) => ({ captureMs: (o.givenCaptureAt ?? o.captureAt)?.getTime() ?? null, groupNumber: o.groupNumber })), captureAt.getTime());
 }
 
 /**

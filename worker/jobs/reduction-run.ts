@@ -12,6 +12,7 @@ import { runReductionOnFiles, type RunReductionOptions } from "@/lib/reduction-r
 import type { SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { AppError } from "@/lib/errors";
 import { JOBS } from "@/lib/queue/jobs";
+import { describeReductionFailure } from "@/lib/reductions/failure-text";
 import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { buildDerivedPrefix, toSafeFileName } from "@/lib/storage/keys";
 import { downloadObjectToFile, putObjectBytes } from "@/lib/storage/objects";
@@ -96,6 +97,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
     await mkdir(path.join(work, "in"));
     const files: string[] = [];
     const overrides = new Map<string, number>();
+    const captureTimes = new Map<string, number>();
     const frameIds: Record<string, string> = {};
     const seen = new Set<string>();
     for (const [i, f] of frameRows.entries()) {
@@ -108,6 +110,8 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       files.push(local);
       frameIds[name] = f.id;
       if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
+      // Camera-clock times the photographer gave; the set's clock offset applies to them as to the files' own.
+      if (f.givenCaptureAt) captureTimes.set(name, f.givenCaptureAt.getTime());
       await setProgress("fetch", (i + 1) / frameRows.length);
     }
     // The set's calibration frames (bias, dark, flat) go into the same folder, after the lights: names stay
@@ -129,6 +133,8 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
           site: site.kind === "moving" && site.track ? { kind: "track", points: site.track, source: site.trackFileName ?? site.name } : { kind: "fixed", location: { latDeg: site.latDeg, lonDeg: site.lonDeg, elevationM: site.elevationM } },
           clockOffsetS: set.clockOffsetS,
           camera: kit ? { mount: kit.mount, flipHorizontal: kit.flipHorizontal, flipVertical: kit.flipVertical } : undefined,
+          // A north angle the photographer gave wins over the mount's.
+          ...(set.northAngleDeg !== null ? { northAngleDeg: set.northAngleDeg } : {}),
         }
       : undefined;
 
@@ -146,6 +152,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       sky,
       calibrationFiles: calibrationRows.length > 0 ? calibrationFiles : undefined,
       exposureOverrides: overrides,
+      captureTimeOverrides: captureTimes,
       exposureOverrideSource: "the photographer's corrections",
       // IIIF ids name where the app serves this reduction's tiles, not the worker's temporary folder.
       iiifBaseUrl: `${(process.env.APP_URL ?? "").replace(/\/+$/, "")}/iiif/reductions/${red.id}`,
@@ -191,7 +198,8 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
   } catch (err) {
     // Bad input fails at once with its reason; anything else is retried by the queue, until the last attempt.
     if (err instanceof ReductionInputError || err instanceof ImagingError || err instanceof MediaError) {
-      await failForGood(db, red.id, err.message);
+      // People read the reason on the page and in the mail: in their words, never the command line's.
+      await failForGood(db, red.id, describeReductionFailure(err));
       throw new UnrecoverableError(err.message);
     }
     if (await isLastAttempt(db, jobId)) {

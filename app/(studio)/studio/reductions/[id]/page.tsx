@@ -12,10 +12,15 @@ import { ReductionDownloads, ReductionMeasurements, ReductionParameters, Renditi
 import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionProgress } from "@/components/reductions/reduction-progress";
 import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
+import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
+import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
 import { getDb } from "@/db/client";
+import { findBracketSet } from "@/lib/bracket-sets";
+import { checkSetGeometry } from "@/lib/bracket-sets/set-checks";
 import { buildOutputUrl } from "@/lib/reductions/output-paths";
 import { findReductionOutputsView } from "@/lib/reductions/outputs";
 import { findReduction, listReductions } from "@/lib/reductions/reductions";
+import { assessRunChoices } from "@/lib/reductions/run-options";
 import type { ReductionParamsInput } from "@/lib/reductions/schemas";
 
 export const metadata: Metadata = { title: "Reduction" };
@@ -34,12 +39,24 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
   const created = `${reduction.createdAt.slice(0, 10)} ${reduction.createdAt.slice(11, 16)} UTC`;
   const profile = report?.overall.radialProfile ?? null;
   const coverage = report?.overall.coverage ?? null;
+  const set = await findBracketSet(db, actor, view.setId);
+  // The kit's plate scale against the one this reduction's frames show (their sound limb fits).
+  const fitted = (report?.frames ?? []).filter((f) => f.limb?.verdict === "sound" && f.limb.radiusPx);
+  const times = fitted.map((f) => (f.captureTimeUtc ? Date.parse(f.captureTimeUtc) : NaN)).filter(Number.isFinite);
+  const checks = await checkSetGeometry(db, actor, view.setId, fitted.map((f) => f.limb!.radiusPx as number), times);
+  const usable = set.frames.filter((f) => f.kind === "light" && f.included && f.ingestState === "ingested");
+  const choices = assessRunChoices(usable.map((f) => ({ fileName: f.fileName, hasTime: f.captureAt !== null })), true);
+  const othersRunning = siblings.some((r) => r.id !== reduction.id && (r.state === "queued" || r.state === "running"));
 
   return (
     <>
       <PageTitle title={`Reduction of ${view.setName}`} lead={`Started ${created}${reduction.finishedAt ? `, finished ${reduction.finishedAt.slice(0, 10)} ${reduction.finishedAt.slice(11, 16)} UTC` : ""}.`}>
         <Link href={`/studio/sets/${view.setId}`}>Back to the bracket set</Link>
       </PageTitle>
+
+      <AutoRefresh active={othersRunning} message="Another reduction of this set is in progress; the list below follows it." intervalMs={4000} />
+
+      <ScaleWarning text={checks.scaleWarning} />
 
       <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, error: reduction.error }} />
 
@@ -104,7 +121,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
         <details>
           <summary className="cursor-pointer font-medium">Start another reduction of this set with other parameters</summary>
           <p className="my-3 text-ink-muted">This reduction stays as it is; the new one gets its own page and files.</p>
-          <ReductionStartForm setId={view.setId} groups={[]} initial={reduction.params as Partial<ReductionParamsInput>} submitLabel="Start another reduction" />
+          <ReductionStartForm setId={view.setId} groups={[]} initial={reduction.params as Partial<ReductionParamsInput>} submitLabel="Start another reduction" choices={choices} />
         </details>
       </PageSection>
 
