@@ -361,11 +361,11 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   if (keep.length < 2) {
     throw new ImagingError("too-few-frames", `only ${keep.length} frame could be placed on the Sun: ${leftOut.map((l) => `${l.name}: ${l.reason}`).join("; ")}`);
   }
-  const use = <T,>(list: T[]) => keep.map((i) => list[i]);
-  const usedFrames = use(work);
-  const usedReady = use(ready);
-  const usedRegistration: FrameRegistration[] = use(registration.frames);
-  const usedTransmission = use(transmissionUsed);
+  const pickKept = <T,>(list: T[]) => keep.map((i) => list[i]);
+  const usedFrames = pickKept(work);
+  const usedReady = pickKept(ready);
+  const usedRegistration: FrameRegistration[] = pickKept(registration.frames);
+  const usedTransmission = pickKept(transmissionUsed);
   const ref = keep.indexOf(registration.referenceIndex);
 
   let track = estimateMoonTrack(usedReady.map((p, i) => ({
