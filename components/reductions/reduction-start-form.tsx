@@ -8,6 +8,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, reductionParamsSchema, type ReductionParamsInput } from "@/lib/reductions/schemas";
+import { fieldProblems } from "@/lib/validation";
 import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
 
 type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
@@ -36,19 +37,35 @@ function readForm(form: HTMLFormElement): Record<string, unknown> {
  * schema the server uses (problems under their labels), then posted; on success
  * the browser goes to the new reduction's page, where its progress shows.
  */
-export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = "Start reduction" }: { setId: string; groups: number[]; initial?: Partial<ReductionParamsInput>; submitLabel?: string }) {
+export function ReductionStartForm({
+  setId,
+  groups,
+  initial = {},
+  submitLabel = "Start reduction",
+  stayHere = false,
+}: {
+  setId: string;
+  groups: number[];
+  initial?: Partial<ReductionParamsInput>;
+  submitLabel?: string;
+  /** Stay on this page (the review desk) and refresh it, instead of going to the new reduction's page. */
+  stayHere?: boolean;
+}) {
   const router = useRouter();
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
+  const [started, setStarted] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
   const err = (field: FieldName) => problems.find((p) => p.field === field)?.message;
 
   async function handleSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
     setMessage(null);
-    const checked = reductionParamsSchema.safeParse(readForm(event.currentTarget));
+    setStarted(null);
+    const raw = readForm(event.currentTarget);
+    const checked = reductionParamsSchema.safeParse(raw);
     if (!checked.success) {
-      const found = checked.error.issues.map((i) => ({ field: String(i.path[0] ?? ""), message: i.message }));
+      const found = fieldProblems(checked.error, raw).map((p) => ({ field: p.field.split(".")[0], message: p.message }));
       setProblems(found);
       setMessage(`Please correct ${found.length === 1 ? "the marked field" : `the ${found.length} marked fields`}.`);
       return;
@@ -63,7 +80,12 @@ export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = 
       });
       const body = (await res.json().catch(() => null)) as { id?: string; error?: { message: string; fields?: Problem[] } } | null;
       if (res.ok && body?.id) {
-        router.push(`/studio/reductions/${body.id}`);
+        if (stayHere) {
+          setStarted("Re-reduction started. It is queued and shows in the list of reductions, with its progress.");
+          router.refresh();
+        } else {
+          router.push(`/studio/reductions/${body.id}`);
+        }
         return;
       }
       const fields = body?.error?.fields ?? [];
@@ -79,6 +101,7 @@ export function ReductionStartForm({ setId, groups, initial = {}, submitLabel = 
   return (
     <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
       {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
+      {started ? <FormMessage tone="ok">{started}</FormMessage> : null}
       <div className="grid gap-5 sm:grid-cols-2">
         <Field label="Align frames on" error={err("registration")} hint="The Sun's centre needs the site and the frames' capture times.">
           <Select name="registration" defaultValue={initial.registration ?? "sun"} options={Object.entries(REGISTRATION_LABELS).map(([value, label]) => ({ value, label }))} />

@@ -60,6 +60,17 @@ async function findPublicAccess(db: DbOrTx, reductionId: string, kind: Reduction
   return entry;
 }
 
+/**
+ * Drops what this process remembers of a reduction's public access. Called
+ * after a plate is published, withdrawn, restored or given a new version, so
+ * the change shows on the very next request instead of after the cache time.
+ * (Other web processes still wait out PUBLIC_ACCESS_TTL_MS.)
+ */
+export function forgetPublicAccess(reductionId: string): void {
+  publicAccess.delete(`${reductionId}:view`);
+  publicAccess.delete(`${reductionId}:download`);
+}
+
 /** How the caller may receive it, and where its files live: public (cacheable by anyone) or private to them. */
 async function decideAccess(db: DbOrTx, actor: Actor | null, reductionId: string, kind: ReductionFileKind): Promise<{ access: "public" | "private"; prefix: string | null }> {
   const pub = await findPublicAccess(db, reductionId, kind);

@@ -61,7 +61,7 @@ export interface QueuePageDto {
 const assignee = alias(users, "assignee");
 // The last time the photographer sent the set; sets sent before the history existed fall back to their last change.
 const submittedAt = sql<Date>`coalesce((select max(${reviewDecisions.createdAt}) from ${reviewDecisions} where ${reviewDecisions.bracketSetId} = ${bracketSets.id} and ${reviewDecisions.action} = 'submit'), ${bracketSets.updatedAt})`;
-const frameCount = sql<number>`(select count(*)::int from ${frames} where ${frames.bracketSetId} = ${bracketSets.id} and ${frames.kind} = 'light')`;
+const frameCount = sql<number>`(select count(*)::int from ${frames} where ${frames.bracketSetId} = ${bracketSets.id} and ${frames.kind} = 'light' and ${frames.included} = true)`;
 const finishedReductions = sql<number>`(select count(*)::int from ${reductions} where ${reductions.bracketSetId} = ${bracketSets.id} and ${reductions.state} = 'done')`;
 
 export async function listReviewQueue(db: DbOrTx, actor: Actor | null, query: QueueQuery): Promise<QueuePageDto> {
@@ -184,7 +184,7 @@ export async function assignToMe(db: DbOrTx, actor: Actor | null, input: z.infer
   return { changed: rows.length };
 }
 
-const CSV_HEADER = ["id", "name", "state", "eclipse", "site", "photographer", "light_frames", "finished_reductions", "submitted_at", "in_hand_of"];
+const CSV_HEADER = ["id", "name", "state", "eclipse", "site", "photographer", "included_light_frames", "finished_reductions", "submitted_at", "in_hand_of"];
 
 /** One CSV cell: quoted when needed, and a leading = + - @ neutralised so spreadsheets do not run it as a formula. */
 export function csvCell(v: string | number | null): string {

@@ -13,6 +13,7 @@ import { ROLE_LABELS, ROLES } from "@/lib/auth/roles";
 import { listPeople, peopleQuerySchema } from "@/lib/people/people";
 import { parseInput } from "@/lib/validation";
 import { changeRoleAction } from "./actions";
+import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "People" };
 
@@ -54,7 +55,7 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
                   {p.name} {p.emailVerified ? null : <Badge tone="warn">address not confirmed</Badge>}
                 </TableCell>
                 <TableCell className="font-mono text-sm">{p.email}</TableCell>
-                <TableCell className="font-mono text-sm">{p.joinedAt.slice(0, 10)}</TableCell>
+                <TableCell className="font-mono text-sm">{formatDate(p.joinedAt)}</TableCell>
                 <TableCell>
                   <div className="flex flex-wrap gap-2" role="group" aria-label={`Roles of ${p.name}`}>
                     {ROLES.map((role) => (
