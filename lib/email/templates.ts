@@ -215,3 +215,13 @@ export function plateStateMail(
   }[plate.change];
   return draft(society, to, texts.subject, [`Hello ${name},`, ...texts.lines], { href: plate.url, label: texts.label });
 }
+
+/** To a person an admin invited: a link to choose their password, which also signs them up. */
+export function invitationMail(society: string, to: string, name: string, invite: { invitedBy: string; roles: string[]; url: string; validDays: number }): MailDraft {
+  const lines = [
+    `Hello ${name},`,
+    `${invite.invitedBy} has invited you to the ${society} eclipse workspace${invite.roles.length ? ` as ${invite.roles.join(", ")}` : ""}.`,
+    `Choose a password to start. The link works for ${invite.validDays} days; after that, ask for a new one with "Forgot your password?" on the sign-in page.`,
+  ];
+  return draft(society, to, `You are invited to ${society}`, lines, { href: invite.url, label: "Choose your password" });
+}

@@ -1,0 +1,54 @@
+"use client";
+import { useActionState, useEffect, useState } from "react";
+import { Button } from "@/components/ui/button";
+import { Dialog } from "@/components/ui/dialog";
+import { useToast } from "@/components/ui/use-toast";
+import type { ActionResult, FormAction } from "@/components/forms/action-result";
+
+/** Disable a person (no sign-in, sessions end) or enable them again, after a confirmation. */
+export function DisablePerson({ action, userId, personName, disabled, isSelf }: { action: FormAction; userId: string; personName: string; disabled: boolean; isSelf: boolean }) {
+  const [asking, setAsking] = useState(false);
+  // The dialog closes when the server has answered; the answer shows as a notice.
+  const [state, formAction, pending] = useActionState<ActionResult | null, FormData>(async (prev, form) => {
+    const result = await action(prev, form);
+    setAsking(false);
+    return result;
+  }, null);
+  const toast = useToast();
+  useEffect(() => {
+    if (!state) return;
+    toast.notify(state.message, { tone: state.ok ? "ok" : "danger" });
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [state]);
+  if (isSelf) return <span className="text-sm text-ink-muted">your own account</span>;
+  return (
+    <>
+      <Button size="sm" variant={disabled ? "secondary" : "quiet"} onClick={() => setAsking(true)} aria-label={`${disabled ? "Enable" : "Disable"} ${personName}`}>
+        {disabled ? "Enable" : "Disable"}
+      </Button>
+      <Dialog
+        open={asking}
+        onClose={() => setAsking(false)}
+        title={disabled ? `Let ${personName} sign in again?` : `Disable ${personName}?`}
+        description={
+          disabled
+            ? "They can sign in with their password again; their roles are as they were."
+            : "They are signed out everywhere at once and cannot sign in until an administrator enables them again. Their bracket sets, plates and roles are kept."
+        }
+        actions={
+          <form action={formAction} className="flex flex-wrap justify-end gap-3">
+            <input type="hidden" name="userId" value={userId} />
+            <input type="hidden" name="disabled" value={disabled ? "false" : "true"} />
+            <input type="hidden" name="personName" value={personName} />
+            <Button variant="secondary" onClick={() => setAsking(false)}>
+              Cancel
+            </Button>
+            <Button type="submit" variant={disabled ? "primary" : "danger"} pending={pending} pendingLabel={disabled ? "Enabling…" : "Disabling…"}>
+              {disabled ? "Enable" : "Disable"}
+            </Button>
+          </form>
+        }
+      />
+    </>
+  );
+}
