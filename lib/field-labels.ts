@@ -16,6 +16,7 @@ const LABELS: Record<string, string> = {
   defaultLicence: "default licence",
   eclipseId: "eclipse",
   elevationM: "elevation (m)",
+  email: "e-mail",
   embargoDate: "embargo date",
   exposureS: "exposure time",
   fNumber: "f-number",
