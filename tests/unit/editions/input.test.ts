@@ -16,7 +16,7 @@ describe("edition input", () => {
     expect(parseInput(embargoSchema, { embargoDate: "" }).embargoDate).toBeNull();
     expect(parseInput(embargoSchema, { embargoDate: null }).embargoDate).toBeNull();
     expect(parseInput(embargoSchema, { embargoDate: "2027-10-01" }).embargoDate).toBe("2027-10-01");
-    const [f] = fieldsOf(() => parseInput(embargoSchema, { embargoDate: "2027-02-30" }));
+    const [f] = fieldsOf(() => parseInput(embargoSchema, { embargoDate: "2027-02-30" })) as { field: string; message: string; received?: string }[];
     expect(f.field).toBe("embargoDate");
     expect(f.message).toMatch(/YYYY-MM-DD/);
     // What came is kept for API clients, apart from the sentence a person reads.
