@@ -1,25 +1,12 @@
 "use client";
-import { useActionState, useEffect, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import { useToast } from "@/components/ui/use-toast";
-import type { ActionResult, FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/components/forms/action-result";
+import { useConfirmedAction } from "@/components/forms/use-confirmed-action";
 
 /** Disable a person (no sign-in, sessions end) or enable them again, after a confirmation. */
 export function DisablePerson({ action, userId, personName, disabled, isSelf }: { action: FormAction; userId: string; personName: string; disabled: boolean; isSelf: boolean }) {
-  const [asking, setAsking] = useState(false);
-  // The dialog closes when the server has answered; the answer shows as a notice.
-  const [state, formAction, pending] = useActionState<ActionResult | null, FormData>(async (prev, form) => {
-    const result = await action(prev, form);
-    setAsking(false);
-    return result;
-  }, null);
-  const toast = useToast();
-  useEffect(() => {
-    if (!state) return;
-    toast.notify(state.message, { tone: state.ok ? "ok" : "danger" });
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [state]);
+  const { asking, setAsking, formAction, pending } = useConfirmedAction(action);
   if (isSelf) return <span className="text-sm text-ink-muted">your own account</span>;
   return (
     <>

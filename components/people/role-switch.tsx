@@ -1,9 +1,8 @@
 "use client";
-import { useActionState, useEffect, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import { useToast } from "@/components/ui/use-toast";
-import type { ActionResult, FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/components/forms/action-result";
+import { useConfirmedAction } from "@/components/forms/use-confirmed-action";
 
 /**
  * One role of one person as a toggle button (aria-pressed). Pressing it asks
@@ -29,19 +28,7 @@ export function RoleSwitch({
   /** Set when the switch must not be used (your own admin role), with the reason shown beside it. */
   lockedReason?: string;
 }) {
-  const [asking, setAsking] = useState(false);
-  // The dialog closes when the server has answered; the answer shows as a notice.
-  const [state, formAction, pending] = useActionState<ActionResult | null, FormData>(async (prev, form) => {
-    const result = await action(prev, form);
-    setAsking(false);
-    return result;
-  }, null);
-  const toast = useToast();
-  useEffect(() => {
-    if (!state) return;
-    toast.notify(state.message, { tone: state.ok ? "ok" : "danger" });
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [state]);
+  const { asking, setAsking, formAction, pending, toast } = useConfirmedAction(action);
   const verb = held ? "Revoke" : "Grant";
   return (
     <>
