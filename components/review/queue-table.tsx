@@ -14,7 +14,7 @@ import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@
 import type { QueueRowDto } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
 import { stateTone } from "./state-tone";
-import { formatDateTime } from "@/lib/format/dates";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 export interface QueueColumn {
   key: string;
@@ -118,7 +118,7 @@ export function QueueTable({ rows, columns, caption, csvHref }: { rows: QueueRow
                 {r.photographerName}
                 {r.isOwn ? <span className="block text-xs text-ink-muted">your own: another curator decides</span> : null}
               </TableCell>
-              <TableCell className="font-mono text-sm">{r.eclipseId}</TableCell>
+              <TableCell className="text-sm whitespace-nowrap">{formatDate(r.eclipseId)}</TableCell>
               <TableCell>
                 <Badge tone={stateTone(r.state)}>{STATE_LABELS[r.state]}</Badge>
               </TableCell>

@@ -11,6 +11,7 @@ import { getDb } from "@/db/client";
 import { listReviewQueue, QUEUE_STATES, queueQuerySchema, type QueueQuery, type QueueSort } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
 import { fieldProblems, summarizeProblems } from "@/lib/validation";
+import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Review desk" };
 
@@ -90,7 +91,7 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
         <input type="hidden" name="sort" value={query.sort} />
         <input type="hidden" name="dir" value={query.dir} />
         <Field label="Eclipse">
-          <Select name="eclipse" defaultValue={query.eclipse ?? ""} placeholder="Every eclipse" options={result.eclipses.map((e) => ({ value: e, label: e }))} />
+          <Select name="eclipse" defaultValue={query.eclipse ?? ""} placeholder="Every eclipse" options={result.eclipses.map((e) => ({ value: e, label: formatDate(e) || e }))} />
         </Field>
         <Field label="Photographer">
           <Select name="photographer" defaultValue={query.photographer ?? ""} placeholder="Everyone" options={result.photographers.map((p) => ({ value: p.id, label: p.name }))} />

@@ -110,7 +110,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
             {publications.map((e) => (
               <li key={e.id}>
                 “{e.title}”{e.issueLabel ? `, ${e.issueLabel}` : ""} ({e.kind}, {e.state}), version {e.version}, plate {e.position}:{" "}
-                {e.embargoDate ? <strong>embargo until {e.embargoDate}</strong> : "no embargo"}
+                {e.embargoDate ? <strong>embargo until {formatDate(e.embargoDate)}</strong> : "no embargo"}
               </li>
             ))}
           </ul>

@@ -22,7 +22,7 @@ import { reductionFilesBase } from "@/lib/plates/public";
 import { listReductions } from "@/lib/reductions/reductions";
 import { listCuratorNotes, listDecisionHistory } from "@/lib/review/history";
 import { availableActions, STATE_LABELS, type CuratorAction } from "@/lib/review/state-machine";
-import { formatDateTime } from "@/lib/format/dates";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Review a bracket set" };
 
@@ -53,7 +53,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
 
   return (
     <>
-      <PageTitle title={set.name} lead={`${set.eclipseId} · by ${set.ownerName} · ${set.frames.length} frame${set.frames.length === 1 ? "" : "s"}`}>
+      <PageTitle title={set.name} lead={`Eclipse of ${formatDate(set.eclipseId)} · by ${set.ownerName} · ${set.frames.length} frame${set.frames.length === 1 ? "" : "s"}`}>
         <div className="flex items-center gap-3">
           <Badge tone={stateTone(set.state)}>{STATE_LABELS[set.state]}</Badge>
           <Link href="/review">Back to the queue</Link>
