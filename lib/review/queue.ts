@@ -9,7 +9,7 @@ import { bracketSets, frames, reductions, reviewAssignments, reviewDecisions, si
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
-import { REVIEW_STATES, type ReviewState } from "./state-machine";
+import { REVIEW_STATES, STATE_LABELS, type ReviewState } from "./state-machine";
 
 /** The states the desk shows: a set still gathering frames is the photographer's alone. */
 export const QUEUE_STATES = REVIEW_STATES.filter((s) => s !== "gathering") as Exclude<ReviewState, "gathering">[];
@@ -20,12 +20,12 @@ export const QUEUE_PAGE_SIZE = 25;
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
 export const queueQuerySchema = z.object({
-  state: z.preprocess(blankToUndefined, z.enum([...QUEUE_STATES, "all"] as const, { error: `expected all or one of ${QUEUE_STATES.join(", ")}` }).default("awaiting-review")),
+  state: z.preprocess(blankToUndefined, z.enum([...QUEUE_STATES, "all"] as const, { error: `must be all or one of ${QUEUE_STATES.map((st) => STATE_LABELS[st]).join(", ")}` }).default("awaiting-review")),
   eclipse: z.preprocess(blankToUndefined, z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date such as 2027-08-02" }).optional()),
   photographer: z.preprocess(blankToUndefined, z.string().min(1).max(64).optional()),
-  mine: z.preprocess(blankToUndefined, z.enum(["1"], { error: "expected 1 or nothing" }).optional()),
-  sort: z.preprocess(blankToUndefined, z.enum(QUEUE_SORTS, { error: `expected one of ${QUEUE_SORTS.join(", ")}` }).default("submitted")),
-  dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"], { error: "expected asc or desc" }).default("asc")),
+  mine: z.preprocess(blankToUndefined, z.enum(["1"], { error: "must be on or off" }).optional()),
+  sort: z.preprocess(blankToUndefined, z.enum(QUEUE_SORTS, { error: "is not a column the queue sorts by" }).default("submitted")),
+  dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"], { error: "must be ascending or descending" }).default("asc")),
   page: z.preprocess(blankToUndefined, z.coerce.number({ error: "expected a page number" }).int().min(1).max(10_000).default(1)),
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
