@@ -102,15 +102,15 @@ describe("the edition builder", () => {
     await firstLayout.getByLabel("Layout slot").selectOption({ label: "Cover, 210 mm at 300 dpi" });
     const panel = firstLayout.getByRole("status").filter({ hasText: "Pixels needed and available" });
     await panel.getByText("not saved yet").waitFor();
-    await panel.getByText("2480 x 1860 px").waitFor();
+    await panel.getByText("2480 x 1860 px", { exact: true }).waitFor();
     await panel.getByText(/would have to be enlarged by 142%/).waitFor();
     await firstLayout.getByLabel("Layout slot").selectOption({ label: "Web, 2048 px wide" });
-    await panel.getByText("2048 x 1536 px").waitFor();
+    await panel.getByText("2048 x 1536 px", { exact: true }).waitFor();
     await firstLayout.getByLabel("Layout slot").selectOption({ label: "Custom width in mm and dpi" });
     await firstLayout.getByLabel("Width (mm)").fill("60");
     await firstLayout.getByLabel("Resolution (dpi)").fill("150");
     // round(60 / 25.4 x 150) = 354 px: large enough.
-    await panel.getByText("354 x 266 px").waitFor();
+    await panel.getByText("354 x 266 px", { exact: true }).waitFor();
     await panel.getByText("Large enough: no enlargement.").waitFor();
     await snap(page, "edition-builder-00-live-panel");
     // Nothing was saved by choosing.
