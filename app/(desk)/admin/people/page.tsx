@@ -72,8 +72,8 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
         <TableHead>
           <TableRow>
             <TableHeader>Name</TableHeader>
-            <TableHeader>E-mail</TableHeader>
-            <TableHeader>Joined</TableHeader>
+            <TableHeader className="hidden md:table-cell">E-mail</TableHeader>
+            <TableHeader className="hidden md:table-cell">Joined</TableHeader>
             <TableHeader>Roles (press to grant or revoke)</TableHeader>
             <TableHeader>Sign-in</TableHeader>
           </TableRow>
@@ -86,9 +86,12 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
               <TableRow key={p.id}>
                 <TableCell>
                   {p.name} {p.emailVerified ? null : <Badge tone="warn">address not confirmed</Badge>} {p.disabledAt ? <Badge tone="danger">disabled</Badge> : null}
+                  {/* On a phone the address and the date sit under the name, so the roles keep their room. */}
+                  <span className="block text-sm break-all text-ink-muted md:hidden">{p.email}</span>
+                  <span className="block text-sm text-ink-muted md:hidden">Joined {formatDate(p.joinedAt)}</span>
                 </TableCell>
-                <TableCell className="text-sm break-all">{p.email}</TableCell>
-                <TableCell className="text-sm whitespace-nowrap">{formatDate(p.joinedAt)}</TableCell>
+                <TableCell className="hidden text-sm break-all md:table-cell">{p.email}</TableCell>
+                <TableCell className="hidden text-sm whitespace-nowrap md:table-cell">{formatDate(p.joinedAt)}</TableCell>
                 <TableCell>
                   <div className="flex flex-wrap gap-2" role="group" aria-label={`Roles of ${p.name}`}>
                     {ROLES.map((role) => (
