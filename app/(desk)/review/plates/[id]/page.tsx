@@ -60,7 +60,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
       ) : null}
 
       <PageSection id="texts-h" title="What the public reads">
-        <div className="grid gap-8 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+        <div className="grid gap-8 xl:grid-cols-[minmax(0,7fr)_minmax(0,5fr)]">
           <div className="min-w-0 xl:sticky xl:top-4 xl:self-start">
             <h3 className="mb-2 text-base font-semibold">The image, as the public viewer shows it</h3>
             {plate.image.renditions.length ? (
