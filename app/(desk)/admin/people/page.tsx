@@ -48,7 +48,7 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
         <Field label="Find by name or e-mail" className="min-w-0 flex-1 basis-64">
           <Input name="q" type="search" defaultValue={query.q} />
         </Field>
-        <Field label="Role" className="min-w-0 basis-40">
+        <Field label="Role" className="min-w-0 basis-48">
           <Select name="role" defaultValue={query.role ?? ""} options={[{ value: "", label: "Any role" }, ...ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] }))]} />
         </Field>
         <Field label="Sign-in" className="min-w-0 basis-40">
