@@ -17,8 +17,12 @@ export const ERROR_STATUS = {
 export type ErrorCode = keyof typeof ERROR_STATUS;
 
 export interface FieldProblem {
+  /** The input's key or path (exposureS, frames.2.exposureS): for forms to place the message, never shown. */
   field: string;
+  /** Written for the person, without the field's name: the form shows it under the field's label. */
   message: string;
+  /** What came, for API clients and logs; never shown to a person. */
+  received?: string;
 }
 
 export class AppError extends Error {

@@ -19,6 +19,8 @@ export function describeAuthError(error: { status?: number; code?: string; messa
       return "The password is too long: use at most 128 characters.";
     case "INVALID_EMAIL":
       return "That does not look like an e-mail address.";
+    case "ACCOUNT_DISABLED":
+      return "This account is disabled. Ask the society's administrators if you think this is a mistake.";
     case "INVALID_TOKEN":
       return "This link is no longer valid. Ask for a new one.";
     default:

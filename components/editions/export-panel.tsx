@@ -15,6 +15,7 @@ import { ProgressBar } from "@/components/ui/progress-bar";
 import type { ExportDto } from "@/lib/editions/export/exports";
 import { DEFAULT_FILE_NAME_TEMPLATE, FILE_NAME_FIELDS } from "@/lib/editions/file-names";
 import { formatBytes } from "@/lib/format/bytes";
+import { formatDateTime } from "@/lib/format/dates";
 
 const TONE = { queued: "neutral", running: "neutral", done: "ok", failed: "danger" } as const;
 
@@ -144,7 +145,7 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
             <li key={e.id} className="rounded-control border border-line p-3">
               <div className="flex flex-wrap items-center gap-2 text-sm">
                 <Badge tone={TONE[e.state]}>{e.state}</Badge>
-                <span>Started {new Date(e.createdAt).toLocaleString("en-GB", { timeZone: "UTC", dateStyle: "medium", timeStyle: "short" })} UTC</span>
+                <span>Started {formatDateTime(e.createdAt)}</span>
                 <span className="text-ink-muted">
                   {[e.options.cmyk ? "CMYK" : null, e.options.greyscale ? "greyscale" : null].filter(Boolean).join(", ") || "sRGB and JPEG only"}
                 </span>

@@ -1,13 +1,14 @@
 "use client";
-import { useActionState, useEffect } from "react";
 import { Button } from "@/components/ui/button";
-import { useToast } from "@/components/ui/use-toast";
+import { Dialog } from "@/components/ui/dialog";
 import type { FormAction } from "@/components/forms/action-result";
-
+import { useConfirmedAction } from "@/components/forms/use-confirmed-action";
 
 /**
- * One role of one person as a toggle button (aria-pressed), submitting a
- * server action; the result is announced through the toast region.
+ * One role of one person as a toggle button (aria-pressed). Pressing it asks
+ * for confirmation in a dialog that says what the change does; confirming
+ * submits the server action, which checks again (an admin cannot revoke their
+ * own admin role). The result replaces any earlier notice in the toast region.
  */
 export function RoleSwitch({
   action,
@@ -16,6 +17,7 @@ export function RoleSwitch({
   label,
   held,
   personName,
+  lockedReason,
 }: {
   action: FormAction;
   userId: string;
@@ -23,28 +25,44 @@ export function RoleSwitch({
   label: string;
   held: boolean;
   personName: string;
+  /** Set when the switch must not be used (your own admin role), with the reason shown beside it. */
+  lockedReason?: string;
 }) {
-  const [state, formAction, pending] = useActionState(action, null);
-  const toast = useToast();
-  useEffect(() => {
-    if (state) toast.notify(state.message, { tone: state.ok ? "ok" : "danger" });
-    // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [state]);
+  const { asking, setAsking, formAction, pending, toast } = useConfirmedAction(action);
+  const verb = held ? "Revoke" : "Grant";
   return (
-    <form action={formAction}>
-      <input type="hidden" name="userId" value={userId} />
-      <input type="hidden" name="role" value={role} />
-      <input type="hidden" name="grant" value={held ? "false" : "true"} />
+    <>
       <Button
-        type="submit"
         size="sm"
         variant={held ? "primary" : "secondary"}
         aria-pressed={held}
-        pending={pending}
-        aria-label={`${label} role for ${personName}: ${held ? "held, press to revoke" : "not held, press to grant"}`}
+        aria-disabled={lockedReason ? true : undefined}
+        title={lockedReason}
+        onClick={() => (lockedReason ? toast.notify(lockedReason, { tone: "warn" }) : setAsking(true))}
+        aria-label={`${label} role for ${personName}: ${held ? "held" : "not held"}${lockedReason ? ` (${lockedReason})` : held ? ", press to revoke" : ", press to grant"}`}
       >
         {label}
       </Button>
-    </form>
+      <Dialog
+        open={asking}
+        onClose={() => setAsking(false)}
+        title={`${verb} the ${label.toLowerCase()} role ${held ? "from" : "to"} ${personName}?`}
+        description={held ? `${personName} loses what the ${label.toLowerCase()} role allows from their next page.` : `${personName} gains what the ${label.toLowerCase()} role allows from their next page.`}
+        actions={
+          <form action={formAction} className="flex flex-wrap justify-end gap-3">
+            <input type="hidden" name="userId" value={userId} />
+            <input type="hidden" name="role" value={role} />
+            <input type="hidden" name="grant" value={held ? "false" : "true"} />
+            <input type="hidden" name="personName" value={personName} />
+            <Button variant="secondary" onClick={() => setAsking(false)}>
+              Cancel
+            </Button>
+            <Button type="submit" variant={held ? "danger" : "primary"} pending={pending} pendingLabel={held ? "Revoking…" : "Granting…"}>
+              {verb} {label.toLowerCase()}
+            </Button>
+          </form>
+        }
+      />
+    </>
   );
 }

@@ -16,8 +16,11 @@ export function NightModeToggle() {
     };
   }, [on]);
   return (
-    <Button size="sm" aria-pressed={on} onClick={() => setOn(!on)}>
+    // The pressed state shows in the button itself: filled with a lit lamp when on, outlined when off.
+    <Button size="sm" variant={on ? "primary" : "secondary"} aria-pressed={on} onClick={() => setOn(!on)}>
+      <span aria-hidden="true" className={on ? "inline-block size-2.5 rounded-full bg-current" : "inline-block size-2.5 rounded-full border border-current"} />
       Night red
+      <span aria-hidden="true" className="font-normal">{on ? "on" : "off"}</span>
     </Button>
   );
 }

@@ -5,6 +5,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
 import type { FormAction } from "@/components/forms/action-result";
+import { capitalize, fieldLabel } from "@/lib/field-labels";
 
 
 export function SavePlanForm({ action, hidden, defaultName }: { action: FormAction; hidden: Record<string, string>; defaultName: string }) {
@@ -20,7 +21,7 @@ export function SavePlanForm({ action, hidden, defaultName }: { action: FormActi
       <SubmitButton variant="secondary">Save this plan</SubmitButton>
       {state ? (
         <FormMessage tone={state.ok ? "ok" : "danger"}>
-          {state.fields?.length ? state.fields.map((f) => `${f.field === "name" ? "Plan name" : f.field}: ${f.message}`).join("; ") : state.message}
+          {state.fields?.length ? state.fields.map((f) => `${f.field === "name" ? "Plan name" : capitalize(fieldLabel(f.field))}: ${f.message}`).join("; ") : state.message}
         </FormMessage>
       ) : null}
     </form>

@@ -8,6 +8,7 @@ import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateReportDto } from "@/lib/plates/reports";
 import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 const KIND_LABEL = { rights: "Rights", error: "Error", other: "Other" } as const;
 
@@ -33,7 +34,7 @@ function AnswerForm({ plateId, reportId }: { plateId: string; reportId: string }
         <Textarea name="answer" rows={3} maxLength={4000} />
       </Field>
       <label className="flex items-center gap-2 text-sm">
-        <input type="checkbox" name="close" defaultChecked className="size-4" /> Close the report with this answer
+        <input type="checkbox" name="close" defaultChecked /> Close the report with this answer
       </label>
       {problem ? (
         <p role="alert" className="text-sm font-medium text-danger">
@@ -59,13 +60,13 @@ export function PlateReports({ plateId, reports }: { plateId: string; reports: P
             <Badge tone={r.state === "open" ? "warn" : "neutral"}>{r.state}</Badge>
             <Badge>{KIND_LABEL[r.kind]}</Badge>
             <span>
-              from {r.reporterEmail}, {r.createdAt.slice(0, 16).replace("T", " ")} UTC
+              from {r.reporterEmail}, {formatDateTime(r.createdAt)}
             </span>
           </p>
           <p className="mt-2 whitespace-pre-line">{r.message}</p>
           {r.answer ? (
             <p className="mt-2 border-l-2 border-line pl-3 text-sm">
-              Answered by {r.answeredByName ?? "a curator"} on {r.answeredAt?.slice(0, 10)}: {r.answer}
+              Answered by {r.answeredByName ?? "a curator"} on {formatDate(r.answeredAt)}: {r.answer}
             </p>
           ) : null}
           {r.state === "closed" ? null : <AnswerForm plateId={plateId} reportId={r.id} />}

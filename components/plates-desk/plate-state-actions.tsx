@@ -1,55 +1,88 @@
 "use client";
 // Publish, withdraw (for the time being or for good, with a reason the public
-// page shows) and restore. The server decides what is allowed; the buttons
-// offered follow the plate's state so curators see only what can work.
+// page shows) and restore, each confirmed in a dialog that says what will
+// happen (the photographer is told by e-mail) and repeats the licence warning
+// where the plate carries a Creative Commons licence. The server decides what
+// is allowed; the buttons offered follow the plate's state.
 import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import { useRef, useState, type FormEvent } from "react";
 import { Button } from "@/components/ui/button";
+import { Dialog } from "@/components/ui/dialog";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
-import type { PlateState, WithdrawalKind } from "@/db/schema/plates";
+import type { PlateLicence, PlateState, WithdrawalKind } from "@/db/schema/plates";
 import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { licenceWarning } from "@/lib/plates/licences";
+import { STATE_LABELS, type ReviewState } from "@/lib/review/state-machine";
 
 export interface PlateStateActionsProps {
   plateId: string;
+  title: string;
   state: PlateState;
   withdrawnKind: WithdrawalKind | null;
+  licence: PlateLicence;
+  photographer: string;
   /** The bracket set's review state: publishing needs "approved". */
-  setState: string;
+  setState: ReviewState;
 }
 
-export function PlateStateActions({ plateId, state, withdrawnKind, setState }: PlateStateActionsProps) {
+type Move = { kind: "publish" } | { kind: "restore" } | { kind: "withdraw"; how: WithdrawalKind; reason: string };
+
+const SUCCESS: Record<string, string> = {
+  publish: "Published. The photographer has been told by e-mail.",
+  restore: "Back in the gallery. The photographer has been told by e-mail.",
+  "withdraw-temporary": "Withdrawn for the time being. The photographer has been told by e-mail.",
+  "withdraw-permanent": "Withdrawn for good. The photographer has been told by e-mail.",
+};
+
+export function PlateStateActions({ plateId, title, state, withdrawnKind, licence, photographer, setState }: PlateStateActionsProps) {
   const router = useRouter();
-  const [pending, setPending] = useState<string | null>(null);
+  const [pending, setPending] = useState(false);
   const [problem, setProblem] = useState<ApiProblem | null>(null);
   const [done, setDone] = useState<string | null>(null);
+  const [asking, setAsking] = useState<Move | null>(null);
+  const reasonRef = useRef<HTMLTextAreaElement>(null);
+  const warning = licenceWarning(licence);
 
-  async function run(what: string, url: string, body?: unknown, success = "Done.") {
-    setPending(what);
+  async function run(move: Move) {
+    setPending(true);
     setProblem(null);
     setDone(null);
+    const [url, body, key] =
+      move.kind === "withdraw"
+        ? [`/api/review/plates/${plateId}/withdraw`, { reason: move.reason, kind: move.how }, `withdraw-${move.how}`]
+        : [`/api/review/plates/${plateId}/${move.kind}`, undefined, move.kind];
     const res = await callApi("POST", url, body);
-    setPending(null);
+    setPending(false);
+    setAsking(null);
     if (!res.ok) return setProblem(res.problem);
-    setDone(success);
+    setDone(SUCCESS[key]);
     router.refresh();
   }
 
-  function withdraw(e: FormEvent<HTMLFormElement>) {
+  function askWithdraw(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const form = new FormData(e.currentTarget);
-    const kind = (e.nativeEvent as SubmitEvent).submitter?.getAttribute("value") as WithdrawalKind;
-    void run(`withdraw-${kind}`, `/api/review/plates/${plateId}/withdraw`, { reason: String(form.get("reason") ?? ""), kind }, kind === "temporary" ? "Withdrawn for the time being." : "Withdrawn for good.");
+    const how = (e.nativeEvent as SubmitEvent).submitter?.getAttribute("value") as WithdrawalKind;
+    const reason = String(new FormData(e.currentTarget).get("reason") ?? "").trim();
+    setDone(null);
+    if (!reason) {
+      setProblem({ message: "Give the reason for withdrawing: the public page shows it.", fields: { reason: "Give the reason; the public page shows it." } });
+      reasonRef.current?.focus();
+      return;
+    }
+    setProblem(null);
+    setAsking({ kind: "withdraw", how, reason });
   }
 
   const canWithdraw = state === "published" || (state === "withdrawn" && withdrawnKind === "temporary");
+  const dialog = asking ? describeMove(asking, title, photographer) : null;
   return (
     <div className="flex flex-col gap-4">
       {state === "draft" ? (
         <div className="flex flex-col gap-2">
-          {setState !== "approved" ? <p className="text-sm">The bracket set is {setState}; it must be approved before this plate can be published.</p> : null}
+          {setState !== "approved" ? <p className="text-sm">The bracket set is {STATE_LABELS[setState]}; it must be approved before this plate can be published.</p> : null}
           <div>
-            <Button variant="primary" pending={pending === "publish"} pendingLabel="Publishing…" onClick={() => run("publish", `/api/review/plates/${plateId}/publish`, undefined, "Published.")}>
+            <Button variant="primary" onClick={() => setAsking({ kind: "publish" })}>
               Publish the plate
             </Button>
           </div>
@@ -57,23 +90,23 @@ export function PlateStateActions({ plateId, state, withdrawnKind, setState }: P
       ) : null}
       {state === "withdrawn" && withdrawnKind === "temporary" ? (
         <div>
-          <Button variant="primary" pending={pending === "restore"} pendingLabel="Restoring…" onClick={() => run("restore", `/api/review/plates/${plateId}/restore`, undefined, "Back in the gallery.")}>
+          <Button variant="primary" onClick={() => setAsking({ kind: "restore" })}>
             Restore to the gallery
           </Button>
         </div>
       ) : null}
       {canWithdraw ? (
-        <form onSubmit={withdraw} noValidate className="flex max-w-xl flex-col gap-3">
+        <form onSubmit={askWithdraw} noValidate className="flex max-w-xl flex-col gap-3">
           <Field label="Reason for withdrawing" required hint="The public page shows it." error={problem?.fields.reason}>
-            <Textarea name="reason" rows={2} maxLength={500} />
+            <Textarea ref={reasonRef} name="reason" rows={2} maxLength={500} />
           </Field>
           <div className="flex flex-wrap gap-2">
             {state === "published" ? (
-              <Button type="submit" name="kind" value="temporary" pending={pending === "withdraw-temporary"} pendingLabel="Withdrawing…">
+              <Button type="submit" name="kind" value="temporary">
                 Withdraw while it is looked at
               </Button>
             ) : null}
-            <Button type="submit" name="kind" value="permanent" variant="danger" pending={pending === "withdraw-permanent"} pendingLabel="Withdrawing…">
+            <Button type="submit" name="kind" value="permanent" variant="danger">
               Withdraw for good
             </Button>
           </div>
@@ -90,6 +123,51 @@ export function PlateStateActions({ plateId, state, withdrawnKind, setState }: P
           {done}
         </p>
       ) : null}
+      <Dialog
+        open={asking !== null}
+        onClose={() => setAsking(null)}
+        title={dialog?.title ?? ""}
+        description={dialog?.description}
+        dismissOnBackdrop={!pending}
+        actions={
+          <>
+            <Button variant="secondary" onClick={() => setAsking(null)} disabled={pending}>
+              Cancel
+            </Button>
+            <Button variant={asking?.kind === "withdraw" && asking.how === "permanent" ? "danger" : "primary"} pending={pending} pendingLabel={dialog?.pendingLabel} onClick={() => asking && run(asking)}>
+              {dialog?.confirm}
+            </Button>
+          </>
+        }
+      >
+        {dialog ? (
+          <div className="flex flex-col gap-3 text-sm">
+            {asking?.kind === "withdraw" ? (
+              <p>
+                Reason the public page will show: <q>{asking.reason}</q>
+              </p>
+            ) : null}
+            {warning ? (
+              <p role="note" className="rounded-control border border-warn/50 bg-warn/10 p-3">
+                {warning}
+              </p>
+            ) : null}
+          </div>
+        ) : null}
+      </Dialog>
     </div>
   );
+}
+
+function describeMove(move: Move, title: string, photographer: string) {
+  const told = `${photographer} will be told by e-mail.`;
+  if (move.kind === "publish") {
+    return { title: `Publish “${title}”?`, description: `The plate goes into the public gallery with its texts, credits and licence, and its link becomes permanent. ${told}`, confirm: "Publish", pendingLabel: "Publishing…" };
+  }
+  if (move.kind === "restore") {
+    return { title: `Restore “${title}” to the gallery?`, description: `Its page and image are public again at once. ${told}`, confirm: "Restore", pendingLabel: "Restoring…" };
+  }
+  return move.how === "temporary"
+    ? { title: `Withdraw “${title}” for the time being?`, description: `The image leaves the gallery; its page keeps the record and shows the reason. You can restore it later. ${told}`, confirm: "Withdraw", pendingLabel: "Withdrawing…" }
+    : { title: `Withdraw “${title}” for good?`, description: `The image leaves the gallery for good; its page keeps the record and shows the reason. This cannot be undone. ${told}`, confirm: "Withdraw for good", pendingLabel: "Withdrawing…" };
 }

@@ -11,7 +11,7 @@ import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateLicence } from "@/db/schema/plates";
 import { CAPTION_MAX_WORDS, countWords, type PlateTexts } from "@/lib/plates/desk-input";
-import { LICENCE_INFO } from "@/lib/plates/licences";
+import { LICENCE_INFO, licenceWarning } from "@/lib/plates/licences";
 import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export interface PlateTextValues extends PlateTexts {
@@ -111,11 +111,7 @@ export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOn
         >
           <Select name="licence" options={LICENCE_OPTIONS} value={v.licence} onChange={set("licence")} />
         </Field>
-        {isCc ? (
-          <p className="-mt-3 rounded-control border border-warn/50 bg-warn/10 p-3 text-sm">
-            Creative Commons licences cannot be revoked: once published under {LICENCE_INFO[v.licence].shortName}, copies already taken keep that licence even if the plate is withdrawn or relicensed.
-          </p>
-        ) : null}
+        {isCc ? <p className="-mt-3 rounded-control border border-warn/50 bg-warn/10 p-3 text-sm">{licenceWarning(v.licence)}</p> : null}
         <Field
           label="Link name"
           required

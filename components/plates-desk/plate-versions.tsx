@@ -11,6 +11,7 @@ import { Textarea } from "@/components/ui/textarea";
 import type { DeskPlateDto } from "@/lib/plates/desk-view";
 import { callApi, type ApiProblem } from "@/components/forms/call-api";
 import { RenditionsPicker } from "./renditions-picker";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 export interface PlateVersionsProps {
   plateId: string;
@@ -52,7 +53,7 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
         {versions.map((v) => (
           <li key={v.version}>
             <span className="font-medium">Version {v.version}</span>
-            {v.version === currentVersion ? " (current)" : ""}: {v.changeNote || "no note"}. {v.createdAt.slice(0, 10)}, renditions {v.renditions.join(" and ")}.{" "}
+            {v.version === currentVersion ? " (current)" : ""}: {v.changeNote || "no note"}. {formatDate(v.createdAt)}, renditions {v.renditions.join(" and ")}.{" "}
             <Link href={v.url} className="underline">
               Permanent link {v.url}
             </Link>
@@ -67,7 +68,7 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
               name="reductionId"
               options={finishedReductions.map((r) => ({
                 value: r.id,
-                label: `${r.filter.toUpperCase()}, registered on ${r.registration}, ${r.finishedAt?.slice(0, 16).replace("T", " ") ?? "unfinished"} (pipeline ${r.pipelineVersion ?? "unknown"})`,
+                label: `${r.filter.toUpperCase()}, registered on ${r.registration}, ${r.finishedAt ? formatDateTime(r.finishedAt) : "unfinished"} (pipeline ${r.pipelineVersion ?? "unknown"})`,
               }))}
             />
           </Field>

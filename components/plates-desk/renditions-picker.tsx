@@ -7,7 +7,7 @@ export function RenditionsPicker({ legend, error }: { legend: string; error?: st
       <legend className="text-sm font-medium">{legend}</legend>
       {(Object.keys(LABELS) as (keyof typeof LABELS)[]).map((key) => (
         <label key={key} className="flex items-center gap-2 text-sm">
-          <input type="checkbox" name="renditions" value={key} defaultChecked className="size-4" />
+          <input type="checkbox" name="renditions" value={key} defaultChecked />
           {LABELS[key]}
         </label>
       ))}

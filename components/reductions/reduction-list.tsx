@@ -4,10 +4,11 @@ import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, Tab
 import type { ReductionDto } from "@/lib/reductions/reductions";
 import { describeStage, OUTPUT_SIZE_LABEL, REGISTRATION_SHORT, STATE_TONES } from "./labels";
 import type { ShownParams as StoredParams } from "./reduction-details";
+import { formatDateTime } from "@/lib/format/dates";
 
 
 function formatUtc(iso: string): string {
-  return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+  return formatDateTime(iso);
 }
 
 /** A bracket set's reductions, newest first as given, each with its parameters, state and a link to its page. */

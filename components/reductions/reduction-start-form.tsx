@@ -9,6 +9,7 @@ import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import type { RunChoice } from "@/lib/reductions/run-options";
 import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, REGISTRATION_MODES, reductionParamsSchema, type ReductionParamsInput, type RegistrationModeInput } from "@/lib/reductions/schemas";
+import { fieldProblems } from "@/lib/validation";
 import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
 
 type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
@@ -43,6 +44,7 @@ export function ReductionStartForm({
   initial = {},
   submitLabel = "Start reduction",
   choices,
+  stayHere = false,
 }: {
   setId: string;
   groups: number[];
@@ -50,6 +52,8 @@ export function ReductionStartForm({
   submitLabel?: string;
   /** Which alignments the set's frames allow, and why not (lib/reductions/run-options); all are offered when absent. */
   choices?: Record<RegistrationModeInput, RunChoice>;
+  /** Stay on this page (the review desk) and refresh it, instead of going to the new reduction's page. */
+  stayHere?: boolean;
 }) {
   const router = useRouter();
   const isOffered = (m: RegistrationModeInput) => choices?.[m].isOffered ?? true;
@@ -69,15 +73,18 @@ export function ReductionStartForm({
   const short = (m: RegistrationModeInput) => REGISTRATION_LABELS[m].replace(/ \(.*\)$/, "");
   const [problems, setProblems] = useState<Problem[]>([]);
   const [message, setMessage] = useState<string | null>(null);
+  const [started, setStarted] = useState<string | null>(null);
   const [pending, setPending] = useState(false);
   const err = (field: FieldName) => problems.find((p) => p.field === field)?.message;
 
   async function handleSubmit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
     setMessage(null);
-    const checked = reductionParamsSchema.safeParse(readForm(event.currentTarget));
+    setStarted(null);
+    const raw = readForm(event.currentTarget);
+    const checked = reductionParamsSchema.safeParse(raw);
     if (!checked.success) {
-      const found = checked.error.issues.map((i) => ({ field: String(i.path[0] ?? ""), message: i.message }));
+      const found = fieldProblems(checked.error, raw).map((p) => ({ field: p.field.split(".")[0], message: p.message }));
       setProblems(found);
       setMessage(`Please correct ${found.length === 1 ? "the marked field" : `the ${found.length} marked fields`}.`);
       return;
@@ -92,7 +99,12 @@ export function ReductionStartForm({
       });
       const body = (await res.json().catch(() => null)) as { id?: string; error?: { message: string; fields?: Problem[] } } | null;
       if (res.ok && body?.id) {
-        router.push(`/studio/reductions/${body.id}`);
+        if (stayHere) {
+          setStarted("Re-reduction started. It is queued and shows in the list of reductions, with its progress.");
+          router.refresh();
+        } else {
+          router.push(`/studio/reductions/${body.id}`);
+        }
         return;
       }
       const fields = body?.error?.fields ?? [];
@@ -108,6 +120,7 @@ export function ReductionStartForm({
   return (
     <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
       {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
+      {started ? <FormMessage tone="ok">{started}</FormMessage> : null}
       <div className="grid grid-cols-1 gap-5 sm:grid-cols-2">
         <Field
           label="Align frames on"

@@ -1,8 +1,11 @@
 "use client";
-// Two renditions side by side whose zoom and pan move together: one view
-// state drives a CSS transform on both images. Buttons, arrow keys (+, -, 0)
-// on either picture, Ctrl or Cmd with the wheel, and dragging all change it.
-import { useEffect, useId, useRef, useState, type KeyboardEvent, type PointerEvent } from "react";
+// Two renditions side by side whose zoom and pan move together. Each side is a
+// deep-zoom viewer of the rendition's tile pyramid (IIIF level 0), so a zoomed
+// view loads the finer tiles and stays sharp; the previews are never enlarged.
+// Buttons, the keyboard on either picture (arrows, + and -, 0), Ctrl or Cmd
+// with the wheel, pinching and dragging all move both.
+import type OpenSeadragon from "openseadragon";
+import { useEffect, useId, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
@@ -11,156 +14,204 @@ export interface ComparisonChoice {
   /** Unique among the choices, e.g. "<reduction id>:structure". */
   value: string;
   label: string;
-  src: string;
+  /** The rendition's IIIF Image API info.json (or a .dzi descriptor). */
+  tileSource: string;
   alt: string;
 }
 
-interface View {
-  scale: number;
-  x: number;
-  y: number;
-}
-
-const MIN_SCALE = 1;
-const MAX_SCALE = 16;
+const ZOOM_STEP = 1.5;
 const PAN_STEP_PX = 40;
-const HOME: View = { scale: 1, x: 0, y: 0 };
+/** OpenSeadragon's flip and rotate keys: a comparison keeps both pictures upright and unmirrored. */
+const BLOCKED_KEYS = new Set(["KeyF", "KeyR", "KeyJ", "KeyK"]);
 
-function clampScale(s: number): number {
-  return Math.min(MAX_SCALE, Math.max(MIN_SCALE, s));
-}
+type Side = 0 | 1;
 
 export function LinkedComparison({ choices }: { choices: ComparisonChoice[] }) {
-  const [left, setLeft] = useState(choices[0]?.value ?? "");
-  const [right, setRight] = useState(choices[1]?.value ?? choices[0]?.value ?? "");
-  const [view, setView] = useState<View>(HOME);
-  const drag = useRef<{ x: number; y: number; id: number } | null>(null);
+  const [picked, setPicked] = useState<[string, string]>([choices[0]?.value ?? "", choices[1]?.value ?? choices[0]?.value ?? ""]);
+  const [zoomText, setZoomText] = useState("1.0×");
+  const [failed, setFailed] = useState<[boolean, boolean]>([false, false]);
   const helpId = useId();
-  const frames = useRef<(HTMLDivElement | null)[]>([]);
+  const hosts = useRef<(HTMLDivElement | null)[]>([null, null]);
+  const viewers = useRef<(OpenSeadragon.Viewer | null)[]>([null, null]);
+  const osdRef = useRef<typeof OpenSeadragon | null>(null);
+  const syncing = useRef(false);
+  const opened = useRef<[string, string]>(["", ""]);
+  const count = choices.length;
 
-  // React attaches wheel listeners as passive, so preventDefault would be ignored: listen natively.
+  const choiceOf = (value: string) => choices.find((c) => c.value === value) ?? choices[0];
+
+  // Build both viewers once; the sources follow the selects (effect below).
   useEffect(() => {
-    function onWheel(e: WheelEvent) {
-      // A plain wheel keeps scrolling the page; with Ctrl or Cmd it zooms both pictures.
-      if (!e.ctrlKey && !e.metaKey) return;
-      e.preventDefault();
-      const factor = e.deltaY < 0 ? 1.25 : 1 / 1.25;
-      setView((v) => ({ ...v, scale: clampScale(v.scale * factor) }));
-    }
-    const els = frames.current.filter((el): el is HTMLDivElement => el !== null);
-    for (const el of els) el.addEventListener("wheel", onWheel, { passive: false });
+    if (count < 2) return;
+    let cancelled = false;
+    void import("openseadragon").then(({ default: osd }) => {
+      if (cancelled) return;
+      osdRef.current = osd;
+      for (const side of [0, 1] as Side[]) {
+        const host = hosts.current[side];
+        if (!host) continue;
+        const viewer = osd({
+          element: host,
+          showNavigationControl: false,
+          cooperativeGestures: true,
+          crossOriginPolicy: "Anonymous",
+          visibilityRatio: 0.4,
+          minZoomImageRatio: 0.8,
+          maxZoomPixelRatio: 4,
+          animationTime: window.matchMedia?.("(prefers-reduced-motion: reduce)").matches ? 0.05 : 0.6,
+          gestureSettingsMouse: { clickToZoom: false, dblClickToZoom: true },
+          gestureSettingsTouch: { pinchRotate: false },
+        });
+        viewer.addHandler("canvas-key", (e) => {
+          if (BLOCKED_KEYS.has(e.originalEvent.code)) e.preventDefaultAction = true;
+        });
+        // Whatever moves one picture moves the other to the same place, at once.
+        viewer.addHandler("viewport-change", () => {
+          if (syncing.current) return;
+          const other = viewers.current[side === 0 ? 1 : 0];
+          if (!other || other.world.getItemCount() === 0) return;
+          syncing.current = true;
+          other.viewport.zoomTo(viewer.viewport.getZoom(false), undefined, true);
+          other.viewport.panTo(viewer.viewport.getCenter(false), true);
+          syncing.current = false;
+        });
+        viewer.addHandler("animation-finish", () => setZoomText(`${(viewer.viewport.getZoom(false) / viewer.viewport.getHomeZoom()).toFixed(1)}×`));
+        viewer.addHandler("open", () => {
+          setFailed((f) => (side === 0 ? [false, f[1]] : [f[0], false]));
+          // A picture chosen anew takes the other's view.
+          const other = viewers.current[side === 0 ? 1 : 0];
+          if (other && other.world.getItemCount() > 0) {
+            syncing.current = true;
+            viewer.viewport.zoomTo(other.viewport.getZoom(false), undefined, true);
+            viewer.viewport.panTo(other.viewport.getCenter(false), true);
+            syncing.current = false;
+          }
+        });
+        viewer.addHandler("open-failed", () => setFailed((f) => (side === 0 ? [true, f[1]] : [f[0], true])));
+        viewers.current[side] = viewer;
+      }
+      opened.current = ["", ""];
+      openPicked();
+    });
     return () => {
-      for (const el of els) el.removeEventListener("wheel", onWheel);
+      cancelled = true;
+      for (const v of viewers.current) v?.destroy();
+      viewers.current = [null, null];
     };
-  }, [choices.length]);
+    // Built once per mount; choices reach the viewers through the effect below.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [count]);
 
-  if (choices.length < 2) {
+  function openPicked() {
+    for (const side of [0, 1] as Side[]) {
+      const viewer = viewers.current[side];
+      const value = picked[side];
+      if (!viewer || opened.current[side] === value) continue;
+      opened.current[side] = value;
+      viewer.open(choiceOf(value).tileSource as unknown as OpenSeadragon.TileSourceSpecifier);
+    }
+  }
+
+  useEffect(() => {
+    openPicked();
+    for (const side of [0, 1] as Side[]) {
+      const canvas = viewers.current[side]?.canvas;
+      if (!canvas) continue;
+      const choice = choiceOf(picked[side]);
+      canvas.setAttribute("role", "img");
+      canvas.setAttribute("aria-roledescription", "zoomable picture");
+      canvas.setAttribute("aria-label", `${side === 0 ? "Left" : "Right"} picture: ${choice.alt}`);
+      canvas.setAttribute("aria-describedby", helpId);
+    }
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [picked, helpId]);
+
+  if (count < 2) {
     return <p className="text-ink-muted">A comparison needs at least two renditions: a finished reduction gives two, each further one two more.</p>;
   }
-  const zoom = (factor: number) => setView((v) => ({ ...v, scale: clampScale(v.scale * factor) }));
-  const pan = (dx: number, dy: number) => setView((v) => ({ ...v, x: v.x + dx, y: v.y + dy }));
 
-  function onKey(e: KeyboardEvent) {
-    const moves: Record<string, () => void> = {
-      ArrowLeft: () => pan(PAN_STEP_PX, 0),
-      ArrowRight: () => pan(-PAN_STEP_PX, 0),
-      ArrowUp: () => pan(0, PAN_STEP_PX),
-      ArrowDown: () => pan(0, -PAN_STEP_PX),
-      "+": () => zoom(1.5),
-      "=": () => zoom(1.5),
-      "-": () => zoom(1 / 1.5),
-      "0": () => setView(HOME),
-    };
-    const move = moves[e.key];
-    if (move) {
-      e.preventDefault();
-      move();
-    }
-  }
-  function onPointerDown(e: PointerEvent) {
-    drag.current = { x: e.clientX, y: e.clientY, id: e.pointerId };
-    (e.currentTarget as HTMLElement).setPointerCapture(e.pointerId);
-  }
-  function onPointerMove(e: PointerEvent) {
-    const d = drag.current;
-    if (!d || d.id !== e.pointerId) return;
-    pan(e.clientX - d.x, e.clientY - d.y);
-    drag.current = { ...d, x: e.clientX, y: e.clientY };
-  }
-  const endDrag = () => {
-    drag.current = null;
+  const lead = () => viewers.current[0] ?? viewers.current[1];
+  const zoom = (factor: number) => {
+    const v = lead();
+    if (!v) return;
+    v.viewport.zoomBy(factor);
+    v.viewport.applyConstraints();
+  };
+  const pan = (dx: number, dy: number) => {
+    const v = lead();
+    const osd = osdRef.current;
+    if (!v || !osd) return;
+    v.viewport.panBy(v.viewport.deltaPointsFromPixels(new osd.Point(dx, dy)));
+    v.viewport.applyConstraints();
   };
 
   const panes = [
-    { key: "left", label: "Left picture", value: left, set: setLeft },
-    { key: "right", label: "Right picture", value: right, set: setRight },
+    { side: 0 as Side, label: "Left picture" },
+    { side: 1 as Side, label: "Right picture" },
   ];
   return (
     <div className="flex flex-col gap-4">
       <div className="grid gap-4 md:grid-cols-2">
         {panes.map((p) => (
-          <Field key={p.key} label={p.label}>
-            <Select value={p.value} onChange={(e) => p.set(e.target.value)} options={choices.map((c) => ({ value: c.value, label: c.label }))} />
+          <Field key={p.side} label={p.label}>
+            <Select
+              value={picked[p.side]}
+              onChange={(e) => {
+                const value = e.target.value;
+                setPicked((old) => (p.side === 0 ? [value, old[1]] : [old[0], value]));
+              }}
+              options={choices.map((c) => ({ value: c.value, label: c.label }))}
+            />
           </Field>
         ))}
       </div>
       <div className="flex flex-wrap items-center gap-2" role="group" aria-label="Zoom and pan both pictures">
-        <Button size="sm" onClick={() => zoom(1.5)} aria-label="Zoom in">
+        <Button size="sm" onClick={() => zoom(ZOOM_STEP)} aria-label="Zoom in">
           +
         </Button>
-        <Button size="sm" onClick={() => zoom(1 / 1.5)} aria-label="Zoom out">
+        <Button size="sm" onClick={() => zoom(1 / ZOOM_STEP)} aria-label="Zoom out">
           −
         </Button>
-        <Button size="sm" onClick={() => pan(PAN_STEP_PX, 0)} aria-label="Pan left">
+        <Button size="sm" onClick={() => pan(-PAN_STEP_PX, 0)} aria-label="Pan left">
           ←
         </Button>
-        <Button size="sm" onClick={() => pan(0, PAN_STEP_PX)} aria-label="Pan up">
+        <Button size="sm" onClick={() => pan(0, -PAN_STEP_PX)} aria-label="Pan up">
           ↑
         </Button>
-        <Button size="sm" onClick={() => pan(0, -PAN_STEP_PX)} aria-label="Pan down">
+        <Button size="sm" onClick={() => pan(0, PAN_STEP_PX)} aria-label="Pan down">
           ↓
         </Button>
-        <Button size="sm" onClick={() => pan(-PAN_STEP_PX, 0)} aria-label="Pan right">
+        <Button size="sm" onClick={() => pan(PAN_STEP_PX, 0)} aria-label="Pan right">
           →
         </Button>
-        <Button size="sm" variant="quiet" onClick={() => setView(HOME)}>
+        <Button size="sm" variant="quiet" onClick={() => lead()?.viewport.goHome()}>
           Whole picture
         </Button>
         <span role="status" aria-live="polite" className="font-mono text-sm text-ink-muted">
-          {view.scale.toFixed(1)}×
+          {zoomText}
         </span>
       </div>
       <p id={helpId} className="text-sm text-ink-muted">
-        On a picture: arrow keys pan, + and − zoom, 0 shows the whole picture; drag to pan; Ctrl or Cmd with the wheel zooms. Both pictures follow.
+        On a picture: arrow keys pan, + and − zoom, 0 shows the whole picture; drag to pan; Ctrl or Cmd with the wheel zooms. Both pictures follow, and zoomed views load finer tiles.
       </p>
       <div className="grid gap-4 md:grid-cols-2">
-        {panes.map((p, i) => {
-          const choice = choices.find((c) => c.value === p.value) ?? choices[0];
+        {panes.map((p) => {
+          const choice = choiceOf(picked[p.side]);
           return (
-            <figure key={p.key} className="flex flex-col gap-2">
-              <div
-                tabIndex={0}
-                role="group"
-                aria-label={`${p.label}: ${choice.label}`}
-                aria-describedby={helpId}
-                onKeyDown={onKey}
-                ref={(el) => {
-                  frames.current[i] = el;
-                }}
-                onPointerDown={onPointerDown}
-                onPointerMove={onPointerMove}
-                onPointerUp={endDrag}
-                onPointerCancel={endDrag}
-                className="aspect-[4/3] cursor-grab touch-none overflow-hidden rounded-card border border-line bg-black focus-visible:outline-2 focus-visible:outline-offset-2 active:cursor-grabbing"
-              >
-                {/* eslint-disable-next-line @next/next/no-img-element -- outputs served by our own route, already sized */}
-                <img
-                  src={choice.src}
-                  alt={choice.alt}
-                  draggable={false}
-                  className="h-full w-full origin-center object-contain select-none"
-                  style={{ transform: `translate(${view.x}px, ${view.y}px) scale(${view.scale})` }}
+            <figure key={p.side} className="flex min-w-0 flex-col gap-2">
+              <div className="relative aspect-[4/3] overflow-hidden rounded-card border border-line bg-black">
+                <div
+                  ref={(el) => {
+                    hosts.current[p.side] = el;
+                  }}
+                  data-testid={`compare-${p.side === 0 ? "left" : "right"}`}
+                  className="absolute inset-0"
                 />
+                {failed[p.side] ? (
+                  <p role="alert" className="absolute inset-x-0 top-1/2 px-4 text-center text-sm text-white">
+                    This rendition&apos;s tiles could not be loaded.
+                  </p>
+                ) : null}
               </div>
               <figcaption className="text-sm">{choice.label}</figcaption>
             </figure>

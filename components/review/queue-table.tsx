@@ -14,6 +14,7 @@ import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@
 import type { QueueRowDto } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
 import { stateTone } from "./state-tone";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 export interface QueueColumn {
   key: string;
@@ -108,7 +109,7 @@ export function QueueTable({ rows, columns, caption, csvHref }: { rows: QueueRow
                   onChange={() => toggle(r.id)}
                 />
               </TableCell>
-              <TableCell className="font-mono text-sm whitespace-nowrap">{r.submittedAt.slice(0, 16).replace("T", " ")} UTC</TableCell>
+              <TableCell className="font-mono text-sm whitespace-nowrap">{formatDateTime(r.submittedAt)}</TableCell>
               <TableCell>
                 <Link href={`/review/sets/${r.id}`}>{r.name}</Link>
                 <span className="block text-xs text-ink-muted">{r.siteName}</span>
@@ -117,7 +118,7 @@ export function QueueTable({ rows, columns, caption, csvHref }: { rows: QueueRow
                 {r.photographerName}
                 {r.isOwn ? <span className="block text-xs text-ink-muted">your own: another curator decides</span> : null}
               </TableCell>
-              <TableCell className="font-mono text-sm">{r.eclipseId}</TableCell>
+              <TableCell className="text-sm whitespace-nowrap">{formatDate(r.eclipseId)}</TableCell>
               <TableCell>
                 <Badge tone={stateTone(r.state)}>{STATE_LABELS[r.state]}</Badge>
               </TableCell>

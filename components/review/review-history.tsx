@@ -1,8 +1,9 @@
 import { Badge } from "@/components/ui/badge";
 import type { CuratorNoteDto, DecisionHistoryDto } from "@/lib/review/history";
 import { ACTION_LABELS, STATE_LABELS } from "@/lib/review/state-machine";
+import { formatDateTime } from "@/lib/format/dates";
 
-const when = (iso: string) => `${iso.slice(0, 16).replace("T", " ")} UTC`;
+const when = (iso: string) => formatDateTime(iso);
 
 /** Every move of the set, newest first, with what the photographer was told. */
 export function DecisionHistory({ decisions }: { decisions: DecisionHistoryDto[] }) {

@@ -47,7 +47,7 @@ export function SettingsForm({
       </Field>
       <Field
         label="Credit-line template for plates"
-        hint="Placeholders: {acquiredBy}, {processedBy}, {society}, {year}, {licence}. The plate editor fills them in."
+        hint="Placeholders: {observer} (who took the frames), {processing} (who processed them), {society}, {year}, {licence}. The plate editor fills them in."
         error={err("creditLineTemplate")}
         required
       >

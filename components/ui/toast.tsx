@@ -45,7 +45,11 @@ export function ToastProvider({ children }: { children: ReactNode }) {
       const tone = options.tone ?? "neutral";
       counter.current += 1;
       const id = `toast-${counter.current}`;
-      setToasts((current) => [...current.slice(-3), { id, message, tone }]);
+      // One notice at a time: a new one replaces the last instead of stacking up
+      // (five role changes in a row leave one notice, the latest, not five).
+      timers.current.forEach((timer) => clearTimeout(timer));
+      timers.current.clear();
+      setToasts([{ id, message, tone }]);
       const durationMs =
         options.durationMs === undefined ? (tone === "danger" ? null : DEFAULT_DURATION_MS) : options.durationMs;
       if (durationMs !== null) timers.current.set(id, setTimeout(() => dismiss(id), durationMs));

@@ -11,6 +11,8 @@ export const users = pgTable("users", {
   image: text("image"),
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  /** Ours, not better-auth's: set by an admin; a disabled person cannot sign in (see lib/auth/auth.ts). */
+  disabledAt: timestamp("disabled_at", { withTimezone: true }),
 });
 
 export const sessions = pgTable(

@@ -26,9 +26,24 @@ export function requireSignedIn(actor: Actor | null): Actor {
   return actor;
 }
 
+/** What each action allows, in words, for refusals that name no particular thing. */
+const ACTION_WORDS: Record<Action, string> = {
+  "studio:use": "using the studio",
+  "brackets:own": "keeping bracket sets",
+  "review:use": "using the review desk",
+  "brackets:read-all": "reading other members' bracket sets",
+  "editions:use": "working on editions",
+  "people:list": "seeing the list of people",
+  "roles:grant": "changing people's roles",
+  "settings:edit": "changing the society's settings",
+  "audit:read": "reading the audit log",
+  "eclipses:edit": "editing the eclipse catalogue",
+};
+
 export function requirePermission(actor: Actor | null, action: Action, what?: string): Actor {
   const a = requireSignedIn(actor);
-  if (!can(a.roles, action)) throw forbidden(what ?? action);
+  // The refusal names what was refused in words, never the action's code.
+  if (!can(a.roles, action)) throw forbidden(what ?? ACTION_WORDS[action]);
   return a;
 }
 

@@ -3,13 +3,15 @@
 // granted to every new account. Created lazily so that importing this module
 // needs no environment (next build, tests).
 import { betterAuth } from "better-auth";
+import { APIError } from "better-auth/api";
 import { drizzleAdapter } from "better-auth/adapters/drizzle";
 import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { insertRole } from "@/db/queries/roles";
 import * as schema from "@/db/schema";
 import { queueMail } from "@/lib/email/outbox";
-import { passwordResetMail, verificationMail } from "@/lib/email/templates";
+import { invitationMail, passwordResetMail, verificationMail } from "@/lib/email/templates";
+import { describeInvitation, extendInvitationToken, INVITATION_VALID_DAYS, isAwaitingFirstPassword, isDisabled } from "@/lib/people/account-state";
 import { getEnv } from "@/lib/env";
 import { getProducerRedis } from "@/lib/queue/connection";
 import { CLIENT_ADDRESS_HEADER } from "@/lib/http/client-address";
@@ -41,8 +43,15 @@ function createAuth() {
       maxPasswordLength: PASSWORD_MAX,
       resetPasswordTokenExpiresIn: 3600,
       revokeSessionsOnPasswordReset: true,
-      async sendResetPassword({ user, url }) {
+      async sendResetPassword({ user, url, token }) {
         const society = (await findSocietySettings(db)).name;
+        // Someone an admin invited has no password yet: their link is an invitation, valid for days.
+        if (await isAwaitingFirstPassword(db, user.id)) {
+          await extendInvitationToken(db, token);
+          const invitation = await describeInvitation(db, user.id);
+          await queueMail(db, invitationMail(society, user.email, user.name, { ...invitation, url, validDays: INVITATION_VALID_DAYS }));
+          return;
+        }
         await queueMail(db, passwordResetMail(society, user.email, url));
       },
     },
@@ -70,6 +79,16 @@ function createAuth() {
     },
     hooks: createAuthHooks(rateStore),
     databaseHooks: {
+      session: {
+        create: {
+          // A disabled person gets no session, whatever the sign-in path.
+          async before(session) {
+            if (await isDisabled(db, session.userId)) {
+              throw APIError.from("FORBIDDEN", { message: "This account is disabled.", code: "ACCOUNT_DISABLED" });
+            }
+          },
+        },
+      },
       user: {
         // The endpoints' hooks answer with the reason first; this holds for any other way in.
         update: {

@@ -5,7 +5,9 @@ import type { DbOrTx } from "@/db/client";
 import { eclipses, type Eclipse } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
-import { notFound } from "@/lib/errors";
+import { AppError, notFound, type FieldProblem } from "@/lib/errors";
+import { fieldProblems } from "@/lib/validation";
+import { formatDate } from "@/lib/format/dates";
 
 export interface EclipseDto {
   id: string;
@@ -64,16 +66,39 @@ export const eclipseEditSchema = z.object({
 });
 export type EclipseEdit = z.infer<typeof eclipseEditSchema>;
 
-export async function editEclipse(db: DbOrTx, actor: Actor | null, input: EclipseEdit): Promise<EclipseDto> {
+/**
+ * The whole catalogue's names and featured flags from one form: `name:<id>`
+ * and `featured:<id>` for every id listed in `ids` (comma-separated). Checks
+ * every row before writing any; writes the rows that changed, each with its
+ * audit entry, in one transaction. Returns the ids that changed.
+ */
+export async function editEclipseCatalogue(db: DbOrTx, actor: Actor | null, form: Record<string, unknown>): Promise<string[]> {
   const admin = requirePermission(actor, "eclipses:edit", "naming or featuring eclipses");
-  const before = await findEclipse(db, input.id);
-  const [row] = await db.update(eclipses).set({ name: input.name, featured: input.featured }).where(eq(eclipses.id, input.id)).returning();
-  await recordAudit(db, {
-    actorId: admin.userId,
-    action: "eclipse.edited",
-    subjectType: "eclipse",
-    subjectId: input.id,
-    detail: { from: { name: before.name, featured: before.featured }, to: { name: input.name, featured: input.featured } },
+  const ids = String(form.ids ?? "").split(",").filter(Boolean);
+  const problems: FieldProblem[] = [];
+  const edits: EclipseEdit[] = [];
+  for (const id of ids) {
+    const raw = { id, name: form[`name:${id}`] ?? "", featured: form[`featured:${id}`] };
+    const parsed = eclipseEditSchema.safeParse(raw);
+    if (parsed.success) edits.push(parsed.data);
+    else problems.push(...fieldProblems(parsed.error, raw).map((p) => ({ ...p, field: `${p.field}:${id}`, message: `${formatDate(id) || id}: ${p.message}` })));
+  }
+  if (problems.length) throw new AppError("invalid_input", `Nothing was saved: ${problems.map((p) => p.message).join("; ")}.`, problems);
+  return db.transaction(async (tx) => {
+    const changed: string[] = [];
+    for (const edit of edits) {
+      const before = await findEclipse(tx, edit.id);
+      if (before.name === edit.name && before.featured === edit.featured) continue;
+      await tx.update(eclipses).set({ name: edit.name, featured: edit.featured }).where(eq(eclipses.id, edit.id));
+      await recordAudit(tx, {
+        actorId: admin.userId,
+        action: "eclipse.edited",
+        subjectType: "eclipse",
+        subjectId: edit.id,
+        detail: { from: { name: before.name, featured: before.featured }, to: { name: edit.name, featured: edit.featured } },
+      });
+      changed.push(edit.id);
+    }
+    return changed;
   });
-  return toDto(row);
 }

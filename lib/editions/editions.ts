@@ -14,6 +14,7 @@ import { findActiveExport } from "./export/active";
 import { findEditionRow, isUuid, lockDraftEdition, lockEdition, lockItem, requireEditor, touch, type LockedEdition } from "./guards";
 import { addItemSchema, editionNameSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema, type EditionNameInput } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
+import { reductionFilesBase } from "@/lib/plates/public";
 
 export interface OtherEditionDto {
   id: string;
@@ -49,6 +50,10 @@ export interface EditionItemDto {
   /** The renditions the pinned version published. */
   renditions: Rendition[];
   captionOverride: string | null;
+  /** The pinned version's rendition sizes, so the builder can compare a slot before it is saved. */
+  imageSizes: Partial<Record<Rendition, PixelSize>>;
+  /** A small picture of the plate (the pinned version's preview). */
+  thumbnailUrl: string;
   available: PixelSize | null;
   needed: PixelSize | null;
   enlargement: number | null;
@@ -124,6 +129,7 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
       plate: { id: plates.id, title: plates.title, slug: plates.slug, state: plates.state, caption: plates.caption, observer: plates.acquiredBy },
       renditions: plateVersions.renditions,
       imageSizes: plateVersions.imageSizes,
+      reductionId: plateVersions.reductionId,
     })
     .from(editionItems)
     .innerJoin(plates, eq(plates.id, editionItems.plateId))
@@ -134,12 +140,14 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
   return {
     ...edition,
     itemCount: rows.length,
-    items: rows.map(({ imageSizes, ...r }) => {
+    items: rows.map(({ imageSizes, reductionId, ...r }) => {
       const available = imageSizes[r.rendition] ?? null;
       const custom = r.slot === "custom" && r.customWidthMm !== null && r.customDpi !== null ? { widthMm: r.customWidthMm, dpi: r.customDpi } : null;
       const need = available && (r.slot !== "custom" || custom) ? compareWithRendition(r.slot, custom, available) : null;
       return {
         ...r,
+        imageSizes,
+        thumbnailUrl: `${reductionFilesBase(reductionId)}/preview.jpg`,
         slotLabel: r.slot === "custom" ? (custom ? `Custom, ${custom.widthMm} mm at ${custom.dpi} dpi` : "Custom (incomplete)") : SLOT_SPECS[r.slot].label,
         available,
         needed: need?.needed ?? null,

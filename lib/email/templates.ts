@@ -68,30 +68,39 @@ export function reviewRequestedMail(
   );
 }
 
-/** To the photographer: a reduction of their set has finished. */
-export function reductionFinishedMail(society: string, to: string, name: string, reduction: { setName: string; url: string }): MailDraft {
+/** To whoever started it: a reduction has finished (a curator's re-reduction says so and links to the review desk). */
+export function reductionFinishedMail(society: string, to: string, name: string, reduction: { setName: string; url: string; isReReduction?: boolean }): MailDraft {
   return draft(
     society,
     to,
-    `Reduction finished: ${reduction.setName}`,
-    [`Hello ${name},`, `The reduction of your bracket set "${reduction.setName}" has finished. Both renditions, the master FITS file and the report are ready.`],
-    { href: reduction.url, label: "See the reduction" },
+    `${reduction.isReReduction ? "Re-reduction" : "Reduction"} finished: ${reduction.setName}`,
+    [
+      `Hello ${name},`,
+      reduction.isReReduction
+        ? `The re-reduction you started of the bracket set "${reduction.setName}" has finished. Its renditions can be compared with the others on the review desk.`
+        : `The reduction of your bracket set "${reduction.setName}" has finished. Both renditions, the master FITS file and the report are ready.`,
+    ],
+    { href: reduction.url, label: reduction.isReReduction ? "Open the set on the review desk" : "See the reduction" },
   );
 }
 
-/** To the photographer: a reduction of their set has failed and will not be tried again. */
-export function reductionFailedMail(society: string, to: string, name: string, reduction: { setName: string; reason: string; url: string }): MailDraft {
+/** To whoever started it: a reduction has failed and will not be tried again. */
+export function reductionFailedMail(society: string, to: string, name: string, reduction: { setName: string; reason: string; url: string; isReReduction?: boolean }): MailDraft {
   return draft(
     society,
     to,
-    `Reduction failed: ${reduction.setName}`,
+    `${reduction.isReReduction ? "Re-reduction" : "Reduction"} failed: ${reduction.setName}`,
     [
       `Hello ${name},`,
-      `The reduction of your bracket set "${reduction.setName}" failed and will not be tried again.`,
+      reduction.isReReduction
+        ? `The re-reduction you started of the bracket set "${reduction.setName}" failed and will not be tried again.`
+        : `The reduction of your bracket set "${reduction.setName}" failed and will not be tried again.`,
       `Reason: ${reduction.reason}`,
-      "Your originals are untouched. Correct what the reason names, then start a new reduction.",
+      reduction.isReReduction
+        ? "The photographer's originals are untouched. Correct what the reason names, then start another re-reduction."
+        : "Your originals are untouched. Correct what the reason names, then start a new reduction.",
     ],
-    { href: reduction.url, label: "See the reduction" },
+    { href: reduction.url, label: reduction.isReReduction ? "Open the set on the review desk" : "See the reduction" },
   );
 }
 
@@ -182,4 +191,48 @@ export function editionExportFailedMail(society: string, to: string, name: strin
     [`Hello ${name},`, `The print bundle of "${edition.title}" could not be made.`, `Reason: ${edition.reason}`, "The edition is unchanged; correct what the reason names and export again."],
     { href: edition.url, label: "Open the edition" },
   );
+}
+
+/** To the photographer: a curator published, withdrew or restored the plate made from their set. */
+export function plateStateMail(
+  society: string,
+  to: string,
+  name: string,
+  plate: { change: "published" | "withdrawn-temporary" | "withdrawn-permanent" | "restored"; title: string; setName: string; reason: string | null; url: string },
+): MailDraft {
+  const title = `"${plate.title}"`;
+  const reason = plate.reason ? [`Reason: ${plate.reason}`] : [];
+  const texts = {
+    published: {
+      subject: `Published: ${plate.title}`,
+      lines: [`Your bracket set "${plate.setName}" is now in the public gallery as the plate ${title}, with your credit.`],
+      label: "See the plate",
+    },
+    "withdrawn-temporary": {
+      subject: `Withdrawn for the time being: ${plate.title}`,
+      lines: [`The curators have taken the plate ${title} out of the gallery for the time being while it is looked at. Its page keeps the record and shows the reason.`, ...reason, "You will hear from us when it is restored."],
+      label: "See the plate's page",
+    },
+    "withdrawn-permanent": {
+      subject: `Withdrawn: ${plate.title}`,
+      lines: [`The curators have withdrawn the plate ${title} for good. Its page keeps the record and shows the reason; your frames and reductions stay in your studio.`, ...reason],
+      label: "See the plate's page",
+    },
+    restored: {
+      subject: `Back in the gallery: ${plate.title}`,
+      lines: [`The plate ${title} is back in the public gallery.`],
+      label: "See the plate",
+    },
+  }[plate.change];
+  return draft(society, to, texts.subject, [`Hello ${name},`, ...texts.lines], { href: plate.url, label: texts.label });
+}
+
+/** To a person an admin invited: a link to choose their password, which also signs them up. */
+export function invitationMail(society: string, to: string, name: string, invite: { invitedBy: string; roles: string[]; url: string; validDays: number }): MailDraft {
+  const lines = [
+    `Hello ${name},`,
+    `${invite.invitedBy} has invited you to the ${society} eclipse workspace${invite.roles.length ? ` as ${invite.roles.join(", ")}` : ""}.`,
+    `Choose a password to start. The link works for ${invite.validDays} days; after that, ask for a new one with "Forgot your password?" on the sign-in page.`,
+  ];
+  return draft(society, to, `You are invited to ${society}`, lines, { href: invite.url, label: "Choose your password" });
 }

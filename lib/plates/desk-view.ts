@@ -6,12 +6,13 @@ import type { PlateTexts } from "./desk-input";
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { auditLog, bracketSets, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { auditLog, bracketSets, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import type { LocationPrecision } from "@/db/schema";
 import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
 import { findPlateRow, pipelineCredit, toPlateLicence } from "./desk";
 import { countOpenReports, listPlateReports, type PlateReportDto } from "./reports";
+import { reductionFilesBase } from "./public";
 
 export interface DeskPlateRowDto {
   id: string;
@@ -88,6 +89,8 @@ export interface DeskPlateDto extends PlateTexts {
   finishedReductions: { id: string; pipelineVersion: string | null; finishedAt: string | null; filter: string; registration: string }[];
   location: LocationCheckDto | null;
   reports: PlateReportDto[];
+  /** The chosen renditions of the current version, as the public viewer takes them (tiles only). */
+  image: { renditions: { key: Rendition; width: number; height: number; tileSource: string }[]; geometry: PlateGeometry };
   history: { action: string; at: string; actorName: string | null; detail: Record<string, unknown> }[];
 }
 
@@ -102,7 +105,15 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     .limit(1);
   const [site] = await db.select({ name: sites.name, publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1);
   const versions = await db
-    .select({ version: plateVersions.version, reductionId: plateVersions.reductionId, renditions: plateVersions.renditions, changeNote: plateVersions.changeNote, createdAt: plateVersions.createdAt })
+    .select({
+      version: plateVersions.version,
+      reductionId: plateVersions.reductionId,
+      renditions: plateVersions.renditions,
+      changeNote: plateVersions.changeNote,
+      createdAt: plateVersions.createdAt,
+      imageSizes: plateVersions.imageSizes,
+      geometry: plateVersions.geometry,
+    })
     .from(plateVersions)
     .where(eq(plateVersions.plateId, plateId))
     .orderBy(desc(plateVersions.version));
@@ -137,7 +148,7 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     withdrawn: plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "", kind: plate.withdrawnKind ?? "temporary" } : null,
     set: { id: set.id, name: set.name, state: set.state, photographer: set.photographer },
     suggestions: { acquiredBy: set.photographer, processedBy: pipelineCredit(currentRed?.pipelineVersion ?? null), licence: toPlateLicence(settings.defaultLicence) },
-    versions: versions.map((v) => ({ ...v, createdAt: v.createdAt.toISOString(), url: `/plates/${plate.slug}/v/${v.version}` })),
+    versions: versions.map((v) => ({ version: v.version, reductionId: v.reductionId, renditions: v.renditions, changeNote: v.changeNote, createdAt: v.createdAt.toISOString(), url: `/plates/${plate.slug}/v/${v.version}` })),
     finishedReductions: finished.map((r) => ({
       id: r.id,
       pipelineVersion: r.pipelineVersion,
@@ -147,6 +158,13 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     })),
     location: site ? checkLocation(site) : null,
     reports: await listPlateReports(db, actor, plateId),
+    image: {
+      renditions: (current?.renditions ?? []).flatMap((key) => {
+        const size = current?.imageSizes[key];
+        return size ? [{ key, width: size.width, height: size.height, tileSource: `${reductionFilesBase(current!.reductionId)}/${key}-iiif/info.json` }] : [];
+      }),
+      geometry: current?.geometry ?? {},
+    },
     history: history.map((h) => ({ action: h.action, at: h.at.toISOString(), actorName: h.actorName, detail: h.detail })),
   };
 }

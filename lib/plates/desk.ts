@@ -2,11 +2,15 @@
 // plate, write what the public reads, publish, withdraw, restore and add
 // versions. Every function takes the actor and requires review:use; every
 // change writes the audit log in the same transaction as the change.
+import { randomUUID } from "node:crypto";
 import { and, eq, sql } from "drizzle-orm";
-import type { Db } from "@/db/client";
+import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { bracketSets, outboxMessages, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
+import { appLink } from "@/lib/bracket-sets/notify";
+import { plateStateMail } from "@/lib/email/templates";
+import { enqueue } from "@/lib/queue/enqueue";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
@@ -159,6 +163,39 @@ export async function updatePlate(db: Db, actor: Actor | null, plateId: string, 
   return changed;
 }
 
+type PlateChange = "published" | "withdrawn-temporary" | "withdrawn-permanent" | "restored";
+
+/**
+ * Writes the photographer's mail about a change of their plate into the
+ * outbox, in the caller's transaction: the change and its mail exist together
+ * or not at all. Returns the outbox id to queue once the transaction commits.
+ */
+async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, reason: string | null): Promise<string | null> {
+  const [owner] = await tx
+    .select({ name: users.name, email: users.email, setName: bracketSets.name })
+    .from(bracketSets)
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(bracketSets.id, plate.bracketSetId))
+    .limit(1);
+  if (!owner) return null;
+  const society = (await findSocietySettings(tx)).name;
+  const id = randomUUID();
+  const mail = plateStateMail(society, owner.email, owner.name, { change, title: plate.title, setName: owner.setName, reason, url: appLink(`/plates/${plate.slug}`) });
+  await tx.insert(outboxMessages).values({ id, ...mail });
+  return id;
+}
+
+/**
+ * After a state change has committed: the tile server forgets what it knew of
+ * the plate's reductions (so a restored plate's images answer at once and a
+ * withdrawn plate's stop at once), and the photographer's mail is queued.
+ */
+async function afterStateChange(db: Db, plateId: string, outboxId: string | null): Promise<void> {
+  const rows = await db.select({ reductionId: plateVersions.reductionId }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
+  for (const { reductionId } of rows) forgetPublicAccess(reductionId);
+  if (outboxId) await enqueue(db, "mail.send", { outboxId });
+}
+
 /** Checks what publishing needs besides an approved set: the texts the public reads. */
 function requireReadyToPublish(plate: Plate): void {
   const fields = [
@@ -176,7 +213,7 @@ export async function publishPlate(db: Db, actor: Actor | null, plateId: string)
   requireReadyToPublish(plate);
   await requireApprovedSet(db, plate.bracketSetId, "its plate can be published");
   await makeWebJpeg(db, plateId, plate.currentVersion);
-  await db.transaction(async (tx) => {
+  const outboxId = await db.transaction(async (tx) => {
     const done = await tx
       .update(plates)
       .set({ state: "published", publishedAt: sql`now()`, updatedAt: sql`now()` })
@@ -184,8 +221,9 @@ export async function publishPlate(db: Db, actor: Actor | null, plateId: string)
       .returning({ id: plates.id });
     if (!done.length) throw new AppError("conflict", `"${plate.title}" changed while you were publishing it; reload and try again.`);
     await recordAudit(tx, { actorId: curator.userId, action: "plate.published", subjectType: "plate", subjectId: plateId, detail: { version: plate.currentVersion } });
+    return writePlateMail(tx, plate, "published", null);
   });
-  forgetPublicAccess();
+  await afterStateChange(db, plateId, outboxId);
 }
 
 /**
@@ -201,15 +239,15 @@ export async function withdrawPlate(db: Db, actor: Actor | null, plateId: string
     const now = plate.state === "withdrawn" ? `withdrawn (${plate.withdrawnKind ?? "temporary"})` : plate.state;
     throw new AppError("conflict", `"${plate.title}" is ${now}; only a published plate, or one withdrawn for the time being, can be withdrawn${kind === "permanent" ? " for good" : ""}.`);
   }
-  await db.transaction(async (tx) => {
+  const outboxId = await db.transaction(async (tx) => {
     await tx
       .update(plates)
       .set({ state: "withdrawn", withdrawnAt: sql`now()`, withdrawnReason: reason, withdrawnKind: kind, updatedAt: sql`now()` })
       .where(eq(plates.id, plateId));
     await recordAudit(tx, { actorId: curator.userId, action: "plate.withdrawn", subjectType: "plate", subjectId: plateId, detail: { from: plate.state, kind, reason } });
+    return writePlateMail(tx, plate, kind === "temporary" ? "withdrawn-temporary" : "withdrawn-permanent", reason);
   });
-  // Its files stop answering at once in this process (others follow within seconds).
-  forgetPublicAccess();
+  await afterStateChange(db, plateId, outboxId);
 }
 
 /** A plate withdrawn for the time being goes back to the gallery. One withdrawn for good stays withdrawn. */
@@ -218,15 +256,15 @@ export async function restorePlate(db: Db, actor: Actor | null, plateId: string)
   const plate = await findPlateRow(db, plateId);
   if (plate.state !== "withdrawn") throw new AppError("conflict", `"${plate.title}" is ${plate.state}; only a withdrawn plate can be restored.`);
   if (plate.withdrawnKind === "permanent") throw new AppError("conflict", `"${plate.title}" was withdrawn for good and cannot be restored.`);
-  await db.transaction(async (tx) => {
+  const outboxId = await db.transaction(async (tx) => {
     await tx
       .update(plates)
       .set({ state: "published", withdrawnAt: null, withdrawnReason: null, withdrawnKind: null, updatedAt: sql`now()` })
       .where(eq(plates.id, plateId));
     await recordAudit(tx, { actorId: curator.userId, action: "plate.restored", subjectType: "plate", subjectId: plateId, detail: { reason: plate.withdrawnReason } });
+    return writePlateMail(tx, plate, "restored", null);
   });
-  // Its images answer again at once, not after the remembered "not public" expires.
-  forgetPublicAccess();
+  await afterStateChange(db, plateId, outboxId);
 }
 
 /**
@@ -253,7 +291,7 @@ export async function addPlateVersion(db: Db, actor: Actor | null, plateId: stri
     await recordAudit(tx, { actorId: curator.userId, action: "plate.version-added", subjectType: "plate", subjectId: plateId, detail: { from: locked.current, to: next, reductionId, changeNote } });
     return next;
   });
-  forgetPublicAccess();
+  forgetPublicAccess(reductionId);
   if (plate.state !== "draft") await makeWebJpeg(db, plateId, version);
   return { version };
 }

@@ -23,3 +23,13 @@ export const LICENCE_INFO: Record<PlateLicence, LicenceInfo> = {
   "CC0-1.0": { id: "CC0-1.0", name: "Creative Commons Zero 1.0 Universal (public domain dedication)", shortName: "CC0 1.0", deedUrl: "https://creativecommons.org/publicdomain/zero/1.0/", rightsUri: "http://creativecommons.org/publicdomain/zero/1.0/", allowsDownload: true },
   "all-rights-reserved": { id: "all-rights-reserved", name: "All rights reserved", shortName: "All rights reserved", deedUrl: "http://rightsstatements.org/vocab/InC/1.0/", rightsUri: "http://rightsstatements.org/vocab/InC/1.0/", allowsDownload: false },
 };
+
+/**
+ * What a curator must know before a plate under this licence is made public
+ * (or taken out of view): Creative Commons grants cannot be called back.
+ * Null for all rights reserved.
+ */
+export function licenceWarning(licence: PlateLicence): string | null {
+  if (licence === "all-rights-reserved") return null;
+  return `Creative Commons licences cannot be revoked: once published under ${LICENCE_INFO[licence].shortName}, copies already taken keep that licence even if the plate is withdrawn or relicensed.`;
+}

@@ -53,7 +53,12 @@ interface PublicAccess {
 }
 const publicAccess = new Map<string, PublicAccess & { until: number }>();
 
-/** Drops what this process remembers of a reduction's public access (after a withdrawal or a restore). */
+/**
+ * Drops what this process remembers of one reduction's public access, or of all
+ * (after a plate is published, withdrawn, restored or given a new version, or a
+ * site's precision changes), so the change shows on the very next request.
+ * (Other web processes still wait out PUBLIC_ACCESS_TTL_MS.)
+ */
 export function forgetPublicAccess(reductionId?: string): void {
   if (!reductionId) return publicAccess.clear();
   publicAccess.delete(`${reductionId}:download`);

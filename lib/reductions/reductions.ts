@@ -147,24 +147,35 @@ export async function listReductions(db: DbOrTx, actor: Actor | null, setId: str
 }
 
 /**
- * Tells the photographer (the set's owner) that a reduction finished or failed
- * for good, with a link to it. One outbox message per reduction: a repeated
- * job, or a crash between the state change and this call, sends it once.
+ * Tells the person who started the reduction that it finished or failed for
+ * good, with a link to it: the photographer for their own runs (link to the
+ * studio), the curator for a re-reduction started on the review desk (link to
+ * the set on the desk; the photographer is not written to about curators'
+ * trials). Runs without a known starter go to the set's owner. One outbox
+ * message per reduction: a repeated job, or a crash between the state change
+ * and this call, sends it once.
  */
 export async function notifyReductionOutcome(db: DbOrTx, reductionId: string): Promise<void> {
   const [row] = await db
-    .select({ state: reductions.state, error: reductions.error, setName: bracketSets.name, ownerName: users.name, ownerEmail: users.email })
+    .select({ state: reductions.state, error: reductions.error, setId: bracketSets.id, setName: bracketSets.name, ownerId: bracketSets.ownerId, requestedBy: reductions.requestedBy })
     .from(reductions)
     .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
     .where(eq(reductions.id, reductionId))
     .limit(1);
   if (!row || (row.state !== "done" && row.state !== "failed")) return;
+  const byCurator = row.requestedBy !== null && row.requestedBy !== row.ownerId;
+  const [to] = await db
+    .select({ name: users.name, email: users.email })
+    .from(users)
+    .where(eq(users.id, byCurator ? row.requestedBy! : row.ownerId))
+    .limit(1);
+  if (!to) return;
   const society = (await findSocietySettings(db)).name;
-  const url = appLink(`/studio/reductions/${reductionId}`);
+  const url = appLink(byCurator ? `/review/sets/${row.setId}#reductions-h` : `/studio/reductions/${reductionId}`);
+  const outcome = { setName: row.setName, url, isReReduction: byCurator };
   const draft =
     row.state === "done"
-      ? reductionFinishedMail(society, row.ownerEmail, row.ownerName, { setName: row.setName, url })
-      : reductionFailedMail(society, row.ownerEmail, row.ownerName, { setName: row.setName, reason: row.error ?? "no reason was recorded", url });
+      ? reductionFinishedMail(society, to.email, to.name, outcome)
+      : reductionFailedMail(society, to.email, to.name, { ...outcome, reason: row.error ?? "no reason was recorded" });
   await queueMailOnce(db, `reduction-outcome-${reductionId}`, draft);
 }

@@ -6,6 +6,16 @@ export const CREDIT_PLACEHOLDERS = ["acquiredBy", "processedBy", "society", "yea
 export type CreditPlaceholder = (typeof CREDIT_PLACEHOLDERS)[number];
 export type CreditValues = Partial<Record<CreditPlaceholder, string>>;
 
+/**
+ * Names in words for the two credits, which the settings page offers: {observer}
+ * is {acquiredBy}, {processing} is {processedBy}. Templates written with either
+ * name work.
+ */
+export const CREDIT_PLACEHOLDER_WORDS: Record<string, CreditPlaceholder> = { observer: "acquiredBy", processing: "processedBy" };
+const OFFERED = ["observer", "processing", "society", "year", "licence"];
+const resolve = (name: string): CreditPlaceholder | undefined =>
+  CREDIT_PLACEHOLDER_WORDS[name] ?? ((CREDIT_PLACEHOLDERS as readonly string[]).includes(name) ? (name as CreditPlaceholder) : undefined);
+
 export const DEFAULT_CREDIT_TEMPLATE = "{acquiredBy} / {society}; processing: {processedBy}";
 
 const TOKEN = /\{([^{}]*)\}/g;
@@ -14,8 +24,8 @@ const TOKEN = /\{([^{}]*)\}/g;
 export function checkCreditTemplate(template: string): string[] {
   const problems: string[] = [];
   for (const m of template.matchAll(TOKEN)) {
-    if (!(CREDIT_PLACEHOLDERS as readonly string[]).includes(m[1])) {
-      problems.push(`unknown placeholder {${m[1]}}; use ${CREDIT_PLACEHOLDERS.map((p) => `{${p}}`).join(", ")}`);
+    if (!resolve(m[1])) {
+      problems.push(`unknown placeholder {${m[1]}}; use ${OFFERED.map((p) => `{${p}}`).join(", ")}`);
     }
   }
   const rest = template.replace(TOKEN, "");
@@ -32,9 +42,9 @@ export function buildCreditLine(template: string, values: CreditValues): string 
   const problems = checkCreditTemplate(template);
   if (problems.length) throw new Error(`The credit-line template "${template}" has ${problems.join("; ")}.`);
   return template
-    .replace(TOKEN, (_, key: CreditPlaceholder) => {
-      const v = values[key]?.trim();
-      if (!v) throw new Error(`The credit line needs a value for {${key}}.`);
+    .replace(TOKEN, (_, name: string) => {
+      const v = values[resolve(name)!]?.trim();
+      if (!v) throw new Error(`The credit line needs a value for {${name}}.`);
       return v;
     })
     .replace(/\s+/g, " ")

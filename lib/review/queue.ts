@@ -9,7 +9,7 @@ import { bracketSets, frames, reductions, reviewAssignments, reviewDecisions, si
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
-import { REVIEW_STATES, type ReviewState } from "./state-machine";
+import { REVIEW_STATES, STATE_LABELS, type ReviewState } from "./state-machine";
 import { strictNumber } from "@/lib/strict-number";
 
 /** The states the desk shows: a set still gathering frames is the photographer's alone. */
@@ -21,12 +21,12 @@ export const QUEUE_PAGE_SIZE = 25;
 const blankToUndefined = (v: unknown) => (v === "" || v === null ? undefined : v);
 
 export const queueQuerySchema = z.object({
-  state: z.preprocess(blankToUndefined, z.enum([...QUEUE_STATES, "all"] as const, { error: `expected all or one of ${QUEUE_STATES.join(", ")}` }).default("awaiting-review")),
+  state: z.preprocess(blankToUndefined, z.enum([...QUEUE_STATES, "all"] as const, { error: `must be all or one of ${QUEUE_STATES.map((st) => STATE_LABELS[st]).join(", ")}` }).default("awaiting-review")),
   eclipse: z.preprocess(blankToUndefined, z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "expected an eclipse date such as 2027-08-02" }).optional()),
   photographer: z.preprocess(blankToUndefined, z.string().min(1).max(64).optional()),
-  mine: z.preprocess(blankToUndefined, z.enum(["1"], { error: "expected 1 or nothing" }).optional()),
-  sort: z.preprocess(blankToUndefined, z.enum(QUEUE_SORTS, { error: `expected one of ${QUEUE_SORTS.join(", ")}` }).default("submitted")),
-  dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"], { error: "expected asc or desc" }).default("asc")),
+  mine: z.preprocess(blankToUndefined, z.enum(["1"], { error: "must be on or off" }).optional()),
+  sort: z.preprocess(blankToUndefined, z.enum(QUEUE_SORTS, { error: "is not a column the queue sorts by" }).default("submitted")),
+  dir: z.preprocess(blankToUndefined, z.enum(["asc", "desc"], { error: "must be ascending or descending" }).default("asc")),
   page: strictNumber(z.number({ error: "expected a page number" }).int().min(1).max(10_000).default(1)),
 });
 export type QueueQuery = z.infer<typeof queueQuerySchema>;
@@ -62,7 +62,7 @@ export interface QueuePageDto {
 const assignee = alias(users, "assignee");
 // The last time the photographer sent the set; sets sent before the history existed fall back to their last change.
 const submittedAt = sql<Date>`coalesce((select max(${reviewDecisions.createdAt}) from ${reviewDecisions} where ${reviewDecisions.bracketSetId} = ${bracketSets.id} and ${reviewDecisions.action} = 'submit'), ${bracketSets.updatedAt})`;
-const frameCount = sql<number>`(select count(*)::int from ${frames} where ${frames.bracketSetId} = ${bracketSets.id} and ${frames.kind} = 'light')`;
+const frameCount = sql<number>`(select count(*)::int from ${frames} where ${frames.bracketSetId} = ${bracketSets.id} and ${frames.kind} = 'light' and ${frames.included} = true)`;
 const finishedReductions = sql<number>`(select count(*)::int from ${reductions} where ${reductions.bracketSetId} = ${bracketSets.id} and ${reductions.state} = 'done')`;
 
 export async function listReviewQueue(db: DbOrTx, actor: Actor | null, query: QueueQuery): Promise<QueuePageDto> {
@@ -185,7 +185,7 @@ export async function assignToMe(db: DbOrTx, actor: Actor | null, input: z.infer
   return { changed: rows.length };
 }
 
-const CSV_HEADER = ["id", "name", "state", "eclipse", "site", "photographer", "light_frames", "finished_reductions", "submitted_at", "in_hand_of"];
+const CSV_HEADER = ["id", "name", "state", "eclipse", "site", "photographer", "included_light_frames", "finished_reductions", "submitted_at", "in_hand_of"];
 
 /** One CSV cell: quoted when needed, and a leading = + - @ neutralised so spreadsheets do not run it as a formula. */
 export function csvCell(v: string | number | null): string {

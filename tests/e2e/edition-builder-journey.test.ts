@@ -15,6 +15,7 @@ import { addEditionItem, createEdition, findEdition, updateEditionItem } from "@
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { signIn } from "../support/sign-in";
+import { expectPeopleWording } from "../support/wording";
 import { APP, requireTestDatabase } from "../support/env";
 import { createMember, createSetFor, ECLIPSE_ID } from "../integration/bracket-upload-helpers";
 
@@ -90,6 +91,31 @@ describe("the edition builder", () => {
     await page.goto(`/editions/${editionId}`);
     await page.getByRole("heading", { level: 1, name: `Autumn bulletin ${tag}` }).waitFor();
     expect(await seriousViolations(page, "#main")).toEqual([]);
+
+    await expectPeopleWording(page);
+    // Each plate shows its thumbnail, and its own caption as text beside the override (not as a placeholder).
+    expect(await page.locator('ol[aria-label="Plates in print order"] img[src$="/preview.jpg"]').count()).toBe(3);
+    const firstLayout = page.getByRole("form", { name: `Layout of “${titles[0]}”` });
+    await firstLayout.getByText("Synthetic corona for the builder journey.").waitFor();
+    expect(await firstLayout.getByLabel("Caption in this edition").getAttribute("placeholder")).toBeNull();
+    // The needed-against-available panel follows the slot before it is saved: a cover needs 2480 px of the 1024 there are.
+    await firstLayout.getByLabel("Layout slot").selectOption({ label: "Cover, 210 mm at 300 dpi" });
+    const panel = firstLayout.getByRole("status").filter({ hasText: "Pixels needed and available" });
+    await panel.getByText("not saved yet").waitFor();
+    await panel.getByText("2480 x 1860 px", { exact: true }).waitFor();
+    await panel.getByText(/would have to be enlarged by 142%/).waitFor();
+    await firstLayout.getByLabel("Layout slot").selectOption({ label: "Web, 2048 px wide" });
+    await panel.getByText("2048 x 1536 px", { exact: true }).waitFor();
+    await firstLayout.getByLabel("Layout slot").selectOption({ label: "Custom width in mm and dpi" });
+    await firstLayout.getByLabel("Width (mm)").fill("60");
+    await firstLayout.getByLabel("Resolution (dpi)").fill("150");
+    // round(60 / 25.4 x 150) = 354 px: large enough.
+    await panel.getByText("354 x 266 px", { exact: true }).waitFor();
+    await panel.getByText("Large enough: no enlargement.").waitFor();
+    await snap(page, "edition-builder-00-live-panel");
+    // Nothing was saved by choosing.
+    expect((await findEdition(db, editor, editionId)).items[0].slot).not.toBe("custom");
+    await page.reload();
 
     // Rename: an empty title is named under its label; then a good one is saved and announced.
     const name = page.getByRole("form", { name: "Name of the edition" });

@@ -17,6 +17,8 @@ import { APP, requireTestDatabase } from "../support/env";
 import { signIn } from "../support/sign-in";
 import { readZipEntries } from "../support/zip";
 import { makeExportablePlate, person } from "../integration/edition-fixtures";
+import { PDFDocument } from "pdf-lib";
+import { expectPeopleWording } from "../support/wording";
 
 requireTestDatabase();
 const db = getDb();
@@ -45,6 +47,7 @@ describe("the editor's edition", () => {
     const page = await signIn(ctx, person("editor").email);
 
     await page.goto("/editions");
+    await expectPeopleWording(page);
     await page.getByLabel("Title").fill(`Corona Notes ${tag}`);
     await page.getByLabel("Issue label").fill("No. 42");
     await page.getByRole("button", { name: "Start the edition" }).click();
@@ -69,6 +72,7 @@ describe("the editor's edition", () => {
     }
     // The 1600 px rendition is too small for 180 mm at 300 dpi (2126 px): the builder warns.
     await page.getByText(/needs 2126 x 1595 px but the rendition has 1600 x 1200 px/).waitFor();
+    await expectPeopleWording(page);
     await snap(page, "editions-01-laid-out");
 
     const panel = page.getByRole("region", { name: "Print bundle" });
@@ -92,6 +96,14 @@ describe("the editor's edition", () => {
     expect([...entries.keys()].filter((n) => n !== "metadata.json").sort()).toEqual(meta.files.map((f) => f.name).sort());
     expect(meta.files.filter((f) => f.kind === "tiff-cmyk")).toHaveLength(2);
     expect((await readFile(path)).subarray(0, 2).toString("latin1")).toBe("PK");
+    // The printer's README names the CMYK profile in words and says how to have their own used.
+    const readme = entries.get("README.txt")!.toString("utf8");
+    expect(readme).toContain("“Chemical proof”: the general-purpose CMYK profile built into the libvips image library");
+    expect(readme).toMatch(/USING YOUR OWN PROFILE\nTo have the CMYK files made with your press and paper profile/);
+    expect(readme).toMatch(/CHECK BEFORE PRINTING\n- Plate 2: /);
+    // Every page of the proof has one size; the full-width plate fits on A4.
+    const proof = await PDFDocument.load(entries.get("proof.pdf")!);
+    expect(new Set(proof.getPages().map((p) => `${Math.round(p.getWidth())}x${Math.round(p.getHeight())}`)).size).toBe(1);
 
     // Exported: the plates are fixed until the editor reopens the edition.
     await page.getByRole("button", { name: "Reopen for changes" }).waitFor();

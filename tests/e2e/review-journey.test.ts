@@ -1,7 +1,8 @@
 // From a member's submission to a public plate, in the browser: a curator asks
 // for changes with a reason, the member reads the message, fixes a frame's
-// exposure and resubmits, the curator re-reduces with another filter strength,
-// approves, writes the plate and publishes it, and a visitor finds it in the
+// exposure and resubmits, the curator re-reduces with another filter strength
+// (staying on the desk, mailed when it finishes), compares the two runs from their
+// tiles, zoomed in, approves, writes the plate and publishes it, and a visitor finds it in the
 // gallery. The set, its frames and its first reduction are prepared through
 // the same services the pages call. Screenshots go to .artifacts/.
 import { eq } from "drizzle-orm";
@@ -9,7 +10,7 @@ import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { findRolesOfUser } from "@/db/queries/roles";
-import { auditLog, frames, kits, reductions, sites, users } from "@/db/schema";
+import { auditLog, frames, kits, outboxMessages, reductions, sites, users } from "@/db/schema";
 import { DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { createBracketSet, submitBracketSet } from "@/lib/bracket-sets";
@@ -17,7 +18,10 @@ import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
+import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
+import { firstLink, waitForMail } from "../support/mailbox";
+import { expectPeopleWording } from "../support/wording";
 import { signIn } from "../support/sign-in";
 import { APP, requireTestDatabase } from "../support/env";
 import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
@@ -95,6 +99,11 @@ describe("from submission to a public plate", () => {
 
     // The queue lists the set; the curator asks for changes with a reason and a message.
     await desk.goto("/review");
+    await expectPeopleWording(desk);
+    // The queue counts the included light frames (all four here).
+    await desk.getByRole("columnheader", { name: /Included light frames/ }).waitFor();
+    const row = desk.getByRole("row").filter({ has: desk.getByRole("link", { name: setName }) });
+    expect((await row.getByRole("cell").allInnerTexts()).map((t) => t.trim())).toContain("4");
     await desk.getByRole("link", { name: setName }).click();
     await desk.waitForURL(new RegExp(`/review/sets/${setId}`));
     await desk.getByRole("radio", { name: /Ask for changes/ }).check();
@@ -102,12 +111,14 @@ describe("from submission to a public plate", () => {
     await desk.getByLabel("Message to the photographer").fill("cadiz-03.fits says 1/500 s but looks like 1/30 s; please check your log.");
     await desk.getByRole("button", { name: "Ask for changes" }).click();
     await desk.getByText(/Done: ask for changes/).waitFor({ timeout: 15_000 });
+    await expectPeopleWording(desk);
     await snap(desk, "40-desk-changes-requested");
 
     // The member reads the message, fixes the exposure and sends the set again.
     const studio = await signIn(memberCtx, photographer.email);
     await studio.goto(`/studio/sets/${setId}`);
     await studio.getByText("cadiz-03.fits says 1/500 s but looks like 1/30 s").first().waitFor();
+    await expectPeopleWording(studio);
     await studio.getByLabel("Exposure of cadiz-03.fits", { exact: true }).fill("1/30");
     await studio.getByRole("button", { name: "Save the exposure of cadiz-03.fits" }).click();
     await studio.getByText("cadiz-03.fits: exposure set to 1/30 s.").waitFor({ timeout: 15_000 });
@@ -124,13 +135,38 @@ describe("from submission to a public plate", () => {
     await desk.getByText("Re-reduce with other parameters").click();
     await desk.getByLabel(/Structure strength/).fill("0.5");
     await desk.getByRole("button", { name: "Start a re-reduction" }).click();
-    await desk.waitForURL(/\/studio\/reductions\/[0-9a-f-]{36}$/, { timeout: 20_000 });
+    // The curator stays on the review desk; the new run is said to be queued.
+    await desk.getByText(/Re-reduction started/).waitFor({ timeout: 20_000 });
+    expect(new URL(desk.url()).pathname).toBe(`/review/sets/${setId}`);
     await waitForReductions(2);
+    // The re-run's news goes to the curator who started it, with the desk's link; the photographer hears only of their own run.
+    const curatorMail = await waitForMail(curator.email, (m) => m.subject === `Re-reduction finished: ${setName}`, 60_000);
+    expect(firstLink(curatorMail.text)).toBe(`${APP}/review/sets/${setId}#reductions-h`);
+    const toPhotographer = await db.select({ subject: outboxMessages.subject }).from(outboxMessages).where(eq(outboxMessages.to, photographer.email));
+    expect(toPhotographer.filter((m) => m.subject.includes(`finished: ${setName}`)).map((m) => m.subject)).toEqual([`Reduction finished: ${setName}`]);
     const [second] = await db.select({ params: reductions.params }).from(reductions).where(eq(reductions.bracketSetId, setId)).orderBy(reductions.createdAt).offset(1);
     expect(second.params.filterStrength).toBe(0.5);
 
-    // Approve, make the plate from the new reduction, write it and publish it.
+    // The comparison draws both renditions from their tile pyramids, and zooming loads finer tiles.
+    const tiles: string[] = [];
+    const previews: string[] = [];
+    desk.on("response", (r) => {
+      if (/preview(-structure)?\.jpg/.test(r.url())) previews.push(r.url());
+      if (/\/iiif\/reductions\/[0-9a-f-]{36}\/(natural|structure)-iiif\//.test(r.url()) && r.status() === 200) tiles.push(r.url());
+    });
     await desk.goto(`/review/sets/${setId}`);
+    await desk.getByTestId("compare-left").locator("canvas").first().waitFor({ timeout: 20_000 });
+    await desk.getByTestId("compare-right").locator("canvas").first().waitFor();
+    await waitFor("tiles of both pictures", async () => (tiles.some((u) => u.endsWith("info.json")) && tiles.some((u) => u.endsWith("default.jpg")) ? true : undefined), 20_000);
+    // This small test rendition is one tile at full size; zooming scales it up without going back to a preview.
+    for (let i = 0; i < 2; i++) await desk.getByRole("button", { name: "Zoom in" }).click();
+    await desk.getByRole("status").filter({ hasText: /^[2-9]\.\d×$/ }).waitFor({ timeout: 15_000 });
+    expect(previews).toEqual([]);
+    expect(await seriousViolations(desk, "#main")).toEqual([]);
+    await expectPeopleWording(desk);
+    await snap(desk, "41b-desk-compare-zoomed");
+
+    // Approve, make the plate from the new reduction, write it and publish it.
     await desk.getByRole("radio", { name: /Approve/ }).check();
     await desk.getByRole("button", { name: "Approve" }).click();
     await desk.getByText(/Done: approve/).waitFor({ timeout: 15_000 });
@@ -142,7 +178,11 @@ describe("from submission to a public plate", () => {
     await desk.getByLabel("Alt text").fill("A black Moon ringed by a bright inner corona with fine streamers.");
     await desk.getByRole("button", { name: "Save the texts" }).click();
     await desk.getByRole("button", { name: "Publish the plate" }).click();
+    const confirm = desk.getByRole("dialog", { name: `Publish “${plateTitle}”?` });
+    await confirm.waitFor();
+    await confirm.getByRole("button", { name: "Publish" }).click();
     await desk.getByText("Published.").waitFor({ timeout: 30_000 });
+    await expectPeopleWording(desk);
     await snap(desk, "42-plate-published");
 
     // Every decision is in the audit log.
@@ -155,6 +195,8 @@ describe("from submission to a public plate", () => {
     await visitor.goto(`/gallery?q=${encodeURIComponent(tag)}`);
     await visitor.getByRole("link", { name: new RegExp(plateTitle) }).click();
     await visitor.getByRole("heading", { level: 1, name: plateTitle }).waitFor();
+    await expectPeopleWording(visitor);
+    await waitForMail(photographer.email, (m) => m.subject === `Published: ${plateTitle}`);
     await snap(visitor, "43-visitor-sees-plate");
     await Promise.all([curatorCtx.close(), memberCtx.close(), visitorCtx.close()]);
   }, 420_000);

@@ -9,10 +9,9 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { and, eq } from "drizzle-orm";
 import { ExifTool } from "exiftool-vendored";
-import sharp from "sharp";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { auditLog, bracketSets, plateReports, reductions } from "@/db/schema";
+import { auditLog, bracketSets, plateReports } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { addPlateVersion, createDraftPlate, publishPlate, restorePlate, updatePlate, withdrawPlate } from "@/lib/plates/desk";
@@ -21,11 +20,11 @@ import { findPublicPlate, listPublishedPlates } from "@/lib/plates/public";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
 import { requireTestDatabase } from "../support/env";
 import { Client } from "../support/http";
 import { waitForMail } from "../support/mailbox";
 import { createMember, createSetFor } from "./bracket-upload-helpers";
+import { makeFinishedReduction } from "./plate-fixtures";
 
 requireTestDatabase();
 const db = getDb();
@@ -48,27 +47,7 @@ let secondReduction = "";
 let plateId = "";
 let slug = "";
 
-/** A finished reduction with its report, pyramid descriptors and a small preview in the S3 fake. */
-async function finishedReduction(forSet: string, shade: number): Promise<string> {
-  const [red] = await db.insert(reductions).values({ bracketSetId: forSet, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(forSet)}reductions/${red.id}/`;
-  const ref = (key: string) => ({ bucket: bucketName("derived"), key: prefix + key });
-  const putJson = (key: string, value: unknown) => putObjectBytes(ref(key), Buffer.from(JSON.stringify(value)), "application/json");
-  await putJson("report.json", {
-    frames: [{ exposure: { seconds: 0.004 }, captureTimeUtc: "2027-08-02T10:05:10.000Z" }],
-    overall: { masterSize: { width: 64, height: 48 }, sky: { sunCentrePx: { x: 32, y: 24 }, sunRadiusPx: 10, plateScaleArcsecPerPx: 90 } },
-  });
-  for (const r of ["natural", "structure"]) await putJson(`tiles/${r}-iiif/info.json`, { width: 64, height: 48 });
-  const preview = await sharp({ create: { width: 64, height: 48, channels: 3, background: { r: shade, g: shade, b: shade } } })
-    .jpeg()
-    .toBuffer();
-  await putObjectBytes(ref("preview.jpg"), preview, "image/jpeg");
-  await db
-    .update(reductions)
-    .set({ state: "done", progress: 1, pipelineVersion: "0.9.0-test", finishedAt: new Date(), outputs: { prefix, report: `${prefix}report.json`, tiles: `${prefix}tiles/` } })
-    .where(eq(reductions.id, red.id));
-  return red.id;
-}
+const finishedReduction = (forSet: string, shade: number) => makeFinishedReduction(db, forSet, shade);
 
 const texts = () => ({
   title: `Outer corona over Luxor ${tag}`,

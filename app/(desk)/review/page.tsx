@@ -10,7 +10,8 @@ import { Select } from "@/components/ui/select";
 import { getDb } from "@/db/client";
 import { listReviewQueue, QUEUE_STATES, queueQuerySchema, type QueueQuery, type QueueSort } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
-import { fieldProblems } from "@/lib/validation";
+import { fieldProblems, summarizeProblems } from "@/lib/validation";
+import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Review desk" };
 
@@ -20,7 +21,7 @@ const COLUMNS: { key: QueueSort | "reductions" | "assigned"; label: string; sort
   { key: "photographer", label: "Photographer", sortable: true },
   { key: "eclipse", label: "Eclipse", sortable: true },
   { key: "state", label: "State", sortable: true },
-  { key: "frames", label: "Light frames", sortable: true },
+  { key: "frames", label: "Included light frames", sortable: true },
   { key: "reductions", label: "Finished reductions", sortable: false },
   { key: "assigned", label: "In hand of", sortable: false },
 ];
@@ -65,7 +66,7 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
       </PageTitle>
       {problems.length ? (
         <p role="alert" className="mb-4 text-danger">
-          Ignored a filter in the address: {problems.map((p) => `${p.field} ${p.message}`).join("; ")}.
+          Ignored a filter in the address: {summarizeProblems(problems)}
         </p>
       ) : null}
 
@@ -90,7 +91,7 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
         <input type="hidden" name="sort" value={query.sort} />
         <input type="hidden" name="dir" value={query.dir} />
         <Field label="Eclipse">
-          <Select name="eclipse" defaultValue={query.eclipse ?? ""} placeholder="Every eclipse" options={result.eclipses.map((e) => ({ value: e, label: e }))} />
+          <Select name="eclipse" defaultValue={query.eclipse ?? ""} placeholder="Every eclipse" options={result.eclipses.map((e) => ({ value: e, label: formatDate(e) || e }))} />
         </Field>
         <Field label="Photographer">
           <Select name="photographer" defaultValue={query.photographer ?? ""} placeholder="Everyone" options={result.photographers.map((p) => ({ value: p.id, label: p.name }))} />

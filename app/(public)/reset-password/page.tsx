@@ -4,11 +4,12 @@ import { PageTitle } from "@/components/page-title";
 
 export const metadata: Metadata = { title: "Choose a new password" };
 
-export default async function ResetPasswordPage({ searchParams }: { searchParams: Promise<{ token?: string; error?: string }> }) {
-  const { token, error } = await searchParams;
+export default async function ResetPasswordPage({ searchParams }: { searchParams: Promise<{ token?: string; error?: string; invited?: string }> }) {
+  const { token, error, invited } = await searchParams;
   return (
     <div className="mx-auto max-w-md">
-      <PageTitle title="Choose a new password" />
+      {/* An invitation's link lands here too: the invited person chooses their first password. */}
+      <PageTitle title={invited ? "Choose your password" : "Choose a new password"} />
       <ResetPasswordForm token={token} linkError={error} />
     </div>
   );

@@ -28,12 +28,13 @@ import { LICENCE_INFO } from "@/lib/plates/licences";
 import { bucketName, isMissingObject, putObjectFile, readSmallObject } from "@/lib/storage";
 import { buildFileNames, MAX_FILE_NAME_LENGTH, safePart } from "../file-names";
 import { SLOT_SPECS, slotWidthPx } from "../print-sizes";
-import { embedTags, readProfileDescription } from "./embed";
+import { embedTags } from "./embed";
 import { buildCaptionsText, buildCreditsText, type HouseStyleEntry } from "./house-style";
 import { buildPlateMetadata, metadataTags, type ExportPlateInput, type MasterSky, type PlateMetadata } from "./metadata";
 import { buildProofPdf, type ProofPage } from "./proof";
 import { planPrintSize, renderPlateFiles, type PrintPlan, type RenderedFile } from "./render";
 import { toPublicObserver } from "@/lib/sites/precision";
+import { buildPrinterReadme, describeCmykProfile, readProfileFacts, README_FILE, type ProfileFacts } from "./printer-notes";
 
 /** Largest rendition PNG read into memory (a 16-bit RGB 8000 x 8000 image is 384 MB raw, far less as PNG). */
 const MAX_RENDITION_BYTES = 1024 ** 3;
@@ -196,7 +197,8 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
     const proofPages: ProofPage[] = [];
     const houseEntries: HouseStyleEntry[] = [];
     const warnings: string[] = [];
-    let cmykProfile: string | null = null;
+    let cmykFacts: ProfileFacts | null = null;
+    let cmykRead = false;
     const perItem = 0.8 / items.length;
 
     for (const [i, it] of items.entries()) {
@@ -265,7 +267,10 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       const tags = metadataTags(metadata, plan.dpi);
       for (const f of files) await embedTags(f.path, tags);
       const cmykFile = files.find((f) => f.kind === "tiff-cmyk");
-      if (cmykFile && !cmykProfile) cmykProfile = (await readProfileDescription(cmykFile.path)) ?? "unnamed profile";
+      if (cmykFile && !cmykRead) {
+        cmykFacts = await readProfileFacts(cmykFile.path);
+        cmykRead = true;
+      }
       for (const f of files) listed.push({ name: f.name, path: f.path, kind: f.kind, position: it.position });
 
       platesMeta.push({
@@ -315,9 +320,21 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       await writeFile(join(dir, name), text, "utf8");
       listed.push({ name, path: join(dir, name), kind: name === CAPTIONS_FILE ? "captions" : "credits", position: null });
     }
+    const readme = buildPrinterReadme({
+      editionName: `${edition.title}${edition.issueLabel ? `, ${edition.issueLabel}` : ""}`,
+      societyName: society.name,
+      embargoDate: edition.embargoDate,
+      plateCount: items.length,
+      files: [...listed, { name: PROOF_FILE, kind: "proof", position: null }],
+      cmyk: options.cmyk ? { facts: cmykFacts, custom: Boolean(cmykProfilePath) } : null,
+      greyscale: options.greyscale,
+      warnings,
+    });
+    await writeFile(join(dir, README_FILE), readme, "utf8");
     const proof = await buildProofPdf({ ...styleEdition, createdAt: new Date().toISOString() }, proofPages);
     await writeFile(join(dir, PROOF_FILE), proof);
     listed.push({ name: PROOF_FILE, path: join(dir, PROOF_FILE), kind: "proof", position: null });
+    listed.push({ name: README_FILE, path: join(dir, README_FILE), kind: "readme", position: null });
 
     const files: (ExportFileEntry & { kind: string; position: number | null; sha256: string })[] = [];
     for (const f of listed) files.push({ name: f.name, kind: f.kind, position: f.position, bytes: (await stat(f.path)).size, sha256: await sha256File(f.path) });
@@ -326,7 +343,8 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
       generatedAt: new Date().toISOString(),
       society: society.name,
       edition: { id: edition.id, title: edition.title, kind: edition.kind, issueLabel: edition.issueLabel, embargoDate: edition.embargoDate },
-      options: { ...options, cmykProfile: options.cmyk ? cmykProfile : null, greyscaleProfile: options.greyscale ? "none embedded (16-bit grey, sRGB tone curve)" : null },
+      options: { ...options, cmykProfile: options.cmyk ? (cmykFacts?.description ?? "unnamed profile") : null,
+        cmykProfileAbout: options.cmyk ? describeCmykProfile(cmykFacts, Boolean(cmykProfilePath)) : null, greyscaleProfile: options.greyscale ? "none embedded (16-bit grey, sRGB tone curve)" : null },
       files,
       plates: platesMeta,
       warnings,

@@ -39,10 +39,3 @@ export async function embedTags(path: string, tags: Record<string, ExifTagValue>
 export async function readTags(path: string, groups: string[] = ["-XMP:all", "-GPS:all", "-ICC_Profile:ProfileDescription", "-IFD0:all", "-JFIF:all"]): Promise<Record<string, unknown>> {
   return (await exportExifTool().readRaw(path, { readArgs: ["-G1", "-n", ...groups] })) as Record<string, unknown>;
 }
-
-/** The description inside a file's embedded ICC profile, or null. */
-export async function readProfileDescription(path: string): Promise<string | null> {
-  const tags = await readTags(path, ["-ICC_Profile:ProfileDescription"]);
-  const d = tags["ICC_Profile:ProfileDescription"];
-  return typeof d === "string" ? d : null;
-}

@@ -31,3 +31,11 @@ describe("credit line", () => {
     expect(buildCreditLine("Kestrel Ridge Astronomical Society", {})).toBe("Kestrel Ridge Astronomical Society");
   });
 });
+
+describe("credit-line placeholders in words", () => {
+  it("takes {observer} and {processing} as the two credits, beside the older names", () => {
+    expect(buildCreditLine("{observer} / {society}; processing: {processing}", { acquiredBy: "Oskar Lindqvist", society: "KRAS", processedBy: "Crownlight pipeline 1.4.0" })).toBe("Oskar Lindqvist / KRAS; processing: Crownlight pipeline 1.4.0");
+    expect(checkCreditTemplate("{observer} {acquiredBy}")).toEqual([]);
+    expect(checkCreditTemplate("{photographer}")[0]).toMatch(/use \{observer\}, \{processing\}/);
+  });
+});

@@ -11,50 +11,87 @@ import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, Tab
 import { getDb } from "@/db/client";
 import { ROLE_LABELS, ROLES } from "@/lib/auth/roles";
 import { listPeople, peopleQuerySchema } from "@/lib/people/people";
-import { parseInput } from "@/lib/validation";
-import { changeRoleAction } from "./actions";
+import { fieldProblems, summarizeProblems } from "@/lib/validation";
+import { Select } from "@/components/ui/select";
+import { DisablePerson } from "@/components/people/disable-person";
+import { InviteForm } from "@/components/people/invite-form";
+import { INVITATION_VALID_DAYS } from "@/lib/people/account-state";
+import { changeRoleAction, inviteAction, setDisabledAction } from "./actions";
+import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "People" };
 
 export default async function PeoplePage({ searchParams }: { searchParams: Promise<Record<string, string>> }) {
   const actor = await requirePagePermission("people:list", "/admin/people");
   const raw = await searchParams;
-  const query = parseInput(peopleQuerySchema, { q: raw.q, page: raw.page });
+  // A hand-edited address with a bad filter shows everyone and says which filter was ignored.
+  const parsed = peopleQuerySchema.safeParse({ q: raw.q, page: raw.page, role: raw.role, status: raw.status });
+  const query = parsed.success ? parsed.data : peopleQuerySchema.parse({ q: typeof raw.q === "string" ? raw.q.slice(0, 100) : "" });
+  const ignored = parsed.success ? null : summarizeProblems(fieldProblems(parsed.error, raw));
   const result = await listPeople(getDb(), actor, query);
   const pages = Math.max(1, Math.ceil(result.total / result.pageSize));
-  const link = (page: number) => `/admin/people?${new URLSearchParams({ ...(query.q ? { q: query.q } : {}), page: String(page) })}`;
+  const filters = { ...(query.q ? { q: query.q } : {}), ...(query.role ? { role: query.role } : {}), ...(query.status ? { status: query.status } : {}) };
+  const link = (page: number) => `/admin/people?${new URLSearchParams({ ...filters, page: String(page) })}`;
+  const filtered = Boolean(query.q || query.role || query.status);
 
   return (
     <>
       <PageTitle title="People" lead="Everyone with an account, and the roles they hold. Each change is written to the audit log." />
-      <form role="search" className="mb-6 flex flex-wrap items-end gap-3" action="/admin/people">
-        <Field label="Find by name or e-mail" className="min-w-72 flex-1">
+      <details className="mb-8 rounded-card border border-line p-4">
+        <summary className="cursor-pointer font-semibold">Invite a person by e-mail</summary>
+        <p className="my-3 max-w-prose text-sm text-ink-muted">
+          They get an account with the member role and the roles you tick, and a mail with a link to choose their password. The link works for {INVITATION_VALID_DAYS} days.
+        </p>
+        <InviteForm action={inviteAction} />
+      </details>
+      <form role="search" aria-label="Find people" className="mb-6 flex flex-wrap items-end gap-3" action="/admin/people">
+        <Field label="Find by name or e-mail" className="min-w-0 flex-1 basis-64">
           <Input name="q" type="search" defaultValue={query.q} />
         </Field>
+        <Field label="Role" className="min-w-0 basis-48">
+          <Select name="role" defaultValue={query.role ?? ""} options={[{ value: "", label: "Any role" }, ...ROLES.map((r) => ({ value: r, label: ROLE_LABELS[r] }))]} />
+        </Field>
+        <Field label="Sign-in" className="min-w-0 basis-40">
+          <Select name="status" defaultValue={query.status ?? ""} options={[{ value: "", label: "Everyone" }, { value: "active", label: "May sign in" }, { value: "disabled", label: "Disabled" }]} />
+        </Field>
         <button type="submit" className={buttonClasses({ variant: "secondary" })}>
-          Search
+          Show
         </button>
+        {filtered ? (
+          <Link href="/admin/people" className={buttonClasses({ variant: "quiet" })}>
+            Clear the filters
+          </Link>
+        ) : null}
       </form>
+      {ignored ? (
+        <p role="status" className="mb-4 text-sm text-ink-muted">
+          Ignored a filter in the address: {ignored}
+        </p>
+      ) : null}
       <Table caption={`People, page ${result.page} of ${pages} (${result.total} in all)`}>
         <TableHead>
           <TableRow>
             <TableHeader>Name</TableHeader>
-            <TableHeader>E-mail</TableHeader>
-            <TableHeader>Joined</TableHeader>
+            <TableHeader className="hidden md:table-cell">E-mail</TableHeader>
+            <TableHeader className="hidden md:table-cell">Joined</TableHeader>
             <TableHeader>Roles (press to grant or revoke)</TableHeader>
+            <TableHeader>Sign-in</TableHeader>
           </TableRow>
         </TableHead>
         <TableBody>
           {result.people.length === 0 ? (
-            <TableEmptyRow colSpan={4}>No one matches “{query.q}”.</TableEmptyRow>
+            <TableEmptyRow colSpan={5}>{filtered ? "No one matches these filters." : "No one has an account yet."}</TableEmptyRow>
           ) : (
             result.people.map((p) => (
               <TableRow key={p.id}>
                 <TableCell>
-                  {p.name} {p.emailVerified ? null : <Badge tone="warn">address not confirmed</Badge>}
+                  {p.name} {p.emailVerified ? null : <Badge tone="warn">address not confirmed</Badge>} {p.disabledAt ? <Badge tone="danger">disabled</Badge> : null}
+                  {/* On a phone the address and the date sit under the name, so the roles keep their room. */}
+                  <span className="block text-sm break-all text-ink-muted md:hidden">{p.email}</span>
+                  <span className="block text-sm text-ink-muted md:hidden">Joined {formatDate(p.joinedAt)}</span>
                 </TableCell>
-                <TableCell className="font-mono text-sm">{p.email}</TableCell>
-                <TableCell className="font-mono text-sm">{p.joinedAt.slice(0, 10)}</TableCell>
+                <TableCell className="hidden text-sm break-all md:table-cell">{p.email}</TableCell>
+                <TableCell className="hidden text-sm whitespace-nowrap md:table-cell">{formatDate(p.joinedAt)}</TableCell>
                 <TableCell>
                   <div className="flex flex-wrap gap-2" role="group" aria-label={`Roles of ${p.name}`}>
                     {ROLES.map((role) => (
@@ -66,9 +103,13 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
                         label={ROLE_LABELS[role]}
                         held={p.roles.includes(role)}
                         personName={p.name}
+                        lockedReason={role === "admin" && p.id === actor.userId && p.roles.includes("admin") ? "You cannot revoke your own administrator role; another administrator can." : undefined}
                       />
                     ))}
                   </div>
+                </TableCell>
+                <TableCell>
+                  <DisablePerson action={setDisabledAction} userId={p.id} personName={p.name} disabled={p.disabledAt !== null} isSelf={p.id === actor.userId} />
                 </TableCell>
               </TableRow>
             ))

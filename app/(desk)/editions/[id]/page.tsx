@@ -71,25 +71,23 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
           Plates in this edition
         </h2>
         {exporting ? <p className="mb-3 text-sm font-medium">A print bundle is being made from these plates: they can change once it is done.</p> : null}
-        <Table caption="Plates in print order, with the size each slot needs against what the rendition has" captionHidden>
-          <TableHead>
-            <TableRow>
-              <TableHeader>No.</TableHeader>
-              <TableHeader>Plate</TableHeader>
-              <TableHeader>Layout</TableHeader>
-              <TableHeader>Pixels needed and available</TableHeader>
-              <TableHeader>Order</TableHeader>
-            </TableRow>
-          </TableHead>
-          <TableBody>
-            {edition.items.length === 0 ? <TableEmptyRow colSpan={5}>No plates yet. Add published plates from the list below.</TableEmptyRow> : null}
-            {edition.items.map((item) => (
-              <TableRow key={item.id}>
-                <TableCell>{item.position}</TableCell>
-                <TableCell>
-                  <p className="font-medium">
+        {edition.items.length === 0 ? <p className="text-ink-muted">No plates yet. Add published plates from the list below.</p> : null}
+        <ol className="flex flex-col gap-6" aria-label="Plates in print order">
+          {edition.items.map((item) => (
+            <li key={item.id} className="grid gap-4 rounded-card border border-line p-4 md:grid-cols-[8rem_minmax(0,1fr)]">
+              <div className="flex flex-row items-start gap-3 md:flex-col">
+                {/* eslint-disable-next-line @next/next/no-img-element -- the version's own preview, served already small */}
+                <img src={item.thumbnailUrl} alt="" width={128} height={96} loading="lazy" className="aspect-[4/3] w-24 rounded-control border border-line bg-black object-contain md:w-32" />
+                <div className="flex flex-col gap-2">
+                  <p className="text-sm text-ink-muted">Plate {item.position} of {edition.items.length}</p>
+                  {readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} position={item.position} count={edition.items.length} />}
+                </div>
+              </div>
+              <div className="flex min-w-0 flex-col gap-3">
+                <div>
+                  <h3 className="font-medium">
                     <Link href={`/plates/${item.plate.slug}/v/${item.version}`}>{item.plate.title}</Link>
-                  </p>
+                  </h3>
                   <p className="text-sm text-ink-muted">
                     Version {item.version}, by {item.plate.observer}
                   </p>
@@ -106,46 +104,27 @@ export default async function EditionBuilderPage({ params, searchParams }: { par
                       <span aria-hidden="true">⚠ </span>Also in {item.alsoIn.map(editionName).join(" and ")}.
                     </p>
                   ) : null}
-                </TableCell>
-                <TableCell>
-                  <ItemLayoutForm
-                    key={`${item.id}-v${item.version}`}
-                    editionId={edition.id}
-                    itemId={item.id}
-                    plateTitle={item.plate.title}
-                    slot={item.slot}
-                    customWidthMm={item.customWidthMm}
-                    customDpi={item.customDpi}
-                    rendition={item.rendition}
-                    renditions={item.renditions}
-                    captionOverride={item.captionOverride}
-                    plateCaption={item.plate.caption}
-                    slotOptions={SLOT_OPTIONS}
-                    readOnly={readOnly}
-                  />
-                </TableCell>
-                <TableCell>
-                  <p className="text-sm">{item.slotLabel}</p>
-                  <dl className="mt-1 grid grid-cols-[auto_1fr] gap-x-2 text-sm">
-                    <dt>Needed</dt>
-                    <dd>{item.needed ? `${item.needed.width} x ${item.needed.height} px` : "—"}</dd>
-                    <dt>Available</dt>
-                    <dd>{item.available ? `${item.available.width} x ${item.available.height} px` : "unknown"}</dd>
-                  </dl>
-                  {item.sizeWarning ? (
-                    <p role="note" className="mt-2 rounded-control border border-danger p-2 text-sm font-medium text-danger">
-                      <span aria-hidden="true">⚠ </span>
-                      {item.sizeWarning}
-                    </p>
-                  ) : item.needed ? (
-                    <p className="mt-2 text-sm">Large enough: no enlargement.</p>
-                  ) : null}
-                </TableCell>
-                <TableCell>{readOnly ? null : <ItemOrderButtons editionId={edition.id} itemId={item.id} plateTitle={item.plate.title} position={item.position} count={edition.items.length} />}</TableCell>
-              </TableRow>
-            ))}
-          </TableBody>
-        </Table>
+                </div>
+                <ItemLayoutForm
+                  key={`${item.id}-v${item.version}`}
+                  editionId={edition.id}
+                  itemId={item.id}
+                  plateTitle={item.plate.title}
+                  slot={item.slot}
+                  customWidthMm={item.customWidthMm}
+                  customDpi={item.customDpi}
+                  rendition={item.rendition}
+                  renditions={item.renditions}
+                  imageSizes={item.imageSizes}
+                  captionOverride={item.captionOverride}
+                  plateCaption={item.plate.caption}
+                  slotOptions={SLOT_OPTIONS}
+                  readOnly={readOnly}
+                />
+              </div>
+            </li>
+          ))}
+        </ol>
       </section>
 
       <section aria-labelledby="exports-h" className="mt-10">

@@ -7,6 +7,7 @@ import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, Tab
 import { getDb } from "@/db/client";
 import { PLATE_STATES, type PlateState } from "@/db/schema/plates";
 import { listDeskPlates } from "@/lib/plates/desk-view";
+import { formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Plates" };
 export const dynamic = "force-dynamic";
@@ -51,7 +52,7 @@ export default async function DeskPlatesPage() {
                     <TableCell>{p.photographer}</TableCell>
                     <TableCell>{p.currentVersion}</TableCell>
                     <TableCell>{p.openReports ? <Badge tone="warn">{p.openReports}</Badge> : "0"}</TableCell>
-                    <TableCell>{p.updatedAt.slice(0, 16).replace("T", " ")} UTC</TableCell>
+                    <TableCell>{formatDateTime(p.updatedAt)}</TableCell>
                   </TableRow>
                 ))}
               </TableBody>

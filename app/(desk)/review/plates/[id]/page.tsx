@@ -13,11 +13,16 @@ import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
 import { listEditionsOfPlate } from "@/lib/editions/editions";
 import { findDeskPlate } from "@/lib/plates/desk-view";
+import { STATE_LABELS } from "@/lib/review/state-machine";
+import { PlateViewer } from "@/components/viewer/plate-viewer";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
+import { describeAudit } from "@/lib/audit/labels";
 
 export const metadata: Metadata = { title: "Plate editor" };
 export const dynamic = "force-dynamic";
 
 
+const RENDITION_LABELS = { natural: "Natural", structure: "Structure" } as const;
 const STATE_TONE = { draft: "neutral", published: "ok", withdrawn: "danger" } as const;
 
 export default async function PlateEditorPage({ params }: { params: Promise<{ id: string }> }) {
@@ -36,7 +41,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
         title={plate.title}
         lead={
           <>
-            From the bracket set “{plate.set.name}” by {plate.set.photographer} (set {plate.set.state}). Version {plate.currentVersion}.
+            From the bracket set “{plate.set.name}” by {plate.set.photographer} (set {STATE_LABELS[plate.set.state]}). Version {plate.currentVersion}.
           </>
         }
       >
@@ -50,11 +55,21 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
       ) : null}
       {plate.withdrawn ? (
         <p role="note" className="mb-6 rounded-control border border-danger p-3 text-sm">
-          Withdrawn on {plate.withdrawn.at.slice(0, 10)}: {plate.withdrawn.reason}
+          Withdrawn on {formatDate(plate.withdrawn.at)}: {plate.withdrawn.reason}
         </p>
       ) : null}
 
       <PageSection id="texts-h" title="What the public reads">
+        <div className="grid gap-8 xl:grid-cols-[minmax(0,7fr)_minmax(0,5fr)]">
+          <div className="min-w-0 xl:sticky xl:top-4 xl:self-start">
+            <h3 className="mb-2 text-base font-semibold">The image, as the public viewer shows it</h3>
+            {plate.image.renditions.length ? (
+              <PlateViewer title={plate.title} altText={plate.altText || `Image of the plate “${plate.title}” (no alt text yet)`} renditions={plate.image.renditions.map((r) => ({ ...r, label: RENDITION_LABELS[r.key] }))} geometry={plate.image.geometry} />
+            ) : (
+              <p className="text-sm text-ink-muted">This version has no rendition to show.</p>
+            )}
+          </div>
+          <div className="min-w-0">
         <PlateTextForm
           plateId={plate.id}
           values={{
@@ -71,6 +86,8 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
           slugLocked={plate.publishedAt !== null}
           readOnly={finalWithdrawal}
         />
+          </div>
+        </div>
       </PageSection>
 
       <PageSection id="location-h" title="What the public sees of the site">
@@ -78,7 +95,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
       </PageSection>
 
       <PageSection id="state-h" title="Publishing and withdrawal">
-        <PlateStateActions plateId={plate.id} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} setState={plate.set.state} />
+        <PlateStateActions plateId={plate.id} title={plate.title} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} licence={plate.licence} photographer={plate.set.photographer} setState={plate.set.state} />
       </PageSection>
 
       <PageSection id="versions-h" title="Versions">
@@ -93,7 +110,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
             {publications.map((e) => (
               <li key={e.id}>
                 “{e.title}”{e.issueLabel ? `, ${e.issueLabel}` : ""} ({e.kind}, {e.state}), version {e.version}, plate {e.position}:{" "}
-                {e.embargoDate ? <strong>embargo until {e.embargoDate}</strong> : "no embargo"}
+                {e.embargoDate ? <strong>embargo until {formatDate(e.embargoDate)}</strong> : "no embargo"}
               </li>
             ))}
           </ul>
@@ -108,7 +125,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
         <ol className="flex flex-col gap-1 text-sm">
           {plate.history.map((h, i) => (
             <li key={i}>
-              {h.at.slice(0, 16).replace("T", " ")} UTC: {h.action} by {h.actorName ?? "a visitor or the system"}
+              {formatDateTime(h.at)}: {describeAudit(h.action)} by {h.actorName ?? "a visitor or the system"}
             </li>
           ))}
         </ol>

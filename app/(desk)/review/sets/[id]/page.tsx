@@ -18,10 +18,11 @@ import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { findBracketSet } from "@/lib/bracket-sets";
-import { buildOutputUrl } from "@/lib/reductions/output-paths";
+import { reductionFilesBase } from "@/lib/plates/public";
 import { listReductions } from "@/lib/reductions/reductions";
 import { listCuratorNotes, listDecisionHistory } from "@/lib/review/history";
 import { availableActions, STATE_LABELS, type CuratorAction } from "@/lib/review/state-machine";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Review a bracket set" };
 
@@ -43,16 +44,16 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
   const usable = set.frames.filter((f) => f.kind === "light" && f.included && f.ingestState === "ingested");
   const groups = [...new Set(usable.map((f) => f.groupNumber))].sort((a, b) => a - b);
   const choices: ComparisonChoice[] = done.flatMap((r, i) => {
-    const name = `Reduction ${done.length - i} (${r.params.filter ?? "?"}${r.params.filterStrength !== undefined ? ` ${r.params.filterStrength}` : ""}, ${r.finishedAt?.slice(0, 16).replace("T", " ") ?? "?"})`;
+    const name = `Reduction ${done.length - i} (${r.params.filter ?? "?"}${r.params.filterStrength !== undefined ? ` ${r.params.filterStrength}` : ""}, ${r.finishedAt ? formatDateTime(r.finishedAt) : "not finished"})`;
     return [
-      { value: `${r.id}:natural`, label: `${name}: natural`, src: buildOutputUrl(r.id, "preview.jpg"), alt: `Natural rendition of ${set.name}, ${name}` },
-      { value: `${r.id}:structure`, label: `${name}: structure`, src: buildOutputUrl(r.id, "preview-structure.jpg"), alt: `Structure rendition of ${set.name}, ${name}` },
+      { value: `${r.id}:natural`, label: `${name}: natural`, tileSource: `${reductionFilesBase(r.id)}/natural-iiif/info.json`, alt: `Natural rendition of ${set.name}, ${name}` },
+      { value: `${r.id}:structure`, label: `${name}: structure`, tileSource: `${reductionFilesBase(r.id)}/structure-iiif/info.json`, alt: `Structure rendition of ${set.name}, ${name}` },
     ];
   });
 
   return (
     <>
-      <PageTitle title={set.name} lead={`${set.eclipseId} · by ${set.ownerName} · ${set.frames.length} frame${set.frames.length === 1 ? "" : "s"}`}>
+      <PageTitle title={set.name} lead={`Eclipse of ${formatDate(set.eclipseId)} · by ${set.ownerName} · ${set.frames.length} frame${set.frames.length === 1 ? "" : "s"}`}>
         <div className="flex items-center gap-3">
           <Badge tone={stateTone(set.state)}>{STATE_LABELS[set.state]}</Badge>
           <Link href="/review">Back to the queue</Link>
@@ -97,7 +98,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
             <p className="max-w-prose text-sm text-ink-muted">The set is approved: make a draft plate from one of its finished reductions, then write its texts and credits and publish it.</p>
             <MakePlateButton
               setId={set.id}
-              reductions={done.map((r, i) => ({ id: r.id, state: r.state, label: `Reduction ${done.length - i}: ${r.params.registration ?? "?"} registration, ${(r.params.filter ?? "?").toUpperCase()} ${r.params.filterStrength ?? 0.3}, finished ${r.finishedAt?.slice(0, 16).replace("T", " ") ?? "?"} UTC` }))}
+              reductions={done.map((r, i) => ({ id: r.id, state: r.state, label: `Reduction ${done.length - i}: ${r.params.registration ?? "?"} registration, ${(r.params.filter ?? "?").toUpperCase()} ${r.params.filterStrength ?? 0.3}, finished ${r.finishedAt ? formatDateTime(r.finishedAt) : "not yet"}` }))}
             />
           </section>
         ) : null}
@@ -114,7 +115,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
             <details className="rounded-card border border-line p-4">
               <summary className="cursor-pointer font-semibold">Re-reduce with other parameters</summary>
               <p className="my-3 text-sm text-ink-muted">The new reduction joins the same queue as the photographer&apos;s; none replaces another.</p>
-              <ReductionStartForm setId={set.id} groups={groups} submitLabel="Start a re-reduction" />
+              <ReductionStartForm setId={set.id} groups={groups} submitLabel="Start a re-reduction" stayHere />
             </details>
           ) : (
             <p className="text-sm text-ink-muted">A re-reduction needs at least two checked, included light frames.</p>
