@@ -29,8 +29,8 @@ async function refusal(options: Omit<Parameters<typeof runReductionOnFiles>[0], 
 const LUXOR: SiteSpec = { kind: "fixed", location: { latDeg: 25.69, lonDeg: 32.64, elevationM: 80 } };
 
 describe("runReductionOnFiles with --register sun refuses bad input", () => {
-  it("without a site, naming the option", async () => {
-    expect(await refusal({ files: fixture.filesOf("fits"), registration: "sun" })).toMatch(/^--register sun: the observer's site is required; give --site LAT,LON,ELEV or --site-file/);
+  it("without a site, saying what is missing in words (the command line adds its options)", async () => {
+    expect(await refusal({ files: fixture.filesOf("fits"), registration: "sun" })).toMatch(/^registration on the Sun needs the observer's site: give where the frames were taken/);
   });
 
   it("without capture times, naming every file and the field", async () => {
@@ -41,7 +41,7 @@ describe("runReductionOnFiles with --register sun refuses bad input", () => {
       return path;
     });
     const message = await refusal({ files, registration: "sun", sky: { site: LUXOR } });
-    expect(message).toMatch(/^undated-01\.fits, undated-02\.fits: no capture time in the file \(EXIF DateTimeOriginal or FITS DATE-OBS\); --register sun needs each frame's time/);
+    expect(message).toMatch(/^undated-01\.fits, undated-02\.fits: no capture time, neither in the file \(its EXIF DateTimeOriginal or FITS DATE-OBS\) nor given by the photographer; registration on the Sun needs each frame's time/);
   });
 
   it("with a site track that does not cover the frames, naming the track file and the frame", async () => {
