@@ -11,6 +11,7 @@ import { getDb } from "@/db/client";
 import { listBracketSets } from "@/lib/bracket-sets";
 import { listKits } from "@/lib/kits/kits";
 import { findLatestReductions } from "@/lib/reductions/latest";
+import { STATE_LABELS } from "@/lib/review/state-machine";
 import { listSites } from "@/lib/sites/sites";
 
 export const metadata: Metadata = { title: "Studio" };
@@ -63,7 +64,7 @@ export default async function StudioPage() {
                 <TableCell className="font-mono">{s.eclipseId}</TableCell>
                 <TableCell className="font-mono">{s.frameCount}</TableCell>
                 <TableCell>
-                  <Badge tone={s.state === "approved" ? "ok" : s.state === "rejected" ? "danger" : "neutral"}>{s.state}</Badge>
+                  <Badge tone={s.state === "approved" ? "ok" : s.state === "rejected" ? "danger" : "neutral"}>{STATE_LABELS[s.state]}</Badge>
                 </TableCell>
                 <TableCell>
                   {latest.get(s.id) ? (
