@@ -3,6 +3,7 @@
 // Times are as the camera's clock showed them; the set's clock offset applies to
 // them exactly as to times read from the files. Pure and client-safe: the
 // service checks and stores, the tests call these directly.
+import { splitCsvRecord } from "@/lib/csv-record";
 import { parseExposure } from "./exposure-text";
 
 /** One fault of the CSV, at a line (1-based, as an editor shows it) and a column when one is at fault. */
@@ -72,32 +73,6 @@ export function parseCameraTime(text: string, dayUtc?: string): { ms: number } |
       ? `"${t}" is not a time; write it as 10:04:31.25 (UTC on ${dayUtc}) or 2027-08-02T10:04:31.25Z`
       : `"${t}" is not a time; write it as 2027-08-02T10:04:31.25Z, or with the camera's offset as 2027-08-02T12:04:31.25+02:00`,
   };
-}
-
-/** Splits one CSV record (RFC 4180 quoting, no line breaks inside quotes); null when a quote is left open. */
-function splitCsvRecord(line: string): string[] | null {
-  const fields: string[] = [];
-  let field = "";
-  let isQuoted = false;
-  for (let i = 0; i < line.length; i++) {
-    const ch = line[i];
-    if (isQuoted) {
-      if (ch === '"' && line[i + 1] === '"') {
-        field += '"';
-        i++;
-      } else if (ch === '"') isQuoted = false;
-      else field += ch;
-    } else if (ch === '"' && field.trim() === "") {
-      isQuoted = true;
-      field = "";
-    } else if (ch === "," || ch === ";" || ch === "\t") {
-      fields.push(field.trim());
-      field = "";
-    } else field += ch;
-  }
-  if (isQuoted) return null;
-  fields.push(field.trim());
-  return fields;
 }
 
 /** The name without folders: a camera's list may carry paths. */

@@ -4,30 +4,14 @@
 // ignored. Fields may be quoted as RFC 4180 says. Every fault names the line.
 import { readFile } from "node:fs/promises";
 import { basename } from "node:path";
+import { splitCsvRecord } from "@/lib/csv-record";
 import { ReductionInputError } from "./errors";
 import { parseStrictNumber } from "@/lib/strict-number";
 
-/** Splits one CSV record into fields (RFC 4180 quoting, no line breaks inside quotes). */
+/** Splits one CSV record (lib/csv-record.ts), naming the line when a quote is left open. */
 function splitCsvLine(line: string, where: string): string[] {
-  const fields: string[] = [];
-  let field = "";
-  let isQuoted = false;
-  for (let i = 0; i < line.length; i++) {
-    const ch = line[i];
-    if (isQuoted) {
-      if (ch === '"' && line[i + 1] === '"') { field += '"'; i++; }
-      else if (ch === '"') isQuoted = false;
-      else field += ch;
-    } else if (ch === '"' && field.trim() === "") {
-      isQuoted = true;
-      field = "";
-    } else if (ch === ",") {
-      fields.push(field.trim());
-      field = "";
-    } else field += ch;
-  }
-  if (isQuoted) throw new ReductionInputError("bad-exposures-csv", `${where}: a quoted field is not closed`);
-  fields.push(field.trim());
+  const fields = splitCsvRecord(line);
+  if (!fields) throw new ReductionInputError("bad-exposures-csv", `${where}: a quoted field is not closed`);
   return fields;
 }
 
