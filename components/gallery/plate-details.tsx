@@ -4,6 +4,7 @@ import type { PublicPlateDto } from "@/lib/plates/public";
 import { formatExposure } from "@/components/bracket-sets/exposure-text";
 import { describeTiming } from "@/components/reductions/labels";
 import { PlateDownloads } from "./plate-downloads";
+import { formatDate, formatDateTime } from "@/lib/format/dates";
 
 /** The pipeline's stages in the order they run; "reduce" and "total" are sums of others. */
 const STAGE_ORDER = ["decode", "sky-geometry", "linearize-and-limb", "register", "response", "warp-and-merge", "renditions", "write-master", "write-renditions", "tiles", "summary"];
@@ -18,7 +19,7 @@ function Row({ term, children }: { term: string; children: ReactNode }) {
 }
 
 function utcTime(iso: string): string {
-  return `${iso.slice(0, 10)} ${iso.slice(11, 19)} UTC`;
+  return formatDateTime(iso, { seconds: true });
 }
 
 /** What a visitor must know to read the image: what, where, when, with what, by whom, how, and under which licence. */
@@ -139,7 +140,7 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
                 Version {v.version}
               </Link>{" "}
               <span className="text-ink-muted">
-                {v.createdAt.slice(0, 10)}
+                {formatDate(v.createdAt)}
                 {v.changeNote ? `: ${v.changeNote}` : ""}
               </span>
             </li>

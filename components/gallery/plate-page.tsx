@@ -3,6 +3,7 @@ import type { PublicPlateDto } from "@/lib/plates/public";
 import { PlateDetails } from "./plate-details";
 import { PlateImage } from "./plate-image";
 import { ReportPlateForm } from "./report-plate-form";
+import { formatDate } from "@/lib/format/dates";
 
 /** A plate's page: the zoomable image, then what it shows and how it was made. A withdrawn plate keeps everything but the image. */
 export function PlatePage({ plate, society, credit }: { plate: PublicPlateDto; society: string; credit: string }) {
@@ -24,7 +25,7 @@ export function PlatePage({ plate, society, credit }: { plate: PublicPlateDto; s
         <section role="note" className="rounded-card border border-danger p-5">
           <h2 className="text-lg font-semibold">{plate.withdrawn.kind === "temporary" ? "This plate is withdrawn while a question is looked at" : "This plate has been withdrawn"}</h2>
           <p className="mt-2">
-            Withdrawn on {plate.withdrawn.at.slice(0, 10)}. Reason: {plate.withdrawn.reason || "not given"}. Its record stays here; the image is{" "}
+            Withdrawn on {formatDate(plate.withdrawn.at)}. Reason: {plate.withdrawn.reason || "not given"}. Its record stays here; the image is{" "}
             {plate.withdrawn.kind === "temporary" ? "not shown until the curators have decided." : "no longer shown."}
           </p>
         </section>

@@ -3,6 +3,7 @@
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import { buildOutputUrl } from "@/lib/reductions/output-paths";
 import { describeTiming, FILTER_LABELS, MOON_SOURCES, OUTPUT_SIZE_LABEL, REGISTRATION_SHORT } from "./labels";
+import { formatDateTime } from "@/lib/format/dates";
 
 function DefinitionList({ rows }: { rows: [string, string][] }) {
   return (
@@ -65,7 +66,7 @@ export function ReductionMeasurements({ measurements, pipelineVersion }: { measu
   if (p !== null) rows.push(["Position angle of the Sun's axis (P)", `${p.toFixed(2)}°`]);
   const north = num(sky.northAngleDeg);
   if (north !== null) rows.push(["Celestial north in the image", `${north.toFixed(2)}° counter-clockwise from up`]);
-  if (typeof sky.moonSilhouetteUtc === "string") rows.push(["Moon silhouette shows", sky.moonSilhouetteUtc.replace("T", " ").replace(/\.\d+Z$/, " UTC")]);
+  if (typeof sky.moonSilhouetteUtc === "string") rows.push(["Moon silhouette shows", formatDateTime(sky.moonSilhouetteUtc, { seconds: true })]);
   return <DefinitionList rows={rows} />;
 }
 

@@ -22,6 +22,7 @@ import { findReductionOutputsView } from "@/lib/reductions/outputs";
 import { findReduction, listReductions } from "@/lib/reductions/reductions";
 import { assessRunChoices } from "@/lib/reductions/run-options";
 import type { ReductionParamsInput } from "@/lib/reductions/schemas";
+import { formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Reduction" };
 
@@ -36,7 +37,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
   const siblings = await listReductions(db, actor, view.setId);
   const report = view.report;
   const measurements = reduction.measurements ?? (report ? (report.overall as Record<string, unknown>) : {});
-  const created = `${reduction.createdAt.slice(0, 10)} ${reduction.createdAt.slice(11, 16)} UTC`;
+  const created = formatDateTime(reduction.createdAt);
   const profile = report?.overall.radialProfile ?? null;
   const coverage = report?.overall.coverage ?? null;
   const set = await findBracketSet(db, actor, view.setId);
@@ -50,7 +51,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
 
   return (
     <>
-      <PageTitle title={`Reduction of ${view.setName}`} lead={`Started ${created}${reduction.finishedAt ? `, finished ${reduction.finishedAt.slice(0, 10)} ${reduction.finishedAt.slice(11, 16)} UTC` : ""}.`}>
+      <PageTitle title={`Reduction of ${view.setName}`} lead={`Started ${created}${reduction.finishedAt ? `, finished ${formatDateTime(reduction.finishedAt)}` : ""}.`}>
         <Link href={`/studio/sets/${view.setId}`}>Back to the bracket set</Link>
       </PageTitle>
 

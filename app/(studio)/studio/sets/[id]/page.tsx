@@ -26,6 +26,7 @@ import { assessRunChoices } from "@/lib/reductions/run-options";
 import { findLatestMessageToPhotographer } from "@/lib/review/history";
 import { listSites } from "@/lib/sites/sites";
 import { MAX_FILES_PER_SET, MAX_FILE_SIZE_BYTES, PART_SIZE_BYTES } from "@/lib/storage/limits";
+import { formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Bracket set" };
 
@@ -109,7 +110,7 @@ export default async function BracketSetPage({ params, searchParams }: { params:
           {curatorsMessage.reasonLabel ? <p className="mt-1 font-medium">Reason: {curatorsMessage.reasonLabel}</p> : null}
           <p className="mt-2 whitespace-pre-line">{curatorsMessage.message}</p>
           <p className="mt-2 text-sm text-ink-muted">
-            Sent <time dateTime={curatorsMessage.decidedAt}>{curatorsMessage.decidedAt.slice(0, 16).replace("T", " ")} UTC</time>.{" "}
+            Sent <time dateTime={curatorsMessage.decidedAt}>{formatDateTime(curatorsMessage.decidedAt)}</time>.{" "}
             {set.isOwn ? "Correct the set below, then submit it for review again." : ""}
           </p>
         </section>
