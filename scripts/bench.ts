@@ -89,6 +89,10 @@ async function main(): Promise<void> {
     console.log(`peak RSS during the reduction ${(peakBytes / GB).toFixed(2)} GB (whole process, all threads); during the whole benchmark ${(overallPeakBytes / GB).toFixed(2)} GB`);
     console.log(`floor: sharp decode ${floor.decodeMs.toFixed(0)} ms + sharp tiling of one rendition ${floor.tileMs.toFixed(0)} ms = ${floorMs.toFixed(0)} ms`);
     console.log(`(a) reduction / floor = ${(wallMs / floorMs).toFixed(2)}  (aim: at most 4)`);
+    const natural = (report.overall as { natural?: { whiteFractionAtLimb?: number } }).natural;
+    const frames = report.frames as { name: string; offset: { dn: number; source: string } | null; transmission: number | null; weights: { rejectedFraction: number | null } }[];
+    console.log(`natural rendition: ${(100 * (natural?.whiteFractionAtLimb ?? NaN)).toFixed(2)} % of pixels from the limb to 1.1 radii at full white (aim: at most 1 %)`);
+    console.log(`offsets: ${frames.map((f) => `${f.offset?.dn ?? "-"} (${f.offset?.source ?? "-"})`).join(", ")}; frames left out: ${report.framesLeftOut.length}`);
     console.log(`(b) our 8-bit merge ${oursMergeMs.toFixed(0)} ms / OpenCV ${opencv.version} MergeDebevec.process ${opencv.processMs.toFixed(0)} ms (${opencv.threads} threads) = ${(oursMergeMs / opencv.processMs).toFixed(2)}  (aim: below 1)`);
     console.log(JSON.stringify({
       bench: "reduction", width: BENCH_WIDTH, height: BENCH_HEIGHT, frames: BENCH_FRAMES, wallMs: Math.round(wallMs), stagesMs: stages,

@@ -15,7 +15,7 @@ import { warpMask, warpPlanes, type WarpTarget } from "./resample";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "./response";
 import { applyAffine, composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
-import { computePercentiles, renderNatural, renderStructure } from "./tone";
+import { computePercentiles, measureWhiteFraction, renderNatural, renderStructure } from "./tone";
 import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type BlackLevelSource, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
 
 export const PIPELINE_VERSION = "crownlight-imaging 0.2.0";
@@ -79,7 +79,8 @@ export interface ReductionResult {
     filterCentre: { x: number; y: number };
     /** log2 of the 99.9th over the 0.1th percentile of well-exposed master luminance outside the Moon. */
     dynamicRangeStops: number;
-    natural: { blackPoint: number; whitePoint: number; beta: number };
+    /** whiteFractionAtLimb: share of pixels from the lunar limb to 1.1 of its radius at full white in some plane (the inner corona burnt). */
+    natural: { blackPoint: number; whitePoint: number; beta: number; whiteFractionAtLimb: number };
     timingsMs: Record<string, number>;
     pipelineVersion: string;
     parameters: ReductionParams;
@@ -508,7 +509,7 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
       sunCentre,
       filterCentre,
       dynamicRangeStops,
-      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta },
+      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta, whiteFractionAtLimb: measureWhiteFraction(natural.image, limbRing, undefined, outsideMoon) },
       timingsMs,
       pipelineVersion: PIPELINE_VERSION,
       parameters: params,
