@@ -27,11 +27,11 @@ describe("forms and files read numbers strictly", () => {
   const site = { name: "Luxor west bank", kind: "fixed", latDeg: "25.69", lonDeg: "32.64", elevationM: "80" };
 
   it("refuses a latitude written 0x20, naming the field", () => {
-    expect(() => parseInput(fixedSiteSchema, { ...site, latDeg: "0x20" })).toThrow(/^latDeg: expected a number of degrees in decimal notation \(latitude\) \(received "0x20"\)/);
+    expect(() => parseInput(fixedSiteSchema, { ...site, latDeg: "0x20" })).toThrow(/^Latitude: expected a number of degrees in decimal notation \(latitude\)/);
     expect(parseInput(fixedSiteSchema, site)).toMatchObject({ latDeg: 25.69, lonDeg: 32.64, elevationM: 80, publicLabel: "" });
     // A blank elevation takes its default; a blank latitude is refused, not read as 0.
     expect(parseInput(fixedSiteSchema, { ...site, elevationM: "" }).elevationM).toBe(0);
-    expect(() => parseInput(fixedSiteSchema, { ...site, latDeg: " " })).toThrow(/^latDeg: /);
+    expect(() => parseInput(fixedSiteSchema, { ...site, latDeg: " " })).toThrow(/^Latitude: /);
   });
 
   it("reads an exposure typed in the frame table strictly", () => {
@@ -41,7 +41,7 @@ describe("forms and files read numbers strictly", () => {
 
   it("refuses a kit's focal length written in hex", () => {
     const kit = { name: "Refractor", camera: "Mono camera", sensorWidthMm: "13.2", sensorHeightMm: "8.8", pixelPitchUm: "2.4", focalMm: "0x258", fNumber: "7", mount: "equatorial" };
-    expect(() => parseInput(kitInputSchema, kit)).toThrow(/^focalMm: expected a number \(mm\)/);
+    expect(() => parseInput(kitInputSchema, kit)).toThrow(/^Focal length \(mm\): expected a number \(mm\)/);
     expect(parseInput(kitInputSchema, { ...kit, focalMm: "600" }).focalMm).toBe(600);
   });
 
@@ -84,8 +84,8 @@ describe("exposure times", () => {
   });
 
   it("typed by the photographer are held to the same range", () => {
-    expect(() => parseInput(correctFrameSchema, { exposureS: 1e9 })).toThrow(/exposureS: must be at most 3600 s/);
-    expect(() => parseInput(correctFrameSchema, { exposureS: 1e-9 })).toThrow(/exposureS: must be at least 0.000001 s/);
+    expect(() => parseInput(correctFrameSchema, { exposureS: 1e9 })).toThrow(/Exposure time: must be at most 3600 s/);
+    expect(() => parseInput(correctFrameSchema, { exposureS: 1e-9 })).toThrow(/Exposure time: must be at least 0.000001 s/);
     expect(parseInput(correctFrameSchema, { exposureS: 0.004 }).exposureS).toBe(0.004);
   });
 });
