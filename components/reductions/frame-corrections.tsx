@@ -92,7 +92,8 @@ export function FrameCorrections({ report }: { report: ReductionReportView }) {
           </ul>
         )}
       </div>
-      <div className="overflow-x-auto">
+      {/* A wide table scrolls inside its own box on a phone; the box takes the focus so the keyboard can scroll it too. */}
+      <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Corrections per frame, scrollable">
         <table className="w-full min-w-0 text-sm">
           <caption className="mb-2 text-left font-semibold">Corrections per frame</caption>
           <thead>
