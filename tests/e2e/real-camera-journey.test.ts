@@ -106,7 +106,7 @@ describe("a real camera's bracket with calibration frames, from disk to a named 
     await page.getByRole("button", { name: "Start reduction" }).click();
     await page.waitForURL(/\/studio\/reductions\/[0-9a-f-]{36}$/, { timeout: 20_000 });
     await page.getByRole("heading", { name: "Corrections and frames left out" }).waitFor({ timeout: 300_000 });
-    const section = page.locator("#corrections");
+    const section = page.locator(`section[aria-labelledby="corrections"]`);
     await snap(page, "real-camera-02-corrections");
 
     const text = (await section.innerText()).replace(/\s+/g, " ");
