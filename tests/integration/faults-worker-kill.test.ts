@@ -27,8 +27,11 @@ requireTestDatabase();
 const PREFIX = `crownlight-faults-kill-${process.pid}`;
 const savedPrefix = process.env.QUEUE_PREFIX;
 process.env.QUEUE_PREFIX = PREFIX;
-// The reduce lock must outlast the longest stage of these small brackets (a second or two); 15 s leaves room on a loaded machine.
-const WORKER_ENV = { QUEUE_PREFIX: PREFIX, WORKER_REDUCE_LOCK_MS: "15000", WORKER_REDUCE_STALLED_INTERVAL_MS: "4000" };
+// The reduce lock must outlast the longest stretch the reduction holds the worker's thread (the
+// pipeline's numeric core runs in one piece: registration twice, the levels, two merge passes and
+// the renditions; over 15 s on a loaded two-core machine since the reduction handles real cameras'
+// brackets). 60 s leaves room; the kill tests then wait that long for the stalled check.
+const WORKER_ENV = { QUEUE_PREFIX: PREFIX, WORKER_REDUCE_LOCK_MS: "60000", WORKER_REDUCE_STALLED_INTERVAL_MS: "4000" };
 
 const db = getDb();
 const running: OwnProcess[] = [];

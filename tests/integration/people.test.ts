@@ -49,7 +49,7 @@ describe("listing people", () => {
   it("searches by name or e-mail, case-insensitively, and returns DTOs only", async () => {
     const page = await listPeople(db, admin, { q: `milo member ${tag}`, page: 1, pageSize: 20 });
     expect(page.total).toBe(1);
-    expect(Object.keys(page.people[0]).sort()).toEqual(["email", "emailVerified", "id", "joinedAt", "name", "roles"]);
+    expect(Object.keys(page.people[0]).sort()).toEqual(["disabledAt", "email", "emailVerified", "id", "joinedAt", "name", "roles"]);
     const byMail = await listPeople(db, admin, { q: `@PEOPLE-TEST.example`, page: 1, pageSize: 100 });
     expect(byMail.people.map((p) => p.email)).toContain(member.email);
   });

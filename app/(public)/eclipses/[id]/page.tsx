@@ -128,14 +128,14 @@ export default async function EclipsePage({ params }: Props) {
                 return (
                   <li key={`${s.name}|${s.country}`}>
                     {s.plates.length === 1 ? (
-                      <Link href={`/plates/${s.plates[0].slug}`}>{place}</Link>
+                      <Link href={`/plates/${s.plates[0].slug}`} className="underline">{place}</Link>
                     ) : (
                       <>
                         <span className="font-medium">{place}</span>:{" "}
                         {s.plates.map((p, i) => (
                           <span key={p.slug}>
                             {i > 0 ? ", " : ""}
-                            <Link href={`/plates/${p.slug}`}>{p.title}</Link>
+                            <Link href={`/plates/${p.slug}`} className="underline">{p.title}</Link>
                           </span>
                         ))}
                       </>
