@@ -7,7 +7,7 @@ import path from "node:path";
 import { and, desc, eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { auditLog, bracketSets, curatorNotes, reductions, reviewDecisions, users } from "@/db/schema";
+import { auditLog, bracketSets, curatorNotes, frames, reductions, reviewDecisions, users } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { submitBracketSet } from "@/lib/bracket-sets";
@@ -225,6 +225,23 @@ describe("review decisions", () => {
     expect(waiting.total).toBe(all.counts["awaiting-review"]);
     await expect(listReviewQueue(db, owner, q({}))).rejects.toMatchObject({ code: "forbidden" });
     expect(() => q({ sort: "owner_id; drop table users" })).toThrow(/sort/);
+  });
+
+  it("counts only the included light frames of a set", async () => {
+    const setId = await setOnDesk(owner, `Frame count ${tag}`);
+    const frame = (name: string, kind: "light" | "dark" | "flat" | "bias", included: boolean) => ({
+      id: crypto.randomUUID(), bracketSetId: setId, originalKey: `test/${tag}/${name}`, originalFileName: name, sizeBytes: 1000, kind, included,
+    });
+    await db.insert(frames).values([
+      frame("l1.fits", "light", true), frame("l2.fits", "light", true), frame("l3.fits", "light", true),
+      frame("l4.fits", "light", false), frame("d1.fits", "dark", true), frame("f1.fits", "flat", true),
+    ]);
+    const page = await listReviewQueue(db, curator, parseInput(queueQuerySchema, { photographer: owner.userId, state: "all" }));
+    expect(page.rows.find((r) => r.id === setId)?.frameCount).toBe(3);
+    // Excluding a light frame takes it off the count.
+    await db.update(frames).set({ included: false }).where(and(eq(frames.bracketSetId, setId), eq(frames.originalFileName, "l1.fits")));
+    const after = await listReviewQueue(db, curator, parseInput(queueQuerySchema, { photographer: owner.userId, state: "all" }));
+    expect(after.rows.find((r) => r.id === setId)?.frameCount).toBe(2);
   });
 });
 
