@@ -213,7 +213,7 @@ describe("editions", () => {
     const html = await desk.text();
     expect(html).toContain("Publication history");
     expect(html).toContain(`Kestrel Ridge Bulletin ${tag}`);
-    expect(html).toMatch(/embargo until (<!-- -->)?2027-10-01/);
+    expect(html).toMatch(/embargo until (<!-- -->)?1 Oct 2027/);
   });
 });
 
