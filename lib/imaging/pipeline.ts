@@ -4,7 +4,7 @@
 import { dilateMask } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
 import { fitLimb, type LimbFit } from "./limb-fit";
-import { linearizeFrame, validateFrame, type LinearizedFrame } from "./linearize";
+import { linearizeFrame, repairDefects, validateFrame, type LinearizedFrame } from "./linearize";
 import { addFrameToMerge, createMergeAccumulator, finishMerge, toPilot, type FrameWeightStats, type MergeAccumulator, type MergeFrameInput, type MergeResult } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import { estimateMoonTrack } from "./moon-track";
@@ -213,13 +213,16 @@ export function warpFrameForMerge(
   const window = { width, height };
   const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
   const isLinear = frame.encoding === "linear";
-  const source = isLinear ? frame.image.planes : linear.planes;
+  // A defect's own value never reaches the master: the warp reads it as the median of its sound
+  // neighbours (so the bicubic support of the pixels around it is not spoilt), and the master
+  // pixel that lands on it is masked. Only where every frame's defect lands is a master pixel empty.
+  const raw = isLinear ? frame.image.planes : linear.planes;
+  const source = linear.masked ? raw.map((p) => repairDefects(p, linear.masked!, width, height)) : raw;
   let planes: Float32Array[];
   let covered: Uint8Array;
   let clipped = linear.clipped;
   let noiseFloor = linear.noiseFloor;
-  // Bicubic samples two pixels around: a defect spoils every master pixel whose support holds it.
-  let masked = linear.masked ? dilateMask(linear.masked, width, height, 2) : undefined;
+  let masked = linear.masked;
   if (identity) {
     planes = isLinear ? source.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p))) : source;
     covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
@@ -257,6 +260,18 @@ export function warpFrameForMerge(
     }
   }
   return { planes, exposureS: effectiveExposureS ?? linear.exposureS, clipped, noiseFloor, covered, clipLevel: linear.clipLevel, masked, noiseSigma: linear.noiseSigma };
+}
+
+/** Master pixels no frame gave any light to (coverage 0 and radiance exactly 0: every frame masked there); undefined when none. */
+function findEmptyPixels(merged: MergeResult): Uint8Array | undefined {
+  const n = merged.width * merged.height;
+  let holes: Uint8Array | undefined;
+  for (let i = 0; i < n; i++) {
+    if (merged.coverage[i] !== 0 || merged.radiance.some((p) => p[i] !== 0)) continue;
+    holes ??= new Uint8Array(n);
+    holes[i] = 1;
+  }
+  return holes;
 }
 
 /** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
@@ -438,16 +453,20 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const merged: MergeResult = finishMerge(acc);
   const master: PlaneImage = { width, height, planes: merged.radiance };
   lap("warp-and-merge");
+  // The master keeps its empty pixels (every frame's defect there); the renditions show them
+  // filled from their neighbours, so that a masked defect is not a black dot in the picture.
+  const holes = findEmptyPixels(merged);
+  const shown: PlaneImage = holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master;
 
   progress("renditions", 0);
   const refOffset = offsets?.[usedFrames[ref].name];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
   const outsideMoon = createValidMask(width, height, referenceMoon);
-  const luminance = computeLuminancePlane(master.planes);
+  const luminance = computeLuminancePlane(shown.planes);
   // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
   const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
-  const natural = renderNatural(master, { valid: outsideMoon, luminance, limbRing });
+  const natural = renderNatural(shown, { valid: outsideMoon, luminance, limbRing });
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
   // within the largest frame displacement (plus the bicubic reach of 2 px) miss some frames.
