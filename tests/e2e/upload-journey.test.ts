@@ -98,7 +98,8 @@ describe("a member's bracket, from disk to a reduction", () => {
     const setId = setUrl.split("/").pop()!;
 
     // No kit: the page says north would be estimated or unknown, before any run, and offers the kit.
-    await expect(page.getByText("No kit is chosen, so nothing says where north is in the image", { exact: false }).first().isVisible()).resolves.toBe(true);
+    // Waits for the text (a loaded machine renders late): isVisible alone does not wait.
+    await page.getByText("No kit is chosen, so nothing says where north is in the image", { exact: false }).first().waitFor({ timeout: 15_000 });
     await page.getByLabel("Kit the frames were taken with").selectOption({ label: kitName });
     await page.getByRole("button", { name: "Save kit" }).click();
     await page.getByText(`North in the image comes from the equatorial mount of the kit “${kitName}”.`).waitFor({ timeout: 15_000 });
@@ -141,7 +142,7 @@ describe("a member's bracket, from disk to a reduction", () => {
     const align = page.getByRole("combobox", { name: /^Align frames on/ });
     await expect(align.locator('option[value="sun"]').isDisabled()).resolves.toBe(true);
     await expect(align.inputValue()).resolves.toBe("corona");
-    await expect(page.getByText(/Not offered: Aligning on the Sun's centre needs every frame's capture time; 4 of 4 frames have none/).isVisible()).resolves.toBe(true);
+    await page.getByText(/Not offered: Aligning on the Sun's centre needs every frame's capture time; 4 of 4 frames have none/).first().waitFor({ timeout: 15_000 });
 
     // A bad CSV changes nothing and names the line and the column.
     const csvPath = path.join(dir, "times.csv");
