@@ -2,6 +2,7 @@
 // robust circle fit. Works on a linear luminance plane (black subtracted).
 import { computeCircleResiduals, fitCircleGeometric, fitCircleTaubin, fitCircleThroughThree, type Circle } from "./circle-fit";
 import { findCoarseDisk } from "./coarse-disk";
+import { fitLimbProfile } from "./limb-profile";
 import { createRng } from "./random";
 
 export type LimbVerdict = "sound" | "doubtful" | "failed";
@@ -49,6 +50,8 @@ export function sampleBilinear(plane: Float32Array, width: number, height: numbe
 interface EdgePoints {
   xs: Float64Array;
   ys: Float64Array;
+  /** Index of the ray each point came from. */
+  rays: Uint32Array;
   clipped: Uint8Array;
   count: number;
   rayCount: number;
@@ -72,7 +75,12 @@ interface EdgePoints {
 // the plate scale the WCS takes from it, does not. So each edge is moved outward by
 // k s^2 measured on its own ray (correctFalloffBias): s^2 from the width of the
 // gradient peak (the log-parabola's curvature is -1 / s^2), k from the light's
-// logarithmic fall beyond the edge, above the dark level inside it.
+// logarithmic fall beyond the edge, above the dark level inside it. That
+// correction still left -0.22 to -0.37 px at 32 px and -0.11 to -0.19 px at
+// 80 px (the light is a power law, not an exponential, and a blurred round
+// disk shrinks by s^2 / 2R besides), so the final radius comes from the limb's
+// mean profile fitted with a forward model (limb-profile.ts); the ray edges
+// give the centre and the rays to trust.
 function traceEdges(plane: Float32Array, width: number, height: number, centre: Circle, halfWindowPx: number, options: LimbFitOptions): EdgePoints {
   const rayCount = Math.max(90, Math.min(1440, Math.round((2 * Math.PI * centre.r) / 1.5)));
   const steps = Math.max(5, Math.ceil(2 * halfWindowPx)) + 1;
@@ -80,6 +88,7 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
   const profile = new Float64Array(steps + FALLOFF_SAMPLES);
   const xs = new Float64Array(rayCount);
   const ys = new Float64Array(rayCount);
+  const rays = new Uint32Array(rayCount);
   const clipped = new Uint8Array(rayCount);
   const clipLevel = options.clipLevel ?? Infinity;
   const minGradient = 4 * (options.noiseSigma ?? 0);
@@ -121,6 +130,7 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
     const rEdge = rStart + best + delta + correctFalloffBias(profile, best, gm, bestGradient, gp, clipLevel);
     xs[count] = centre.cx + rEdge * c;
     ys[count] = centre.cy + rEdge * s;
+    rays[count] = k;
     // Clipped light within three samples outside the edge moves the gradient maximum inward.
     let isClipped = false;
     for (let j = best; j <= Math.min(steps - 1, best + 3); j++) if (profile[j] >= clipLevel) isClipped = true;
@@ -134,7 +144,7 @@ function traceEdges(plane: Float32Array, width: number, height: number, centre: 
     clipped[count] = isClipped ? 1 : 0;
     count++;
   }
-  return { xs, ys, clipped, count, rayCount };
+  return { xs, ys, rays, clipped, count, rayCount };
 }
 
 /**
@@ -219,16 +229,18 @@ export function solveFalloffShift(k: number, measuredS2: number): number {
   return -locate(s2).x;
 }
 
-function selectPoints(points: EdgePoints, keep: (i: number) => boolean): { xs: Float64Array; ys: Float64Array } {
+function selectPoints(points: EdgePoints, keep: (i: number) => boolean): { xs: Float64Array; ys: Float64Array; rays: number[] } {
   const xs: number[] = [];
   const ys: number[] = [];
+  const rays: number[] = [];
   for (let i = 0; i < points.count; i++) {
     if (keep(i)) {
       xs.push(points.xs[i]);
       ys.push(points.ys[i]);
+      rays.push(points.rays[i]);
     }
   }
-  return { xs: Float64Array.from(xs), ys: Float64Array.from(ys) };
+  return { xs: Float64Array.from(xs), ys: Float64Array.from(ys), rays };
 }
 
 function computeMedian(values: ArrayLike<number>): number {
@@ -335,6 +347,15 @@ export function fitLimb(plane: Float32Array, width: number, height: number, opti
       inlierCount, clippedRayCount: clippedCount, verdict, reasons,
     };
     if (verdict === "failed") return result;
+    if (pass === 1 && useUnclipped) {
+      // The radius from the limb's mean profile, which models the bias of the ray edges away (see limb-profile.ts).
+      const usableRays = new Uint8Array(points.rayCount);
+      chosen.rays.forEach((ray, i) => { usableRays[ray] = robust.inliers[i]; });
+      const profile = fitLimbProfile(plane, width, height, circle, {
+        innerPx: Math.min(12, 0.4 * circle.r), outerPx: Math.min(16, 0.5 * circle.r), usableRays, clipped: options.clipped, clipLevel: options.clipLevel,
+      });
+      if (profile) result.radiusPx = profile.radiusPx;
+    }
     halfWindow = Math.max(5, 4 * robust.rmsPx + 3);
   }
   return result!;

@@ -211,24 +211,39 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
         const qx = toScene.a * x - toScene.b * y + toScene.tx;
         const qy = toScene.b * x + toScene.a * y + toScene.ty;
         const rho = Math.sqrt((qx - moon.x) ** 2 + (qy - moon.y) ** 2);
-        // Share of the pixel covered by the Moon: exact away from the edge, 4 x 4 sub-samples within a pixel of it.
+        // Within a pixel of the limb the open part of the pixel is integrated on 4 x 4 sub-samples (light and
+        // cover together: the light at the pixel's centre would stand for a part the Moon hides).
         let covered: number;
-        if (rho < moonR - 1) covered = 1;
-        else if (rho > moonR + 1) covered = 0;
-        else {
+        let c: number;
+        let p: number;
+        if (rho < moonR - 1) {
+          covered = 1;
+          c = 0;
+          p = 0;
+        } else if (rho > moonR + 1) {
           covered = 0;
+          c = evaluateCorona(scene, qx, qy);
+          p = evaluateProminences(scene, qx, qy);
+        } else {
+          covered = 0;
+          c = 0;
+          p = 0;
           for (const sy of SUPERSAMPLE_EDGE) {
             for (const sx of SUPERSAMPLE_EDGE) {
               const ux = qx + toScene.a * sx - toScene.b * sy;
               const uy = qy + toScene.b * sx + toScene.a * sy;
               if ((ux - moon.x) ** 2 + (uy - moon.y) ** 2 < moonR * moonR) covered++;
+              else {
+                c += evaluateCorona(scene, ux, uy);
+                p += evaluateProminences(scene, ux, uy);
+              }
             }
           }
-          covered /= SUPERSAMPLE_EDGE.length ** 2;
+          const samples = SUPERSAMPLE_EDGE.length ** 2;
+          covered /= samples;
+          c /= samples;
+          p /= samples;
         }
-        const open = 1 - covered;
-        const c = open > 0 ? open * evaluateCorona(scene, qx, qy) : 0;
-        const p = open > 0 ? open * evaluateProminences(scene, qx, qy) : 0;
         const e = covered * earthshine;
         const i = y * width + x;
         if (channels === 3) {

@@ -51,7 +51,8 @@ describe("natural rendition of a reduced bracket", () => {
     // A hard clip at the frame's 99th percentile (white set by the whole field, not by the inner corona) burns much of it.
     const lum = computeLuminancePlane(result.master.planes);
     const former = renderNatural(result.master, { valid: outsideMoon, luminance: lum, whitePercentile: 99, shoulderKnee: 1 });
-    expect(measureWhiteFraction(former.image, limbRing, undefined, outsideMoon)).toBeGreaterThan(0.03); // measured 5.4 %
+    // Measured 2.5 % (5.4 % before the Moon's radius came from the limb's mean profile, which moved the masked disk); the aim is 1 %.
+    expect(measureWhiteFraction(former.image, limbRing, undefined, outsideMoon)).toBeGreaterThan(0.02);
   });
 
   it("shows prominences pink-red: red clearly above green and blue, not white", () => {
