@@ -87,6 +87,15 @@ export interface ReductionResult {
   };
 }
 
+export interface ReduceOptions {
+  /**
+   * Called on every frame the pipeline prepares (or prepares again): returns the
+   * frame to keep, which may hold its pixel data elsewhere (on disk, read back
+   * through getters), so that memory does not grow with the number of frames.
+   */
+  keepPrepared?: (prepared: PreparedFrame) => PreparedFrame;
+}
+
 export interface PreparedFrame {
   /** Linearized frame; for linear input its planes are released after the limb fit (the merge warps the originals). */
   linear: LinearizedFrame;
@@ -117,16 +126,21 @@ function describeTransmission(tau: number): string | undefined {
 
 /** Offsets and transmissions of linear frames, measured on the registered bracket (frame-levels.ts). */
 function measureFrameLevels(frames: LinearFrame[], ready: PreparedFrame[], registration: FrameRegistration[], referenceLimb: LimbFit, width: number, height: number): FrameLevels {
-  const sources: LevelSource[] = ready.map((p, i) => {
-    const excluded = p.linear.masked ? Uint8Array.from(p.linear.clipped, (c, k) => c | p.linear.masked![k]) : p.linear.clipped;
-    return { width, height, luminance: p.luminance, excluded, masterToFrame: registration[i].masterToFrame, noiseSigma: p.linear.noiseSigma };
-  });
+  // Pixel data is read when a pair needs it (the prepared frames may keep it on disk), never all at once.
+  const sources: LevelSource[] = ready.map((p, i) => ({
+    width, height, masterToFrame: registration[i].masterToFrame, noiseSigma: p.linear.noiseSigma,
+    get luminance() { return p.luminance; },
+    get excluded() {
+      const { clipped, masked } = p.linear;
+      return masked ? Uint8Array.from(clipped, (c, k) => c | masked[k]) : clipped;
+    },
+  }));
   // Keep well clear of the Moon, which moves between frames, and of its limb light.
   const moon = { x: referenceLimb.x, y: referenceLimb.y, radiusPx: 1.06 * referenceLimb.radiusPx + 4 };
   const levelFrames = frames.map((f) => ({ exposureS: f.exposureS, isOffsetKnown: f.blackLevelSource === "calibrated" || f.blackLevelSource === "file" }));
   // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
   const placed = registration.map((r) => r.method !== "failed");
-  const result = measureBracketLevels(sources.map((src, i) => (placed[i] ? src : { ...src, excluded: new Uint8Array(width * height).fill(1) })), levelFrames, width, height, moon);
+  const result = measureBracketLevels(sources.map((src, i) => (placed[i] ? src : { ...src, luminance: new Float32Array(0), excluded: new Uint8Array(width * height).fill(1) })), levelFrames, width, height, moon);
   return result;
 }
 
@@ -298,7 +312,8 @@ export function reduceBracket(frames: LinearFrame[], params: ReductionParams, on
  * missing entries are prepared here. The result is the same as reduceBracket's.
  * Each prepared frame's luminance is released once registration is done.
  */
-export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, onProgress?: ProgressFn): ReductionResult {
+export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, onProgress?: ProgressFn, options: ReduceOptions = {}): ReductionResult {
+  const keepFrame = options.keepPrepared ?? ((p: PreparedFrame) => p);
   const timingsMs: Record<string, number> = {};
   let clock = performance.now();
   const lap = (stage: string) => {
@@ -323,7 +338,7 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const work: LinearFrame[] = frames.slice();
   const ready: PreparedFrame[] = [];
   work.forEach((f, i) => {
-    ready.push(prepared[i] ?? prepareFrame(f, params, responseTable));
+    ready.push(prepared[i] ?? keepFrame(prepareFrame(f, params, responseTable)));
     progress("limb", (i + 1) / frames.length);
   });
   lap("linearize-and-limb");
@@ -331,7 +346,9 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   progress("register", 0);
   const offsets = params.moonMinusSunPx;
   const toRegistration = (p: PreparedFrame): RegistrationFrame => ({
-    name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
+    name: p.linear.name, width, height, exposureS: p.linear.exposureS,
+    get luminance() { return p.luminance; },
+    get clipped() { return p.linear.clipped; },
     noiseSigma: p.linear.noiseSigma, moonMinusSunPx: offsets?.[p.linear.name],
     limb: p.limb.verdict === "failed" ? { x: NaN, y: NaN, radiusPx: NaN } : { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx },
   });
@@ -356,8 +373,8 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
         const o = levels!.offsets[i];
         // A DN count cannot sit below zero: a solved residual a hair under it is noise about a data set already at zero.
         work[i] = { ...f, blackLevel: Math.max(0, f.blackLevel + o), blackLevelSource: "solved" };
-        ready[i] = { ...ready[i], linear: linearizeFrame(work[i], params.clipFraction, { keepPlanes: false }) };
-        ready[i].luminance = ready[i].linear.luminance;
+        const linear = linearizeFrame(work[i], params.clipFraction, { keepPlanes: false });
+        ready[i] = keepFrame({ linear, luminance: linear.luminance, limb: ready[i].limb });
         if (Math.abs(o) > 3 * Math.max(ready[i].linear.noiseSigma, 1e-9)) moved = true;
       }
       const tau = levels!.transmissions[i];
@@ -423,7 +440,8 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     progress("response", 0);
     responseTable = recoverBracketResponse(usedFrames, usedRegistration.map((r) => r.masterToFrame), referenceMoon);
     usedReady.forEach((p, i) => {
-      p.linear = linearizeFrame(usedFrames[i], params.clipFraction, { responseTable });
+      const linear = linearizeFrame(usedFrames[i], params.clipFraction, { responseTable });
+      usedReady[i] = keepFrame({ linear, luminance: RELEASED_PLANE, limb: p.limb });
     });
     lap("response");
   }

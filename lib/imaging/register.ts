@@ -55,7 +55,12 @@ export interface RegistrationFrame {
  */
 export function assumeMissingLimbs(frames: RegistrationFrame[], referenceIndex: number): RegistrationFrame[] {
   const ref = frames[referenceIndex];
-  return frames.map((f) => (Number.isFinite(f.limb.x) && Number.isFinite(f.limb.radiusPx) ? f : { ...f, limb: { ...ref.limb }, moonMinusSunPx: ref.moonMinusSunPx, limbAssumed: true }));
+  return frames.map((f) => {
+    if (Number.isFinite(f.limb.x) && Number.isFinite(f.limb.radiusPx)) return f;
+    // A copy that keeps the pixel fields as they are (they may be getters over data kept on disk).
+    const copy = Object.defineProperties({}, Object.getOwnPropertyDescriptors(f)) as RegistrationFrame;
+    return Object.assign(copy, { limb: { ...ref.limb }, moonMinusSunPx: ref.moonMinusSunPx, limbAssumed: true });
+  });
 }
 
 export interface RegistrationOptions {

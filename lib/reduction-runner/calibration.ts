@@ -53,11 +53,12 @@ export async function loadCalibrationMasters(files: CalibrationFiles | undefined
  * masters, masks the defects the bracket itself shows. Linear frames only: an
  * 8-bit bracket is returned as it is.
  */
-export function calibrateBracket(frames: LinearFrame[], masters: CalibrationMasters | undefined): CalibrationReport {
+export function calibrateBracket(frames: LinearFrame[], masters: CalibrationMasters | undefined, onCalibrated?: (frame: LinearFrame) => void): CalibrationReport {
   if (frames.length === 0 || frames[0].encoding !== "linear") return { source: "none", badPixelCount: 0 };
   if (masters) {
     frames.forEach((f, i) => {
       frames[i] = calibrateLightFrame(f, masters);
+      onCalibrated?.(frames[i]);
     });
     return { source: "masters", summary: masters.summary, badPixelCount: countSet(masters.badPixels) };
   }

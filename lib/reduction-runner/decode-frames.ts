@@ -7,6 +7,7 @@ import { decodeFrame, type DecodedFrame, type MediaFormat } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
+import { spillPrepared, type FrameSpill } from "./frame-spill";
 import type { PooledFrame, PreparePool } from "./prepare-pool";
 
 /** Frames decoded side by side: sharp already uses two threads per image, so more only adds memory. */
@@ -98,6 +99,7 @@ export async function decodeBracketFiles(
   onProgress?: (fraction: number) => void,
   inPool?: PrepareInPool,
   captureTimeOverrides: Map<string, number> = new Map(),
+  spill?: FrameSpill,
 ): Promise<DecodedBracket> {
   checkFileList(files);
   for (const [name, exposureS] of exposureOverrides) {
@@ -118,6 +120,12 @@ export async function decodeBracketFiles(
       pooled[k] = await inPool?.pool.run(files[k], name, inPool.params, exposureOverrides.get(name));
       // Without a pool, or when a worker failed, the frame is decoded here (and a fault thrown as usual).
       decoded[k] = pooled[k]?.decoded ?? (await decodeFrame(files[k], name));
+      // Each frame's pixels go to disk as soon as it is decoded: memory holds the frames in flight only.
+      if (spill) {
+        spill.spillField(decoded[k].image, "planes");
+        const ready = pooled[k]?.prepared;
+        if (ready) spillPrepared(spill, ready);
+      }
       onProgress?.(++done / files.length);
     }
   });

@@ -3,7 +3,7 @@
 // worker's reduction job later. Output goes to a staging folder that is renamed
 // into place only when everything is written; on any failure it is removed, so
 // a failed run leaves nothing behind and never touches an earlier reduction.
-import { writeFile } from "node:fs/promises";
+import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { reducePreparedBracket } from "@/lib/imaging/pipeline";
 import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
@@ -13,6 +13,7 @@ import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters } from "./calibration";
+import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
 import { createPreparePool } from "./prepare-pool";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
 import { buildReport, type ReductionReport } from "./report";
@@ -60,6 +61,28 @@ export interface RunReductionOptions {
    */
   calibrationFiles?: { bias: string[]; dark: string[]; flat: string[] };
   onProgress?: RunProgressFn;
+  /**
+   * Keep each frame's pixels in a scratch folder on local disk between stages, so
+   * that memory does not grow with the number of frames: "auto" (the default) does
+   * when the files together exceed SPILL_ABOVE_FILE_BYTES.
+   */
+  spill?: "auto" | "always" | "never";
+  /** Folder for that scratch data; default the system's temporary folder. */
+  scratchDir?: string;
+}
+
+/** Brackets whose files together exceed this are reduced with their frames kept on disk between stages. */
+export const SPILL_ABOVE_FILE_BYTES = 512 * 1024 ** 2;
+
+async function openSpill(options: RunReductionOptions): Promise<FrameSpill | undefined> {
+  const mode = options.spill ?? "auto";
+  if (mode === "never") return undefined;
+  if (mode === "auto") {
+    let total = 0;
+    for (const file of options.files) total += (await stat(file).catch(() => ({ size: 0 }))).size;
+    if (total <= SPILL_ABOVE_FILE_BYTES) return undefined;
+  }
+  return createFrameSpill({ parentDir: options.scratchDir });
 }
 
 export interface RunReductionResult {
@@ -98,6 +121,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   };
 
   const output = await createStagedOutput(options.outDir);
+  const spill = await openSpill(options);
   try {
     progress("decode", 0);
     // Frames are decoded, linearized and limb-fitted in two worker threads; the
@@ -106,9 +130,9 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     // frames (made from uncalibrated data) serve only a bracket without it.
     const masters = await loadCalibrationMasters(options.calibrationFiles, overrides);
     const pool = createPreparePool();
-    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), masters ? undefined : { pool, params }, options.captureTimeOverrides).finally(() => pool.close());
+    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), masters ? undefined : { pool, params }, options.captureTimeOverrides, spill).finally(() => pool.close());
     const { frames, provenance } = decodedBracket;
-    const calibration = calibrateBracket(frames, masters);
+    const calibration = calibrateBracket(frames, masters, spill && ((frame) => spill.spillField(frame.image, "planes")));
     // Defects found in the bracket change the prepared frames' masks: the pipeline prepares again.
     if (calibration.source !== "none") decodedBracket.prepared.fill(undefined);
     applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
@@ -124,7 +148,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
 
     // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
     const prepared = sky.pipelineParams.clipFraction === params.clipFraction ? decodedBracket.prepared : [];
-    const result = reducePreparedBracket(frames, prepared, sky.pipelineParams, progress);
+    const result = reducePreparedBracket(frames, prepared, sky.pipelineParams, progress, spill ? { keepPrepared: (p) => spillPrepared(spill, p) } : {});
+    spill?.close();
     decodedBracket.prepared.length = 0;
     const helio = sky.completeGeometry(result);
     // The pipeline's own stage times, then the total it took (which includes validation).
@@ -192,5 +217,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   } catch (error) {
     await discardStagedOutput(output);
     throw error;
+  } finally {
+    spill?.close();
   }
 }
