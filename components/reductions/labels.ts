@@ -28,7 +28,9 @@ const STAGES: Record<string, string> = {
   "limb-fit": "Fitting the lunar limb",
   limb: "Fitting the lunar limb",
   register: "Registering frames",
+  levels: "Measuring each frame's offset and light",
   response: "Recovering the camera response",
+  "merge-pilot": "Merging, first pass",
   merge: "Merging",
   renditions: "Rendering",
   "write-master": "Writing the master FITS",
@@ -45,12 +47,28 @@ export function describeStage(stage: string | null): string {
   return STAGES[stage] ?? stage;
 }
 
+/** What a stage that works frame by frame counts. */
+const FRAME_STAGES: Record<string, string> = {
+  fetch: "Frames fetched",
+  decode: "Frames decoded",
+  limb: "Frames measured",
+  "merge-pilot": "Frames merged in the first pass",
+  merge: "Frames merged",
+};
+
+/** "Frames measured: 41 of 120" for a stage that works frame by frame, else null. */
+export function describeStageFrames(stage: string | null, frames: { done: number; total: number } | null): string | null {
+  if (!stage || !frames || !(frames.total > 0)) return null;
+  return `${FRAME_STAGES[stage] ?? "Frames done"}: ${frames.done} of ${frames.total}`;
+}
+
 /** Stage-log names of report.json's timings. */
 const TIMINGS: Record<string, string> = {
   decode: "Decode and limb fits",
   "sky-geometry": "Sky geometry",
   "linearize-and-limb": "Linearize and limb fits",
   register: "Register",
+  levels: "Offsets and transmissions",
   response: "Camera response",
   "warp-and-merge": "Warp and merge",
   renditions: "Renditions",

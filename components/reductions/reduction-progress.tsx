@@ -3,13 +3,15 @@ import { useRouter } from "next/navigation";
 import { useEffect, useRef, useState } from "react";
 import { Badge } from "@/components/ui/badge";
 import { ProgressBar } from "@/components/ui/progress-bar";
-import { describeStage, STATE_TONES } from "./labels";
+import { describeStage, describeStageFrames, STATE_TONES } from "./labels";
 
 export interface ReductionProgressState {
   state: "queued" | "running" | "done" | "failed";
   stage: string | null;
   /** Fraction 0..1 of the current stage. */
   progress: number;
+  /** Frames done of frames to do, when the stage works frame by frame. */
+  stageFrames?: { done: number; total: number } | null;
   error: string | null;
 }
 
@@ -46,7 +48,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
         if (!res.ok) throw new Error(String(res.status));
         const body = (await res.json()) as ReductionProgressState;
         setFailures(0);
-        setCurrent({ state: body.state, stage: body.stage, progress: body.progress, error: body.error });
+        setCurrent({ state: body.state, stage: body.stage, progress: body.progress, stageFrames: body.stageFrames ?? null, error: body.error });
       } catch {
         if (!stopped) setFailures((n) => n + 1);
       }
@@ -65,6 +67,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   }, [current.state, router]);
 
   const stage = describeStage(current.stage);
+  const frameCount = current.state === "running" ? describeStageFrames(current.stage, current.stageFrames ?? null) : null;
   const percent = Math.round(Math.min(1, Math.max(0, current.progress)) * 100);
   // What the live region says: the stage and the end, not every percent.
   const announcement =
@@ -77,8 +80,9 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
         {current.state === "done" ? <span className="text-ink-muted">Finished: the results are below.</span> : null}
       </div>
       {isActive(current.state) ? (
-        <ProgressBar label={current.state === "queued" ? "Queued" : stage} value={current.state === "queued" ? undefined : percent} max={100} valueText={current.state === "queued" ? "waiting" : `${percent}% of this stage`} />
+        <ProgressBar label={current.state === "queued" ? "Queued" : stage} value={current.state === "queued" ? undefined : percent} max={100} valueText={current.state === "queued" ? "waiting" : frameCount ?? `${percent}% of this stage`} />
       ) : null}
+      {frameCount ? <p className="text-sm text-ink-muted">{frameCount}</p> : null}
       {current.state === "failed" ? (
         <p role="alert" className="rounded-control border border-danger/50 bg-danger/10 px-3 py-2 text-danger">
           {current.error ?? "The reduction failed without a reason on record."}

@@ -1,6 +1,6 @@
 // Reductions: one processing run of a bracket set with its parameters. A set
 // has many; none overwrites another (outputs live under the reduction's id).
-import { index, jsonb, pgTable, real, text, timestamp, uuid } from "drizzle-orm/pg-core";
+import { index, integer, jsonb, pgTable, real, text, timestamp, uuid } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { bracketSets } from "./brackets";
 
@@ -29,6 +29,9 @@ export const reductions = pgTable(
     state: text("state", { enum: REDUCTION_STATES }).notNull().default("queued"),
     stage: text("stage"),
     progress: real("progress").notNull().default(0),
+    /** For a stage that works frame by frame: frames done of frames to do (null otherwise). */
+    stageFramesDone: integer("stage_frames_done"),
+    stageFramesTotal: integer("stage_frames_total"),
     error: text("error"),
     pipelineVersion: text("pipeline_version"),
     /** Object keys of the outputs by role (master, natural, structure, preview, report, tiles prefix). */

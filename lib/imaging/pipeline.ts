@@ -16,7 +16,7 @@ import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectR
 import { applyAffine, composeAffine, fromAffine, type AffineSimilarity, type SimilarityTransform } from "./similarity";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import { computePercentiles, measureWhiteFraction, renderNatural, renderStructure } from "./tone";
-import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type BlackLevelSource, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
+import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type BlackLevelSource, type FrameCount, type LinearFrame, type PlaneImage, type ProgressFn, type ReductionParams } from "./types";
 
 export const PIPELINE_VERSION = "crownlight-imaging 0.2.0";
 
@@ -321,7 +321,7 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
     timingsMs[stage] = (timingsMs[stage] ?? 0) + (now - clock);
     clock = now;
   };
-  const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
+  const progress = (stage: string, fraction: number, count?: FrameCount) => onProgress?.(stage, fraction, count);
   validateBracket(frames);
   if (!(params.clipFraction > 0 && params.clipFraction <= 1)) throw new ImagingError("bad-parameter", `clipFraction must be in (0, 1], got ${params.clipFraction}`);
   if (params.filter !== "mgn" && params.filter !== "nrgf") throw new ImagingError("bad-parameter", `filter must be "mgn" or "nrgf", got ${String(params.filter)}`);
@@ -339,7 +339,7 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const ready: PreparedFrame[] = [];
   work.forEach((f, i) => {
     ready.push(prepared[i] ?? keepFrame(prepareFrame(f, params, responseTable)));
-    progress("limb", (i + 1) / frames.length);
+    progress("limb", (i + 1) / frames.length, { done: i + 1, total: frames.length });
   });
   lap("linearize-and-limb");
 
@@ -456,7 +456,7 @@ export function reducePreparedBracket(frames: LinearFrame[], prepared: readonly 
   const mergePass = (acc: MergeAccumulator, stage: string) => {
     usedReady.forEach((p, i) => {
       addFrameToMerge(acc, warpFrameForMerge(usedFrames[i], p, usedRegistration[i].masterToFrame, track.disks[i], referenceMoon, scratch, effectiveExposures[i]));
-      progress(stage, (i + 1) / usedReady.length);
+      progress(stage, (i + 1) / usedReady.length, { done: i + 1, total: usedReady.length });
     });
     return acc;
   };

@@ -82,7 +82,13 @@ export const DEFAULT_REDUCTION_PARAMS: ReductionParams = {
 /** Allowed range of ReductionParams.filterStrength (the same as the start form's). */
 export const FILTER_STRENGTH_RANGE = { min: 0.05, max: 1 } as const;
 
-export type ProgressFn = (stage: string, fraction: number) => void;
+/** Frames done of the frames a per-frame stage handles ("frames measured 41 of 120"). */
+export interface FrameCount {
+  done: number;
+  total: number;
+}
+
+export type ProgressFn = (stage: string, fraction: number, frames?: FrameCount) => void;
 
 // The pipeline's result shapes live beside reduceBracket; re-exported here so
 // that callers can import every contract type from one module.

@@ -7,7 +7,7 @@ import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { reducePreparedBracket } from "@/lib/imaging/pipeline";
 import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
-import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
+import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type FrameCount, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
 import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles } from "./decode-frames";
@@ -21,7 +21,7 @@ import { createHalvingCache, RENDITIONS, writeMasterFits, writePreview, writeRen
 import { applyClockOffsetToBracket, checkSkyOptions, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "./sky-run";
 import type { TilePyramidResult } from "./tiles";
 
-export type RunProgressFn = (stage: string, fraction: number) => void;
+export type RunProgressFn = (stage: string, fraction: number, frames?: FrameCount) => void;
 
 export interface RunReductionOptions {
   files: string[];
@@ -111,7 +111,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   checkOverridesMatchFiles(overrides, options.files, options.exposureOverrideSource);
   checkOutputOptions(params, options.outputLongSidePx);
   const outputLongSidePx = options.outputLongSidePx ?? 0;
-  const progress: RunProgressFn = (stage, fraction) => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)));
+  const progress: RunProgressFn = (stage, fraction, frames) => options.onProgress?.(stage, Math.min(1, Math.max(0, fraction)), frames);
   const timingsMs: Record<string, number> = {};
   let clock = performance.now();
   const lap = (stage: string) => {
@@ -130,7 +130,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     // frames (made from uncalibrated data) serve only a bracket without it.
     const masters = await loadCalibrationMasters(options.calibrationFiles, overrides);
     const pool = createPreparePool();
-    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f), masters ? undefined : { pool, params }, options.captureTimeOverrides, spill).finally(() => pool.close());
+    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f, { done: Math.round(f * options.files.length), total: options.files.length }), masters ? undefined : { pool, params }, options.captureTimeOverrides, spill).finally(() => pool.close());
     const { frames, provenance } = decodedBracket;
     const calibration = calibrateBracket(frames, masters, spill && ((frame) => spill.spillField(frame.image, "planes")));
     // Defects found in the bracket change the prepared frames' masks: the pipeline prepares again.

@@ -34,6 +34,8 @@ export interface ReductionDto {
   state: Reduction["state"];
   stage: string | null;
   progress: number;
+  /** Frames done of frames to do, for a stage that works frame by frame. */
+  stageFrames: { done: number; total: number } | null;
   error: string | null;
   pipelineVersion: string | null;
   measurements: Record<string, unknown> | null;
@@ -48,6 +50,7 @@ const toDto = (r: Reduction): ReductionDto => ({
   state: r.state,
   stage: r.stage,
   progress: r.progress,
+  stageFrames: r.stageFramesDone !== null && r.stageFramesTotal !== null ? { done: r.stageFramesDone, total: r.stageFramesTotal } : null,
   // Reasons stored before the worker worded them for people may still name the runner's options.
   error: r.error === null ? null : rewordRunnerMessage(r.error),
   pipelineVersion: r.pipelineVersion,

@@ -89,3 +89,13 @@ describe("CoverageMap", () => {
     expect(html).toContain(">60.0%<");
   });
 });
+
+describe("a stage's frame count as the progress shows it", () => {
+  it("names what the stage counts, and says nothing for stages that do not count frames", async () => {
+    const { describeStageFrames } = await import("@/components/reductions/labels");
+    expect(describeStageFrames("limb", { done: 41, total: 120 })).toBe("Frames measured: 41 of 120");
+    expect(describeStageFrames("merge-pilot", { done: 3, total: 9 })).toBe("Frames merged in the first pass: 3 of 9");
+    expect(describeStageFrames("tiles", null)).toBeNull();
+    expect(describeStageFrames("limb", { done: 0, total: 0 })).toBeNull();
+  });
+});

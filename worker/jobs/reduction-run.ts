@@ -6,6 +6,7 @@ import { eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, jobRuns, kits, reductions, sites } from "@/db/schema";
 import { ImagingError } from "@/lib/imaging/errors";
+import type { FrameCount } from "@/lib/imaging/types";
 import { MediaError } from "@/lib/media/errors";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
 import { runReductionOnFiles, type RunReductionOptions } from "@/lib/reduction-runner/run-reduction";
@@ -85,8 +86,8 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
     throw err;
   }
 
-  const setProgress = async (stage: string, fraction: number) => {
-    await db.update(reductions).set({ stage, progress: fraction }).where(eq(reductions.id, red.id));
+  const setProgress = async (stage: string, fraction: number, frames?: FrameCount) => {
+    await db.update(reductions).set({ stage, progress: fraction, stageFramesDone: frames?.done ?? null, stageFramesTotal: frames?.total ?? null }).where(eq(reductions.id, red.id));
     await report(stage, fraction);
   };
   await db.update(reductions).set({ state: "running", startedAt: sql`now()`, error: null, progress: 0 }).where(eq(reductions.id, red.id));
@@ -112,7 +113,7 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       if (f.exposureSource === "photographer" && f.exposureS !== null) overrides.set(name, f.exposureS);
       // Camera-clock times the photographer gave; the set's clock offset applies to them as to the files' own.
       if (f.givenCaptureAt) captureTimes.set(name, f.givenCaptureAt.getTime());
-      await setProgress("fetch", (i + 1) / frameRows.length);
+      await setProgress("fetch", (i + 1) / frameRows.length, { done: i + 1, total: frameRows.length });
     }
     // The set's calibration frames (bias, dark, flat) go into the same folder, after the lights: names stay
     // unique across all, and the photographer's exposure corrections reach a dark as they reach a light.
@@ -156,11 +157,11 @@ export const runReduction: JobHandler<"reduction.run"> = async ({ db, jobId, pay
       exposureOverrideSource: "the photographer's corrections",
       // IIIF ids name where the app serves this reduction's tiles, not the worker's temporary folder.
       iiifBaseUrl: `${(process.env.APP_URL ?? "").replace(/\/+$/, "")}/iiif/reductions/${red.id}`,
-      onProgress: (stage: string, fraction: number) => {
+      onProgress: (stage: string, fraction: number, frames?: FrameCount) => {
         // Mirror at most every 2 %, without awaiting inside the pipeline's loop.
         if (fraction - last >= 0.02 || fraction === 1 || fraction === 0) {
           last = fraction;
-          void setProgress(stage, fraction).catch(() => undefined);
+          void setProgress(stage, fraction, frames).catch(() => undefined);
         }
       },
     };

@@ -46,10 +46,23 @@ describe("a reduction with its frames kept on disk", () => {
   it("gives the same master and report as one held in memory", async () => {
     const files = fixture.filesOf("tiff");
     const exposureOverrides = new Map(files.map((f, k) => [basename(f), fixture.exposuresS[k]]));
+    const counts = new Map<string, { done: number; total: number }[]>();
     const run = (spill: "always" | "never") =>
-      runReductionOnFiles({ files, outDir: join(fixture.dir, "..", `spill-${spill}`), registration: "corona", exposureOverrides, spill });
+      runReductionOnFiles({
+        files, outDir: join(fixture.dir, "..", `spill-${spill}`), registration: "corona", exposureOverrides, spill,
+        onProgress: (stage, _fraction, frames) => {
+          if (spill === "always" && frames) counts.set(stage, [...(counts.get(stage) ?? []), frames]);
+        },
+      });
     const inMemory = await run("never");
     const onDisk = await run("always");
+    // Stages that work frame by frame say how many frames they have done, ending at all of them.
+    for (const stage of ["decode", "limb", "merge-pilot", "merge"]) {
+      const seen = counts.get(stage) ?? [];
+      expect(seen.length, stage).toBeGreaterThan(0);
+      expect(seen.at(-1), stage).toEqual({ done: files.length, total: files.length });
+      expect(seen.every((c, k) => k === 0 || c.done >= seen[k - 1].done), stage).toBe(true);
+    }
     const masterOf = (dir: string) => readFileSync(join(dir, "master.fits"));
     const a = masterOf(inMemory.outDir);
     const b = masterOf(onDisk.outDir);

@@ -59,7 +59,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
 
       <ScaleWarning text={checks.scaleWarning} />
 
-      <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, error: reduction.error }} />
+      <ReductionProgress reductionId={reduction.id} initial={{ state: reduction.state, stage: reduction.stage, progress: reduction.progress, stageFrames: reduction.stageFrames, error: reduction.error }} />
 
       <PageSection id="parameters" title="Parameters">
         <ReductionParameters params={reduction.params as ShownParams} />
