@@ -348,6 +348,60 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
   acc.frameWellExposed.push(well / n);
 }
 
+/**
+ * Joins partial merges of consecutive slices of one bracket's frames (parts in
+ * frame order, each made by addFrameToMerge over its own slice, with the same
+ * weighting and pilot) into the merge of the whole, so that slices can be merged
+ * in separate processes. Sums, exposure weights and coverage add; the clipped
+ * fallback is the largest; per pixel the worst frame is the one with the highest
+ * score, the earlier frame on a tie, as one pass over all frames in order keeps
+ * it. The per-frame records follow in order. The only difference from one pass
+ * is the order of float additions (float32 sums: about 1e-7 relative). The first
+ * part is reused for the result; the others are left as they are.
+ */
+export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumulator {
+  if (parts.length === 0) throw new ImagingError("too-few-frames", "nothing to combine: no partial merges");
+  const acc = parts[0];
+  const n = acc.width * acc.height;
+  for (const part of parts.slice(1)) {
+    if (part.width !== acc.width || part.height !== acc.height || part.channels !== acc.channels || part.weighting !== acc.weighting) {
+      throw new ImagingError("size-mismatch", "partial merges differ in size, planes or weighting");
+    }
+    if (Boolean(part.worst) !== Boolean(acc.worst)) throw new ImagingError("bad-parameter", "partial merges differ in pass: some have a pilot and some not");
+    const firstFrame = acc.frameWeight.length;
+    for (let c = 0; c < acc.sums.length; c++) {
+      const into = acc.sums[c], from = part.sums[c];
+      for (let i = 0; i < n; i++) into[i] += from[i];
+    }
+    for (let c = 0; c < acc.weights.length; c++) {
+      const into = acc.weights[c], from = part.weights[c];
+      for (let i = 0; i < n; i++) into[i] += from[i];
+    }
+    for (let i = 0; i < n; i++) {
+      acc.coverage[i] += part.coverage[i];
+      if (part.fallback[i] > acc.fallback[i]) acc.fallback[i] = part.fallback[i];
+    }
+    const worst = acc.worst;
+    const other = part.worst;
+    if (worst && other) {
+      for (let i = 0; i < n; i++) {
+        if (other.frame[i] < 0 || !(other.score[i] > worst.score[i])) continue;
+        worst.score[i] = other.score[i];
+        worst.frame[i] = firstFrame + other.frame[i];
+        worst.weight[i] = other.weight[i];
+        worst.wellExposed[i] = other.wellExposed[i];
+        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = other.contribution[c][i];
+      }
+    }
+    acc.frameWeight.push(...part.frameWeight);
+    acc.frameContributing.push(...part.frameContributing);
+    acc.frameWellExposed.push(...part.frameWellExposed);
+    acc.frameRejected.push(...part.frameRejected);
+    acc.frameConsidered.push(...part.frameConsidered);
+  }
+  return acc;
+}
+
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
   if (acc.worst) removeOutliers(acc);
