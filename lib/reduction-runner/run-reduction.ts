@@ -5,7 +5,10 @@
 // a failed run leaves nothing behind and never touches an earlier reduction.
 import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
-import { reducePreparedBracket } from "@/lib/imaging/pipeline";
+import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
+import { planBracket } from "@/lib/imaging/bracket-plan";
+import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
+import type { LinearFrame } from "@/lib/imaging/types";
 import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
 import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type FrameCount, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
@@ -101,6 +104,28 @@ export function checkOutputOptions(params: ReductionParams, outputLongSidePx: nu
   }
 }
 
+/** Lets the event loop run (a queue's lock renewal, progress writes) between pieces of numeric work. */
+const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
+ * The numeric core's stages in order, as reducePreparedBracket runs them, but
+ * giving the event loop a turn after the plan and after every frame merged, so
+ * that a worker's job lock is renewed during a long reduction.
+ */
+async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined): Promise<ReductionResult> {
+  const { plan, ready } = planBracket(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) });
+  await yieldToEventLoop();
+  const started = performance.now();
+  const steps = mergeKeptFramesInSteps(plan, frames, ready, progress);
+  let step = steps.next();
+  while (!step.done) {
+    await yieldToEventLoop();
+    step = steps.next();
+  }
+  const acc = step.value;
+  return finishBracket(plan, acc, progress, performance.now() - started);
+}
+
 export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
   const started = performance.now();
   const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
@@ -148,7 +173,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
 
     // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
     const prepared = sky.pipelineParams.clipFraction === params.clipFraction ? decodedBracket.prepared : [];
-    const result = reducePreparedBracket(frames, prepared, sky.pipelineParams, progress, spill ? { keepPrepared: (p) => spillPrepared(spill, p) } : {});
+    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, progress, spill);
     spill?.close();
     decodedBracket.prepared.length = 0;
     const helio = sky.completeGeometry(result);

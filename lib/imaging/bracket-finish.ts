@@ -1,0 +1,197 @@
+// The merge and the finish of a reduction: merge passes over any slice of the
+// kept frames (the accumulators of slices combine, see merge.ts), then the
+// master, its renditions and the per-frame report from the plan.
+import { type PreparedFrame, warpFrameForMerge, LIMB_MARGIN_PX } from "./frame-stage";
+import { describeTransmission, type BracketPlan } from "./bracket-plan";
+import { repairDefects } from "./linearize";
+import { addFrameToMerge, createMergeAccumulator, finishMerge, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
+import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
+import type { WarpTarget } from "./resample";
+import { createCodeLookup } from "./response";
+import { applyAffine, fromAffine } from "./similarity";
+import { computeLuminancePlane } from "./srgb";
+import { createStructureMask } from "./structure-noise";
+import { computePercentiles, measureWhiteFraction, renderNatural, renderStructure } from "./tone";
+import { DEFAULT_REDUCTION_PARAMS, type FrameCount, type LinearFrame, type PlaneImage } from "./types";
+import { PIPELINE_VERSION } from "./version";
+import type { ReductionResult } from "./pipeline";
+
+/**
+ * An empty accumulator for one merge pass of the plan's frames: 8-bit frames
+ * merge once with the camera response; linear frames twice, the second pass
+ * with the first's result as its pilot (weights and outlier test).
+ */
+export function createMergePass(plan: BracketPlan, pilot?: PhotonPilot): MergeAccumulator {
+  const { width, height, channels } = plan;
+  if (plan.isEncoded) return createMergeAccumulator(width, height, channels, "debevec-hat", createCodeLookup(plan.responseTable!));
+  return createMergeAccumulator(width, height, channels, "photon", undefined, pilot);
+}
+
+/** Warp buffers that serve every frame of a pass in turn. */
+export function createWarpScratch(plan: BracketPlan): WarpTarget {
+  const n = plan.width * plan.height;
+  return {
+    planes: Array.from({ length: plan.channels }, () => new Float32Array(n)),
+    covered: new Uint8Array(n),
+    masks: Array.from({ length: 4 }, () => new Uint8Array(n)),
+  };
+}
+
+/**
+ * Warps kept frames into master pixels and adds them to a pass. `position` is
+ * the frame's place in plan.keep; frames must come in that order within a pass
+ * (slices of consecutive positions, each into its own accumulator, combine).
+ */
+export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, scratch: WarpTarget): void {
+  const k = plan.keep[position];
+  const offset = plan.offsets[k];
+  // The merge subtracts the offset the plan settled on (solved from the bracket, when the file had none).
+  const settled: LinearFrame = offset.blackLevel === frame.blackLevel ? frame : { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
+  addFrameToMerge(acc, warpFrameForMerge(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, scratch, plan.effectiveExposuresS[position]));
+}
+
+/**
+ * Both passes (one for 8-bit frames) over every kept frame, one frame a step:
+ * the generator yields after each frame and returns the last pass's
+ * accumulator, so that a caller may give its event loop a turn between frames.
+ */
+export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void): Generator<void, MergeAccumulator, void> {
+  const scratch = createWarpScratch(plan);
+  const total = plan.keep.length;
+  function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
+    for (let i = 0; i < total; i++) {
+      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch);
+      onProgress?.(stage, (i + 1) / total, { done: i + 1, total });
+      yield;
+    }
+    return acc;
+  }
+  if (plan.isEncoded) return yield* pass(createMergePass(plan), "merge");
+  const first = yield* pass(createMergePass(plan), "merge-pilot");
+  return yield* pass(createMergePass(plan, { sums: first.sums, weights: first.weights[0] }), "merge");
+}
+
+/** mergeKeptFramesInSteps run to its end. */
+export function mergeKeptFrames(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void): MergeAccumulator {
+  const steps = mergeKeptFramesInSteps(plan, frames, ready, onProgress);
+  for (;;) {
+    const step = steps.next();
+    if (step.done) return step.value;
+  }
+}
+
+/** Master pixels no frame gave any light to (coverage 0 and radiance exactly 0: every frame masked there); undefined when none. */
+function findEmptyPixels(merged: MergeResult): Uint8Array | undefined {
+  const n = merged.width * merged.height;
+  let holes: Uint8Array | undefined;
+  for (let i = 0; i < n; i++) {
+    if (merged.coverage[i] !== 0 || merged.radiance.some((p) => p[i] !== 0)) continue;
+    holes ??= new Uint8Array(n);
+    holes[i] = 1;
+  }
+  return holes;
+}
+
+/** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
+export function measureDynamicRangeStops(lum: Float32Array, width: number, height: number, coverage: Uint16Array, moon: LunarDisk): number {
+  const valid = createValidMask(width, height, { ...moon, radiusPx: moon.radiusPx + LIMB_MARGIN_PX });
+  for (let i = 0; i < lum.length; i++) if (!coverage[i] || !(lum[i] > 0)) valid[i] = 0;
+  const [lo, hi] = computePercentiles(lum, [0.1, 99.9], valid);
+  return lo > 0 && hi > lo ? Math.log2(hi / lo) : 0;
+}
+
+/** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
+export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+  let clock = performance.now();
+  const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
+  const { width, height, params, referenceMoon, ref, keep } = plan;
+  const isEncoded = plan.isEncoded;
+  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
+  const offsets = params.moonMinusSunPx;
+  const timingsMs: Record<string, number> = { ...plan.timingsMs };
+  const merged: MergeResult = finishMerge(acc);
+  const master: PlaneImage = { width, height, planes: merged.radiance };
+  timingsMs["warp-and-merge"] = mergeMs + (performance.now() - clock);
+  clock = performance.now();
+  // The master keeps its empty pixels (every frame's defect there); the renditions show them
+  // filled from their neighbours, so that a masked defect is not a black dot in the picture.
+  const holes = findEmptyPixels(merged);
+  const shown: PlaneImage = holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master;
+
+  progress("renditions", 0);
+  const refOffset = offsets?.[plan.names[keep[ref]]];
+  const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
+  const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
+  const outsideMoon = createValidMask(width, height, referenceMoon);
+  const luminance = computeLuminancePlane(shown.planes);
+  // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
+  const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
+  const natural = renderNatural(shown, { valid: outsideMoon, luminance, limbRing });
+  const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
+  // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
+  // within the largest frame displacement (plus the bicubic reach of 2 px) miss some frames.
+  let reachPx = 0;
+  for (const r of plan.registration) {
+    for (const [x, y] of [[0, 0], [width - 1, 0], [0, height - 1], [width - 1, height - 1]]) {
+      const p = applyAffine(r.masterToFrame, x, y);
+      reachPx = Math.max(reachPx, Math.hypot(p.x - x, p.y - y));
+    }
+  }
+  const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
+  const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
+  // The strength weighs local structure against the overall image: MGN's h is its complement.
+  const filtered = params.filter === "mgn"
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
+  const structure = renderStructure(filtered, width, height);
+  const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
+  progress("renditions", 1);
+  timingsMs.renditions = performance.now() - clock;
+
+  return {
+    master,
+    coverage: merged.coverage,
+    poorlyExposedCount: merged.poorlyExposedCount,
+    natural: natural.image,
+    structure,
+    frames: keep.map((k, i) => {
+      const r = plan.registration[i];
+      const levels = plan.levels;
+      const source = plan.offsets[k].blackLevelSource ?? (isEncoded ? undefined : "none");
+      const undetermined = levels?.undetermined.includes(k) ?? false;
+      const tau = plan.transmissions[i];
+      return {
+        name: plan.names[k], width, height, exposureS: plan.exposuresS[i], limb: plan.limbs[i],
+        transform: fromAffine(r.masterToFrame, width, height),
+        registrationPeak: r.peak,
+        registeredAgainst: r.neighbour >= 0 ? plan.names[r.neighbour] : null,
+        registrationMethod: r.method === "failed" ? "limb" : r.method,
+        registrationNote: r.method === "limb" ? `placed by its limb fit alone: ${r.reason}` : undefined,
+        offset: isEncoded ? undefined : {
+          dn: plan.offsets[k].blackLevel,
+          source: source!,
+          sigmaDn: source === "solved" && levels ? levels.offsetSigmas[k] : undefined,
+          note: undetermined && source === "none" ? "its offset could not be determined: no other frame sees enough of the same sky well; taken as zero" : undefined,
+        },
+        transmission: tau,
+        effectiveExposureS: plan.effectiveExposuresS[i],
+        transmissionNote: describeTransmission(tau),
+        weights: merged.frameStats[i],
+      };
+    }),
+    leftOut: plan.leftOut,
+    overall: {
+      referenceFrame: plan.names[keep[ref]],
+      moonCentre: { x: referenceMoon.x, y: referenceMoon.y },
+      moonRadiusPx: referenceMoon.radiusPx,
+      moonSource: plan.moonSources[ref],
+      sunCentre,
+      filterCentre,
+      dynamicRangeStops,
+      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta, whiteFractionAtLimb: measureWhiteFraction(natural.image, limbRing, undefined, outsideMoon) },
+      timingsMs,
+      pipelineVersion: PIPELINE_VERSION,
+      parameters: params,
+    },
+  };
+}
