@@ -292,10 +292,13 @@ export function collectPairSamples(
   const yi: number[] = [];
   const yj: number[] = [];
   const floorJ = 20 * b.noiseSigma;
-  const blocked = (src: LevelSource, x: number, y: number) => {
+  // Pixel data read once per pair: a source's fields may be getters that build or fetch a whole frame.
+  const lumA = a.luminance, lumB = b.luminance;
+  const excludedA = a.excluded, excludedB = b.excluded;
+  const blocked = (excluded: Uint8Array, width: number, x: number, y: number) => {
     const x0 = Math.floor(x), y0 = Math.floor(y);
-    const k = y0 * src.width + x0;
-    return src.excluded[k] || src.excluded[k + 1] || src.excluded[k + src.width] || src.excluded[k + src.width + 1];
+    const k = y0 * width + x0;
+    return excluded[k] || excluded[k + 1] || excluded[k + width] || excluded[k + width + 1];
   };
   const r2 = moon.radiusPx * moon.radiusPx;
   for (let my = 0; my < masterHeight; my += step) {
@@ -305,10 +308,10 @@ export function collectPairSamples(
       const ay = a.masterToFrame.b * mx + a.masterToFrame.a * my + a.masterToFrame.ty;
       const bx = b.masterToFrame.a * mx - b.masterToFrame.b * my + b.masterToFrame.tx;
       const by = b.masterToFrame.b * mx + b.masterToFrame.a * my + b.masterToFrame.ty;
-      const va = sampleAt(a.luminance, a.width, a.height, ax, ay);
-      const vb = sampleAt(b.luminance, b.width, b.height, bx, by);
+      const va = sampleAt(lumA, a.width, a.height, ax, ay);
+      const vb = sampleAt(lumB, b.width, b.height, bx, by);
       if (!Number.isFinite(va) || !Number.isFinite(vb) || !(vb > floorJ)) continue;
-      if (blocked(a, ax, ay) || blocked(b, bx, by)) continue;
+      if (blocked(excludedA, a.width, ax, ay) || blocked(excludedB, b.width, bx, by)) continue;
       yi.push(va);
       yj.push(vb);
     }

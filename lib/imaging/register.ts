@@ -172,9 +172,11 @@ function createSourceImage(frame: RegistrationFrame, step: number): SourceImage 
   if (step === 1) return { data: frame.luminance, clipped: frame.clipped, width: frame.width, height: frame.height, step };
   const { data, width, height } = downsampleMean(frame.luminance, frame.width, frame.height, step);
   const clipped = new Uint8Array(width * height);
+  // Read once: the field may be a getter over data kept elsewhere.
+  const frameClipped = frame.clipped;
   for (let y = 0; y < frame.height; y++) {
     const row = ((y / step) | 0) * width;
-    for (let x = 0; x < frame.width; x++) if (frame.clipped[y * frame.width + x]) clipped[row + ((x / step) | 0)] = 1;
+    for (let x = 0; x < frame.width; x++) if (frameClipped[y * frame.width + x]) clipped[row + ((x / step) | 0)] = 1;
   }
   return { data, clipped, width, height, step };
 }
