@@ -28,6 +28,7 @@ export const SCALE_LADDER_STEPS = 9;
 export const SCALE_PASSES = [1, 3, 9] as const;
 export const SCALE_SEED = 11;
 
+// The camera and timing of synthesizeBracket's defaults.
 const BLACK_DN = 512;
 const WHITE_DN = 16383;
 const READ_NOISE_DN = 2.5;

@@ -98,8 +98,17 @@ function mb(bytes: number): string {
   return (bytes / MB).toFixed(0);
 }
 
-function describeProcess(p: WatchedProcess): string {
-  return `${p.isRoot ? "reduction" : "child"} ${p.comm} (pid ${p.pid}): peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`;
+/** The reduction's process on a line of its own; the processes below it one line per program name. */
+function describeProcesses(processes: WatchedProcess[]): string[] {
+  const lines = processes.filter((p) => p.isRoot).map((p) => `reduction process ${p.comm} (pid ${p.pid}): peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`);
+  const byName = new Map<string, WatchedProcess[]>();
+  for (const p of processes) if (!p.isRoot) byName.set(p.comm, [...(byName.get(p.comm) ?? []), p]);
+  for (const [comm, group] of byName) {
+    const peak = Math.max(...group.map((p) => p.peakRssBytes));
+    const cpu = group.reduce((sum, p) => sum + p.cpuS, 0);
+    lines.push(`${group.length} process${group.length > 1 ? "es" : ""} ${comm} below it: peak ${mb(peak)} MB${group.length > 1 ? " (largest)" : ""}, CPU ${cpu.toFixed(1)} s${group.length > 1 ? " together" : ""}`);
+  }
+  return lines;
 }
 
 interface BracketFigures {
@@ -145,7 +154,7 @@ export async function runScaleBench(): Promise<void> {
     const s = f.single;
     const floorMs = f.floor.decodeMs + f.floor.tileMs;
     console.log(`${f.frames} frames: process ${(s.wallMs / 1000).toFixed(1)} s (reduction ${(s.reductionMs / 1000).toFixed(1)} s), CPU ${s.cpuS.toFixed(1)} s = ${(s.cpuS / (s.wallMs / 1000)).toFixed(2)} cores busy, frames left out ${s.framesLeftOut}`);
-    for (const p of s.processes) console.log(`  ${describeProcess(p)}`);
+    for (const line of describeProcesses(s.processes)) console.log(`  ${line}`);
     console.log(`  all processes together at most ${mb(s.peakTotalBytes)} MB at one time`);
     console.log(`  stages (ms): ${Object.entries(s.stagesMs).map(([stage, ms]) => `${stage} ${Math.round(ms)}`).join(", ")}`);
     console.log(`  floor: sharp decode ${(f.floor.decodeMs / 1000).toFixed(1)} s + tiling one rendition ${(f.floor.tileMs / 1000).toFixed(1)} s = ${(floorMs / 1000).toFixed(1)} s; reduction / floor = ${(s.reductionMs / floorMs).toFixed(2)}  (aim: at most ${AIM_RATIO_TO_FLOOR})`);
