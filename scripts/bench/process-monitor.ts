@@ -98,6 +98,7 @@ export function watchProcessTrees(roots: readonly number[], intervalMs = 100): T
 }
 
 export interface WatchedRun extends WatchSummary {
+  pid: number;
   exitCode: number | null;
   signal: NodeJS.Signals | null;
   /** From spawning to the process's exit, ms. */
@@ -115,7 +116,8 @@ export function runWatched(command: string, args: readonly string[], options: { 
       child.once("error", reject);
       return;
     }
-    const watcher = watchProcessTrees([child.pid], options.intervalMs);
+    const pid = child.pid;
+    const watcher = watchProcessTrees([pid], options.intervalMs);
     let stdout = "";
     let stderr = "";
     child.stdout.setEncoding("utf8").on("data", (chunk: string) => (stdout += chunk));
@@ -127,7 +129,7 @@ export function runWatched(command: string, args: readonly string[], options: { 
     let wallMs = NaN;
     child.once("exit", () => (wallMs = performance.now() - started));
     child.once("close", (exitCode, signal) => {
-      resolve({ ...watcher.stop(), exitCode, signal, wallMs, stdout, stderr });
+      resolve({ ...watcher.stop(), pid, exitCode, signal, wallMs, stdout, stderr });
     });
   });
 }

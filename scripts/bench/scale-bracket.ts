@@ -104,10 +104,12 @@ export async function prepareScaleBrackets(cacheRoot: string, onFrame?: (done: n
     mkdirSync(dir, { recursive: true });
     const ladder = computeExposureLadder(SCALE_LADDER_STEPS);
     const sunRadiusPx = Math.round(Math.min(SCALE_WIDTH, SCALE_HEIGHT) / 8);
-    // As the model's brackets do: shifts up to 3 px and turns up to 0.2 degrees, and the
-    // Moon moving 0.03 solar radii over the whole sequence so that it covers the Sun throughout.
+    // As the model's brackets do: shifts up to 3 px and turns up to 0.2 degrees. The Moon
+    // moves 0.02 solar radii over the whole sequence: with its radius 1.045 times the Sun's
+    // and its first offset 0.014 radii, it covers the Sun throughout (the model refuses
+    // a frame that would leave the Sun uncovered).
     const rng = createRng(SCALE_SEED ^ 0x5eed);
-    const drift = (0.03 / total) * sunRadiusPx;
+    const drift = (0.02 / total) * sunRadiusPx;
     const driftPx = { dx: drift, dy: -drift / 3 };
     list = { files: [], exposuresS: [] };
     for (let f = 0; f < total; f++) {

@@ -62,7 +62,8 @@ async function measureInOneProcess(bracket: ScaleBracket, scratch: string): Prom
   }
   // The root's own last VmHWM and CPU time are exact; the samples can miss its final moments.
   const rootCpuS = (result.cpuTicks.utime + result.cpuTicks.stime) / readClockTicksPerS();
-  const processes = run.processes.map((p) => (p.isRoot ? { ...p, peakRssBytes: Math.max(p.peakRssBytes, result.vmHwmBytes), cpuS: rootCpuS } : p));
+  const sampled = run.processes.some((p) => p.isRoot) ? run.processes : [{ pid: run.pid, comm: "node", peakRssBytes: 0, cpuS: 0, isRoot: true }, ...run.processes];
+  const processes = sampled.map((p) => (p.isRoot ? { ...p, peakRssBytes: Math.max(p.peakRssBytes, result.vmHwmBytes), cpuS: rootCpuS } : p));
   return {
     measured: true,
     workers: 1,
