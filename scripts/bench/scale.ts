@@ -54,6 +54,7 @@ async function measureInOneProcess(bracket: ScaleBracket, scratch: string): Prom
   const outDir = join(scratch, `reduction-${bracket.frames}`);
   const jobPath = join(scratch, `job-${bracket.frames}.json`);
   const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir };
+  process.stderr.write(`reducing ${bracket.frames} frames in one process\n`);
   writeFileSync(jobPath, JSON.stringify(job));
   const run = await runWatched(process.execPath, ["--import", "tsx", join(import.meta.dirname, "scale-reduce-child.ts"), jobPath], { cwd: process.cwd() });
   const result = findScaleChildResult(run.stdout);
@@ -133,7 +134,6 @@ export async function runScaleBench(): Promise<void> {
     for (const bracket of prepared.brackets) {
       const runs: ReductionRun[] = [];
       for (const workers of WORKER_COUNTS) {
-        process.stderr.write(`reducing ${bracket.frames} frames with ${workers} worker process${workers > 1 ? "es" : ""}\n`);
         runs.push(await measureReduction(bracket, workers, scratch));
       }
       const single = runs.find((r): r is MeasuredReduction => r.measured && r.workers === 1)!;
