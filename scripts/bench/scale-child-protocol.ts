@@ -6,6 +6,8 @@ export interface ScaleChildJob {
   files: string[];
   exposuresS: number[];
   outDir: string;
+  /** Whether the reduction keeps each frame's pixels on local disk between stages (runReductionOnFiles's spill). */
+  spill: "auto" | "always" | "never";
 }
 
 export interface ScaleChildResult {

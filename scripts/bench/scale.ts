@@ -18,6 +18,12 @@ import { findScaleChildResult, type ScaleChildJob } from "./scale-child-protocol
 const MB = 1024 ** 2;
 const AIM_SLOPE_MB_PER_FRAME = 5;
 const AIM_RATIO_TO_FLOOR = 4;
+/**
+ * Every bracket is reduced in the streaming form, each frame's pixels kept on local disk
+ * between stages: the form whose memory should not grow with the frames. (The reduction's
+ * own default keeps brackets under 512 MB of files in memory, and all three are.)
+ */
+const SCALE_SPILL = "always";
 /** How the two-worker figure will be measured: one bracket, this many worker processes. */
 const WORKER_COUNTS = [1, 2] as const;
 
@@ -53,7 +59,7 @@ type ReductionRun = MeasuredReduction | UnmeasuredReduction;
 async function measureInOneProcess(bracket: ScaleBracket, scratch: string): Promise<MeasuredReduction> {
   const outDir = join(scratch, `reduction-${bracket.frames}`);
   const jobPath = join(scratch, `job-${bracket.frames}.json`);
-  const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir };
+  const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir, spill: SCALE_SPILL };
   process.stderr.write(`reducing ${bracket.frames} frames in one process\n`);
   writeFileSync(jobPath, JSON.stringify(job));
   const run = await runWatched(process.execPath, ["--import", "tsx", join(import.meta.dirname, "scale-reduce-child.ts"), jobPath], { cwd: process.cwd() });
@@ -150,7 +156,8 @@ export async function runScaleBench(): Promise<void> {
 
   const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times`;
   console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${SCALE_WIDTH} x ${SCALE_HEIGHT} 16-bit RGB TIFF (${ladder})${prepared.madeS ? `, made in ${prepared.madeS.toFixed(0)} s` : ", cached"}`);
-  console.log("Each reduction runs in a process of its own, watched through /proc with every process below it.\n");
+  console.log("Each reduction runs in a process of its own, watched through /proc with every process below it;");
+  console.log(`frames kept on local disk between stages (spill: ${SCALE_SPILL}).\n`);
   for (const f of figures) {
     const s = f.single;
     const floorMs = f.floor.decodeMs + f.floor.tileMs;
@@ -177,6 +184,7 @@ export async function runScaleBench(): Promise<void> {
     width: SCALE_WIDTH,
     height: SCALE_HEIGHT,
     ladderSteps: SCALE_LADDER_STEPS,
+    spill: SCALE_SPILL,
     brackets: figures.map((f) => ({
       frames: f.frames,
       processWallMs: Math.round(f.single.wallMs),
