@@ -100,7 +100,7 @@ async function main(): Promise<void> {
 // `npm run bench -- export` measures the print bundle (no services needed).
 // `npm run bench -- scale` measures how a reduction grows with the number of frames (no services needed).
 const run = process.argv.includes("scale")
-  ? () => import("./bench/scale").then((m) => m.runScaleBench())
+  ? () => import("./bench/scale").then((m) => m.runScaleBench(process.argv.slice(2)))
   : process.argv.includes("gallery")
     ? () => import("./bench-gallery").then(() => undefined)
     : process.argv.includes("export")

@@ -7,8 +7,13 @@ export interface ScaleChildJob {
   exposuresS: number[];
   outDir: string;
   /** Whether the reduction keeps each frame's pixels on local disk between stages (runReductionOnFiles's spill). */
-  spill: "auto" | "always" | "never";
+  spill: ScaleSpill;
+  /** Folder for the spilled frames, inside the benchmark's own scratch folder. */
+  scratchDir: string;
 }
+
+export const SCALE_SPILL_MODES = ["always", "never", "auto"] as const;
+export type ScaleSpill = (typeof SCALE_SPILL_MODES)[number];
 
 export interface ScaleChildResult {
   /** Around runReductionOnFiles alone, ms. */

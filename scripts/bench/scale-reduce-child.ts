@@ -18,7 +18,7 @@ async function main(): Promise<void> {
   const job = JSON.parse(readFileSync(jobPath, "utf8")) as ScaleChildJob;
   const exposureOverrides = new Map(job.files.map((file, k) => [basename(file), job.exposuresS[k]]));
   const started = performance.now();
-  const { report } = await runReductionOnFiles({ files: job.files, outDir: job.outDir, exposureOverrides, exposureOverrideSource: "the benchmark's exposure list", spill: job.spill });
+  const { report } = await runReductionOnFiles({ files: job.files, outDir: job.outDir, exposureOverrides, exposureOverrideSource: "the benchmark's exposure list", spill: job.spill, scratchDir: job.scratchDir });
   const reductionMs = performance.now() - started;
   await closeExifWriter();
   const status = parseProcStatus(readFileSync("/proc/self/status", "utf8"));

@@ -13,17 +13,24 @@ import { measureFloorMs } from "./floor";
 import { readClockTicksPerS, runWatched, type WatchedProcess } from "./process-monitor";
 import { fitLine } from "./proc-stats";
 import { SCALE_HEIGHT, SCALE_LADDER_STEPS, SCALE_PASSES, SCALE_WIDTH, prepareScaleBrackets, type ScaleBracket } from "./scale-bracket";
-import { findScaleChildResult, type ScaleChildJob } from "./scale-child-protocol";
+import { findScaleChildResult, SCALE_SPILL_MODES, type ScaleChildJob, type ScaleSpill } from "./scale-child-protocol";
 
 const MB = 1024 ** 2;
 const AIM_SLOPE_MB_PER_FRAME = 5;
 const AIM_RATIO_TO_FLOOR = 4;
 /**
- * Every bracket is reduced in the streaming form, each frame's pixels kept on local disk
- * between stages: the form whose memory should not grow with the frames. (The reduction's
- * own default keeps brackets under 512 MB of files in memory, and all three are.)
+ * Every bracket is reduced in the streaming form by default, each frame's pixels kept on
+ * local disk between stages: the form whose memory should not grow with the frames. (The
+ * reduction's own default keeps brackets under 512 MB of files in memory, and all three
+ * are.) `npm run bench -- scale --spill never` (or auto) measures the other forms.
  */
-const SCALE_SPILL = "always";
+function readSpillMode(argv: readonly string[]): ScaleSpill {
+  const at = argv.indexOf("--spill");
+  if (at < 0) return "always";
+  const mode = argv[at + 1];
+  if (!SCALE_SPILL_MODES.includes(mode as ScaleSpill)) throw new Error(`--spill takes ${SCALE_SPILL_MODES.join(", ")}, not ${mode ?? "nothing"}`);
+  return mode as ScaleSpill;
+}
 /** How the two-worker figure will be measured: one bracket, this many worker processes. */
 const WORKER_COUNTS = [1, 2] as const;
 
@@ -56,10 +63,11 @@ interface UnmeasuredReduction {
 type ReductionRun = MeasuredReduction | UnmeasuredReduction;
 
 /** One reduction of the bracket in a separate process, watched through /proc. */
-async function measureInOneProcess(bracket: ScaleBracket, scratch: string): Promise<MeasuredReduction> {
+async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scratch: string): Promise<MeasuredReduction> {
   const outDir = join(scratch, `reduction-${bracket.frames}`);
   const jobPath = join(scratch, `job-${bracket.frames}.json`);
-  const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir, spill: SCALE_SPILL };
+  // Spilled frames go inside the benchmark's scratch folder, so that they go with it even when the reduction is killed.
+  const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir, spill, scratchDir: scratch };
   process.stderr.write(`reducing ${bracket.frames} frames in one process\n`);
   writeFileSync(jobPath, JSON.stringify(job));
   const run = await runWatched(process.execPath, ["--import", "tsx", join(import.meta.dirname, "scale-reduce-child.ts"), jobPath], { cwd: process.cwd() });
@@ -93,8 +101,8 @@ async function measureInOneProcess(bracket: ScaleBracket, scratch: string): Prom
  * take, the branch for workers > 1 starts those processes, submits the reduction and
  * watches all of them (watchProcessTrees takes several roots).
  */
-async function measureReduction(bracket: ScaleBracket, workers: number, scratch: string): Promise<ReductionRun> {
-  if (workers === 1) return measureInOneProcess(bracket, scratch);
+async function measureReduction(bracket: ScaleBracket, workers: number, spill: ScaleSpill, scratch: string): Promise<ReductionRun> {
+  if (workers === 1) return measureInOneProcess(bracket, spill, scratch);
   return {
     measured: false,
     workers,
@@ -126,7 +134,8 @@ interface BracketFigures {
   floor: { decodeMs: number; tileMs: number };
 }
 
-export async function runScaleBench(): Promise<void> {
+export async function runScaleBench(argv: readonly string[]): Promise<void> {
+  const spill = readSpillMode(argv);
   const total = SCALE_PASSES[SCALE_PASSES.length - 1] * SCALE_LADDER_STEPS;
   let lastTenth = -1;
   const prepared = await prepareScaleBrackets(join(process.cwd(), ".cache"), (done) => {
@@ -140,7 +149,7 @@ export async function runScaleBench(): Promise<void> {
     for (const bracket of prepared.brackets) {
       const runs: ReductionRun[] = [];
       for (const workers of WORKER_COUNTS) {
-        runs.push(await measureReduction(bracket, workers, scratch));
+        runs.push(await measureReduction(bracket, workers, spill, scratch));
       }
       const single = runs.find((r): r is MeasuredReduction => r.measured && r.workers === 1)!;
       process.stderr.write(`floor for ${bracket.frames} frames\n`);
@@ -157,7 +166,7 @@ export async function runScaleBench(): Promise<void> {
   const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times`;
   console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${SCALE_WIDTH} x ${SCALE_HEIGHT} 16-bit RGB TIFF (${ladder})${prepared.madeS ? `, made in ${prepared.madeS.toFixed(0)} s` : ", cached"}`);
   console.log("Each reduction runs in a process of its own, watched through /proc with every process below it;");
-  console.log(`frames kept on local disk between stages (spill: ${SCALE_SPILL}).\n`);
+  console.log(`${spill === "always" ? "frames kept on local disk between stages" : spill === "never" ? "frames kept in memory" : "frames kept on disk or in memory as the reduction decides by the files' size"} (spill: ${spill}).\n`);
   for (const f of figures) {
     const s = f.single;
     const floorMs = f.floor.decodeMs + f.floor.tileMs;
@@ -184,7 +193,7 @@ export async function runScaleBench(): Promise<void> {
     width: SCALE_WIDTH,
     height: SCALE_HEIGHT,
     ladderSteps: SCALE_LADDER_STEPS,
-    spill: SCALE_SPILL,
+    spill,
     brackets: figures.map((f) => ({
       frames: f.frames,
       processWallMs: Math.round(f.single.wallMs),
