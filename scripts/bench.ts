@@ -5,31 +5,21 @@
 //      tiling one rendition (what any reduction must at least do);
 //  (b) our 8-bit merge over OpenCV's MergeDebevec (python3-opencv) on the same
 //      codes, each side timed around the merge alone.
-// Run: npm run bench            (the gallery: npm run bench -- gallery; print bundles: npm run bench -- export)
+// Run: npm run bench            (the gallery: npm run bench -- gallery; print bundles: npm run bench -- export;
+//      brackets of 9, 27 and 81 frames, each reduced in a watched process: npm run bench -- scale)
 import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
 import { decodeFrame } from "@/lib/media";
-import { createSharp } from "@/lib/media/sharp-setup";
 import { mergeCodesLikeOpenCv } from "@/lib/imaging/merge";
 import { encodeSrgb } from "@/lib/imaging/srgb";
 import { readExposuresCsv, runReductionOnFiles } from "@/lib/reduction-runner";
 import { prepareBenchBracket, BENCH_FRAMES, BENCH_HEIGHT, BENCH_WIDTH } from "./bench/bench-bracket";
+import { measureFloorMs } from "./bench/floor";
 import { startMemorySampler } from "./bench/memory-sampler";
 import { mergeWithOpenCvDebevec } from "./bench/opencv-merge";
 
 const GB = 1024 ** 3;
-
-async function measureFloorMs(files: string[], naturalPng: string, scratch: string): Promise<{ decodeMs: number; tileMs: number }> {
-  let started = performance.now();
-  for (const file of files) {
-    await createSharp(file).toColourspace("rgb16").raw({ depth: "ushort" }).toBuffer();
-  }
-  const decodeMs = performance.now() - started;
-  started = performance.now();
-  await createSharp(naturalPng).toColourspace("srgb").jpeg({ quality: 90 }).tile({ layout: "dz", size: 254, overlap: 1 }).toFile(join(scratch, "floor.dz"));
-  return { decodeMs, tileMs: performance.now() - started };
-}
 
 /** The bracket as 8-bit sRGB codes, as a camera's JPEGs would hold it. */
 async function makeCodes(files: string[]): Promise<{ planes: Uint8Array[][]; interleaved: Uint8Array[] }> {
@@ -108,11 +98,14 @@ async function main(): Promise<void> {
 
 // `npm run bench -- gallery` measures the public gallery instead (needs the app running).
 // `npm run bench -- export` measures the print bundle (no services needed).
-const run = process.argv.includes("gallery")
-  ? () => import("./bench-gallery").then(() => undefined)
-  : process.argv.includes("export")
-    ? () => import("./bench-export").then(() => undefined)
-    : main;
+// `npm run bench -- scale` measures how a reduction grows with the number of frames (no services needed).
+const run = process.argv.includes("scale")
+  ? () => import("./bench/scale").then((m) => m.runScaleBench(process.argv.slice(2)))
+  : process.argv.includes("gallery")
+    ? () => import("./bench-gallery").then(() => undefined)
+    : process.argv.includes("export")
+      ? () => import("./bench-export").then(() => undefined)
+      : main;
 run().catch((error: unknown) => {
   console.error(error instanceof Error ? error.stack : error);
   process.exitCode = 1;
