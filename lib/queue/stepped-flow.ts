@@ -164,6 +164,9 @@ export class SteppedFlow<PC extends FlowJobContext<unknown>, CC extends FlowJobC
     const parentId = ctx.job.parent?.id;
     if (!parentId || !ctx.job.parentKey) throw new UnrecoverableError(`part ${part + 1} of step "${name}" has no parent job`);
     const result = (await step.part(ctx)) ?? null;
+    // A run that lost its lock (its process froze past it and the part was taken again) will not be
+    // allowed to complete: it must not report either, or a late count could overwrite a later stage.
+    if (!(await this.holdsLock(ctx))) return result;
     try {
       // This part is not yet in the parent's processed hash (it completes after returning): count it in.
       const done = Math.min(parts, (await this.countDone(ctx, name)) + 1);
@@ -290,6 +293,12 @@ export class SteppedFlow<PC extends FlowJobContext<unknown>, CC extends FlowJobC
         opts: { ...PART_JOB_OPTIONS, jobId: p.id, attempts: partAttempts, parent: { id: job.id!, queue: job.queueQualifiedName } },
       }));
     for (let i = 0; i < toAdd.length; i += ADD_BATCH) await queue.addBulk(toAdd.slice(i, i + ADD_BATCH));
+  }
+
+  /** True while this run still holds the part's lock (BullMQ keeps the holder's token at `<job key>:lock`). */
+  private async holdsLock(ctx: CC): Promise<boolean> {
+    if (!ctx.token) return true;
+    return (await ctx.redis.get(`${ctx.job.queueQualifiedName}:${ctx.jobId}:lock`)) === ctx.token;
   }
 
   /** Finished parts of one step, counted in the parent's processed hash by their ids' prefix. */

@@ -192,6 +192,48 @@ describe("a stepped flow", () => {
     expect(part.attemptsMade).toBe(1);
   }, 300_000);
 
+  it("refuses the late result of a part whose process froze past its lock, once another process has done it", async () => {
+    await startToyWorker("freeze-a");
+    await startToyWorker("freeze-b");
+    const { runId, jobId } = await startToyRun({ m: M, slices: SLICES, partDelayMs: 20, holdAt: ["part:squares:3"] });
+    const pid = await waitFor("the toy to hold part 3", async () => {
+      const text = await redis.get(toyKeys(runId).stopped("part:squares:3"));
+      return text ? Number(text) : undefined;
+    }, 120_000, 50);
+    const frozen = running.find((p) => p.pid === pid)!;
+    process.kill(frozen.pid, "SIGSTOP");
+    try {
+      // The other process takes part 3 once the frozen one's lock has expired, and the flow ends.
+      const values = await finished(jobId);
+      await expectExactResult(jobId, values);
+      const doneRow = await waitFor("the mirror to say done", async () => {
+        const [r] = await db.select().from(jobRuns).where(eq(jobRuns.id, jobId));
+        return r.state === "done" ? r : undefined;
+      }, 30_000);
+      // Wake the frozen run: it finishes its work and tries to complete and report.
+      await redis.set(toyKeys(runId).release, "1");
+      process.kill(frozen.pid, "SIGCONT");
+      await waitFor("the frozen run to return", async () => ((await executions(runId)).get("returned squares/3")?.includes(frozen.pid) ? true : undefined), 60_000);
+      await waitFor("BullMQ to refuse its completion", async () => (/Missing lock for job/.test(await frozen.readLog()) ? true : undefined), 60_000);
+
+      const runs = await executions(runId);
+      expect(runs.get("part squares/3")).toEqual([frozen.pid, expect.any(Number)]);
+      expect(runs.get("returned squares/3")).toHaveLength(2);
+      // Still one result for slice 3, the same answer, and the parent's row as the finished flow left it.
+      const parent = (await queue.getJob(jobId))!;
+      const part = (await queue.getJob(`${partIdPrefix(parent, "squares")}3`))!;
+      expect(await part.getState()).toBe("completed");
+      const from = 301; // slice 3 of 12 of 1..1200: 301..400
+      const to = 400;
+      expect(part.returnvalue).toBe(((to * (to + 1) * (2 * to + 1)) - ((from - 1) * from * (2 * from - 1))) / 6);
+      await expectExactResult(jobId, parent.returnvalue as Record<string, FlowValue>);
+      const [after] = await db.select().from(jobRuns).where(eq(jobRuns.id, jobId));
+      expect([after.state, after.stage, after.progress]).toEqual([doneRow.state, doneRow.stage, 1]);
+    } finally {
+      if (frozen.isRunning()) process.kill(frozen.pid, "SIGCONT");
+    }
+  }, 300_000);
+
   it("resumes a parent killed after its parts finished, without running them again", async () => {
     await startToyWorker("parent-kill-a");
     await startToyWorker("parent-kill-b");

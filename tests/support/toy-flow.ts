@@ -31,6 +31,8 @@ export interface ToyConfig {
   barrier?: number;
   /** Points where the first execution stops for good: "part:squares:3", "step:squares", "step:combine". */
   stopAt?: string[];
+  /** Points where the first execution waits until the test sets the run's release key: "part:squares:3". */
+  holdAt?: string[];
   /** Parts that fail for good (no retry): "squares:5". */
   failAt?: string[];
 }
@@ -48,7 +50,8 @@ export function toyKeys(runId: string) {
     pids: `${base}:pids`,
     progress: `${base}:progress`,
     stopped: (point: string) => `${base}:stopped:${point}`,
-    all: [`${base}:config`, `${base}:log`, `${base}:squares`, `${base}:s2`, `${base}:pids`, `${base}:progress`],
+    release: `${base}:release`,
+    all: [`${base}:config`, `${base}:log`, `${base}:squares`, `${base}:s2`, `${base}:pids`, `${base}:progress`, `${base}:release`],
   };
 }
 
@@ -69,11 +72,16 @@ async function record(redis: Redis, runId: string, what: string): Promise<void> 
   await redis.rpush(toyKeys(runId).log, `${what} ${process.pid}`);
 }
 
-/** Stops here for good (until the test kills this process) if the test asked so and no run stopped here before. */
+/**
+ * Stops here for good (until the test kills this process), or holds until the test releases it, if the
+ * test asked so and no run stopped here before.
+ */
 async function maybeStop(redis: Redis, runId: string, config: ToyConfig, point: string): Promise<void> {
-  if (!config.stopAt?.includes(point)) return;
+  const stop = config.stopAt?.includes(point);
+  if (!stop && !config.holdAt?.includes(point)) return;
   if ((await redis.set(toyKeys(runId).stopped(point), String(process.pid), "NX")) !== "OK") return;
-  await new Promise(() => {});
+  if (stop) await new Promise(() => {});
+  while (!(await redis.exists(toyKeys(runId).release))) await sleep(50);
 }
 
 const sum = (values: FlowValue[]) => values.reduce<number>((a, v) => a + (v as number), 0);
@@ -111,6 +119,7 @@ export const toyFlow = defineSteppedFlow<ToyParent, ToyPart>({
         let partial = 0;
         for (let k = from; k <= to; k++) partial += k * k;
         await ctx.redis.hset(toyKeys(runId).squares, String(part), String(partial));
+        await record(ctx.redis, runId, `returned squares/${part}`);
         return partial;
       },
       run: async (ctx, results) => {
