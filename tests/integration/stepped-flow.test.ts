@@ -234,36 +234,26 @@ describe("a stepped flow", () => {
     }
   }, 300_000);
 
-  it("resumes a parent killed after its parts finished, without running them again", async () => {
-    await startToyWorker("parent-kill-a");
-    await startToyWorker("parent-kill-b");
-    // Stops in the step that reads the finished parts' results, before the step is recorded as done.
-    const { runId, jobId } = await startToyRun({ m: M, slices: SLICES, partDelayMs: 20, stopAt: ["step:squares"] });
-    const victim = await killWhereStopped(runId, "step:squares");
+  // Killed in the step that reads the finished parts' results (before that step is recorded as done), or
+  // in the next step: the parent resumes at the step it was in, and nothing before it runs again.
+  it.each([
+    { step: "squares", when: "after its parts finished, without running them again" },
+    { step: "combine", when: "in a later step, at that step, without redoing the steps before it" },
+  ])("resumes a parent killed $when", async ({ step }) => {
+    await startToyWorker(`parent-kill-${step}-a`);
+    await startToyWorker(`parent-kill-${step}-b`);
+    const { runId, jobId } = await startToyRun({ m: M, slices: SLICES, partDelayMs: 20, stopAt: [`step:${step}`] });
+    const victim = await killWhereStopped(runId, `step:${step}`);
     const values = await finished(jobId);
     await expectExactResult(jobId, values);
 
     const runs = await executions(runId);
-    expectRanOnce(runs, [...squareParts, "step combine", "step cubes"]);
-    const again = runs.get("step squares")!;
+    expectRanOnce(runs, [...squareParts, ...["step squares", "step combine", "step cubes"].filter((w) => w !== `step ${step}`)]);
+    const again = runs.get(`step ${step}`)!;
     expect(again).toHaveLength(2);
     expect(again[0]).toBe(victim.pid);
     expect(again[1]).not.toBe(victim.pid);
     expect((await queue.getJob(jobId))!.stalledCounter).toBe(1);
-  }, 300_000);
-
-  it("resumes a parent killed in a later step at that step, without redoing the steps before it", async () => {
-    await startToyWorker("step-kill-a");
-    await startToyWorker("step-kill-b");
-    const { runId, jobId } = await startToyRun({ m: M, slices: SLICES, partDelayMs: 20, stopAt: ["step:combine"] });
-    const victim = await killWhereStopped(runId, "step:combine");
-    const values = await finished(jobId);
-    await expectExactResult(jobId, values);
-
-    const runs = await executions(runId);
-    expectRanOnce(runs, [...squareParts, "step squares", "step cubes"]);
-    expect(runs.get("step combine")).toEqual([victim.pid, expect.any(Number)]);
-    expect(runs.get("step combine")![1]).not.toBe(victim.pid);
   }, 300_000);
 
   it("ends with the part's reason when a part fails for good, and calls the flow's failure hook once", async () => {
