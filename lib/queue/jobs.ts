@@ -40,7 +40,8 @@ export const JOBS = {
     attempts: 3,
   },
   // One part of a reduction run as a stepped flow (lib/queue/stepped-flow.ts): a slice of frames of one
-  // step, taken by any worker; added by the parent reduction.run job, never enqueued on its own.
+  // step, taken by any worker. Only the parent reduction.run adds parts (once it runs as a flow: see
+  // worker/flows.ts), never enqueue().
   "reduction.part": {
     queue: "reduce",
     payload: z.object({ reductionId: z.uuid(), ...PART_FIELDS }),

@@ -237,9 +237,9 @@ describe("a stepped flow", () => {
   // Killed in the step that reads the finished parts' results (before that step is recorded as done), or
   // in the next step: the parent resumes at the step it was in, and nothing before it runs again.
   it.each([
-    { step: "squares", when: "after its parts finished, without running them again" },
-    { step: "combine", when: "in a later step, at that step, without redoing the steps before it" },
-  ])("resumes a parent killed $when", async ({ step }) => {
+    ["after its parts finished, without running them again", "squares"],
+    ["in a later step, at that step, without redoing the steps before it", "combine"],
+  ])("resumes a parent killed %s", async (_when, step) => {
     await startToyWorker(`parent-kill-${step}-a`);
     await startToyWorker(`parent-kill-${step}-b`);
     const { runId, jobId } = await startToyRun({ m: M, slices: SLICES, partDelayMs: 20, stopAt: [`step:${step}`] });
