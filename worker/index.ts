@@ -1,35 +1,21 @@
 // The worker process: one BullMQ Worker per queue, each dispatching by job
-// name to the typed handlers. Payloads are validated again here (a stale or
-// forged payload is refused without retry), state is mirrored to PostgreSQL,
-// and SIGTERM/SIGINT let running jobs finish before the process exits.
-import { Queue, UnrecoverableError, Worker, type Job } from "bullmq";
+// name to the typed handlers (worker/dispatch.ts: payloads validated again, state
+// mirrored to PostgreSQL), and SIGTERM/SIGINT let running jobs finish before the
+// process exits.
+import { Queue, Worker } from "bullmq";
 import { closeDb, getDb } from "@/db/client";
 import { closeExportExifTool } from "@/lib/editions/export/embed";
 import { requireEnvOrExit } from "@/lib/env";
 import { createRedis } from "@/lib/queue/connection";
-import { isJobName, JOBS, QUEUES, type JobName } from "@/lib/queue/jobs";
-import { mirrorJob } from "./mirror";
+import { JOBS, QUEUES } from "@/lib/queue/jobs";
+import { createDispatcher, mirrorOutcomes } from "./dispatch";
 import { HANDLERS } from "./registry";
 
 const env = requireEnvOrExit("worker");
 const db = getDb();
 const connection = createRedis(env.REDIS_URL, true);
 const prefix = process.env.QUEUE_PREFIX ?? "crownlight";
-
-async function run(job: Job): Promise<void> {
-  const id = job.id ?? "";
-  if (!isJobName(job.name)) throw new UnrecoverableError(`unknown job ${job.name}`);
-  const name: JobName = job.name;
-  const parsed = JOBS[name].payload.safeParse(job.data);
-  if (!parsed.success) throw new UnrecoverableError(`bad payload for ${name}: ${parsed.error.issues[0]?.message}`);
-  await mirrorJob(db, id, { state: "running", attempts: job.attemptsMade + 1, error: null });
-  const report = async (stage: string, fraction: number) => {
-    await job.updateProgress(Math.round(fraction * 100));
-    await mirrorJob(db, id, { stage, progress: Math.max(0, Math.min(1, fraction)) });
-  };
-  const isLastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
-  await HANDLERS[name]({ db, jobId: id, payload: parsed.data as never, report, isLastAttempt });
-}
+const dispatcher = createDispatcher({ db, connection, prefix, jobs: JOBS, handlers: HANDLERS });
 
 /** A whole number of milliseconds from env, at least 1 s; a bad value stops the worker naming the variable. */
 function readMs(name: string, fallback: number): number {
@@ -52,24 +38,13 @@ const reduceLockMs = readMs("WORKER_REDUCE_LOCK_MS", 10 * 60_000);
 const reduceStalledMs = readMs("WORKER_REDUCE_STALLED_INTERVAL_MS", 5 * 60_000);
 
 const workers = QUEUES.map((queue) => {
-  const w = new Worker(queue, run, {
+  const w = new Worker(queue, dispatcher.process, {
     connection,
     prefix,
     concurrency: queue === "mail" ? 4 : 1,
     ...(queue === "reduce" ? { lockDuration: reduceLockMs, stalledInterval: reduceStalledMs } : {}),
   });
-  w.on("completed", (job) => {
-    void mirrorJob(db, job.id ?? "", { state: "done", progress: 1 }).catch((e) => console.error("mirror", e));
-  });
-  w.on("failed", (job, err) => {
-    if (!job) return;
-    const final = err instanceof UnrecoverableError || job.attemptsMade >= (job.opts.attempts ?? 1);
-    console.error(`[worker] ${job.name} ${job.id} ${final ? "failed" : "will retry"}: ${err.message}`);
-    void mirrorJob(db, job.id ?? "", { state: final ? "failed" : "queued", error: err.message, attempts: job.attemptsMade }).catch(
-      (e) => console.error("mirror", e),
-    );
-  });
-  w.on("error", (err) => console.error(`[worker] ${queue} queue error:`, err.message));
+  mirrorOutcomes(w, db, "worker");
   return w;
 });
 
@@ -88,6 +63,7 @@ async function shutdown(signal: string) {
   stopping = true;
   console.log(`[worker] ${signal}: finishing running jobs`);
   await Promise.all(workers.map((w) => w.close()));
+  await dispatcher.close();
   await sweeper.close();
   await mailScheduler.close();
   await closeExportExifTool();

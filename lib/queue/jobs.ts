@@ -2,6 +2,7 @@
 // job has a name, the queue it runs on, a zod payload of ids only, and retry
 // settings. Handlers live in worker/jobs/, one file per job.
 import { z } from "zod";
+import { PART_FIELDS } from "./stepped-flow";
 
 // "reduce" is its own queue so that long reductions never hold up ingests or mail;
 // "export" likewise, so that an editor's print bundle does not wait behind them.
@@ -36,6 +37,14 @@ export const JOBS = {
   "reduction.run": {
     queue: "reduce",
     payload: z.object({ reductionId: z.uuid() }),
+    attempts: 3,
+  },
+  // One part of a reduction run as a stepped flow (lib/queue/stepped-flow.ts): a slice of frames of one
+  // step, taken by any worker. Only the parent reduction.run adds parts (once it runs as a flow: see
+  // worker/flows.ts), never enqueue().
+  "reduction.part": {
+    queue: "reduce",
+    payload: z.object({ reductionId: z.uuid(), ...PART_FIELDS }),
     attempts: 3,
   },
   // One print bundle of an edition: sized files with metadata, texts, proof, ZIP.

@@ -1,4 +1,4 @@
-// Processes a fault test owns: its own worker (node --import tsx worker/index.ts)
+// Processes a fault test owns: its own worker (node --import tsx worker/index.ts, or another script of ours)
 // with its own queue prefix, and its own redis-server (Debian's binary) in a
 // temporary folder. Each runs in a process group of its own, so a kill reaches
 // every child, and only processes started here are ever signalled.
@@ -70,15 +70,20 @@ export async function findFreePort(): Promise<number> {
  * overrides. Resolves once it says it is listening.
  */
 export async function startOwnWorker(name: string, env: Record<string, string>): Promise<OwnProcess> {
+  return startOwnScript(name, "worker/index.ts", env, "[worker] listening");
+}
+
+/** Any TypeScript entry point of ours (run through tsx), with the test world's env and overrides; resolves once its log shows `ready`. */
+export async function startOwnScript(name: string, script: string, env: Record<string, string>, ready: string): Promise<OwnProcess> {
   const dir = await mkdtemp(join(tmpdir(), `crownlight-${name}-`));
-  const logPath = join(dir, "worker.log");
-  const child = spawnLogged(process.execPath, ["--import", "tsx", "worker/index.ts"], { ...process.env, ...env }, logPath);
-  const worker = track(child, logPath);
-  await waitFor(`worker ${name} to listen`, async () => {
-    if (!worker.isRunning()) throw new Error(`worker ${name} exited at start:\n${await worker.readLog()}`);
-    return (await worker.readLog()).includes("[worker] listening") ? true : undefined;
+  const logPath = join(dir, "process.log");
+  const child = spawnLogged(process.execPath, ["--import", "tsx", script], { ...process.env, ...env }, logPath);
+  const own = track(child, logPath);
+  await waitFor(`${name} to start`, async () => {
+    if (!own.isRunning()) throw new Error(`${name} exited at start:\n${await own.readLog()}`);
+    return (await own.readLog()).includes(ready) ? true : undefined;
   }, 60_000);
-  return worker;
+  return own;
 }
 
 export interface OwnRedis {

@@ -1,0 +1,18 @@
+// The stepped flows the worker runs (lib/queue/stepped-flow.ts), by the name of
+// their part job. A flow's parent job maps to `flow.runParent` in HANDLERS; its
+// part job maps to runFlowPart, which finds the flow here.
+import { UnrecoverableError } from "bullmq";
+import type { JobName } from "@/lib/queue/jobs";
+import type { FlowJobContext, PartFields, SteppedFlow } from "@/lib/queue/stepped-flow";
+import type { SteeringJobHandler } from "./registry";
+
+// The reduction's stages join as `"reduction.part": reductionFlow` once they run as a flow; until then
+// nothing queues a reduction.part, and one that arrives is refused (no retry) naming the missing flow.
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- each flow types its own contexts
+export const FLOWS_BY_PART_JOB: Partial<Record<JobName, SteppedFlow<any, any>>> = {};
+
+export const runFlowPart: SteeringJobHandler<"reduction.part"> = async (ctx) => {
+  const flow = FLOWS_BY_PART_JOB[ctx.job.name as JobName];
+  if (!flow) throw new UnrecoverableError(`no stepped flow runs ${ctx.job.name} jobs in this worker`);
+  return flow.runPart(ctx as FlowJobContext<PartFields>);
+};
