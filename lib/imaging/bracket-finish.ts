@@ -100,6 +100,21 @@ export function measureDynamicRangeStops(lum: Float32Array, width: number, heigh
   return lo > 0 && hi > lo ? Math.log2(hi / lo) : 0;
 }
 
+/** Sets every plane to 0 within bandPx of the image's edge. */
+function blankEdgeBand(image: PlaneImage, bandPx: number): void {
+  const { width, height } = image;
+  for (const p of image.planes) {
+    for (let y = 0; y < height; y++) {
+      const row = y * width;
+      if (y < bandPx || y >= height - bandPx) p.fill(0, row, row + width);
+      else {
+        p.fill(0, row, row + Math.min(bandPx, width));
+        p.fill(0, row + Math.max(0, width - bandPx), row + width);
+      }
+    }
+  }
+}
+
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
 export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
   let clock = performance.now();
@@ -139,6 +154,9 @@ export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgre
   }
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
   const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
+  // The same band is black in the natural rendition too: there only some frames reach, and a
+  // column lit by the short exposures alone showed as a dotted line along the edge.
+  blankEdgeBand(natural.image, edgeBandPx);
   // The strength weighs local structure against the overall image: MGN's h is its complement.
   const filtered = params.filter === "mgn"
     ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
