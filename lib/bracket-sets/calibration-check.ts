@@ -3,7 +3,7 @@
 // than 8 bits and match the set's light frames in size and colour planes. Checked
 // when a frame is marked as a calibration frame, at ingest of a frame already
 // marked, and before a reduction takes the set's calibration frames.
-import { and, eq, ne } from "drizzle-orm";
+import { and, asc, eq, ne } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { frames, type FrameFlags, type FrameKind } from "@/db/schema";
 
@@ -46,6 +46,22 @@ function findCommonShape(others: FrameShape[]): FrameShape | null {
 }
 
 /**
+ * The plane count most of the frames share, counting linear frames (more than 8 bits)
+ * only when there are any, since only those are calibrated (ties: the first met);
+ * undefined when no frame's count is known. The first frame met alone would depend
+ * on the order rows come in, and a set may hold JPEGs beside its raws.
+ */
+function findCommonPlaneCount(frames: FrameShape[]): number | undefined {
+  const known = frames.filter((f) => f.planeCount !== undefined);
+  const linear = known.filter((f) => f.bitDepth === null || f.bitDepth > 8);
+  const counts = new Map<number, number>();
+  for (const f of linear.length > 0 ? linear : known) counts.set(f.planeCount!, (counts.get(f.planeCount!) ?? 0) + 1);
+  let best: number | undefined;
+  for (const [planes, n] of counts) if (best === undefined || n > counts.get(best)!) best = planes;
+  return best;
+}
+
+/**
  * Why the frame cannot be a calibration frame of this kind, or null when it can.
  * `lights` are the set's ingested light frames; without any, the set's other
  * calibration frames stand in. Messages name the file and say what would do.
@@ -63,7 +79,7 @@ export function findCalibrationFault(kind: CalibrationFrameKind, frame: FrameSha
   if (frame.width !== ref.width || frame.height !== ref.height) {
     return `${name}: ${frame.width} x ${frame.height} pixels, but ${against} are ${ref.width} x ${ref.height}; a ${kind} frame must come from the same camera at the same size, uncropped.`;
   }
-  const refPlanes = (reference ? lights : otherCalibration).find((f) => f.width === ref.width && f.height === ref.height && f.planeCount !== undefined)?.planeCount;
+  const refPlanes = findCommonPlaneCount((reference ? lights : otherCalibration).filter((f) => f.width === ref.width && f.height === ref.height));
   if (frame.planeCount !== undefined && refPlanes !== undefined && frame.planeCount !== refPlanes) {
     return `${name}: ${describePlanes(frame.planeCount)}, but ${against} have ${describePlanes(refPlanes)}; a ${kind} frame must be recorded the same way as the light frames.`;
   }
@@ -80,7 +96,8 @@ export async function findCalibrationFaultInSet(db: DbOrTx, setId: string, frame
   const others = await db
     .select({ originalFileName: frames.originalFileName, format: frames.format, width: frames.width, height: frames.height, bitDepth: frames.bitDepth, flags: frames.flags, kind: frames.kind })
     .from(frames)
-    .where(and(eq(frames.bracketSetId, setId), ne(frames.id, frameId), eq(frames.ingestState, "ingested")));
+    .where(and(eq(frames.bracketSetId, setId), ne(frames.id, frameId), eq(frames.ingestState, "ingested")))
+    .orderBy(asc(frames.originalFileName), asc(frames.id));
   const lights = others.filter((o) => o.kind === "light").map(toFrameShape);
   const calibration = others.filter((o) => o.kind !== "light").map(toFrameShape);
   return findCalibrationFault(kind, shape, lights, calibration);

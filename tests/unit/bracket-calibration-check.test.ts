@@ -35,3 +35,15 @@ describe("findCalibrationFault", () => {
     expect(findCalibrationFault("dark", shape("d.fits", 100, 100), [], [])).toBeNull();
   });
 });
+
+describe("the light frames' colour planes, whatever order the rows come in", () => {
+  const shape = (name: string, planeCount: number, bitDepth = 16, format = "fits") => ({ originalFileName: name, format, width: 128, height: 96, bitDepth, planeCount });
+  // Two grey raws, one colour raw marked light by mistake, and a phone's JPEG (8-bit, never calibrated).
+  const lights = [shape("light-1.fits", 1), shape("light-2.fits", 1), shape("dark-colour.fits", 3), shape("flat-phone.jpg", 3, 8, "jpeg")];
+  it("takes the count most linear lights share, in either order", () => {
+    for (const order of [lights, [...lights].reverse(), [lights[2], lights[3], lights[0], lights[1]]]) {
+      expect(findCalibrationFault("dark", shape("dark-good.fits", 1), order)).toBeNull();
+      expect(findCalibrationFault("dark", shape("dark-colour-2.fits", 3), order)).toMatch(/3 colour planes, but the light frames of this set have one grey plane/);
+    }
+  });
+});
