@@ -4,7 +4,7 @@
 import { type PreparedFrame, warpFrameForMerge, LIMB_MARGIN_PX } from "./frame-stage";
 import { describeTransmission, type BracketPlan } from "./bracket-plan";
 import { repairDefects } from "./linearize";
-import { addFrameToMerge, createMergeAccumulator, finishMerge, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
+import { addFrameToMerge, createMergeAccumulator, finishMerge, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
@@ -33,7 +33,8 @@ export function createWarpScratch(plan: BracketPlan): WarpTarget {
   return {
     planes: Array.from({ length: plan.channels }, () => new Float32Array(n)),
     covered: new Uint8Array(n),
-    masks: Array.from({ length: 4 }, () => new Uint8Array(n)),
+    // Two for the clipped mask's dilation, then the warped clipped, noise-floor and defect masks.
+    masks: Array.from({ length: 5 }, () => new Uint8Array(n)),
   };
 }
 
@@ -56,19 +57,26 @@ export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position:
  * accumulator, so that a caller may give its event loop a turn between frames.
  */
 export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void): Generator<void, MergeAccumulator, void> {
-  const scratch = createWarpScratch(plan);
+  // Let go when the passes end (the generator object may outlive them), so the finish has the memory.
+  let scratch: WarpTarget | undefined = createWarpScratch(plan);
   const total = plan.keep.length;
   function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
     for (let i = 0; i < total; i++) {
-      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch);
+      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!);
       onProgress?.(stage, (i + 1) / total, { done: i + 1, total });
       yield;
     }
     return acc;
   }
-  if (plan.isEncoded) return yield* pass(createMergePass(plan), "merge");
-  const first = yield* pass(createMergePass(plan), "merge-pilot");
-  return yield* pass(createMergePass(plan, { sums: first.sums, weights: first.weights[0] }), "merge");
+  let last: MergeAccumulator;
+  if (plan.isEncoded) last = yield* pass(createMergePass(plan), "merge");
+  else {
+    // Only the pilot of the first pass is kept: its weights, coverage and scratch go before the second pass starts.
+    const pilot = toPilot(yield* pass(createMergePass(plan), "merge-pilot"));
+    last = yield* pass(createMergePass(plan, pilot), "merge");
+  }
+  scratch = undefined;
+  return last;
 }
 
 /** mergeKeptFramesInSteps run to its end. */
@@ -124,24 +132,26 @@ export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgre
   const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
   const offsets = params.moonMinusSunPx;
   const timingsMs: Record<string, number> = { ...plan.timingsMs };
+  // finishMerge consumes the accumulator: its buffers are free from here on.
   const merged: MergeResult = finishMerge(acc);
   const master: PlaneImage = { width, height, planes: merged.radiance };
   timingsMs["warp-and-merge"] = mergeMs + (performance.now() - clock);
   clock = performance.now();
   // The master keeps its empty pixels (every frame's defect there); the renditions show them
   // filled from their neighbours, so that a masked defect is not a black dot in the picture.
+  // The filled copy is made where it is read (twice, when there are holes), not kept beside
+  // the structure filter's buffers.
   const holes = findEmptyPixels(merged);
-  const shown: PlaneImage = holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master;
+  const makeShown = (): PlaneImage => (holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master);
 
+  // One rendition after the other, each buffer let go after its last reader, so that at 24
+  // megapixels the structure filter's working planes never sit beside the natural rendition.
   progress("renditions", 0);
   const refOffset = offsets?.[plan.names[keep[ref]]];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
-  const outsideMoon = createValidMask(width, height, referenceMoon);
-  const luminance = computeLuminancePlane(shown.planes);
-  // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
-  const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
-  const natural = renderNatural(shown, { valid: outsideMoon, luminance, limbRing });
+  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes);
+  const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
   // within the largest frame displacement (plus the bicubic reach of 2 px) miss some frames.
@@ -154,15 +164,23 @@ export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgre
   }
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
   const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
+  // The strength weighs local structure against the overall image: MGN's h is its complement.
+  const structure = renderStructure(
+    params.filter === "mgn"
+      ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
+      : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength),
+    width, height,
+  );
+
+  const outsideMoon = createValidMask(width, height, referenceMoon);
+  // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
+  const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
+  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing });
+  luminance = undefined;
   // The same band is black in the natural rendition too: there only some frames reach, and a
   // column lit by the short exposures alone showed as a dotted line along the edge.
   blankEdgeBand(natural.image, edgeBandPx);
-  // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
-    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
-  const structure = renderStructure(filtered, width, height);
-  const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
+  const whiteFractionAtLimb = measureWhiteFraction(natural.image, limbRing, undefined, outsideMoon);
   progress("renditions", 1);
   timingsMs.renditions = performance.now() - clock;
 
@@ -206,7 +224,7 @@ export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgre
       sunCentre,
       filterCentre,
       dynamicRangeStops,
-      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta, whiteFractionAtLimb: measureWhiteFraction(natural.image, limbRing, undefined, outsideMoon) },
+      natural: { blackPoint: natural.blackPoint, whitePoint: natural.whitePoint, beta: natural.beta, whiteFractionAtLimb },
       timingsMs,
       pipelineVersion: PIPELINE_VERSION,
       parameters: params,

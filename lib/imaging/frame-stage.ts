@@ -3,7 +3,7 @@
 // frame alone, so callers may run them in worker threads or other processes.
 import { dilateMask } from "./blur";
 import { fitLimb, type LimbFit } from "./limb-fit";
-import { linearizeFrame, repairDefects, type LinearizedFrame } from "./linearize";
+import { linearizeFrame, patchDefects, type LinearizedFrame } from "./linearize";
 import type { MergeFrameInput } from "./merge";
 import type { LunarDisk } from "./radial";
 import { warpMask, warpPlanes, type WarpTarget } from "./resample";
@@ -62,27 +62,36 @@ export function warpFrameForMerge(
   // A defect's own value never reaches the master: the warp reads it as the median of its sound
   // neighbours (so the bicubic support of the pixels around it is not spoilt), and the master
   // pixel that lands on it is masked. Only where every frame's defect lands is a master pixel empty.
+  // Each array is read once: the frame may keep them on disk behind getters.
   const raw = isLinear ? frame.image.planes : linear.planes;
-  const source = linear.masked ? raw.map((p) => repairDefects(p, linear.masked!, width, height)) : raw;
-  let planes: Float32Array[];
-  let covered: Uint8Array;
   let clipped = linear.clipped;
   let noiseFloor = linear.noiseFloor;
   let masked = linear.masked;
-  if (identity) {
-    planes = isLinear ? source.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p))) : source;
-    covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
-  } else {
-    const warped = warpPlanes(source, width, height, masterToFrame, window, "bicubic", scratch);
-    planes = warped.planes;
-    covered = warped.covered;
+  // The defects are repaired in the source planes for the length of the warp and put back after
+  // (patchDefects), so no repaired copy of the frame is made.
+  const restore = masked ? raw.map((p) => patchDefects(p, masked!, width, height)) : [];
+  let planes: Float32Array[];
+  let covered: Uint8Array;
+  try {
+    if (identity) {
+      planes = raw.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p)));
+      covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
+    } else {
+      const warped = warpPlanes(raw, width, height, masterToFrame, window, "bicubic", scratch);
+      planes = warped.planes;
+      covered = warped.covered;
+    }
+  } finally {
+    for (let c = restore.length - 1; c >= 0; c--) restore[c]();
+  }
+  if (!identity) {
     // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
-    // With scratch, the four mask buffers are reused frame after frame (the merge reads them before the next warp).
-    const masks = scratch?.masks?.length === 4 ? scratch.masks : undefined;
-    const dilated = dilateMask(linear.clipped, width, height, 1, masks ? [masks[0], masks[1]] : undefined);
+    // With scratch, the mask buffers are reused frame after frame (the merge reads them before the next warp).
+    const masks = scratch?.masks && scratch.masks.length >= 4 ? scratch.masks : undefined;
+    const dilated = dilateMask(clipped, width, height, 1, masks ? [masks[0], masks[1]] : undefined);
     clipped = warpMask(dilated, width, height, masterToFrame, window, 1, masks?.[2]);
-    noiseFloor = warpMask(linear.noiseFloor, width, height, masterToFrame, window, 1, masks?.[3]);
-    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0);
+    noiseFloor = warpMask(noiseFloor, width, height, masterToFrame, window, 1, masks?.[3]);
+    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0, masks?.[4]);
   }
   if (isLinear) {
     const black = frame.blackLevel;

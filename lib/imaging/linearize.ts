@@ -201,8 +201,32 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, options
 
 /** A copy of the plane with each masked pixel replaced by the median of the unmasked ones among its 8 neighbours. */
 export function repairDefects(plane: Float32Array, masked: Uint8Array, width: number, height: number): Float32Array {
-  if (masked.length !== plane.length) throw new ImagingError("size-mismatch", `defect map has ${masked.length} pixels, the frame ${plane.length}`);
   const out = Float32Array.from(plane);
+  writeRepairs(plane, masked, width, height, out);
+  return out;
+}
+
+/**
+ * repairDefects done in the plane itself, for a moment: the defects' values are
+ * saved and replaced, and the returned function puts them back. A warp reads the
+ * repaired plane without a second full plane (96 MB at 24 megapixels, per colour)
+ * being made for it; the plane is the caller's again once restored.
+ */
+export function patchDefects(plane: Float32Array, masked: Uint8Array, width: number, height: number): () => void {
+  const saved: { index: number[]; value: number[] } = { index: [], value: [] };
+  writeRepairs(plane, masked, width, height, plane, saved);
+  return () => {
+    for (let k = 0; k < saved.index.length; k++) plane[saved.index[k]] = saved.value[k];
+  };
+}
+
+/**
+ * Each defect's value in `out` (which may be `plane`): the median of its sound
+ * neighbours, read from `plane`. Sound pixels are never written, so repairing in
+ * place reads the same neighbours as repairing into a copy.
+ */
+function writeRepairs(plane: Float32Array, masked: Uint8Array, width: number, height: number, out: Float32Array, saved?: { index: number[]; value: number[] }): void {
+  if (masked.length !== plane.length) throw new ImagingError("size-mismatch", `defect map has ${masked.length} pixels, the frame ${plane.length}`);
   const around: number[] = [];
   for (let y = 0; y < height; y++) {
     for (let x = 0; x < width; x++) {
@@ -214,9 +238,12 @@ export function repairDefects(plane: Float32Array, masked: Uint8Array, width: nu
       }
       if (around.length > 0) {
         around.sort((a, b) => a - b);
+        if (saved) {
+          saved.index.push(i);
+          saved.value.push(plane[i]);
+        }
         out[i] = around[around.length >> 1];
       }
     }
   }
-  return out;
 }

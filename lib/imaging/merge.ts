@@ -114,10 +114,18 @@ interface WorstFrame {
   wellExposed: Uint8Array;
 }
 
-/** What the second pass needs of the first: its sums and exposure weights, per pixel. */
+/**
+ * What the second pass needs of the first: its sums and exposure weights, per
+ * pixel. The exposure weights are accumulated in float64 during the first pass
+ * and rounded once to float32 here: every use of the pilot divides a sum by its
+ * weight or takes one frame's share out of both (leave-one-out), and the sums
+ * are float32 already, so the weight's own rounding (2^-24 relative) is of the
+ * same size as the sums' and the cancellation hits both alike. 96 MB less at 24
+ * megapixels while the second pass runs.
+ */
 export interface PhotonPilot {
   sums: Float32Array[];
-  weights: Float64Array;
+  weights: Float32Array;
 }
 
 /** Share of the clip level above which a frame's weight starts to fall (cosine taper to zero at the clip level). */
@@ -167,10 +175,10 @@ export function createMergeAccumulator(
   };
 }
 
-/** The finished first pass as the second pass's pilot. */
+/** The finished first pass as the second pass's pilot (its sums shared, its exposure weights rounded to float32: see PhotonPilot). */
 export function toPilot(acc: MergeAccumulator): PhotonPilot {
   if (acc.weighting !== "photon") throw new ImagingError("bad-parameter", "only the linear merge has a second pass");
-  return { sums: acc.sums, weights: acc.weights[0] };
+  return { sums: acc.sums, weights: Float32Array.from(acc.weights[0]) };
 }
 
 /** Grows a mask by r pixels (square), in place of a fresh allocation when given scratch. */
@@ -189,39 +197,48 @@ function growMask(mask: Uint8Array, width: number, height: number, r: number): U
  * Second pass, per frame: z = (y - t E_loo) / sigma for each plane, with E_loo the
  * first pass's estimate without this frame and sigma^2 = y + sigma_r^2 + t^2 E_loo / T_loo
  * (photon noise at one electron per DN, read noise, the leave-one-out estimate's
- * own noise). The frame's z values are then divided by their own robust spread
- * (1.4826 MAD), which absorbs a gain other than one. The score is the worst plane's
- * z, negative ones at NEGATIVE_SCORE_SHARE; 0 where there is nothing to compare.
+ * own noise). The worst plane's z, rounded to float32 as the score is kept; 0
+ * where there is nothing to compare. `taper` is the frame's clip taper, before
+ * the noise share.
  */
-function scoreOutliers(acc: MergeAccumulator, frame: MergeFrameInput, use: Uint8Array, taper: Float32Array): Float32Array {
+function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: number, taperI: number, read2: number): number {
   const pilot = acc.pilot!;
-  const n = acc.width * acc.height;
   const t = frame.exposureS;
-  const read2 = (frame.noiseSigma ?? 0) ** 2;
-  const z = new Float32Array(n);
-  for (let i = 0; i < n; i++) {
-    if (!use[i]) continue;
-    const tLoo = pilot.weights[i] - taper[i] * t;
-    if (!(tLoo > 1e-3 * t)) continue;
-    let worst = 0;
-    for (let c = 0; c < acc.channels; c++) {
-      const y = frame.planes[c][i];
-      const eLoo = (pilot.sums[c][i] - taper[i] * y) / tLoo;
-      const predicted = t * eLoo;
-      const variance = Math.max(predicted, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
-      const zc = (y - predicted) / Math.sqrt(variance);
-      if (Math.abs(zc) > Math.abs(worst)) worst = zc;
-    }
-    z[i] = worst;
+  const tLoo = pilot.weights[i] - taperI * t;
+  if (!(tLoo > 1e-3 * t)) return 0;
+  let worst = 0;
+  for (let c = 0; c < acc.channels; c++) {
+    const y = frame.planes[c][i];
+    const eLoo = (pilot.sums[c][i] - taperI * y) / tLoo;
+    const predicted = t * eLoo;
+    const variance = Math.max(predicted, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
+    const zc = (y - predicted) / Math.sqrt(variance);
+    if (Math.abs(zc) > Math.abs(worst)) worst = zc;
   }
-  // The frame's own z scale, from a regular sample of the pixels with a leave-one-out estimate.
+  return Math.fround(worst);
+}
+
+/**
+ * The frame's own z scale: 1.4826 MAD of |z| over a regular sample of the pixels
+ * with a leave-one-out estimate, which absorbs a gain other than one. Scores are
+ * computed pixel by pixel afterwards (scaleScore), so no full plane of them is held.
+ */
+function measureScoreScale(acc: MergeAccumulator, frame: MergeFrameInput, use: Uint8Array, taper: Float32Array, read2: number): number {
+  const n = acc.width * acc.height;
   const step = Math.max(1, Math.floor(n / 200_000)) | 1;
   const sample: number[] = [];
-  for (let i = 0; i < n; i += step) if (use[i] && z[i] !== 0) sample.push(Math.abs(z[i]));
+  for (let i = 0; i < n; i += step) {
+    if (!use[i]) continue;
+    const z = computeRawScore(acc, frame, i, taper[i], read2);
+    if (z !== 0) sample.push(Math.abs(z));
+  }
   sample.sort((a, b) => a - b);
-  const scale = sample.length > 100 ? Math.max(0.25, 1.4826 * sample[sample.length >> 1]) : 1;
-  for (let i = 0; i < n; i++) z[i] = z[i] > 0 ? z[i] / scale : (NEGATIVE_SCORE_SHARE * -z[i]) / scale;
-  return z;
+  return sample.length > 100 ? Math.max(0.25, 1.4826 * sample[sample.length >> 1]) : 1;
+}
+
+/** The outlier score of a raw z: z over the frame's scale, negative ones at NEGATIVE_SCORE_SHARE; float32 as the worst-frame record keeps it. */
+function scaleScore(z: number, scale: number): number {
+  return Math.fround(z > 0 ? z / scale : (NEGATIVE_SCORE_SHARE * -z) / scale);
 }
 
 /** Takes the worst frame out where it is an outlier (and in the grown wings around one); counts what each frame lost. */
@@ -278,40 +295,45 @@ export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): 
       for (let c = 1; c < acc.channels; c++) if (frame.planes[c][i] > v) v = frame.planes[c][i];
       taper[i] = computeClipTaper(v, frame.clipLevel);
     }
-    const score = acc.pilot ? scoreOutliers(acc, frame, use, taper) : undefined;
-    if (acc.pilot) {
+    const exposure = acc.weights[0];
+    const { pilot, worst } = acc;
+    if (pilot) {
+      // Second pass, pixel by pixel: the outlier score (taken with the clip taper alone), then
+      // the noise share, the frame's weight, and the worst-frame record.
       const read2 = (frame.noiseSigma ?? 0) ** 2;
-      const lum = acc.pilot.sums[acc.channels === 3 ? 1 : 0];
+      const scale = measureScoreScale(acc, frame, use, taper, read2);
+      const lum = pilot.sums[acc.channels === 3 ? 1 : 0];
+      const index = acc.frameWeight.length;
       for (let i = 0; i < n; i++) {
         if (!use[i]) continue;
-        const expected = acc.pilot.weights[i] > 0 ? (t * lum[i]) / acc.pilot.weights[i] : 0;
-        taper[i] *= expected > 0 ? expected / (expected + read2) : 1;
+        const clipTaper = taper[i];
+        const expected = pilot.weights[i] > 0 ? (t * lum[i]) / pilot.weights[i] : 0;
+        const w = Math.fround(clipTaper * (expected > 0 ? expected / (expected + read2) : 1));
+        taper[i] = w;
+        if (!(w > 0)) { use[i] = 0; continue; }
+        exposure[i] += w * t;
+        weightSum += w * t;
+        if (!worst) continue;
+        considered++;
+        const score = scaleScore(computeRawScore(acc, frame, i, clipTaper, read2), scale);
+        if (score <= worst.score[i]) continue;
+        worst.score[i] = score;
+        worst.frame[i] = index;
+        worst.weight[i] = w * t;
+        worst.wellExposed[i] = noiseFloor[i] ? 0 : 1;
+        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = w * frame.planes[c][i];
       }
-    }
-    const exposure = acc.weights[0];
-    for (let i = 0; i < n; i++) {
-      if (!use[i] || !(taper[i] > 0)) { use[i] = 0; continue; }
-      exposure[i] += taper[i] * t;
-      weightSum += taper[i] * t;
+    } else {
+      for (let i = 0; i < n; i++) {
+        if (!use[i] || !(taper[i] > 0)) { use[i] = 0; continue; }
+        exposure[i] += taper[i] * t;
+        weightSum += taper[i] * t;
+      }
     }
     for (let c = 0; c < acc.channels; c++) {
       const sum = acc.sums[c];
       const p = frame.planes[c];
       for (let i = 0; i < n; i++) if (use[i]) sum[i] += taper[i] * p[i];
-    }
-    const worst = acc.worst;
-    if (score && worst) {
-      const index = acc.frameWeight.length;
-      for (let i = 0; i < n; i++) {
-        if (!use[i]) continue;
-        considered++;
-        if (score[i] <= worst.score[i]) continue;
-        worst.score[i] = score[i];
-        worst.frame[i] = index;
-        worst.weight[i] = taper[i] * t;
-        worst.wellExposed[i] = noiseFloor[i] ? 0 : 1;
-        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = taper[i] * frame.planes[c][i];
-      }
     }
   }
   for (let i = 0; i < n; i++) {
@@ -402,18 +424,31 @@ export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumu
   return acc;
 }
 
+/**
+ * The merge's result. It consumes the accumulator: each plane's sums become its
+ * radiance in place (the same float32 values a fresh plane would get), and the
+ * weights, fallback, pilot, worst-frame record and scratch are let go, so that
+ * at 24 megapixels about 1.3 GB is free before the renditions start. The
+ * accumulator keeps only its coverage (shared with the result) and per-frame records.
+ */
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
   if (acc.worst) removeOutliers(acc);
   const radiance = acc.sums.map((sum, c) => {
-    const out = new Float32Array(n);
     const weight = acc.weighting === "photon" ? acc.weights[0] : acc.weights[c];
     for (let i = 0; i < n; i++) {
-      if (weight[i] > 0) out[i] = acc.weighting === "photon" ? sum[i] / weight[i] : Math.exp(sum[i] / weight[i]);
-      else out[i] = acc.fallback[i];
+      if (weight[i] > 0) sum[i] = acc.weighting === "photon" ? sum[i] / weight[i] : Math.exp(sum[i] / weight[i]);
+      else sum[i] = acc.fallback[i];
     }
-    return out;
+    return sum;
   });
+  acc.sums = [];
+  acc.weights = [];
+  acc.fallback = new Float32Array(0);
+  acc.pilot = undefined;
+  acc.worst = undefined;
+  acc.useScratch = undefined;
+  acc.weightScratch = undefined;
   let poorlyExposedCount = 0;
   for (let i = 0; i < n; i++) if (acc.coverage[i] === 0) poorlyExposedCount++;
   const total = acc.frameWeight.reduce((s, w) => s + w, 0);

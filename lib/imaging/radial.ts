@@ -115,13 +115,14 @@ export function applyNrgf(plane: Float32Array, width: number, height: number, op
 }
 
 /**
- * The valid-pixel weight blurred by a Gaussian of width w, computed only in the
- * masked pixels' bounding box grown by 5 w (beyond it the blur of an all-ones
- * field is 1 to within exp(-12.5)); 1 elsewhere. For a lunar disk in a large
- * frame this saves most of one of MGN's three blurs per width.
+ * The valid-pixel weight (1 valid, 0 not) blurred by a Gaussian of width w,
+ * computed only in the masked pixels' bounding box grown by 5 w (beyond it the
+ * blur of an all-ones field is 1 to within exp(-12.5)); 1 elsewhere. For a lunar
+ * disk in a large frame this saves most of one of MGN's three blurs per width,
+ * and no full plane of weights is kept.
  */
 function blurMaskWeight(
-  weight: Float32Array,
+  valid: Uint8Array,
   width: number,
   height: number,
   w: number,
@@ -137,7 +138,10 @@ function blurMaskWeight(
   const sw = x1 - x0 + 1, sh = y1 - y0 + 1;
   if (sw < 2 || sh < 2) return;
   const sub = new Float32Array(sw * sh);
-  for (let y = 0; y < sh; y++) sub.set(weight.subarray((y + y0) * width + x0, (y + y0) * width + x1 + 1), y * sw);
+  for (let y = 0; y < sh; y++) {
+    const from = (y + y0) * width + x0;
+    for (let x = 0; x < sw; x++) sub[y * sw + x] = valid[from + x] ? 1 : 0;
+  }
   const blurred = blurGaussianFast(sub, sw, sh, w, sub, scratch);
   for (let y = 0; y < sh; y++) out.set(blurred.subarray(y * sw, (y + 1) * sw), (y + y0) * width + x0);
 }
@@ -236,17 +240,12 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     if (v < a0) a0 = v;
     if (v > a1) a1 = v;
   }
-  const data = new Float32Array(n);
-  if (!(a1 > a0)) return { data, valid };
+  if (!(a1 > a0)) return { data: new Float32Array(n), valid };
   const range = a1 - a0;
   const masked = new Float32Array(n);
-  const weight = new Float32Array(n);
   for (let i = 0; i < n; i++) {
-    if (valid[i]) {
-      // Shift by a0 before blurring: the same numbers for B and a B + b up to scale, which keeps float error low.
-      masked[i] = (plane[i] - a0) / range;
-      weight[i] = 1;
-    }
+    // Shift by a0 before blurring: the same numbers for B and a B + b up to scale, which keeps float error low.
+    if (valid[i]) masked[i] = (plane[i] - a0) / range;
   }
   // Noise variance in the units of `masked` ((B - a0) / range), smoothed over a few pixels.
   let noise: Float32Array | undefined;
@@ -258,8 +257,8 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
       const inv = 1 / (range * range);
       for (let i = 0; i < n; i++) if (valid[i] && options.noiseVariance[i] >= 0) { scaled[i] = options.noiseVariance[i] * inv; w[i] = 1; }
       const scratchN = new Float32Array(n);
-      const num = blurGaussianFast(scaled, width, height, 2, undefined, scratchN);
-      const den = blurGaussianFast(w, width, height, 2, undefined, scratchN);
+      const num = blurGaussianFast(scaled, width, height, 2, scaled, scratchN);
+      const den = blurGaussianFast(w, width, height, 2, w, scratchN);
       for (let i = 0; i < n; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
       noise = num;
     } else noise = estimateNoiseVariance(masked, width, height, valid);
@@ -286,7 +285,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     }
   }
   for (const w of widths) {
-    blurMaskWeight(weight, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch);
+    blurMaskWeight(valid, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch);
     blurGaussianFast(masked, width, height, w, local, scratch);
     // The Lee estimate for the gamma image comes from the widest scale up to LEE_WIDTH_PX (or the finest).
     const first = noise !== undefined && w === leeWidth;
@@ -314,8 +313,10 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     }
   }
   const invGamma = 1 / gamma;
+  // The result takes the buffer of the per-width differences, which are done with.
+  const data = diff;
   for (let i = 0; i < n; i++) {
-    if (!valid[i]) continue;
+    if (!valid[i]) { data[i] = 0; continue; }
     const b = leeMean && leeGain ? leeMean[i] + leeGain[i] * (masked[i] - leeMean[i]) : masked[i];
     const g = Math.pow(Math.max(0, b), invGamma);
     data[i] = h * g + ((1 - h) / widths.length) * sumArctan[i];

@@ -27,6 +27,12 @@ export interface FrameSpill {
   get: (key: number) => Typed;
   /** Replaces obj[field] (an array, or an array of arrays) by a getter over spilled copies; a later assignment stores in memory again. */
   spillField: <T extends object>(obj: T, field: keyof T & string) => void;
+  /**
+   * Sets the byte budget of the in-memory cache and trims it to fit. A stage that
+   * reads each frame once in order (the merge passes) gains nothing from a large
+   * cache, and the bytes held are bytes the merge's accumulators need.
+   */
+  setCacheBytes: (bytes: number) => void;
   /** Bytes written so far and read back from disk (cache misses). */
   stats: () => { writtenBytes: number; readBytes: number; cachedBytes: number };
   /** Deletes the files. */
@@ -60,7 +66,7 @@ function view(buffer: Buffer, kind: Kind, length: number): Typed {
 
 export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   const dir = mkdtempSync(join(options.parentDir ?? tmpdir(), "crownlight-frames-"));
-  const budget = options.cacheBytes ?? DEFAULT_SPILL_CACHE_BYTES;
+  let budget = options.cacheBytes ?? DEFAULT_SPILL_CACHE_BYTES;
   const entries: Entry[] = [];
   // Map keeps insertion order: the first key is the least recently used.
   const cache = new Map<number, Typed>();
@@ -68,15 +74,18 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   let writtenBytes = 0;
   let readBytes = 0;
 
-  const remember = (key: number, array: Typed) => {
-    if (array.byteLength > budget) return;
-    cache.set(key, array);
-    cachedBytes += array.byteLength;
+  const trim = () => {
     for (const [k, a] of cache) {
       if (cachedBytes <= budget) break;
       cache.delete(k);
       cachedBytes -= a.byteLength;
     }
+  };
+  const remember = (key: number, array: Typed) => {
+    if (array.byteLength > budget) return;
+    cache.set(key, array);
+    cachedBytes += array.byteLength;
+    trim();
   };
 
   const put = (array: Typed): number => {
@@ -126,6 +135,10 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     put,
     get,
     spillField,
+    setCacheBytes: (bytes) => {
+      budget = Math.max(0, bytes);
+      trim();
+    },
     stats: () => ({ writtenBytes, readBytes, cachedBytes }),
     close: () => {
       cache.clear();

@@ -115,6 +115,8 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined): Promise<ReductionResult> {
   const { plan, ready } = planBracket(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) });
   await yieldToEventLoop();
+  // The merge passes read each frame once in order: a cache would only hold memory the accumulators need.
+  spill?.setCacheBytes(0);
   const started = performance.now();
   const steps = mergeKeptFramesInSteps(plan, frames, ready, progress);
   let step = steps.next();
