@@ -56,9 +56,11 @@ function kindOf(array: Typed): Kind {
 }
 
 function view(buffer: Buffer, kind: Kind, length: number): Typed {
-  // A fresh, aligned copy: Buffer's pool may hand out unaligned slices.
-  const bytes = new Uint8Array(buffer.byteLength);
-  bytes.set(buffer);
+  // Buffer's pool may hand out unaligned slices of a shared block (small files): those are
+  // copied. A large file's buffer owns its memory from offset 0 and is used as it is, so a
+  // 96 MB plane is not held twice while it is read.
+  const owned = buffer.byteOffset === 0 && buffer.buffer.byteLength === buffer.byteLength;
+  const bytes = owned ? new Uint8Array(buffer.buffer, 0, buffer.byteLength) : Uint8Array.from(buffer);
   if (kind === "f32") return new Float32Array(bytes.buffer, 0, length);
   if (kind === "u16") return new Uint16Array(bytes.buffer, 0, length);
   return bytes.subarray(0, length);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { estimateDarkNoiseSigma, linearizeFrame, validateFrame } from "@/lib/imaging/linearize";
+import { estimateDarkNoiseSigma, linearizeFrame, patchDefects, repairDefects, validateFrame } from "@/lib/imaging/linearize";
 import { ImagingError } from "@/lib/imaging/errors";
 import { createRng, sampleGaussian } from "@/lib/imaging/random";
 import type { LinearFrame } from "@/lib/imaging/types";
@@ -52,5 +52,26 @@ describe("linearizeFrame", () => {
     expect(() => validateFrame(makeFrame([1, 2, 3, 4], 2, 2, { whiteLevel: 50 }))).toThrow(/whiteLevel \(50\) must exceed blackLevel/);
     expect(() => linearizeFrame(makeFrame([1, 2, 3, 4], 2, 2), 1.5)).toThrow(/clipFraction/);
     expect(() => linearizeFrame(makeFrame([1, 300, 3, 4], 2, 2, { encoding: "srgb8" }), 0.9)).toThrow(/8-bit codes must be 0\.\.255/);
+  });
+});
+
+describe("repairing defects for a warp", () => {
+  // 4 x 3 plane with two defects side by side (5 and 6) and one in a corner (11).
+  const plane = () => Float32Array.from([1, 2, 3, 4, 5, 900, -7, 8, 9, 10, 11, 1e6]);
+  const masked = Uint8Array.from([0, 0, 0, 0, 0, 1, 1, 0, 0, 0, 0, 1]);
+
+  it("repairDefects fills each defect with the median of its sound neighbours", () => {
+    const out = repairDefects(plane(), masked, 4, 3);
+    // Pixel 5 (x 1, y 1): sound neighbours 1, 2, 3, 5, 9, 10, 11 -> median 5. Pixel 6: 2, 3, 4, 8, 10, 11 -> 8 (upper median).
+    // Pixel 11 (x 3, y 2): sound neighbours 8 and 11 -> 11.
+    expect(Array.from(out)).toEqual([1, 2, 3, 4, 5, 5, 8, 8, 9, 10, 11, 11]);
+  });
+
+  it("patchDefects gives the same plane in place and puts the defects' values back", () => {
+    const p = plane();
+    const restore = patchDefects(p, masked, 4, 3);
+    expect(Array.from(p)).toEqual(Array.from(repairDefects(plane(), masked, 4, 3)));
+    restore();
+    expect(Array.from(p)).toEqual(Array.from(plane()));
   });
 });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { computeHatWeight, mergeCodesDebevec, mergeCodesLikeOpenCv, mergeFrames, type MergeFrameInput } from "@/lib/imaging/merge";
+import { addFrameToMerge, computeHatWeight, createMergeAccumulator, finishMerge, mergeCodesDebevec, mergeCodesLikeOpenCv, mergeFrames, toPilot, type MergeFrameInput } from "@/lib/imaging/merge";
 import { convertResponseToTable, createCodeLookup, recoverResponseCurve, selectResponseSamples } from "@/lib/imaging/response";
 import { ImagingError } from "@/lib/imaging/errors";
 
@@ -39,6 +39,50 @@ describe("linear merge, photon-limited weights", () => {
     expect(result.radiance[0][0]).toBeCloseTo(1000 / 0.01, 6);
     expect(result.radiance[0][1]).toBeCloseTo(4 / 0.11, 5);
     expect(result.poorlyExposedCount).toBe(2);
+  });
+});
+
+describe("the merge's memory at the end of a pass", () => {
+  // Two frames of 3 pixels, the second twice as long; pixel 2 clipped in the second.
+  const frames: MergeFrameInput[] = [0.001, 0.002].map((t, k) => ({
+    planes: [Float32Array.of(10 * (k + 1), 100 * (k + 1), 1000 * (k + 1))],
+    exposureS: t,
+    clipped: Uint8Array.of(0, 0, k),
+    noiseFloor: Uint8Array.of(0, 0, 0),
+    clipLevel: 1500,
+  }));
+  const passOf = (pilot?: ReturnType<typeof toPilot>) => {
+    const acc = createMergeAccumulator(3, 1, 1, "photon", undefined, pilot);
+    for (const f of frames) addFrameToMerge(acc, f);
+    return acc;
+  };
+
+  it("the pilot's exposure weights are the first pass's, rounded once to float32", () => {
+    const first = passOf();
+    const pilot = toPilot(first);
+    expect(pilot.weights).toBeInstanceOf(Float32Array);
+    expect(pilot.sums).toBe(first.sums);
+    // 0.001 + 0.002 in float64 is not a float32 number: the pilot holds its nearest float32.
+    expect(first.weights[0][0]).toBe(0.001 + 0.002);
+    expect(pilot.weights[0]).toBe(Math.fround(0.001 + 0.002));
+  });
+
+  it("finishMerge turns the sums into the radiance in place and lets the rest of the accumulator go", () => {
+    const acc = passOf(toPilot(passOf()));
+    const sums = acc.sums[0];
+    expect(acc.worst).toBeDefined();
+    const result = finishMerge(acc);
+    expect(result.radiance[0]).toBe(sums);
+    // Pixel 0: 10 + 20 DN over 0.003 s, both frames well inside the taper's flat part.
+    expect(result.radiance[0][0]).toBeCloseTo(30 / 0.003, 2);
+    expect(result.radiance[0][2]).toBeCloseTo(1000 / 0.001, 2);
+    expect(acc.sums).toEqual([]);
+    expect(acc.weights).toEqual([]);
+    expect(acc.fallback.length).toBe(0);
+    expect(acc.pilot).toBeUndefined();
+    expect(acc.worst).toBeUndefined();
+    expect(acc.weightScratch).toBeUndefined();
+    expect(result.coverage).toBe(acc.coverage);
   });
 });
 

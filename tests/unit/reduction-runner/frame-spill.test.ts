@@ -29,6 +29,18 @@ describe("the spill store", () => {
     spill.spillField(obj, "mask");
     expect(obj.planes).toHaveLength(2);
     expect(Array.from(obj.planes[1])).toEqual(Array.from(a));
+    // A budget of 0 empties the cache: every read goes to disk; a budget again caches again.
+    spill.setCacheBytes(0);
+    expect(spill.stats().cachedBytes).toBe(0);
+    const misses = spill.stats().readBytes;
+    spill.get(kb);
+    spill.get(kb);
+    expect(spill.stats().readBytes).toBe(misses + 8);
+    spill.setCacheBytes(64);
+    spill.get(kb);
+    spill.get(kb);
+    expect(spill.stats().readBytes).toBe(misses + 12);
+    expect(spill.stats().cachedBytes).toBe(4);
     obj.mask = Uint8Array.from([9]);
     expect(Array.from(obj.mask)).toEqual([9]);
     spill.close();
