@@ -1,10 +1,10 @@
 // The merge and the finish of a reduction: merge passes over any slice of the
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
-import { type PreparedFrame, warpFrameForMerge, LIMB_MARGIN_PX } from "./frame-stage";
+import { type PreparedFrame, openFrameWarp, warpFrameBand, LIMB_MARGIN_PX } from "./frame-stage";
 import { describeTransmission, type BracketPlan } from "./bracket-plan";
 import { repairDefects } from "./linearize";
-import { addFrameToMerge, createMergeAccumulator, finishMerge, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
+import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, sampleScoreBand, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
@@ -27,28 +27,58 @@ export function createMergePass(plan: BracketPlan, pilot?: PhotonPilot): MergeAc
   return createMergeAccumulator(width, height, channels, "photon", undefined, pilot);
 }
 
-/** Warp buffers that serve every frame of a pass in turn. */
-export function createWarpScratch(plan: BracketPlan): WarpTarget {
+/**
+ * Master rows a linear frame is warped and merged in at a time: at 6000 px wide a
+ * band's planes take 18 MB where a whole frame's took 288 (and the merge's
+ * per-frame scratch shrinks alike). 8-bit frames merge whole.
+ */
+export const MERGE_BAND_ROWS = 256;
+
+function mergeBandRows(plan: BracketPlan): number {
+  return plan.isEncoded ? plan.height : Math.min(plan.height, MERGE_BAND_ROWS);
+}
+
+/**
+ * Warp buffers that serve every frame of a pass in turn: planes and covered for
+ * one band, masks [0] and [1] of the frame's size (the clipped mask's widening),
+ * masks [2] to [4] for one band (the warped clipped, noise-floor and defect masks).
+ * The band's rows decide how addKeptFrame cuts each frame (8-bit frames: always whole).
+ */
+export function createWarpScratch(plan: BracketPlan, bandRows = mergeBandRows(plan)): WarpTarget {
   const n = plan.width * plan.height;
+  const band = plan.width * (plan.isEncoded ? plan.height : Math.max(1, Math.min(plan.height, Math.floor(bandRows))));
   return {
-    planes: Array.from({ length: plan.channels }, () => new Float32Array(n)),
-    covered: new Uint8Array(n),
-    // Two for the clipped mask's dilation, then the warped clipped, noise-floor and defect masks.
-    masks: Array.from({ length: 5 }, () => new Uint8Array(n)),
+    planes: Array.from({ length: plan.channels }, () => new Float32Array(band)),
+    covered: new Uint8Array(band),
+    masks: [new Uint8Array(n), new Uint8Array(n), new Uint8Array(band), new Uint8Array(band), new Uint8Array(band)],
   };
 }
 
 /**
- * Warps kept frames into master pixels and adds them to a pass. `position` is
- * the frame's place in plan.keep; frames must come in that order within a pass
- * (slices of consecutive positions, each into its own accumulator, combine).
+ * Warps a kept frame into master pixels and adds it to a pass, band by band
+ * (the second pass first samples its outlier scale over all bands; the result
+ * is the whole-frame addition's, bit for bit). `position` is the frame's place
+ * in plan.keep; frames must come in that order within a pass (slices of
+ * consecutive positions, each into its own accumulator, combine).
  */
 export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, scratch: WarpTarget): void {
   const k = plan.keep[position];
   const offset = plan.offsets[k];
   // The merge subtracts the offset the plan settled on (solved from the bracket, when the file had none).
   const settled: LinearFrame = offset.blackLevel === frame.blackLevel ? frame : { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
-  addFrameToMerge(acc, warpFrameForMerge(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, scratch, plan.effectiveExposuresS[position]));
+  const { width, height } = plan;
+  const masks = scratch.masks && scratch.masks.length >= 5 ? scratch.masks : undefined;
+  const warp = openFrameWarp(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, masks?.slice(0, 2), plan.effectiveExposuresS[position]);
+  try {
+    const rows = Math.max(1, Math.floor(Math.min(scratch.covered.length / width, height)));
+    const band = { planes: scratch.planes, covered: scratch.covered, masks: masks?.slice(2) };
+    const tally = createMergeTally();
+    if (acc.pilot) for (let y = 0; y < height; y += rows) sampleScoreBand(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
+    for (let y = 0; y < height; y += rows) addBandToMerge(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
+    closeMergeFrame(acc, tally);
+  } finally {
+    warp.release();
+  }
 }
 
 /**

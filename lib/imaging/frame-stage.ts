@@ -40,10 +40,138 @@ export function prepareFrame(frame: LinearFrame, params: ReductionParams, respon
 }
 
 /**
+ * A frame opened for warping into master pixels, band by band: its arrays read
+ * once (the frame may keep them on disk behind getters), the clipped mask
+ * widened, and its defects repaired in its own planes until release() (see
+ * patchDefects). Bands come from warpFrameBand.
+ */
+export interface FrameWarp {
+  width: number;
+  height: number;
+  /** The map is the identity: bands are copies, not warps. */
+  identity: boolean;
+  release: () => void;
+  /** @internal */
+  source: {
+    planes: Float32Array[];
+    clipped: Uint8Array;
+    noiseFloor: Uint8Array;
+    masked?: Uint8Array;
+    black: number;
+    masterToFrame: AffineSimilarity;
+    frameMoon: LunarDisk;
+    referenceMoon: LunarDisk;
+    exposureS: number;
+    clipLevel: number;
+    noiseSigma?: number;
+  };
+}
+
+/**
+ * Opens a frame for warpFrameBand. `dilation` may hold two mask buffers of the
+ * frame's size, reused frame after frame for the widened clipped mask.
+ */
+export function openFrameWarp(
+  frame: LinearFrame,
+  prepared: PreparedFrame,
+  masterToFrame: AffineSimilarity,
+  frameMoon: LunarDisk,
+  referenceMoon: LunarDisk,
+  dilation?: Uint8Array[],
+  effectiveExposureS?: number,
+): FrameWarp {
+  const { linear } = prepared;
+  const { width, height } = linear;
+  const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
+  const isLinear = frame.encoding === "linear";
+  const planes = isLinear ? frame.image.planes : linear.planes;
+  const masked = linear.masked;
+  let clipped = linear.clipped;
+  // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
+  if (!identity) clipped = dilateMask(clipped, width, height, 1, dilation && dilation.length >= 2 ? [dilation[0], dilation[1]] : undefined);
+  // A defect's own value never reaches the master: the warp reads it as the median of its sound
+  // neighbours (so the bicubic support of the pixels around it is not spoilt), and the master
+  // pixel that lands on it is masked. Only where every frame's defect lands is a master pixel empty.
+  const restore = masked ? planes.map((p) => patchDefects(p, masked, width, height)) : [];
+  return {
+    width, height, identity,
+    release: () => {
+      for (let c = restore.length - 1; c >= 0; c--) restore[c]();
+      restore.length = 0;
+    },
+    source: {
+      planes, clipped, noiseFloor: linear.noiseFloor, masked, black: isLinear ? frame.blackLevel : 0, masterToFrame, frameMoon, referenceMoon,
+      exposureS: effectiveExposureS ?? linear.exposureS, clipLevel: linear.clipLevel, noiseSigma: linear.noiseSigma,
+    },
+  };
+}
+
+/**
+ * Master rows y0 .. y1 - 1 of an opened frame as merge input (arrays of the
+ * band's size, in `scratch` when given: planes, covered and three masks of at
+ * least the band's size). Every pixel is the one a whole-frame warp gives.
+ */
+export function warpFrameBand(warp: FrameWarp, y0: number, y1: number, scratch?: WarpTarget): MergeFrameInput {
+  const { width, height, identity, source } = warp;
+  const { masterToFrame, frameMoon: moon, referenceMoon } = source;
+  const n = (y1 - y0) * width;
+  const from = y0 * width;
+  const window = { width, height: y1 - y0, originY: y0 };
+  const view = <T extends Float32Array | Uint8Array>(a: T | undefined): T | undefined => (a && a.length >= n ? (a.subarray(0, n) as T) : undefined);
+  const target: WarpTarget | undefined = scratch && { planes: scratch.planes.map((p) => view(p)!), covered: view(scratch.covered)! };
+  const masks = scratch?.masks && scratch.masks.length >= 3 ? scratch.masks.slice(-3).map((m) => view(m)) : [];
+  let planes: Float32Array[];
+  let covered: Uint8Array;
+  let clipped: Uint8Array;
+  let noiseFloor: Uint8Array;
+  let masked = source.masked;
+  if (identity) {
+    planes = source.planes.map((p, c) => {
+      const band = p.subarray(from, from + n);
+      return target ? (target.planes[c].set(band), target.planes[c]) : Float32Array.from(band);
+    });
+    covered = target ? target.covered.fill(1) : new Uint8Array(n).fill(1);
+    clipped = source.clipped.subarray(from, from + n);
+    noiseFloor = source.noiseFloor.subarray(from, from + n);
+    masked = masked?.subarray(from, from + n);
+  } else {
+    const warped = warpPlanes(source.planes, width, height, masterToFrame, window, "bicubic", target);
+    planes = warped.planes;
+    covered = warped.covered;
+    clipped = warpMask(source.clipped, width, height, masterToFrame, window, 1, masks[0]);
+    noiseFloor = warpMask(source.noiseFloor, width, height, masterToFrame, window, 1, masks[1]);
+    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0, masks[2]);
+  }
+  if (source.black !== 0) {
+    const black = source.black;
+    for (const p of planes) for (let i = 0; i < p.length; i++) p[i] -= black;
+  }
+  if (!identity) {
+    // Near the limbs, only where this frame and the reference agree on the Moon (see warpFrameForMerge).
+    const moonR = moon.radiusPx;
+    const reach = Math.max(moonR, referenceMoon.radiusPx) + LIMB_MARGIN_PX + Math.hypot(moon.x - referenceMoon.x, moon.y - referenceMoon.y);
+    const top = Math.max(y0, Math.floor(referenceMoon.y - reach));
+    const bottom = Math.min(y1 - 1, Math.ceil(referenceMoon.y + reach));
+    const x0 = Math.max(0, Math.floor(referenceMoon.x - reach));
+    const x1 = Math.min(width - 1, Math.ceil(referenceMoon.x + reach));
+    for (let y = top; y <= bottom; y++) {
+      for (let x = x0; x <= x1; x++) {
+        const dFrame = Math.hypot(x - moon.x, y - moon.y) - moonR;
+        const dRef = Math.hypot(x - referenceMoon.x, y - referenceMoon.y) - referenceMoon.radiusPx;
+        const agree = (dFrame > LIMB_MARGIN_PX && dRef > LIMB_MARGIN_PX) || (dFrame < -LIMB_MARGIN_PX && dRef < -LIMB_MARGIN_PX) || Math.abs(dFrame - dRef) <= SAME_LIMB_PX;
+        if (!agree) covered[(y - y0) * width + x] = 0;
+      }
+    }
+  }
+  return { planes, exposureS: source.exposureS, clipped, noiseFloor, covered, clipLevel: source.clipLevel, masked, noiseSigma: source.noiseSigma };
+}
+
+/**
  * Per-frame stage: the frame warped into master pixels as merge input. A master
  * pixel near either lunar limb is used only when this frame and the reference
  * agree on whether the Moon covers it (the Moon moves between frames), or
- * whose limb lies where the reference's does.
+ * whose limb lies where the reference's does. With scratch, its buffers hold
+ * the result (two of its masks also serve the clipped mask's widening).
  */
 export function warpFrameForMerge(
   frame: LinearFrame,
@@ -54,66 +182,11 @@ export function warpFrameForMerge(
   scratch?: WarpTarget,
   effectiveExposureS?: number,
 ): MergeFrameInput {
-  const { linear } = prepared;
-  const { width, height } = linear;
-  const window = { width, height };
-  const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
-  const isLinear = frame.encoding === "linear";
-  // A defect's own value never reaches the master: the warp reads it as the median of its sound
-  // neighbours (so the bicubic support of the pixels around it is not spoilt), and the master
-  // pixel that lands on it is masked. Only where every frame's defect lands is a master pixel empty.
-  // Each array is read once: the frame may keep them on disk behind getters.
-  const raw = isLinear ? frame.image.planes : linear.planes;
-  let clipped = linear.clipped;
-  let noiseFloor = linear.noiseFloor;
-  let masked = linear.masked;
-  // The defects are repaired in the source planes for the length of the warp and put back after
-  // (patchDefects), so no repaired copy of the frame is made.
-  const restore = masked ? raw.map((p) => patchDefects(p, masked!, width, height)) : [];
-  let planes: Float32Array[];
-  let covered: Uint8Array;
+  const masks = scratch?.masks && scratch.masks.length >= 5 ? scratch.masks : undefined;
+  const warp = openFrameWarp(frame, prepared, masterToFrame, frameMoon, referenceMoon, masks?.slice(0, 2), effectiveExposureS);
   try {
-    if (identity) {
-      planes = raw.map((p, c) => (scratch ? (scratch.planes[c].set(p), scratch.planes[c]) : Float32Array.from(p)));
-      covered = scratch ? scratch.covered.fill(1) : new Uint8Array(width * height).fill(1);
-    } else {
-      const warped = warpPlanes(raw, width, height, masterToFrame, window, "bicubic", scratch);
-      planes = warped.planes;
-      covered = warped.covered;
-    }
+    return warpFrameBand(warp, 0, warp.height, scratch && { planes: scratch.planes, covered: scratch.covered, masks: masks?.slice(2) });
   } finally {
-    for (let c = restore.length - 1; c >= 0; c--) restore[c]();
+    warp.release();
   }
-  if (!identity) {
-    // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
-    // With scratch, the mask buffers are reused frame after frame (the merge reads them before the next warp).
-    const masks = scratch?.masks && scratch.masks.length >= 4 ? scratch.masks : undefined;
-    const dilated = dilateMask(clipped, width, height, 1, masks ? [masks[0], masks[1]] : undefined);
-    clipped = warpMask(dilated, width, height, masterToFrame, window, 1, masks?.[2]);
-    noiseFloor = warpMask(noiseFloor, width, height, masterToFrame, window, 1, masks?.[3]);
-    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0, masks?.[4]);
-  }
-  if (isLinear) {
-    const black = frame.blackLevel;
-    for (const p of planes) for (let i = 0; i < p.length; i++) p[i] -= black;
-  }
-  const moon = frameMoon;
-  const moonR = frameMoon.radiusPx;
-  const reach = Math.max(moonR, referenceMoon.radiusPx) + LIMB_MARGIN_PX + Math.hypot(moon.x - referenceMoon.x, moon.y - referenceMoon.y);
-  const y0 = Math.max(0, Math.floor(referenceMoon.y - reach));
-  const y1 = Math.min(height - 1, Math.ceil(referenceMoon.y + reach));
-  const x0 = Math.max(0, Math.floor(referenceMoon.x - reach));
-  const x1 = Math.min(width - 1, Math.ceil(referenceMoon.x + reach));
-  if (!identity) {
-    for (let y = y0; y <= y1; y++) {
-      for (let x = x0; x <= x1; x++) {
-        const dFrame = Math.hypot(x - moon.x, y - moon.y) - moonR;
-        const dRef = Math.hypot(x - referenceMoon.x, y - referenceMoon.y) - referenceMoon.radiusPx;
-        const agree = (dFrame > LIMB_MARGIN_PX && dRef > LIMB_MARGIN_PX) || (dFrame < -LIMB_MARGIN_PX && dRef < -LIMB_MARGIN_PX) || Math.abs(dFrame - dRef) <= SAME_LIMB_PX;
-        if (!agree) covered[y * width + x] = 0;
-      }
-    }
-  }
-  return { planes, exposureS: effectiveExposureS ?? linear.exposureS, clipped, noiseFloor, covered, clipLevel: linear.clipLevel, masked, noiseSigma: linear.noiseSigma };
 }
-

@@ -198,18 +198,18 @@ function growMask(mask: Uint8Array, width: number, height: number, r: number): U
  * first pass's estimate without this frame and sigma^2 = y + sigma_r^2 + t^2 E_loo / T_loo
  * (photon noise at one electron per DN, read noise, the leave-one-out estimate's
  * own noise). The worst plane's z, rounded to float32 as the score is kept; 0
- * where there is nothing to compare. `taper` is the frame's clip taper, before
- * the noise share.
+ * where there is nothing to compare. `i` indexes the master, `k` the frame's
+ * band; `taperK` is the frame's clip taper there, before the noise share.
  */
-function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: number, taperI: number, read2: number): number {
+function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: number, k: number, taperK: number, read2: number): number {
   const pilot = acc.pilot!;
   const t = frame.exposureS;
-  const tLoo = pilot.weights[i] - taperI * t;
+  const tLoo = pilot.weights[i] - taperK * t;
   if (!(tLoo > 1e-3 * t)) return 0;
   let worst = 0;
   for (let c = 0; c < acc.channels; c++) {
-    const y = frame.planes[c][i];
-    const eLoo = (pilot.sums[c][i] - taperI * y) / tLoo;
+    const y = frame.planes[c][k];
+    const eLoo = (pilot.sums[c][i] - taperK * y) / tLoo;
     const predicted = t * eLoo;
     const variance = Math.max(predicted, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
     const zc = (y - predicted) / Math.sqrt(variance);
@@ -218,20 +218,45 @@ function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: numbe
   return Math.fround(worst);
 }
 
+/** The clip taper of a frame's pixel k on its brightest plane (see computeClipTaper). */
+function computePixelTaper(frame: MergeFrameInput, channels: number, k: number): number {
+  let v = frame.planes[0][k];
+  for (let c = 1; c < channels; c++) if (frame.planes[c][k] > v) v = frame.planes[c][k];
+  return computeClipTaper(v, frame.clipLevel);
+}
+
+/** Whether a frame's pixel k takes part: covered, no defect, not clipped. */
+function isPixelUsable(frame: MergeFrameInput, k: number): boolean {
+  return !(frame.covered && !frame.covered[k]) && !(frame.masked && frame.masked[k]) && !frame.clipped[k];
+}
+
+/** Master pixels between two samples of a frame's outlier scores (an odd stride avoids locking onto image columns). */
+function scoreSampleStep(acc: MergeAccumulator): number {
+  return Math.max(1, Math.floor((acc.width * acc.height) / 200_000)) | 1;
+}
+
 /**
- * The frame's own z scale: 1.4826 MAD of |z| over a regular sample of the pixels
- * with a leave-one-out estimate, which absorbs a gain other than one. Scores are
- * computed pixel by pixel afterwards (scaleScore), so no full plane of them is held.
+ * A frame's outlier scores need the frame's own z scale (the robust spread of its
+ * z values, which absorbs a gain other than one) before any pixel is scored: a
+ * caller adding a frame band by band first passes every band to
+ * sampleScoreBand, then gives the tally's sample to the bands' additions
+ * (addBandToMerge). `offset` is the master index of the band's first pixel.
  */
-function measureScoreScale(acc: MergeAccumulator, frame: MergeFrameInput, use: Uint8Array, taper: Float32Array, read2: number): number {
-  const n = acc.width * acc.height;
-  const step = Math.max(1, Math.floor(n / 200_000)) | 1;
-  const sample: number[] = [];
-  for (let i = 0; i < n; i += step) {
-    if (!use[i]) continue;
-    const z = computeRawScore(acc, frame, i, taper[i], read2);
-    if (z !== 0) sample.push(Math.abs(z));
+export function sampleScoreBand(acc: MergeAccumulator, band: MergeFrameInput, offset: number, tally: MergeFrameTally): void {
+  if (!acc.pilot || acc.weighting !== "photon") return;
+  const len = checkBand(acc, band, offset);
+  const step = scoreSampleStep(acc);
+  const read2 = (band.noiseSigma ?? 0) ** 2;
+  for (let i = Math.ceil(offset / step) * step; i < offset + len; i += step) {
+    const k = i - offset;
+    if (!isPixelUsable(band, k)) continue;
+    const z = computeRawScore(acc, band, i, k, computePixelTaper(band, acc.channels, k), read2);
+    if (z !== 0) tally.sample.push(Math.abs(z));
   }
+}
+
+/** 1.4826 MAD of the sampled |z| (at least 0.25), or 1 with too few samples. */
+function measureScoreScale(sample: number[]): number {
   sample.sort((a, b) => a - b);
   return sample.length > 100 ? Math.max(0.25, 1.4826 * sample[sample.length >> 1]) : 1;
 }
@@ -239,6 +264,143 @@ function measureScoreScale(acc: MergeAccumulator, frame: MergeFrameInput, use: U
 /** The outlier score of a raw z: z over the frame's scale, negative ones at NEGATIVE_SCORE_SHARE; float32 as the worst-frame record keeps it. */
 function scaleScore(z: number, scale: number): number {
   return Math.fround(z > 0 ? z / scale : (NEGATIVE_SCORE_SHARE * -z) / scale);
+}
+
+/** One frame's running figures while its bands are added (createMergeTally, then addBandToMerge per band, then closeMergeFrame). */
+export interface MergeFrameTally {
+  weightSum: number;
+  contributing: number;
+  well: number;
+  considered: number;
+  /** |z| at the regular sample of master pixels (second pass), gathered by sampleScoreBand. */
+  sample: number[];
+  /** The frame's z scale, measured from the sample when the first band is added. */
+  scale?: number;
+}
+
+export function createMergeTally(): MergeFrameTally {
+  return { weightSum: 0, contributing: 0, well: 0, considered: 0, sample: [] };
+}
+
+function checkBand(acc: MergeAccumulator, band: MergeFrameInput, offset: number): number {
+  const len = band.clipped.length;
+  if (band.planes.length !== acc.channels) throw new ImagingError("size-mismatch", `merge expects ${acc.channels} planes, got ${band.planes.length}`);
+  if (band.planes.some((p) => p.length !== len) || !(Number.isInteger(offset) && offset >= 0 && offset + len <= acc.width * acc.height)) {
+    throw new ImagingError("size-mismatch", "merge inputs differ in size");
+  }
+  return len;
+}
+
+/** A scratch array of at least `len` entries kept on the accumulator, as a view of exactly `len`. */
+function scratchOf<T extends Uint8Array | Float32Array>(held: T | undefined, len: number, make: (len: number) => T): { array: T; held: T } {
+  const array = held && held.length >= len ? held : make(len);
+  return { array: array.subarray(0, len) as T, held: array };
+}
+
+/**
+ * Adds one band of a frame: master pixels offset .. offset + band length, in
+ * master order (a whole frame is one band at offset 0). Bands of one frame come
+ * in order, each once; the frame's figures add up in `tally`, and
+ * closeMergeFrame records them. Every figure is the one a whole-frame addition
+ * gives, bit for bit: each pixel's arithmetic is its own, and the sums over
+ * pixels run in the same order.
+ */
+export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, offset: number, tally: MergeFrameTally): void {
+  const len = checkBand(acc, band, offset);
+  const t = band.exposureS;
+  const bound = band.clipLevel / t;
+  const { noiseFloor } = band;
+  const { coverage, fallback } = acc;
+  // Masks, coverage and the clipped fallback (shared by every plane).
+  const useScratch = scratchOf(acc.useScratch, len, (m) => new Uint8Array(m));
+  acc.useScratch = useScratch.held;
+  const use = useScratch.array.fill(0);
+  for (let k = 0; k < len; k++) {
+    if (band.covered && !band.covered[k]) continue;
+    if (band.masked && band.masked[k]) continue;
+    if (band.clipped[k]) {
+      if (bound > fallback[offset + k]) fallback[offset + k] = bound;
+      continue;
+    }
+    use[k] = 1;
+  }
+  if (acc.weighting === "photon") {
+    // Per-pixel weight factor: the clip taper on the brightest plane, then (second pass) the noise share.
+    const weightScratch = scratchOf(acc.weightScratch, len, (m) => new Float32Array(m));
+    acc.weightScratch = weightScratch.held;
+    const taper = weightScratch.array;
+    for (let k = 0; k < len; k++) taper[k] = use[k] ? computePixelTaper(band, acc.channels, k) : 0;
+    const exposure = acc.weights[0];
+    const { pilot, worst } = acc;
+    if (pilot) {
+      // Second pass, pixel by pixel: the outlier score (taken with the clip taper alone), then
+      // the noise share, the frame's weight, and the worst-frame record.
+      const read2 = (band.noiseSigma ?? 0) ** 2;
+      const scale = (tally.scale ??= measureScoreScale(tally.sample));
+      const lum = pilot.sums[acc.channels === 3 ? 1 : 0];
+      const index = acc.frameWeight.length;
+      for (let k = 0; k < len; k++) {
+        if (!use[k]) continue;
+        const i = offset + k;
+        const clipTaper = taper[k];
+        const expected = pilot.weights[i] > 0 ? (t * lum[i]) / pilot.weights[i] : 0;
+        const w = Math.fround(clipTaper * (expected > 0 ? expected / (expected + read2) : 1));
+        taper[k] = w;
+        if (!(w > 0)) { use[k] = 0; continue; }
+        exposure[i] += w * t;
+        tally.weightSum += w * t;
+        if (!worst) continue;
+        tally.considered++;
+        const score = scaleScore(computeRawScore(acc, band, i, k, clipTaper, read2), scale);
+        if (score <= worst.score[i]) continue;
+        worst.score[i] = score;
+        worst.frame[i] = index;
+        worst.weight[i] = w * t;
+        worst.wellExposed[i] = noiseFloor[k] ? 0 : 1;
+        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = w * band.planes[c][k];
+      }
+    } else {
+      for (let k = 0; k < len; k++) {
+        if (!use[k] || !(taper[k] > 0)) { use[k] = 0; continue; }
+        exposure[offset + k] += taper[k] * t;
+        tally.weightSum += taper[k] * t;
+      }
+    }
+    for (let c = 0; c < acc.channels; c++) {
+      const sum = acc.sums[c];
+      const p = band.planes[c];
+      for (let k = 0; k < len; k++) if (use[k]) sum[offset + k] += taper[k] * p[k];
+    }
+  }
+  for (let k = 0; k < len; k++) {
+    if (!use[k]) continue;
+    tally.contributing++;
+    if (!noiseFloor[k]) {
+      coverage[offset + k]++;
+      tally.well++;
+    }
+  }
+  if (acc.weighting !== "photon") {
+    // One band only (a whole frame): the weight sum runs plane by plane, as it always has.
+    if (offset !== 0 || len !== acc.width * acc.height) throw new ImagingError("bad-parameter", "the 8-bit merge adds whole frames only");
+    const logT = Math.log(t);
+    const codeOf = acc.codeOf!;
+    for (let c = 0; c < acc.channels; c++) {
+      const sum = acc.sums[c];
+      const weight = acc.weights[c];
+      const p = band.planes[c];
+      for (let i = 0; i < len; i++) {
+        if (!use[i]) continue;
+        const v = p[i];
+        if (!(v > 0)) continue;
+        const w = computeHatWeight(codeOf(v));
+        if (w <= 0) continue;
+        sum[i] += w * (Math.log(v) - logT);
+        weight[i] += w;
+        tally.weightSum += w / acc.channels;
+      }
+    }
+  }
 }
 
 /** Takes the worst frame out where it is an outlier (and in the grown wings around one); counts what each frame lost. */
@@ -262,112 +424,24 @@ function removeOutliers(acc: MergeAccumulator): void {
   }
 }
 
+/** Records a frame whose bands have all been added. */
+export function closeMergeFrame(acc: MergeAccumulator, tally: MergeFrameTally): void {
+  const n = acc.width * acc.height;
+  acc.frameWeight.push(tally.weightSum);
+  acc.frameRejected.push(0);
+  acc.frameConsidered.push(tally.considered);
+  acc.frameContributing.push(tally.contributing / n);
+  acc.frameWellExposed.push(tally.well / n);
+}
+
 export function addFrameToMerge(acc: MergeAccumulator, frame: MergeFrameInput): void {
   const n = acc.width * acc.height;
   if (frame.planes.length !== acc.channels) throw new ImagingError("size-mismatch", `merge expects ${acc.channels} planes, got ${frame.planes.length}`);
   if (frame.planes.some((p) => p.length !== n) || frame.clipped.length !== n) throw new ImagingError("size-mismatch", "merge inputs differ in size");
-  const t = frame.exposureS;
-  const bound = frame.clipLevel / t;
-  const { clipped, noiseFloor, covered } = frame;
-  const { coverage, fallback } = acc;
-  let weightSum = 0;
-  let contributing = 0;
-  let well = 0;
-  // Pass 1: masks, coverage and the clipped fallback (shared by every plane).
-  const use = acc.useScratch?.length === n ? acc.useScratch.fill(0) : (acc.useScratch = new Uint8Array(n));
-  const { masked } = frame;
-  for (let i = 0; i < n; i++) {
-    if (covered && !covered[i]) continue;
-    if (masked && masked[i]) continue;
-    if (clipped[i]) {
-      if (bound > fallback[i]) fallback[i] = bound;
-      continue;
-    }
-    use[i] = 1;
-  }
-  let considered = 0;
-  if (acc.weighting === "photon") {
-    // Per-pixel weight factor: the clip taper on the brightest plane, then (second pass) the noise share.
-    const taper = acc.weightScratch?.length === n ? acc.weightScratch : (acc.weightScratch = new Float32Array(n));
-    for (let i = 0; i < n; i++) {
-      if (!use[i]) { taper[i] = 0; continue; }
-      let v = frame.planes[0][i];
-      for (let c = 1; c < acc.channels; c++) if (frame.planes[c][i] > v) v = frame.planes[c][i];
-      taper[i] = computeClipTaper(v, frame.clipLevel);
-    }
-    const exposure = acc.weights[0];
-    const { pilot, worst } = acc;
-    if (pilot) {
-      // Second pass, pixel by pixel: the outlier score (taken with the clip taper alone), then
-      // the noise share, the frame's weight, and the worst-frame record.
-      const read2 = (frame.noiseSigma ?? 0) ** 2;
-      const scale = measureScoreScale(acc, frame, use, taper, read2);
-      const lum = pilot.sums[acc.channels === 3 ? 1 : 0];
-      const index = acc.frameWeight.length;
-      for (let i = 0; i < n; i++) {
-        if (!use[i]) continue;
-        const clipTaper = taper[i];
-        const expected = pilot.weights[i] > 0 ? (t * lum[i]) / pilot.weights[i] : 0;
-        const w = Math.fround(clipTaper * (expected > 0 ? expected / (expected + read2) : 1));
-        taper[i] = w;
-        if (!(w > 0)) { use[i] = 0; continue; }
-        exposure[i] += w * t;
-        weightSum += w * t;
-        if (!worst) continue;
-        considered++;
-        const score = scaleScore(computeRawScore(acc, frame, i, clipTaper, read2), scale);
-        if (score <= worst.score[i]) continue;
-        worst.score[i] = score;
-        worst.frame[i] = index;
-        worst.weight[i] = w * t;
-        worst.wellExposed[i] = noiseFloor[i] ? 0 : 1;
-        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = w * frame.planes[c][i];
-      }
-    } else {
-      for (let i = 0; i < n; i++) {
-        if (!use[i] || !(taper[i] > 0)) { use[i] = 0; continue; }
-        exposure[i] += taper[i] * t;
-        weightSum += taper[i] * t;
-      }
-    }
-    for (let c = 0; c < acc.channels; c++) {
-      const sum = acc.sums[c];
-      const p = frame.planes[c];
-      for (let i = 0; i < n; i++) if (use[i]) sum[i] += taper[i] * p[i];
-    }
-  }
-  for (let i = 0; i < n; i++) {
-    if (!use[i]) continue;
-    contributing++;
-    if (!noiseFloor[i]) {
-      coverage[i]++;
-      well++;
-    }
-  }
-  if (acc.weighting !== "photon") {
-    const logT = Math.log(t);
-    const codeOf = acc.codeOf!;
-    for (let c = 0; c < acc.channels; c++) {
-      const sum = acc.sums[c];
-      const weight = acc.weights[c];
-      const p = frame.planes[c];
-      for (let i = 0; i < n; i++) {
-        if (!use[i]) continue;
-        const v = p[i];
-        if (!(v > 0)) continue;
-        const w = computeHatWeight(codeOf(v));
-        if (w <= 0) continue;
-        sum[i] += w * (Math.log(v) - logT);
-        weight[i] += w;
-        weightSum += w / acc.channels;
-      }
-    }
-  }
-  acc.frameWeight.push(weightSum);
-  acc.frameRejected.push(0);
-  acc.frameConsidered.push(considered);
-  acc.frameContributing.push(contributing / n);
-  acc.frameWellExposed.push(well / n);
+  const tally = createMergeTally();
+  sampleScoreBand(acc, frame, 0, tally);
+  addBandToMerge(acc, frame, 0, tally);
+  closeMergeFrame(acc, tally);
 }
 
 /**
