@@ -93,9 +93,9 @@ export interface MergeAccumulator {
   frameWellExposed: number[];
   /** debevec-hat: maps a linear value back to its 8-bit code. */
   codeOf?: (linear: number) => number;
-  /** Per-frame mask of contributing pixels, reused by every frame (fresh pages are costly to fault in). */
+  /** Mask of the contributing pixels of the band being added (at least a band long), reused band after band (fresh pages are costly to fault in). */
   useScratch?: Uint8Array;
-  /** photon: per-pixel weight of this frame (clip taper, and the noise share with a pilot), reused frame after frame. */
+  /** photon: per-pixel weight of the band being added (clip taper, and the noise share with a pilot), reused band after band. */
   weightScratch?: Float32Array;
   /** The first pass, finished: its radiance serves the second pass's weights and leave-one-out outlier test. */
   pilot?: PhotonPilot;
