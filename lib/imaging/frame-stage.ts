@@ -40,6 +40,16 @@ export function prepareFrame(frame: LinearFrame, params: ReductionParams, respon
 }
 
 /**
+ * prepareFrame for a frame whose limb was fitted elsewhere (another process):
+ * the same linearization, the fit taken as given. Linearizing again is cheap
+ * beside the fit, and lighter to pass around than the linearized planes.
+ */
+export function prepareFrameWithLimb(frame: LinearFrame, params: ReductionParams, limb: LimbFit, responseTable?: Float64Array): PreparedFrame {
+  const linear = linearizeFrame(frame, params.clipFraction, { responseTable, keepPlanes: frame.encoding !== "linear" });
+  return { linear, luminance: linear.luminance, limb };
+}
+
+/**
  * Per-frame stage: the frame warped into master pixels as merge input. A master
  * pixel near either lunar limb is used only when this frame and the reference
  * agree on whether the Moon covers it (the Moon moves between frames), or
