@@ -82,7 +82,7 @@ interface LightInput {
 }
 
 /** Everything fixed for the run when it starts, stored once (work piece "inputs"). */
-interface FlowInputs {
+export interface FlowInputs {
   lights: LightInput[];
   calibration: (LightInput & { kind: "bias" | "dark" | "flat" })[];
   params: ReductionParams;
@@ -234,7 +234,7 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
 }
 
 /** The run's inputs from the database: the frames the start form checked, the set's calibration frames, settings. */
-async function gatherInputs(db: DbOrTx, reductionId: string): Promise<FlowInputs> {
+export async function gatherInputs(db: DbOrTx, reductionId: string): Promise<FlowInputs> {
   const [red] = await db.select().from(reductions).where(eq(reductions.id, reductionId)).limit(1);
   if (!red) throw new UnrecoverableError(`reduction ${reductionId} does not exist`);
   const [set] = await db.select().from(bracketSets).where(eq(bracketSets.id, red.bracketSetId)).limit(1);
@@ -548,6 +548,21 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
 /** True for a reason already in people's words (a fault of the input the runner described). */
 function isPeopleText(reason: string): boolean {
   return !/^(Error|TypeError|RangeError|ECONN|ENO|EACCES)\b/.test(reason);
+}
+
+/**
+ * For a parent job that failed without running its own failure path (BullMQ fails a job
+ * that stalled more often than allowed without calling its handler): marks the
+ * reduction failed unless it has ended already.
+ */
+export async function failReductionIfOpen(db: DbOrTx, reductionId: string, message: string): Promise<void> {
+  const [red] = await db.select({ state: reductions.state }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
+  if (!red || red.state === "done" || red.state === "failed") return;
+  const words = /stalled more than allowable limit/.test(message)
+    ? "the worker processes running it stopped responding more than once (killed, or out of memory); start the reduction again"
+    : message;
+  await failReduction(db, reductionId, words);
+  await deleteReductionWork(reductionId).catch(() => undefined);
 }
 
 /** Marks the reduction failed for good and tells the photographer why. */
