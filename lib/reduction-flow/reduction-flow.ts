@@ -27,10 +27,10 @@ import type { Db, DbOrTx } from "@/db/client";
 import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { addKeptFrame, createMergePass, createWarpScratch, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
-import { planBracket, type BracketPlan, type FrameLeftOut } from "@/lib/imaging/bracket-plan";
+import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
 import { buildCalibrationMasters, calibrateLightFrame, findBadPixelsFromBracket, type CalibrationMasters } from "@/lib/imaging/calibrate";
 import { ImagingError } from "@/lib/imaging/errors";
-import { prepareFrame, prepareFrameWithLimb, type PreparedFrame } from "@/lib/imaging/frame-stage";
+import { prepareFrame } from "@/lib/imaging/frame-stage";
 import type { LimbFit } from "@/lib/imaging/limb-fit";
 import { combineMergeAccumulators, toPilot, type MergeAccumulator, type PhotonPilot } from "@/lib/imaging/merge";
 import { createCodeLookup } from "@/lib/imaging/response";
@@ -43,18 +43,16 @@ import { defineSteppedFlow, parsePartJobId, type FlowJobContext, type FlowValue,
 import type { CalibrationReport } from "@/lib/reduction-runner/calibration";
 import { checkSameEncoding, checkSameShape, describeDecodedFrame, describeMissingExposure, type FrameProvenance } from "@/lib/reduction-runner/decode-frames";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
-import { createFrameSpill, spillPrepared } from "@/lib/reduction-runner/frame-spill";
 import { commitStagedOutput, createStagedOutput } from "@/lib/reduction-runner/output-dir";
 import { checkOutputOptions, writeReductionOutputs } from "@/lib/reduction-runner/run-reduction";
-import { checkSkyOptions, computeHelioGeometry, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "@/lib/reduction-runner/sky-run";
-import type { FrameSky } from "@/lib/reduction-runner/sun-geometry";
-import type { SunRegistration } from "@/lib/reduction-runner/sun-registration";
+import { checkSkyOptions, computeHelioGeometry, type RunnerRegistrationMode, type SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
 import { describeReductionFailure } from "@/lib/reductions/failure-text";
 import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { bucketName, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 import { createArrayCache } from "./work-blob";
-import { deleteReductionWork, getWork, openWork, putWork, type WorkPlace } from "./work-store";
+import { deleteReductionWork, fetchWorkFile, getWork, openWork, putWork, type WorkPlace } from "./work-store";
+import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
 /** What the worker gives the parent (worker/dispatch.ts HandlerContext). */
@@ -104,14 +102,6 @@ interface SurveyValue {
   calibration: CalibrationReport;
 }
 
-/** The sky geometry the plan found, kept for the finish (work piece "sky"). */
-interface SkyPiece {
-  pipelineParams: ReductionParams;
-  registrationMode: RunnerRegistrationMode;
-  notes: string[];
-  skies?: FrameSky[];
-  sun?: SunRegistration;
-}
 
 const PEOPLE_STAGES: Record<string, string> = {
   decode: "decoding a frame",
@@ -214,6 +204,18 @@ async function combineSlices(place: WorkPlace, plan: BracketPlan, step: string, 
   return acc!;
 }
 
+/** The Redis set of kept positions a merge step has merged: a frame merged again by a retried part counts once. */
+function mergedFramesKey(ctx: { job: { queueQualifiedName: string } }, place: WorkPlace, step: string): string {
+  return `${ctx.job.queueQualifiedName}:merged-frames:${place.reductionId}:${place.runKey}:${step}`;
+}
+
+/** Counts a merged frame and shows the count on the reduction ("Frames merged: 41 of 120"). */
+async function countMergedFrame(ctx: ReductionPartContext, place: WorkPlace, step: string, position: number, kept: number): Promise<void> {
+  const key = mergedFramesKey(ctx, place, step);
+  const [, [, done]] = (await ctx.redis.multi().sadd(key, position).scard(key).expire(key, 24 * 3600).exec()) as [unknown, [unknown, number]];
+  await setStage(ctx.db, place.reductionId, step, done / kept, { done, total: kept });
+}
+
 /** Merges one slice of kept frames into a fresh accumulator and stores it. */
 async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merge"): Promise<FlowValue> {
   const place = placeOfPart(ctx);
@@ -226,8 +228,7 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
   for (let position = from; position < to; position++) {
     const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]]), survey.defects);
     addKeptFrame(plan, acc, position, frame, prepareKeptFrame(plan, position, frame), scratch);
-    // Lets the worker renew its lock between frames.
-    await new Promise<void>((resolve) => setImmediate(resolve));
+    await countMergedFrame(ctx, place, step, position, plan.keep.length);
   }
   await putWork(place, `${step}-${ctx.payload.part}`, storableAccumulator(acc));
   return to - from;
@@ -447,26 +448,18 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
         const inputs = await cachedPiece<FlowInputs>(place, "inputs");
         const survey = await cachedPiece<{ decoded: number[]; defects?: Uint8Array }>(place, "survey");
         const limbs = await getWork<LimbFit[]>(place, "limbs", dir);
-        const cache = createArrayCache(PLAN_CACHE_BYTES);
-        const spill = createFrameSpill({ parentDir: dir });
+        const frameFiles: string[] = [];
+        for (const i of survey.decoded) frameFiles.push(await fetchWorkFile(place, `frame-${i}`, dir));
+        let planned;
         try {
-          const frames: LinearFrame[] = [];
-          const prepared: PreparedFrame[] = [];
-          for (const [j, i] of survey.decoded.entries()) {
-            const frame = withDefects(await openWork<LinearFrame>(place, `frame-${i}`, dir, cache), survey.defects);
-            frames.push(frame);
-            // The limb fitted by the part; the linearization made again here, kept on local disk.
-            prepared.push(spillPrepared(spill, prepareFrameWithLimb(frame, inputs.params, limbs[j], frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined)));
-            progress("register", 0, { done: j + 1, total: survey.decoded.length });
-          }
-          const sky = resolveSkyGeometry(frames, inputs.params, inputs.registration, inputs.sky, prepared);
-          const { plan } = planBracket(frames, prepared, sky.pipelineParams, { onProgress: progress, keepPrepared: (p) => spillPrepared(spill, p) });
-          await putWork(place, "sky", { pipelineParams: sky.pipelineParams, registrationMode: sky.registrationMode, notes: sky.notes, skies: sky.skies, sun: sky.sun } satisfies SkyPiece);
-          await putWork(place, "plan", plan);
-          return { kept: plan.keep.length, slices: sliceKept(plan.keep.length).length, encoded: plan.isEncoded };
-        } finally {
-          spill.close();
+          planned = await planInThread({ frameFiles, limbs, defects: survey.defects, params: inputs.params, registration: inputs.registration, sky: inputs.sky, scratchDir: dir }, progress);
+        } catch (err) {
+          if (err instanceof PlanInputFault) throw new UnrecoverableError(err.message);
+          throw err;
         }
+        await putWork(place, "sky", planned.sky);
+        await putWork(place, "plan", planned.plan);
+        return { kept: planned.plan.keep.length, slices: sliceKept(planned.plan.keep.length).length, encoded: planned.plan.isEncoded };
       })),
     },
     {
@@ -528,7 +521,9 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
       })),
     },
   ],
-  onProgress: async (ctx, { stage, done, total }) => {
+  onProgress: async (ctx, { step, stage, done, total }) => {
+    // Merge parts are slices of frames: they count their frames themselves (countMergedFrame).
+    if (step === "merge-pilot" || step === "merge") return;
     await setStage(ctx.db, ctx.payload.reductionId, stage, total > 0 ? done / total : 0, { done, total });
   },
   onFailed: async (ctx, error) => {

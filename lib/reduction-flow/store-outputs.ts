@@ -46,6 +46,8 @@ export async function storeReductionOutputs(db: DbOrTx, reductionId: string, out
     .set({
       state: "done",
       stage: "done",
+      // A retry that recovered leaves no fault behind.
+      error: null,
       progress: 1,
       stageFramesDone: null,
       stageFramesTotal: null,
