@@ -494,7 +494,9 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
       name: "finish",
       stage: "renditions",
       run: (ctx) => asInputFault(() => withScratch("finish", async (dir) => {
-        const started = performance.now();
+        // The report's total runs from when the reduction started, not from this step.
+        const [row] = await ctx.db.select({ startedAt: reductions.startedAt }).from(reductions).where(eq(reductions.id, ctx.payload.reductionId)).limit(1);
+        const started = performance.now() - (row?.startedAt ? Math.max(0, Date.now() - row.startedAt.getTime()) : 0);
         const place = placeOfParent(ctx);
         const progress = progressWriter(ctx);
         const inputs = await cachedPiece<FlowInputs>(place, "inputs");
