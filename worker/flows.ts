@@ -3,13 +3,14 @@
 // part job maps to runFlowPart, which finds the flow here.
 import { UnrecoverableError } from "bullmq";
 import type { JobName } from "@/lib/queue/jobs";
+import { reductionFlow } from "@/lib/reduction-flow/reduction-flow";
 import type { FlowJobContext, PartFields, SteppedFlow } from "@/lib/queue/stepped-flow";
 import type { SteeringJobHandler } from "./registry";
 
-// The reduction's stages join as `"reduction.part": reductionFlow` once they run as a flow; until then
-// nothing queues a reduction.part, and one that arrives is refused (no retry) naming the missing flow.
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- each flow types its own contexts
-export const FLOWS_BY_PART_JOB: Partial<Record<JobName, SteppedFlow<any, any>>> = {};
+export const FLOWS_BY_PART_JOB: Partial<Record<JobName, SteppedFlow<any, any>>> = {
+  "reduction.part": reductionFlow,
+};
 
 export const runFlowPart: SteeringJobHandler<"reduction.part"> = async (ctx) => {
   const flow = FLOWS_BY_PART_JOB[ctx.job.name as JobName];

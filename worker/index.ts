@@ -2,7 +2,9 @@
 // name to the typed handlers (worker/dispatch.ts: payloads validated again, state
 // mirrored to PostgreSQL), and SIGTERM/SIGINT let running jobs finish before the
 // process exits.
-import { Queue, Worker } from "bullmq";
+import { hostname } from "node:os";
+import { Queue, UnrecoverableError, Worker } from "bullmq";
+import { failReductionIfOpen } from "@/lib/reduction-flow/reduction-flow";
 import { closeDb, getDb } from "@/db/client";
 import { closeExportExifTool } from "@/lib/editions/export/embed";
 import { requireEnvOrExit } from "@/lib/env";
@@ -42,9 +44,16 @@ const workers = QUEUES.map((queue) => {
     connection,
     prefix,
     concurrency: queue === "mail" ? 4 : 1,
+    // Recorded on each job it takes (processedBy): shows which process did which part of a flow.
+    name: `${hostname()}:${process.pid}`,
     ...(queue === "reduce" ? { lockDuration: reduceLockMs, stalledInterval: reduceStalledMs } : {}),
   });
   mirrorOutcomes(w, db, "worker");
+  // A reduction's parent that BullMQ fails without running it (stalled too often) still ends its reduction.
+  w.on("failed", (job, err) => {
+    if (job?.name !== "reduction.run" || !(err instanceof UnrecoverableError || job.attemptsMade >= (job.opts.attempts ?? 1) || /stalled more than allowable/.test(err.message))) return;
+    void failReductionIfOpen(db, (job.data as { reductionId: string }).reductionId, err.message).catch((e) => console.error("[worker] reduction failure not recorded", e));
+  });
   return w;
 });
 

@@ -22,6 +22,9 @@ export const STATE_TONES = { queued: "neutral", running: "accent", done: "ok", f
 
 const STAGES: Record<string, string> = {
   fetch: "Fetching frames",
+  start: "Starting",
+  calibration: "Combining the calibration frames",
+  survey: "Checking the bracket for sensor defects",
   decode: "Decoding frames",
   sky: "Working out the sky geometry",
   linearize: "Linearizing",

@@ -82,7 +82,6 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
       {isActive(current.state) ? (
         <ProgressBar label={current.state === "queued" ? "Queued" : stage} value={current.state === "queued" ? undefined : percent} max={100} valueText={current.state === "queued" ? "waiting" : frameCount ?? `${percent}% of this stage`} />
       ) : null}
-      {frameCount ? <p className="text-sm text-ink-muted">{frameCount}</p> : null}
       {current.state === "failed" ? (
         <p role="alert" className="rounded-control border border-danger/50 bg-danger/10 px-3 py-2 text-danger">
           {current.error ?? "The reduction failed without a reason on record."}

@@ -2,8 +2,8 @@
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
 import { type PreparedFrame, openFrameWarp, warpFrameBand, LIMB_MARGIN_PX } from "./frame-stage";
-import { describeTransmission, type BracketPlan } from "./bracket-plan";
-import { repairDefects } from "./linearize";
+import { describeTransmission, RELEASED_PLANE, type BracketPlan } from "./bracket-plan";
+import { linearizeFrame, repairDefects } from "./linearize";
 import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, sampleScoreBand, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
@@ -79,6 +79,27 @@ export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position:
   } finally {
     warp.release();
   }
+}
+
+/**
+ * A kept frame's prepared data as the merge uses it, made again from the frame
+ * and the plan alone (what planBracket hands its caller as `ready`): for linear
+ * frames the linearization with the offset the plan settled on, for 8-bit frames
+ * with the response it chose. Lets another process merge a slice of frames
+ * without the plan's prepared frames.
+ */
+export function prepareKeptFrame(plan: BracketPlan, position: number, frame: LinearFrame): PreparedFrame {
+  const k = plan.keep[position];
+  const limb = plan.limbs[position];
+  const { clipFraction } = plan.params;
+  if (plan.isEncoded) {
+    const linear = linearizeFrame(frame, clipFraction, { responseTable: plan.responseTable, keepPlanes: true });
+    return { linear, luminance: RELEASED_PLANE, limb };
+  }
+  const offset = plan.offsets[k];
+  const settled: LinearFrame = { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
+  const linear = linearizeFrame(settled, clipFraction, { keepPlanes: false });
+  return { linear, luminance: RELEASED_PLANE, limb };
 }
 
 /**

@@ -40,6 +40,16 @@ export function prepareFrame(frame: LinearFrame, params: ReductionParams, respon
 }
 
 /**
+ * prepareFrame for a frame whose limb was fitted elsewhere (another process):
+ * the same linearization, the fit taken as given. Linearizing again is cheap
+ * beside the fit, and lighter to pass around than the linearized planes.
+ */
+export function prepareFrameWithLimb(frame: LinearFrame, params: ReductionParams, limb: LimbFit, responseTable?: Float64Array): PreparedFrame {
+  const linear = linearizeFrame(frame, params.clipFraction, { responseTable, keepPlanes: frame.encoding !== "linear" });
+  return { linear, luminance: linear.luminance, limb };
+}
+
+/**
  * A frame opened for warping into master pixels, band by band: its arrays read
  * once (the frame may keep them on disk behind getters), the clipped mask
  * widened, and its defects repaired in its own planes until release() (see

@@ -324,14 +324,16 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
   // (Beaton and Tukey 1974) at c = 6 robust sigmas, wider than the usual 4.685 so that
   // the corona's own residuals keep nearly full weight: a trail, a cosmic ray or a hot
   // pixel in one frame (tens of sigmas) is structure the other lacks, and must not pull the alignment.
-  const normalized: number[] = [];
+  // A typed array sorts numerically without a comparator, several times faster than a list of numbers.
+  const residuals = new Float64Array(width * height);
+  let filled = 0;
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
       const i = v * width + u;
-      if (usable(i)) normalized.push(Math.abs(reference[i] - moving[i]) * Math.sqrt(weights ? weights[i] : 1));
+      if (usable(i)) residuals[filled++] = Math.abs(reference[i] - moving[i]) * Math.sqrt(weights ? weights[i] : 1);
     }
   }
-  normalized.sort((a, b) => a - b);
+  const normalized = residuals.subarray(0, filled).sort();
   const cutoff = 6 * 1.4826 * (normalized[normalized.length >> 1] ?? 0);
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
@@ -351,9 +353,24 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
       const u2 = cutoff > 0 ? (Math.abs(r) * Math.sqrt(base)) / cutoff : 0;
       if (u2 >= 1) continue;
       const w = base * (1 - u2 * u2) ** 2;
-      for (let p = 0; p < k; p++) {
-        jtr[p] += w * row[p] * r;
-        for (let q = 0; q < k; q++) jtj[p * k + q] += w * row[p] * row[q];
+      // The same sums as a loop over p and q, written out (the loop's overhead dominated here).
+      const r0 = row[0], r1 = row[1], r2 = row[2];
+      const w0 = w * r0, w1 = w * r1, w2 = w * r2;
+      jtr[0] += w0 * r;
+      jtr[1] += w1 * r;
+      jtr[2] += w2 * r;
+      if (withScale) {
+        const r3 = row[3];
+        const w3 = w * r3;
+        jtr[3] += w3 * r;
+        jtj[0] += w0 * r0; jtj[1] += w0 * r1; jtj[2] += w0 * r2; jtj[3] += w0 * r3;
+        jtj[4] += w1 * r0; jtj[5] += w1 * r1; jtj[6] += w1 * r2; jtj[7] += w1 * r3;
+        jtj[8] += w2 * r0; jtj[9] += w2 * r1; jtj[10] += w2 * r2; jtj[11] += w2 * r3;
+        jtj[12] += w3 * r0; jtj[13] += w3 * r1; jtj[14] += w3 * r2; jtj[15] += w3 * r3;
+      } else {
+        jtj[0] += w0 * r0; jtj[1] += w0 * r1; jtj[2] += w0 * r2;
+        jtj[3] += w1 * r0; jtj[4] += w1 * r1; jtj[5] += w1 * r2;
+        jtj[6] += w2 * r0; jtj[7] += w2 * r1; jtj[8] += w2 * r2;
       }
       count++;
     }

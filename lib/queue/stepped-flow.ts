@@ -330,3 +330,11 @@ export function defineSteppedFlow<PC extends FlowJobContext<unknown>, CC extends
 ): SteppedFlow<PC, CC> {
   return new SteppedFlow(definition);
 }
+
+/** The parts of a part job's id: its parent's id and creation time, its step and index. */
+export function parsePartJobId(id: string): { parentId: string; parentTimestamp: number; step: string; index: number } {
+  const pieces = id.split("__");
+  const [ts, step, index] = pieces.slice(-3);
+  if (pieces.length < 4 || !/^\d+$/.test(ts) || !STEP_NAME.test(step) || !/^\d+$/.test(index)) throw new Error(`${id} is not a part job id`);
+  return { parentId: pieces.slice(0, -3).join("__"), parentTimestamp: Number(ts), step, index: Number(index) };
+}

@@ -77,7 +77,8 @@ function describeInstrument(decoded: DecodedFrame): string | undefined {
   return parts.length > 0 ? parts.join(" ") : undefined;
 }
 
-function checkSameShape(provenance: FrameProvenance[]): void {
+/** Refuses a bracket whose frames differ in size or colour planes, naming the odd one. */
+export function checkSameShape(provenance: FrameProvenance[]): void {
   const first = provenance[0];
   for (const frame of provenance.slice(1)) {
     if (frame.width !== first.width || frame.height !== first.height || frame.planeCount !== first.planeCount) {
@@ -87,6 +88,58 @@ function checkSameShape(provenance: FrameProvenance[]): void {
       );
     }
   }
+}
+
+/**
+ * A decoded file as a bracket frame with its provenance: the exposure is the
+ * photographer's when given, else the file's (NaN when neither: refused by the
+ * caller, naming the files); likewise the capture time.
+ */
+export function describeDecodedFrame(d: DecodedFrame, path: string, exposureOverride: number | undefined, timeOverride: number | undefined): { frame: LinearFrame; provenance: FrameProvenance } {
+  const exposureS = exposureOverride ?? d.metadata.exposureS ?? NaN;
+  const captureTimeMs = timeOverride ?? d.metadata.captureTimeMs;
+  const provenance: FrameProvenance = {
+    name: d.name,
+    path,
+    format: d.format,
+    bitDepth: d.bitDepth,
+    width: d.image.width,
+    height: d.image.height,
+    planeCount: d.image.planes.length,
+    exposureS,
+    exposureSource: exposureOverride !== undefined ? "override" : d.format === "fits" ? "fits-header" : "exif",
+    captureTimeMs,
+    captureTimeSource: timeOverride !== undefined ? "override" : d.metadata.captureTimeMs !== undefined ? "file" : undefined,
+    isTimeZoneAssumed: timeOverride !== undefined ? false : d.metadata.isTimeZoneAssumed,
+    instrument: describeInstrument(d),
+  };
+  const frame: LinearFrame = {
+    name: d.name,
+    image: d.image,
+    exposureS,
+    blackLevel: d.blackLevel,
+    blackLevelSource: d.blackLevelSource,
+    whiteLevel: d.whiteLevel,
+    encoding: d.encoding,
+    captureTimeMs,
+  };
+  return { frame, provenance };
+}
+
+/** The refusal for frames without an exposure time, naming them and where the time was looked for. */
+export function describeMissingExposure(missing: FrameProvenance[]): ReductionInputError {
+  const where = missing[0].format === "fits" ? "no EXPTIME or EXPOSURE card" : "no EXIF ExposureTime";
+  return new ReductionInputError(
+    "missing-exposure",
+    `${missing.map((p) => p.name).join(", ")}: no exposure time in the file (${where}); give one per file in an exposures CSV (columns file, exposure_s)`,
+  );
+}
+
+/** Refuses a bracket that mixes 8-bit and linear frames, naming the odd one. */
+export function checkSameEncoding(frames: LinearFrame[], provenance: FrameProvenance[]): void {
+  const odd = frames.findIndex((f) => f.encoding !== frames[0].encoding);
+  if (odd < 0) return;
+  throw new ReductionInputError("size-mismatch", `${frames[odd].name}: the frame is ${provenance[odd].bitDepth}-bit ${frames[odd].encoding} but ${frames[0].name} is ${provenance[0].bitDepth}-bit ${frames[0].encoding}; a bracket must be all 8-bit or all linear`);
 }
 
 /**
@@ -131,50 +184,13 @@ export async function decodeBracketFiles(
   });
   await Promise.all(lanes);
 
-  const provenance: FrameProvenance[] = decoded.map((d, k) => {
-    const override = exposureOverrides.get(d.name);
-    const exposureS = override ?? d.metadata.exposureS;
-    const timeOverride = captureTimeOverrides.get(d.name);
-    return {
-      name: d.name,
-      path: files[k],
-      format: d.format,
-      bitDepth: d.bitDepth,
-      width: d.image.width,
-      height: d.image.height,
-      planeCount: d.image.planes.length,
-      exposureS: exposureS ?? NaN,
-      exposureSource: override !== undefined ? "override" : d.format === "fits" ? "fits-header" : "exif",
-      captureTimeMs: timeOverride ?? d.metadata.captureTimeMs,
-      captureTimeSource: timeOverride !== undefined ? "override" : d.metadata.captureTimeMs !== undefined ? "file" : undefined,
-      isTimeZoneAssumed: timeOverride !== undefined ? false : d.metadata.isTimeZoneAssumed,
-      instrument: describeInstrument(d),
-    };
-  });
+  const described = decoded.map((d, k) => describeDecodedFrame(d, files[k], exposureOverrides.get(d.name), captureTimeOverrides.get(d.name)));
+  const provenance = described.map((x) => x.provenance);
   const missing = provenance.filter((p) => Number.isNaN(p.exposureS));
-  if (missing.length > 0) {
-    const where = missing[0].format === "fits" ? "no EXPTIME or EXPOSURE card" : "no EXIF ExposureTime";
-    throw new ReductionInputError(
-      "missing-exposure",
-      `${missing.map((p) => p.name).join(", ")}: no exposure time in the file (${where}); give one per file in an exposures CSV (columns file, exposure_s)`,
-    );
-  }
+  if (missing.length > 0) throw describeMissingExposure(missing);
   checkSameShape(provenance);
-  const encodings = new Set(decoded.map((d) => d.encoding));
-  if (encodings.size > 1) {
-    const odd = decoded.find((d) => d.encoding !== decoded[0].encoding)!;
-    throw new ReductionInputError("size-mismatch", `${odd.name}: the frame is ${odd.bitDepth}-bit ${odd.encoding} but ${decoded[0].name} is ${decoded[0].bitDepth}-bit ${decoded[0].encoding}; a bracket must be all 8-bit or all linear`);
-  }
-  const frames: LinearFrame[] = decoded.map((d, k) => ({
-    name: d.name,
-    image: d.image,
-    exposureS: provenance[k].exposureS,
-    blackLevel: d.blackLevel,
-    blackLevelSource: d.blackLevelSource,
-    whiteLevel: d.whiteLevel,
-    encoding: d.encoding,
-    captureTimeMs: provenance[k].captureTimeMs,
-  }));
+  checkSameEncoding(described.map((x) => x.frame), provenance);
+  const frames = described.map((x) => x.frame);
   const prepared = pooled.map((p, k) => (p?.prepared && p.preparedExposureS === frames[k].exposureS ? p.prepared : undefined));
   return { frames, provenance, prepared };
 }

@@ -34,12 +34,11 @@ export interface PreparePool {
  * --import to a worker's own entry file: a small script registers tsx's loader
  * first and then imports the worker module through it.
  */
-function workerBootScript(): string {
+function workerBootScript(entry: string): string {
   // The ESM entry of "tsx/esm/api", found through the package's own export map.
   const packagePath = createRequire(import.meta.url).resolve("tsx/package.json");
   const { exports } = JSON.parse(readFileSync(packagePath, "utf8")) as { exports: Record<string, { import: { default: string } }> };
   const tsxApi = pathToFileURL(join(dirname(packagePath), exports["./esm/api"].import.default)).href;
-  const entry = new URL("./prepare-worker.ts", import.meta.url).href;
   return `import(${JSON.stringify(tsxApi)}).then((tsx) => { tsx.register(); return import(${JSON.stringify(entry)}); });`;
 }
 
@@ -60,8 +59,13 @@ interface Lane {
   isDead: boolean;
 }
 
+/** A worker thread running a TypeScript module of ours (through tsx's loader, as this process does). */
+export function startTypeScriptWorker(entry: URL): Worker {
+  return new Worker(workerBootScript(entry.href), { eval: true, execArgv: workerExecArgv() });
+}
+
 function startLane(): Lane {
-  const worker = new Worker(workerBootScript(), { eval: true, execArgv: workerExecArgv() });
+  const worker = startTypeScriptWorker(new URL("./prepare-worker.ts", import.meta.url));
   const lane: Lane = { worker, pending: new Map(), isDead: false };
   const failAll = () => {
     lane.isDead = true;

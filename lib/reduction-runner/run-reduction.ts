@@ -13,12 +13,16 @@ import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
 import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type FrameCount, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
 import { writeMasterSummary } from "./master-summary";
-import { checkFileList, decodeBracketFiles } from "./decode-frames";
+import { checkFileList, decodeBracketFiles, type FrameProvenance } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
-import { calibrateBracket, loadCalibrationMasters } from "./calibration";
+import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
 import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
 import { createPreparePool } from "./prepare-pool";
-import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "./output-dir";
+import { commitStagedOutput, createStagedOutput, discardStagedOutput, type StagedOutput } from "./output-dir";
+import type { HelioGeometry } from "./helio-wcs";
+import type { SiteSpec } from "./sky-site";
+import type { FrameSky } from "./sun-geometry";
+import type { SunRegistration } from "./sun-registration";
 import { buildReport, type ReductionReport } from "./report";
 import { createHalvingCache, RENDITIONS, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles, type RenditionName } from "./write-outputs";
 import { applyClockOffsetToBracket, checkSkyOptions, resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "./sky-run";
@@ -184,60 +188,11 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     lap("reduce");
     frames.length = 0; // the decoded frames are no longer needed; let them go before writing
 
-    const dir = output.stagingDir;
-    const createdMs = Date.now();
-    progress("write-master", 0);
-    await writeMasterFits(dir, {
-      result,
-      frames: provenance.map((p) => ({ name: p.name, exposureS: p.exposureS, exposureSource: p.exposureSource === "override" ? (options.exposureOverrideSource ?? "override") : p.exposureSource, captureTimeMs: p.captureTimeMs })),
-      encoding: provenance[0].bitDepth === 8 ? "srgb8" : "linear",
-      instrument: provenance[0].instrument,
-      createdMs,
-      registrationMode,
-      helio,
-    });
-    lap("write-master");
-
-    // PNGs, preview and both tile pyramids are written side by side: sharp encodes on
-    // its own threads while this thread quantizes and halves the next piece, and the
-    // preview and the tiles share their linear-light halvings. The two stage times
-    // overlap: each runs from the start of this phase to the end of its own writes.
-    progress("write-renditions", 0);
-    const halve = createHalvingCache();
-    const size = computeScaledSize(result.master.width, result.master.height, outputLongSidePx);
-    const renditions: Record<RenditionName, PlaneImage> = {
-      natural: size.scale === 1 ? result.natural : scaleImageLinear(result.natural, size.width, size.height, halve),
-      structure: size.scale === 1 ? result.structure : scaleImageLinear(result.structure, size.width, size.height, halve),
-    };
-    const writesStarted = performance.now();
-    const renditionsWritten = (async () => {
-      await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, renditions[name])));
-      await writePreview(dir, renditions.natural, halve);
-      await writePreview(dir, renditions.structure, halve, "preview-structure.jpg");
-      timingsMs["write-renditions"] = performance.now() - writesStarted;
-    })();
-    const tiles: Record<string, TilePyramidResult> = {};
-    const levelsDone = new Map<RenditionName, number>();
-    const tilesWritten = Promise.all(RENDITIONS.map(async (name) => {
-      tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, renditions[name], options.iiifBaseUrl, (done, total) => {
-        levelsDone.set(name, done / total);
-        progress("tiles", [...levelsDone.values()].reduce((sum, f) => sum + f, 0) / RENDITIONS.length);
-      }, halve);
-    })).then(() => {
-      timingsMs.tiles = performance.now() - writesStarted;
-    });
-    await Promise.all([renditionsWritten, tilesWritten]);
-
-    progress("summary", 0);
-    const summary = await writeMasterSummary(dir, result, helio);
-    lap("summary");
-
-    timingsMs.total = performance.now() - started;
-    const report = buildReport({ result, provenance, exposureOverrideSource: options.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: options.frameIds, notes: sky.notes, calibration,
-      renditionSize: { width: size.width, height: size.height, scale: size.scale, longSidePx: outputLongSidePx },
-      sky: { registrationMode, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun, helio },
-    });
-    await writeFile(join(dir, "report.json"), `${JSON.stringify(report, null, 2)}\n`);
+    const report = await writeReductionOutputs(output, {
+      result, provenance, helio, registrationMode, calibration, timingsMs, started,
+      exposureOverrideSource: options.exposureOverrideSource, outputLongSidePx, iiifBaseUrl: options.iiifBaseUrl, frameIds: options.frameIds,
+      notes: sky.notes, clockOffsetS: options.sky?.clockOffsetS ?? 0, site: options.sky?.site, skies: sky.skies, sun: sky.sun,
+    }, progress);
     await commitStagedOutput(output);
     progress("done", 1);
     return { outDir: output.finalDir, report };
@@ -247,4 +202,97 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   } finally {
     spill?.close();
   }
+}
+
+/** What the writing of a finished reduction needs besides the numeric result. */
+export interface ReductionOutputsInput {
+  result: ReductionResult;
+  provenance: FrameProvenance[];
+  helio: HelioGeometry | undefined;
+  registrationMode: RunnerRegistrationMode;
+  calibration: CalibrationReport;
+  /** Stage times so far; the writers' own are added. */
+  timingsMs: Record<string, number>;
+  /** performance.now() when the reduction started, for the total. */
+  started: number;
+  exposureOverrideSource?: string;
+  outputLongSidePx: number;
+  iiifBaseUrl?: string;
+  frameIds?: Record<string, string>;
+  notes: string[];
+  clockOffsetS: number;
+  site?: SiteSpec;
+  skies?: FrameSky[];
+  sun?: SunRegistration;
+}
+
+/**
+ * Writes a finished reduction into its staging folder: master.fits, both
+ * renditions as PNG, previews, both tile pyramids, the summary and report.json.
+ * Returns the report. Shared by the single-process run and the flow's last step.
+ */
+export async function writeReductionOutputs(output: StagedOutput, input: ReductionOutputsInput, progress: RunProgressFn): Promise<ReductionReport> {
+  const { result, provenance, helio, registrationMode, calibration, timingsMs, outputLongSidePx } = input;
+  let clock = performance.now();
+  const lap = (stage: string) => {
+    const now = performance.now();
+    timingsMs[stage] = now - clock;
+    clock = now;
+  };
+  const dir = output.stagingDir;
+  const createdMs = Date.now();
+  progress("write-master", 0);
+  await writeMasterFits(dir, {
+    result,
+    frames: provenance.map((p) => ({ name: p.name, exposureS: p.exposureS, exposureSource: p.exposureSource === "override" ? (input.exposureOverrideSource ?? "override") : p.exposureSource, captureTimeMs: p.captureTimeMs })),
+    encoding: provenance[0].bitDepth === 8 ? "srgb8" : "linear",
+    instrument: provenance[0].instrument,
+    createdMs,
+    registrationMode,
+    helio,
+  });
+  lap("write-master");
+
+  // PNGs, preview and both tile pyramids are written side by side: sharp encodes on
+  // its own threads while this thread quantizes and halves the next piece, and the
+  // preview and the tiles share their linear-light halvings. The two stage times
+  // overlap: each runs from the start of this phase to the end of its own writes.
+  progress("write-renditions", 0);
+  const halve = createHalvingCache();
+  const size = computeScaledSize(result.master.width, result.master.height, outputLongSidePx);
+  const renditions: Record<RenditionName, PlaneImage> = {
+    natural: size.scale === 1 ? result.natural : scaleImageLinear(result.natural, size.width, size.height, halve),
+    structure: size.scale === 1 ? result.structure : scaleImageLinear(result.structure, size.width, size.height, halve),
+  };
+  const writesStarted = performance.now();
+  const renditionsWritten = (async () => {
+    await Promise.all(RENDITIONS.map((name) => writeRenditionPng(dir, name, renditions[name])));
+    await writePreview(dir, renditions.natural, halve);
+    await writePreview(dir, renditions.structure, halve, "preview-structure.jpg");
+    timingsMs["write-renditions"] = performance.now() - writesStarted;
+  })();
+  const tiles: Record<string, TilePyramidResult> = {};
+  const levelsDone = new Map<RenditionName, number>();
+  const tilesWritten = Promise.all(RENDITIONS.map(async (name) => {
+    tiles[name] = await writeRenditionTiles(dir, output.finalDir, name, renditions[name], input.iiifBaseUrl, (done, total) => {
+      levelsDone.set(name, done / total);
+      progress("tiles", [...levelsDone.values()].reduce((sum, f) => sum + f, 0) / RENDITIONS.length);
+    }, halve);
+  })).then(() => {
+    timingsMs.tiles = performance.now() - writesStarted;
+  });
+  await Promise.all([renditionsWritten, tilesWritten]);
+  clock = performance.now();
+
+  progress("summary", 0);
+  const summary = await writeMasterSummary(dir, result, helio);
+  lap("summary");
+
+  timingsMs.total = performance.now() - input.started;
+  const report = buildReport({ result, provenance, exposureOverrideSource: input.exposureOverrideSource, timingsMs, tiles, createdMs, summary, frameIds: input.frameIds, notes: input.notes, calibration,
+    renditionSize: { width: size.width, height: size.height, scale: size.scale, longSidePx: outputLongSidePx },
+    sky: { registrationMode, clockOffsetS: input.clockOffsetS, site: input.site, skies: input.skies, sun: input.sun, helio },
+  });
+  await writeFile(join(dir, "report.json"), `${JSON.stringify(report, null, 2)}\n`);
+  return report;
 }

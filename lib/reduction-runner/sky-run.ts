@@ -3,7 +3,7 @@
 // pixels for registration on the Sun, and after the merge the geometry the
 // master's WCS and the report state.
 import { applyClockOffset } from "@/lib/media";
-import type { ReductionResult } from "@/lib/imaging/pipeline";
+import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
 import type { FrameProvenance } from "./decode-frames";
 import { ReductionInputError } from "./errors";
@@ -90,7 +90,7 @@ function withoutSky(params: ReductionParams, mode: RunnerRegistrationMode, notes
  * an image orientation that cannot be found turns "sun" into "corona", and the
  * master has no WCS. Both are said in `notes`.
  */
-export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParams, mode: RunnerRegistrationMode, sky: SkyOptions | undefined): SkyGeometry {
+export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParams, mode: RunnerRegistrationMode, sky: SkyOptions | undefined, prepared?: readonly PreparedFrame[]): SkyGeometry {
   if (!sky?.site) return withoutSky(params, mode, []);
   const timings = frames.map((f) => ({ name: f.name, captureTimeMs: f.captureTimeMs, exposureS: f.exposureS }));
   const untimed = timings.filter((t) => !Number.isFinite(t.captureTimeMs)).map((t) => t.name);
@@ -103,7 +103,7 @@ export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParam
   const skies = computeFrameSkies(timings, sky.site);
   let sun: SunRegistration;
   try {
-    sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg ?? northAngleFromMount(sky.camera, skies));
+    sun = resolveSunRegistration(frames, skies, params, sky.northAngleDeg ?? northAngleFromMount(sky.camera, skies), prepared);
   } catch (error) {
     if (!(error instanceof ReductionInputError && error.code === "orientation-unknown")) throw error;
     return withoutSky(params, mode === "sun" ? "corona" : mode, [
@@ -112,23 +112,26 @@ export function resolveSkyGeometry(frames: LinearFrame[], params: ReductionParam
   }
   const pipelineParams: ReductionParams =
     mode === "moon" ? { ...params, registration: "moon" } : { ...params, registration: mode === "sun" ? "moon" : "corona", moonMinusSunPx: sun.offsetsPx };
-  const completeGeometry = (result: ReductionResult): HelioGeometry => {
-    const refSky = skies.find((s) => s.name === result.overall.referenceFrame)!;
-    const own = sun.offsetsPx[refSky.name];
-    // The pipeline states the Sun when it had offsets; on the lunar limb, the Sun sits at the reference Moon minus its offset.
-    const sunCentrePx = result.overall.sunCentre ?? { x: result.overall.moonCentre.x - own.dx, y: result.overall.moonCentre.y - own.dy };
-    return {
-      sunCentrePx,
-      plateScaleArcsecPerPx: sun.plateScaleArcsecPerPx,
-      northAngleDeg: sun.northAngleDeg,
-      pAngleDeg: refSky.state.pDeg,
-      rsunObsArcsec: refSky.state.sun.semiDiameterArcsec,
-      dsunObsM: refSky.state.sun.distanceKm * 1000,
-      observer: refSky.site,
-      moonSilhouetteMs: refSky.midExposureMs,
-    };
-  };
+  const completeGeometry = (result: ReductionResult) => computeHelioGeometry(skies, sun, result);
   return { pipelineParams, skies, sun, completeGeometry, notes: [], registrationMode: mode };
+}
+
+/** The WCS geometry of a finished reduction from the sky geometry its frames had (see resolveSkyGeometry). */
+export function computeHelioGeometry(skies: FrameSky[], sun: SunRegistration, result: Pick<ReductionResult, "overall">): HelioGeometry {
+  const refSky = skies.find((s) => s.name === result.overall.referenceFrame)!;
+  const own = sun.offsetsPx[refSky.name];
+  // The pipeline states the Sun when it had offsets; on the lunar limb, the Sun sits at the reference Moon minus its offset.
+  const sunCentrePx = result.overall.sunCentre ?? { x: result.overall.moonCentre.x - own.dx, y: result.overall.moonCentre.y - own.dy };
+  return {
+    sunCentrePx,
+    plateScaleArcsecPerPx: sun.plateScaleArcsecPerPx,
+    northAngleDeg: sun.northAngleDeg,
+    pAngleDeg: refSky.state.pDeg,
+    rsunObsArcsec: refSky.state.sun.semiDiameterArcsec,
+    dsunObsM: refSky.state.sun.distanceKm * 1000,
+    observer: refSky.site,
+    moonSilhouetteMs: refSky.midExposureMs,
+  };
 }
 
 /** "a.fits", "a.fits and b.fits", or "a.fits, b.fits and 3 more". */

@@ -48,7 +48,7 @@ function weighLimb(prepared: PreparedFrame): number {
   return prepared.limb.verdict === "sound" ? 1 : 1 / 16;
 }
 
-function estimateFromBracket(frames: LinearFrame[], prepared: PreparedFrame[], skies: FrameSky[], referenceIndex: number, scaleArcsecPerPx: number): NorthAngleEstimate {
+function estimateFromBracket(frames: LinearFrame[], prepared: readonly PreparedFrame[], skies: FrameSky[], referenceIndex: number, scaleArcsecPerPx: number): NorthAngleEstimate {
   const { width, height } = frames[0].image;
   const registration = registerFrames(
     prepared.map((p) => ({
@@ -78,11 +78,13 @@ function estimateFromBracket(frames: LinearFrame[], prepared: PreparedFrame[], s
 /**
  * Offsets for the pipeline. `skies` are in the frames' order. Throws the
  * pipeline's ImagingError naming the frame when a limb cannot be found.
+ * `preparedFrames[i]`, when given, must be prepareFrame(frames[i], params).
  */
-export function resolveSunRegistration(frames: LinearFrame[], skies: FrameSky[], params: ReductionParams, northAngleDeg?: number): SunRegistration {
+export function resolveSunRegistration(frames: LinearFrame[], skies: FrameSky[], params: ReductionParams, northAngleDeg?: number, preparedFrames?: readonly PreparedFrame[]): SunRegistration {
   const referenceIndex = chooseReferenceFrame(frames.map((f) => f.exposureS));
   const table = frames[0].encoding === "srgb8" ? createSrgbDecodeTable() : undefined;
-  const prepared = frames.map((f) => prepareFrame(f, params, table));
+  // Frames prepared already (with these params) are used as they are: a flow has them from its parts.
+  const prepared = preparedFrames ?? frames.map((f) => prepareFrame(f, params, table));
   const sound = prepared.filter((p) => p.limb.verdict === "sound");
   const found = prepared.filter((p) => p.limb.verdict !== "failed");
   if (found.length === 0) throw new ImagingError("limb-not-found", "the lunar limb could not be found in any frame, so the plate scale cannot be measured");

@@ -43,3 +43,8 @@ export function buildThumbnailKey(setId: string, frameId: string): string {
 export function buildDerivedPrefix(setId: string): string {
   return `derived/${requireUuid(setId, "bracket set id")}/`;
 }
+
+/** Prefix of the pieces a reduction's parts hand each other while it runs (deleted when it ends). */
+export function buildReductionWorkPrefix(reductionId: string): string {
+  return `work/reductions/${requireUuid(reductionId, "reduction id")}/`;
+}

@@ -4,7 +4,7 @@ import { createReadStream, createWriteStream } from "node:fs";
 import { stat } from "node:fs/promises";
 import { Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
-import { DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
+import { DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
 import type { ObjectRef } from "./multipart";
 import { getS3 } from "./s3";
@@ -73,4 +73,24 @@ export async function putObjectFile(ref: ObjectRef, path: string, contentType: s
 /** Deletes one object; one already gone counts as deleted (S3 answers the same). */
 export async function deleteObject(ref: ObjectRef, s3: S3Client = getS3()): Promise<void> {
   await s3.send(new DeleteObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+}
+
+/** Keys of every object under a prefix, in key order. */
+export async function listObjectKeys(ref: { bucket: string; prefix: string }, s3: S3Client = getS3()): Promise<string[]> {
+  const keys: string[] = [];
+  let token: string | undefined;
+  do {
+    const page = await s3.send(new ListObjectsV2Command({ Bucket: ref.bucket, Prefix: ref.prefix, ContinuationToken: token }));
+    for (const o of page.Contents ?? []) if (o.Key) keys.push(o.Key);
+    token = page.IsTruncated ? page.NextContinuationToken : undefined;
+  } while (token);
+  return keys;
+}
+
+/** Deletes every object under a prefix, a few at a time; returns how many there were. */
+export async function deleteObjectsUnder(ref: { bucket: string; prefix: string }, s3: S3Client = getS3()): Promise<number> {
+  if (!ref.prefix.endsWith("/")) throw new Error(`a prefix to delete under must end in "/": ${ref.prefix}`);
+  const keys = await listObjectKeys(ref, s3);
+  for (let i = 0; i < keys.length; i += 8) await Promise.all(keys.slice(i, i + 8).map((key) => deleteObject({ bucket: ref.bucket, key }, s3)));
+  return keys.length;
 }

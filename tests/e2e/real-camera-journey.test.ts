@@ -106,6 +106,10 @@ describe("a real camera's bracket with calibration frames, from disk to a named 
     await page.getByLabel("Align frames on").selectOption("corona");
     await page.getByRole("button", { name: "Start reduction" }).click();
     await page.waitForURL(/\/studio\/reductions\/[0-9a-f-]{36}$/, { timeout: 20_000 });
+    // The page counts frames through the stages that work frame by frame (the flow's parts).
+    const frameCount = page.getByText(/^Frames (decoded|measured|merged|merged in the first pass): \d+ of 8$/).first();
+    await frameCount.waitFor({ timeout: 120_000 });
+    await snap(page, "real-camera-01b-progress");
     await page.getByRole("heading", { name: "Corrections and frames left out" }).waitFor({ timeout: 300_000 });
     const section = page.locator(`section[aria-labelledby="corrections"]`);
     await snap(page, "real-camera-02-corrections");

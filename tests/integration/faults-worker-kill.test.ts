@@ -1,7 +1,9 @@
 // Fault: the worker is killed (SIGKILL) in the middle of a reduction and another
-// is started. BullMQ's stalled-job check hands the job to the new worker once the
-// dead one's lock expires; the reduction must then end done exactly once, with
-// one set of outputs under its prefix and nothing left from the killed run.
+// is started. BullMQ's stalled-job check hands the job it held (a part of the
+// reduction's flow, or its parent) to the new worker once the dead one's lock
+// expires; the reduction must then end done exactly once, with one set of outputs
+// under its prefix and nothing left from the killed run. (reduction-flow.test.ts
+// kills a part and the parent at chosen points and checks the master itself.)
 // The workers here are our own (production entry point, own queue prefix, a
 // short reduce lock through WORKER_REDUCE_LOCK_MS), so the suite's shared
 // worker never sees these jobs.
@@ -15,7 +17,8 @@ import type { Actor } from "@/lib/auth/actor";
 import { closeProducerRedis, createRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
-import { bucketName, buildDerivedPrefix, getS3, readObjectRange } from "@/lib/storage";
+import { bucketName, buildDerivedPrefix, getS3, listObjectKeys, readObjectRange } from "@/lib/storage";
+import { buildReductionWorkPrefix } from "@/lib/storage/keys";
 import { requireTestDatabase } from "../support/env";
 import { startOwnWorker, type OwnProcess } from "../support/processes";
 import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
@@ -135,8 +138,6 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
   expect(done.progress).toBe(1);
   expect(done.error).toBeNull();
   expect(done.finishedAt).not.toBeNull();
-  // The second run started over after the kill (the row was stamped again when it took the job).
-  expect(done.startedAt!.getTime()).toBeGreaterThan(atKill.startedAt!.getTime());
 
   // One reduction, one prefix: nothing under the set's reductions but this one's outputs.
   const expectedPrefix = `${buildDerivedPrefix(setId)}reductions/${started.id}/`;
@@ -155,11 +156,14 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
     const want = expectedDziTiles(dzi, `tiles/${base}`).sort();
     expect(relative.filter((k) => k.startsWith(`tiles/${base}_files/`)).sort()).toEqual(want);
   }
-  // Every object was written by the run that finished: S3 times have whole seconds, so compare from the second it started.
-  const secondRunFrom = Math.floor(done.startedAt!.getTime() / 1000) * 1000;
-  expect(objects.filter((o) => o.lastModified.getTime() < secondRunFrom).map((o) => o.key)).toEqual([]);
+  // Every output was written after the kill, by the run that finished (a parent killed while
+  // storing runs its last step again whole): S3 times have whole seconds, so compare from the second of the kill.
+  const killSecond = Math.floor(killedAt / 1000) * 1000;
+  expect(objects.filter((o) => o.lastModified.getTime() < killSecond).map((o) => o.key)).toEqual([]);
+  // The pieces the flow's parts handed each other are gone.
+  expect(await listObjectKeys({ bucket: bucketName("derived"), prefix: buildReductionWorkPrefix(started.id) })).toEqual([]);
 
-  // The job ran to completion once: completed in BullMQ after one stall, mirrored as done.
+  // The parent job completed, mirrored as done, without a failure.
   // The mirror follows BullMQ's "completed" event, a moment after the handler wrote the reduction row.
   const run = await waitFor("the job's mirror to say done", async () => {
     const [r] = await db.select().from(jobRuns).where(eq(jobRuns.id, jobId));
@@ -171,9 +175,7 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
   try {
     const job = (await queue.getJob(jobId))!;
     expect(await job.getState()).toBe("completed");
-    expect(job.stalledCounter).toBe(1);
     expect(job.attemptsMade).toBe(1);
-    expect(job.attemptsStarted).toBe(2);
     expect(job.failedReason ?? null).toBeNull();
   } finally {
     await queue.close();

@@ -1,0 +1,68 @@
+// The last of a reduction: its finished output folder goes to S3 under the
+// reduction's own prefix, and the row records it done with its measurements.
+// Keys are fixed by file name, so a parent that runs this again after a crash
+// overwrites what it had stored and leaves nothing twice.
+import { readdir, readFile } from "node:fs/promises";
+import path from "node:path";
+import { eq, sql } from "drizzle-orm";
+import type { DbOrTx } from "@/db/client";
+import { reductions } from "@/db/schema";
+import type { ReductionReport } from "@/lib/reduction-runner/report";
+import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+
+const CONTENT_TYPES: Record<string, string> = {
+  ".fits": "application/fits",
+  ".png": "image/png",
+  ".jpg": "image/jpeg",
+  ".json": "application/json",
+  ".dzi": "application/xml",
+};
+
+async function listFiles(dir: string, prefix = ""): Promise<string[]> {
+  const out: string[] = [];
+  for (const e of await readdir(dir, { withFileTypes: true })) {
+    const rel = prefix ? `${prefix}/${e.name}` : e.name;
+    if (e.isDirectory()) out.push(...(await listFiles(path.join(dir, e.name), rel)));
+    else out.push(rel);
+  }
+  return out;
+}
+
+/** Stores every file of `outDir` under the reduction's prefix and marks the reduction done. */
+export async function storeReductionOutputs(db: DbOrTx, reductionId: string, outDir: string, report: ReductionReport, onProgress: (fraction: number) => void): Promise<void> {
+  const [red] = await db.select({ setId: reductions.bracketSetId }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
+  if (!red) throw new Error(`reduction ${reductionId} does not exist`);
+  const prefix = `${buildDerivedPrefix(red.setId)}reductions/${reductionId}/`;
+  onProgress(0);
+  const outputs = await listFiles(outDir);
+  for (const [i, rel] of outputs.entries()) {
+    const type = CONTENT_TYPES[path.extname(rel).toLowerCase()] ?? "application/octet-stream";
+    await putObjectBytes({ bucket: bucketName("derived"), key: prefix + rel }, await readFile(path.join(outDir, rel)), type);
+    if (i % 20 === 0) onProgress(i / outputs.length);
+  }
+  const overall = report.overall as Record<string, unknown>;
+  await db
+    .update(reductions)
+    .set({
+      state: "done",
+      stage: "done",
+      // A retry that recovered leaves no fault behind.
+      error: null,
+      progress: 1,
+      stageFramesDone: null,
+      stageFramesTotal: null,
+      finishedAt: sql`now()`,
+      pipelineVersion: report.pipelineVersion,
+      outputs: {
+        prefix,
+        master: `${prefix}master.fits`,
+        natural: `${prefix}natural.png`,
+        structure: `${prefix}structure.png`,
+        preview: `${prefix}preview.jpg`,
+        report: `${prefix}report.json`,
+        tiles: `${prefix}tiles/`,
+      },
+      measurements: { ...overall, parameters: report.parameters, timingsMs: report.timingsMs },
+    })
+    .where(eq(reductions.id, reductionId));
+}

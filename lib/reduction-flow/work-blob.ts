@@ -1,0 +1,211 @@
+// One file format for what a reduction's parts hand each other through S3: a
+// value of plain data (numbers, strings, nested objects and arrays) whose typed
+// arrays travel as raw bytes beside a JSON header. Non-finite numbers survive
+// (JSON alone turns NaN into null); functions and undefined fields are dropped.
+//
+// Layout: "CLWORK1\n", the header's length (uint32, little-endian), the header
+// (UTF-8 JSON), then each array's bytes at an 8-byte-aligned offset. Arrays are
+// read back as views on one aligned buffer, or one at a time from a file on disk
+// (readWorkFile), so that a stage holding many frames reads only what it touches.
+import { closeSync, openSync, readSync } from "node:fs";
+
+const MAGIC = "CLWORK1\n";
+const ALIGN = 8;
+
+type Typed = Float32Array | Float64Array | Uint8Array | Uint16Array | Int16Array | Int32Array | Uint32Array;
+const KINDS = {
+  f32: Float32Array,
+  f64: Float64Array,
+  u8: Uint8Array,
+  u16: Uint16Array,
+  i16: Int16Array,
+  i32: Int32Array,
+  u32: Uint32Array,
+} as const;
+type Kind = keyof typeof KINDS;
+
+interface ArrayEntry {
+  kind: Kind;
+  length: number;
+  offset: number;
+}
+
+interface Header {
+  value: unknown;
+  arrays: ArrayEntry[];
+}
+
+function kindOf(array: Typed): Kind {
+  for (const [kind, ctor] of Object.entries(KINDS)) if (array instanceof ctor) return kind as Kind;
+  throw new Error(`cannot store an array of ${array.constructor.name}`);
+}
+
+function isTyped(value: unknown): value is Typed {
+  return ArrayBuffer.isView(value) && !(value instanceof DataView);
+}
+
+/** The value as JSON-safe data, its typed arrays replaced by {$a: index} and non-finite numbers by {$n: "NaN"}. */
+function flatten(value: unknown, arrays: Typed[]): unknown {
+  if (typeof value === "number") return Number.isFinite(value) ? value : { $n: String(value) };
+  if (value === null || typeof value !== "object") return typeof value === "function" ? undefined : value;
+  if (isTyped(value)) {
+    arrays.push(value);
+    return { $a: arrays.length - 1 };
+  }
+  if (Array.isArray(value)) return value.map((v) => flatten(v, arrays) ?? null);
+  const out: Record<string, unknown> = {};
+  // Object.keys reads getters too: a frame whose planes live on disk is written as its data.
+  for (const key of Object.keys(value)) {
+    const v = flatten((value as Record<string, unknown>)[key], arrays);
+    if (v !== undefined) out[key] = v;
+  }
+  return out;
+}
+
+/** Encodes a value with its typed arrays. */
+export function encodeWork(value: unknown): Buffer {
+  const arrays: Typed[] = [];
+  const flat = flatten(value, arrays);
+  const entries: ArrayEntry[] = [];
+  // Offsets are relative to the start of the data section, which itself starts aligned.
+  let offset = 0;
+  for (const a of arrays) {
+    entries.push({ kind: kindOf(a), length: a.length, offset });
+    offset += Math.ceil(a.byteLength / ALIGN) * ALIGN;
+  }
+  const header = Buffer.from(JSON.stringify({ value: flat, arrays: entries } satisfies Header), "utf8");
+  const headEnd = MAGIC.length + 4 + header.length;
+  const dataStart = Math.ceil(headEnd / ALIGN) * ALIGN;
+  const out = Buffer.alloc(dataStart + offset);
+  out.write(MAGIC, 0, "latin1");
+  out.writeUInt32LE(header.length, MAGIC.length);
+  header.copy(out, MAGIC.length + 4);
+  arrays.forEach((a, i) => {
+    out.set(new Uint8Array(a.buffer, a.byteOffset, a.byteLength), dataStart + entries[i].offset);
+  });
+  return out;
+}
+
+function readHeader(head: Buffer, what: string): { header: Header; dataStart: number } {
+  if (head.length < MAGIC.length + 4 || head.toString("latin1", 0, MAGIC.length) !== MAGIC) throw new Error(`${what} is not a reduction work file`);
+  const length = head.readUInt32LE(MAGIC.length);
+  const headEnd = MAGIC.length + 4 + length;
+  if (head.length < headEnd) throw new Error(`${what} is cut short in its header`);
+  const header = JSON.parse(head.toString("utf8", MAGIC.length + 4, headEnd)) as Header;
+  return { header, dataStart: Math.ceil(headEnd / ALIGN) * ALIGN };
+}
+
+function rebuild(value: unknown, array: (index: number) => Typed, lazy: ((index: number) => () => Typed) | undefined): unknown {
+  if (value === null || typeof value !== "object") return value;
+  if (Array.isArray(value)) return value.map((v) => rebuild(v, array, lazy));
+  const record = value as Record<string, unknown>;
+  if (typeof record.$n === "string" && Object.keys(record).length === 1) return Number(record.$n);
+  if (typeof record.$a === "number" && Object.keys(record).length === 1) return array(record.$a);
+  const out: Record<string, unknown> = {};
+  for (const [key, v] of Object.entries(record)) {
+    const ref = v as { $a?: unknown } | null;
+    if (lazy && ref && typeof ref === "object" && !Array.isArray(ref) && typeof ref.$a === "number" && Object.keys(ref).length === 1) {
+      // Read when first touched; a later assignment replaces the getter with the value.
+      const read = lazy(ref.$a);
+      Object.defineProperty(out, key, {
+        configurable: true,
+        enumerable: true,
+        get: read,
+        set: (next: unknown) => Object.defineProperty(out, key, { value: next, writable: true, configurable: true, enumerable: true }),
+      });
+    } else if (lazy && Array.isArray(v) && v.length > 0 && v.every((e) => e && typeof e === "object" && typeof (e as { $a?: unknown }).$a === "number")) {
+      // A list of arrays (a frame's planes) is read together when first touched.
+      const reads = v.map((e) => lazy((e as { $a: number }).$a));
+      Object.defineProperty(out, key, {
+        configurable: true,
+        enumerable: true,
+        get: () => reads.map((r) => r()),
+        set: (next: unknown) => Object.defineProperty(out, key, { value: next, writable: true, configurable: true, enumerable: true }),
+      });
+    } else {
+      out[key] = rebuild(v, array, lazy);
+    }
+  }
+  return out;
+}
+
+/** Decodes a whole work file held in memory. Arrays are views on one aligned copy. */
+export function decodeWork<T>(bytes: Buffer, what = "the work file"): T {
+  const { header, dataStart } = readHeader(bytes, what);
+  const aligned = new Uint8Array(bytes.length - dataStart);
+  aligned.set(bytes.subarray(dataStart));
+  const array = (index: number): Typed => {
+    const e = header.arrays[index];
+    if (!e) throw new Error(`${what} names an array it does not hold`);
+    return new KINDS[e.kind](aligned.buffer, e.offset, e.length);
+  };
+  return rebuild(header.value, array, undefined) as T;
+}
+
+/** How a lazily read array is kept: each read goes through here (a cache may keep it). */
+export type ArrayReader = (key: string, read: () => Typed) => Typed;
+
+/**
+ * Decodes a work file on disk: small data at once, every array (or list of
+ * arrays) read from the file only when its field is read, through `cache`.
+ */
+export function readWorkFile<T>(path: string, cache: ArrayReader = (_key, read) => read()): T {
+  const fd = openSync(path, "r");
+  try {
+    const probe = Buffer.alloc(MAGIC.length + 4);
+    readSync(fd, probe, 0, probe.length, 0);
+    const length = probe.toString("latin1", 0, MAGIC.length) === MAGIC ? probe.readUInt32LE(MAGIC.length) : 0;
+    const head = Buffer.alloc(MAGIC.length + 4 + length);
+    readSync(fd, head, 0, head.length, 0);
+    const { header, dataStart } = readHeader(head, path);
+    const lazy = (index: number) => () => cache(`${path}#${index}`, () => {
+      const e = header.arrays[index];
+      if (!e) throw new Error(`${path} names an array it does not hold`);
+      const ctor = KINDS[e.kind];
+      const bytes = new Uint8Array(e.length * ctor.BYTES_PER_ELEMENT);
+      const f = openSync(path, "r");
+      try {
+        let done = 0;
+        while (done < bytes.length) {
+          const n = readSync(f, bytes, done, bytes.length - done, dataStart + e.offset + done);
+          if (n === 0) throw new Error(`${path} is cut short`);
+          done += n;
+        }
+      } finally {
+        closeSync(f);
+      }
+      return new ctor(bytes.buffer, 0, e.length);
+    });
+    return rebuild(header.value, (index) => lazy(index)(), lazy) as T;
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/**
+ * An array cache for readWorkFile: keeps recently read arrays up to a byte
+ * budget, least recently used out first.
+ */
+export function createArrayCache(budgetBytes: number): ArrayReader {
+  const cache = new Map<string, Typed>();
+  let bytes = 0;
+  return (key, read) => {
+    const hit = cache.get(key);
+    if (hit) {
+      cache.delete(key);
+      cache.set(key, hit);
+      return hit;
+    }
+    const array = read();
+    if (array.byteLength <= budgetBytes) {
+      cache.set(key, array);
+      bytes += array.byteLength;
+      for (const [k, a] of cache) {
+        if (bytes <= budgetBytes) break;
+        cache.delete(k);
+        bytes -= a.byteLength;
+      }
+    }
+    return array;
+  };
+}

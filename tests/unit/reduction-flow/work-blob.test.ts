@@ -1,0 +1,90 @@
+// The file format a reduction's parts hand each other (lib/reduction-flow/work-blob.ts):
+// values come back as they went in, typed arrays bit for bit, non-finite numbers kept,
+// and a file on disk is read one array at a time, only when its field is read.
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import { createArrayCache, decodeWork, encodeWork, readWorkFile } from "@/lib/reduction-flow/work-blob";
+import { sliceKept, MAX_MERGE_SLICES, MIN_FRAMES_PER_SLICE } from "@/lib/reduction-flow/reduction-flow";
+
+const dir = mkdtempSync(join(tmpdir(), "crownlight-work-blob-"));
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+function sample() {
+  return {
+    name: "frame-03.fits",
+    exposureS: 1 / 250,
+    limb: { x: NaN, y: Infinity, radiusPx: -Infinity, verdict: "failed", reasons: ["no edge"] },
+    image: { width: 3, height: 2, planes: [Float32Array.from([1.5, -2, 3e-8, 4, 5, 6]), Float32Array.from([0, 0, 0, 0, 0, 7])] },
+    badPixels: Uint8Array.from([0, 1, 0, 0, 1, 0]),
+    coverage: Uint16Array.from([65535, 2, 3]),
+    worst: { frame: Int16Array.from([-1, 4]), weights: [Float64Array.from([1 / 3, 1e-300])] },
+    table: Float64Array.from([0.1, 0.2]),
+    skip: undefined,
+    fn: () => 1,
+  };
+}
+
+describe("a reduction's work file", () => {
+  it("gives back the value: arrays of every kind bit for bit, NaN and infinities, nested lists", () => {
+    const back = decodeWork<ReturnType<typeof sample>>(encodeWork(sample()));
+    const want = sample();
+    expect(back.name).toBe(want.name);
+    expect(back.exposureS).toBe(want.exposureS);
+    expect(back.limb.x).toBeNaN();
+    expect(back.limb.y).toBe(Infinity);
+    expect(back.limb.radiusPx).toBe(-Infinity);
+    expect(back.limb.reasons).toEqual(["no edge"]);
+    expect(back.image.planes[0]).toEqual(want.image.planes[0]);
+    expect(back.image.planes[1]).toBeInstanceOf(Float32Array);
+    expect(back.badPixels).toEqual(want.badPixels);
+    expect(back.coverage).toEqual(want.coverage);
+    expect(back.worst.frame).toEqual(want.worst.frame);
+    expect(back.worst.weights[0]).toEqual(want.worst.weights[0]);
+    expect(back.table).toBeInstanceOf(Float64Array);
+    expect("skip" in back).toBe(false);
+    expect("fn" in back).toBe(false);
+  });
+
+  it("reads a file's arrays only when their fields are read, through the cache", () => {
+    const path = join(dir, "frame.bin");
+    writeFileSync(path, encodeWork(sample()));
+    const reads: string[] = [];
+    const cache = createArrayCache(1024);
+    const back = readWorkFile<ReturnType<typeof sample>>(path, (key, read) => {
+      reads.push(key);
+      return cache(key, read);
+    });
+    expect(back.image.width).toBe(3);
+    expect(reads).toEqual([]);
+    expect(back.image.planes[1][5]).toBe(7);
+    expect(reads).toHaveLength(2);
+    expect(back.badPixels[4]).toBe(1);
+    expect(reads).toHaveLength(3);
+    // A field assigned anew holds the new value.
+    back.badPixels = new Uint8Array(6);
+    expect(back.badPixels[4]).toBe(0);
+  });
+
+  it("refuses a file that is not one, naming it", () => {
+    const path = join(dir, "not.bin");
+    writeFileSync(path, "hello, this is text");
+    expect(() => readWorkFile(path)).toThrow(/not\.bin is not a reduction work file/);
+    expect(() => decodeWork(Buffer.from("CLWORK1\n\xff\xff\x00\x00{"), "piece")).toThrow(/piece is cut short/);
+  });
+});
+
+describe("the merge's slices of kept frames", () => {
+  it("cover every position once, in order, at most MAX_MERGE_SLICES of at least MIN_FRAMES_PER_SLICE", () => {
+    for (const count of [1, 2, 3, 4, 7, 9, 24, 25, 81, 200, 500]) {
+      const slices = sliceKept(count);
+      expect(slices[0].from).toBe(0);
+      expect(slices.at(-1)!.to).toBe(count);
+      slices.forEach((s, i) => i > 0 && expect(s.from).toBe(slices[i - 1].to));
+      expect(slices.length).toBeLessThanOrEqual(MAX_MERGE_SLICES);
+      if (slices.length > 1) expect(Math.min(...slices.map((s) => s.to - s.from))).toBeGreaterThanOrEqual(MIN_FRAMES_PER_SLICE - 1);
+    }
+    expect(sliceKept(7).map((s) => s.to - s.from)).toEqual([2, 2, 3]);
+  });
+});
