@@ -1,23 +1,37 @@
-// `npm run bench -- scale`: how a reduction grows with the number of frames.
-// Brackets of 9, 27 and 81 frames of one size (scale-bracket.ts, cached in .cache/)
-// are each reduced in a process of their own, watched from outside through /proc
-// (that process and every process below it: time, peak memory, CPU). Prints per
-// bracket the time and peak memory of every process involved and the cores busy;
-// then the least-squares slope of peak memory against frames, the floor (sharp
-// decoding the same frames plus tiling one rendition) and the ratio to it, and the
-// time with one and with two worker processes. Aims are printed, never asserted.
+// `npm run bench -- scale`: how a reduction grows with the number of frames, and
+// how it is shared by worker processes. Brackets of 9, 27 and 81 frames of one size
+// (scale-bracket.ts, cached in .cache/) are each reduced three times:
+//  - by runReductionOnFiles in a single process of its own (scale-reduce-child.ts):
+//    the baseline of the slope of peak memory against frames and of the ratio to the
+//    floor (sharp decoding the same frames plus tiling one rendition);
+//  - through the app's stepped flow (lib/reduction-flow) with one and with two worker
+//    processes of our own on the development services (scale-app.ts puts each
+//    bracket into a bench set through the upload and ingest path; scale-flow.ts
+//    starts the workers and the reduction and waits for done).
+// Every process is watched from outside through /proc (it and every process below
+// it: time, peak memory, CPU). Prints per bracket each measure, the floor and the
+// ratios, then the slope and the time with two worker processes over one. Aims are
+// printed, never asserted. `--frames 9,81` measures only some brackets.
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { closeDb, getDb, type Db } from "@/db/client";
+import type { Actor } from "@/lib/auth/actor";
+import { closeProducerRedis } from "@/lib/queue/connection";
+import { closeQueues } from "@/lib/queue/enqueue";
+import { prepareDevelopmentServices } from "./bench-services";
 import { measureFloorMs } from "./floor";
 import { readClockTicksPerS, runWatched, type WatchedProcess } from "./process-monitor";
 import { fitLine } from "./proc-stats";
 import { SCALE_HEIGHT, SCALE_LADDER_STEPS, SCALE_PASSES, SCALE_WIDTH, prepareScaleBrackets, type ScaleBracket } from "./scale-bracket";
+import { prepareBenchSets } from "./scale-app";
+import { BENCH_QUEUE_PREFIX, clearBenchQueues, measureFlowReduction, withBenchWorkers, type FlowRun } from "./scale-flow";
 import { findScaleChildResult, SCALE_SPILL_MODES, type ScaleChildJob, type ScaleSpill } from "./scale-child-protocol";
 
 const MB = 1024 ** 2;
 const AIM_SLOPE_MB_PER_FRAME = 5;
 const AIM_RATIO_TO_FLOOR = 4;
+const AIM_TWO_OVER_ONE = 0.6;
 /**
  * Every bracket is reduced in the streaming form by default, each frame's pixels kept on
  * local disk between stages: the form whose memory should not grow with the frames. (The
@@ -31,12 +45,20 @@ function readSpillMode(argv: readonly string[]): ScaleSpill {
   if (!SCALE_SPILL_MODES.includes(mode as ScaleSpill)) throw new Error(`--spill takes ${SCALE_SPILL_MODES.join(", ")}, not ${mode ?? "nothing"}`);
   return mode as ScaleSpill;
 }
-/** How the two-worker figure will be measured: one bracket, this many worker processes. */
+/** Worker processes the flow is measured with: one, and two sharing the reduction. */
 const WORKER_COUNTS = [1, 2] as const;
+/** `--frames 9,81` measures only those brackets (of 9, 27 and 81). */
+function readFrameCounts(argv: readonly string[]): number[] | null {
+  const at = argv.indexOf("--frames");
+  if (at < 0) return null;
+  const counts = (argv[at + 1] ?? "").split(",").map(Number);
+  const known = SCALE_PASSES.map((p) => p * SCALE_LADDER_STEPS);
+  if (counts.length === 0 || !counts.every((n) => known.includes(n))) throw new Error(`--frames takes some of ${known.join(",")}, not ${argv[at + 1] ?? "nothing"}`);
+  return counts;
+}
 
+/** One reduction by runReductionOnFiles in a child process (no services, no queue). */
 interface MeasuredReduction {
-  measured: true;
-  workers: number;
   /** From starting the processes to the last one's exit, ms. */
   wallMs: number;
   /** Around the reduction call alone (no process start-up), ms. */
@@ -53,14 +75,6 @@ interface MeasuredReduction {
   /** Where the reduction left its outputs (natural.png for the floor). */
   outDir: string;
 }
-
-interface UnmeasuredReduction {
-  measured: false;
-  workers: number;
-  reason: string;
-}
-
-type ReductionRun = MeasuredReduction | UnmeasuredReduction;
 
 /** One reduction of the bracket in a separate process, watched through /proc. */
 async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scratch: string): Promise<MeasuredReduction> {
@@ -80,8 +94,6 @@ async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scr
   const sampled = run.processes.some((p) => p.isRoot) ? run.processes : [{ pid: run.pid, comm: "node", peakRssBytes: 0, cpuS: 0, isRoot: true }, ...run.processes];
   const processes = sampled.map((p) => (p.isRoot ? { ...p, peakRssBytes: Math.max(p.peakRssBytes, result.vmHwmBytes), cpuS: rootCpuS } : p));
   return {
-    measured: true,
-    workers: 1,
     wallMs: run.wallMs,
     reductionMs: result.reductionMs,
     stagesMs: result.stagesMs,
@@ -95,19 +107,42 @@ async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scr
   };
 }
 
+/** What the flow measures need from the app: the bench member and its set of each bracket; or why they could not be had. */
+type AppSide = { db: Db; actor: Actor; setIds: Map<number, string> } | { reason: string };
+
+async function prepareAppSide(brackets: readonly ScaleBracket[]): Promise<AppSide> {
+  const log = (line: string) => process.stderr.write(`${line}\n`);
+  try {
+    await prepareDevelopmentServices(process.cwd(), log);
+    // Our own enqueues (ingest, the reduction) go to the queues only the bench's workers read.
+    process.env.QUEUE_PREFIX = BENCH_QUEUE_PREFIX;
+    const db = getDb();
+    await clearBenchQueues();
+    const { actor, sets } = await prepareBenchSets(db, brackets, (work) => withBenchWorkers(2, () => work()), log);
+    await clearBenchQueues();
+    return { db, actor, setIds: new Map(sets.map((s) => [s.frames, s.setId])) };
+  } catch (error) {
+    return { reason: `the app's side could not be prepared: ${error instanceof Error ? error.message : String(error)}` };
+  }
+}
+
 /**
- * The bracket reduced with `workers` worker processes sharing the work. One reduction
- * runs in one process today; when its frames become jobs that several worker processes
- * take, the branch for workers > 1 starts those processes, submits the reduction and
- * watches all of them (watchProcessTrees takes several roots).
+ * The bracket reduced through the app's stepped flow (lib/reduction-flow) by `workers`
+ * worker processes of our own on the development services: from startReduction to
+ * done, each process watched through /proc. A run that cannot be made says why.
  */
-async function measureReduction(bracket: ScaleBracket, workers: number, spill: ScaleSpill, scratch: string): Promise<ReductionRun> {
-  if (workers === 1) return measureInOneProcess(bracket, spill, scratch);
-  return {
-    measured: false,
-    workers,
-    reason: "a reduction still runs whole in one process; its frames are not yet shared out as jobs that several worker processes take, so a second worker process would sit idle",
-  };
+async function measureReduction(bracket: ScaleBracket, workers: number, app: AppSide): Promise<FlowRun> {
+  if ("reason" in app) return { measured: false, workers, reason: app.reason };
+  const setId = app.setIds.get(bracket.frames);
+  if (!setId) return { measured: false, workers, reason: `no bench set of ${bracket.frames} frames` };
+  process.stderr.write(`reducing ${bracket.frames} frames through the flow with ${workers} worker process${workers > 1 ? "es" : ""}\n`);
+  let lastAt = 0;
+  return measureFlowReduction(app.db, app.actor, setId, bracket.frames, workers, (line) => {
+    // Progress at most every 5 s: a long run would otherwise print thousands of lines.
+    if (performance.now() - lastAt < 5000) return;
+    lastAt = performance.now();
+    process.stderr.write(`${line}\n`);
+  });
 }
 
 function mb(bytes: number): string {
@@ -127,15 +162,67 @@ function describeProcesses(processes: WatchedProcess[]): string[] {
   return lines;
 }
 
+/** One flow run on a line, and each worker process on a line of its own. */
+function describeFlowRun(run: FlowRun, single: MeasuredReduction | null): string[] {
+  const label = `through the app's flow, ${run.workers} worker process${run.workers > 1 ? "es" : ""}`;
+  if (!run.measured) return [`${label}: not measured: ${run.reason}`];
+  const lines = [`${label}: ${(run.wallMs / 1000).toFixed(1)} s from start to done, CPU ${run.cpuS.toFixed(1)} s = ${(run.cpuS / (run.wallMs / 1000)).toFixed(2)} cores busy, all processes together at most ${mb(run.peakTotalBytes)} MB at one time, frames left out ${run.framesLeftOut}${single ? `; over the single process ${(run.wallMs / single.wallMs).toFixed(2)}` : ""}`];
+  run.perWorker.forEach((w, i) => lines.push(`  worker process ${i + 1} (pid ${w.pid}): peak ${mb(w.peakRssBytes)} MB (${mb(w.idleRssBytes)} MB idle before the start), CPU ${w.cpuS.toFixed(1)} s`));
+  for (const p of run.below) lines.push(`  process ${p.comm} (pid ${p.pid}) below a worker: peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`);
+  return lines;
+}
+
+function twoOverOne(runs: readonly FlowRun[]): number | null {
+  const one = runs.find((r) => r.workers === 1);
+  const two = runs.find((r) => r.workers === 2);
+  return one?.measured && two?.measured ? two.wallMs / one.wallMs : null;
+}
+
 interface BracketFigures {
   frames: number;
-  runs: ReductionRun[];
-  single: MeasuredReduction;
-  floor: { decodeMs: number; tileMs: number };
+  /** runReductionOnFiles in a child process: the baseline of the memory slope and the ratio to the floor (null with --flow-only). */
+  single: MeasuredReduction | null;
+  flows: FlowRun[];
+  floor: { decodeMs: number; tileMs: number } | null;
+}
+
+/** The single-process figures of a bracket for the JSON line (none with --flow-only). */
+function singleJson(f: BracketFigures): Record<string, unknown> {
+  if (!f.single || !f.floor) return { single: null };
+  return {
+    processWallMs: Math.round(f.single.wallMs),
+    reductionMs: Math.round(f.single.reductionMs),
+    stagesMs: Object.fromEntries(Object.entries(f.single.stagesMs).map(([k, v]) => [k, Math.round(v)])),
+    cpuS: Number(f.single.cpuS.toFixed(2)),
+    coresBusy: Number((f.single.cpuS / (f.single.wallMs / 1000)).toFixed(2)),
+    peakProcessBytes: f.single.peakProcessBytes,
+    peakTotalBytes: f.single.peakTotalBytes,
+    processes: f.single.processes.map((p) => ({ comm: p.comm, root: p.isRoot, peakRssBytes: p.peakRssBytes, cpuS: Number(p.cpuS.toFixed(2)) })),
+    floorMs: { decode: Math.round(f.floor.decodeMs), tile: Math.round(f.floor.tileMs) },
+    ratioToFloor: Number((f.single.reductionMs / (f.floor.decodeMs + f.floor.tileMs)).toFixed(3)),
+    framesLeftOut: f.single.framesLeftOut,
+  };
+}
+
+/** The single process's lines of a bracket: its processes, stages, the floor and the ratio to it. */
+function describeSingle(f: BracketFigures): string[] {
+  const s = f.single;
+  if (!s || !f.floor) return [`${f.frames} frames, single process: not measured (--flow-only)`];
+  const floorMs = f.floor.decodeMs + f.floor.tileMs;
+  return [
+    `${f.frames} frames, single process: ${(s.wallMs / 1000).toFixed(1)} s (reduction ${(s.reductionMs / 1000).toFixed(1)} s), CPU ${s.cpuS.toFixed(1)} s = ${(s.cpuS / (s.wallMs / 1000)).toFixed(2)} cores busy, frames left out ${s.framesLeftOut}`,
+    ...describeProcesses(s.processes).map((line) => `  ${line}`),
+    `  all processes together at most ${mb(s.peakTotalBytes)} MB at one time`,
+    `  stages (ms): ${Object.entries(s.stagesMs).map(([stage, ms]) => `${stage} ${Math.round(ms)}`).join(", ")}`,
+    `  floor: sharp decode ${(f.floor.decodeMs / 1000).toFixed(1)} s + tiling one rendition ${(f.floor.tileMs / 1000).toFixed(1)} s = ${(floorMs / 1000).toFixed(1)} s; reduction / floor = ${(s.reductionMs / floorMs).toFixed(2)}  (aim: at most ${AIM_RATIO_TO_FLOOR})`,
+  ];
 }
 
 export async function runScaleBench(argv: readonly string[]): Promise<void> {
   const spill = readSpillMode(argv);
+  const only = readFrameCounts(argv);
+  // The flow's measures alone (no single-process baseline, no floor): for a quick look at the sharing.
+  const flowOnly = argv.includes("--flow-only");
   const total = SCALE_PASSES[SCALE_PASSES.length - 1] * SCALE_LADDER_STEPS;
   let lastTenth = -1;
   const prepared = await prepareScaleBrackets(join(process.cwd(), ".cache"), (done) => {
@@ -143,50 +230,59 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     if (tenth !== lastTenth) process.stderr.write(`making the frames: ${done} of ${total}\n`);
     lastTenth = tenth;
   });
+  const brackets = prepared.brackets.filter((b) => !only || only.includes(b.frames));
+  const app = await prepareAppSide(brackets);
+  if ("reason" in app) process.stderr.write(`${app.reason}\n`);
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-bench-scale-"));
   const figures: BracketFigures[] = [];
   try {
-    for (const bracket of prepared.brackets) {
-      const runs: ReductionRun[] = [];
-      for (const workers of WORKER_COUNTS) {
-        runs.push(await measureReduction(bracket, workers, spill, scratch));
+    // Per bracket, the three measures one after the other, so that load from other work on the machine falls on all of them alike.
+    for (const bracket of brackets) {
+      const single = flowOnly ? null : await measureInOneProcess(bracket, spill, scratch);
+      const flows: FlowRun[] = [];
+      for (const workers of WORKER_COUNTS) flows.push(await measureReduction(bracket, workers, app));
+      let floor = null;
+      if (single) {
+        process.stderr.write(`floor for ${bracket.frames} frames\n`);
+        const floorDir = mkdtempSync(join(scratch, "floor-"));
+        floor = await measureFloorMs(bracket.files, join(single.outDir, "natural.png"), floorDir);
+        rmSync(single.outDir, { recursive: true, force: true });
+        rmSync(floorDir, { recursive: true, force: true });
       }
-      const single = runs.find((r): r is MeasuredReduction => r.measured && r.workers === 1)!;
-      process.stderr.write(`floor for ${bracket.frames} frames\n`);
-      const floorDir = mkdtempSync(join(scratch, "floor-"));
-      const floor = await measureFloorMs(bracket.files, join(single.outDir, "natural.png"), floorDir);
-      for (const run of runs) if (run.measured) rmSync(run.outDir, { recursive: true, force: true });
-      rmSync(floorDir, { recursive: true, force: true });
-      figures.push({ frames: bracket.frames, runs, single, floor });
+      figures.push({ frames: bracket.frames, single, flows, floor });
     }
   } finally {
     rmSync(scratch, { recursive: true, force: true });
+    if (!("reason" in app)) {
+      await closeQueues();
+      await closeProducerRedis();
+      await closeDb();
+    }
   }
 
   const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times`;
   console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${SCALE_WIDTH} x ${SCALE_HEIGHT} 16-bit RGB TIFF (${ladder})${prepared.madeS ? `, made in ${prepared.madeS.toFixed(0)} s` : ", cached"}`);
-  console.log("Each reduction runs in a process of its own, watched through /proc with every process below it;");
-  console.log(`${spill === "always" ? "frames kept on local disk between stages" : spill === "never" ? "frames kept in memory" : "frames kept on disk or in memory as the reduction decides by the files' size"} (spill: ${spill}).\n`);
+  console.log("Each bracket is reduced three times: by runReductionOnFiles in a single process of its own (the baseline of the memory slope");
+  console.log("and the ratio to the floor), and through the app's stepped flow with one and with two worker processes (worker/index.ts on the");
+  console.log(`development services, frames uploaded and ingested into a bench set, timed from starting the reduction to done). Every process is`);
+  console.log("watched through /proc with every process below it. Single process: " +
+    `${spill === "always" ? "frames kept on local disk between stages" : spill === "never" ? "frames kept in memory" : "frames kept on disk or in memory as the reduction decides by the files' size"} (spill: ${spill}).\n`);
   for (const f of figures) {
-    const s = f.single;
-    const floorMs = f.floor.decodeMs + f.floor.tileMs;
-    console.log(`${f.frames} frames: process ${(s.wallMs / 1000).toFixed(1)} s (reduction ${(s.reductionMs / 1000).toFixed(1)} s), CPU ${s.cpuS.toFixed(1)} s = ${(s.cpuS / (s.wallMs / 1000)).toFixed(2)} cores busy, frames left out ${s.framesLeftOut}`);
-    for (const line of describeProcesses(s.processes)) console.log(`  ${line}`);
-    console.log(`  all processes together at most ${mb(s.peakTotalBytes)} MB at one time`);
-    console.log(`  stages (ms): ${Object.entries(s.stagesMs).map(([stage, ms]) => `${stage} ${Math.round(ms)}`).join(", ")}`);
-    console.log(`  floor: sharp decode ${(f.floor.decodeMs / 1000).toFixed(1)} s + tiling one rendition ${(f.floor.tileMs / 1000).toFixed(1)} s = ${(floorMs / 1000).toFixed(1)} s; reduction / floor = ${(s.reductionMs / floorMs).toFixed(2)}  (aim: at most ${AIM_RATIO_TO_FLOOR})`);
-    for (const run of f.runs) {
-      if (run.measured) console.log(`  ${run.workers} worker process${run.workers > 1 ? "es" : ""}: ${(run.wallMs / 1000).toFixed(1)} s`);
-      else console.log(`  ${run.workers} worker processes: not measured yet: ${run.reason}`);
-    }
+    for (const line of describeSingle(f)) console.log(line);
+    for (const run of f.flows) for (const line of describeFlowRun(run, f.single)) console.log(`  ${line}`);
+    const ratio = twoOverOne(f.flows);
+    console.log(`  two worker processes / one = ${ratio === null ? "not measured" : ratio.toFixed(2)}  (aim: at most ${AIM_TWO_OVER_ONE})`);
   }
-  const line = fitLine(figures.map((f) => f.frames), figures.map((f) => f.single.peakProcessBytes / MB));
-  console.log(`\npeak memory of the largest process against frames (least squares over ${figures.length} brackets): ${line.slope.toFixed(2)} MB per frame, ${line.intercept.toFixed(0)} MB at zero frames  (aim: under ${AIM_SLOPE_MB_PER_FRAME} MB per frame)`);
+  const withSingle = figures.filter((f): f is BracketFigures & { single: MeasuredReduction } => f.single !== null);
+  const line = withSingle.length >= 2 ? fitLine(withSingle.map((f) => f.frames), withSingle.map((f) => f.single.peakProcessBytes / MB)) : null;
+  console.log(line
+    ? `\npeak memory of the largest single process against frames (least squares over ${withSingle.length} brackets): ${line.slope.toFixed(2)} MB per frame, ${line.intercept.toFixed(0)} MB at zero frames  (aim: under ${AIM_SLOPE_MB_PER_FRAME} MB per frame)`
+    : "\npeak memory against frames: needs the single process on at least two brackets");
   const largest = figures[figures.length - 1];
-  const two = largest.runs.find((r) => r.workers === 2);
-  console.log(two?.measured
-    ? `two worker processes / one on ${largest.frames} frames = ${(two.wallMs / largest.single.wallMs).toFixed(2)}  (aim: at most 0.6)`
-    : `two worker processes / one on ${largest.frames} frames: not measured yet (aim: at most 0.6)`);
+  const ratio = largest ? twoOverOne(largest.flows) : null;
+  console.log(ratio !== null
+    ? `two worker processes / one through the flow on ${largest.frames} frames = ${ratio.toFixed(2)}  (aim: at most ${AIM_TWO_OVER_ONE})`
+    : `two worker processes / one on ${largest?.frames ?? "no"} frames: not measured (aim: at most ${AIM_TWO_OVER_ONE})`);
 
   console.log(JSON.stringify({
     bench: "scale",
@@ -196,21 +292,17 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     spill,
     brackets: figures.map((f) => ({
       frames: f.frames,
-      processWallMs: Math.round(f.single.wallMs),
-      reductionMs: Math.round(f.single.reductionMs),
-      stagesMs: Object.fromEntries(Object.entries(f.single.stagesMs).map(([k, v]) => [k, Math.round(v)])),
-      cpuS: Number(f.single.cpuS.toFixed(2)),
-      coresBusy: Number((f.single.cpuS / (f.single.wallMs / 1000)).toFixed(2)),
-      peakProcessBytes: f.single.peakProcessBytes,
-      peakTotalBytes: f.single.peakTotalBytes,
-      processes: f.single.processes.map((p) => ({ comm: p.comm, root: p.isRoot, peakRssBytes: p.peakRssBytes, cpuS: Number(p.cpuS.toFixed(2)) })),
-      floorMs: { decode: Math.round(f.floor.decodeMs), tile: Math.round(f.floor.tileMs) },
-      ratioToFloor: Number((f.single.reductionMs / (f.floor.decodeMs + f.floor.tileMs)).toFixed(3)),
-      framesLeftOut: f.single.framesLeftOut,
-      workers: f.runs.map((r) => (r.measured ? { workers: r.workers, wallMs: Math.round(r.wallMs) } : { workers: r.workers, wallMs: null })),
+      ...singleJson(f),
+      flows: f.flows.map((r) => (r.measured
+        ? {
+            workers: r.workers, wallMs: Math.round(r.wallMs), cpuS: Number(r.cpuS.toFixed(2)), peakTotalBytes: r.peakTotalBytes, framesLeftOut: r.framesLeftOut,
+            perWorker: r.perWorker.map((w) => ({ peakRssBytes: w.peakRssBytes, idleRssBytes: w.idleRssBytes, cpuS: Number(w.cpuS.toFixed(2)) })),
+          }
+        : { workers: r.workers, wallMs: null, reason: r.reason })),
+      twoWorkersOverOne: twoOverOne(f.flows) === null ? null : Number(twoOverOne(f.flows)!.toFixed(3)),
     })),
-    memorySlopeMbPerFrame: Number(line.slope.toFixed(3)),
-    memoryInterceptMb: Number(line.intercept.toFixed(1)),
-    twoWorkersOverOne: two?.measured ? Number((two.wallMs / largest.single.wallMs).toFixed(3)) : null,
+    memorySlopeMbPerFrame: line ? Number(line.slope.toFixed(3)) : null,
+    memoryInterceptMb: line ? Number(line.intercept.toFixed(1)) : null,
+    twoWorkersOverOne: ratio === null ? null : Number(ratio.toFixed(3)),
   }));
 }
