@@ -16,7 +16,7 @@ import { Queue, type Job } from "bullmq";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { bracketSets, frames, kits, reductions } from "@/db/schema";
+import { frames, reductions } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { closeProducerRedis, createRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
@@ -26,9 +26,9 @@ import { bucketName, listObjectKeys, putObjectBytes, readSmallObject } from "@/l
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
 import { requireTestDatabase } from "../support/env";
 import { startOwnWorker, type OwnProcess } from "../support/processes";
-import { makeSyntheticFitsBracket } from "../support/synthetic-fits";
 import { waitFor } from "../support/wait";
-import { createMember, createSetFor, uploadFile } from "./bracket-upload-helpers";
+import { createMember } from "./bracket-upload-helpers";
+import { makeSyntheticSet } from "./synthetic-set";
 
 requireTestDatabase();
 // Set before any queue exists: this file's uploads and reductions go to our own workers.
@@ -74,23 +74,7 @@ async function stopAll(): Promise<void> {
 }
 
 async function makeSet(name: string, seed: number): Promise<{ setId: string; frameIds: string[] }> {
-  const setId = await createSetFor(db, owner, name);
-  // Squared to north on an equatorial mount: the reduction takes the image orientation from the kit.
-  const [kit] = await db
-    .insert(kits)
-    .values({ ownerId: owner.userId, name: `Refractor ${seed}`, camera: "Mono camera", sensorWidthMm: 10, sensorHeightMm: 8, pixelPitchUm: 5, focalMm: 600, fNumber: 7, mount: "equatorial" })
-    .returning({ id: kits.id });
-  await db.update(bracketSets).set({ kitId: kit.id }).where(eq(bracketSets.id, setId));
-  const files = makeSyntheticFitsBracket({ width: 720, height: 540, exposuresS: EXPOSURES_S, seed, prefix: `flow-${seed}` });
-  const frameIds: string[] = [];
-  for (const f of files) frameIds.push((await uploadFile(db, owner, setId, f.name, f.bytes)).id);
-  await waitFor(`ingest of the ${frameIds.length} frames of ${name}`, async () => {
-    const rows = await db.select({ state: frames.ingestState, reason: frames.refusalReason }).from(frames).where(eq(frames.bracketSetId, setId));
-    const refused = rows.find((r) => r.state === "refused");
-    if (refused) throw new Error(`a frame was refused: ${refused.reason}`);
-    return rows.length === frameIds.length && rows.every((r) => r.state === "ingested") ? true : undefined;
-  }, 120_000);
-  return { setId, frameIds };
+  return makeSyntheticSet(db, owner, name, { width: 720, height: 540, exposuresS: EXPOSURES_S, seed, prefix: `flow-${seed}` });
 }
 
 /** The data unit of a master.fits as float32 (BITPIX -32, big-endian). */
