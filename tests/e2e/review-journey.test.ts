@@ -5,7 +5,7 @@
 // tiles, zoomed in, approves, writes the plate and publishes it, and a visitor finds it in the
 // gallery. The set, its frames and its first reduction are prepared through
 // the same services the pages call. Screenshots go to .artifacts/.
-import { eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
@@ -126,7 +126,7 @@ describe("from submission to a public plate", () => {
     await studio.getByRole("button", { name: "Submit for review" }).click();
     // The page re-reads the set: it is on the desk again and closed to changes.
     await studio.getByText(/This set is awaiting review/).waitFor({ timeout: 15_000 });
-    const [frame] = await db.select({ exposureS: frames.exposureS, source: frames.exposureSource }).from(frames).where(eq(frames.originalFileName, "cadiz-03.fits"));
+    const [frame] = await db.select({ exposureS: frames.exposureS, source: frames.exposureSource }).from(frames).where(and(eq(frames.bracketSetId, setId), eq(frames.originalFileName, "cadiz-03.fits")));
     expect(frame.exposureS).toBeCloseTo(1 / 30, 9);
     expect(frame.source).toBe("photographer");
 
