@@ -28,7 +28,8 @@ import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { addKeptFrame, createMergePass, createWarpScratch, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
 import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
-import { buildCalibrationMasters, calibrateLightFrame, findBadPixelsFromBracket, type CalibrationMasters } from "@/lib/imaging/calibrate";
+import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters } from "@/lib/imaging/calibrate";
+import { combineDefectCandidates, markFrameDefectCandidates } from "./bracket-defects";
 import { ImagingError } from "@/lib/imaging/errors";
 import { prepareFrame } from "@/lib/imaging/frame-stage";
 import type { LimbFit } from "@/lib/imaging/limb-fit";
@@ -50,8 +51,7 @@ import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions
 import { describeReductionFailure } from "@/lib/reductions/failure-text";
 import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { bucketName, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
-import { createArrayCache } from "./work-blob";
-import { deleteReductionWork, fetchWorkFile, getWork, openWork, putWork, type WorkPlace } from "./work-store";
+import { deleteReductionWork, fetchWorkFile, getWork, putWork, type WorkPlace } from "./work-store";
 import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
@@ -67,8 +67,6 @@ export interface ReductionPartContext extends FlowJobContext<{ reductionId: stri
 export const MAX_MERGE_SLICES = 8;
 /** ...of at least this many frames each, so that a small bracket is not cut into pieces that cost more than they share. */
 export const MIN_FRAMES_PER_SLICE = 3;
-/** Bytes of frame arrays the parent keeps in memory while it plans (the rest is read from disk when touched). */
-const PLAN_CACHE_BYTES = 512 * 1024 ** 2;
 
 interface LightInput {
   frameId: string;
@@ -92,7 +90,8 @@ export interface FlowInputs {
 }
 
 /** A decode part's result: the frame's provenance, or why it was left out. */
-type DecodeResult = { provenance: Omit<FrameProvenance, "path"> } | { leftOut: FrameLeftOut };
+type DecodedResult = Extract<DecodeResult, { encoding: unknown }>;
+type DecodeResult = { provenance: Omit<FrameProvenance, "path">; encoding: LinearFrame["encoding"]; width: number; height: number } | { leftOut: FrameLeftOut };
 
 interface SurveyValue {
   /** Indices into inputs.lights of the decoded frames, in input order. */
@@ -368,8 +367,10 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
           const masters = inputs.calibration.length > 0 ? await cachedPiece<CalibrationMasters>(place, "masters") : undefined;
           const ready = masters && frame.encoding === "linear" ? calibrateLightFrame(frame, masters) : frame;
           await putWork(place, `frame-${ctx.payload.part}`, ready);
+          // Without calibration frames, the survey finds the defects in the bracket: this frame's marks, counted there.
+          if (!masters && frame.encoding === "linear") await putWork(place, `defects-${ctx.payload.part}`, markFrameDefectCandidates(frame));
           const { path: _path, ...rest } = provenance;
-          return JSON.parse(JSON.stringify({ provenance: rest })) as FlowValue;
+          return JSON.parse(JSON.stringify({ provenance: rest, encoding: frame.encoding, width: frame.image.width, height: frame.image.height } satisfies DecodeResult)) as FlowValue;
         });
       }),
       // The results go to S3 whole: the parent's job data keeps only small values.
@@ -399,22 +400,26 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
           throw new ReductionInputError("too-few-frames", `a bracket needs at least 2 frames, and only ${decoded.length} could be decoded: ${leftOut.map((l) => `${l.name}: ${l.reason}`).join("; ")}`);
         }
         checkSameShape(provenance);
-        const frames = await withScratch("survey", async (dir) => {
-          const cache = createArrayCache(PLAN_CACHE_BYTES);
-          const out: LinearFrame[] = [];
-          for (const i of decoded) out.push(await openWork<LinearFrame>(place, `frame-${i}`, dir, cache));
-          checkSameEncoding(out, provenance);
-          if (out[0].encoding !== "linear") return { calibration: { source: "none", badPixelCount: 0 } as CalibrationReport };
+        const frames = await (async () => {
+          // The frames stay in storage: the survey reads only what the decode parts reported.
+          checkSameEncoding(decoded.map((i) => ({ name: inputs.lights[i].name, encoding: (decodeResults[i] as DecodedResult).encoding })), provenance);
+          const first = decodeResults[decoded[0]] as DecodedResult;
+          if (first.encoding !== "linear") return { calibration: { source: "none", badPixelCount: 0 } as CalibrationReport };
           if (inputs.calibration.length > 0) {
             const masters = await cachedPiece<CalibrationMasters>(place, "masters");
             return { calibration: { source: "masters", summary: masters.summary, badPixelCount: countSet(masters.badPixels) } as CalibrationReport };
           }
-          // Without calibration frames, the defects are found in the bracket itself (calibrateBracket's rule).
+          // Without calibration frames, the defects are found in the bracket itself (calibrateBracket's rule): each frame's marks, counted.
           setStage(ctx.db, ctx.payload.reductionId, "survey", 0).catch(() => undefined);
-          const badPixels = findBadPixelsFromBracket(out);
+          const candidates = await withScratch("survey", async (dir) => {
+            const lists: Uint32Array[] = [];
+            for (const i of decoded) lists.push(await getWork<Uint32Array>(place, `defects-${i}`, dir));
+            return lists;
+          });
+          const badPixels = combineDefectCandidates(candidates, first.width * first.height);
           const count = countSet(badPixels);
           return { calibration: { source: count > 0 ? "bracket" : "none", badPixelCount: count } as CalibrationReport, defects: count > 0 ? badPixels : undefined };
-        });
+        })();
         await putWork(place, "survey", { decoded, provenance, leftOut, calibration: frames.calibration, defects: frames.defects });
         return JSON.parse(JSON.stringify({ decoded, leftOut, hasDefects: Boolean(frames.defects), calibration: frames.calibration } satisfies SurveyValue)) as FlowValue;
       }),

@@ -7,6 +7,8 @@
 // (UTF-8 JSON), then each array's bytes at an 8-byte-aligned offset. Arrays are
 // read back as views on one aligned buffer, or one at a time from a file on disk
 // (readWorkFile), so that a stage holding many frames reads only what it touches.
+// A float32 array of whole numbers 0 to 65535 (an uncalibrated frame's counts) is
+// stored as uint16 and read back as the same float32 values: half the bytes.
 import { closeSync, openSync, readSync } from "node:fs";
 
 const MAGIC = "CLWORK1\n";
@@ -28,6 +30,31 @@ interface ArrayEntry {
   kind: Kind;
   length: number;
   offset: number;
+  /** "u16": a float32 array of whole numbers 0 to 65535 (a frame's raw counts) stored as uint16, read back as float32. */
+  packed?: "u16";
+}
+
+/** Float32 arrays at least this long are checked for packing; short ones are not worth the scan. */
+const PACK_MIN_LENGTH = 4096;
+
+/** True when every value is a whole number from 0 to 65535 (and none is -0), so uint16 holds it exactly. */
+function fitsUint16(a: Float32Array): boolean {
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i];
+    const u = v & 0xffff;
+    if (u !== v || (u === 0 && 1 / v < 0)) return false;
+  }
+  return true;
+}
+
+function storedBytes(a: Typed, packed: boolean): number {
+  return packed ? a.length * 2 : a.byteLength;
+}
+
+function unpack(stored: Uint16Array): Float32Array {
+  const out = new Float32Array(stored.length);
+  for (let i = 0; i < stored.length; i++) out[i] = stored[i];
+  return out;
 }
 
 interface Header {
@@ -70,8 +97,9 @@ export function encodeWork(value: unknown): Buffer {
   // Offsets are relative to the start of the data section, which itself starts aligned.
   let offset = 0;
   for (const a of arrays) {
-    entries.push({ kind: kindOf(a), length: a.length, offset });
-    offset += Math.ceil(a.byteLength / ALIGN) * ALIGN;
+    const packed = a instanceof Float32Array && a.length >= PACK_MIN_LENGTH && fitsUint16(a);
+    entries.push({ kind: kindOf(a), length: a.length, offset, ...(packed ? { packed: "u16" as const } : {}) });
+    offset += Math.ceil(storedBytes(a, packed) / ALIGN) * ALIGN;
   }
   const header = Buffer.from(JSON.stringify({ value: flat, arrays: entries } satisfies Header), "utf8");
   const headEnd = MAGIC.length + 4 + header.length;
@@ -81,7 +109,8 @@ export function encodeWork(value: unknown): Buffer {
   out.writeUInt32LE(header.length, MAGIC.length);
   header.copy(out, MAGIC.length + 4);
   arrays.forEach((a, i) => {
-    out.set(new Uint8Array(a.buffer, a.byteOffset, a.byteLength), dataStart + entries[i].offset);
+    const bytes = entries[i].packed ? Uint16Array.from(a as Float32Array) : a;
+    out.set(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), dataStart + entries[i].offset);
   });
   return out;
 }
@@ -137,6 +166,7 @@ export function decodeWork<T>(bytes: Buffer, what = "the work file"): T {
   const array = (index: number): Typed => {
     const e = header.arrays[index];
     if (!e) throw new Error(`${what} names an array it does not hold`);
+    if (e.packed === "u16") return unpack(new Uint16Array(aligned.buffer, e.offset, e.length));
     return new KINDS[e.kind](aligned.buffer, e.offset, e.length);
   };
   return rebuild(header.value, array, undefined) as T;
@@ -161,7 +191,7 @@ export function readWorkFile<T>(path: string, cache: ArrayReader = (_key, read) 
     const lazy = (index: number) => () => cache(`${path}#${index}`, () => {
       const e = header.arrays[index];
       if (!e) throw new Error(`${path} names an array it does not hold`);
-      const ctor = KINDS[e.kind];
+      const ctor = e.packed === "u16" ? Uint16Array : KINDS[e.kind];
       const bytes = new Uint8Array(e.length * ctor.BYTES_PER_ELEMENT);
       const f = openSync(path, "r");
       try {
@@ -174,7 +204,7 @@ export function readWorkFile<T>(path: string, cache: ArrayReader = (_key, read) 
       } finally {
         closeSync(f);
       }
-      return new ctor(bytes.buffer, 0, e.length);
+      return e.packed === "u16" ? unpack(new Uint16Array(bytes.buffer, 0, e.length)) : new ctor(bytes.buffer, 0, e.length);
     });
     return rebuild(header.value, (index) => lazy(index)(), lazy) as T;
   } finally {

@@ -136,7 +136,7 @@ export function describeMissingExposure(missing: FrameProvenance[]): ReductionIn
 }
 
 /** Refuses a bracket that mixes 8-bit and linear frames, naming the odd one. */
-export function checkSameEncoding(frames: LinearFrame[], provenance: FrameProvenance[]): void {
+export function checkSameEncoding(frames: Pick<LinearFrame, "name" | "encoding">[], provenance: FrameProvenance[]): void {
   const odd = frames.findIndex((f) => f.encoding !== frames[0].encoding);
   if (odd < 0) return;
   throw new ReductionInputError("size-mismatch", `${frames[odd].name}: the frame is ${provenance[odd].bitDepth}-bit ${frames[odd].encoding} but ${frames[0].name} is ${provenance[0].bitDepth}-bit ${frames[0].encoding}; a bracket must be all 8-bit or all linear`);

@@ -67,6 +67,27 @@ describe("a reduction's work file", () => {
     expect(back.badPixels[4]).toBe(0);
   });
 
+  it("stores a float32 plane of whole counts 0 to 65535 in half the bytes and gives back the same values", () => {
+    const counts = Float32Array.from({ length: 10_000 }, (_, i) => (i * 7919) % 65536);
+    const packed = encodeWork({ planes: [counts] });
+    const plain = encodeWork({ planes: [Float32Array.from(counts, (v, i) => (i === 5000 ? v + 0.5 : v))] });
+    expect(packed.length).toBeLessThan(plain.length * 0.55);
+    const back = decodeWork<{ planes: Float32Array[] }>(packed);
+    expect(back.planes[0]).toBeInstanceOf(Float32Array);
+    expect(back.planes[0]).toEqual(counts);
+    const path = join(dir, "counts.bin");
+    writeFileSync(path, packed);
+    expect(readWorkFile<{ planes: Float32Array[] }>(path).planes[0]).toEqual(counts);
+    // Anything uint16 cannot hold exactly stays float32, bit for bit: a fraction, a negative value, -0, more than 65535.
+    for (const odd of [0.5, -1, -0, 65536]) {
+      const values = Float32Array.from(counts);
+      values[1234] = odd;
+      const again = decodeWork<{ planes: Float32Array[] }>(encodeWork({ planes: [values] })).planes[0];
+      expect(Object.is(again[1234], odd)).toBe(true);
+      expect(encodeWork({ planes: [values] }).length).toBeGreaterThan(plain.length * 0.95);
+    }
+  });
+
   it("refuses a file that is not one, naming it", () => {
     const path = join(dir, "not.bin");
     writeFileSync(path, "hello, this is text");
