@@ -90,9 +90,27 @@ function renderFrame(index: number, exposureS: number, pointing: { dx: number; d
   return { ...frame, exposureS, blackLevel: BLACK_DN, name: `scale-${String(index + 1).padStart(2, "0")}` };
 }
 
+/** The long bracket's frames: the issue's largest set, the ladder taken 22 times and two steps more. */
+export const SCALE_LONG_FRAMES = 200;
+
 /** The 81 frames, made once; later calls read the list from the cache. */
 export async function prepareScaleBrackets(cacheRoot: string, onFrame?: (done: number, total: number) => void): Promise<ScaleBrackets> {
   const total = frameCount(SCALE_PASSES[SCALE_PASSES.length - 1]);
+  const made = await prepareScaleFrames(cacheRoot, total, onFrame);
+  const brackets = SCALE_PASSES.map((passes) => {
+    const n = frameCount(passes);
+    return { frames: n, files: made.list.files.slice(0, n).map((f) => join(made.dir, f)), exposuresS: made.list.exposuresS.slice(0, n) };
+  });
+  return { dir: made.dir, brackets, madeS: made.madeS };
+}
+
+/** The long bracket of SCALE_LONG_FRAMES frames, made once into a folder of its own (its Moon drifts as far over 200 frames as the others' over 81). */
+export async function prepareLongScaleBracket(cacheRoot: string, onFrame?: (done: number, total: number) => void): Promise<ScaleBrackets> {
+  const made = await prepareScaleFrames(cacheRoot, SCALE_LONG_FRAMES, onFrame);
+  return { dir: made.dir, brackets: [{ frames: SCALE_LONG_FRAMES, files: made.list.files.map((f) => join(made.dir, f)), exposuresS: made.list.exposuresS }], madeS: made.madeS };
+}
+
+async function prepareScaleFrames(cacheRoot: string, total: number, onFrame?: (done: number, total: number) => void): Promise<{ dir: string; list: FrameList; madeS: number }> {
   const dir = join(cacheRoot, `bench-scale-${SCALE_WIDTH}x${SCALE_HEIGHT}-${total}-seed${SCALE_SEED}`);
   const listPath = join(dir, "frames.json");
   let list: FrameList;
@@ -126,9 +144,5 @@ export async function prepareScaleBrackets(cacheRoot: string, onFrame?: (done: n
     writeFileSync(listPath, JSON.stringify(list));
     madeS = (performance.now() - started) / 1000;
   }
-  const brackets = SCALE_PASSES.map((passes) => {
-    const n = frameCount(passes);
-    return { frames: n, files: list.files.slice(0, n).map((f) => join(dir, f)), exposuresS: list.exposuresS.slice(0, n) };
-  });
-  return { dir, brackets, madeS };
+  return { dir, list, madeS };
 }

@@ -23,7 +23,7 @@ import { prepareDevelopmentServices } from "./bench-services";
 import { measureFloorMs } from "./floor";
 import { readClockTicksPerS, runWatched, type WatchedProcess } from "./process-monitor";
 import { fitLine } from "./proc-stats";
-import { SCALE_HEIGHT, SCALE_LADDER_STEPS, SCALE_PASSES, SCALE_WIDTH, prepareScaleBrackets, type ScaleBracket } from "./scale-bracket";
+import { SCALE_HEIGHT, SCALE_LADDER_STEPS, SCALE_LONG_FRAMES, SCALE_PASSES, SCALE_WIDTH, prepareLongScaleBracket, prepareScaleBrackets, type ScaleBracket } from "./scale-bracket";
 import { prepareBenchSets } from "./scale-app";
 import { BENCH_QUEUE_PREFIX, clearBenchQueues, measureFlowReduction, withBenchWorkers, type FlowRun } from "./scale-flow";
 import { findScaleChildResult, SCALE_SPILL_MODES, type ScaleChildJob, type ScaleSpill } from "./scale-child-protocol";
@@ -47,12 +47,21 @@ function readSpillMode(argv: readonly string[]): ScaleSpill {
 }
 /** Worker processes the flow is measured with: one, and two sharing the reduction. */
 const WORKER_COUNTS = [1, 2] as const;
-/** `--frames 9,81` measures only those brackets (of 9, 27 and 81). */
+/** `--workers 1` measures the flow with those worker counts only. */
+function readWorkerCounts(argv: readonly string[]): number[] {
+  const at = argv.indexOf("--workers");
+  if (at < 0) return [...WORKER_COUNTS];
+  const counts = (argv[at + 1] ?? "").split(",").map(Number);
+  if (counts.length === 0 || !counts.every((n) => (WORKER_COUNTS as readonly number[]).includes(n))) throw new Error(`--workers takes some of ${WORKER_COUNTS.join(",")}, not ${argv[at + 1] ?? "nothing"}`);
+  return counts;
+}
+
+/** `--frames 9,81` measures only those brackets (of 9, 27 and 81; 200 is the long bracket, made on its own). */
 function readFrameCounts(argv: readonly string[]): number[] | null {
   const at = argv.indexOf("--frames");
   if (at < 0) return null;
   const counts = (argv[at + 1] ?? "").split(",").map(Number);
-  const known = SCALE_PASSES.map((p) => p * SCALE_LADDER_STEPS);
+  const known = [...SCALE_PASSES.map((p) => p * SCALE_LADDER_STEPS), SCALE_LONG_FRAMES];
   if (counts.length === 0 || !counts.every((n) => known.includes(n))) throw new Error(`--frames takes some of ${known.join(",")}, not ${argv[at + 1] ?? "nothing"}`);
   return counts;
 }
@@ -231,6 +240,18 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     lastTenth = tenth;
   });
   const brackets = prepared.brackets.filter((b) => !only || only.includes(b.frames));
+  // The long bracket only when asked for: it is made once (about 15 minutes) and reduced for most of an hour.
+  if (only?.includes(SCALE_LONG_FRAMES)) {
+    let lastLong = -1;
+    const long = await prepareLongScaleBracket(join(process.cwd(), ".cache"), (done) => {
+      const tenth = Math.floor((10 * done) / SCALE_LONG_FRAMES);
+      if (tenth !== lastLong) process.stderr.write(`making the long bracket's frames: ${done} of ${SCALE_LONG_FRAMES}\n`);
+      lastLong = tenth;
+    });
+    brackets.push(...long.brackets);
+    prepared.madeS += long.madeS;
+  }
+  const workerCounts = readWorkerCounts(argv);
   const app = await prepareAppSide(brackets);
   if ("reason" in app) process.stderr.write(`${app.reason}\n`);
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-bench-scale-"));
@@ -240,7 +261,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     for (const bracket of brackets) {
       const single = flowOnly ? null : await measureInOneProcess(bracket, spill, scratch);
       const flows: FlowRun[] = [];
-      for (const workers of WORKER_COUNTS) flows.push(await measureReduction(bracket, workers, app));
+      for (const workers of workerCounts) flows.push(await measureReduction(bracket, workers, app));
       let floor = null;
       if (single) {
         process.stderr.write(`floor for ${bracket.frames} frames\n`);
@@ -260,7 +281,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     }
   }
 
-  const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times`;
+  const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times${figures.some((f) => f.frames === SCALE_LONG_FRAMES) ? `; the long bracket runs the ladder over ${SCALE_LONG_FRAMES} frames` : ""}`;
   console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${SCALE_WIDTH} x ${SCALE_HEIGHT} 16-bit RGB TIFF (${ladder})${prepared.madeS ? `, made in ${prepared.madeS.toFixed(0)} s` : ", cached"}`);
   console.log("Each bracket is reduced three times: by runReductionOnFiles in a single process of its own (the baseline of the memory slope");
   console.log("and the ratio to the floor), and through the app's stepped flow with one and with two worker processes (worker/index.ts on the");
