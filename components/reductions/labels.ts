@@ -55,6 +55,7 @@ const FRAME_STAGES: Record<string, string> = {
   fetch: "Frames fetched",
   decode: "Frames decoded",
   limb: "Frames measured",
+  register: "Frames made ready to register",
   "merge-pilot": "Frames merged in the first pass",
   merge: "Frames merged",
 };

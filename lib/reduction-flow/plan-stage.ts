@@ -59,7 +59,12 @@ export function planFromFiles(input: PlanInput, progress: PlanProgress): { plan:
       progress("register", 0, { done: j + 1, total: input.frameFiles.length });
     });
     const sky = resolveSkyGeometry(frames, input.params, input.registration, input.sky, prepared);
-    const { plan } = planBracket(frames, prepared, sky.pipelineParams, { onProgress: progress, keepPrepared: (p) => spillPrepared(spill, p) });
+    // Every frame comes prepared: planBracket's limb count would only pass them through, and the
+    // page would show the limb stage again after the parts' (it reads the plan's own stages).
+    const planProgress: PlanProgress = (stage, fraction, frames) => {
+      if (stage !== "linearize" && stage !== "limb") progress(stage, fraction, frames);
+    };
+    const { plan } = planBracket(frames, prepared, sky.pipelineParams, { onProgress: planProgress, keepPrepared: (p) => spillPrepared(spill, p) });
     return { plan, sky: { pipelineParams: sky.pipelineParams, registrationMode: sky.registrationMode, notes: sky.notes, skies: sky.skies, sun: sky.sun } };
   } finally {
     spill.close();
