@@ -1,10 +1,10 @@
 // The merge and the finish of a reduction: merge passes over any slice of the
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
-import { type PreparedFrame, openFrameWarp, warpFrameBand, LIMB_MARGIN_PX } from "./frame-stage";
+import { type PreparedFrame, openFrameWarp, warpFrameBand, warpFramePoints, LIMB_MARGIN_PX } from "./frame-stage";
 import { describeTransmission, RELEASED_PLANE, type BracketPlan } from "./bracket-plan";
 import { linearizeFrame, repairDefects } from "./linearize";
-import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, sampleScoreBand, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
+import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, listScoreSamplePixels, sampleScorePoints, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
@@ -56,8 +56,8 @@ export function createWarpScratch(plan: BracketPlan, bandRows = mergeBandRows(pl
 
 /**
  * Warps a kept frame into master pixels and adds it to a pass, band by band
- * (the second pass first samples its outlier scale over all bands; the result
- * is the whole-frame addition's, bit for bit). `position` is the frame's place
+ * (the second pass first samples its outlier scale at the sampled pixels; the
+ * result is the whole-frame addition's, bit for bit). `position` is the frame's place
  * in plan.keep; frames must come in that order within a pass (slices of
  * consecutive positions, each into its own accumulator, combine).
  */
@@ -73,7 +73,11 @@ export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position:
     const rows = Math.max(1, Math.floor(Math.min(scratch.covered.length / width, height)));
     const band = { planes: scratch.planes, covered: scratch.covered, masks: masks?.slice(2) };
     const tally = createMergeTally();
-    if (acc.pilot) for (let y = 0; y < height; y += rows) sampleScoreBand(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
+    if (acc.pilot) {
+      // The outlier scale's sample first, from the sampled pixels alone (not a warp of every band).
+      const pixels = listScoreSamplePixels(acc);
+      sampleScorePoints(acc, warpFramePoints(warp, pixels), pixels, tally);
+    }
     for (let y = 0; y < height; y += rows) addBandToMerge(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
     closeMergeFrame(acc, tally);
   } finally {

@@ -48,13 +48,13 @@ describe("merging a frame band by band", () => {
   const { plan, ready } = planBracket(frames, [], DEFAULT_REDUCTION_PARAMS);
   // Both passes with each frame added by `add`.
   // Both passes with each frame added by `add`; the outlier scores as they stood before the finish.
-  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void): MergeResult & { scores: Float32Array } => {
+  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void): MergeResult & { scores: Float32Array; pixels: Int32Array } => {
     const first = createMergePass(plan);
     plan.keep.forEach((_, i) => add(first, i));
     const second = createMergePass(plan, toPilot(first));
     plan.keep.forEach((_, i) => add(second, i));
-    const scores = Float32Array.from(second.worst!.score);
-    return { ...finishMerge(second), scores };
+    const { score, pixel } = second.worst!;
+    return { ...finishMerge(second), scores: Float32Array.from(score), pixels: Int32Array.from(pixel) };
   };
 
   it("gives the whole-frame merge bit for bit, with bands of any height", () => {
@@ -73,7 +73,8 @@ describe("merging a frame band by band", () => {
       expect(scratch.planes[0].length).toBe(rows * W);
       const banded = mergeWith((acc, i) => addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch));
       expectSameMerge(plain, banded);
-      // The scores themselves, so that a frame's z scale measured on another sample would show.
+      // The worst-frame record itself (pixels and scores), so that a frame's z scale measured on another sample would show.
+      expect(Buffer.from(banded.pixels.buffer).equals(Buffer.from(plain.pixels.buffer)), `${rows} rows`).toBe(true);
       expect(Buffer.from(banded.scores.buffer).equals(Buffer.from(plain.scores.buffer)), `${rows} rows`).toBe(true);
     }
     // The defects the warp repaired were put back: the frames are as they came.
