@@ -77,6 +77,12 @@ export interface FrameWarp {
   };
 }
 
+/** The numbers (not the pixels) a prepared frame brings to the merge: its exposure (the plan's effective one, when given), clip level and read noise. */
+export function describeMergeFrame(prepared: PreparedFrame, effectiveExposureS?: number): { exposureS: number; clipLevel: number; noiseSigma?: number } {
+  const { linear } = prepared;
+  return { exposureS: effectiveExposureS ?? linear.exposureS, clipLevel: linear.clipLevel, noiseSigma: linear.noiseSigma };
+}
+
 /**
  * Opens a frame for warpFrameBand. `dilation` may hold two mask buffers of the
  * frame's size, reused frame after frame for the widened clipped mask.
@@ -111,7 +117,7 @@ export function openFrameWarp(
     },
     source: {
       planes, clipped, noiseFloor: linear.noiseFloor, masked, black: isLinear ? frame.blackLevel : 0, masterToFrame, frameMoon, referenceMoon,
-      exposureS: effectiveExposureS ?? linear.exposureS, clipLevel: linear.clipLevel, noiseSigma: linear.noiseSigma,
+      ...describeMergeFrame(prepared, effectiveExposureS),
     },
   };
 }
