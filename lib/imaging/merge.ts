@@ -19,6 +19,9 @@
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
 import { selectKth } from "./calibrate-combine";
 import { ImagingError } from "./errors";
+import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
+
+export { OUTLIER_SIGMAS, type WorstFrameRecord } from "./merge-outliers";
 
 export interface MergeFrameInput {
   /** Registered linear planes: DN above black (linear) or relative light (8-bit). */
@@ -109,102 +112,6 @@ export interface MergeAccumulator {
 }
 
 /**
- * The second pass's record of outliers: per master pixel, the frame with the
- * largest outlier score so far and what it added, so that it can be taken out at
- * the end. Only pixels where that score passes OUTLIER_WING_SIGMAS are listed
- * (removeOutliers takes nothing out at a lower score, and a frame that scores
- * above it always beats one that scored below), in ascending master order, each
- * once. On the synthetic 24-megapixel bracket a few per cent of pixels are
- * listed, about 27 bytes each, where a record of every pixel took 552 MB.
- */
-export interface WorstFrameRecord {
-  /** Master pixel index, ascending. */
-  pixel: Int32Array;
-  /** The frame's index in the merge (the order frames were added). */
-  frame: Int16Array;
-  score: Float32Array;
-  /** Its exposure weight (w t) there. */
-  weight: Float32Array;
-  /** 1 = the frame counted in the pixel's coverage (above its noise floor). */
-  wellExposed: Uint8Array;
-  /** Per plane, what it added to the sums (w y). */
-  contribution: Float32Array[];
-}
-
-/** A frame's entries for the worst-frame record while its bands are added: growing arrays, the first `count` in use. */
-export interface WorstCandidates {
-  count: number;
-  pixel: Int32Array;
-  score: Float32Array;
-  weight: Float32Array;
-  wellExposed: Uint8Array;
-  contribution: Float32Array[];
-}
-
-function createWorstRecord(channels: number, length = 0): WorstFrameRecord {
-  return {
-    pixel: new Int32Array(length), frame: new Int16Array(length), score: new Float32Array(length), weight: new Float32Array(length),
-    wellExposed: new Uint8Array(length), contribution: Array.from({ length: channels }, () => new Float32Array(length)),
-  };
-}
-
-function growCandidates(c: WorstCandidates, channels: number): void {
-  const size = Math.max(4096, c.pixel.length * 2);
-  const grow = <T extends Int32Array | Float32Array | Uint8Array>(a: T, make: (n: number) => T): T => {
-    const b = make(size);
-    b.set(a);
-    return b;
-  };
-  c.pixel = grow(c.pixel, (n) => new Int32Array(n));
-  c.score = grow(c.score, (n) => new Float32Array(n));
-  c.weight = grow(c.weight, (n) => new Float32Array(n));
-  c.wellExposed = grow(c.wellExposed, (n) => new Uint8Array(n));
-  c.contribution = Array.from({ length: channels }, (_, ch) => grow(c.contribution[ch] ?? new Float32Array(0), (n) => new Float32Array(n)));
-}
-
-/**
- * Two worst-frame records as one: per pixel the entry with the higher score, the
- * one from `earlier` on a tie (as one pass over the frames in order keeps it).
- * `later`'s frame indices are shifted by `frameShift`; `laterFrame`, when given,
- * is the frame of every entry of `later` (a frame's candidates). `laterCount`
- * entries of `later` are read.
- */
-function joinWorstRecords(earlier: WorstFrameRecord, later: Omit<WorstFrameRecord, "frame"> & { frame?: Int16Array }, laterCount: number, frameShift: number, laterFrame = -1): WorstFrameRecord {
-  const na = earlier.pixel.length;
-  const pa = earlier.pixel, pb = later.pixel;
-  let both = 0;
-  for (let i = 0, j = 0; i < na && j < laterCount;) {
-    if (pa[i] < pb[j]) i++;
-    else if (pa[i] > pb[j]) j++;
-    else { both++; i++; j++; }
-  }
-  const channels = earlier.contribution.length;
-  const out = createWorstRecord(channels, na + laterCount - both);
-  const take = (o: number, from: WorstFrameRecord | typeof later, k: number, frame: number) => {
-    out.pixel[o] = from.pixel[k];
-    out.frame[o] = frame;
-    out.score[o] = from.score[k];
-    out.weight[o] = from.weight[k];
-    out.wellExposed[o] = from.wellExposed[k];
-    for (let c = 0; c < channels; c++) out.contribution[c][o] = from.contribution[c][k];
-  };
-  let i = 0, j = 0, o = 0;
-  while (i < na || j < laterCount) {
-    const a = i < na ? pa[i] : Infinity, b = j < laterCount ? pb[j] : Infinity;
-    if (a < b || (a === b && !(later.score[j] > earlier.score[i]))) {
-      take(o++, earlier, i, earlier.frame[i]);
-      i++;
-      if (a === b) j++;
-    } else {
-      take(o++, later, j, laterFrame >= 0 ? laterFrame : later.frame![j] + frameShift);
-      j++;
-      if (a === b) i++;
-    }
-  }
-  return out;
-}
-
-/**
  * What the second pass needs of the first: its sums and exposure weights, per
  * pixel. The exposure weights are accumulated in float64 during the first pass
  * and rounded once to float32 here: every use of the pilot divides a sum by its
@@ -220,12 +127,6 @@ export interface PhotonPilot {
 
 /** Share of the clip level above which a frame's weight starts to fall (cosine taper to zero at the clip level). */
 export const CLIP_TAPER_START = 0.6;
-/** Outliers: a score above this many sigmas of the leave-one-out prediction (after the frame's own z scale is measured). */
-export const OUTLIER_SIGMAS = 5;
-/** Around an outlier, the worst frame goes at this lower score too, so that a trail's wings below the threshold go with it. */
-const OUTLIER_WING_SIGMAS = 2.5;
-/** Outliers grow by this many pixels (the wings' reach). */
-const REJECT_GROW_PX = 2;
 /**
  * Negative deviations count at this share: trails, cosmic rays and hot pixels add
  * light, and a frame that only looks low because another frame's outlier pulled the
@@ -569,42 +470,6 @@ export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, off
   }
 }
 
-/** Whether a pixel lies within r pixels (a square, cut at the image's edges) of a set pixel of `mask`. */
-function isNearSet(mask: Uint8Array, i: number, width: number, height: number, r: number): boolean {
-  const x = i % width;
-  const y = (i - x) / width;
-  for (let v = Math.max(0, y - r); v <= Math.min(height - 1, y + r); v++) {
-    for (let u = Math.max(0, x - r); u <= Math.min(width - 1, x + r); u++) if (mask[v * width + u]) return true;
-  }
-  return false;
-}
-
-/**
- * Takes the worst frame out where it is an outlier, and in the wings around one
- * (within REJECT_GROW_PX) where it scores above OUTLIER_WING_SIGMAS; counts what
- * each frame lost.
- */
-function removeOutliers(acc: MergeAccumulator): void {
-  const worst = acc.worst!;
-  const { width, height } = acc;
-  const count = worst.pixel.length;
-  let hit: Uint8Array | undefined;
-  for (let j = 0; j < count; j++) if (worst.score[j] > OUTLIER_SIGMAS) (hit ??= new Uint8Array(width * height))[worst.pixel[j]] = 1;
-  if (!hit) return;
-  const exposure = acc.weights[0];
-  for (let j = 0; j < count; j++) {
-    const i = worst.pixel[j];
-    if (worst.score[j] <= (hit[i] ? OUTLIER_SIGMAS : OUTLIER_WING_SIGMAS)) continue;
-    if (!hit[i] && !isNearSet(hit, i, width, height, REJECT_GROW_PX)) continue;
-    // Keep the pixel when the worst frame was its only light: a lone frame has nothing to disagree with.
-    if (!(exposure[i] - worst.weight[j] > 1e-6 * exposure[i])) continue;
-    exposure[i] -= worst.weight[j];
-    for (let c = 0; c < acc.channels; c++) acc.sums[c][i] -= worst.contribution[c][j];
-    if (worst.wellExposed[j] && acc.coverage[i] > 0) acc.coverage[i]--;
-    acc.frameRejected[worst.frame[j]]++;
-  }
-}
-
 /** Records a frame whose bands have all been added (and files its outlier candidates in the worst-frame record). */
 export function closeMergeFrame(acc: MergeAccumulator, tally: MergeFrameTally): void {
   const n = acc.width * acc.height;
@@ -681,7 +546,7 @@ export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumu
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
   acc.pilot = undefined;
-  if (acc.worst) removeOutliers(acc);
+  if (acc.worst) removeOutliers(acc.worst, acc.width, acc.height, acc.weights[0], acc.sums, acc.coverage, acc.frameRejected);
   const radiance = acc.sums.map((sum, c) => {
     const weight = acc.weighting === "photon" ? acc.weights[0] : acc.weights[c];
     for (let i = 0; i < n; i++) {
