@@ -113,25 +113,14 @@ function sampleBicubicPixel(
   }
   const fx = Math.floor(sx);
   const fy = Math.floor(sy);
+  computeKeysWeights(sx - fx, wx, 0);
+  computeKeysWeights(sy - fy, wy, 0);
   if (!(fx >= 1 && fy >= 1 && fx + 2 <= maxX && fy + 2 <= maxY)) {
-    computeKeysWeights(sx - fx, wx, 0);
-    computeKeysWeights(sy - fy, wy, 0);
     for (let c = 0; c < channels; c++) out[c][o] = sampleBicubicClamped(planes[c], srcWidth, maxX, maxY, fx, fy, wx, wy);
     return 1;
   }
-  // Keys (1981) weights with a = -0.5 (see computeKeysWeights), in locals.
-  const ka = -0.5;
-  const tx = sx - fx, ty = sy - fy;
-  const x1 = tx + 1, x3 = 1 - tx, x4 = 2 - tx;
-  const w0 = ((ka * x1 - 5 * ka) * x1 + 8 * ka) * x1 - 4 * ka;
-  const w1 = ((ka + 2) * tx - (ka + 3)) * tx * tx + 1;
-  const w2 = ((ka + 2) * x3 - (ka + 3)) * x3 * x3 + 1;
-  const w3 = ((ka * x4 - 5 * ka) * x4 + 8 * ka) * x4 - 4 * ka;
-  const y1 = ty + 1, y3 = 1 - ty, y4 = 2 - ty;
-  const v0 = ((ka * y1 - 5 * ka) * y1 + 8 * ka) * y1 - 4 * ka;
-  const v1 = ((ka + 2) * ty - (ka + 3)) * ty * ty + 1;
-  const v2 = ((ka + 2) * y3 - (ka + 3)) * y3 * y3 + 1;
-  const v3 = ((ka * y4 - 5 * ka) * y4 + 8 * ka) * y4 - 4 * ka;
+  const w0 = wx[0], w1 = wx[1], w2 = wx[2], w3 = wx[3];
+  const v0 = wy[0], v1 = wy[1], v2 = wy[2], v3 = wy[3];
   const base = (fy - 1) * srcWidth + fx - 1;
   for (let c = 0; c < channels; c++) {
     const p = planes[c];
