@@ -15,8 +15,9 @@ const REJECT_GROW_PX = 2;
  * the end. Only pixels where that score passes OUTLIER_WING_SIGMAS are listed
  * (removeOutliers takes nothing out at a lower score, and a frame that scores
  * above it always beats one that scored below), in ascending master order, each
- * once. On the synthetic 24-megapixel bracket a few per cent of pixels are
- * listed, about 27 bytes each, where a record of every pixel took 552 MB.
+ * once, about 27 bytes each. Measured on the synthetic brackets: 23 647 of 24
+ * million pixels over 3 frames of 6000 x 4000, 7 219 of 1.5 million over 9 frames
+ * of 1500 x 1000, where a record of every pixel took 552 MB at 24 megapixels.
  */
 export interface WorstFrameRecord {
   /** Master pixel index, ascending. */
