@@ -67,8 +67,12 @@ export function createWarpScratch(plan: BracketPlan, bandRows = mergeBandRows(pl
 export interface WarpCache {
   /** Makes room for a frame's parts (bytes in all); false when there is none (the second pass then warps the frame again). */
   reserve: (position: number, bytes: number) => boolean;
-  /** Keeps one part of a frame that has room. */
-  put: (position: number, part: number, arrays: (Float32Array | Uint8Array)[]) => void;
+  /**
+   * Keeps one part of a frame that has room; false when it could not (the disk
+   * refused, say): the frame's parts are then all let go, and the second pass
+   * warps it again.
+   */
+  put: (position: number, part: number, arrays: (Float32Array | Uint8Array)[]) => boolean;
   /**
    * Reads one part into `into` (arrays as long as those put, or longer, of the same
    * kinds) and lets it go; gives each array's length as put, or undefined when the
@@ -148,16 +152,16 @@ export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position:
     const band = { planes: scratch.planes, covered: scratch.covered, masks: masks?.slice(2) };
     const pixels = listScoreSamplePixels(acc);
     // First pass with a cache: the frame's parts are kept when there is room for all of them.
-    const keeps = usesCache && !acc.pilot && cache!.reserve(position, (pixels.length + width * height) * (4 * channels + 4));
+    let keeps = usesCache && !acc.pilot && cache!.reserve(position, (pixels.length + width * height) * (4 * channels + 4));
     if (acc.pilot || keeps) {
       // The outlier scale's sample, from the sampled pixels alone (not a warp of every band).
       const sample = warpFramePoints(warp, pixels);
-      if (keeps) cache!.put(position, 0, cachedArraysOf(sample));
+      if (keeps) keeps = cache!.put(position, 0, cachedArraysOf(sample));
       else sampleScorePoints(acc, sample, pixels, tally);
     }
     for (let y = 0, part = 1; y < height; y += rows, part++) {
       const input = warpFrameBand(warp, y, Math.min(height, y + rows), band);
-      if (keeps) cache!.put(position, part, cachedArraysOf(input));
+      if (keeps) keeps = cache!.put(position, part, cachedArraysOf(input));
       addBandToMerge(acc, input, y * width, tally);
     }
     closeMergeFrame(acc, tally);

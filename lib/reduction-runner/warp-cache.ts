@@ -49,17 +49,30 @@ export function createWarpCache(options: { parentDir?: string; budgetBytes?: num
     put: (position, part, arrays) => {
       if (!reserved.has(position)) throw new Error(`the merge's cache has no room for frame ${position + 1}`);
       const key = `${position}-${part}`;
-      const fd = openSync(pathOf(key), "w");
       try {
-        for (const a of arrays) {
-          const bytes = bytesOf(a);
-          for (let done = 0; done < bytes.length;) done += writeSync(fd, bytes, done, bytes.length - done);
-          writtenBytes += bytes.length;
+        const fd = openSync(pathOf(key), "w");
+        try {
+          for (const a of arrays) {
+            const bytes = bytesOf(a);
+            for (let done = 0; done < bytes.length;) done += writeSync(fd, bytes, done, bytes.length - done);
+            writtenBytes += bytes.length;
+          }
+        } finally {
+          closeSync(fd);
         }
-      } finally {
-        closeSync(fd);
+      } catch {
+        // A full or failing disk costs the second pass a warp, not the reduction: the frame's parts all go.
+        rmSync(pathOf(key), { force: true });
+        for (const k of [...parts.keys()]) {
+          if (!k.startsWith(`${position}-`)) continue;
+          rmSync(pathOf(k), { force: true });
+          parts.delete(k);
+        }
+        reserved.delete(position);
+        return false;
       }
       parts.set(key, arrays.map((a) => a.byteLength));
+      return true;
     },
     take: (position, part, into) => {
       const key = `${position}-${part}`;

@@ -53,6 +53,7 @@ function createMemoryWarpCache(frames: number): WarpCache & { taken: number; lef
     reserve: () => room-- > 0,
     put: (position: number, part: number, arrays: (Float32Array | Uint8Array)[]) => {
       parts.set(`${position}-${part}`, arrays.map((a) => a.slice()));
+      return true;
     },
     take: (position: number, part: number, into: (Float32Array | Uint8Array)[]) => {
       const kept = parts.get(`${position}-${part}`);

@@ -21,7 +21,7 @@ describe("the merge's warp cache", () => {
     expect(cache.reserve(1, 600)).toBe(false);
     expect(() => cache.put(1, 0, [plane])).toThrow(/no room for frame 2/);
     expect(cache.reserve(2, 400)).toBe(true);
-    cache.put(0, 3, [plane, mask, new Uint8Array(0)]);
+    expect(cache.put(0, 3, [plane, mask, new Uint8Array(0)])).toBe(true);
     const into = [new Float32Array(6), new Uint8Array(6), new Uint8Array(6)];
     expect(cache.take(0, 3, into)).toEqual([4, 4, 0]);
     expect(Array.from(into[0].subarray(0, 4))).toEqual(Array.from(plane));
@@ -35,5 +35,19 @@ describe("the merge's warp cache", () => {
     expect(dirs).toHaveLength(1);
     cache.close();
     expect(existsSync(join(parent, dirs[0]))).toBe(false);
+  });
+
+  it("lets a frame go whole when the disk refuses one of its parts", () => {
+    const cache = createWarpCache({ parentDir: parent, budgetBytes: 1000 });
+    expect(cache.reserve(0, 100)).toBe(true);
+    expect(cache.put(0, 0, [Uint8Array.from([1, 2])])).toBe(true);
+    // Its folder gone (as a disk that fails would refuse), the next part cannot be written.
+    const dir = readdirSync(parent).find((d) => d.startsWith("crownlight-warped-"))!;
+    rmSync(join(parent, dir), { recursive: true, force: true });
+    expect(cache.put(0, 1, [Uint8Array.from([3])])).toBe(false);
+    // Nothing of the frame is left to read: the second pass warps it again.
+    expect(cache.take(0, 0, [new Uint8Array(2)])).toBeUndefined();
+    expect(() => cache.put(0, 2, [Uint8Array.from([4])])).toThrow(/no room for frame 1/);
+    cache.close();
   });
 });
