@@ -5,7 +5,7 @@
 # 127.0.0.1:3100 with a worker, and runs the unit, integration and end-to-end
 # layers. Ends with the plain line "N passed, N failed".
 #   scripts/test.sh [vitest filters...]
-# TEST_LANE=1..9 runs a second suite beside the first (its own database, Redis
+# TEST_LANE=1..14 runs a second suite beside the first (its own database, Redis
 # database, queue prefix, port and build folder), for parallel work on one machine.
 # TEST_QUICK=1 skips lint and the type check.
 . "$(dirname "$0")/lib/common.sh"
@@ -21,7 +21,7 @@ bash "$ROOT/scripts/services.sh" start
 
 # The test world: its own database, Redis database, queue prefix, buckets, port.
 lane="${TEST_LANE:-0}"
-case "$lane" in [0-9]) ;; *) die "TEST_LANE must be a digit 0-9, not '$lane'" ;; esac
+case "$lane" in [0-9]|1[0-4]) ;; *) die "TEST_LANE must be a whole number from 0 to 14, not '$lane'" ;; esac
 suffix=""; [ "$lane" = 0 ] || suffix="_lane$lane"
 export TEST_DATABASE_URL="${TEST_DATABASE_URL}${suffix}"
 export DATABASE_URL="$TEST_DATABASE_URL"

@@ -14,7 +14,7 @@ if (!url) {
   process.exit(1);
 }
 // Never in a test database (the names scripts/test.sh uses), whatever the environment says.
-const isTestDatabase = /\/crownlight_test(_lane\d)?$/.test(url);
+const isTestDatabase = /\/crownlight_test(_lane\d{1,2})?$/.test(url);
 const withBrackets = process.env.SEED_DEMO_BRACKETS === "1" && !isTestDatabase;
 const { db, pool } = createDb(url, 2);
 try {

@@ -11,7 +11,7 @@ if (!url) {
   console.error("db/seed/publish-demo: DATABASE_URL is not set");
   process.exit(1);
 }
-if (/\/crownlight_test(_lane\d)?$/.test(url)) {
+if (/\/crownlight_test(_lane\d{1,2})?$/.test(url)) {
   console.log("db/seed/publish-demo: not in a test database");
   process.exit(0);
 }

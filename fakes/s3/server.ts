@@ -22,7 +22,7 @@ for (const key of ["S3_BUCKET_ORIGINALS", "S3_BUCKET_DERIVED", "S3_BUCKET_EXPORT
 
 // The development app, and the test app of every lane (scripts/test.sh: port 3100 + lane).
 const origins = new Set<string>(
-  [3000, ...Array.from({ length: 10 }, (_, lane) => 3100 + lane)].flatMap((port) => [`http://127.0.0.1:${port}`, `http://localhost:${port}`]),
+  [3000, ...Array.from({ length: 15 }, (_, lane) => 3100 + lane)].flatMap((port) => [`http://127.0.0.1:${port}`, `http://localhost:${port}`]),
 );
 if (process.env.APP_URL) origins.add(new URL(process.env.APP_URL).origin);
 

@@ -1,10 +1,11 @@
 // The merge and the finish of a reduction: merge passes over any slice of the
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
-import { type PreparedFrame, openFrameWarp, warpFrameBand, LIMB_MARGIN_PX } from "./frame-stage";
+import { type PreparedFrame, describeMergeFrame, openFrameWarp, warpFrameBand, warpFramePoints, LIMB_MARGIN_PX } from "./frame-stage";
 import { describeTransmission, RELEASED_PLANE, type BracketPlan } from "./bracket-plan";
+import { ImagingError } from "./errors";
 import { linearizeFrame, repairDefects } from "./linearize";
-import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, sampleScoreBand, toPilot, type MergeAccumulator, type MergeResult, type PhotonPilot } from "./merge";
+import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, listScoreSamplePixels, sampleScorePoints, toPilot, type MergeAccumulator, type MergeFrameInput, type MergeFrameTally, type MergeResult, type PhotonPilot } from "./merge";
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
@@ -55,26 +56,114 @@ export function createWarpScratch(plan: BracketPlan, bandRows = mergeBandRows(pl
 }
 
 /**
- * Warps a kept frame into master pixels and adds it to a pass, band by band
- * (the second pass first samples its outlier scale over all bands; the result
- * is the whole-frame addition's, bit for bit). `position` is the frame's place
- * in plan.keep; frames must come in that order within a pass (slices of
- * consecutive positions, each into its own accumulator, combine).
+ * Where a reduction keeps each linear frame's warped bands between the merge's
+ * two passes, so that the second pass reads them instead of opening and warping
+ * the frame again: the same arrays, so the same merge bit for bit, for a read of
+ * about 13 bytes a master pixel (three planes and the masks) instead of the
+ * frame's read, defect repair, mask widening and warp. Keyed by the frame's
+ * position in plan.keep and a part number (0 the score sample's pixels, then the
+ * bands in order). lib/reduction-runner/warp-cache.ts keeps them on local disk.
  */
-export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, scratch: WarpTarget): void {
+export interface WarpCache {
+  /** Makes room for a frame's parts (bytes in all); false when there is none (the second pass then warps the frame again). */
+  reserve: (position: number, bytes: number) => boolean;
+  /**
+   * Keeps one part of a frame that has room; false when it could not (the disk
+   * refused, say): the frame's parts are then all let go, and the second pass
+   * warps it again.
+   */
+  put: (position: number, part: number, arrays: (Float32Array | Uint8Array)[]) => boolean;
+  /**
+   * Reads one part into `into` (arrays as long as those put, or longer, of the same
+   * kinds) and lets it go; gives each array's length as put, or undefined when the
+   * part was not kept.
+   */
+  take: (position: number, part: number, into: (Float32Array | Uint8Array)[]) => number[] | undefined;
+}
+
+/** A band's (or sample's) arrays as a warp cache keeps them; a frame without defects keeps an empty defect mask. */
+function cachedArraysOf(input: MergeFrameInput): (Float32Array | Uint8Array)[] {
+  return [...input.planes, input.covered!, input.clipped, input.noiseFloor, input.masked ?? new Uint8Array(0)];
+}
+
+/** Reads a cached part into `into` (as cachedArraysOf lays it out): the merge input, or undefined when not kept. */
+function takeCached(cache: WarpCache, position: number, part: number, into: (Float32Array | Uint8Array)[], channels: number, scalars: ReturnType<typeof describeMergeFrame>): MergeFrameInput | undefined {
+  const lengths = cache.take(position, part, into);
+  if (!lengths) return undefined;
+  const view = <T extends Float32Array | Uint8Array>(j: number) => into[j].subarray(0, lengths[j]) as T;
+  return {
+    planes: Array.from({ length: channels }, (_, c) => view<Float32Array>(c)),
+    covered: view<Uint8Array>(channels), clipped: view<Uint8Array>(channels + 1), noiseFloor: view<Uint8Array>(channels + 2),
+    masked: lengths[channels + 3] > 0 ? view<Uint8Array>(channels + 3) : undefined,
+    ...scalars,
+  };
+}
+
+/** The second pass's addition of a frame whose parts the first pass kept; false (nothing added) when it kept none. */
+function addCachedFrame(plan: BracketPlan, acc: MergeAccumulator, position: number, prepared: PreparedFrame, scratch: WarpTarget, cache: WarpCache, tally: MergeFrameTally): boolean {
+  const { width, height, channels } = plan;
+  const scalars = describeMergeFrame(prepared, plan.effectiveExposuresS[position]);
+  const pixels = listScoreSamplePixels(acc);
+  const m = pixels.length;
+  const sample = takeCached(cache, position, 0, [...Array.from({ length: channels }, () => new Float32Array(m)), ...Array.from({ length: 4 }, () => new Uint8Array(m))], channels, scalars);
+  if (!sample) return false;
+  sampleScorePoints(acc, sample, pixels, tally);
+  const masks = scratch.masks!;
+  const into = [...scratch.planes, scratch.covered, masks[2], masks[3], masks[4]];
+  const rows = bandRowsOf(scratch, plan);
+  for (let y = 0, part = 1; y < height; y += rows, part++) {
+    const band = takeCached(cache, position, part, into, channels, scalars);
+    if (!band) throw new ImagingError("bad-parameter", `the merge's cache lost part ${part} of frame ${position + 1}`);
+    addBandToMerge(acc, band, y * width, tally);
+  }
+  return true;
+}
+
+/** Master rows per band for a warp scratch (see createWarpScratch). */
+function bandRowsOf(scratch: WarpTarget, plan: BracketPlan): number {
+  return Math.max(1, Math.floor(Math.min(scratch.covered.length / plan.width, plan.height)));
+}
+
+/**
+ * Warps a kept frame into master pixels and adds it to a pass, band by band
+ * (the second pass first samples its outlier scale at the sampled pixels; the
+ * result is the whole-frame addition's, bit for bit). `position` is the frame's
+ * place in plan.keep; frames must come in that order within a pass (slices of
+ * consecutive positions, each into its own accumulator, combine). With a cache,
+ * the first pass keeps the frame's warped bands (where the cache has room) and
+ * the second pass reads them instead of warping again.
+ */
+export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, scratch: WarpTarget, cache?: WarpCache): void {
   const k = plan.keep[position];
   const offset = plan.offsets[k];
+  const { width, height, channels } = plan;
+  const masks = scratch.masks && scratch.masks.length >= 5 ? scratch.masks : undefined;
+  const tally = createMergeTally();
+  const usesCache = Boolean(cache && masks && !plan.isEncoded);
+  if (usesCache && acc.pilot && addCachedFrame(plan, acc, position, prepared, scratch, cache!, tally)) {
+    closeMergeFrame(acc, tally);
+    return;
+  }
   // The merge subtracts the offset the plan settled on (solved from the bracket, when the file had none).
   const settled: LinearFrame = offset.blackLevel === frame.blackLevel ? frame : { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
-  const { width, height } = plan;
-  const masks = scratch.masks && scratch.masks.length >= 5 ? scratch.masks : undefined;
   const warp = openFrameWarp(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, masks?.slice(0, 2), plan.effectiveExposuresS[position]);
   try {
-    const rows = Math.max(1, Math.floor(Math.min(scratch.covered.length / width, height)));
+    const rows = bandRowsOf(scratch, plan);
     const band = { planes: scratch.planes, covered: scratch.covered, masks: masks?.slice(2) };
-    const tally = createMergeTally();
-    if (acc.pilot) for (let y = 0; y < height; y += rows) sampleScoreBand(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
-    for (let y = 0; y < height; y += rows) addBandToMerge(acc, warpFrameBand(warp, y, Math.min(height, y + rows), band), y * width, tally);
+    const pixels = listScoreSamplePixels(acc);
+    // First pass with a cache: the frame's parts are kept when there is room for all of them.
+    let keeps = usesCache && !acc.pilot && cache!.reserve(position, (pixels.length + width * height) * (4 * channels + 4));
+    if (acc.pilot || keeps) {
+      // The outlier scale's sample, from the sampled pixels alone (not a warp of every band).
+      const sample = warpFramePoints(warp, pixels);
+      if (keeps) keeps = cache!.put(position, 0, cachedArraysOf(sample));
+      else sampleScorePoints(acc, sample, pixels, tally);
+    }
+    for (let y = 0, part = 1; y < height; y += rows, part++) {
+      const input = warpFrameBand(warp, y, Math.min(height, y + rows), band);
+      if (keeps) keeps = cache!.put(position, part, cachedArraysOf(input));
+      addBandToMerge(acc, input, y * width, tally);
+    }
     closeMergeFrame(acc, tally);
   } finally {
     warp.release();
@@ -106,14 +195,15 @@ export function prepareKeptFrame(plan: BracketPlan, position: number, frame: Lin
  * Both passes (one for 8-bit frames) over every kept frame, one frame a step:
  * the generator yields after each frame and returns the last pass's
  * accumulator, so that a caller may give its event loop a turn between frames.
+ * With a cache, the second pass reads the frames the first pass warped.
  */
-export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void): Generator<void, MergeAccumulator, void> {
+export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void, cache?: WarpCache): Generator<void, MergeAccumulator, void> {
   // Let go when the passes end (the generator object may outlive them), so the finish has the memory.
   let scratch: WarpTarget | undefined = createWarpScratch(plan);
   const total = plan.keep.length;
   function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
     for (let i = 0; i < total; i++) {
-      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!);
+      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!, cache);
       onProgress?.(stage, (i + 1) / total, { done: i + 1, total });
       yield;
     }

@@ -155,7 +155,7 @@ export function combineSigmaClippedMedian(stack: Float32Array[], options?: Sigma
  * median-of-three pivot): linear time on average, where a full sort of a
  * many-megapixel plane is not.
  */
-function selectKth(a: Float32Array, k: number): void {
+export function selectKth(a: Float32Array, k: number): void {
   let lo = 0;
   let hi = a.length - 1;
   while (hi > lo) {

@@ -6,7 +6,7 @@ import { fitLimb, type LimbFit } from "./limb-fit";
 import { linearizeFrame, patchDefects, type LinearizedFrame } from "./linearize";
 import type { MergeFrameInput } from "./merge";
 import type { LunarDisk } from "./radial";
-import { warpMask, warpPlanes, type WarpTarget } from "./resample";
+import { warpMasks, warpMasksAtPoints, warpPlanes, warpPlanesAtPoints, type WarpTarget } from "./resample";
 import type { AffineSimilarity } from "./similarity";
 import type { LinearFrame, ReductionParams } from "./types";
 
@@ -77,6 +77,12 @@ export interface FrameWarp {
   };
 }
 
+/** The numbers (not the pixels) a prepared frame brings to the merge: its exposure (the plan's effective one, when given), clip level and read noise. */
+export function describeMergeFrame(prepared: PreparedFrame, effectiveExposureS?: number): { exposureS: number; clipLevel: number; noiseSigma?: number } {
+  const { linear } = prepared;
+  return { exposureS: effectiveExposureS ?? linear.exposureS, clipLevel: linear.clipLevel, noiseSigma: linear.noiseSigma };
+}
+
 /**
  * Opens a frame for warpFrameBand. `dilation` may hold two mask buffers of the
  * frame's size, reused frame after frame for the widened clipped mask.
@@ -111,7 +117,7 @@ export function openFrameWarp(
     },
     source: {
       planes, clipped, noiseFloor: linear.noiseFloor, masked, black: isLinear ? frame.blackLevel : 0, masterToFrame, frameMoon, referenceMoon,
-      exposureS: effectiveExposureS ?? linear.exposureS, clipLevel: linear.clipLevel, noiseSigma: linear.noiseSigma,
+      ...describeMergeFrame(prepared, effectiveExposureS),
     },
   };
 }
@@ -148,9 +154,8 @@ export function warpFrameBand(warp: FrameWarp, y0: number, y1: number, scratch?:
     const warped = warpPlanes(source.planes, width, height, masterToFrame, window, "bicubic", target);
     planes = warped.planes;
     covered = warped.covered;
-    clipped = warpMask(source.clipped, width, height, masterToFrame, window, 1, masks[0]);
-    noiseFloor = warpMask(source.noiseFloor, width, height, masterToFrame, window, 1, masks[1]);
-    if (masked) masked = warpMask(masked, width, height, masterToFrame, window, 0, masks[2]);
+    // Clipped and noise floor count as such beyond the frame; a defect does not.
+    [clipped, noiseFloor, masked] = warpMasks(masked ? [source.clipped, source.noiseFloor, masked] : [source.clipped, source.noiseFloor], width, height, masterToFrame, window, [1, 1, 0], masks);
   }
   if (source.black !== 0) {
     const black = source.black;
@@ -158,19 +163,78 @@ export function warpFrameBand(warp: FrameWarp, y0: number, y1: number, scratch?:
   }
   if (!identity) {
     // Near the limbs, only where this frame and the reference agree on the Moon (see warpFrameForMerge).
-    const moonR = moon.radiusPx;
-    const reach = Math.max(moonR, referenceMoon.radiusPx) + LIMB_MARGIN_PX + Math.hypot(moon.x - referenceMoon.x, moon.y - referenceMoon.y);
-    const top = Math.max(y0, Math.floor(referenceMoon.y - reach));
-    const bottom = Math.min(y1 - 1, Math.ceil(referenceMoon.y + reach));
-    const x0 = Math.max(0, Math.floor(referenceMoon.x - reach));
-    const x1 = Math.min(width - 1, Math.ceil(referenceMoon.x + reach));
-    for (let y = top; y <= bottom; y++) {
-      for (let x = x0; x <= x1; x++) {
-        const dFrame = Math.hypot(x - moon.x, y - moon.y) - moonR;
-        const dRef = Math.hypot(x - referenceMoon.x, y - referenceMoon.y) - referenceMoon.radiusPx;
-        const agree = (dFrame > LIMB_MARGIN_PX && dRef > LIMB_MARGIN_PX) || (dFrame < -LIMB_MARGIN_PX && dRef < -LIMB_MARGIN_PX) || Math.abs(dFrame - dRef) <= SAME_LIMB_PX;
-        if (!agree) covered[(y - y0) * width + x] = 0;
-      }
+    const box = limbBox(source.frameMoon, referenceMoon, width, height);
+    for (let y = Math.max(y0, box.top); y <= Math.min(y1 - 1, box.bottom); y++) {
+      for (let x = box.x0; x <= box.x1; x++) if (!isLimbAgreed(moon, referenceMoon, x, y)) covered[(y - y0) * width + x] = 0;
+    }
+  }
+  return { planes, exposureS: source.exposureS, clipped, noiseFloor, covered, clipLevel: source.clipLevel, masked, noiseSigma: source.noiseSigma };
+}
+
+/** The master pixels where a frame and the reference may disagree on the Moon: a box around the reference's limb. */
+function limbBox(moon: LunarDisk, referenceMoon: LunarDisk, width: number, height: number): { top: number; bottom: number; x0: number; x1: number } {
+  const reach = Math.max(moon.radiusPx, referenceMoon.radiusPx) + LIMB_MARGIN_PX + Math.hypot(moon.x - referenceMoon.x, moon.y - referenceMoon.y);
+  return {
+    top: Math.max(0, Math.floor(referenceMoon.y - reach)),
+    bottom: Math.min(height - 1, Math.ceil(referenceMoon.y + reach)),
+    x0: Math.max(0, Math.floor(referenceMoon.x - reach)),
+    x1: Math.min(width - 1, Math.ceil(referenceMoon.x + reach)),
+  };
+}
+
+/** Whether the frame and the reference agree on the Moon at master pixel (x, y): both clear of it, both on it, or their limbs in the same place. */
+function isLimbAgreed(moon: LunarDisk, referenceMoon: LunarDisk, x: number, y: number): boolean {
+  const dFrame = Math.hypot(x - moon.x, y - moon.y) - moon.radiusPx;
+  const dRef = Math.hypot(x - referenceMoon.x, y - referenceMoon.y) - referenceMoon.radiusPx;
+  return (dFrame > LIMB_MARGIN_PX && dRef > LIMB_MARGIN_PX) || (dFrame < -LIMB_MARGIN_PX && dRef < -LIMB_MARGIN_PX) || Math.abs(dFrame - dRef) <= SAME_LIMB_PX;
+}
+
+/**
+ * An opened frame as merge input at single master pixels only (`pixels`, master
+ * indices): entry j of every array is what warpFrameBand gives at pixels[j], bit
+ * for bit. The second merge pass samples a frame's outlier scale at a regular
+ * grid of pixels before it adds the frame; warping just those costs a few
+ * hundred thousand pixels instead of a whole frame.
+ */
+export function warpFramePoints(warp: FrameWarp, pixels: Int32Array): MergeFrameInput {
+  const { width, height, identity, source } = warp;
+  const m = pixels.length;
+  const planes = source.planes.map(() => new Float32Array(m));
+  const covered = new Uint8Array(m);
+  let clipped = new Uint8Array(m);
+  let noiseFloor = new Uint8Array(m);
+  let masked = source.masked ? new Uint8Array(m) : undefined;
+  const xs = new Int32Array(m);
+  const ys = new Int32Array(m);
+  for (let j = 0; j < m; j++) {
+    xs[j] = pixels[j] % width;
+    ys[j] = (pixels[j] - xs[j]) / width;
+  }
+  if (identity) {
+    for (let j = 0; j < m; j++) {
+      const i = pixels[j];
+      source.planes.forEach((p, c) => { planes[c][j] = p[i]; });
+    }
+    covered.fill(1);
+    clipped = Uint8Array.from(pixels, (i) => source.clipped[i]);
+    noiseFloor = Uint8Array.from(pixels, (i) => source.noiseFloor[i]);
+    const sourceMasked = source.masked;
+    if (sourceMasked) masked = Uint8Array.from(pixels, (i) => sourceMasked[i]);
+  } else {
+    warpPlanesAtPoints(source.planes, width, height, source.masterToFrame, xs, ys, planes, covered);
+    const sources = source.masked ? [source.clipped, source.noiseFloor, source.masked] : [source.clipped, source.noiseFloor];
+    const outs = source.masked ? [clipped, noiseFloor, masked!] : [clipped, noiseFloor];
+    warpMasksAtPoints(sources, width, height, source.masterToFrame, xs, ys, [1, 1, 0], outs);
+  }
+  if (source.black !== 0) {
+    const black = source.black;
+    for (const p of planes) for (let j = 0; j < m; j++) p[j] -= black;
+  }
+  if (!identity) {
+    const box = limbBox(source.frameMoon, source.referenceMoon, width, height);
+    for (let j = 0; j < m; j++) {
+      const x = xs[j], y = ys[j];
+      if (y >= box.top && y <= box.bottom && x >= box.x0 && x <= box.x1 && !isLimbAgreed(source.frameMoon, source.referenceMoon, x, y)) covered[j] = 0;
     }
   }
   return { planes, exposureS: source.exposureS, clipped, noiseFloor, covered, clipLevel: source.clipLevel, masked, noiseSigma: source.noiseSigma };

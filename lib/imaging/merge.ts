@@ -17,7 +17,11 @@
 //    only the single worst frame at each pixel is taken out, once all frames are in.
 //  - 8-bit data: Debevec and Malik (1997), SIGGRAPH, eq. 6:
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
+import { selectKth } from "./calibrate-combine";
 import { ImagingError } from "./errors";
+import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
+
+export { OUTLIER_SIGMAS, type WorstFrameRecord } from "./merge-outliers";
 
 export interface MergeFrameInput {
   /** Registered linear planes: DN above black (linear) or relative light (8-bit). */
@@ -97,21 +101,14 @@ export interface MergeAccumulator {
   useScratch?: Uint8Array;
   /** photon: per-pixel weight of the band being added (clip taper, and the noise share with a pilot), reused band after band. */
   weightScratch?: Float32Array;
+  /** Second pass: the band's clip tapers, which the outlier scores use, kept while weightScratch takes the noise share. */
+  taperScratch?: Float32Array;
   /** The first pass, finished: its radiance serves the second pass's weights and leave-one-out outlier test. */
   pilot?: PhotonPilot;
-  /** Second pass: per pixel, the frame that disagrees most with the others, and what it added. */
-  worst?: WorstFrame;
+  /** Second pass: where some frame's outlier score passes OUTLIER_WING_SIGMAS, the frame that disagrees most with the others, and what it added. */
+  worst?: WorstFrameRecord;
   frameRejected: number[];
   frameConsidered: number[];
-}
-
-/** Per pixel, the frame with the largest outlier score so far and its contribution, so that it can be taken out at the end. */
-interface WorstFrame {
-  score: Float32Array;
-  frame: Int16Array;
-  contribution: Float32Array[];
-  weight: Float32Array;
-  wellExposed: Uint8Array;
 }
 
 /**
@@ -130,12 +127,6 @@ export interface PhotonPilot {
 
 /** Share of the clip level above which a frame's weight starts to fall (cosine taper to zero at the clip level). */
 export const CLIP_TAPER_START = 0.6;
-/** Outliers: a score above this many sigmas of the leave-one-out prediction (after the frame's own z scale is measured). */
-export const OUTLIER_SIGMAS = 5;
-/** Around an outlier, the worst frame goes at this lower score too, so that a trail's wings below the threshold go with it. */
-const OUTLIER_WING_SIGMAS = 2.5;
-/** Outliers grow by this many pixels (the wings' reach). */
-const REJECT_GROW_PX = 2;
 /**
  * Negative deviations count at this share: trails, cosmic rays and hot pixels add
  * light, and a frame that only looks low because another frame's outlier pulled the
@@ -169,9 +160,7 @@ export function createMergeAccumulator(
     fallback: new Float32Array(n),
     coverage: new Uint16Array(n),
     frameWeight: [], frameContributing: [], frameWellExposed: [], frameRejected: [], frameConsidered: [], codeOf, pilot,
-    worst: pilot
-      ? { score: new Float32Array(n), frame: new Int16Array(n).fill(-1), contribution: Array.from({ length: channels }, () => new Float32Array(n)), weight: new Float32Array(n), wellExposed: new Uint8Array(n) }
-      : undefined,
+    worst: pilot ? createWorstRecord(channels) : undefined,
   };
 }
 
@@ -181,35 +170,22 @@ export function toPilot(acc: MergeAccumulator): PhotonPilot {
   return { sums: acc.sums, weights: Float32Array.from(acc.weights[0]) };
 }
 
-/** Grows a mask by r pixels (square), in place of a fresh allocation when given scratch. */
-function growMask(mask: Uint8Array, width: number, height: number, r: number): Uint8Array {
-  const out = new Uint8Array(mask.length);
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      if (!mask[y * width + x]) continue;
-      for (let v = Math.max(0, y - r); v <= Math.min(height - 1, y + r); v++) out.fill(1, v * width + Math.max(0, x - r), v * width + Math.min(width - 1, x + r) + 1);
-    }
-  }
-  return out;
-}
-
 /**
  * Second pass, per frame: z = (y - t E_loo) / sigma for each plane, with E_loo the
  * first pass's estimate without this frame and sigma^2 = y + sigma_r^2 + t^2 E_loo / T_loo
  * (photon noise at one electron per DN, read noise, the leave-one-out estimate's
  * own noise). The worst plane's z, rounded to float32 as the score is kept; 0
- * where there is nothing to compare. `i` indexes the master, `k` the frame's
- * band; `taperK` is the frame's clip taper there, before the noise share.
+ * where there is nothing to compare. `sums` and `weights` are the pilot's, `i`
+ * indexes them; `planes` are the frame's, `k` indexes them; `taperK` is the
+ * frame's clip taper there, before the noise share.
  */
-function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: number, k: number, taperK: number, read2: number): number {
-  const pilot = acc.pilot!;
-  const t = frame.exposureS;
-  const tLoo = pilot.weights[i] - taperK * t;
+function computeRawScore(sums: Float32Array[], weights: Float32Array, planes: Float32Array[], i: number, k: number, t: number, taperK: number, read2: number): number {
+  const tLoo = weights[i] - taperK * t;
   if (!(tLoo > 1e-3 * t)) return 0;
   let worst = 0;
-  for (let c = 0; c < acc.channels; c++) {
-    const y = frame.planes[c][k];
-    const eLoo = (pilot.sums[c][i] - taperK * y) / tLoo;
+  for (let c = 0; c < planes.length; c++) {
+    const y = planes[c][k];
+    const eLoo = (sums[c][i] - taperK * y) / tLoo;
     const predicted = t * eLoo;
     const variance = Math.max(predicted, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
     const zc = (y - predicted) / Math.sqrt(variance);
@@ -219,10 +195,10 @@ function computeRawScore(acc: MergeAccumulator, frame: MergeFrameInput, i: numbe
 }
 
 /** The clip taper of a frame's pixel k on its brightest plane (see computeClipTaper). */
-function computePixelTaper(frame: MergeFrameInput, channels: number, k: number): number {
-  let v = frame.planes[0][k];
-  for (let c = 1; c < channels; c++) if (frame.planes[c][k] > v) v = frame.planes[c][k];
-  return computeClipTaper(v, frame.clipLevel);
+function computePixelTaper(planes: Float32Array[], clipLevel: number, k: number): number {
+  let v = planes[0][k];
+  for (let c = 1; c < planes.length; c++) if (planes[c][k] > v) v = planes[c][k];
+  return computeClipTaper(v, clipLevel);
 }
 
 /** Whether a frame's pixel k takes part: covered, no defect, not clipped. */
@@ -235,30 +211,57 @@ function scoreSampleStep(acc: MergeAccumulator): number {
   return Math.max(1, Math.floor((acc.width * acc.height) / 200_000)) | 1;
 }
 
+/** Adds the |z| of a frame's pixel k (master pixel i) to its tally's sample, where it takes part and has something to compare with. */
+function sampleScoreAt(pilot: PhotonPilot, frame: MergeFrameInput, i: number, k: number, read2: number, tally: MergeFrameTally): void {
+  if (!isPixelUsable(frame, k)) return;
+  const z = computeRawScore(pilot.sums, pilot.weights, frame.planes, i, k, frame.exposureS, computePixelTaper(frame.planes, frame.clipLevel, k), read2);
+  if (z !== 0) tally.sample.push(Math.abs(z));
+}
+
 /**
  * A frame's outlier scores need the frame's own z scale (the robust spread of its
  * z values, which absorbs a gain other than one) before any pixel is scored: a
  * caller adding a frame band by band first passes every band to
- * sampleScoreBand, then gives the tally's sample to the bands' additions
- * (addBandToMerge). `offset` is the master index of the band's first pixel.
+ * sampleScoreBand (or the sampled pixels alone to sampleScorePoints), then gives
+ * the tally's sample to the bands' additions (addBandToMerge). `offset` is the
+ * master index of the band's first pixel.
  */
 export function sampleScoreBand(acc: MergeAccumulator, band: MergeFrameInput, offset: number, tally: MergeFrameTally): void {
   if (!acc.pilot || acc.weighting !== "photon") return;
   const len = checkBand(acc, band, offset);
   const step = scoreSampleStep(acc);
   const read2 = (band.noiseSigma ?? 0) ** 2;
-  for (let i = Math.ceil(offset / step) * step; i < offset + len; i += step) {
-    const k = i - offset;
-    if (!isPixelUsable(band, k)) continue;
-    const z = computeRawScore(acc, band, i, k, computePixelTaper(band, acc.channels, k), read2);
-    if (z !== 0) tally.sample.push(Math.abs(z));
-  }
+  for (let i = Math.ceil(offset / step) * step; i < offset + len; i += step) sampleScoreAt(acc.pilot, band, i, i - offset, read2, tally);
+}
+
+/** The master pixels at which sampleScoreBand samples a frame's scores, in order (the same for every frame of a pass). */
+export function listScoreSamplePixels(acc: MergeAccumulator): Int32Array {
+  const step = scoreSampleStep(acc);
+  const n = acc.width * acc.height;
+  return Int32Array.from({ length: Math.ceil(n / step) }, (_, j) => j * step);
+}
+
+/**
+ * sampleScoreBand over a whole frame given at its sampled pixels only: `points`
+ * holds at position j the frame's value at master pixel pixels[j], for the
+ * pixels of listScoreSamplePixels. The same sample as sampleScoreBand over every
+ * band, for the cost of those pixels' warp instead of the frame's.
+ */
+export function sampleScorePoints(acc: MergeAccumulator, points: MergeFrameInput, pixels: Int32Array, tally: MergeFrameTally): void {
+  if (!acc.pilot || acc.weighting !== "photon") return;
+  const len = checkBand(acc, points, 0);
+  if (len !== pixels.length) throw new ImagingError("size-mismatch", `score sample: ${len} values for ${pixels.length} pixels`);
+  const read2 = (points.noiseSigma ?? 0) ** 2;
+  for (let j = 0; j < len; j++) sampleScoreAt(acc.pilot, points, pixels[j], j, read2, tally);
 }
 
 /** 1.4826 MAD of the sampled |z| (at least 0.25), or 1 with too few samples. */
 function measureScoreScale(sample: number[]): number {
-  sample.sort((a, b) => a - b);
-  return sample.length > 100 ? Math.max(0.25, 1.4826 * sample[sample.length >> 1]) : 1;
+  if (sample.length <= 100) return 1;
+  // The element a sort would put in the middle, found by selection (the |z| are float32 numbers already).
+  const values = Float32Array.from(sample);
+  selectKth(values, values.length >> 1);
+  return Math.max(0.25, 1.4826 * values[values.length >> 1]);
 }
 
 /** The outlier score of a raw z: z over the frame's scale, negative ones at NEGATIVE_SCORE_SHARE; float32 as the worst-frame record keeps it. */
@@ -276,6 +279,8 @@ export interface MergeFrameTally {
   sample: number[];
   /** The frame's z scale, measured from the sample when the first band is added. */
   scale?: number;
+  /** Its pixels that score above OUTLIER_WING_SIGMAS, for the worst-frame record (closeMergeFrame files them). */
+  candidates?: WorstCandidates;
 }
 
 export function createMergeTally(): MergeFrameTally {
@@ -297,6 +302,105 @@ function scratchOf<T extends Uint8Array | Float32Array>(held: T | undefined, len
   return { array: array.subarray(0, len) as T, held: array };
 }
 
+// The loops of addBandToMerge, one small function each: V8 optimizes a function
+// with one hot loop at once, where one long function with many loops was
+// compiled again and again as each loop became hot (about 4x slower measured).
+
+/** use[k] = 1 where the band's pixel takes part (covered, no defect, not clipped); where clipped, the fallback's lower bound. */
+function markUsable(band: MergeFrameInput, use: Uint8Array, fallback: Float32Array, offset: number, bound: number): void {
+  const { covered, masked, clipped } = band;
+  for (let k = 0; k < use.length; k++) {
+    if (covered && !covered[k]) continue;
+    if (masked && masked[k]) continue;
+    if (clipped[k]) {
+      if (bound > fallback[offset + k]) fallback[offset + k] = bound;
+      continue;
+    }
+    use[k] = 1;
+  }
+}
+
+/** The clip taper of every usable pixel (0 elsewhere). */
+function fillTapers(planes: Float32Array[], clipLevel: number, use: Uint8Array, taper: Float32Array): void {
+  for (let k = 0; k < use.length; k++) taper[k] = use[k] ? computePixelTaper(planes, clipLevel, k) : 0;
+}
+
+/** First pass: each usable pixel's exposure weight (taper t) into the accumulator; returns the running weight sum. */
+function weighFirstPass(use: Uint8Array, taper: Float32Array, exposure: Float64Array, offset: number, t: number, weightSum: number): number {
+  for (let k = 0; k < use.length; k++) {
+    if (!use[k] || !(taper[k] > 0)) { use[k] = 0; continue; }
+    exposure[offset + k] += taper[k] * t;
+    weightSum += taper[k] * t;
+  }
+  return weightSum;
+}
+
+/**
+ * Second pass: the noise share at the pilot's radiance makes each pixel's weight
+ * (taper[k] becomes it), added to the exposure weights; returns the running weight sum.
+ */
+function weighSecondPass(use: Uint8Array, taper: Float32Array, exposure: Float64Array, offset: number, t: number, read2: number, lum: Float32Array, pilotWeights: Float32Array, weightSum: number): number {
+  for (let k = 0; k < use.length; k++) {
+    if (!use[k]) continue;
+    const i = offset + k;
+    const expected = pilotWeights[i] > 0 ? (t * lum[i]) / pilotWeights[i] : 0;
+    const w = Math.fround(taper[k] * (expected > 0 ? expected / (expected + read2) : 1));
+    taper[k] = w;
+    if (!(w > 0)) { use[k] = 0; continue; }
+    exposure[i] += w * t;
+    weightSum += w * t;
+  }
+  return weightSum;
+}
+
+/**
+ * Second pass: each used pixel's outlier score, taken with its clip taper alone
+ * (`clipTaper`, a copy made before weighSecondPass); pixels scoring above
+ * OUTLIER_WING_SIGMAS join the frame's candidates for the worst-frame record.
+ * Returns how many pixels were scored.
+ */
+function scoreBand(pilot: PhotonPilot, band: MergeFrameInput, use: Uint8Array, clipTaper: Float32Array, weight: Float32Array, offset: number, read2: number, scale: number, candidates: WorstCandidates): number {
+  const { planes, noiseFloor, exposureS: t } = band;
+  const channels = planes.length;
+  let considered = 0;
+  for (let k = 0; k < use.length; k++) {
+    if (!use[k]) continue;
+    considered++;
+    const i = offset + k;
+    const score = scaleScore(computeRawScore(pilot.sums, pilot.weights, planes, i, k, t, clipTaper[k], read2), scale);
+    if (!(score > OUTLIER_WING_SIGMAS)) continue;
+    if (candidates.count === candidates.pixel.length) growCandidates(candidates, channels);
+    const at = candidates.count++;
+    const w = weight[k];
+    candidates.pixel[at] = i;
+    candidates.score[at] = score;
+    candidates.weight[at] = w * t;
+    candidates.wellExposed[at] = noiseFloor[k] ? 0 : 1;
+    for (let c = 0; c < channels; c++) candidates.contribution[c][at] = w * planes[c][k];
+  }
+  return considered;
+}
+
+/** sum += taper y over the used pixels of one plane. */
+function addWeightedPlane(sum: Float32Array, plane: Float32Array, use: Uint8Array, taper: Float32Array, offset: number): void {
+  for (let k = 0; k < use.length; k++) if (use[k]) sum[offset + k] += taper[k] * plane[k];
+}
+
+/** Coverage of the used pixels above the noise floor; the tally's counts. */
+function countUsed(use: Uint8Array, noiseFloor: Uint8Array, coverage: Uint16Array, offset: number, tally: MergeFrameTally): void {
+  let contributing = 0, well = 0;
+  for (let k = 0; k < use.length; k++) {
+    if (!use[k]) continue;
+    contributing++;
+    if (!noiseFloor[k]) {
+      coverage[offset + k]++;
+      well++;
+    }
+  }
+  tally.contributing += contributing;
+  tally.well += well;
+}
+
 /**
  * Adds one band of a frame: master pixels offset .. offset + band length, in
  * master order (a whole frame is one band at offset 0). Bands of one frame come
@@ -308,78 +412,41 @@ function scratchOf<T extends Uint8Array | Float32Array>(held: T | undefined, len
 export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, offset: number, tally: MergeFrameTally): void {
   const len = checkBand(acc, band, offset);
   const t = band.exposureS;
-  const bound = band.clipLevel / t;
   const { noiseFloor } = band;
-  const { coverage, fallback } = acc;
   // Masks, coverage and the clipped fallback (shared by every plane).
   const useScratch = scratchOf(acc.useScratch, len, (m) => new Uint8Array(m));
   acc.useScratch = useScratch.held;
   const use = useScratch.array.fill(0);
-  for (let k = 0; k < len; k++) {
-    if (band.covered && !band.covered[k]) continue;
-    if (band.masked && band.masked[k]) continue;
-    if (band.clipped[k]) {
-      if (bound > fallback[offset + k]) fallback[offset + k] = bound;
-      continue;
-    }
-    use[k] = 1;
-  }
+  markUsable(band, use, acc.fallback, offset, band.clipLevel / t);
   if (acc.weighting === "photon") {
     // Per-pixel weight factor: the clip taper on the brightest plane, then (second pass) the noise share.
     const weightScratch = scratchOf(acc.weightScratch, len, (m) => new Float32Array(m));
     acc.weightScratch = weightScratch.held;
     const taper = weightScratch.array;
-    for (let k = 0; k < len; k++) taper[k] = use[k] ? computePixelTaper(band, acc.channels, k) : 0;
+    fillTapers(band.planes, band.clipLevel, use, taper);
     const exposure = acc.weights[0];
     const { pilot, worst } = acc;
     if (pilot) {
-      // Second pass, pixel by pixel: the outlier score (taken with the clip taper alone), then
-      // the noise share, the frame's weight, and the worst-frame record.
+      // Second pass: the outlier scores are taken with the clip taper alone, so it is kept
+      // before the noise share turns it into the weight.
       const read2 = (band.noiseSigma ?? 0) ** 2;
-      const scale = (tally.scale ??= measureScoreScale(tally.sample));
-      const lum = pilot.sums[acc.channels === 3 ? 1 : 0];
-      const index = acc.frameWeight.length;
-      for (let k = 0; k < len; k++) {
-        if (!use[k]) continue;
-        const i = offset + k;
-        const clipTaper = taper[k];
-        const expected = pilot.weights[i] > 0 ? (t * lum[i]) / pilot.weights[i] : 0;
-        const w = Math.fround(clipTaper * (expected > 0 ? expected / (expected + read2) : 1));
-        taper[k] = w;
-        if (!(w > 0)) { use[k] = 0; continue; }
-        exposure[i] += w * t;
-        tally.weightSum += w * t;
-        if (!worst) continue;
-        tally.considered++;
-        const score = scaleScore(computeRawScore(acc, band, i, k, clipTaper, read2), scale);
-        if (score <= worst.score[i]) continue;
-        worst.score[i] = score;
-        worst.frame[i] = index;
-        worst.weight[i] = w * t;
-        worst.wellExposed[i] = noiseFloor[k] ? 0 : 1;
-        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = w * band.planes[c][k];
+      const clipTaper = worst ? scratchOf(acc.taperScratch, len, (m) => new Float32Array(m)) : undefined;
+      if (clipTaper) {
+        acc.taperScratch = clipTaper.held;
+        clipTaper.array.set(taper);
+      }
+      tally.weightSum = weighSecondPass(use, taper, exposure, offset, t, read2, pilot.sums[acc.channels === 3 ? 1 : 0], pilot.weights, tally.weightSum);
+      if (worst && clipTaper) {
+        const scale = (tally.scale ??= measureScoreScale(tally.sample));
+        const candidates = (tally.candidates ??= { count: 0, pixel: new Int32Array(0), score: new Float32Array(0), weight: new Float32Array(0), wellExposed: new Uint8Array(0), contribution: [] });
+        tally.considered += scoreBand(pilot, band, use, clipTaper.array, taper, offset, read2, scale, candidates);
       }
     } else {
-      for (let k = 0; k < len; k++) {
-        if (!use[k] || !(taper[k] > 0)) { use[k] = 0; continue; }
-        exposure[offset + k] += taper[k] * t;
-        tally.weightSum += taper[k] * t;
-      }
+      tally.weightSum = weighFirstPass(use, taper, exposure, offset, t, tally.weightSum);
     }
-    for (let c = 0; c < acc.channels; c++) {
-      const sum = acc.sums[c];
-      const p = band.planes[c];
-      for (let k = 0; k < len; k++) if (use[k]) sum[offset + k] += taper[k] * p[k];
-    }
+    for (let c = 0; c < acc.channels; c++) addWeightedPlane(acc.sums[c], band.planes[c], use, taper, offset);
   }
-  for (let k = 0; k < len; k++) {
-    if (!use[k]) continue;
-    tally.contributing++;
-    if (!noiseFloor[k]) {
-      coverage[offset + k]++;
-      tally.well++;
-    }
-  }
+  countUsed(use, noiseFloor, acc.coverage, offset, tally);
   if (acc.weighting !== "photon") {
     // One band only (a whole frame): the weight sum runs plane by plane, as it always has.
     if (offset !== 0 || len !== acc.width * acc.height) throw new ImagingError("bad-parameter", "the 8-bit merge adds whole frames only");
@@ -403,30 +470,12 @@ export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, off
   }
 }
 
-/** Takes the worst frame out where it is an outlier (and in the grown wings around one); counts what each frame lost. */
-function removeOutliers(acc: MergeAccumulator): void {
-  const worst = acc.worst!;
-  const n = acc.width * acc.height;
-  const hit = new Uint8Array(n);
-  let any = false;
-  for (let i = 0; i < n; i++) if (worst.frame[i] >= 0 && worst.score[i] > OUTLIER_SIGMAS) { hit[i] = 1; any = true; }
-  if (!any) return;
-  const wings = growMask(hit, acc.width, acc.height, REJECT_GROW_PX);
-  const exposure = acc.weights[0];
-  for (let i = 0; i < n; i++) {
-    if (!wings[i] || worst.frame[i] < 0 || worst.score[i] <= (hit[i] ? OUTLIER_SIGMAS : OUTLIER_WING_SIGMAS)) continue;
-    // Keep the pixel when the worst frame was its only light: a lone frame has nothing to disagree with.
-    if (!(exposure[i] - worst.weight[i] > 1e-6 * exposure[i])) continue;
-    exposure[i] -= worst.weight[i];
-    for (let c = 0; c < acc.channels; c++) acc.sums[c][i] -= worst.contribution[c][i];
-    if (worst.wellExposed[i] && acc.coverage[i] > 0) acc.coverage[i]--;
-    acc.frameRejected[worst.frame[i]]++;
-  }
-}
-
-/** Records a frame whose bands have all been added. */
+/** Records a frame whose bands have all been added (and files its outlier candidates in the worst-frame record). */
 export function closeMergeFrame(acc: MergeAccumulator, tally: MergeFrameTally): void {
   const n = acc.width * acc.height;
+  const candidates = tally.candidates;
+  if (acc.worst && candidates && candidates.count > 0) acc.worst = joinWorstRecords(acc.worst, candidates, candidates.count, 0, acc.frameWeight.length);
+  tally.candidates = undefined;
   acc.frameWeight.push(tally.weightSum);
   acc.frameRejected.push(0);
   acc.frameConsidered.push(tally.considered);
@@ -477,18 +526,7 @@ export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumu
       acc.coverage[i] += part.coverage[i];
       if (part.fallback[i] > acc.fallback[i]) acc.fallback[i] = part.fallback[i];
     }
-    const worst = acc.worst;
-    const other = part.worst;
-    if (worst && other) {
-      for (let i = 0; i < n; i++) {
-        if (other.frame[i] < 0 || !(other.score[i] > worst.score[i])) continue;
-        worst.score[i] = other.score[i];
-        worst.frame[i] = firstFrame + other.frame[i];
-        worst.weight[i] = other.weight[i];
-        worst.wellExposed[i] = other.wellExposed[i];
-        for (let c = 0; c < acc.channels; c++) worst.contribution[c][i] = other.contribution[c][i];
-      }
-    }
+    if (acc.worst && part.worst) acc.worst = joinWorstRecords(acc.worst, part.worst, part.worst.pixel.length, firstFrame);
     acc.frameWeight.push(...part.frameWeight);
     acc.frameContributing.push(...part.frameContributing);
     acc.frameWellExposed.push(...part.frameWellExposed);
@@ -507,7 +545,8 @@ export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumu
  */
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
-  if (acc.worst) removeOutliers(acc);
+  acc.pilot = undefined;
+  if (acc.worst) removeOutliers(acc.worst, acc.width, acc.height, acc.weights[0], acc.sums, acc.coverage, acc.frameRejected);
   const radiance = acc.sums.map((sum, c) => {
     const weight = acc.weighting === "photon" ? acc.weights[0] : acc.weights[c];
     for (let i = 0; i < n; i++) {
@@ -523,6 +562,7 @@ export function finishMerge(acc: MergeAccumulator): MergeResult {
   acc.worst = undefined;
   acc.useScratch = undefined;
   acc.weightScratch = undefined;
+  acc.taperScratch = undefined;
   let poorlyExposedCount = 0;
   for (let i = 0; i < n; i++) if (acc.coverage[i] === 0) poorlyExposedCount++;
   const total = acc.frameWeight.reduce((s, w) => s + w, 0);

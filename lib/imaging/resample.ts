@@ -42,9 +42,8 @@ export interface WarpTarget {
 /**
  * Warps planes: out(u, v) = src(M(origin + step (u, v))), with M the master to
  * frame map. `covered` marks output pixels whose source point lies inside the
- * frame; outside, the output is 0. Edges clamp. Bicubic rows are done in two
- * passes (positions and weights once, then each plane in a tight loop), since
- * the weights serve every colour plane.
+ * frame; outside, the output is 0. Edges clamp. Each output pixel's position
+ * and weights are found once and serve every colour plane.
  */
 export function warpPlanes(
   planes: Float32Array[],
@@ -65,14 +64,16 @@ export function warpPlanes(
   const channels = planes.length;
   const maxX = srcWidth - 1;
   const maxY = srcHeight - 1;
-  // Per-row scratch: 0 outside, 1 interior (no clamping), 2 near an edge.
-  const kind = new Uint8Array(width);
-  const base = new Int32Array(width);
-  const fxs = new Int32Array(width);
-  const fys = new Int32Array(width);
-  const weights = new Float64Array(width * 8);
   const wx = new Float64Array(4);
   const wy = new Float64Array(4);
+  if (kernel === "bicubic") {
+    for (let v = 0; v < height; v++) {
+      const my = oy + v * step;
+      const row = v * width;
+      for (let u = 0; u < width; u++) covered[row + u] = sampleBicubicPixel(planes, out, row + u, srcWidth, maxX, maxY, a * (ox + u * step) - b * my + tx, b * (ox + u * step) + a * my + ty, wx, wy);
+    }
+    return { planes: out, covered };
+  }
   for (let v = 0; v < height; v++) {
     const my = oy + v * step;
     const row = v * width;
@@ -81,60 +82,83 @@ export function warpPlanes(
       const sx = a * mx - b * my + tx;
       const sy = b * mx + a * my + ty;
       if (!(sx >= -0.5 && sy >= -0.5 && sx <= maxX + 0.5 && sy <= maxY + 0.5)) {
-        kind[u] = 0;
         covered[row + u] = 0;
+        for (let c = 0; c < channels; c++) out[c][row + u] = 0;
         continue;
       }
       covered[row + u] = 1;
       const fx = Math.floor(sx);
       const fy = Math.floor(sy);
-      fxs[u] = fx;
-      fys[u] = fy;
-      if (kernel === "bilinear") {
-        weights[u * 8] = sx - fx;
-        weights[u * 8 + 1] = sy - fy;
-        kind[u] = 2;
-        continue;
-      }
-      computeKeysWeights(sx - fx, weights, u * 8);
-      computeKeysWeights(sy - fy, weights, u * 8 + 4);
-      if (fx >= 1 && fy >= 1 && fx + 2 <= maxX && fy + 2 <= maxY) {
-        kind[u] = 1;
-        base[u] = (fy - 1) * srcWidth + fx - 1;
-      } else kind[u] = 2;
-    }
-    for (let c = 0; c < channels; c++) {
-      const p = planes[c];
-      const o = out[c];
-      for (let u = 0; u < width; u++) {
-        const k = kind[u];
-        if (k === 1) {
-          const w = u * 8;
-          const w0 = weights[w], w1 = weights[w + 1], w2 = weights[w + 2], w3 = weights[w + 3];
-          let r = base[u];
-          let sum = weights[w + 4] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
-          r += srcWidth;
-          sum += weights[w + 5] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
-          r += srcWidth;
-          sum += weights[w + 6] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
-          r += srcWidth;
-          sum += weights[w + 7] * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
-          o[row + u] = sum;
-        } else if (k === 0) {
-          o[row + u] = 0;
-        } else if (kernel === "bilinear") {
-          o[row + u] = sampleBilinearClamped(p, srcWidth, maxX, maxY, fxs[u], fys[u], weights[u * 8], weights[u * 8 + 1]);
-        } else {
-          for (let t = 0; t < 4; t++) {
-            wx[t] = weights[u * 8 + t];
-            wy[t] = weights[u * 8 + 4 + t];
-          }
-          o[row + u] = sampleBicubicClamped(p, srcWidth, maxX, maxY, fxs[u], fys[u], wx, wy);
-        }
-      }
+      for (let c = 0; c < channels; c++) out[c][row + u] = sampleBilinearClamped(planes[c], srcWidth, maxX, maxY, fx, fy, sx - fx, sy - fy);
     }
   }
   return { planes: out, covered };
+}
+
+/**
+ * One output pixel of the bicubic warp, every plane: the source point (sx, sy),
+ * Keys weights for its 4 x 4 neighbourhood, then each plane's weighted sum (rows
+ * first, in the order warpPlanes always used), written to out[c][o]. Returns 1
+ * where the point lies inside the frame (up to half a pixel beyond its edge
+ * pixels), else 0 with every plane 0. `wx` and `wy` are scratch of 4.
+ */
+function sampleBicubicPixel(
+  planes: Float32Array[], out: Float32Array[], o: number, srcWidth: number, maxX: number, maxY: number,
+  sx: number, sy: number, wx: Float64Array, wy: Float64Array,
+): number {
+  const channels = planes.length;
+  if (!(sx >= -0.5 && sy >= -0.5 && sx <= maxX + 0.5 && sy <= maxY + 0.5)) {
+    for (let c = 0; c < channels; c++) out[c][o] = 0;
+    return 0;
+  }
+  const fx = Math.floor(sx);
+  const fy = Math.floor(sy);
+  computeKeysWeights(sx - fx, wx, 0);
+  computeKeysWeights(sy - fy, wy, 0);
+  if (!(fx >= 1 && fy >= 1 && fx + 2 <= maxX && fy + 2 <= maxY)) {
+    for (let c = 0; c < channels; c++) out[c][o] = sampleBicubicClamped(planes[c], srcWidth, maxX, maxY, fx, fy, wx, wy);
+    return 1;
+  }
+  const w0 = wx[0], w1 = wx[1], w2 = wx[2], w3 = wx[3];
+  const v0 = wy[0], v1 = wy[1], v2 = wy[2], v3 = wy[3];
+  const base = (fy - 1) * srcWidth + fx - 1;
+  for (let c = 0; c < channels; c++) {
+    const p = planes[c];
+    let r = base;
+    let sum = v0 * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+    r += srcWidth;
+    sum += v1 * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+    r += srcWidth;
+    sum += v2 * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+    r += srcWidth;
+    sum += v3 * (w0 * p[r] + w1 * p[r + 1] + w2 * p[r + 2] + w3 * p[r + 3]);
+    out[c][o] = sum;
+  }
+  return 1;
+}
+
+/**
+ * The bicubic warp (as warpPlanes) at single master pixels: out[c][j] and
+ * covered[j] for master point (xs[j], ys[j]), each value the one warpPlanes
+ * gives there, bit for bit.
+ */
+export function warpPlanesAtPoints(
+  planes: Float32Array[],
+  srcWidth: number,
+  srcHeight: number,
+  masterToFrame: AffineSimilarity,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  out: Float32Array[],
+  covered: Uint8Array,
+): void {
+  const { a, b, tx, ty } = masterToFrame;
+  const wx = new Float64Array(4);
+  const wy = new Float64Array(4);
+  for (let j = 0; j < xs.length; j++) {
+    const mx = xs[j], my = ys[j];
+    covered[j] = sampleBicubicPixel(planes, out, j, srcWidth, srcWidth - 1, srcHeight - 1, a * mx - b * my + tx, b * mx + a * my + ty, wx, wy);
+  }
 }
 
 function sampleBilinearClamped(p: Float32Array, srcWidth: number, maxX: number, maxY: number, fx: number, fy: number, dx: number, dy: number): number {
@@ -189,4 +213,65 @@ export function warpMask(
     }
   }
   return out;
+}
+
+/**
+ * warpMask for several masks of one frame at once (each source position found
+ * once): out[m] is masks[m] warped, outside[m] beyond the frame; into[m], when of
+ * the output's size, is reused.
+ */
+export function warpMasks(
+  masks: Uint8Array[],
+  srcWidth: number,
+  srcHeight: number,
+  masterToFrame: AffineSimilarity,
+  window: WarpWindow,
+  outside: number[],
+  into: (Uint8Array | undefined)[] = [],
+): Uint8Array[] {
+  const { width, height } = window;
+  const ox = window.originX ?? 0;
+  const oy = window.originY ?? 0;
+  const step = window.step ?? 1;
+  const count = masks.length;
+  // Every output pixel is written below, so a reused buffer needs no clearing.
+  const out = masks.map((_, m) => (into[m]?.length === width * height ? into[m]! : new Uint8Array(width * height)));
+  const { a, b, tx, ty } = masterToFrame;
+  for (let v = 0; v < height; v++) {
+    const my = oy + v * step;
+    const row = v * width;
+    for (let u = 0; u < width; u++) {
+      const mx = ox + u * step;
+      const sx = Math.round(a * mx - b * my + tx);
+      const sy = Math.round(b * mx + a * my + ty);
+      if (sx >= 0 && sy >= 0 && sx < srcWidth && sy < srcHeight) {
+        const at = sy * srcWidth + sx;
+        for (let m = 0; m < count; m++) out[m][row + u] = masks[m][at];
+      } else {
+        for (let m = 0; m < count; m++) out[m][row + u] = outside[m];
+      }
+    }
+  }
+  return out;
+}
+
+/** warpMasks at single master points (xs[j], ys[j]): out[m][j], bit for bit what warpMask gives there. */
+export function warpMasksAtPoints(
+  masks: Uint8Array[],
+  srcWidth: number,
+  srcHeight: number,
+  masterToFrame: AffineSimilarity,
+  xs: ArrayLike<number>,
+  ys: ArrayLike<number>,
+  outside: number[],
+  out: Uint8Array[],
+): void {
+  const { a, b, tx, ty } = masterToFrame;
+  for (let j = 0; j < xs.length; j++) {
+    const mx = xs[j], my = ys[j];
+    const sx = Math.round(a * mx - b * my + tx);
+    const sy = Math.round(b * mx + a * my + ty);
+    const inside = sx >= 0 && sy >= 0 && sx < srcWidth && sy < srcHeight;
+    for (let m = 0; m < masks.length; m++) out[m][j] = inside ? masks[m][sy * srcWidth + sx] : outside[m];
+  }
 }

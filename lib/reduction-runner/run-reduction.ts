@@ -6,6 +6,7 @@
 import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
+import type { MergeAccumulator } from "@/lib/imaging/merge";
 import { planBracket } from "@/lib/imaging/bracket-plan";
 import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
 import type { LinearFrame } from "@/lib/imaging/types";
@@ -18,6 +19,7 @@ import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
 import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
 import { createPreparePool } from "./prepare-pool";
+import { createWarpCache } from "./warp-cache";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput, type StagedOutput } from "./output-dir";
 import type { HelioGeometry } from "./helio-wcs";
 import type { SiteSpec } from "./sky-site";
@@ -116,19 +118,26 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
  * giving the event loop a turn after the plan and after every frame merged, so
  * that a worker's job lock is renewed during a long reduction.
  */
-async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined): Promise<ReductionResult> {
+async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined, scratchDir?: string): Promise<ReductionResult> {
   const { plan, ready } = planBracket(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) });
   await yieldToEventLoop();
   // The merge passes read each frame once in order: a cache would only hold memory the accumulators need.
   spill?.setCacheBytes(0);
   const started = performance.now();
-  const steps = mergeKeptFramesInSteps(plan, frames, ready, progress);
-  let step = steps.next();
-  while (!step.done) {
-    await yieldToEventLoop();
-    step = steps.next();
+  // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
+  const cache = spill ? createWarpCache({ parentDir: scratchDir }) : undefined;
+  let acc: MergeAccumulator;
+  try {
+    const steps = mergeKeptFramesInSteps(plan, frames, ready, progress, cache);
+    let step = steps.next();
+    while (!step.done) {
+      await yieldToEventLoop();
+      step = steps.next();
+    }
+    acc = step.value;
+  } finally {
+    cache?.close();
   }
-  const acc = step.value;
   return finishBracket(plan, acc, progress, performance.now() - started);
 }
 
@@ -179,7 +188,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
 
     // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
     const prepared = sky.pipelineParams.clipFraction === params.clipFraction ? decodedBracket.prepared : [];
-    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, progress, spill);
+    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, progress, spill, options.scratchDir);
     spill?.close();
     decodedBracket.prepared.length = 0;
     const helio = sky.completeGeometry(result);

@@ -5,7 +5,7 @@ export const MAILBOX = `http://127.0.0.1:${process.env.MAILBOX_PORT ?? 1080}`;
 
 export function requireTestDatabase(): string {
   const url = process.env.DATABASE_URL ?? "";
-  if (!/\/crownlight_test(_lane\d)?$/.test(url)) {
+  if (!/\/crownlight_test(_lane\d{1,2})?$/.test(url)) {
     throw new Error(`integration tests need the test database (run them through npm test); DATABASE_URL is ${url || "unset"}`);
   }
   return url;

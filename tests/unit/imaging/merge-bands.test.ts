@@ -5,7 +5,7 @@
 // warped), a satellite trail (so the outlier test takes pixels out) and hot pixels
 // found in the bracket (so defects are repaired for the warp and put back after).
 import { describe, expect, it } from "vitest";
-import { addKeptFrame, createMergePass, createWarpScratch } from "@/lib/imaging/bracket-finish";
+import { addKeptFrame, createMergePass, createWarpScratch, type WarpCache } from "@/lib/imaging/bracket-finish";
 import { planBracket } from "@/lib/imaging/bracket-plan";
 import { addFrameToMerge, finishMerge, toPilot, type MergeAccumulator, type MergeResult } from "@/lib/imaging/merge";
 import { warpFrameForMerge } from "@/lib/imaging/pipeline";
@@ -43,18 +43,42 @@ function expectSameMerge(a: MergeResult, b: MergeResult): void {
   for (let c = 0; c < a.radiance.length; c++) expect(Buffer.from(b.radiance[c].buffer).equals(Buffer.from(a.radiance[c].buffer)), `plane ${c}`).toBe(true);
 }
 
+/** A WarpCache in memory with room for `frames` frames; counts the frames whose sample part was read. */
+function createMemoryWarpCache(frames: number): WarpCache & { taken: number; left: () => number } {
+  const parts = new Map<string, (Float32Array | Uint8Array)[]>();
+  let room = frames;
+  const cache = {
+    taken: 0,
+    left: () => parts.size,
+    reserve: () => room-- > 0,
+    put: (position: number, part: number, arrays: (Float32Array | Uint8Array)[]) => {
+      parts.set(`${position}-${part}`, arrays.map((a) => a.slice()));
+      return true;
+    },
+    take: (position: number, part: number, into: (Float32Array | Uint8Array)[]) => {
+      const kept = parts.get(`${position}-${part}`);
+      if (!kept) return undefined;
+      parts.delete(`${position}-${part}`);
+      if (part === 0) cache.taken++;
+      kept.forEach((a, j) => into[j].set(a));
+      return kept.map((a) => a.length);
+    },
+  };
+  return cache;
+}
+
 describe("merging a frame band by band", () => {
   const frames = makeBracket();
   const { plan, ready } = planBracket(frames, [], DEFAULT_REDUCTION_PARAMS);
   // Both passes with each frame added by `add`.
   // Both passes with each frame added by `add`; the outlier scores as they stood before the finish.
-  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void): MergeResult & { scores: Float32Array } => {
+  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void): MergeResult & { scores: Float32Array; pixels: Int32Array } => {
     const first = createMergePass(plan);
     plan.keep.forEach((_, i) => add(first, i));
     const second = createMergePass(plan, toPilot(first));
     plan.keep.forEach((_, i) => add(second, i));
-    const scores = Float32Array.from(second.worst!.score);
-    return { ...finishMerge(second), scores };
+    const { score, pixel } = second.worst!;
+    return { ...finishMerge(second), scores: Float32Array.from(score), pixels: Int32Array.from(pixel) };
   };
 
   it("gives the whole-frame merge bit for bit, with bands of any height", () => {
@@ -73,8 +97,19 @@ describe("merging a frame band by band", () => {
       expect(scratch.planes[0].length).toBe(rows * W);
       const banded = mergeWith((acc, i) => addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch));
       expectSameMerge(plain, banded);
-      // The scores themselves, so that a frame's z scale measured on another sample would show.
+      // The worst-frame record itself (pixels and scores), so that a frame's z scale measured on another sample would show.
+      expect(Buffer.from(banded.pixels.buffer).equals(Buffer.from(plain.pixels.buffer)), `${rows} rows`).toBe(true);
       expect(Buffer.from(banded.scores.buffer).equals(Buffer.from(plain.scores.buffer)), `${rows} rows`).toBe(true);
+    }
+    // The second pass reading the bands the first pass kept (and warping again the frames the cache had no room for) gives the same.
+    for (const roomFor of [Infinity, 3]) {
+      const scratch = createWarpScratch(plan, 64);
+      const cache = createMemoryWarpCache(roomFor);
+      const cached = mergeWith((acc, i) => addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch, cache));
+      expectSameMerge(plain, cached);
+      expect(Buffer.from(cached.scores.buffer).equals(Buffer.from(plain.scores.buffer)), `room for ${roomFor} frames`).toBe(true);
+      expect(cache.taken, `room for ${roomFor} frames`).toBe(Math.min(roomFor, EXPOSURES.length));
+      expect(cache.left(), "every part kept was read once").toBe(0);
     }
     // The defects the warp repaired were put back: the frames are as they came.
     frames.forEach((f, i) => f.image.planes.forEach((p, c) => expect(Buffer.from(p.buffer).equals(Buffer.from(before[i][c].buffer)), `${f.name} plane ${c}`).toBe(true)));

@@ -41,8 +41,20 @@ describe("merging a bracket in slices", () => {
     for (let c = 0; c < 3; c++) {
       for (let i = 0; i < W * H; i++) expect(Math.abs(pilotParts.sums[c][i] - pilotWhole.sums[c][i])).toBeLessThanOrEqual(1e-6 * Math.abs(pilotWhole.sums[c][i]) + 1e-6);
     }
-    const whole = finishMerge(mergeAll(inputs, pilotWhole));
-    const sliced = finishMerge(combineMergeAccumulators([mergeAll(inputs.slice(0, 2), pilotWhole), mergeAll(inputs.slice(2, 6), pilotWhole), mergeAll(inputs.slice(6), pilotWhole)]));
+    const wholeAcc = mergeAll(inputs, pilotWhole);
+    const slicedAcc = combineMergeAccumulators([mergeAll(inputs.slice(0, 2), pilotWhole), mergeAll(inputs.slice(2, 6), pilotWhole), mergeAll(inputs.slice(6), pilotWhole)]);
+    // The worst-frame record: the same pixels, frames and scores; listed once each, in master order, only above the wings' threshold.
+    const record = wholeAcc.worst!;
+    expect(Array.from(slicedAcc.worst!.pixel)).toEqual(Array.from(record.pixel));
+    expect(Array.from(slicedAcc.worst!.frame)).toEqual(Array.from(record.frame));
+    expect(Array.from(slicedAcc.worst!.score)).toEqual(Array.from(record.score));
+    for (let j = 1; j < record.pixel.length; j++) expect(record.pixel[j]).toBeGreaterThan(record.pixel[j - 1]);
+    expect(Math.min(...record.score)).toBeGreaterThan(2.5);
+    // The trail's frame is listed along the trail; the record holds a small share of the pixels.
+    expect(record.frame.filter((f) => f === 3).length).toBeGreaterThan(100);
+    expect(record.pixel.length).toBeLessThan(0.2 * W * H);
+    const whole = finishMerge(wholeAcc);
+    const sliced = finishMerge(slicedAcc);
     expect(sliced.frameStats).toEqual(whole.frameStats);
     // The trail's frame lost pixels to the outlier test (so the test exercises it), the same in both.
     expect(whole.frameStats[3].rejectedFraction).toBeGreaterThan(0.005);
