@@ -144,21 +144,22 @@ export function blurGaussianFast(
   return out;
 }
 
+/** The denominator of blurGaussianMasked, m * g: one blur serves every plane masked alike. */
+export function blurMaskWeights(valid: Uint8Array, width: number, height: number, sigmaPx: number): Float32Array {
+  const weights = new Float32Array(valid.length);
+  for (let i = 0; i < valid.length; i++) if (valid[i]) weights[i] = 1;
+  return blurGaussian(weights, width, height, sigmaPx);
+}
+
 /**
  * Gaussian blur of the valid pixels only, by normalized convolution (Knutsson and
  * Westin 1993, CVPR): (m B) * g / (m * g). Pixels with no valid weight nearby get 0.
+ * `den` may be blurMaskWeights of the same mask, made once for several planes.
  */
-export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width: number, height: number, sigmaPx: number): Float32Array {
+export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width: number, height: number, sigmaPx: number, den = blurMaskWeights(valid, width, height, sigmaPx)): Float32Array {
   const weighted = new Float32Array(plane.length);
-  const weights = new Float32Array(plane.length);
-  for (let i = 0; i < plane.length; i++) {
-    if (valid[i]) {
-      weighted[i] = plane[i];
-      weights[i] = 1;
-    }
-  }
+  for (let i = 0; i < plane.length; i++) if (valid[i]) weighted[i] = plane[i];
   const num = blurGaussian(weighted, width, height, sigmaPx);
-  const den = blurGaussian(weights, width, height, sigmaPx);
   for (let i = 0; i < num.length; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
   return num;
 }

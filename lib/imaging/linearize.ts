@@ -2,6 +2,7 @@
 // clipped mask and the noise-floor mask.
 import { dilateMask } from "./blur";
 import { ImagingError } from "./errors";
+import { findKthSmallest } from "./select";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import type { LinearFrame } from "./types";
 
@@ -72,25 +73,33 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
   const block = 8;
   const bw = Math.ceil(width / block);
   const bh = Math.ceil(height / block);
+  // Each block's sum adds its pixels in the order of a row-major walk, so the
+  // sums (and the means) are those of the plain per-pixel loop, without its divisions.
   const blockSum = new Float64Array(bw * bh);
-  const blockCount = new Uint32Array(bw * bh);
   for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const b = ((y / block) | 0) * bw + ((x / block) | 0);
-      blockSum[b] += plane[y * width + x];
-      blockCount[b]++;
+    const row = (y >> 3) * bw;
+    const o = y * width;
+    for (let bx = 0, x = 0; bx < bw; bx++) {
+      const end = Math.min(width, x + block);
+      let sum = blockSum[row + bx];
+      for (; x < end; x++) sum += plane[o + x];
+      blockSum[row + bx] = sum;
     }
   }
   const means = new Float64Array(bw * bh);
-  for (let b = 0; b < means.length; b++) means[b] = blockSum[b] / blockCount[b];
-  const darkLimit = Float64Array.from(means).sort()[Math.floor(means.length * 0.25)];
+  for (let by = 0; by < bh; by++) {
+    const rows = Math.min(block, height - by * block);
+    for (let bx = 0; bx < bw; bx++) means[by * bw + bx] = blockSum[by * bw + bx] / (rows * Math.min(block, width - bx * block));
+  }
+  const darkLimit = findKthSmallest(Float64Array.from(means), Math.floor(means.length * 0.25)) as number;
   // Every pixel of a small frame; a regular sub-sample of about 250 000 from a large one.
   const step = Math.max(1, Math.round(Math.sqrt((width * height) / 250_000)));
   const responses = new Float32Array(Math.ceil(height / step) * Math.ceil(width / step));
   let count = 0;
   for (let y = 1; y < height - 1; y += step) {
+    const meansRow = (y >> 3) * bw;
     for (let x = 1; x < width - 1; x += step) {
-      if (means[((y / block) | 0) * bw + ((x / block) | 0)] > darkLimit) continue;
+      if (means[meansRow + (x >> 3)] > darkLimit) continue;
       const i = y * width + x;
       const v =
         plane[i - width - 1] - 2 * plane[i - width] + plane[i - width + 1] -
@@ -100,8 +109,7 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
     }
   }
   if (count === 0) return 0;
-  const d = responses.subarray(0, count).sort();
-  return d[count >> 1] / (6 * 0.6745);
+  return (findKthSmallest(responses.subarray(0, count), count >> 1) as number) / (6 * 0.6745);
 }
 
 export interface LinearizeOptions {
