@@ -236,22 +236,22 @@ export function patchDefects(plane: Float32Array, masked: Uint8Array, width: num
 function writeRepairs(plane: Float32Array, masked: Uint8Array, width: number, height: number, out: Float32Array, saved?: { index: number[]; value: number[] }): void {
   if (masked.length !== plane.length) throw new ImagingError("size-mismatch", `defect map has ${masked.length} pixels, the frame ${plane.length}`);
   const around: number[] = [];
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const i = y * width + x;
-      if (!masked[i]) continue;
-      around.length = 0;
-      for (let v = Math.max(0, y - 1); v <= Math.min(height - 1, y + 1); v++) {
-        for (let u = Math.max(0, x - 1); u <= Math.min(width - 1, x + 1); u++) if (!masked[v * width + u]) around.push(plane[v * width + u]);
+  // Defects are few: the walk looks for them in one tight loop, in row-major order as before.
+  for (let i = 0; i < masked.length; i++) {
+    if (!masked[i]) continue;
+    const y = (i / width) | 0;
+    const x = i - y * width;
+    around.length = 0;
+    for (let v = Math.max(0, y - 1); v <= Math.min(height - 1, y + 1); v++) {
+      for (let u = Math.max(0, x - 1); u <= Math.min(width - 1, x + 1); u++) if (!masked[v * width + u]) around.push(plane[v * width + u]);
+    }
+    if (around.length > 0) {
+      around.sort((a, b) => a - b);
+      if (saved) {
+        saved.index.push(i);
+        saved.value.push(plane[i]);
       }
-      if (around.length > 0) {
-        around.sort((a, b) => a - b);
-        if (saved) {
-          saved.index.push(i);
-          saved.value.push(plane[i]);
-        }
-        out[i] = around[around.length >> 1];
-      }
+      out[i] = around[around.length >> 1];
     }
   }
 }
