@@ -148,7 +148,7 @@ export function blurGaussianFast(
 export function blurMaskWeights(valid: Uint8Array, width: number, height: number, sigmaPx: number): Float32Array {
   const weights = new Float32Array(valid.length);
   for (let i = 0; i < valid.length; i++) if (valid[i]) weights[i] = 1;
-  return blurGaussian(weights, width, height, sigmaPx);
+  return blurGaussian(weights, width, height, sigmaPx, weights);
 }
 
 /**
@@ -159,7 +159,8 @@ export function blurMaskWeights(valid: Uint8Array, width: number, height: number
 export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width: number, height: number, sigmaPx: number, den = blurMaskWeights(valid, width, height, sigmaPx)): Float32Array {
   const weighted = new Float32Array(plane.length);
   for (let i = 0; i < plane.length; i++) if (valid[i]) weighted[i] = plane[i];
-  const num = blurGaussian(weighted, width, height, sigmaPx);
+  // Blurred in place: the same numbers as into a copy, without the copy.
+  const num = blurGaussian(weighted, width, height, sigmaPx, weighted);
   for (let i = 0; i < num.length; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
   return num;
 }

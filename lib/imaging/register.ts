@@ -334,7 +334,8 @@ function windowPair(fa: Float64Array, fb: Float64Array, common: Uint8Array, regi
   const size = nextPowerOfTwo(Math.max(width, height));
   const u0 = Math.floor((size - width) / 2);
   const v0 = Math.floor((size - height) / 2);
-  const soft = blurGaussian(Float32Array.from(common), width, height, 2);
+  const ones = Float32Array.from(common);
+  const soft = blurGaussian(ones, width, height, 2, ones);
   const wa = new Float64Array(size * size);
   const wb = new Float64Array(size * size);
   const wxs = new Float64Array(width);

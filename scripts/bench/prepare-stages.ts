@@ -4,7 +4,9 @@
 // the results (defect count, limb fits, transforms) go to a JSON file so that two
 // versions of the code can be compared on the same input.
 // Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
-import { readFileSync, writeFileSync } from "node:fs";
+// --stages runner reduces the picked frames whole instead, and prints each stage's cores busy.
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
 import { findBadPixelsFromBracket } from "@/lib/imaging/calibrate-defects";
 import { fitLimb } from "@/lib/imaging/limb-fit";
@@ -12,6 +14,7 @@ import { linearizeFrame } from "@/lib/imaging/linearize";
 import { registerFrames, type RegistrationFrame } from "@/lib/imaging/register";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
+import { runReductionOnFiles } from "@/lib/reduction-runner";
 
 interface Args {
   dir: string;
@@ -37,10 +40,46 @@ function readArgs(argv: string[]): Args {
   return args;
 }
 
+/**
+ * The whole single-process reduction (runReductionOnFiles) on the picked frames,
+ * with the wall time, CPU time (every thread of this process) and cores busy of
+ * each stage the reduction reports, from one report of progress to the next stage's.
+ */
+async function measureRunner(picked: { path: string; exposureS: number }[], out?: string): Promise<void> {
+  const scratch = mkdtempSync(join(tmpdir(), "crownlight-prepare-stages-"));
+  const rows: { stage: string; wallMs: number; cpuMs: number }[] = [];
+  let current = "";
+  let wall = performance.now();
+  let cpu = process.cpuUsage();
+  const close = () => {
+    const used = process.cpuUsage(cpu);
+    rows.push({ stage: current, wallMs: performance.now() - wall, cpuMs: (used.user + used.system) / 1000 });
+    wall = performance.now();
+    cpu = process.cpuUsage();
+  };
+  try {
+    const { report } = await runReductionOnFiles({
+      files: picked.map((p) => p.path), outDir: join(scratch, "out"), exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])),
+      onProgress: (stage) => {
+        if (stage === current) return;
+        if (current) close();
+        current = stage;
+      },
+    });
+    close();
+    console.log("stage                  wall       CPU  cores busy");
+    for (const r of rows) if (r.wallMs >= 50) console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)}`);
+    if (out) writeFileSync(out, `${JSON.stringify({ stages: rows, frames: report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform })) }, null, 2)}\n`);
+  } finally {
+    rmSync(scratch, { recursive: true, force: true });
+  }
+}
+
 async function main(): Promise<void> {
   const args = readArgs(process.argv.slice(2));
   const list = JSON.parse(readFileSync(join(args.dir, "frames.json"), "utf8")) as { files: string[]; exposuresS: number[] };
   const picked = list.files.slice(args.first, args.first + args.frames).map((f, k) => ({ path: join(args.dir, f), exposureS: list.exposuresS[args.first + k] }));
+  if (args.stages.has("runner")) return measureRunner(picked, args.out);
   // Wall time and this process's CPU time per stage: on a shared machine the CPU time is the fairer measure.
   const times: Record<string, number> = {};
   const cpuTimes: Record<string, number> = {};
