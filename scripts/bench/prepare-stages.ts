@@ -4,7 +4,7 @@
 // the results (defect count, limb fits, transforms) go to a JSON file so that two
 // versions of the code can be compared on the same input.
 // Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
-// --stages runner reduces the picked frames whole instead, and prints each stage's cores busy.
+// --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy.
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -22,6 +22,7 @@ interface Args {
   first: number;
   out?: string;
   stages: Set<string>;
+  spill?: "auto" | "always" | "never";
 }
 
 function readArgs(argv: string[]): Args {
@@ -33,6 +34,7 @@ function readArgs(argv: string[]): Args {
     else if (argv[k] === "--first") args.first = Number(value);
     else if (argv[k] === "--out") args.out = value;
     else if (argv[k] === "--stages") args.stages = new Set(value.split(","));
+    else if (argv[k] === "--spill") args.spill = value as Args["spill"];
     else continue;
     k++;
   }
@@ -45,7 +47,7 @@ function readArgs(argv: string[]): Args {
  * with the wall time, CPU time (every thread of this process) and cores busy of
  * each stage the reduction reports, from one report of progress to the next stage's.
  */
-async function measureRunner(picked: { path: string; exposureS: number }[], out?: string): Promise<void> {
+async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"]): Promise<void> {
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-prepare-stages-"));
   const rows: { stage: string; wallMs: number; cpuMs: number }[] = [];
   let current = "";
@@ -59,7 +61,7 @@ async function measureRunner(picked: { path: string; exposureS: number }[], out?
   };
   try {
     const { report } = await runReductionOnFiles({
-      files: picked.map((p) => p.path), outDir: join(scratch, "out"), exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])),
+      files: picked.map((p) => p.path), outDir: join(scratch, "out"), exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
       onProgress: (stage) => {
         if (stage === current) return;
         if (current) close();
@@ -79,7 +81,7 @@ async function main(): Promise<void> {
   const args = readArgs(process.argv.slice(2));
   const list = JSON.parse(readFileSync(join(args.dir, "frames.json"), "utf8")) as { files: string[]; exposuresS: number[] };
   const picked = list.files.slice(args.first, args.first + args.frames).map((f, k) => ({ path: join(args.dir, f), exposureS: list.exposuresS[args.first + k] }));
-  if (args.stages.has("runner")) return measureRunner(picked, args.out);
+  if (args.stages.has("runner")) return measureRunner(picked, args.out, args.spill);
   // Wall time and this process's CPU time per stage: on a shared machine the CPU time is the fairer measure.
   const times: Record<string, number> = {};
   const cpuTimes: Record<string, number> = {};
