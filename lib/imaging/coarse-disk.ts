@@ -15,26 +15,36 @@ const THRESHOLD_FRACTIONS = [0.5, 0.3, 0.18, 0.1, 0.05, 0.025, 0.012];
 
 /** Box-mean downsampling by an integer factor (partial edge cells averaged over what they hold). */
 export function downsampleMean(plane: Float32Array, width: number, height: number, factor: number): { data: Float32Array; width: number; height: number } {
-  // downsampleMeanOf's sums in its order (row by row, left to right), without a call per pixel.
   const w = Math.ceil(width / factor);
   const h = Math.ceil(height / factor);
-  const sum = new Float64Array(w * h);
+  return { data: averageBoxes(plane, width, height, factor, new Float32Array(w * h)), width: w, height: h };
+}
+
+/**
+ * Means of factor x factor boxes (partial at the right and bottom edges) into
+ * `out` (ceil(width / factor) x ceil(height / factor)), each box's sum adding its
+ * pixels in the order of a row-major walk: the numbers of the plain per-pixel loop
+ * (downsampleMeanOf's), without a call or a division per pixel.
+ */
+export function averageBoxes<T extends Float32Array | Float64Array>(plane: Float32Array, width: number, height: number, factor: number, out: T): T {
+  const w = Math.ceil(width / factor);
+  const h = Math.ceil(height / factor);
+  const sums = new Float64Array(w * h);
   for (let y = 0; y < height; y++) {
     const row = ((y / factor) | 0) * w;
     const o = y * width;
     for (let j = 0, x = 0; j < w; j++) {
       const end = Math.min(width, x + factor);
-      let s = sum[row + j];
+      let s = sums[row + j];
       for (; x < end; x++) s += plane[o + x];
-      sum[row + j] = s;
+      sums[row + j] = s;
     }
   }
-  const data = new Float32Array(w * h);
   for (let k = 0; k < h; k++) {
     const rows = Math.min(factor, height - k * factor);
-    for (let j = 0; j < w; j++) data[k * w + j] = sum[k * w + j] / (rows * Math.min(factor, width - j * factor));
+    for (let j = 0; j < w; j++) out[k * w + j] = sums[k * w + j] / (rows * Math.min(factor, width - j * factor));
   }
-  return { data, width: w, height: h };
+  return out;
 }
 
 /** The same, of any per-pixel value (e.g. a luminance computed on the fly, never stored at full size). */

@@ -1,6 +1,7 @@
 // Frame linearization and masks: black level, white level, 8-bit decode, the
 // clipped mask and the noise-floor mask.
 import { dilateMask } from "./blur";
+import { averageBoxes } from "./coarse-disk";
 import { ImagingError } from "./errors";
 import { findKthSmallest } from "./select";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
@@ -72,25 +73,7 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
   // which would pick pixels with negative noise and bias the estimate upward.
   const block = 8;
   const bw = Math.ceil(width / block);
-  const bh = Math.ceil(height / block);
-  // Each block's sum adds its pixels in the order of a row-major walk, so the
-  // sums (and the means) are those of the plain per-pixel loop, without its divisions.
-  const blockSum = new Float64Array(bw * bh);
-  for (let y = 0; y < height; y++) {
-    const row = (y >> 3) * bw;
-    const o = y * width;
-    for (let bx = 0, x = 0; bx < bw; bx++) {
-      const end = Math.min(width, x + block);
-      let sum = blockSum[row + bx];
-      for (; x < end; x++) sum += plane[o + x];
-      blockSum[row + bx] = sum;
-    }
-  }
-  const means = new Float64Array(bw * bh);
-  for (let by = 0; by < bh; by++) {
-    const rows = Math.min(block, height - by * block);
-    for (let bx = 0; bx < bw; bx++) means[by * bw + bx] = blockSum[by * bw + bx] / (rows * Math.min(block, width - bx * block));
-  }
+  const means = averageBoxes(plane, width, height, block, new Float64Array(bw * Math.ceil(height / block)));
   const darkLimit = findKthSmallest(Float64Array.from(means), Math.floor(means.length * 0.25)) as number;
   // Every pixel of a small frame; a regular sub-sample of about 250 000 from a large one.
   const step = Math.max(1, Math.round(Math.sqrt((width * height) / 250_000)));

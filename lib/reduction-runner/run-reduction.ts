@@ -207,7 +207,12 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       await pool.close();
     }
     const registrationMode = sky.registrationMode;
-    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, progress, spill);
+    // The pool has reported the frames prepared; the pipeline's first stage, which only takes them
+    // (or prepares the few a worker could not), would count them again from one.
+    const pipelineProgress: RunProgressFn = (stage, fraction, count) => {
+      if (stage !== "linearize" && stage !== "limb") progress(stage, fraction, count);
+    };
+    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, pipelineProgress, spill);
     spill?.close();
     prepared.length = 0;
     const helio = sky.completeGeometry(result);

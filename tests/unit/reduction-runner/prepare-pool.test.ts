@@ -19,7 +19,7 @@ let pool: PreparePool;
 beforeAll(async () => {
   fixture = await writeBracketFixture();
   pool = createPreparePool();
-});
+}, 180_000);
 afterAll(async () => {
   await pool.close();
   rmSync(dirname(fixture.dir), { recursive: true, force: true });
