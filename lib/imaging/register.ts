@@ -195,8 +195,8 @@ function createSourceImage(frame: RegistrationFrame, step: number): SourceImage 
 /** A frame's source image at a step; registerFrames keeps recent ones (createSourceCache). */
 export type SourceImages = (frame: RegistrationFrame, step: number) => SourceImage;
 
-/** Bytes of source images registerFrames keeps: a chain compares each frame with a recent one. */
-const SOURCE_CACHE_BYTES = 256 * 1024 ** 2;
+/** Bytes of source images registerFrames keeps: a chain compares each frame with one registered just before, so a few suffice (about four at 24 megapixels). */
+const SOURCE_CACHE_BYTES = 128 * 1024 ** 2;
 
 /**
  * createSourceImage, remembering the most recently used images up to a byte
