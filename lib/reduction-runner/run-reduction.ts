@@ -180,9 +180,9 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   try {
     progress("decode", 0);
     // Two worker threads decode the frames and search each for the bracket's defects;
-    // once the bracket is calibrated (or its defects masked) and the sky known, they
-    // linearize and fit the limbs, and the pipeline takes those results as its own
-    // first stage would have made them. Both cores work in both.
+    // once the bracket is calibrated (or its defects masked), they linearize and fit
+    // the limbs, and the sky geometry and the pipeline take those results as their own
+    // first steps would have made them. Both cores work in both.
     const masters = await loadCalibrationMasters(options.calibrationFiles, overrides);
     const pool = createPreparePool();
     let frames: LinearFrame[];
@@ -197,12 +197,15 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
       lap("decode");
 
-      progress("sky", 0);
-      sky = resolveSkyGeometry(frames, params, askedMode, options.sky);
-      if (sky.sun) lap("sky-geometry");
-
-      prepared = await prepareFramesInPool(pool, frames, sky.pipelineParams, progress, spill);
+      prepared = await prepareFramesInPool(pool, frames, params, progress, spill);
       lap("linearize-and-limb");
+
+      progress("sky", 0);
+      // The Sun's registration measures the plate scale and the orientation on the same prepared frames.
+      sky = resolveSkyGeometry(frames, params, askedMode, options.sky, prepared.every((p) => p !== undefined) ? (prepared as PreparedFrame[]) : undefined);
+      if (sky.sun) lap("sky-geometry");
+      // Frames prepared with another clip fraction than the pipeline's would not be its own (the sky keeps it, so far).
+      if (sky.pipelineParams.clipFraction !== params.clipFraction) prepared = [];
     } finally {
       await pool.close();
     }
