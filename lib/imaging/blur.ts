@@ -144,23 +144,47 @@ export function blurGaussianFast(
   return out;
 }
 
+/** The denominator of blurGaussianMasked, m * g: one blur serves every plane masked alike. */
+export function blurMaskWeights(valid: Uint8Array, width: number, height: number, sigmaPx: number): Float32Array {
+  const weights = new Float32Array(valid.length);
+  for (let i = 0; i < valid.length; i++) if (valid[i]) weights[i] = 1;
+  return blurGaussian(weights, width, height, sigmaPx, weights);
+}
+
 /**
  * Gaussian blur of the valid pixels only, by normalized convolution (Knutsson and
  * Westin 1993, CVPR): (m B) * g / (m * g). Pixels with no valid weight nearby get 0.
+ * `den` may be blurMaskWeights of the same mask, made once for several planes.
  */
-export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width: number, height: number, sigmaPx: number): Float32Array {
+export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width: number, height: number, sigmaPx: number, den = blurMaskWeights(valid, width, height, sigmaPx)): Float32Array {
   const weighted = new Float32Array(plane.length);
-  const weights = new Float32Array(plane.length);
-  for (let i = 0; i < plane.length; i++) {
-    if (valid[i]) {
-      weighted[i] = plane[i];
-      weights[i] = 1;
-    }
-  }
-  const num = blurGaussian(weighted, width, height, sigmaPx);
-  const den = blurGaussian(weights, width, height, sigmaPx);
+  for (let i = 0; i < plane.length; i++) if (valid[i]) weighted[i] = plane[i];
+  // Blurred in place: the same numbers as into a copy, without the copy.
+  const num = blurGaussian(weighted, width, height, sigmaPx, weighted);
   for (let i = 0; i < num.length; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
   return num;
+}
+
+/** dilateMask by the 3 x 3 square: each row ORed with its two neighbours, then each row with the rows above and below. Every pixel of tmp and out is written. */
+function dilateByOne(mask: Uint8Array, width: number, height: number, tmp: Uint8Array, out: Uint8Array): Uint8Array {
+  for (let y = 0; y < height; y++) {
+    const o = y * width;
+    const end = o + width - 1;
+    if (width === 1) {
+      tmp[o] = mask[o] ? 1 : 0;
+      continue;
+    }
+    tmp[o] = mask[o] | mask[o + 1] ? 1 : 0;
+    for (let i = o + 1; i < end; i++) tmp[i] = mask[i - 1] | mask[i] | mask[i + 1] ? 1 : 0;
+    tmp[end] = mask[end - 1] | mask[end] ? 1 : 0;
+  }
+  for (let y = 0; y < height; y++) {
+    const o = y * width;
+    const above = y > 0 ? o - width : o;
+    const below = y < height - 1 ? o + width : o;
+    for (let x = 0; x < width; x++) out[o + x] = tmp[above + x] | tmp[o + x] | tmp[below + x] ? 1 : 0;
+  }
+  return out;
 }
 
 /**
@@ -170,6 +194,8 @@ export function blurGaussianMasked(plane: Float32Array, valid: Uint8Array, width
 export function dilateMask(mask: Uint8Array, width: number, height: number, radiusPx: number, scratch?: [Uint8Array, Uint8Array]): Uint8Array {
   if (radiusPx <= 0) return Uint8Array.from(mask);
   const reuse = scratch !== undefined && scratch[0].length === mask.length && scratch[1].length === mask.length;
+  // Distances are whole pixels: a radius from 1 to under 2 is the 3 x 3 square, by far the commonest.
+  if (radiusPx < 2 && radiusPx >= 1) return dilateByOne(mask, width, height, reuse ? scratch[0] : new Uint8Array(mask.length), reuse ? scratch[1] : new Uint8Array(mask.length));
   const tmp = reuse ? scratch[0].fill(0) : new Uint8Array(mask.length);
   for (let y = 0; y < height; y++) {
     const o = y * width;

@@ -2,6 +2,8 @@
 // Threshold a downsampled copy at several levels, label dark regions that do not
 // touch the border, and keep the roundest one.
 
+import { findKthSmallest } from "./select";
+
 export interface CoarseDisk {
   x: number;
   y: number;
@@ -13,7 +15,36 @@ const THRESHOLD_FRACTIONS = [0.5, 0.3, 0.18, 0.1, 0.05, 0.025, 0.012];
 
 /** Box-mean downsampling by an integer factor (partial edge cells averaged over what they hold). */
 export function downsampleMean(plane: Float32Array, width: number, height: number, factor: number): { data: Float32Array; width: number; height: number } {
-  return downsampleMeanOf(width, height, factor, (i) => plane[i]);
+  const w = Math.ceil(width / factor);
+  const h = Math.ceil(height / factor);
+  return { data: averageBoxes(plane, width, height, factor, new Float32Array(w * h)), width: w, height: h };
+}
+
+/**
+ * Means of factor x factor boxes (partial at the right and bottom edges) into
+ * `out` (ceil(width / factor) x ceil(height / factor)), each box's sum adding its
+ * pixels in the order of a row-major walk: the numbers of the plain per-pixel loop
+ * (downsampleMeanOf's), without a call or a division per pixel.
+ */
+export function averageBoxes<T extends Float32Array | Float64Array>(plane: Float32Array, width: number, height: number, factor: number, out: T): T {
+  const w = Math.ceil(width / factor);
+  const h = Math.ceil(height / factor);
+  const sums = new Float64Array(w * h);
+  for (let y = 0; y < height; y++) {
+    const row = ((y / factor) | 0) * w;
+    const o = y * width;
+    for (let j = 0, x = 0; j < w; j++) {
+      const end = Math.min(width, x + factor);
+      let s = sums[row + j];
+      for (; x < end; x++) s += plane[o + x];
+      sums[row + j] = s;
+    }
+  }
+  for (let k = 0; k < h; k++) {
+    const rows = Math.min(factor, height - k * factor);
+    for (let j = 0; j < w; j++) out[k * w + j] = sums[k * w + j] / (rows * Math.min(factor, width - j * factor));
+  }
+  return out;
 }
 
 /** The same, of any per-pixel value (e.g. a luminance computed on the fly, never stored at full size). */
@@ -39,9 +70,9 @@ export function downsampleMeanOf(width: number, height: number, factor: number, 
 export function findCoarseDisk(plane: Float32Array, width: number, height: number): CoarseDisk | null {
   const factor = Math.max(1, Math.ceil(Math.max(width, height) / COARSE_MAX_SIDE));
   const ds = downsampleMean(plane, width, height, factor);
-  const sorted = Float32Array.from(ds.data).sort();
-  const lo = sorted[Math.floor(sorted.length * 0.01)];
-  const hi = sorted[Math.floor(sorted.length * 0.995)];
+  const values = Float32Array.from(ds.data);
+  const lo = findKthSmallest(values, Math.floor(values.length * 0.01)) as number;
+  const hi = findKthSmallest(values, Math.floor(values.length * 0.995)) as number;
   if (!(hi > lo)) return null;
   const labels = new Int32Array(ds.data.length);
   const stack = new Int32Array(ds.data.length);

@@ -106,6 +106,37 @@ function interpolatePeak(left: number, centre: number, right: number): number {
   return den < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (left - right)) / den)) : 0;
 }
 
+const peakWeightCache = new Map<string, { weights: Float64Array; sum: number }>();
+
+/**
+ * The Gaussian weights exp(-2 pi^2 sigma^2 (u^2 + v^2)) of correlatePhase's
+ * cross-power spectrum and their sum, made once per size and width: a
+ * registration correlates many pairs of one size.
+ */
+function getPeakWeights(width: number, height: number, smoothSigma: number): { weights: Float64Array; sum: number } {
+  const key = `${width}x${height}:${smoothSigma}`;
+  let cached = peakWeightCache.get(key);
+  if (!cached) {
+    const s2 = 2 * Math.PI * Math.PI * smoothSigma * smoothSigma;
+    const weights = new Float64Array(width * height);
+    let sum = 0;
+    for (let v = 0; v < height; v++) {
+      const fv = (v <= height / 2 ? v : v - height) / height;
+      for (let u = 0; u < width; u++) {
+        const fu = (u <= width / 2 ? u : u - width) / width;
+        const g = Math.exp(-s2 * (fu * fu + fv * fv));
+        weights[v * width + u] = g;
+        sum += g;
+      }
+    }
+    // A few sizes at most in one process (the registration window's padded squares).
+    if (peakWeightCache.size >= 8) peakWeightCache.clear();
+    cached = { weights, sum };
+    peakWeightCache.set(key, cached);
+  }
+  return cached;
+}
+
 /**
  * Phase correlation (Kuglin and Hines 1975, Proc. IEEE Conf. Cybernetics and
  * Society): R = conj(A) B / |conj(A) B| has the inverse transform delta(x - d)
@@ -123,26 +154,21 @@ export function correlatePhase(a: Float64Array, b: Float64Array, width: number, 
   const br = Float64Array.from(b), bi = new Float64Array(n);
   transformFft2d(ar, ai, width, height);
   transformFft2d(br, bi, width, height);
-  const s2 = 2 * Math.PI * Math.PI * smoothSigma * smoothSigma;
+  const { weights, sum: gSum } = getPeakWeights(width, height, smoothSigma);
   // Regularized whitening, C / (|C| + eps) with eps a small share of the mean
   // |C|: bins that hold nothing but round-off or noise keep a small weight
   // instead of a unit weight with a random phase.
   let meanMag = 0;
   for (let i = 0; i < n; i++) meanMag += Math.hypot(ar[i] * br[i] + ai[i] * bi[i], ar[i] * bi[i] - ai[i] * br[i]);
   const eps = (0.01 * meanMag) / n + 1e-300;
-  for (let v = 0; v < height; v++) {
-    const fv = (v <= height / 2 ? v : v - height) / height;
-    for (let u = 0; u < width; u++) {
-      const fu = (u <= width / 2 ? u : u - width) / width;
-      const i = v * width + u;
-      // conj(A) B
-      const re = ar[i] * br[i] + ai[i] * bi[i];
-      const im = ar[i] * bi[i] - ai[i] * br[i];
-      const mag = Math.hypot(re, im);
-      const g = Math.exp(-s2 * (fu * fu + fv * fv));
-      ar[i] = (re / (mag + eps)) * g;
-      ai[i] = (im / (mag + eps)) * g;
-    }
+  for (let i = 0; i < n; i++) {
+    // conj(A) B
+    const re = ar[i] * br[i] + ai[i] * bi[i];
+    const im = ar[i] * bi[i] - ai[i] * br[i];
+    const mag = Math.hypot(re, im);
+    const g = weights[i];
+    ar[i] = (re / (mag + eps)) * g;
+    ai[i] = (im / (mag + eps)) * g;
   }
   transformFft2d(ar, ai, width, height, true);
   if (!(maxShift >= 0)) throw new ImagingError("bad-parameter", `maxShift must be a non-negative number of samples, got ${maxShift}`);
@@ -167,13 +193,5 @@ export function correlatePhase(a: Float64Array, b: Float64Array, width: number, 
   if (dx > width / 2) dx -= width;
   if (dy > height / 2) dy -= height;
   // The peak of the Gaussian-weighted delta is sum g, not 1: report it normalized.
-  let gSum = 0;
-  for (let v = 0; v < height; v++) {
-    const fv = (v <= height / 2 ? v : v - height) / height;
-    for (let u = 0; u < width; u++) {
-      const fu = (u <= width / 2 ? u : u - width) / width;
-      gSum += Math.exp(-s2 * (fu * fu + fv * fv));
-    }
-  }
   return { dx, dy, peak: (centre * n) / gSum };
 }

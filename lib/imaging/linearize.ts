@@ -1,7 +1,9 @@
 // Frame linearization and masks: black level, white level, 8-bit decode, the
 // clipped mask and the noise-floor mask.
 import { dilateMask } from "./blur";
+import { averageBoxes } from "./coarse-disk";
 import { ImagingError } from "./errors";
+import { findKthSmallest } from "./select";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
 import type { LinearFrame } from "./types";
 
@@ -71,26 +73,16 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
   // which would pick pixels with negative noise and bias the estimate upward.
   const block = 8;
   const bw = Math.ceil(width / block);
-  const bh = Math.ceil(height / block);
-  const blockSum = new Float64Array(bw * bh);
-  const blockCount = new Uint32Array(bw * bh);
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const b = ((y / block) | 0) * bw + ((x / block) | 0);
-      blockSum[b] += plane[y * width + x];
-      blockCount[b]++;
-    }
-  }
-  const means = new Float64Array(bw * bh);
-  for (let b = 0; b < means.length; b++) means[b] = blockSum[b] / blockCount[b];
-  const darkLimit = Float64Array.from(means).sort()[Math.floor(means.length * 0.25)];
+  const means = averageBoxes(plane, width, height, block, new Float64Array(bw * Math.ceil(height / block)));
+  const darkLimit = findKthSmallest(Float64Array.from(means), Math.floor(means.length * 0.25)) as number;
   // Every pixel of a small frame; a regular sub-sample of about 250 000 from a large one.
   const step = Math.max(1, Math.round(Math.sqrt((width * height) / 250_000)));
   const responses = new Float32Array(Math.ceil(height / step) * Math.ceil(width / step));
   let count = 0;
   for (let y = 1; y < height - 1; y += step) {
+    const meansRow = (y >> 3) * bw;
     for (let x = 1; x < width - 1; x += step) {
-      if (means[((y / block) | 0) * bw + ((x / block) | 0)] > darkLimit) continue;
+      if (means[meansRow + (x >> 3)] > darkLimit) continue;
       const i = y * width + x;
       const v =
         plane[i - width - 1] - 2 * plane[i - width] + plane[i - width + 1] -
@@ -100,8 +92,7 @@ export function estimateDarkNoiseSigma(plane: Float32Array, width: number, heigh
     }
   }
   if (count === 0) return 0;
-  const d = responses.subarray(0, count).sort();
-  return d[count >> 1] / (6 * 0.6745);
+  return (findKthSmallest(responses.subarray(0, count), count >> 1) as number) / (6 * 0.6745);
 }
 
 export interface LinearizeOptions {
@@ -228,22 +219,22 @@ export function patchDefects(plane: Float32Array, masked: Uint8Array, width: num
 function writeRepairs(plane: Float32Array, masked: Uint8Array, width: number, height: number, out: Float32Array, saved?: { index: number[]; value: number[] }): void {
   if (masked.length !== plane.length) throw new ImagingError("size-mismatch", `defect map has ${masked.length} pixels, the frame ${plane.length}`);
   const around: number[] = [];
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const i = y * width + x;
-      if (!masked[i]) continue;
-      around.length = 0;
-      for (let v = Math.max(0, y - 1); v <= Math.min(height - 1, y + 1); v++) {
-        for (let u = Math.max(0, x - 1); u <= Math.min(width - 1, x + 1); u++) if (!masked[v * width + u]) around.push(plane[v * width + u]);
+  // Defects are few: the walk looks for them in one tight loop, in row-major order as before.
+  for (let i = 0; i < masked.length; i++) {
+    if (!masked[i]) continue;
+    const y = (i / width) | 0;
+    const x = i - y * width;
+    around.length = 0;
+    for (let v = Math.max(0, y - 1); v <= Math.min(height - 1, y + 1); v++) {
+      for (let u = Math.max(0, x - 1); u <= Math.min(width - 1, x + 1); u++) if (!masked[v * width + u]) around.push(plane[v * width + u]);
+    }
+    if (around.length > 0) {
+      around.sort((a, b) => a - b);
+      if (saved) {
+        saved.index.push(i);
+        saved.value.push(plane[i]);
       }
-      if (around.length > 0) {
-        around.sort((a, b) => a - b);
-        if (saved) {
-          saved.index.push(i);
-          saved.value.push(plane[i]);
-        }
-        out[i] = around[around.length >> 1];
-      }
+      out[i] = around[around.length >> 1];
     }
   }
 }

@@ -17,7 +17,7 @@
 //    only the single worst frame at each pixel is taken out, once all frames are in.
 //  - 8-bit data: Debevec and Malik (1997), SIGGRAPH, eq. 6:
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
-import { selectKth } from "./calibrate-combine";
+import { selectKth } from "./select";
 import { ImagingError } from "./errors";
 import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
 

@@ -18,11 +18,12 @@
 // and pulled the rotation toward zero (it found 15 to 80 % of a 0.2 degree turn),
 // while the least-squares step sums over valid pixels only and has no such pull.
 // Each step warps from the original frame, so resampling never builds up.
-import { blurGaussian, blurGaussianMasked } from "./blur";
+import { blurGaussian, blurGaussianMasked, blurMaskWeights } from "./blur";
 import { downsampleMean } from "./coarse-disk";
 import { ImagingError } from "./errors";
 import { correlatePhase, nextPowerOfTwo } from "./fft";
 import { solveCholesky } from "./linalg";
+import { findKthSmallest } from "./select";
 import { warpMask, warpPlanes, type WarpWindow } from "./resample";
 import { applyAffine, composeAffine, createAffineAbout, invertAffine, type AffineSimilarity } from "./similarity";
 
@@ -176,9 +177,58 @@ function createSourceImage(frame: RegistrationFrame, step: number): SourceImage 
   const frameClipped = frame.clipped;
   for (let y = 0; y < frame.height; y++) {
     const row = ((y / step) | 0) * width;
-    for (let x = 0; x < frame.width; x++) if (frameClipped[y * frame.width + x]) clipped[row + ((x / step) | 0)] = 1;
+    const o = y * frame.width;
+    for (let j = 0, x = 0; j < width; j++) {
+      const end = Math.min(frame.width, x + step);
+      for (; x < end; x++) {
+        if (frameClipped[o + x]) {
+          clipped[row + j] = 1;
+          break;
+        }
+      }
+      x = end;
+    }
   }
   return { data, clipped, width, height, step };
+}
+
+/** A frame's source image at a step; registerFrames keeps recent ones (createSourceCache). */
+export type SourceImages = (frame: RegistrationFrame, step: number) => SourceImage;
+
+/** Bytes of source images registerFrames keeps: a chain compares each frame with one registered just before, so a few suffice (about four at 24 megapixels). */
+const SOURCE_CACHE_BYTES = 128 * 1024 ** 2;
+
+/**
+ * createSourceImage, remembering the most recently used images up to a byte
+ * budget (least recently used out first): each frame is compared with a
+ * neighbour registered just before it, whose image (box-averaged from the
+ * whole frame, perhaps read back from disk) would otherwise be made again.
+ */
+function createSourceCache(budgetBytes = SOURCE_CACHE_BYTES): SourceImages {
+  const cache = new Map<RegistrationFrame, Map<number, SourceImage>>();
+  const order: { frame: RegistrationFrame; step: number; bytes: number }[] = [];
+  let held = 0;
+  return (frame, step) => {
+    const hit = cache.get(frame)?.get(step);
+    const at = order.findIndex((e) => e.frame === frame && e.step === step);
+    if (hit && at >= 0) {
+      order.push(...order.splice(at, 1));
+      return hit;
+    }
+    const image = createSourceImage(frame, step);
+    const bytes = image.data.byteLength + image.clipped.byteLength;
+    if (bytes > budgetBytes) return image;
+    if (!cache.has(frame)) cache.set(frame, new Map());
+    cache.get(frame)!.set(step, image);
+    order.push({ frame, step, bytes });
+    held += bytes;
+    while (held > budgetBytes) {
+      const out = order.shift()!;
+      cache.get(out.frame)?.delete(out.step);
+      held -= out.bytes;
+    }
+    return image;
+  };
 }
 
 /** Frame pixels to source pixels: cell j of a step-s source is centred on frame pixel j s + (s - 1) / 2. */
@@ -225,14 +275,40 @@ function buildLogImage(frame: RegistrationFrame, source: SourceImage, masterToFr
   return { values, valid };
 }
 
-/** High-pass of a log image on its own valid pixels (normalized convolution), 0 elsewhere. */
-function highPass(f: Features, region: RegionGrid, support: Uint8Array = f.valid): Float64Array {
+/**
+ * High-pass of a log image on its own valid pixels (normalized convolution), 0 elsewhere.
+ * `den` may be the support's blurMaskWeights, made once for both images of a pair.
+ */
+function highPass(f: Features, region: RegionGrid, support: Uint8Array = f.valid, den?: Float32Array): Float64Array {
   const { width, height } = region;
   const n = width * height;
-  const low = blurGaussianMasked(Float32Array.from(f.values), support, width, height, HIGH_PASS_SIGMA);
+  const low = blurGaussianMasked(Float32Array.from(f.values), support, width, height, HIGH_PASS_SIGMA, den);
   const out = new Float64Array(n);
   for (let i = 0; i < n; i++) if (support[i]) out[i] = f.values[i] - low[i];
   return out;
+}
+
+function isSameMask(a: Uint8Array, b: Uint8Array): boolean {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/**
+ * The high-pass of a moving image and of the fixed reference on their common
+ * support. Each step of a refinement needs both; the reference's (and the
+ * support's blurred weights) is made again only when the support has changed,
+ * which near convergence it seldom does. The same numbers as two calls of highPass.
+ */
+function createPairHighPass(reference: Features, region: RegionGrid): (moving: Features, common: Uint8Array) => { moving: Float64Array; reference: Float64Array } {
+  let last: { common: Uint8Array; den: Float32Array; reference: Float64Array } | undefined;
+  return (moving, common) => {
+    if (!last || !isSameMask(last.common, common)) {
+      const den = blurMaskWeights(common, region.width, region.height, HIGH_PASS_SIGMA);
+      last = { common, den, reference: highPass(reference, region, common, den) };
+    }
+    return { moving: highPass(moving, region, common, last.den), reference: last.reference };
+  };
 }
 
 /** Share of the region's side over which the window tapers to zero at each edge. */
@@ -258,15 +334,18 @@ function windowPair(fa: Float64Array, fb: Float64Array, common: Uint8Array, regi
   const size = nextPowerOfTwo(Math.max(width, height));
   const u0 = Math.floor((size - width) / 2);
   const v0 = Math.floor((size - height) / 2);
-  const soft = blurGaussian(Float32Array.from(common), width, height, 2);
+  const ones = Float32Array.from(common);
+  const soft = blurGaussian(ones, width, height, 2, ones);
   const wa = new Float64Array(size * size);
   const wb = new Float64Array(size * size);
+  const wxs = new Float64Array(width);
+  for (let u = 0; u < width; u++) wxs[u] = computeTukeyWeight(u, width);
   for (let v = 0; v < height; v++) {
     const wy = computeTukeyWeight(v, height);
     for (let u = 0; u < width; u++) {
       const i = v * width + u;
       if (!common[i]) continue;
-      const w = soft[i] * wy * computeTukeyWeight(u, width);
+      const w = soft[i] * wy * wxs[u];
       wa[(v + v0) * size + u + u0] = fa[i] * w;
       wb[(v + v0) * size + u + u0] = fb[i] * w;
     }
@@ -291,15 +370,21 @@ function intersectMasks(a: Uint8Array, b: Uint8Array): { common: Uint8Array; cou
  * synthetic brackets: the worst bracket's RMS error went from 0.11 to 0.09 px
  * and the worst frame's (always the shortest) from 0.25 to 0.15 px.
  */
-function computeShotNoiseWeights(a: Features, exposureA: number, b: Features, exposureB: number, common: Uint8Array): Float64Array {
+function computeShotNoiseWeights(countsA: Float64Array, b: Features, exposureB: number, common: Uint8Array): Float64Array {
   const weights = new Float64Array(common.length);
   for (let i = 0; i < common.length; i++) {
     if (!common[i]) continue;
-    const countsA = Math.exp(a.values[i]) * exposureA;
     const countsB = Math.exp(b.values[i]) * exposureB;
-    weights[i] = 1 / (1 / countsA + 1 / countsB);
+    weights[i] = 1 / (1 / countsA[i] + 1 / countsB);
   }
   return weights;
+}
+
+/** A frame's own counts, exp(F) t, on its valid pixels: the fixed side of computeShotNoiseWeights, made once per pair. */
+function computeCounts(f: Features, exposureS: number): Float64Array {
+  const counts = new Float64Array(f.values.length);
+  for (let i = 0; i < counts.length; i++) if (f.valid[i]) counts[i] = Math.exp(f.values[i]) * exposureS;
+  return counts;
 }
 
 /**
@@ -324,7 +409,6 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
   // (Beaton and Tukey 1974) at c = 6 robust sigmas, wider than the usual 4.685 so that
   // the corona's own residuals keep nearly full weight: a trail, a cosmic ray or a hot
   // pixel in one frame (tens of sigmas) is structure the other lacks, and must not pull the alignment.
-  // A typed array sorts numerically without a comparator, several times faster than a list of numbers.
   const residuals = new Float64Array(width * height);
   let filled = 0;
   for (let v = 1; v < height - 1; v++) {
@@ -333,8 +417,8 @@ function solveAlignmentStep(moving: Float64Array, movingValid: Uint8Array, refer
       if (usable(i)) residuals[filled++] = Math.abs(reference[i] - moving[i]) * Math.sqrt(weights ? weights[i] : 1);
     }
   }
-  const normalized = residuals.subarray(0, filled).sort();
-  const cutoff = 6 * 1.4826 * (normalized[normalized.length >> 1] ?? 0);
+  // The median by selection: the value a sort would put in the middle, without the sort.
+  const cutoff = 6 * 1.4826 * (findKthSmallest(residuals.subarray(0, filled), filled >> 1) ?? 0);
   for (let v = 1; v < height - 1; v++) {
     for (let u = 1; u < width - 1; u++) {
       const i = v * width + u;
@@ -416,12 +500,14 @@ export function refineAgainstNeighbour(
   neighbour: RegistrationFrame,
   neighbourTransform: AffineSimilarity,
   region: RegionGrid,
-  options: { estimateScale?: boolean; maxIterations?: number; searchRadiusPx?: number } = {},
+  options: { estimateScale?: boolean; maxIterations?: number; searchRadiusPx?: number; sources?: SourceImages } = {},
 ): { masterToFrame: AffineSimilarity; peak: number; iterations: number; confined: boolean; similarity: number } {
   const searchRadiusPx = options.searchRadiusPx ?? computeSearchRadiusPx(region.moonRadiusPx);
-  const source = createSourceImage(frame, region.step);
-  const neighbourSource = createSourceImage(neighbour, region.step);
+  const sourceOf = options.sources ?? createSourceImage;
+  const source = sourceOf(frame, region.step);
+  const neighbourSource = sourceOf(neighbour, region.step);
   const refLog = buildLogImage(neighbour, neighbourSource, neighbourTransform, region);
+  const pairHighPass = createPairHighPass(refLog, region);
   let m = start;
   let peak = 0;
   let confined = false;
@@ -429,7 +515,8 @@ export function refineAgainstNeighbour(
     const moving = buildLogImage(frame, source, m, region);
     const { common, count } = intersectMasks(refLog.valid, moving.valid);
     if (count < MIN_COMMON_PIXELS) throw new ImagingError("registration-failed", `too few pixels of corona are well exposed both here and in ${neighbour.name} to register them`, frame.name);
-    const { wa, wb, size } = windowPair(highPass(refLog, region, common), highPass(moving, region, common), common, region);
+    const passed = pairHighPass(moving, common);
+    const { wa, wb, size } = windowPair(passed.reference, passed.moving, common, region);
     const budget = Math.max(0, searchRadiusPx - measureMove(m, start, region)) / region.step;
     const shift = correlatePhase(wa, wb, size, size, 1, budget);
     peak = shift.peak;
@@ -437,12 +524,14 @@ export function refineAgainstNeighbour(
     if (Math.hypot(shift.dx, shift.dy) < 0.5) break;
   }
   const maxIterations = options.maxIterations ?? 12;
+  const refCounts = computeCounts(refLog, neighbour.exposureS);
   let iterations = 0;
   for (; iterations < maxIterations; iterations++) {
     const moving = buildLogImage(frame, source, m, region);
     const { common } = intersectMasks(refLog.valid, moving.valid);
-    const weights = computeShotNoiseWeights(refLog, neighbour.exposureS, moving, frame.exposureS, common);
-    const delta = solveAlignmentStep(highPass(moving, region, common), common, highPass(refLog, region, common), common, region, options.estimateScale ?? false, weights);
+    const weights = computeShotNoiseWeights(refCounts, moving, frame.exposureS, common);
+    const passed = pairHighPass(moving, common);
+    const delta = solveAlignmentStep(passed.moving, common, passed.reference, common, region, options.estimateScale ?? false, weights);
     if (!delta) break;
     const next = applyAlignmentStep(m, delta, region);
     if (measureMove(next, start, region) > searchRadiusPx) {
@@ -457,7 +546,8 @@ export function refineAgainstNeighbour(
   // correlate. A blank, fogged or wrongly chosen frame does not, whatever the fit said.
   const moving = buildLogImage(frame, source, m, region);
   const { common } = intersectMasks(refLog.valid, moving.valid);
-  const similarity = correlateNormalized(highPass(moving, region, common), highPass(refLog, region, common), common);
+  const passed = pairHighPass(moving, common);
+  const similarity = correlateNormalized(passed.moving, passed.reference, common);
   if (!(similarity >= MIN_STRUCTURE_CORRELATION)) {
     throw new ImagingError("registration-failed", `its corona shares no structure with ${neighbour.name} (correlation ${similarity.toFixed(2)})`, frame.name);
   }
@@ -486,8 +576,11 @@ export function correlateNormalized(a: Float64Array, b: Float64Array, common: Ui
 export function chooseNeighbour(valid: Uint8Array[], i: number, registered: number[]): number {
   let best = registered[registered.length - 1];
   let bestCount = -1;
+  const mine = valid[i];
   for (let k = registered.length - 1; k >= 0; k--) {
-    const { count } = intersectMasks(valid[i], valid[registered[k]]);
+    const theirs = valid[registered[k]];
+    let count = 0;
+    for (let j = 0; j < mine.length; j++) if (mine[j] && theirs[j]) count++;
     if (count > bestCount) {
       bestCount = count;
       best = registered[k];
@@ -511,7 +604,8 @@ export function registerFrames(frames: RegistrationFrame[], options: Registratio
   // Outward from the reference in exposure; each frame is compared with the registered
   // frame it shares the most well-exposed corona with (at the start maps), which is
   // usually its neighbour in exposure but not when that one is clipped or faint where this one is good.
-  const validAtStart = frames.map((f, i) => buildLogImage(f, createSourceImage(f, region.step), start[i], region).valid);
+  const sources = createSourceCache();
+  const validAtStart = frames.map((f, i) => buildLogImage(f, sources(f, region.step), start[i], region).valid);
   // Long exposures are saturated over the inner corona and well exposed only far out:
   // when the usual window holds too little of both frames, they are compared over the whole frame.
   let wide: RegionGrid | undefined;
@@ -521,7 +615,7 @@ export function registerFrames(frames: RegistrationFrame[], options: Registratio
       const neighbour = chooseNeighbour(validAtStart, i, registered);
       // A frame without its own limb starts from the reference's pointing: allow a wider search.
       const searchRadiusPx = frames[i].limbAssumed ? Math.max(3 * computeSearchRadiusPx(region.moonRadiusPx), 12) : undefined;
-      const attempt = (r: RegionGrid) => refineAgainstNeighbour(frames[i], start[i], frames[neighbour], result[neighbour].masterToFrame, r, { estimateScale: options.estimateScale, searchRadiusPx });
+      const attempt = (r: RegionGrid) => refineAgainstNeighbour(frames[i], start[i], frames[neighbour], result[neighbour].masterToFrame, r, { estimateScale: options.estimateScale, searchRadiusPx, sources });
       try {
         let refined;
         try {

@@ -4,7 +4,8 @@
 // found from the bracket itself (pixels that stay outliers at fixed sensor
 // positions). Every refusal names the file.
 import { basename } from "node:path";
-import { buildCalibrationMasters, calibrateLightFrame, findBadPixelsFromBracket, type CalibrationMasters, type CalibrationSummary } from "@/lib/imaging/calibrate";
+import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters, type CalibrationSummary } from "@/lib/imaging/calibrate";
+import { combineBracketOutliers, findBadPixelsFromBracket, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
 import { ReductionInputError } from "./errors";
@@ -50,10 +51,11 @@ export async function loadCalibrationMasters(files: CalibrationFiles | undefined
 
 /**
  * Applies the masters to the light frames (in place in the list), or, without
- * masters, masks the defects the bracket itself shows. Linear frames only: an
- * 8-bit bracket is returned as it is.
+ * masters, masks the defects the bracket itself shows (findBadPixelsFromBracket;
+ * `outliers[i]`, when given, is frame i's part of that search, made already, in
+ * a worker thread say). Linear frames only: an 8-bit bracket is returned as it is.
  */
-export function calibrateBracket(frames: LinearFrame[], masters: CalibrationMasters | undefined, onCalibrated?: (frame: LinearFrame) => void): CalibrationReport {
+export function calibrateBracket(frames: LinearFrame[], masters: CalibrationMasters | undefined, onCalibrated?: (frame: LinearFrame) => void, outliers: readonly (Uint32Array | undefined)[] = []): CalibrationReport {
   if (frames.length === 0 || frames[0].encoding !== "linear") return { source: "none", badPixelCount: 0 };
   if (masters) {
     frames.forEach((f, i) => {
@@ -62,7 +64,8 @@ export function calibrateBracket(frames: LinearFrame[], masters: CalibrationMast
     });
     return { source: "masters", summary: masters.summary, badPixelCount: countSet(masters.badPixels) };
   }
-  const badPixels = findBadPixelsFromBracket(frames);
+  const { width, height } = frames[0].image;
+  const badPixels = outliers.length === 0 ? findBadPixelsFromBracket(frames) : combineBracketOutliers(frames.map((f, i) => outliers[i] ?? findFrameOutliers(f)), width * height);
   const count = countSet(badPixels);
   if (count > 0) frames.forEach((f, i) => { frames[i] = { ...f, badPixels }; });
   return { source: count > 0 ? "bracket" : "none", badPixelCount: count };

@@ -4,11 +4,10 @@
 import { stat } from "node:fs/promises";
 import { basename } from "node:path";
 import { decodeFrame, type DecodedFrame, type MediaFormat } from "@/lib/media";
-import type { PreparedFrame } from "@/lib/imaging/pipeline";
-import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
+import type { LinearFrame } from "@/lib/imaging/types";
 import { ReductionInputError } from "./errors";
-import { spillPrepared, type FrameSpill } from "./frame-spill";
-import type { PooledFrame, PreparePool } from "./prepare-pool";
+import type { FrameSpill } from "./frame-spill";
+import type { PooledDecode, PreparePool } from "./prepare-pool";
 
 /** Frames decoded side by side: sharp already uses two threads per image, so more only adds memory. */
 const DECODES_IN_FLIGHT = 2;
@@ -35,14 +34,14 @@ export interface FrameProvenance {
 export interface DecodedBracket {
   frames: LinearFrame[];
   provenance: FrameProvenance[];
-  /** prepareFrame(frames[i], params) when a pool did it with the exposure the frame now has. */
-  prepared: (PreparedFrame | undefined)[];
+  /** Per frame, its outliers (findFrameOutliers) when the pool searched it; undefined for a frame it did not. */
+  outliers: (Uint32Array | undefined)[];
 }
 
-/** Decode (and prepare) in these worker threads instead of on the calling thread. */
-export interface PrepareInPool {
+/** Decode in these worker threads instead of on the calling thread, each frame searched for defects there when asked. */
+export interface DecodeInPool {
   pool: PreparePool;
-  params: ReductionParams;
+  findOutliers: boolean;
 }
 
 /** Refuses a list the reduction cannot start from: fewer than two frames, or two files of one name. */
@@ -144,13 +143,15 @@ export function checkSameEncoding(frames: Pick<LinearFrame, "name" | "encoding">
 
 /**
  * Decodes every file (at most two at once) and attaches exposures. Overrides
- * are keyed by file name and win over the file's own value.
+ * are keyed by file name and win over the file's own value. In a pool, each
+ * linear frame may also be searched for defects as it is decoded (see
+ * calibrateBracket), both cores working.
  */
 export async function decodeBracketFiles(
   files: string[],
   exposureOverrides: Map<string, number> = new Map(),
   onProgress?: (fraction: number) => void,
-  inPool?: PrepareInPool,
+  inPool?: DecodeInPool,
   captureTimeOverrides: Map<string, number> = new Map(),
   spill?: FrameSpill,
 ): Promise<DecodedBracket> {
@@ -162,7 +163,7 @@ export async function decodeBracketFiles(
     if (!Number.isFinite(ms)) throw new ReductionInputError("missing-capture-time", `${name}: the capture time given is not a valid time`);
   }
   const decoded: DecodedFrame[] = new Array(files.length);
-  const pooled: (PooledFrame | undefined)[] = new Array(files.length);
+  const pooled: (PooledDecode | undefined)[] = new Array(files.length);
   let next = 0;
   let done = 0;
   const lanes = Array.from({ length: Math.min(DECODES_IN_FLIGHT, files.length) }, async () => {
@@ -170,15 +171,11 @@ export async function decodeBracketFiles(
       const k = next++;
       const name = basename(files[k]);
       await checkFrameFile(files[k], name);
-      pooled[k] = await inPool?.pool.run(files[k], name, inPool.params, exposureOverrides.get(name));
+      pooled[k] = await inPool?.pool.decode(files[k], name, inPool.findOutliers);
       // Without a pool, or when a worker failed, the frame is decoded here (and a fault thrown as usual).
       decoded[k] = pooled[k]?.decoded ?? (await decodeFrame(files[k], name));
       // Each frame's pixels go to disk as soon as it is decoded: memory holds the frames in flight only.
-      if (spill) {
-        spill.spillField(decoded[k].image, "planes");
-        const ready = pooled[k]?.prepared;
-        if (ready) spillPrepared(spill, ready);
-      }
+      if (spill) spill.spillField(decoded[k].image, "planes");
       onProgress?.(++done / files.length);
     }
   });
@@ -191,6 +188,5 @@ export async function decodeBracketFiles(
   checkSameShape(provenance);
   checkSameEncoding(described.map((x) => x.frame), provenance);
   const frames = described.map((x) => x.frame);
-  const prepared = pooled.map((p, k) => (p?.prepared && p.preparedExposureS === frames[k].exposureS ? p.prepared : undefined));
-  return { frames, provenance, prepared };
+  return { frames, provenance, outliers: pooled.map((p) => p?.outliers) };
 }

@@ -28,6 +28,12 @@ export interface FrameSpill {
   /** Replaces obj[field] (an array, or an array of arrays) by a getter over spilled copies; a later assignment stores in memory again. */
   spillField: <T extends object>(obj: T, field: keyof T & string) => void;
   /**
+   * The files of a field spilled as a list of float32 arrays, for another thread
+   * to read itself (each file holds the array's bytes, nothing else); undefined
+   * when the field is not spilled so.
+   */
+  filesOf: <T extends object>(obj: T, field: keyof T & string) => { path: string; length: number }[] | undefined;
+  /**
    * Sets the byte budget of the in-memory cache and trims it to fit. A stage that
    * reads each frame once in order (the merge passes) gains nothing from a large
    * cache, and the bytes held are bytes the merge's accumulators need.
@@ -114,6 +120,9 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     return array;
   };
 
+  // The keys of fields spilled as lists of arrays, by object and field.
+  const listed = new WeakMap<object, Map<string, number[]>>();
+
   const spillField = <T extends object>(obj: T, field: keyof T & string) => {
     const value = obj[field] as unknown;
     if (value === undefined || value === null) return;
@@ -121,6 +130,8 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     if (Array.isArray(value)) {
       const keys = (value as Typed[]).map((a) => put(a));
       read = () => keys.map((k) => get(k));
+      if (!listed.has(obj)) listed.set(obj, new Map());
+      listed.get(obj)!.set(field, keys);
     } else {
       const key = put(value as Typed);
       read = () => get(key);
@@ -129,14 +140,24 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
       configurable: true,
       enumerable: true,
       get: read,
-      set: (next: unknown) => Object.defineProperty(obj, field, { value: next, writable: true, configurable: true, enumerable: true }),
+      set: (next: unknown) => {
+        listed.get(obj)?.delete(field);
+        Object.defineProperty(obj, field, { value: next, writable: true, configurable: true, enumerable: true });
+      },
     });
+  };
+
+  const filesOf = <T extends object>(obj: T, field: keyof T & string) => {
+    const keys = listed.get(obj)?.get(field);
+    if (!keys || keys.some((k) => entries[k].kind !== "f32")) return undefined;
+    return keys.map((k) => ({ path: entries[k].path, length: entries[k].length }));
   };
 
   return {
     put,
     get,
     spillField,
+    filesOf,
     setCacheBytes: (bytes) => {
       budget = Math.max(0, bytes);
       trim();

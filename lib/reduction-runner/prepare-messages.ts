@@ -1,26 +1,31 @@
 // Messages between the frame pool and its worker threads (prepare-pool.ts, prepare-worker.ts).
 import type { DecodedFrame } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
-import type { ReductionParams } from "@/lib/imaging/types";
+import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
 
-export interface PrepareRequest {
-  id: number;
-  path: string;
-  name: string;
-  /** The photographer's exposure, which wins over the file's. */
-  exposureOverrideS?: number;
-  params: ReductionParams;
-}
+/** Where a frame's planes are for a worker: the arrays themselves, or spilled files it reads (frame-spill.ts). */
+export type PlaneSource = { planes: Float32Array[] } | { files: { path: string; length: number }[] };
+
+export type PrepareRequest =
+  /** Decode a file; with findOutliers, also the frame's part of the bracket's defect search. */
+  | { kind: "decode"; id: number; path: string; name: string; findOutliers: boolean }
+  /** prepareFrame of a frame whose planes come as `source` (the frame's own image field is left out). */
+  | { kind: "prepare"; id: number; frame: Omit<LinearFrame, "image">; width: number; height: number; source: PlaneSource; params: ReductionParams };
 
 export type PrepareReply =
-  | { id: number; ok: true; decoded: DecodedFrame; prepared?: PreparedFrame; preparedExposureS?: number }
+  | { id: number; ok: true; decoded: DecodedFrame; outliers?: Uint32Array }
+  /** The prepared frame without its defect map (the caller's own frame holds it). */
+  | { id: number; ok: true; prepared: PreparedFrame }
   | { id: number; ok: false };
 
 /** Every pixel buffer of a reply, once each, to be moved rather than copied. */
 export function collectTransferables(reply: PrepareReply): ArrayBuffer[] {
   if (!reply.ok) return [];
-  const views: ArrayBufferView[] = [...reply.decoded.image.planes];
-  if (reply.prepared) {
+  const views: ArrayBufferView[] = [];
+  if ("decoded" in reply) {
+    views.push(...reply.decoded.image.planes);
+    if (reply.outliers) views.push(reply.outliers);
+  } else {
     const { linear, luminance } = reply.prepared;
     views.push(...linear.planes, linear.luminance, linear.clipped, linear.noiseFloor, luminance);
   }

@@ -1,8 +1,9 @@
-// Two worker threads that decode frames and run the per-frame stage of the
-// pipeline (linearize, masks, limb fit) side by side, so both cores work while
-// the main thread only waits. Planes come back by transfer. A worker that cannot
-// start or a frame that fails gives `undefined`, and the caller does that frame
-// on its own thread: the pool only ever makes a reduction faster, never different.
+// Two worker threads that decode frames (and search each for the bracket's
+// defects) and run the per-frame stage of the pipeline (linearize, masks, limb
+// fit) side by side, so both cores work while the main thread only waits. Arrays
+// come back by transfer. A worker that cannot start or a frame that fails gives
+// `undefined`, and the caller does that frame on its own thread: the pool only
+// ever makes a reduction faster, never different.
 import { readFileSync } from "node:fs";
 import { createRequire } from "node:module";
 import { dirname, join } from "node:path";
@@ -10,22 +11,27 @@ import { pathToFileURL } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { DecodedFrame } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
-import type { ReductionParams } from "@/lib/imaging/types";
-import type { PrepareReply, PrepareRequest } from "./prepare-messages";
+import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
+import type { PlaneSource, PrepareReply, PrepareRequest } from "./prepare-messages";
 
 /** Workers in the pool: the machines have two cores. */
 export const PREPARE_WORKERS = 2;
 
-export interface PooledFrame {
+export interface PooledDecode {
   decoded: DecodedFrame;
-  prepared?: PreparedFrame;
-  /** The exposure the frame was prepared with. */
-  preparedExposureS?: number;
+  /** The frame's outliers (findFrameOutliers), when asked for and the frame is linear. */
+  outliers?: Uint32Array;
 }
 
 export interface PreparePool {
-  /** Resolves to undefined when the worker could not do the frame. */
-  run(path: string, name: string, params: ReductionParams, exposureOverrideS?: number): Promise<PooledFrame | undefined>;
+  /** Decodes a file, and with findOutliers searches it for defects; undefined when the worker could not. */
+  decode(path: string, name: string, findOutliers: boolean): Promise<PooledDecode | undefined>;
+  /**
+   * prepareFrame(frame, params) (with the sRGB table for 8-bit frames) in a worker;
+   * `files` are the frame's planes spilled to disk, which the worker reads itself
+   * (else the planes are copied to it). Undefined when the worker could not.
+   */
+  prepare(frame: LinearFrame, params: ReductionParams, files?: { path: string; length: number }[]): Promise<PreparedFrame | undefined>;
   close(): Promise<void>;
 }
 
@@ -84,16 +90,29 @@ function startLane(): Lane {
 export function createPreparePool(size = PREPARE_WORKERS): PreparePool {
   const lanes = Array.from({ length: size }, startLane);
   let nextId = 0;
+  const send = (request: PrepareRequest): Promise<PrepareReply | undefined> => {
+    const alive = lanes.filter((l) => !l.isDead);
+    if (alive.length === 0) return Promise.resolve(undefined);
+    const lane = alive.reduce((best, l) => (l.pending.size < best.pending.size ? l : best));
+    return new Promise((resolve) => {
+      lane.pending.set(request.id, resolve);
+      // Planes sent as arrays are copied, never moved: the caller's frame keeps them whatever the worker does.
+      lane.worker.postMessage(request);
+    });
+  };
   return {
-    run(path, name, params, exposureOverrideS) {
-      const alive = lanes.filter((l) => !l.isDead);
-      if (alive.length === 0) return Promise.resolve(undefined);
-      const lane = alive.reduce((best, l) => (l.pending.size < best.pending.size ? l : best));
-      const id = nextId++;
-      return new Promise<PooledFrame | undefined>((resolve) => {
-        lane.pending.set(id, (reply) => resolve(reply?.ok ? { decoded: reply.decoded, prepared: reply.prepared, preparedExposureS: reply.preparedExposureS } : undefined));
-        lane.worker.postMessage({ id, path, name, exposureOverrideS, params } satisfies PrepareRequest);
-      });
+    async decode(path, name, findOutliers) {
+      const reply = await send({ kind: "decode", id: nextId++, path, name, findOutliers });
+      return reply?.ok && "decoded" in reply ? { decoded: reply.decoded, outliers: reply.outliers } : undefined;
+    },
+    async prepare(frame, params, files) {
+      const { image, ...rest } = frame;
+      const source: PlaneSource = files ? { files } : { planes: image.planes };
+      const reply = await send({ kind: "prepare", id: nextId++, frame: rest, width: image.width, height: image.height, source, params });
+      if (!(reply?.ok && "prepared" in reply)) return undefined;
+      const { prepared } = reply;
+      prepared.linear.masked = frame.badPixels;
+      return prepared;
     },
     async close() {
       await Promise.all(lanes.map((l) => l.worker.terminate()));

@@ -1,30 +1,40 @@
-// Worker thread of the frame pool (prepare-pool.ts): decodes one file and runs
-// lib/imaging's prepareFrame on it, then hands every plane back by transfer, so
-// nothing is copied. Any fault is answered with ok: false and the caller redoes
-// the frame on its own thread, where the error keeps its class and message.
+// Worker thread of the frame pool (prepare-pool.ts): decodes a file (and, when
+// asked, searches it for the bracket's defects), or runs lib/imaging's
+// prepareFrame on a frame, then hands every array back by transfer, so nothing
+// is copied. Any fault is answered with ok: false and the caller redoes the work
+// on its own thread, where the error keeps its class and message.
+import { readFileSync } from "node:fs";
 import { parentPort } from "node:worker_threads";
-import { decodeFrame } from "@/lib/media";
+import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
-import { collectTransferables, type PrepareReply, type PrepareRequest } from "./prepare-messages";
+import { decodeFrame } from "@/lib/media";
+import { collectTransferables, type PlaneSource, type PrepareReply, type PrepareRequest } from "./prepare-messages";
+
+function readPlanes(source: PlaneSource): Float32Array[] {
+  if ("planes" in source) return source.planes;
+  return source.files.map(({ path, length }) => {
+    const bytes = readFileSync(path);
+    // A large file's buffer owns its memory from offset 0; a small one may sit unaligned in a shared pool.
+    const owned = bytes.byteOffset === 0 && bytes.buffer.byteLength === bytes.byteLength;
+    return new Float32Array(owned ? bytes.buffer : Uint8Array.from(bytes).buffer, 0, length);
+  });
+}
 
 async function handle(request: PrepareRequest): Promise<PrepareReply> {
-  const decoded = await decodeFrame(request.path, request.name);
-  const exposureS = request.exposureOverrideS ?? decoded.metadata.exposureS;
-  if (!(exposureS !== undefined && Number.isFinite(exposureS) && exposureS > 0)) return { id: request.id, ok: true, decoded };
-  const frame: LinearFrame = {
-    name: decoded.name, image: decoded.image, exposureS, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel, blackLevelSource: decoded.blackLevelSource,
-    encoding: decoded.encoding, captureTimeMs: decoded.metadata.captureTimeMs,
-  };
-  try {
-    const responseTable = frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined;
-    return { id: request.id, ok: true, decoded, prepared: prepareFrame(frame, request.params, responseTable), preparedExposureS: exposureS };
-  } catch {
-    // A frame the pipeline refuses (no limb, bad levels) is prepared again by the
-    // pipeline itself, which throws its own error in its own order.
-    return { id: request.id, ok: true, decoded };
+  if (request.kind === "decode") {
+    const decoded = await decodeFrame(request.path, request.name);
+    if (!request.findOutliers || decoded.encoding !== "linear") return { id: request.id, ok: true, decoded };
+    const frame: LinearFrame = { name: decoded.name, image: decoded.image, exposureS: NaN, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel, encoding: decoded.encoding };
+    return { id: request.id, ok: true, decoded, outliers: findFrameOutliers(frame) };
   }
+  const { frame, width, height, source, params } = request;
+  const whole: LinearFrame = { ...frame, image: { width, height, planes: readPlanes(source) } };
+  const prepared = prepareFrame(whole, params, whole.encoding === "srgb8" ? createSrgbDecodeTable() : undefined);
+  // The defect map is the caller's (one map may serve every frame): it is not sent back.
+  prepared.linear.masked = undefined;
+  return { id: request.id, ok: true, prepared };
 }
 
 parentPort?.on("message", (request: PrepareRequest) => {

@@ -18,7 +18,7 @@ import { checkFileList, decodeBracketFiles, type FrameProvenance } from "./decod
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
 import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
-import { createPreparePool } from "./prepare-pool";
+import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "./prepare-pool";
 import { createWarpCache } from "./warp-cache";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput, type StagedOutput } from "./output-dir";
 import type { HelioGeometry } from "./helio-wcs";
@@ -141,6 +141,30 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
   return finishBracket(plan, acc, progress, performance.now() - started);
 }
 
+/**
+ * prepareFrame of every frame (the pipeline's first stage) in the pool's worker
+ * threads, two frames in flight so that only those are copied at a time (a
+ * spilled frame's planes are read by the worker from their files). A frame the
+ * pool could not do stays undefined, and the pipeline prepares it itself.
+ */
+async function prepareFramesInPool(pool: PreparePool, frames: LinearFrame[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined): Promise<(PreparedFrame | undefined)[]> {
+  progress("linearize", 0);
+  const prepared: (PreparedFrame | undefined)[] = new Array(frames.length).fill(undefined);
+  let next = 0;
+  let done = 0;
+  const lanes = Array.from({ length: Math.min(PREPARE_WORKERS, frames.length) }, async () => {
+    while (next < frames.length) {
+      const k = next++;
+      const ready = await pool.prepare(frames[k], params, spill?.filesOf(frames[k].image, "planes"));
+      prepared[k] = ready && spill ? spillPrepared(spill, ready) : ready;
+      done++;
+      progress("limb", done / frames.length, { done, total: frames.length });
+    }
+  });
+  await Promise.all(lanes);
+  return prepared;
+}
+
 export async function runReductionOnFiles(options: RunReductionOptions): Promise<RunReductionResult> {
   const started = performance.now();
   const params: ReductionParams = { ...DEFAULT_REDUCTION_PARAMS, ...options.params };
@@ -164,36 +188,48 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
   const spill = await openSpill(options);
   try {
     progress("decode", 0);
-    // Frames are decoded, linearized and limb-fitted in two worker threads; the
-    // pipeline takes those results as its own first stage would have made them.
-    // Calibration comes before anything else the pipeline does, so the pool's prepared
-    // frames (made from uncalibrated data) serve only a bracket without it.
+    // Two worker threads decode the frames and search each for the bracket's defects;
+    // once the bracket is calibrated (or its defects masked), they linearize and fit
+    // the limbs, and the sky geometry and the pipeline take those results as their own
+    // first steps would have made them. Both cores work in both.
     const masters = await loadCalibrationMasters(options.calibrationFiles, overrides);
     const pool = createPreparePool();
-    const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f, { done: Math.round(f * options.files.length), total: options.files.length }), masters ? undefined : { pool, params }, options.captureTimeOverrides, spill).finally(() => pool.close());
-    const { frames, provenance } = decodedBracket;
-    const calibration = calibrateBracket(frames, masters, spill && ((frame) => spill.spillField(frame.image, "planes")));
-    // Defects found in the bracket change the prepared frames' masks: the pipeline prepares again.
-    if (calibration.source !== "none") decodedBracket.prepared.fill(undefined);
-    applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
-    decodedBracket.prepared.forEach((p, i) => {
-      if (p) p.linear.captureTimeMs = frames[i].captureTimeMs;
-    });
-    lap("decode");
+    let frames: LinearFrame[];
+    let provenance: FrameProvenance[];
+    let calibration: CalibrationReport;
+    let sky: ReturnType<typeof resolveSkyGeometry>;
+    let prepared: (PreparedFrame | undefined)[];
+    try {
+      const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f, { done: Math.round(f * options.files.length), total: options.files.length }), { pool, findOutliers: !masters }, options.captureTimeOverrides, spill);
+      ({ frames, provenance } = decodedBracket);
+      calibration = calibrateBracket(frames, masters, spill && ((frame) => spill.spillField(frame.image, "planes")), decodedBracket.outliers);
+      applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
+      lap("decode");
 
-    progress("sky", 0);
-    const sky = resolveSkyGeometry(frames, params, askedMode, options.sky);
+      prepared = await prepareFramesInPool(pool, frames, params, progress, spill);
+      lap("linearize-and-limb");
+
+      progress("sky", 0);
+      // The Sun's registration measures the plate scale and the orientation on the same prepared frames.
+      sky = resolveSkyGeometry(frames, params, askedMode, options.sky, prepared.every((p) => p !== undefined) ? (prepared as PreparedFrame[]) : undefined);
+      if (sky.sun) lap("sky-geometry");
+      // Frames prepared with another clip fraction than the pipeline's would not be its own (the sky keeps it, so far).
+      if (sky.pipelineParams.clipFraction !== params.clipFraction) prepared = [];
+    } finally {
+      await pool.close();
+    }
     const registrationMode = sky.registrationMode;
-    if (sky.sun) lap("sky-geometry");
-
-    // Worker-prepared frames hold only if the pipeline's clip fraction is the one they were prepared with.
-    const prepared = sky.pipelineParams.clipFraction === params.clipFraction ? decodedBracket.prepared : [];
-    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, progress, spill, options.scratchDir);
+    // The pool has reported the frames prepared; the pipeline's first stage, which only takes them
+    // (or prepares the few a worker could not), would count them again from one.
+    const pipelineProgress: RunProgressFn = (stage, fraction, count) => {
+      if (stage !== "linearize" && stage !== "limb") progress(stage, fraction, count);
+    };
+    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, pipelineProgress, spill, options.scratchDir);
     spill?.close();
-    decodedBracket.prepared.length = 0;
+    prepared.length = 0;
     const helio = sky.completeGeometry(result);
-    // The pipeline's own stage times, then the total it took (which includes validation).
-    for (const [stage, ms] of Object.entries(result.overall.timingsMs)) timingsMs[stage] = ms;
+    // The pipeline's own stage times (added to the pool's preparation, which the pipeline's first stage then skips).
+    for (const [stage, ms] of Object.entries(result.overall.timingsMs)) timingsMs[stage] = (timingsMs[stage] ?? 0) + ms;
     lap("reduce");
     frames.length = 0; // the decoded frames are no longer needed; let them go before writing
 

@@ -1,12 +1,15 @@
-// The frame pool decodes and prepares in worker threads exactly what the calling
-// thread would, and a file it cannot do comes back undefined for the caller to redo.
+// The frame pool decodes, searches for defects and prepares in worker threads
+// exactly what the calling thread would, from planes in memory or spilled to
+// disk, and a file it cannot do comes back undefined for the caller to redo.
 import { rmSync, writeFileSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { decodeFrame, toLinearFrame } from "@/lib/media";
+import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
-import { DEFAULT_REDUCTION_PARAMS } from "@/lib/imaging/types";
+import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
+import { createFrameSpill } from "@/lib/reduction-runner/frame-spill";
 import { createPreparePool, type PreparePool } from "@/lib/reduction-runner/prepare-pool";
 import { writeBracketFixture, type BracketFixture } from "./bracket-fixture";
 
@@ -16,36 +19,76 @@ let pool: PreparePool;
 beforeAll(async () => {
   fixture = await writeBracketFixture();
   pool = createPreparePool();
-});
+}, 180_000);
 afterAll(async () => {
   await pool.close();
   rmSync(dirname(fixture.dir), { recursive: true, force: true });
 });
 
+async function decodeHere(path: string, exposureS: number): Promise<LinearFrame> {
+  return toLinearFrame(await decodeFrame(path, basename(path)), exposureS);
+}
+
+function expectSamePrepared(got: ReturnType<typeof prepareFrame> | undefined, expected: ReturnType<typeof prepareFrame>): void {
+  expect(got).toBeDefined();
+  expect(got!.limb).toEqual(expected.limb);
+  expect(got!.luminance).toEqual(expected.luminance);
+  expect(got!.linear.clipped).toEqual(expected.linear.clipped);
+  expect(got!.linear.noiseFloor).toEqual(expected.linear.noiseFloor);
+  expect(got!.linear.noiseSigma).toBe(expected.linear.noiseSigma);
+  expect(got!.linear.masked).toBe(expected.linear.masked);
+  expect(got!.linear.planes).toEqual(expected.linear.planes);
+}
+
 describe("prepare pool", () => {
-  it.each(["tiff", "jpeg"] as const)("gives the same planes, masks and limb fit as the calling thread for %s frames", async (format) => {
+  it.each(["tiff", "jpeg"] as const)("decodes %s frames as the calling thread does, and searches linear ones for defects", async (format) => {
     const path = fixture.filesOf(format)[1];
-    const exposureS = fixture.exposuresS[1];
-    const pooled = await pool.run(path, basename(path), DEFAULT_REDUCTION_PARAMS, exposureS);
-    expect(pooled?.prepared).toBeDefined();
-    expect(pooled!.preparedExposureS).toBe(exposureS);
-    const local = await decodeFrame(path, basename(path));
-    const frame = toLinearFrame(local, exposureS);
-    const expected = prepareFrame(frame, DEFAULT_REDUCTION_PARAMS, frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined);
+    const pooled = await pool.decode(path, basename(path), true);
+    const local = await decodeHere(path, fixture.exposuresS[1]);
+    expect(pooled).toBeDefined();
     pooled!.decoded.image.planes.forEach((plane, c) => expect(plane).toEqual(local.image.planes[c]));
-    const got = pooled!.prepared!;
-    expect(got.limb).toEqual(expected.limb);
-    expect(got.luminance).toEqual(expected.luminance);
-    expect(got.linear.clipped).toEqual(expected.linear.clipped);
-    expect(got.linear.noiseFloor).toEqual(expected.linear.noiseFloor);
-    expect(got.linear.planes.length).toBe(expected.linear.planes.length);
+    if (format === "jpeg") expect(pooled!.outliers).toBeUndefined();
+    else expect(pooled!.outliers).toEqual(findFrameOutliers(local));
+  });
+
+  it.each(["tiff", "jpeg"] as const)("prepares %s frames as the calling thread does", async (format) => {
+    const frame = await decodeHere(fixture.filesOf(format)[1], fixture.exposuresS[1]);
+    const expected = prepareFrame(frame, DEFAULT_REDUCTION_PARAMS, frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined);
+    expectSamePrepared(await pool.prepare(frame, DEFAULT_REDUCTION_PARAMS), expected);
+  });
+
+  it("prepares a frame with a defect map, from planes spilled to disk, and hands back the caller's own map", async () => {
+    const frame = await decodeHere(fixture.filesOf("tiff")[2], fixture.exposuresS[2]);
+    const { width, height } = frame.image;
+    const badPixels = new Uint8Array(width * height);
+    // A few defects, one of them beside the limb's band: the repaired luminance must match.
+    for (const i of [5 * width + 7, (height >> 1) * width + (width >> 1), (height >> 1) * width + (width >> 2)]) badPixels[i] = 1;
+    const withDefects: LinearFrame = { ...frame, badPixels };
+    const expected = prepareFrame(withDefects, DEFAULT_REDUCTION_PARAMS);
+    const spill = createFrameSpill();
+    try {
+      spill.spillField(withDefects.image, "planes");
+      const files = spill.filesOf(withDefects.image, "planes");
+      expect(files).toHaveLength(frame.image.planes.length);
+      const got = await pool.prepare(withDefects, DEFAULT_REDUCTION_PARAMS, files);
+      expectSamePrepared(got, expected);
+      expect(got!.linear.masked).toBe(badPixels);
+    } finally {
+      spill.close();
+    }
   });
 
   it("answers undefined for a file it cannot decode, and keeps working", async () => {
     const bad = join(fixture.dir, "not-an-image.tif");
     writeFileSync(bad, "II*\0 this is not a TIFF");
-    expect(await pool.run(bad, basename(bad), DEFAULT_REDUCTION_PARAMS, 1)).toBeUndefined();
+    expect(await pool.decode(bad, basename(bad), true)).toBeUndefined();
     const path = fixture.filesOf("tiff")[0];
-    expect((await pool.run(path, basename(path), DEFAULT_REDUCTION_PARAMS, fixture.exposuresS[0]))?.prepared).toBeDefined();
+    expect((await pool.decode(path, basename(path), false))?.decoded).toBeDefined();
+  });
+
+  it("answers undefined for a frame it cannot prepare, and keeps working", async () => {
+    const frame = await decodeHere(fixture.filesOf("tiff")[0], fixture.exposuresS[0]);
+    expect(await pool.prepare(frame, { ...DEFAULT_REDUCTION_PARAMS, clipFraction: 2 })).toBeUndefined();
+    expect(await pool.prepare(frame, DEFAULT_REDUCTION_PARAMS)).toBeDefined();
   });
 });

@@ -1,0 +1,168 @@
+// The per-frame stages' faster forms give exactly what their definitions give:
+// each is compared, value for value, with the plain computation written out here
+// (every pixel's full test, a sort, a brute-force dilation).
+import { describe, expect, it } from "vitest";
+import { dilateMask } from "@/lib/imaging/blur";
+import { combineBracketOutliers, findBadPixelsFromBracket, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
+import { downsampleMean, downsampleMeanOf } from "@/lib/imaging/coarse-disk";
+import { estimateDarkNoiseSigma } from "@/lib/imaging/linearize";
+import { createRng } from "@/lib/imaging/random";
+import { findKthSmallest } from "@/lib/imaging/select";
+import type { LinearFrame } from "@/lib/imaging/types";
+
+function noisyPlane(width: number, height: number, seed: number, level = 1000, sigma = 12): Float32Array {
+  const rng = createRng(seed);
+  const p = new Float32Array(width * height);
+  // A smooth ramp (a corona's gradient) plus noise: both flat and sloped regions.
+  for (let y = 0; y < height; y++) for (let x = 0; x < width; x++) p[y * width + x] = Math.round(level + 3 * x + sigma * (rng() + rng() + rng() - 1.5) * 2);
+  return p;
+}
+
+function frameOf(name: string, planes: Float32Array[], width: number, height: number): LinearFrame {
+  return { name, image: { width, height, planes }, exposureS: 1, blackLevel: 0, whiteLevel: 65535, encoding: "linear" };
+}
+
+/** findBadPixelsFromBracket's rule as its comment states it, for every interior pixel. */
+function findBadPixelsPlainly(frames: LinearFrame[], contrast = 2, sigmas = 8, minFrames = 2): Uint8Array {
+  const { width, height } = frames[0].image;
+  const counts = new Uint8Array(width * height);
+  for (const frame of frames) {
+    const seen = new Uint8Array(width * height);
+    for (const p of frame.image.planes) {
+      const minExcess = sigmas * Math.max(estimateDarkNoiseSigma(p, width, height), 1 / Math.sqrt(12));
+      for (let y = 1; y < height - 1; y++) {
+        for (let x = 1; x < width - 1; x++) {
+          const i = y * width + x;
+          let lo = Infinity;
+          let hi = -Infinity;
+          for (let dy = -1; dy <= 1; dy++) {
+            for (let dx = -1; dx <= 1; dx++) {
+              if (dx === 0 && dy === 0) continue;
+              const v = p[i + dy * width + dx];
+              if (v < lo) lo = v;
+              if (v > hi) hi = v;
+            }
+          }
+          const limit = Math.max(minExcess, contrast * (hi - lo));
+          if (p[i] - hi > limit || lo - p[i] > limit) seen[i] = 1;
+        }
+      }
+    }
+    for (let i = 0; i < seen.length; i++) counts[i] += seen[i];
+  }
+  return Uint8Array.from(counts, (c) => (frames.length >= minFrames && c >= minFrames ? 1 : 0));
+}
+
+/** estimateDarkNoiseSigma's rule written with sorts and a division per pixel. */
+function estimateDarkNoisePlainly(plane: Float32Array, width: number, height: number): number {
+  const bw = Math.ceil(width / 8);
+  const bh = Math.ceil(height / 8);
+  const sum = new Float64Array(bw * bh);
+  const count = new Uint32Array(bw * bh);
+  for (let y = 0; y < height; y++) {
+    for (let x = 0; x < width; x++) {
+      const b = Math.floor(y / 8) * bw + Math.floor(x / 8);
+      sum[b] += plane[y * width + x];
+      count[b]++;
+    }
+  }
+  const means = Float64Array.from(sum, (s, b) => s / count[b]);
+  const darkLimit = Float64Array.from(means).sort()[Math.floor(means.length * 0.25)];
+  const step = Math.max(1, Math.round(Math.sqrt((width * height) / 250_000)));
+  const responses: number[] = [];
+  for (let y = 1; y < height - 1; y += step) {
+    for (let x = 1; x < width - 1; x += step) {
+      if (means[Math.floor(y / 8) * bw + Math.floor(x / 8)] > darkLimit) continue;
+      const at = (dx: number, dy: number) => plane[(y + dy) * width + x + dx];
+      const v = at(-1, -1) - 2 * at(0, -1) + at(1, -1) - 2 * at(-1, 0) + 4 * at(0, 0) - 2 * at(1, 0) + at(-1, 1) - 2 * at(0, 1) + at(1, 1);
+      responses.push(Math.abs(v));
+    }
+  }
+  if (responses.length === 0) return 0;
+  const sorted = Float32Array.from(responses).sort();
+  return sorted[responses.length >> 1] / (6 * 0.6745);
+}
+
+describe("the bracket's defect search", () => {
+  it("flags exactly the pixels the full 8-neighbour test flags, in one and three planes", () => {
+    const [width, height] = [61, 47];
+    for (const planeCount of [1, 3]) {
+      const frames = [0, 1, 2].map((k) => {
+        const planes = Array.from({ length: planeCount }, (_, c) => noisyPlane(width, height, 10 * k + c + 1));
+        // Hot pixels at fixed places (all frames), a cosmic ray (one frame), a dead pixel, a sharp edge.
+        for (const p of planes) {
+          p[10 * width + 10] += 4000;
+          p[30 * width + 40] -= 900;
+          for (let y = 0; y < height; y++) p[y * width + 50] += 3000;
+        }
+        if (k === 1) planes[0][20 * width + 20] += 5000;
+        // A hot pixel beside a NaN (a FITS blank): the full test ignores the NaN neighbour.
+        planes[0][25 * width + 25] += 5000;
+        if (k === 2) planes[0][25 * width + 26] = NaN;
+        return frameOf(`f${k}`, planes, width, height);
+      });
+      const expected = findBadPixelsPlainly(frames);
+      const got = findBadPixelsFromBracket(frames);
+      expect(Array.from(got)).toEqual(Array.from(expected));
+      expect(got[10 * width + 10]).toBe(1);
+      expect(got[20 * width + 20]).toBe(0);
+      expect(findFrameOutliers(frames[2])).toContain(25 * width + 25);
+      // Searched frame by frame (as worker threads do) and combined: the same map.
+      expect(combineBracketOutliers(frames.map((f) => findFrameOutliers(f)), width * height)).toEqual(got);
+    }
+  });
+
+  it("gives an empty map with fewer frames than the rule needs", () => {
+    const frame = frameOf("one", [noisyPlane(20, 20, 5)], 20, 20);
+    frame.image.planes[0][50] += 9000;
+    expect(findBadPixelsFromBracket([frame]).some((v) => v === 1)).toBe(false);
+    expect(findFrameOutliers(frame)).toEqual(Uint32Array.of(50));
+  });
+});
+
+describe("the dark-noise estimate", () => {
+  it.each([[37, 29], [64, 64], [1100, 600]])("is the sorted computation's value at %i x %i", (width, height) => {
+    const plane = noisyPlane(width, height, width + height, 200, 7.5);
+    expect(estimateDarkNoiseSigma(plane, width, height)).toBe(estimateDarkNoisePlainly(plane, width, height));
+  });
+});
+
+describe("selection and box means", () => {
+  it("finds the value a typed sort puts at k, with ties and NaN", () => {
+    const rng = createRng(9);
+    const values = Float64Array.from({ length: 501 }, () => Math.round(rng() * 50));
+    values[7] = NaN;
+    values[300] = NaN;
+    const sorted = Float64Array.from(values).sort();
+    for (const k of [0, 1, 125, 250, 498, 499, 500]) expect(findKthSmallest(Float64Array.from(values), k)).toBe(sorted[k]);
+    expect(findKthSmallest(new Float32Array(0), 0)).toBeUndefined();
+  });
+
+  it("box-averages as the per-pixel form does", () => {
+    const plane = noisyPlane(53, 31, 4);
+    for (const factor of [1, 2, 3, 8]) expect(downsampleMean(plane, 53, 31, factor)).toEqual(downsampleMeanOf(53, 31, factor, (i) => plane[i]));
+  });
+});
+
+describe("dilation by the 3 x 3 square", () => {
+  it.each([[23, 17], [1, 9], [9, 1], [1, 1]])("equals the brute-force dilation at %i x %i", (width, height) => {
+    const rng = createRng(width * 31 + height);
+    const mask = Uint8Array.from({ length: width * height }, () => (rng() < 0.06 ? 1 : 0));
+    mask[0] = 1;
+    const expected = new Uint8Array(width * height);
+    for (let y = 0; y < height; y++) {
+      for (let x = 0; x < width; x++) {
+        for (let dy = -1; dy <= 1; dy++) {
+          for (let dx = -1; dx <= 1; dx++) {
+            const u = x + dx, v = y + dy;
+            if (u >= 0 && v >= 0 && u < width && v < height && mask[v * width + u]) expected[y * width + x] = 1;
+          }
+        }
+      }
+    }
+    expect(dilateMask(mask, width, height, 1)).toEqual(expected);
+    expect(dilateMask(mask, width, height, 1.5)).toEqual(expected);
+    const scratch: [Uint8Array, Uint8Array] = [new Uint8Array(width * height).fill(7), new Uint8Array(width * height).fill(7)];
+    expect(dilateMask(mask, width, height, 1, scratch)).toEqual(expected);
+  });
+});
