@@ -29,7 +29,7 @@ import { AppError } from "@/lib/errors";
 import { addKeptFrame, createMergePass, createWarpScratch, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
 import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
 import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters } from "@/lib/imaging/calibrate";
-import { combineDefectCandidates, markFrameDefectCandidates } from "./bracket-defects";
+import { combineBracketOutliers, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { ImagingError } from "@/lib/imaging/errors";
 import { prepareFrame } from "@/lib/imaging/frame-stage";
 import type { LimbFit } from "@/lib/imaging/limb-fit";
@@ -368,7 +368,7 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
           const ready = masters && frame.encoding === "linear" ? calibrateLightFrame(frame, masters) : frame;
           await putWork(place, `frame-${ctx.payload.part}`, ready);
           // Without calibration frames, the survey finds the defects in the bracket: this frame's marks, counted there.
-          if (!masters && frame.encoding === "linear") await putWork(place, `defects-${ctx.payload.part}`, markFrameDefectCandidates(frame));
+          if (!masters && frame.encoding === "linear") await putWork(place, `defects-${ctx.payload.part}`, findFrameOutliers(frame));
           const { path: _path, ...rest } = provenance;
           return JSON.parse(JSON.stringify({ provenance: rest, encoding: frame.encoding, width: frame.image.width, height: frame.image.height } satisfies DecodeResult)) as FlowValue;
         });
@@ -416,7 +416,7 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
             for (const i of decoded) lists.push(await getWork<Uint32Array>(place, `defects-${i}`, dir));
             return lists;
           });
-          const badPixels = combineDefectCandidates(candidates, first.width * first.height);
+          const badPixels = combineBracketOutliers(candidates, first.width * first.height);
           const count = countSet(badPixels);
           return { calibration: { source: count > 0 ? "bracket" : "none", badPixelCount: count } as CalibrationReport, defects: count > 0 ? badPixels : undefined };
         })();

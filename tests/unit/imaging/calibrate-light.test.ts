@@ -3,7 +3,7 @@
 // findBadPixelsFromBracket finds the sensor's defects without calibration frames
 // and leaves the limb and the prominences alone. Invented data; analytic checks.
 import { beforeAll, describe, expect, it } from "vitest";
-import { combineDefectCandidates, markFrameDefectCandidates } from "@/lib/reduction-flow/bracket-defects";
+import { combineBracketOutliers, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { buildCalibrationMasters, calibrateLightFrame, computeMedian, findBadPixelsFromBracket, type CalibrationMasters } from "@/lib/imaging/calibrate";
 import { createSensorModel, recordLightFrames, synthesizeBiasFrames, synthesizeDarkFrames, synthesizeFlatFrames, type SensorModel } from "@/lib/imaging/synth-calibration";
 import { synthesizeBracket, type SynthFrame, type SynthTruth } from "@/lib/imaging/synth-model";
@@ -187,14 +187,14 @@ describe("findBadPixelsFromBracket", () => {
   });
 
   it("gives the same map when each frame marks its candidates apart and the marks are counted (the app's flow)", () => {
-    const candidates = lights.map(markFrameDefectCandidates);
+    const candidates = lights.map((f) => findFrameOutliers(f));
     // Each frame marks some pixels, and not every pixel any frame marks is a defect of the bracket.
     expect(candidates.every((c) => c.length > 0)).toBe(true);
     const whole = findBadPixelsFromBracket(lights);
     expect(new Set(candidates.flatMap((c) => [...c])).size).toBeGreaterThan(whole.reduce((n, v) => n + v, 0));
-    expect(combineDefectCandidates(candidates, SIZE)).toEqual(whole);
+    expect(combineBracketOutliers(candidates, SIZE)).toEqual(whole);
     // One frame alone proves nothing: no map.
-    expect(combineDefectCandidates(candidates.slice(0, 1), SIZE).some((v) => v === 1)).toBe(false);
+    expect(combineBracketOutliers(candidates.slice(0, 1), SIZE).some((v) => v === 1)).toBe(false);
   });
 
   it("leaves a sharp limb and bright prominences alone when the camera does not move", () => {
