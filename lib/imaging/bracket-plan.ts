@@ -79,22 +79,18 @@ export function describeTransmission(tau: number): string | undefined {
 
 /** Offsets and transmissions of linear frames, measured on the registered bracket (frame-levels.ts). */
 function measureFrameLevels(frames: LinearFrame[], ready: PreparedFrame[], registration: FrameRegistration[], referenceLimb: LimbFit, width: number, height: number): FrameLevels {
-  // Pixel data is read when a pair needs it (the prepared frames may keep it on disk), never all at once.
-  const sources: LevelSource[] = ready.map((p, i) => ({
+  // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
+  // Pixel data is read when the measurement reaches the frame (the prepared frames may keep it on disk), never all at once.
+  const sources: (LevelSource | undefined)[] = ready.map((p, i) => (registration[i].method === "failed" ? undefined : {
     width, height, masterToFrame: registration[i].masterToFrame, noiseSigma: p.linear.noiseSigma,
     get luminance() { return p.luminance; },
-    get excluded() {
-      const { clipped, masked } = p.linear;
-      return masked ? Uint8Array.from(clipped, (c, k) => c | masked[k]) : clipped;
-    },
+    get excluded() { return p.linear.clipped; },
+    get masked() { return p.linear.masked; },
   }));
   // Keep well clear of the Moon, which moves between frames, and of its limb light.
   const moon = { x: referenceLimb.x, y: referenceLimb.y, radiusPx: 1.06 * referenceLimb.radiusPx + 4 };
   const levelFrames = frames.map((f) => ({ exposureS: f.exposureS, isOffsetKnown: f.blackLevelSource === "calibrated" || f.blackLevelSource === "file" }));
-  // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
-  const placed = registration.map((r) => r.method !== "failed");
-  const result = measureBracketLevels(sources.map((src, i) => (placed[i] ? src : { ...src, luminance: new Float32Array(0), excluded: new Uint8Array(width * height).fill(1) })), levelFrames, width, height, moon);
-  return result;
+  return measureBracketLevels(sources, levelFrames, width, height, moon);
 }
 
 /** Refuses a bracket that cannot be reduced, naming the frame at fault. */

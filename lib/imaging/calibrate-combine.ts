@@ -2,6 +2,7 @@
 // rejection, and the exact medians the calibration masters are normalised by.
 // Pure: typed arrays in, typed arrays out.
 import { ImagingError, requireNumberInRange } from "./errors";
+import { selectKth } from "./select";
 
 /**
  * Sigma clipping as astropy's sigma_clip does it (astropy.stats, version 5.2 as
@@ -147,39 +148,6 @@ export function combineSigmaClippedMedian(stack: Float32Array[], options?: Sigma
     combined[i] = medianOfSorted(kept, m);
   }
   return { combined, rejectedFraction: rejected / (n * size) };
-}
-
-/**
- * Moves the k-th smallest of a[lo..hi] to a[k], smaller ones before it and larger
- * after (Hoare's selection, "Algorithm 65: FIND", CACM 4:321, 1961, with a
- * median-of-three pivot): linear time on average, where a full sort of a
- * many-megapixel plane is not.
- */
-function selectKth(a: Float32Array, k: number): void {
-  let lo = 0;
-  let hi = a.length - 1;
-  while (hi > lo) {
-    const mid = (lo + hi) >> 1;
-    // Median of three as the pivot guards against sorted and constant runs.
-    const x = a[lo], y = a[mid], z = a[hi];
-    const pivot = x < y ? (y < z ? y : x < z ? z : x) : x < z ? x : y < z ? z : y;
-    let i = lo;
-    let j = hi;
-    while (i <= j) {
-      while (a[i] < pivot) i++;
-      while (a[j] > pivot) j--;
-      if (i <= j) {
-        const t = a[i];
-        a[i] = a[j];
-        a[j] = t;
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) hi = j;
-    else if (k >= i) lo = i;
-    else return;
-  }
 }
 
 /** Exact median of the values (where valid is 1, when given; NaN left out), as numpy's median; NaN when none. */
