@@ -3,8 +3,9 @@
 // linear sensor records y = o + tau t E: the counts of one frame against the
 // other's fall on a straight line y_i = alpha y_j + beta with
 //   alpha = (tau_i t_i) / (tau_j t_j),  beta = o_i - alpha o_j.
-// A robust line through binned medians of many such pixel pairs gives alpha and
-// beta for each pair of frames; least squares over all pairs then gives every
+// A robust line through binned means of many such pairs (the frames' means over
+// the same blocks of master pixels, level-samples.ts) gives alpha and beta for
+// each pair of frames; least squares over all pairs then gives every
 // frame's offset o and the log of its transmission tau (a passing cloud, or a
 // shutter whose real time differs from the stated one).
 //
@@ -69,7 +70,7 @@ function midMean(values: Float32Array): number {
   const hi = Math.max(lo + 1, Math.ceil((3 * n) / 4));
   // After these, values[lo .. hi - 1] hold the ranks lo .. hi - 1, in some order.
   selectKth(values, lo);
-  selectKth(values.subarray(lo), hi - 1 - lo);
+  selectKth(values, hi - 1, lo);
   let sum = 0;
   for (let k = lo; k < hi; k++) sum += values[k];
   return sum / (hi - lo);
