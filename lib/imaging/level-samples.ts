@@ -93,16 +93,17 @@ export function measureBlockMeans(source: LevelSource | undefined, grid: LevelGr
     for (let bx = 0; bx < columns; bx++) {
       if (isMoon[by * columns + bx]) continue;
       const mx0 = bx * s;
-      // Frame position of master pixel (mx, my): x = a mx - b my + tx, y = b mx + a my + ty.
-      // The map is affine: the footprint's extremes are at the corners, (mx0, my0) plus 0 or s - 1 in each axis.
+      // Frame position of master pixel (mx, my): x = a mx - b my + tx, y = b mx + a my + ty. The map
+      // is affine, so the footprint's extremes are at the block's corners: (mx0, my0) plus 0 or s - 1
+      // along master x, which moves the frame position by (a, b) (s - 1), and along master y, by (-b, a) (s - 1).
       const x00 = a * mx0 - b * my0 + tx;
       const y00 = b * mx0 + a * my0 + ty;
-      const ax = a * (s - 1), bx_ = b * (s - 1);
-      // Corner offsets: along x (ax, bx_), along y (-bx_, ax); the extremes add the negative or the positive parts.
-      const minX = x00 + Math.min(0, ax) + Math.min(0, -bx_);
-      const maxX = x00 + Math.max(0, ax) + Math.max(0, -bx_);
-      const minY = y00 + Math.min(0, bx_) + Math.min(0, ax);
-      const maxY = y00 + Math.max(0, bx_) + Math.max(0, ax);
+      const as = a * (s - 1);
+      const bs = b * (s - 1);
+      const minX = x00 + Math.min(0, as) + Math.min(0, -bs);
+      const maxX = x00 + Math.max(0, as) + Math.max(0, -bs);
+      const minY = y00 + Math.min(0, bs) + Math.min(0, as);
+      const maxY = y00 + Math.max(0, bs) + Math.max(0, as);
       // Every bilinear sample needs pixels floor(x) .. floor(x) + 1 (and so in y) inside the frame.
       if (!(minX >= 0 && minY >= 0)) continue;
       const fx0 = Math.floor(minX);
