@@ -217,14 +217,20 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
     progress("levels", 0);
     levels = measureFrameLevels(work, ready, registration.frames, ready[registration.referenceIndex].limb, width, height);
     let moved = false;
+    let changed = false;
     work.forEach((f, i) => {
       const source = f.blackLevelSource ?? "none";
       if ((source === "none" || source === "solved") && !levels!.undetermined.includes(i)) {
         const o = levels!.offsets[i];
         // A DN count cannot sit below zero: a solved residual a hair under it is noise about a data set already at zero.
-        work[i] = { ...f, blackLevel: Math.max(0, f.blackLevel + o), blackLevelSource: "solved" };
-        const linear = linearizeFrame(work[i], params.clipFraction, { keepPlanes: false });
-        ready[i] = keepFrame({ linear, luminance: linear.luminance, limb: ready[i].limb });
+        const blackLevel = Math.max(0, f.blackLevel + o);
+        work[i] = { ...f, blackLevel, blackLevelSource: "solved" };
+        // A residual clamped back to the black level already used changes nothing: the frame stays as prepared.
+        if (blackLevel !== f.blackLevel) {
+          changed = true;
+          const linear = linearizeFrame(work[i], params.clipFraction, { keepPlanes: false });
+          ready[i] = keepFrame({ linear, luminance: linear.luminance, limb: ready[i].limb });
+        }
         if (Math.abs(o) > 3 * Math.max(ready[i].linear.noiseSigma, 1e-9)) moved = true;
       }
       const tau = levels!.transmissions[i];
@@ -232,7 +238,8 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
       if (Number.isFinite(tau) && Math.abs(tau - 1) > Math.max(TRANSMISSION_TOLERANCE, 4 * (Number.isFinite(sigma) ? sigma : Infinity))) transmissionUsed[i] = tau;
     });
     lap("levels");
-    if (moved) {
+    // Registered again only when some frame's counts changed (the same frames register the same way).
+    if (moved && changed) {
       registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
       lap("register");
     }
