@@ -79,22 +79,18 @@ export function describeTransmission(tau: number): string | undefined {
 
 /** Offsets and transmissions of linear frames, measured on the registered bracket (frame-levels.ts). */
 function measureFrameLevels(frames: LinearFrame[], ready: PreparedFrame[], registration: FrameRegistration[], referenceLimb: LimbFit, width: number, height: number): FrameLevels {
-  // Pixel data is read when a pair needs it (the prepared frames may keep it on disk), never all at once.
-  const sources: LevelSource[] = ready.map((p, i) => ({
+  // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
+  // Pixel data is read when the measurement reaches the frame (the prepared frames may keep it on disk), never all at once.
+  const sources: (LevelSource | undefined)[] = ready.map((p, i) => (registration[i].method === "failed" ? undefined : {
     width, height, masterToFrame: registration[i].masterToFrame, noiseSigma: p.linear.noiseSigma,
     get luminance() { return p.luminance; },
-    get excluded() {
-      const { clipped, masked } = p.linear;
-      return masked ? Uint8Array.from(clipped, (c, k) => c | masked[k]) : clipped;
-    },
+    get excluded() { return p.linear.clipped; },
+    get masked() { return p.linear.masked; },
   }));
   // Keep well clear of the Moon, which moves between frames, and of its limb light.
   const moon = { x: referenceLimb.x, y: referenceLimb.y, radiusPx: 1.06 * referenceLimb.radiusPx + 4 };
   const levelFrames = frames.map((f) => ({ exposureS: f.exposureS, isOffsetKnown: f.blackLevelSource === "calibrated" || f.blackLevelSource === "file" }));
-  // Frames the registration could not place are left out of the measurement (they are left out of the merge too).
-  const placed = registration.map((r) => r.method !== "failed");
-  const result = measureBracketLevels(sources.map((src, i) => (placed[i] ? src : { ...src, luminance: new Float32Array(0), excluded: new Uint8Array(width * height).fill(1) })), levelFrames, width, height, moon);
-  return result;
+  return measureBracketLevels(sources, levelFrames, width, height, moon);
 }
 
 /** Refuses a bracket that cannot be reduced, naming the frame at fault. */
@@ -221,14 +217,20 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
     progress("levels", 0);
     levels = measureFrameLevels(work, ready, registration.frames, ready[registration.referenceIndex].limb, width, height);
     let moved = false;
+    let changed = false;
     work.forEach((f, i) => {
       const source = f.blackLevelSource ?? "none";
       if ((source === "none" || source === "solved") && !levels!.undetermined.includes(i)) {
         const o = levels!.offsets[i];
         // A DN count cannot sit below zero: a solved residual a hair under it is noise about a data set already at zero.
-        work[i] = { ...f, blackLevel: Math.max(0, f.blackLevel + o), blackLevelSource: "solved" };
-        const linear = linearizeFrame(work[i], params.clipFraction, { keepPlanes: false });
-        ready[i] = keepFrame({ linear, luminance: linear.luminance, limb: ready[i].limb });
+        const blackLevel = Math.max(0, f.blackLevel + o);
+        work[i] = { ...f, blackLevel, blackLevelSource: "solved" };
+        // A residual clamped back to the black level already used changes nothing: the frame stays as prepared.
+        if (blackLevel !== f.blackLevel) {
+          changed = true;
+          const linear = linearizeFrame(work[i], params.clipFraction, { keepPlanes: false });
+          ready[i] = keepFrame({ linear, luminance: linear.luminance, limb: ready[i].limb });
+        }
         if (Math.abs(o) > 3 * Math.max(ready[i].linear.noiseSigma, 1e-9)) moved = true;
       }
       const tau = levels!.transmissions[i];
@@ -236,7 +238,8 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
       if (Number.isFinite(tau) && Math.abs(tau - 1) > Math.max(TRANSMISSION_TOLERANCE, 4 * (Number.isFinite(sigma) ? sigma : Infinity))) transmissionUsed[i] = tau;
     });
     lap("levels");
-    if (moved) {
+    // Registered again only when some frame's counts changed (the same frames register the same way).
+    if (moved && changed) {
       registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
       lap("register");
     }

@@ -3,8 +3,9 @@
 // linear sensor records y = o + tau t E: the counts of one frame against the
 // other's fall on a straight line y_i = alpha y_j + beta with
 //   alpha = (tau_i t_i) / (tau_j t_j),  beta = o_i - alpha o_j.
-// A robust line through binned medians of many such pixel pairs gives alpha and
-// beta for each pair of frames; least squares over all pairs then gives every
+// A robust line through binned means of many such pairs (the frames' means over
+// the same blocks of master pixels, level-samples.ts) gives alpha and beta for
+// each pair of frames; least squares over all pairs then gives every
 // frame's offset o and the log of its transmission tau (a passing cloud, or a
 // shutter whose real time differs from the stated one).
 //
@@ -15,22 +16,17 @@
 // whose offset is already known (calibrated, or stated by the file) anchor it.
 // The transmissions are fixed up to one factor: their weighted median is 1.
 import { ImagingError } from "./errors";
+import { collectPairSamples, createLevelGrid, measureBlockMeans, sortIndicesByValue, type LevelSource, type PairSamples } from "./level-samples";
+import { computeMedian } from "./calibrate-combine";
 import { solveCholesky } from "./linalg";
+import { selectKth } from "./select";
+
+export type { LevelSource, PairSamples } from "./level-samples";
 
 export interface LevelFrame {
   exposureS: number;
   /** True when the offset is known (calibration frames or the file) and only a residual of zero is allowed. */
   isOffsetKnown: boolean;
-}
-
-export interface PairSamples {
-  /** Index of the shorter (or dimmer) frame: y_i. */
-  i: number;
-  /** Index of the longer frame: y_j, the regressor (its higher signal-to-noise keeps binning unbiased). */
-  j: number;
-  /** Counts above the current black level at the same master pixels. */
-  yi: Float32Array;
-  yj: Float32Array;
 }
 
 export interface PairFit {
@@ -61,24 +57,22 @@ export interface FrameLevels {
 const BIN_COUNT = 48;
 const MIN_PAIR_SAMPLES = 400;
 
-function median(values: Float64Array | number[]): number {
-  const s = Float64Array.from(values).sort();
-  const m = s.length >> 1;
-  return s.length === 0 ? NaN : s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
-}
-
 /**
  * Interquartile mean: the mean of the middle half. Robust to the outliers a bin
  * may hold (a trail, a hot pixel), and unlike a median it is not held to whole
  * numbers by data quantized to integer DN, which biased short frames' offsets by
- * up to half a DN.
+ * up to half a DN. The middle half is found by selection, not sorting; `values`
+ * is reordered.
  */
-function midMean(values: Float64Array): number {
-  const s = Float64Array.from(values).sort();
-  const lo = Math.floor(s.length / 4);
-  const hi = Math.max(lo + 1, Math.ceil((3 * s.length) / 4));
+function midMean(values: Float32Array): number {
+  const n = values.length;
+  const lo = Math.floor(n / 4);
+  const hi = Math.max(lo + 1, Math.ceil((3 * n) / 4));
+  // After these, values[lo .. hi - 1] hold the ranks lo .. hi - 1, in some order.
+  selectKth(values, lo);
+  selectKth(values, hi - 1, lo);
   let sum = 0;
-  for (let k = lo; k < hi; k++) sum += s[k];
+  for (let k = lo; k < hi; k++) sum += values[k];
   return sum / (hi - lo);
 }
 
@@ -93,26 +87,25 @@ function midMean(values: Float64Array): number {
 export function fitPairLine(samples: PairSamples): PairFit | null {
   const n = samples.yi.length;
   if (n < MIN_PAIR_SAMPLES) return null;
-  const order = new Uint32Array(n);
-  for (let k = 0; k < n; k++) order[k] = k;
-  order.sort((a, b) => samples.yj[a] - samples.yj[b]);
+  const order = sortIndicesByValue(samples.yj);
   const per = Math.floor(n / BIN_COUNT);
   const xs: number[] = [];
   const ys: number[] = [];
   const ws: number[] = [];
   for (let b = 1; b < BIN_COUNT - 1; b++) {
-    const x = new Float64Array(per);
-    const y = new Float64Array(per);
+    // The samples are float32: so are the bins, without loss.
+    const x = new Float32Array(per);
+    const y = new Float32Array(per);
     for (let k = 0; k < per; k++) {
       const idx = order[b * per + k];
       x[k] = samples.yj[idx];
       y[k] = samples.yi[idx];
     }
     const my = midMean(y);
-    const dev = new Float64Array(per);
+    const dev = new Float32Array(per);
     for (let k = 0; k < per; k++) dev[k] = Math.abs(y[k] - my);
     // Standard error of the interquartile mean: about 1.15 sigma / sqrt(n) for Gaussian data, sigma from the MAD (1.4826 MAD).
-    const se = (1.15 * 1.4826 * median(dev)) / Math.sqrt(per) + 1e-6 * Math.abs(my) + 1e-9;
+    const se = (1.15 * 1.4826 * computeMedian(dev)) / Math.sqrt(per) + 1e-6 * Math.abs(my) + 1e-9;
     xs.push(midMean(x));
     ys.push(my);
     ws.push(1 / (se * se));
@@ -247,78 +240,6 @@ export function solveFrameLevels(frames: LevelFrame[], fits: PairFit[]): FrameLe
   };
 }
 
-/** What collectPairSamples needs of one registered frame. */
-export interface LevelSource {
-  width: number;
-  height: number;
-  /** Counts above the current black level (the frame's luminance). */
-  luminance: Float32Array;
-  /** 1 = clipped (already dilated), or a sensor defect. */
-  excluded: Uint8Array;
-  masterToFrame: { a: number; b: number; tx: number; ty: number };
-  noiseSigma: number;
-}
-
-function sampleAt(plane: Float32Array, width: number, height: number, x: number, y: number): number {
-  const x0 = Math.floor(x);
-  const y0 = Math.floor(y);
-  if (x0 < 0 || y0 < 0 || x0 >= width - 1 || y0 >= height - 1) return NaN;
-  const fx = x - x0;
-  const fy = y - y0;
-  const i = y0 * width + x0;
-  const top = plane[i] + fx * (plane[i + 1] - plane[i]);
-  const bottom = plane[i + width] + fx * (plane[i + width + 1] - plane[i + width]);
-  return top + fy * (bottom - top);
-}
-
-/**
- * Pixel pairs for fitPairLine: on a regular grid of master pixels (at most about
- * maxSamples), the counts of frames i and j where both cover the pixel, neither
- * is clipped or defective there (nearest pixel and its bilinear neighbours), the
- * pixel is clear of the Moon (`moon`, master pixels, already widened by the caller)
- * and frame j's counts stand well above its dark noise (SNR_MIN sigma).
- */
-export function collectPairSamples(
-  i: number,
-  a: LevelSource,
-  j: number,
-  b: LevelSource,
-  masterWidth: number,
-  masterHeight: number,
-  moon: { x: number; y: number; radiusPx: number },
-  maxSamples = 250_000,
-): PairSamples {
-  const step = Math.max(1, Math.ceil(Math.sqrt((masterWidth * masterHeight) / maxSamples)));
-  const yi: number[] = [];
-  const yj: number[] = [];
-  const floorJ = 20 * b.noiseSigma;
-  // Pixel data read once per pair: a source's fields may be getters that build or fetch a whole frame.
-  const lumA = a.luminance, lumB = b.luminance;
-  const excludedA = a.excluded, excludedB = b.excluded;
-  const blocked = (excluded: Uint8Array, width: number, x: number, y: number) => {
-    const x0 = Math.floor(x), y0 = Math.floor(y);
-    const k = y0 * width + x0;
-    return excluded[k] || excluded[k + 1] || excluded[k + width] || excluded[k + width + 1];
-  };
-  const r2 = moon.radiusPx * moon.radiusPx;
-  for (let my = 0; my < masterHeight; my += step) {
-    for (let mx = 0; mx < masterWidth; mx += step) {
-      if ((mx - moon.x) ** 2 + (my - moon.y) ** 2 < r2) continue;
-      const ax = a.masterToFrame.a * mx - a.masterToFrame.b * my + a.masterToFrame.tx;
-      const ay = a.masterToFrame.b * mx + a.masterToFrame.a * my + a.masterToFrame.ty;
-      const bx = b.masterToFrame.a * mx - b.masterToFrame.b * my + b.masterToFrame.tx;
-      const by = b.masterToFrame.b * mx + b.masterToFrame.a * my + b.masterToFrame.ty;
-      const va = sampleAt(lumA, a.width, a.height, ax, ay);
-      const vb = sampleAt(lumB, b.width, b.height, bx, by);
-      if (!Number.isFinite(va) || !Number.isFinite(vb) || !(vb > floorJ)) continue;
-      if (blocked(excludedA, a.width, ax, ay) || blocked(excludedB, b.width, bx, by)) continue;
-      yi.push(va);
-      yj.push(vb);
-    }
-  }
-  return { i, j, yi: Float32Array.from(yi), yj: Float32Array.from(yj) };
-}
-
 /** Pairs of frames to compare: each frame with the next one and the one after in exposure order (repeats included). */
 export function choosePairs(exposuresS: number[]): { i: number; j: number }[] {
   const order = exposuresS.map((_, k) => k).sort((a, b) => exposuresS[a] - exposuresS[b] || a - b);
@@ -329,18 +250,46 @@ export function choosePairs(exposuresS: number[]): { i: number; j: number }[] {
   return pairs;
 }
 
-/** Every frame's offset and transmission from the registered bracket: samples, pair lines, then the solve. */
+/** Dark noise sigmas above which the regressor's (longer frame's) block must stand to be used. */
+const SNR_MIN = 20;
+
+/**
+ * Every frame's offset and transmission from the registered bracket: block means
+ * (level-samples.ts), pair lines, then the solve. `sources[k]` is undefined for a
+ * frame the registration could not place. Each frame is read once, in exposure
+ * order, and its block means kept only until its last pair is fitted, so that a
+ * few frames' worth of blocks are held at any time, whatever the bracket's length.
+ * `maxBlocks` bounds the blocks on the grid (MAX_LEVEL_BLOCKS by default).
+ */
 export function measureBracketLevels(
-  sources: LevelSource[],
+  sources: (LevelSource | undefined)[],
   frames: LevelFrame[],
   masterWidth: number,
   masterHeight: number,
   moon: { x: number; y: number; radiusPx: number },
+  options: { maxBlocks?: number } = {},
 ): FrameLevels {
+  const grid = createLevelGrid(masterWidth, masterHeight, moon, options.maxBlocks);
+  const pairs = choosePairs(frames.map((f) => f.exposureS));
+  const usesLeft = new Map<number, number>();
+  for (const { i, j } of pairs) for (const k of [i, j]) usesLeft.set(k, (usesLeft.get(k) ?? 0) + 1);
+  const held = new Map<number, Float32Array>();
+  const meansOf = (k: number) => {
+    let means = held.get(k);
+    if (!means) held.set(k, (means = measureBlockMeans(sources[k], grid)));
+    return means;
+  };
+  const release = (k: number) => {
+    const left = usesLeft.get(k)! - 1;
+    usesLeft.set(k, left);
+    if (left === 0) held.delete(k);
+  };
   const fits: PairFit[] = [];
-  for (const { i, j } of choosePairs(frames.map((f) => f.exposureS))) {
-    const fit = fitPairLine(collectPairSamples(i, sources[i], j, sources[j], masterWidth, masterHeight, moon));
+  for (const { i, j } of pairs) {
+    const fit = sources[i] && sources[j] ? fitPairLine(collectPairSamples(i, meansOf(i), j, meansOf(j), SNR_MIN * sources[j]!.noiseSigma)) : null;
     if (fit && fit.alpha > 0) fits.push(fit);
+    release(i);
+    release(j);
   }
   return solveFrameLevels(frames, fits);
 }
