@@ -98,7 +98,7 @@ async function main(): Promise<void> {
 
 // `npm run bench -- gallery` measures the public gallery instead (needs the app running).
 // `npm run bench -- export` measures the print bundle (no services needed).
-// `npm run bench -- scale` measures how a reduction grows with the number of frames (no services needed).
+// `npm run bench -- scale` measures how a reduction grows with the number of frames, in one process and through the app's flow (needs the services).
 const run = process.argv.includes("scale")
   ? () => import("./bench/scale").then((m) => m.runScaleBench(process.argv.slice(2)))
   : process.argv.includes("gallery")
