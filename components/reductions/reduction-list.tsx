@@ -47,9 +47,10 @@ export function ReductionList({ reductions, caption = "Reductions of this bracke
               <TableCell>
                 <Badge tone={STATE_TONES[r.state]}>{r.state}</Badge>
                 {r.state === "failed" && r.error ? <p className="mt-1 max-w-md text-sm text-danger">{r.error}</p> : null}
-                {r.state === "running" ? (
+                {/* The page's own reduction shows its live progress above; another running one, its stage when the page was read. */}
+                {r.state === "running" && r.id !== currentId ? (
                   <span className="ml-2 text-ink-muted">
-                    {describeStage(r.stage)}, {Math.round(r.progress * 100)}%
+                    {r.stage ? describeStage(r.stage) : "Starting"}, {Math.round(r.progress * 100)}%
                   </span>
                 ) : null}
               </TableCell>

@@ -33,6 +33,8 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   const [failures, setFailures] = useState(0);
   // Only a change to done or failed (seen by polling) refreshes, so the results, the reason and the list of reductions are read again.
   const refreshed = useRef(!isActive(initial.state));
+  // Leaving the queue refreshes once too: the list of reductions below shows this one's state.
+  const leftQueue = useRef(initial.state !== "queued");
 
   useEffect(() => {
     if (!isActive(current.state)) return;
@@ -62,6 +64,10 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   useEffect(() => {
     if (!isActive(current.state) && !refreshed.current) {
       refreshed.current = true;
+      leftQueue.current = true;
+      router.refresh();
+    } else if (current.state === "running" && !leftQueue.current) {
+      leftQueue.current = true;
       router.refresh();
     }
   }, [current.state, router]);

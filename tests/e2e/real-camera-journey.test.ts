@@ -109,6 +109,8 @@ describe("a real camera's bracket with calibration frames, from disk to a named 
     // The page counts frames through the stages that work frame by frame (the flow's parts).
     const frameCount = page.getByText(/^Frames (decoded|measured|merged|merged in the first pass): \d+ of 8$/).first();
     await frameCount.waitFor({ timeout: 120_000 });
+    // The list of this set's reductions follows: the one running is no longer listed as queued.
+    await page.getByRole("table", { name: /newest first/ }).getByRole("row").filter({ hasText: "This one" }).getByText("running", { exact: true }).waitFor({ timeout: 20_000 });
     await snap(page, "real-camera-01b-progress");
     await page.getByRole("heading", { name: "Corrections and frames left out" }).waitFor({ timeout: 300_000 });
     const section = page.locator(`section[aria-labelledby="corrections"]`);
