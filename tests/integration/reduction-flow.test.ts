@@ -172,7 +172,10 @@ describe("a reduction shared by worker processes", () => {
     const takers = new Set(parts.map((p) => p.processedBy?.split(":").at(-1)));
     expect(takers).toEqual(new Set([String(a.pid), String(b.pid)]));
     expect(parts.every((p) => p.attemptsStarted === 1)).toBe(true);
-    // The pieces the parts handed each other are gone.
+    // The pieces the parts handed each other are gone. The last step deletes them after it marks
+    // the reduction done: wait for the parent job itself to complete first.
+    const parent = (await queue.getJob(jobIdFor("reduction.run", { reductionId: started.id })))!;
+    await waitFor("the parent job to complete", async () => ((await parent.getState()) === "completed" ? true : undefined), 60_000, 100);
     expect(await listObjectKeys({ bucket: bucketName("derived"), prefix: buildReductionWorkPrefix(started.id) })).toEqual([]);
     await stopAll();
   }, 400_000);
