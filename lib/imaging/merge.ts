@@ -97,12 +97,8 @@ export interface MergeAccumulator {
   frameWellExposed: number[];
   /** debevec-hat: maps a linear value back to its 8-bit code. */
   codeOf?: (linear: number) => number;
-  /** Mask of the contributing pixels of the band being added (at least a band long), reused band after band (fresh pages are costly to fault in). */
+  /** debevec-hat: mask of the contributing pixels of the frame being added, reused frame after frame (fresh pages are costly to fault in). */
   useScratch?: Uint8Array;
-  /** photon: per-pixel weight of the band being added (clip taper, and the noise share with a pilot), reused band after band. */
-  weightScratch?: Float32Array;
-  /** Second pass: the band's clip tapers, which the outlier scores use, kept while weightScratch takes the noise share. */
-  taperScratch?: Float32Array;
   /** The first pass, finished: its radiance serves the second pass's weights and leave-one-out outlier test. */
   pilot?: PhotonPilot;
   /** Second pass: where some frame's outlier score passes OUTLIER_WING_SIGMAS, the frame that disagrees most with the others, and what it added. */
@@ -192,6 +188,34 @@ function computeRawScore(sums: Float32Array[], weights: Float32Array, planes: Fl
     if (Math.abs(zc) > Math.abs(worst)) worst = zc;
   }
   return Math.fround(worst);
+}
+
+/**
+ * Share of the wing's square below which the second pass's screen passes a pixel without
+ * scoring it: 2 % under, against rounding errors of about 1e-15 relative in the
+ * screen's arithmetic, which multiplies by one reciprocal where computeRawScore divides.
+ */
+const SCREEN_SHARE = 0.98;
+
+/**
+ * True when every plane's squared deviation is at most `bound` times its variance
+ * (the terms of computeRawScore), or when computeRawScore would give 0: such a
+ * pixel's |z| is below sqrt(bound / SCREEN_SHARE) on every plane. False (score it)
+ * for anything else, a NaN included.
+ */
+function isPlainPixel(sums: Float32Array[], weights: Float32Array, planes: Float32Array[], i: number, k: number, t: number, taperK: number, read2: number, bound: number): boolean {
+  const tLoo = weights[i] - taperK * t;
+  if (!(tLoo > 1e-3 * t)) return true;
+  const inverse = 1 / tLoo;
+  for (let c = 0; c < planes.length; c++) {
+    const y = planes[c][k];
+    const eLoo = (sums[c][i] - taperK * y) * inverse;
+    const predicted = t * eLoo;
+    const variance = Math.max(predicted, 0) + read2 + t * t * Math.max(eLoo, 0) * inverse + 1e-6;
+    const d = y - predicted;
+    if (!(d * d <= bound * variance)) return false;
+  }
+  return true;
 }
 
 /** The clip taper of a frame's pixel k on its brightest plane (see computeClipTaper). */
@@ -305,6 +329,8 @@ function scratchOf<T extends Uint8Array | Float32Array>(held: T | undefined, len
 // The loops of addBandToMerge, one small function each: V8 optimizes a function
 // with one hot loop at once, where one long function with many loops was
 // compiled again and again as each loop became hot (about 4x slower measured).
+// The linear merge's passes are one loop each (addFirstPassBand, addSecondPassBand):
+// one read of the band's arrays per pixel instead of one per step.
 
 /** use[k] = 1 where the band's pixel takes part (covered, no defect, not clipped); where clipped, the fallback's lower bound. */
 function markUsable(band: MergeFrameInput, use: Uint8Array, fallback: Float32Array, offset: number, bound: number): void {
@@ -320,70 +346,106 @@ function markUsable(band: MergeFrameInput, use: Uint8Array, fallback: Float32Arr
   }
 }
 
-/** The clip taper of every usable pixel (0 elsewhere). */
-function fillTapers(planes: Float32Array[], clipLevel: number, use: Uint8Array, taper: Float32Array): void {
-  for (let k = 0; k < use.length; k++) taper[k] = use[k] ? computePixelTaper(planes, clipLevel, k) : 0;
-}
-
-/** First pass: each usable pixel's exposure weight (taper t) into the accumulator; returns the running weight sum. */
-function weighFirstPass(use: Uint8Array, taper: Float32Array, exposure: Float64Array, offset: number, t: number, weightSum: number): number {
-  for (let k = 0; k < use.length; k++) {
-    if (!use[k] || !(taper[k] > 0)) { use[k] = 0; continue; }
-    exposure[offset + k] += taper[k] * t;
-    weightSum += taper[k] * t;
+/**
+ * First pass over one band of a linear frame, in one loop (one pass over the band's
+ * arrays): a pixel takes part when covered, free of defects and not clipped (a
+ * clipped one raises the fallback's lower bound `bound`); its weight is its clip
+ * taper (computePixelTaper, kept as float32) times the exposure; the weighted
+ * planes go into the sums, and the pixel counts as contributing (and, above the
+ * noise floor, as covering).
+ */
+function addFirstPassBand(acc: MergeAccumulator, band: MergeFrameInput, offset: number, bound: number, tally: MergeFrameTally): void {
+  const { planes, covered, masked, clipped, noiseFloor, clipLevel, exposureS: t } = band;
+  const { sums, fallback, coverage } = acc;
+  const exposure = acc.weights[0];
+  const channels = planes.length;
+  const len = clipped.length;
+  let weightSum = tally.weightSum, contributing = 0, well = 0;
+  for (let k = 0; k < len; k++) {
+    if (covered && !covered[k]) continue;
+    if (masked && masked[k]) continue;
+    const i = offset + k;
+    if (clipped[k]) {
+      if (bound > fallback[i]) fallback[i] = bound;
+      continue;
+    }
+    const taper = Math.fround(computePixelTaper(planes, clipLevel, k));
+    if (!(taper > 0)) continue;
+    exposure[i] += taper * t;
+    weightSum += taper * t;
+    for (let c = 0; c < channels; c++) sums[c][i] += taper * planes[c][k];
+    contributing++;
+    if (!noiseFloor[k]) {
+      coverage[i]++;
+      well++;
+    }
   }
-  return weightSum;
+  tally.weightSum = weightSum;
+  tally.contributing += contributing;
+  tally.well += well;
 }
 
 /**
- * Second pass: the noise share at the pilot's radiance makes each pixel's weight
- * (taper[k] becomes it), added to the exposure weights; returns the running weight sum.
+ * Second pass over one band, in one loop: as the first, but each pixel's weight is
+ * its clip taper times its noise share at the pilot's radiance (float32), and,
+ * with a worst-frame record (`candidates`, `scale`), each used pixel's outlier
+ * score is taken with its clip taper alone; pixels scoring above
+ * OUTLIER_WING_SIGMAS join the frame's candidates.
  */
-function weighSecondPass(use: Uint8Array, taper: Float32Array, exposure: Float64Array, offset: number, t: number, read2: number, lum: Float32Array, pilotWeights: Float32Array, weightSum: number): number {
-  for (let k = 0; k < use.length; k++) {
-    if (!use[k]) continue;
+function addSecondPassBand(
+  acc: MergeAccumulator, pilot: PhotonPilot, band: MergeFrameInput, offset: number, bound: number, read2: number,
+  scale: number | undefined, candidates: WorstCandidates | undefined, tally: MergeFrameTally,
+): void {
+  const { planes, covered, masked, clipped, noiseFloor, clipLevel, exposureS: t } = band;
+  const { sums, fallback, coverage } = acc;
+  const exposure = acc.weights[0];
+  const channels = planes.length;
+  const len = clipped.length;
+  const lum = pilot.sums[channels === 3 ? 1 : 0];
+  const pilotWeights = pilot.weights;
+  // See isPlainPixel: below this, a pixel cannot pass the wing.
+  const screenBound = scale === undefined ? 0 : SCREEN_SHARE * (OUTLIER_WING_SIGMAS * scale) ** 2;
+  let weightSum = tally.weightSum, contributing = 0, well = 0, considered = 0;
+  for (let k = 0; k < len; k++) {
+    if (covered && !covered[k]) continue;
+    if (masked && masked[k]) continue;
     const i = offset + k;
+    if (clipped[k]) {
+      if (bound > fallback[i]) fallback[i] = bound;
+      continue;
+    }
+    const clipTaper = Math.fround(computePixelTaper(planes, clipLevel, k));
     const expected = pilotWeights[i] > 0 ? (t * lum[i]) / pilotWeights[i] : 0;
-    const w = Math.fround(taper[k] * (expected > 0 ? expected / (expected + read2) : 1));
-    taper[k] = w;
-    if (!(w > 0)) { use[k] = 0; continue; }
+    const w = Math.fround(clipTaper * (expected > 0 ? expected / (expected + read2) : 1));
+    if (!(w > 0)) continue;
     exposure[i] += w * t;
     weightSum += w * t;
+    if (candidates && scale !== undefined) {
+      considered++;
+      if (!isPlainPixel(pilot.sums, pilotWeights, planes, i, k, t, clipTaper, read2, screenBound)) {
+        const score = scaleScore(computeRawScore(pilot.sums, pilotWeights, planes, i, k, t, clipTaper, read2), scale);
+        if (score > OUTLIER_WING_SIGMAS) {
+          if (candidates.count === candidates.pixel.length) growCandidates(candidates, channels);
+          const at = candidates.count++;
+          candidates.pixel[at] = i;
+          candidates.score[at] = score;
+          candidates.weight[at] = w * t;
+          candidates.wellExposed[at] = noiseFloor[k] ? 0 : 1;
+          for (let c = 0; c < channels; c++) candidates.contribution[c][at] = w * planes[c][k];
+        }
+      }
+    }
+    for (let c = 0; c < channels; c++) sums[c][i] += w * planes[c][k];
+    contributing++;
+    if (!noiseFloor[k]) {
+      coverage[i]++;
+      well++;
+    }
   }
-  return weightSum;
-}
-
-/**
- * Second pass: each used pixel's outlier score, taken with its clip taper alone
- * (`clipTaper`, a copy made before weighSecondPass); pixels scoring above
- * OUTLIER_WING_SIGMAS join the frame's candidates for the worst-frame record.
- * Returns how many pixels were scored.
- */
-function scoreBand(pilot: PhotonPilot, band: MergeFrameInput, use: Uint8Array, clipTaper: Float32Array, weight: Float32Array, offset: number, read2: number, scale: number, candidates: WorstCandidates): number {
-  const { planes, noiseFloor, exposureS: t } = band;
-  const channels = planes.length;
-  let considered = 0;
-  for (let k = 0; k < use.length; k++) {
-    if (!use[k]) continue;
-    considered++;
-    const i = offset + k;
-    const score = scaleScore(computeRawScore(pilot.sums, pilot.weights, planes, i, k, t, clipTaper[k], read2), scale);
-    if (!(score > OUTLIER_WING_SIGMAS)) continue;
-    if (candidates.count === candidates.pixel.length) growCandidates(candidates, channels);
-    const at = candidates.count++;
-    const w = weight[k];
-    candidates.pixel[at] = i;
-    candidates.score[at] = score;
-    candidates.weight[at] = w * t;
-    candidates.wellExposed[at] = noiseFloor[k] ? 0 : 1;
-    for (let c = 0; c < channels; c++) candidates.contribution[c][at] = w * planes[c][k];
-  }
-  return considered;
-}
-
-/** sum += taper y over the used pixels of one plane. */
-function addWeightedPlane(sum: Float32Array, plane: Float32Array, use: Uint8Array, taper: Float32Array, offset: number): void {
-  for (let k = 0; k < use.length; k++) if (use[k]) sum[offset + k] += taper[k] * plane[k];
+  tally.weightSum = weightSum;
+  tally.contributing += contributing;
+  tally.well += well;
+  tally.considered += considered;
 }
 
 /** Coverage of the used pixels above the noise floor; the tally's counts. */
@@ -413,59 +475,41 @@ export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, off
   const len = checkBand(acc, band, offset);
   const t = band.exposureS;
   const { noiseFloor } = band;
+  if (acc.weighting === "photon") {
+    const bound = band.clipLevel / t;
+    const { pilot, worst } = acc;
+    if (!pilot) addFirstPassBand(acc, band, offset, bound, tally);
+    else {
+      const read2 = (band.noiseSigma ?? 0) ** 2;
+      const scale = worst ? (tally.scale ??= measureScoreScale(tally.sample)) : undefined;
+      const candidates = worst ? (tally.candidates ??= { count: 0, pixel: new Int32Array(0), score: new Float32Array(0), weight: new Float32Array(0), wellExposed: new Uint8Array(0), contribution: [] }) : undefined;
+      addSecondPassBand(acc, pilot, band, offset, bound, read2, scale, candidates, tally);
+    }
+    return;
+  }
   // Masks, coverage and the clipped fallback (shared by every plane).
   const useScratch = scratchOf(acc.useScratch, len, (m) => new Uint8Array(m));
   acc.useScratch = useScratch.held;
   const use = useScratch.array.fill(0);
   markUsable(band, use, acc.fallback, offset, band.clipLevel / t);
-  if (acc.weighting === "photon") {
-    // Per-pixel weight factor: the clip taper on the brightest plane, then (second pass) the noise share.
-    const weightScratch = scratchOf(acc.weightScratch, len, (m) => new Float32Array(m));
-    acc.weightScratch = weightScratch.held;
-    const taper = weightScratch.array;
-    fillTapers(band.planes, band.clipLevel, use, taper);
-    const exposure = acc.weights[0];
-    const { pilot, worst } = acc;
-    if (pilot) {
-      // Second pass: the outlier scores are taken with the clip taper alone, so it is kept
-      // before the noise share turns it into the weight.
-      const read2 = (band.noiseSigma ?? 0) ** 2;
-      const clipTaper = worst ? scratchOf(acc.taperScratch, len, (m) => new Float32Array(m)) : undefined;
-      if (clipTaper) {
-        acc.taperScratch = clipTaper.held;
-        clipTaper.array.set(taper);
-      }
-      tally.weightSum = weighSecondPass(use, taper, exposure, offset, t, read2, pilot.sums[acc.channels === 3 ? 1 : 0], pilot.weights, tally.weightSum);
-      if (worst && clipTaper) {
-        const scale = (tally.scale ??= measureScoreScale(tally.sample));
-        const candidates = (tally.candidates ??= { count: 0, pixel: new Int32Array(0), score: new Float32Array(0), weight: new Float32Array(0), wellExposed: new Uint8Array(0), contribution: [] });
-        tally.considered += scoreBand(pilot, band, use, clipTaper.array, taper, offset, read2, scale, candidates);
-      }
-    } else {
-      tally.weightSum = weighFirstPass(use, taper, exposure, offset, t, tally.weightSum);
-    }
-    for (let c = 0; c < acc.channels; c++) addWeightedPlane(acc.sums[c], band.planes[c], use, taper, offset);
-  }
   countUsed(use, noiseFloor, acc.coverage, offset, tally);
-  if (acc.weighting !== "photon") {
-    // One band only (a whole frame): the weight sum runs plane by plane, as it always has.
-    if (offset !== 0 || len !== acc.width * acc.height) throw new ImagingError("bad-parameter", "the 8-bit merge adds whole frames only");
-    const logT = Math.log(t);
-    const codeOf = acc.codeOf!;
-    for (let c = 0; c < acc.channels; c++) {
-      const sum = acc.sums[c];
-      const weight = acc.weights[c];
-      const p = band.planes[c];
-      for (let i = 0; i < len; i++) {
-        if (!use[i]) continue;
-        const v = p[i];
-        if (!(v > 0)) continue;
-        const w = computeHatWeight(codeOf(v));
-        if (w <= 0) continue;
-        sum[i] += w * (Math.log(v) - logT);
-        weight[i] += w;
-        tally.weightSum += w / acc.channels;
-      }
+  // One band only (a whole frame): the weight sum runs plane by plane, as it always has.
+  if (offset !== 0 || len !== acc.width * acc.height) throw new ImagingError("bad-parameter", "the 8-bit merge adds whole frames only");
+  const logT = Math.log(t);
+  const codeOf = acc.codeOf!;
+  for (let c = 0; c < acc.channels; c++) {
+    const sum = acc.sums[c];
+    const weight = acc.weights[c];
+    const p = band.planes[c];
+    for (let i = 0; i < len; i++) {
+      if (!use[i]) continue;
+      const v = p[i];
+      if (!(v > 0)) continue;
+      const w = computeHatWeight(codeOf(v));
+      if (w <= 0) continue;
+      sum[i] += w * (Math.log(v) - logT);
+      weight[i] += w;
+      tally.weightSum += w / acc.channels;
     }
   }
 }
@@ -561,8 +605,6 @@ export function finishMerge(acc: MergeAccumulator): MergeResult {
   acc.pilot = undefined;
   acc.worst = undefined;
   acc.useScratch = undefined;
-  acc.weightScratch = undefined;
-  acc.taperScratch = undefined;
   let poorlyExposedCount = 0;
   for (let i = 0; i < n; i++) if (acc.coverage[i] === 0) poorlyExposedCount++;
   const total = acc.frameWeight.reduce((s, w) => s + w, 0);

@@ -183,8 +183,8 @@ export function sliceKept(count: number): { from: number; to: number }[] {
 }
 
 /** An accumulator as stored: without its scratch buffers, code lookup and pilot (only adding frames needs those). */
-function storableAccumulator(acc: MergeAccumulator): Omit<MergeAccumulator, "codeOf" | "useScratch" | "weightScratch" | "taperScratch" | "pilot"> {
-  const { codeOf: _c, useScratch: _u, weightScratch: _w, taperScratch: _t, pilot: _p, ...rest } = acc;
+function storableAccumulator(acc: MergeAccumulator): Omit<MergeAccumulator, "codeOf" | "useScratch" | "pilot"> {
+  const { codeOf: _c, useScratch: _u, pilot: _p, ...rest } = acc;
   return rest;
 }
 

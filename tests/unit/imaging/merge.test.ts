@@ -81,7 +81,7 @@ describe("the merge's memory at the end of a pass", () => {
     expect(acc.fallback.length).toBe(0);
     expect(acc.pilot).toBeUndefined();
     expect(acc.worst).toBeUndefined();
-    expect(acc.weightScratch).toBeUndefined();
+    expect(acc.useScratch).toBeUndefined();
     expect(result.coverage).toBe(acc.coverage);
   });
 });

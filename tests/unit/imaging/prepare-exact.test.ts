@@ -1,12 +1,15 @@
 // The per-frame stages' faster forms give exactly what their definitions give:
 // each is compared, value for value, with the plain computation written out here
-// (every pixel's full test, a sort, a brute-force dilation).
+// (every pixel's full test, a sort, a brute-force dilation, the warp's 4 x 4 sum, the
+// merge's outlier score at every pixel).
 import { describe, expect, it } from "vitest";
 import { dilateMask } from "@/lib/imaging/blur";
 import { combineBracketOutliers, findBadPixelsFromBracket, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { downsampleMean, downsampleMeanOf } from "@/lib/imaging/coarse-disk";
 import { estimateDarkNoiseSigma } from "@/lib/imaging/linearize";
+import { addFrameToMerge, createMergeAccumulator, toPilot, type MergeFrameInput } from "@/lib/imaging/merge";
 import { createRng } from "@/lib/imaging/random";
+import { warpPlanes } from "@/lib/imaging/resample";
 import { findKthSmallest } from "@/lib/imaging/select";
 import type { LinearFrame } from "@/lib/imaging/types";
 
@@ -164,5 +167,96 @@ describe("dilation by the 3 x 3 square", () => {
     expect(dilateMask(mask, width, height, 1.5)).toEqual(expected);
     const scratch: [Uint8Array, Uint8Array] = [new Uint8Array(width * height).fill(7), new Uint8Array(width * height).fill(7)];
     expect(dilateMask(mask, width, height, 1, scratch)).toEqual(expected);
+  });
+});
+
+/** Keys (1981) cubic weight with a = -0.5, as resample.ts cites it. */
+function keysPlainly(s: number): number {
+  const a = -0.5;
+  const u = Math.abs(s);
+  return u <= 1 ? ((a + 2) * u - (a + 3)) * u * u + 1 : u < 2 ? ((a * u - 5 * a) * u + 8 * a) * u - 4 * a : 0;
+}
+
+describe("the bicubic warp", () => {
+  // A rotated, slightly scaled map whose window runs past every edge of the frame.
+  const width = 61, height = 47;
+  const map = { a: Math.cos(0.2) * 1.01, b: Math.sin(0.2) * 1.01, tx: -6.3, ty: 4.7 };
+  const planes = [0, 1, 2].map((c) => noisyPlane(width, height, 30 + c, 500 * (c + 1), 40));
+
+  it("gives, in one and three planes, every value the plain 4 x 4 sum with clamped edges gives", () => {
+    for (const used of [planes.slice(0, 1), planes]) {
+      const { planes: out, covered } = warpPlanes(used, width, height, map, { width, height }, "bicubic");
+      for (let v = 0; v < height; v++) {
+        for (let u = 0; u < width; u++) {
+          const sx = map.a * u - map.b * v + map.tx;
+          const sy = map.b * u + map.a * v + map.ty;
+          const inside = sx >= -0.5 && sy >= -0.5 && sx <= width - 0.5 && sy <= height - 0.5;
+          expect(covered[v * width + u]).toBe(inside ? 1 : 0);
+          const fx = Math.floor(sx), fy = Math.floor(sy);
+          used.forEach((p, c) => {
+            let sum = 0;
+            for (let r = 0; r < 4; r++) {
+              const yy = Math.min(height - 1, Math.max(0, fy - 1 + r));
+              let line = 0;
+              for (let k = 0; k < 4; k++) line += keysPlainly(sx - (fx - 1 + k)) * p[yy * width + Math.min(width - 1, Math.max(0, fx - 1 + k))];
+              sum += keysPlainly(sy - (fy - 1 + r)) * line;
+            }
+            expect(out[c][v * width + u], `plane ${c} at (${u}, ${v})`).toBe(inside ? Math.fround(sum) : 0);
+          });
+        }
+      }
+    }
+  });
+});
+
+describe("the merge's second pass", () => {
+  it("lists in its worst-frame record exactly the pixels whose plain outlier score passes the wing", () => {
+    // Four frames of a smooth scene at one level, photon noise, a few bright hits (trails, cosmic rays) and dark dips.
+    const width = 80, height = 60, n = width * height;
+    const exposures = [0.01, 0.02, 0.02, 0.04];
+    const rng = createRng(7);
+    const scene = Float32Array.from({ length: n }, (_, i) => 4e4 + 3e3 * Math.sin(i / 97));
+    const frames: MergeFrameInput[] = exposures.map((t, f) => {
+      const plane = Float32Array.from(scene, (e) => {
+        const y = e * t;
+        return y + Math.sqrt(y) * 2 * (rng() + rng() + rng() - 1.5);
+      });
+      for (let hit = 0; hit < 40; hit++) plane[Math.floor(rng() * n)] *= rng() < 0.7 ? 1.05 + rng() * 0.2 : 0.9;
+      return { planes: [plane], exposureS: t, clipped: new Uint8Array(n), noiseFloor: new Uint8Array(n), clipLevel: 6e4, noiseSigma: 3 + f };
+    });
+    const first = createMergeAccumulator(width, height, 1, "photon");
+    for (const f of frames) addFrameToMerge(first, f);
+    const pilot = toPilot(first);
+    const second = createMergeAccumulator(width, height, 1, "photon", undefined, pilot);
+    for (const f of frames) addFrameToMerge(second, f);
+
+    // The plain rule (merge.ts): leave-one-out z, its scale the frame's 1.4826 MAD of |z| at the
+    // sampled pixels (every pixel here), negative z at 0.6; the record keeps the worst frame above 2.5.
+    const scores = frames.map((f) => {
+      const t = f.exposureS, read2 = f.noiseSigma! ** 2;
+      const z = Array.from({ length: n }, (_, i) => {
+        const y = f.planes[0][i];
+        const taper = 1; // every value sits below 0.6 of the clip level
+        const tLoo = pilot.weights[i] - taper * t;
+        if (!(tLoo > 1e-3 * t)) return 0;
+        const eLoo = (pilot.sums[0][i] - taper * y) / tLoo;
+        const variance = Math.max(t * eLoo, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
+        return Math.fround((y - t * eLoo) / Math.sqrt(variance));
+      });
+      const sorted = Float32Array.from(z.filter((v) => v !== 0).map(Math.abs)).sort();
+      const scale = Math.max(0.25, 1.4826 * sorted[sorted.length >> 1]);
+      return z.map((v) => Math.fround(v > 0 ? v / scale : (0.6 * -v) / scale));
+    });
+    const expected: number[] = [];
+    for (let i = 0; i < n; i++) if (frames.some((_, f) => scores[f][i] > 2.5)) expected.push(i);
+    expect(expected.length).toBeGreaterThan(20);
+    const worst = second.worst!;
+    expect(Array.from(worst.pixel)).toEqual(expected);
+    for (let j = 0; j < worst.pixel.length; j++) {
+      const i = worst.pixel[j];
+      const best = Math.max(...scores.map((s) => s[i]));
+      expect(worst.score[j]).toBe(best);
+      expect(worst.frame[j]).toBe(scores.findIndex((s) => s[i] === best));
+    }
   });
 });
