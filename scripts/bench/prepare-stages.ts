@@ -4,7 +4,9 @@
 // the results (defect count, limb fits, transforms) go to a JSON file so that two
 // versions of the code can be compared on the same input.
 // Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
-// --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy.
+// --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy,
+// peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held.
+import { createHash } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -15,6 +17,7 @@ import { registerFrames, type RegistrationFrame } from "@/lib/imaging/register";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
+import { startMemorySampler } from "./memory-sampler";
 
 interface Args {
   dir: string;
@@ -42,26 +45,50 @@ function readArgs(argv: string[]): Args {
   return args;
 }
 
+const MB = 1024 ** 2;
+
+/** SHA-256 of master.fits after its primary header (whose DATE changes from run to run): the master's pixels, to compare two runs. */
+function hashMasterData(path: string): string {
+  const bytes = readFileSync(path);
+  let end = 0;
+  for (let card = 0; card + 80 <= bytes.length; card += 80) {
+    if (bytes.toString("latin1", card, card + 8) === "END     ") {
+      end = Math.ceil((card + 80) / 2880) * 2880;
+      break;
+    }
+  }
+  return createHash("sha256").update(bytes.subarray(end)).digest("hex");
+}
+
 /**
  * The whole single-process reduction (runReductionOnFiles) on the picked frames,
- * with the wall time, CPU time (every thread of this process) and cores busy of
- * each stage the reduction reports, from one report of progress to the next stage's.
+ * with the wall time, CPU time (every thread of this process), cores busy and peak
+ * RSS of each stage the reduction reports, from one report of progress to the next
+ * stage's, and what V8 held where the stage ended (heap in use, array buffers:
+ * the frames' typed arrays are array buffers, outside the heap).
  */
 async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"]): Promise<void> {
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-prepare-stages-"));
-  const rows: { stage: string; wallMs: number; cpuMs: number }[] = [];
+  const rows: { stage: string; wallMs: number; cpuMs: number; peakRssMb: number; endHeapMb: number; endArrayBuffersMb: number }[] = [];
   let current = "";
   let wall = performance.now();
   let cpu = process.cpuUsage();
+  const sampler = startMemorySampler(20);
+  sampler.takeSpanPeakBytes();
   const close = () => {
     const used = process.cpuUsage(cpu);
-    rows.push({ stage: current, wallMs: performance.now() - wall, cpuMs: (used.user + used.system) / 1000 });
+    const memory = process.memoryUsage();
+    rows.push({
+      stage: current, wallMs: performance.now() - wall, cpuMs: (used.user + used.system) / 1000,
+      peakRssMb: Math.round(sampler.takeSpanPeakBytes() / MB), endHeapMb: Math.round(memory.heapUsed / MB), endArrayBuffersMb: Math.round(memory.arrayBuffers / MB),
+    });
     wall = performance.now();
     cpu = process.cpuUsage();
   };
   try {
+    const outDir = join(scratch, "out");
     const { report } = await runReductionOnFiles({
-      files: picked.map((p) => p.path), outDir: join(scratch, "out"), exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
+      files: picked.map((p) => p.path), outDir, exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
       onProgress: (stage) => {
         if (stage === current) return;
         if (current) close();
@@ -69,10 +96,19 @@ async function measureRunner(picked: { path: string; exposureS: number }[], out?
       },
     });
     close();
-    console.log("stage                  wall       CPU  cores busy");
-    for (const r of rows) if (r.wallMs >= 50) console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)}`);
-    if (out) writeFileSync(out, `${JSON.stringify({ stages: rows, frames: report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform })) }, null, 2)}\n`);
+    console.log("stage                  wall       CPU  cores busy  peak RSS   at its end: heap  array buffers");
+    for (const r of rows) {
+      if (r.wallMs < 50) continue;
+      console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)} ${String(r.peakRssMb).padStart(8)} MB ${String(r.endHeapMb).padStart(10)} MB ${String(r.endArrayBuffersMb).padStart(10)} MB`);
+    }
+    const masterSha256 = hashMasterData(join(outDir, "master.fits"));
+    console.log(`peak RSS of the reduction ${Math.max(...rows.map((r) => r.peakRssMb))} MB; master's pixels SHA-256 ${masterSha256}`);
+    if (out) {
+      const frames = report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform, offset: f.offset, transmission: f.transmission, effectiveExposureS: f.effectiveExposureS }));
+      writeFileSync(out, `${JSON.stringify({ stages: rows, masterSha256, frames }, null, 2)}\n`);
+    }
   } finally {
+    await sampler.stop();
     rmSync(scratch, { recursive: true, force: true });
   }
 }
