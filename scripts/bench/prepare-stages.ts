@@ -5,7 +5,8 @@
 // versions of the code can be compared on the same input.
 // Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
 // --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy,
-// peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held.
+// peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held;
+// --stop-at STAGE ends the reduction as that stage starts (e.g. merge-pilot: the stages up to the levels alone).
 import { createHash } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -26,6 +27,7 @@ interface Args {
   out?: string;
   stages: Set<string>;
   spill?: "auto" | "always" | "never";
+  stopAt?: string;
 }
 
 function readArgs(argv: string[]): Args {
@@ -38,6 +40,7 @@ function readArgs(argv: string[]): Args {
     else if (argv[k] === "--out") args.out = value;
     else if (argv[k] === "--stages") args.stages = new Set(value.split(","));
     else if (argv[k] === "--spill") args.spill = value as Args["spill"];
+    else if (argv[k] === "--stop-at") args.stopAt = value;
     else continue;
     k++;
   }
@@ -67,7 +70,7 @@ function hashMasterData(path: string): string {
  * stage's, and what V8 held where the stage ended (heap in use, array buffers:
  * the frames' typed arrays are array buffers, outside the heap).
  */
-async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"]): Promise<void> {
+async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"], stopAt?: string): Promise<void> {
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-prepare-stages-"));
   const rows: { stage: string; wallMs: number; cpuMs: number; peakRssMb: number; endHeapMb: number; endArrayBuffersMb: number }[] = [];
   let current = "";
@@ -85,26 +88,37 @@ async function measureRunner(picked: { path: string; exposureS: number }[], out?
     wall = performance.now();
     cpu = process.cpuUsage();
   };
+  const stopped = new Error(`stopped as ${stopAt} started`);
   try {
     const outDir = join(scratch, "out");
-    const { report } = await runReductionOnFiles({
+    const run = await runReductionOnFiles({
       files: picked.map((p) => p.path), outDir, exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
       onProgress: (stage) => {
         if (stage === current) return;
         if (current) close();
         current = stage;
+        if (stage === stopAt) throw stopped;
       },
+    }).catch((error: unknown) => {
+      if (error !== stopped) throw error;
+      return undefined;
     });
-    close();
+    if (current !== stopAt) close();
     console.log("stage                  wall       CPU  cores busy  peak RSS   at its end: heap  array buffers");
     for (const r of rows) {
       if (r.wallMs < 50) continue;
       console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)} ${String(r.peakRssMb).padStart(8)} MB ${String(r.endHeapMb).padStart(10)} MB ${String(r.endArrayBuffersMb).padStart(10)} MB`);
     }
+    const peakMb = Math.max(...rows.map((r) => r.peakRssMb));
+    if (!run) {
+      console.log(`peak RSS up to ${stopAt} ${peakMb} MB`);
+      if (out) writeFileSync(out, `${JSON.stringify({ stages: rows }, null, 2)}\n`);
+      return;
+    }
     const masterSha256 = hashMasterData(join(outDir, "master.fits"));
-    console.log(`peak RSS of the reduction ${Math.max(...rows.map((r) => r.peakRssMb))} MB; master's pixels SHA-256 ${masterSha256}`);
+    console.log(`peak RSS of the reduction ${peakMb} MB; master's pixels SHA-256 ${masterSha256}`);
     if (out) {
-      const frames = report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform, offset: f.offset, transmission: f.transmission, effectiveExposureS: f.effectiveExposureS }));
+      const frames = run.report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform, offset: f.offset, transmission: f.transmission, effectiveExposureS: f.effectiveExposureS }));
       writeFileSync(out, `${JSON.stringify({ stages: rows, masterSha256, frames }, null, 2)}\n`);
     }
   } finally {
@@ -117,7 +131,7 @@ async function main(): Promise<void> {
   const args = readArgs(process.argv.slice(2));
   const list = JSON.parse(readFileSync(join(args.dir, "frames.json"), "utf8")) as { files: string[]; exposuresS: number[] };
   const picked = list.files.slice(args.first, args.first + args.frames).map((f, k) => ({ path: join(args.dir, f), exposureS: list.exposuresS[args.first + k] }));
-  if (args.stages.has("runner")) return measureRunner(picked, args.out, args.spill);
+  if (args.stages.has("runner")) return measureRunner(picked, args.out, args.spill, args.stopAt);
   // Wall time and this process's CPU time per stage: on a shared machine the CPU time is the fairer measure.
   const times: Record<string, number> = {};
   const cpuTimes: Record<string, number> = {};
