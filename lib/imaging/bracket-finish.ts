@@ -202,6 +202,8 @@ export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[]
   let scratch: WarpTarget | undefined = createWarpScratch(plan);
   const total = plan.keep.length;
   function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
+    // Said as the pass starts, so that the first frame's merge is counted as the merge's (not the stage before).
+    onProgress?.(stage, 0, { done: 0, total });
     for (let i = 0; i < total; i++) {
       addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!, cache);
       onProgress?.(stage, (i + 1) / total, { done: i + 1, total });

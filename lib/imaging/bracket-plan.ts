@@ -93,22 +93,29 @@ function measureFrameLevels(frames: LinearFrame[], ready: PreparedFrame[], regis
   return measureBracketLevels(sources, levelFrames, width, height, moon);
 }
 
-/** Refuses a bracket that cannot be reduced, naming the frame at fault. */
-export function validateBracket(frames: LinearFrame[]): void {
+/**
+ * Refuses a bracket that cannot be reduced, naming the frame at fault. Returns
+ * the number of colour planes. Each frame's planes are looked at once (a frame
+ * kept on disk reads them back at every look).
+ */
+export function validateBracket(frames: LinearFrame[]): number {
   if (!Array.isArray(frames) || frames.length < 2) {
     throw new ImagingError("too-few-frames", `a bracket needs at least 2 frames, got ${Array.isArray(frames) ? frames.length : 0}`);
   }
   const first = frames[0];
+  let channels = 0;
   for (const f of frames) {
-    validateFrame(f);
+    const count = validateFrame(f).length;
+    if (f === first) channels = count;
     if (f.image.width !== first.image.width || f.image.height !== first.image.height) {
       throw new ImagingError("size-mismatch", `is ${f.image.width} x ${f.image.height} but ${first.name} is ${first.image.width} x ${first.image.height}`, f.name);
     }
-    if (f.image.planes.length !== first.image.planes.length) {
-      throw new ImagingError("size-mismatch", `has ${f.image.planes.length} colour planes but ${first.name} has ${first.image.planes.length}`, f.name);
+    if (count !== channels) {
+      throw new ImagingError("size-mismatch", `has ${count} colour planes but ${first.name} has ${channels}`, f.name);
     }
     if (f.encoding !== first.encoding) throw new ImagingError("bad-parameter", `is ${f.encoding} but ${first.name} is ${first.encoding}; a bracket must be all one kind`, f.name);
   }
+  return channels;
 }
 
 /**
@@ -177,7 +184,7 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
   };
   const progress = (stage: string, fraction: number, count?: FrameCount) => options.onProgress?.(stage, fraction, count);
   const keepFrame = options.keepPrepared ?? ((p: PreparedFrame) => p);
-  validateBracket(frames);
+  const channels = validateBracket(frames);
   validateParams(params);
   const { width, height } = frames[0].image;
   const isEncoded = frames[0].encoding === "srgb8";
@@ -304,7 +311,7 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
   }
   return {
     plan: {
-      width, height, channels: frames[0].image.planes.length, isEncoded, params,
+      width, height, channels, isEncoded, params,
       names: frames.map((f) => f.name),
       offsets: work.map((f) => ({ blackLevel: f.blackLevel, blackLevelSource: f.blackLevelSource })),
       levels, keep, leftOut, ref,

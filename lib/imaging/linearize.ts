@@ -37,8 +37,12 @@ export const NOISE_FLOOR_CODE = 4;
 /** Linear data: a pixel is in the noise floor below this many dark-noise sigmas (common practice: a 3-sigma detection). */
 export const NOISE_FLOOR_SIGMAS = 3;
 
-/** Checks one frame's shape and numbers; throws an ImagingError naming the frame and field. */
-export function validateFrame(frame: LinearFrame): void {
+/**
+ * Checks one frame's shape and numbers; throws an ImagingError naming the frame
+ * and field. Returns the planes it checked, for the caller to use: a frame kept
+ * on disk (lib/reduction-runner/frame-spill.ts) reads them back at every look.
+ */
+export function validateFrame(frame: LinearFrame): Float32Array[] {
   const name = frame?.name ?? "(unnamed frame)";
   if (!(typeof frame.exposureS === "number" && Number.isFinite(frame.exposureS) && frame.exposureS > 0)) {
     throw new ImagingError("bad-exposure", `exposureS must be a positive finite number of seconds, got ${String(frame.exposureS)}`, name);
@@ -58,6 +62,7 @@ export function validateFrame(frame: LinearFrame): void {
   } else if (frame.encoding !== "srgb8") {
     throw new ImagingError("bad-parameter", `encoding must be "linear" or "srgb8", got ${String(frame.encoding)}`, name);
   }
+  return planes;
 }
 
 /**
@@ -106,20 +111,13 @@ export interface LinearizeOptions {
   keepPlanes?: boolean;
 }
 
-/**
- * Linearizes one frame. Linear input: v = DN - black, clip level clipFraction x
- * (white - black). 8-bit input: v = decode(code) with the IEC 61966-2-1 sRGB
- * curve, or with the given response table, clip level at code clipFraction x
- * 255. A pixel is clipped when any plane is. Also returns the luminance
- * (IEC 61966-2-1 weights), whose dark noise sets the noise floor.
- */
-export function linearizeFrame(frame: LinearFrame, clipFraction: number, options: LinearizeOptions = {}): LinearizedFrame {
-  validateFrame(frame);
+/** The linear planes (when kept), luminance, clip level and clipped mask of a frame's source planes. */
+function convertPlanes(frame: LinearFrame, clipFraction: number, options: LinearizeOptions): { planes: Float32Array[]; luminance: Float32Array; clipLevel: number; clipped: Uint8Array } {
+  const sources = validateFrame(frame);
   if (!(clipFraction > 0 && clipFraction <= 1)) throw new ImagingError("bad-parameter", `clipFraction must be in (0, 1], got ${clipFraction}`);
   const { width, height } = frame.image;
   const n = width * height;
   const clipped = new Uint8Array(n);
-  const sources = frame.image.planes;
   let planes: Float32Array[];
   let clipLevel: number;
   let luminance: Float32Array;
@@ -165,9 +163,26 @@ export function linearizeFrame(frame: LinearFrame, clipFraction: number, options
     clipLevel = table[Math.min(255, Math.ceil(clipCode))];
     luminance = computeLuminancePlane(planes);
   }
+  return { planes, luminance, clipLevel, clipped };
+}
+
+/**
+ * Linearizes one frame. Linear input: v = DN - black, clip level clipFraction x
+ * (white - black). 8-bit input: v = decode(code) with the IEC 61966-2-1 sRGB
+ * curve, or with the given response table, clip level at code clipFraction x
+ * 255. A pixel is clipped when any plane is. Also returns the luminance
+ * (IEC 61966-2-1 weights), whose dark noise sets the noise floor.
+ */
+export function linearizeFrame(frame: LinearFrame, clipFraction: number, options: LinearizeOptions = {}): LinearizedFrame {
+  // The source planes are read in a function of their own: a frame kept on disk lets them go
+  // as soon as its luminance and clipped mask are made (288 MB at 24 megapixels, in colour).
+  const { planes, luminance, clipLevel, clipped } = convertPlanes(frame, clipFraction, options);
+  const { width, height } = frame.image;
+  const n = width * height;
   if (frame.saturated) for (let i = 0; i < n; i++) if (frame.saturated[i]) clipped[i] = 1;
-  // Defects never reach the limb fit or registration as light: their luminance is the median of their sound neighbours.
-  if (frame.badPixels) luminance = repairDefects(luminance, frame.badPixels, width, height);
+  // Defects never reach the limb fit or registration as light: their luminance is the median of their
+  // sound neighbours, written in place (the luminance is this function's own; see writeRepairs).
+  if (frame.badPixels) writeRepairs(luminance, frame.badPixels, width, height, luminance);
   const noiseSigma = frame.encoding === "linear" ? estimateDarkNoiseSigma(luminance, width, height) : (options.responseTable ?? createSrgbDecodeTable())[1];
   const noiseFloorLevel = frame.encoding === "linear" ? NOISE_FLOOR_SIGMAS * noiseSigma : (options.responseTable ?? createSrgbDecodeTable())[NOISE_FLOOR_CODE];
   const noiseFloor = new Uint8Array(n);

@@ -162,8 +162,8 @@ export async function decodeBracketFiles(
   for (const [name, ms] of captureTimeOverrides) {
     if (!Number.isFinite(ms)) throw new ReductionInputError("missing-capture-time", `${name}: the capture time given is not a valid time`);
   }
-  const decoded: DecodedFrame[] = new Array(files.length);
-  const pooled: (PooledDecode | undefined)[] = new Array(files.length);
+  const described: ReturnType<typeof describeDecodedFrame>[] = new Array(files.length);
+  const outliers: (Uint32Array | undefined)[] = new Array(files.length);
   let next = 0;
   let done = 0;
   const lanes = Array.from({ length: Math.min(DECODES_IN_FLIGHT, files.length) }, async () => {
@@ -171,22 +171,24 @@ export async function decodeBracketFiles(
       const k = next++;
       const name = basename(files[k]);
       await checkFrameFile(files[k], name);
-      pooled[k] = await inPool?.pool.decode(files[k], name, inPool.findOutliers);
+      const pooled: PooledDecode | undefined = await inPool?.pool.decode(files[k], name, inPool.findOutliers);
       // Without a pool, or when a worker failed, the frame is decoded here (and a fault thrown as usual).
-      decoded[k] = pooled[k]?.decoded ?? (await decodeFrame(files[k], name));
+      const decoded = pooled?.decoded ?? (await decodeFrame(files[k], name));
+      outliers[k] = pooled?.outliers;
+      // Described before its pixels go: once spilled, even a look at the planes' count would read them all back.
+      described[k] = describeDecodedFrame(decoded, files[k], exposureOverrides.get(decoded.name), captureTimeOverrides.get(decoded.name));
       // Each frame's pixels go to disk as soon as it is decoded: memory holds the frames in flight only.
-      if (spill) spill.spillField(decoded[k].image, "planes");
+      if (spill) spill.spillField(decoded.image, "planes");
       onProgress?.(++done / files.length);
     }
   });
   await Promise.all(lanes);
 
-  const described = decoded.map((d, k) => describeDecodedFrame(d, files[k], exposureOverrides.get(d.name), captureTimeOverrides.get(d.name)));
   const provenance = described.map((x) => x.provenance);
   const missing = provenance.filter((p) => Number.isNaN(p.exposureS));
   if (missing.length > 0) throw describeMissingExposure(missing);
   checkSameShape(provenance);
   checkSameEncoding(described.map((x) => x.frame), provenance);
   const frames = described.map((x) => x.frame);
-  return { frames, provenance, outliers: pooled.map((p) => p?.outliers) };
+  return { frames, provenance, outliers };
 }

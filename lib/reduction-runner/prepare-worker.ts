@@ -30,7 +30,9 @@ async function handle(request: PrepareRequest): Promise<PrepareReply> {
     return { id: request.id, ok: true, decoded, outliers: findFrameOutliers(frame) };
   }
   const { frame, width, height, source, params } = request;
-  const whole: LinearFrame = { ...frame, image: { width, height, planes: readPlanes(source) } };
+  // Planes read when looked at, as a spilled frame's are: linearizing reads them once and lets them
+  // go once the luminance is made, so they do not sit beside the limb fit (288 MB at 24 megapixels).
+  const whole: LinearFrame = { ...frame, image: { width, height, get planes() { return readPlanes(source); } } };
   const prepared = prepareFrame(whole, params, whole.encoding === "srgb8" ? createSrgbDecodeTable() : undefined);
   // The defect map is the caller's (one map may serve every frame): it is not sent back.
   prepared.linear.masked = undefined;

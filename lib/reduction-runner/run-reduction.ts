@@ -91,7 +91,10 @@ async function openSpill(options: RunReductionOptions): Promise<FrameSpill | und
     for (const file of options.files) total += (await stat(file).catch(() => ({ size: 0 }))).size;
     if (total <= SPILL_ABOVE_FILE_BYTES) return undefined;
   }
-  return createFrameSpill({ parentDir: options.scratchDir });
+  // No cache of recent arrays: every stage reads each frame's arrays once, in turn (the
+  // registration keeps its own small source images of the frames it compares), so a
+  // cache would only hold memory, up to a bracket's worth of frames beside the stage's own.
+  return createFrameSpill({ parentDir: options.scratchDir, cacheBytes: 0 });
 }
 
 export interface RunReductionResult {
@@ -121,8 +124,6 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined, scratchDir?: string): Promise<ReductionResult> {
   const { plan, ready } = planBracket(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) });
   await yieldToEventLoop();
-  // The merge passes read each frame once in order: a cache would only hold memory the accumulators need.
-  spill?.setCacheBytes(0);
   const started = performance.now();
   // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
   const cache = spill ? createWarpCache({ parentDir: scratchDir }) : undefined;

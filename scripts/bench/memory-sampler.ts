@@ -7,7 +7,17 @@ import { Worker } from "node:worker_threads";
 const SAMPLER_SOURCE = `
 const { parentPort, workerData } = require("node:worker_threads");
 let peak = 0;
-const sample = () => { const rss = process.memoryUsage.rss(); if (rss > peak) peak = rss; };
+// Shared with the main thread: the peak since the last take, in KiB, which the main
+// thread reads and clears synchronously (from a progress callback inside synchronous work).
+const shared = new Int32Array(workerData.shared);
+const sample = () => {
+  const rss = process.memoryUsage.rss();
+  if (rss > peak) peak = rss;
+  const kib = Math.ceil(rss / 1024);
+  for (let seen = Atomics.load(shared, 0); kib > seen; seen = Atomics.load(shared, 0)) {
+    if (Atomics.compareExchange(shared, 0, seen, kib) === seen) break;
+  }
+};
 const timer = setInterval(sample, workerData.intervalMs);
 parentPort.on("message", (m) => {
   sample();
@@ -21,11 +31,19 @@ export interface MemorySampler {
   /** Peak RSS in bytes since the start or the last reset. */
   readPeakBytes: () => Promise<number>;
   reset: () => void;
+  /**
+   * Peak RSS in bytes since the start or the last take (the current RSS included),
+   * and starts a new span: synchronous, so that a progress callback can close one
+   * stage's span while the main thread is busy.
+   */
+  takeSpanPeakBytes: () => number;
   stop: () => Promise<number>;
 }
 
 export function startMemorySampler(intervalMs = 50): MemorySampler {
-  const worker = new Worker(SAMPLER_SOURCE, { eval: true, workerData: { intervalMs } });
+  const shared = new SharedArrayBuffer(4);
+  const span = new Int32Array(shared);
+  const worker = new Worker(SAMPLER_SOURCE, { eval: true, workerData: { intervalMs, shared } });
   const ask = (message: string) => new Promise<number>((resolve) => {
     worker.once("message", resolve);
     worker.postMessage(message);
@@ -33,6 +51,10 @@ export function startMemorySampler(intervalMs = 50): MemorySampler {
   return {
     readPeakBytes: () => ask("read"),
     reset: () => worker.postMessage("reset"),
+    takeSpanPeakBytes: () => {
+      const now = process.memoryUsage.rss();
+      return Math.max(now, Atomics.exchange(span, 0, Math.ceil(now / 1024)) * 1024);
+    },
     stop: async () => {
       const peak = await ask("stop");
       await worker.terminate();

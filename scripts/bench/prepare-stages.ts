@@ -4,7 +4,10 @@
 // the results (defect count, limb fits, transforms) go to a JSON file so that two
 // versions of the code can be compared on the same input.
 // Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
-// --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy.
+// --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy,
+// peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held;
+// --stop-at STAGE ends the reduction as that stage starts (e.g. merge-pilot: the stages up to the levels alone).
+import { createHash } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -15,6 +18,7 @@ import { registerFrames, type RegistrationFrame } from "@/lib/imaging/register";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
+import { startMemorySampler } from "./memory-sampler";
 
 interface Args {
   dir: string;
@@ -23,6 +27,7 @@ interface Args {
   out?: string;
   stages: Set<string>;
   spill?: "auto" | "always" | "never";
+  stopAt?: string;
 }
 
 function readArgs(argv: string[]): Args {
@@ -35,6 +40,7 @@ function readArgs(argv: string[]): Args {
     else if (argv[k] === "--out") args.out = value;
     else if (argv[k] === "--stages") args.stages = new Set(value.split(","));
     else if (argv[k] === "--spill") args.spill = value as Args["spill"];
+    else if (argv[k] === "--stop-at") args.stopAt = value;
     else continue;
     k++;
   }
@@ -42,37 +48,81 @@ function readArgs(argv: string[]): Args {
   return args;
 }
 
+const MB = 1024 ** 2;
+
+/** SHA-256 of master.fits after its primary header (whose DATE changes from run to run): the master's pixels, to compare two runs. */
+function hashMasterData(path: string): string {
+  const bytes = readFileSync(path);
+  let end = 0;
+  for (let card = 0; card + 80 <= bytes.length; card += 80) {
+    if (bytes.toString("latin1", card, card + 8) === "END     ") {
+      end = Math.ceil((card + 80) / 2880) * 2880;
+      break;
+    }
+  }
+  return createHash("sha256").update(bytes.subarray(end)).digest("hex");
+}
+
 /**
  * The whole single-process reduction (runReductionOnFiles) on the picked frames,
- * with the wall time, CPU time (every thread of this process) and cores busy of
- * each stage the reduction reports, from one report of progress to the next stage's.
+ * with the wall time, CPU time (every thread of this process), cores busy and peak
+ * RSS of each stage the reduction reports, from one report of progress to the next
+ * stage's, and what V8 held where the stage ended (heap in use, array buffers:
+ * the frames' typed arrays are array buffers, outside the heap).
  */
-async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"]): Promise<void> {
+async function measureRunner(picked: { path: string; exposureS: number }[], out?: string, spill?: Args["spill"], stopAt?: string): Promise<void> {
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-prepare-stages-"));
-  const rows: { stage: string; wallMs: number; cpuMs: number }[] = [];
+  const rows: { stage: string; wallMs: number; cpuMs: number; peakRssMb: number; endHeapMb: number; endArrayBuffersMb: number }[] = [];
   let current = "";
   let wall = performance.now();
   let cpu = process.cpuUsage();
+  const sampler = startMemorySampler(20);
+  sampler.takeSpanPeakBytes();
   const close = () => {
     const used = process.cpuUsage(cpu);
-    rows.push({ stage: current, wallMs: performance.now() - wall, cpuMs: (used.user + used.system) / 1000 });
+    const memory = process.memoryUsage();
+    rows.push({
+      stage: current, wallMs: performance.now() - wall, cpuMs: (used.user + used.system) / 1000,
+      peakRssMb: Math.round(sampler.takeSpanPeakBytes() / MB), endHeapMb: Math.round(memory.heapUsed / MB), endArrayBuffersMb: Math.round(memory.arrayBuffers / MB),
+    });
     wall = performance.now();
     cpu = process.cpuUsage();
   };
+  const stopped = new Error(`stopped as ${stopAt} started`);
   try {
-    const { report } = await runReductionOnFiles({
-      files: picked.map((p) => p.path), outDir: join(scratch, "out"), exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
+    const outDir = join(scratch, "out");
+    const run = await runReductionOnFiles({
+      files: picked.map((p) => p.path), outDir, exposureOverrides: new Map(picked.map((p) => [basename(p.path), p.exposureS])), spill,
       onProgress: (stage) => {
         if (stage === current) return;
         if (current) close();
         current = stage;
+        if (stage === stopAt) throw stopped;
       },
+    }).catch((error: unknown) => {
+      if (error !== stopped) throw error;
+      return undefined;
     });
-    close();
-    console.log("stage                  wall       CPU  cores busy");
-    for (const r of rows) if (r.wallMs >= 50) console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)}`);
-    if (out) writeFileSync(out, `${JSON.stringify({ stages: rows, frames: report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform })) }, null, 2)}\n`);
+    if (current !== stopAt) close();
+    console.log("stage                  wall       CPU  cores busy  peak RSS   at its end: heap  array buffers");
+    for (const r of rows) {
+      if (r.wallMs < 50) continue;
+      console.log(`${r.stage.padEnd(18)} ${(r.wallMs / 1000).toFixed(2).padStart(8)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(6)} ${String(r.peakRssMb).padStart(8)} MB ${String(r.endHeapMb).padStart(10)} MB ${String(r.endArrayBuffersMb).padStart(10)} MB`);
+    }
+    const peakMb = Math.max(...rows.map((r) => r.peakRssMb));
+    if (!run) {
+      console.log(`peak RSS up to ${stopAt} ${peakMb} MB`);
+      if (out) writeFileSync(out, `${JSON.stringify({ stages: rows }, null, 2)}\n`);
+      return;
+    }
+    const masterSha256 = hashMasterData(join(outDir, "master.fits"));
+    console.log(`peak RSS of the reduction ${peakMb} MB; master's pixels SHA-256 ${masterSha256}`);
+    if (out) {
+      const frames = run.report.frames.map((f) => ({ name: f.name, limb: f.limb, transform: f.transform, offset: f.offset, transmission: f.transmission, effectiveExposureS: f.effectiveExposureS }));
+      writeFileSync(out, `${JSON.stringify({ stages: rows, masterSha256, frames }, null, 2)}\n`);
+    }
   } finally {
+    await sampler.stop();
     rmSync(scratch, { recursive: true, force: true });
   }
 }
@@ -81,7 +131,7 @@ async function main(): Promise<void> {
   const args = readArgs(process.argv.slice(2));
   const list = JSON.parse(readFileSync(join(args.dir, "frames.json"), "utf8")) as { files: string[]; exposuresS: number[] };
   const picked = list.files.slice(args.first, args.first + args.frames).map((f, k) => ({ path: join(args.dir, f), exposureS: list.exposuresS[args.first + k] }));
-  if (args.stages.has("runner")) return measureRunner(picked, args.out, args.spill);
+  if (args.stages.has("runner")) return measureRunner(picked, args.out, args.spill, args.stopAt);
   // Wall time and this process's CPU time per stage: on a shared machine the CPU time is the fairer measure.
   const times: Record<string, number> = {};
   const cpuTimes: Record<string, number> = {};
