@@ -28,11 +28,8 @@ async function listFiles(dir: string, prefix = ""): Promise<string[]> {
   return out;
 }
 
-/** Stores every file of `outDir` under the reduction's prefix and marks the reduction done. */
-export async function storeReductionOutputs(db: DbOrTx, reductionId: string, outDir: string, report: ReductionReport, onProgress: (fraction: number) => void): Promise<void> {
-  const [red] = await db.select({ setId: reductions.bracketSetId }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
-  if (!red) throw new Error(`reduction ${reductionId} does not exist`);
-  const prefix = `${buildDerivedPrefix(red.setId)}reductions/${reductionId}/`;
+/** Stores every file of `outDir` in the derived bucket under `prefix` (keys `prefix` + the file's path in the folder). */
+export async function uploadReductionFolder(prefix: string, outDir: string, onProgress: (fraction: number) => void): Promise<void> {
   onProgress(0);
   const outputs = await listFiles(outDir);
   for (const [i, rel] of outputs.entries()) {
@@ -40,6 +37,14 @@ export async function storeReductionOutputs(db: DbOrTx, reductionId: string, out
     await putObjectBytes({ bucket: bucketName("derived"), key: prefix + rel }, await readFile(path.join(outDir, rel)), type);
     if (i % 20 === 0) onProgress(i / outputs.length);
   }
+}
+
+/** Stores every file of `outDir` under the reduction's prefix and marks the reduction done. */
+export async function storeReductionOutputs(db: DbOrTx, reductionId: string, outDir: string, report: ReductionReport, onProgress: (fraction: number) => void): Promise<void> {
+  const [red] = await db.select({ setId: reductions.bracketSetId }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
+  if (!red) throw new Error(`reduction ${reductionId} does not exist`);
+  const prefix = `${buildDerivedPrefix(red.setId)}reductions/${reductionId}/`;
+  await uploadReductionFolder(prefix, outDir, onProgress);
   const overall = report.overall as Record<string, unknown>;
   await db
     .update(reductions)

@@ -7,11 +7,14 @@ import { Worker } from "node:worker_threads";
 const SAMPLER_SOURCE = `
 const { parentPort, workerData } = require("node:worker_threads");
 let peak = 0;
+const marks = [];
 const sample = () => { const rss = process.memoryUsage.rss(); if (rss > peak) peak = rss; };
 const timer = setInterval(sample, workerData.intervalMs);
 parentPort.on("message", (m) => {
   sample();
-  if (m === "reset") peak = 0;
+  if (m && typeof m === "object" && "mark" in m) { marks.push([m.mark, peak]); peak = 0; }
+  else if (m === "marks") parentPort.postMessage(marks.splice(0));
+  else if (m === "reset") peak = 0;
   else if (m === "stop") { clearInterval(timer); parentPort.postMessage(peak); parentPort.close(); }
   else parentPort.postMessage(peak);
 });
@@ -21,18 +24,27 @@ export interface MemorySampler {
   /** Peak RSS in bytes since the start or the last reset. */
   readPeakBytes: () => Promise<number>;
   reset: () => void;
+  /**
+   * Closes a stretch: keeps its peak under the label and starts the next one. Sent
+   * without waiting, so that synchronous code (a progress callback) can call it.
+   */
+  mark: (label: string) => void;
+  /** The stretches marked so far, [label, peak bytes] in order (and forgets them). */
+  readMarks: () => Promise<[string, number][]>;
   stop: () => Promise<number>;
 }
 
 export function startMemorySampler(intervalMs = 50): MemorySampler {
   const worker = new Worker(SAMPLER_SOURCE, { eval: true, workerData: { intervalMs } });
-  const ask = (message: string) => new Promise<number>((resolve) => {
+  const ask = <T = number>(message: string) => new Promise<T>((resolve) => {
     worker.once("message", resolve);
     worker.postMessage(message);
   });
   return {
     readPeakBytes: () => ask("read"),
     reset: () => worker.postMessage("reset"),
+    mark: (label) => worker.postMessage({ mark: label }),
+    readMarks: () => ask<[string, number][]>("marks"),
     stop: async () => {
       const peak = await ask("stop");
       await worker.terminate();
