@@ -18,7 +18,7 @@
 import { cpSync, existsSync, mkdirSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { readdir, stat } from "node:fs/promises";
 import { loadavg, tmpdir } from "node:os";
-import { basename, join } from "node:path";
+import { basename, join, relative } from "node:path";
 import { finishMergedBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
 import { planBracket, type BracketPlan } from "@/lib/imaging/bracket-plan";
 import { finishMerge, type MergeResult } from "@/lib/imaging/merge";
@@ -224,12 +224,15 @@ async function main(): Promise<void> {
       const { loadDevelopmentEnv } = await import("./bench-services");
       loadDevelopmentEnv(process.cwd());
       const { uploadReductionFolder } = await import("@/lib/reduction-flow/store-outputs");
-      const { bucketName, deleteObjectsUnder } = await import("@/lib/storage");
+      const { bucketName, deleteObject } = await import("@/lib/storage");
       const prefix = `bench-outputs/${Date.now()}/`;
       clock.start("store to S3 (the fake)");
       await uploadReductionFolder(prefix, wholeDir, () => undefined);
       clock.settle();
-      await deleteObjectsUnder({ bucket: bucketName("derived"), prefix });
+      // By the files uploaded, one at a time: the S3 fake answers 500 to a listing of this prefix.
+      for (const e of await readdir(wholeDir, { recursive: true, withFileTypes: true })) {
+        if (e.isFile()) await deleteObject({ bucket: bucketName("derived"), key: prefix + relative(wholeDir, join(e.parentPath, e.name)) });
+      }
     }
     await clock.fillPeaks();
   } finally {
