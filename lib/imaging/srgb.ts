@@ -40,8 +40,32 @@ export function createSrgbDecodeTable(): Float64Array {
   return table;
 }
 
-const ENCODE_TABLE_SIZE = 65536;
-let encodeTable: Float64Array | null = null;
+/** Points of the transfer-function tables, less one (the step h = 1 / TABLE_SIZE). */
+const TABLE_SIZE = 65536;
+const tables = new Map<(x: number) => number, Float64Array>();
+
+/**
+ * `curve` on 0..1 tabulated at TABLE_SIZE + 1 points and interpolated linearly
+ * (0 at and below 0, 1 at and above 1); the interval holding `exactAt`, when
+ * given, is computed with the curve itself.
+ */
+function tabulateCurve(curve: (x: number) => number, exactAt?: number): (x: number) => number {
+  let table = tables.get(curve);
+  if (!table) {
+    table = Float64Array.from({ length: TABLE_SIZE + 1 }, (_, k) => curve(k / TABLE_SIZE));
+    tables.set(curve, table);
+  }
+  const values = table;
+  const exactInterval = exactAt === undefined ? -1 : Math.floor(exactAt * TABLE_SIZE);
+  return (x: number) => {
+    if (!(x > 0)) return 0;
+    if (x >= 1) return 1;
+    const u = x * TABLE_SIZE;
+    const k = u | 0;
+    if (k === exactInterval) return curve(x);
+    return values[k] + (u - k) * (values[k + 1] - values[k]);
+  };
+}
 
 /**
  * A fast sRGB encoder: the curve tabulated at 65 537 points and interpolated
@@ -51,24 +75,8 @@ let encodeTable: Float64Array | null = null;
  * h |12.92 - 12.70| / 4 = 8e-7, unless `exactKnee` has that interval encoded exactly.
  */
 export function createSrgbEncoder(options: { exactKnee?: boolean } = {}): (linear: number) => number {
-  if (!encodeTable) {
-    encodeTable = new Float64Array(ENCODE_TABLE_SIZE + 1);
-    for (let k = 0; k <= ENCODE_TABLE_SIZE; k++) encodeTable[k] = encodeSrgb(k / ENCODE_TABLE_SIZE);
-  }
-  const table = encodeTable;
-  const kneeInterval = options.exactKnee ? Math.floor(SRGB_LINEAR_LIMIT * ENCODE_TABLE_SIZE) : -1;
-  return (linear: number) => {
-    if (!(linear > 0)) return 0;
-    if (linear >= 1) return 1;
-    const u = linear * ENCODE_TABLE_SIZE;
-    const k = u | 0;
-    if (k === kneeInterval) return encodeSrgb(linear);
-    return table[k] + (u - k) * (table[k + 1] - table[k]);
-  };
+  return tabulateCurve(encodeSrgb, options.exactKnee ? SRGB_LINEAR_LIMIT : undefined);
 }
-
-const DECODE_TABLE_SIZE = 65536;
-let decodeTable: Float64Array | null = null;
 
 /**
  * A fast sRGB decoder: decodeSrgb tabulated at 65 537 points of the code and
@@ -78,20 +86,7 @@ let decodeTable: Float64Array | null = null;
  * where the curve bends, is decoded exactly.
  */
 export function createSrgbDecoder(): (encoded: number) => number {
-  if (!decodeTable) {
-    decodeTable = new Float64Array(DECODE_TABLE_SIZE + 1);
-    for (let k = 0; k <= DECODE_TABLE_SIZE; k++) decodeTable[k] = decodeSrgb(k / DECODE_TABLE_SIZE);
-  }
-  const table = decodeTable;
-  const kneeInterval = Math.floor(SRGB_CODE_LIMIT * DECODE_TABLE_SIZE);
-  return (encoded: number) => {
-    if (!(encoded > 0)) return 0;
-    if (encoded >= 1) return 1;
-    const u = encoded * DECODE_TABLE_SIZE;
-    const k = u | 0;
-    if (k === kneeInterval) return decodeSrgb(encoded);
-    return table[k] + (u - k) * (table[k + 1] - table[k]);
-  };
+  return tabulateCurve(decodeSrgb, SRGB_CODE_LIMIT);
 }
 
 /** Encode a linear plane (0..1) to sRGB values (0..1) in a new plane. */
