@@ -268,18 +268,27 @@ function blankEdgeBand(image: PlaneImage, bandPx: number): void {
 
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
 export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
-  let clock = performance.now();
+  const started = performance.now();
+  // finishMerge consumes the accumulator: its buffers are free from here on.
+  const merged = finishMerge(acc);
+  return finishMergedBracket(plan, merged, onProgress, mergeMs + (performance.now() - started));
+}
+
+/**
+ * finishBracket from the merge's result (finishMerge's): the renditions and the
+ * report. Reports progress "renditions" at 0, at 0.5 when the structure
+ * rendition is done and the natural one starts, and at 1.
+ */
+export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+  const clock = performance.now();
   const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
   const { width, height, params, referenceMoon, ref, keep } = plan;
   const isEncoded = plan.isEncoded;
   const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
   const offsets = params.moonMinusSunPx;
   const timingsMs: Record<string, number> = { ...plan.timingsMs };
-  // finishMerge consumes the accumulator: its buffers are free from here on.
-  const merged: MergeResult = finishMerge(acc);
   const master: PlaneImage = { width, height, planes: merged.radiance };
-  timingsMs["warp-and-merge"] = mergeMs + (performance.now() - clock);
-  clock = performance.now();
+  timingsMs["warp-and-merge"] = mergeMs;
   // The master keeps its empty pixels (every frame's defect there); the renditions show them
   // filled from their neighbours, so that a masked defect is not a black dot in the picture.
   // The filled copy is made where it is read (twice, when there are holes), not kept beside
@@ -315,6 +324,7 @@ export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgre
     width, height,
   );
 
+  progress("renditions", 0.5);
   const outsideMoon = createValidMask(width, height, referenceMoon);
   // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
   const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };

@@ -3,32 +3,44 @@
 // streamers and stars fade at zoomed-out levels. We decode, average 2 x 2 pixels,
 // and encode again (IEC 61966-2-1 both ways).
 import { ImagingError } from "./errors";
-import { decodeSrgb, encodeSrgb } from "./srgb";
+import { createSrgbDecoder, createSrgbEncoder, decodeSrgb, encodeSrgb } from "./srgb";
 import type { PlaneImage } from "./types";
 
-/** Halves an sRGB-encoded image (0..1) in linear light; odd edges average the pixels they hold. */
+/**
+ * Halves an sRGB-encoded image (0..1) in linear light; odd edges average the
+ * pixels they hold. Decoded and encoded through tables (createSrgbDecoder,
+ * createSrgbEncoder, both exact in the interval holding the knee): each value
+ * lies within 2e-7 of the halving computed with decodeSrgb and encodeSrgb (the
+ * encoder's error from the curve's bend near the knee; elsewhere less), a
+ * seventieth of a 16-bit code, at a fraction of the cost of five powers a pixel.
+ */
 export function halveImageLinear(image: PlaneImage): PlaneImage {
   const { width, height } = image;
   if (width < 1 || height < 1) throw new ImagingError("bad-parameter", `cannot halve a ${width} x ${height} image`);
   const w = Math.ceil(width / 2);
   const h = Math.ceil(height / 2);
+  const decode = createSrgbDecoder();
+  const encode = createSrgbEncoder({ exactKnee: true });
+  // Whole 2 x 2 cells first; an odd last column or row averages what it holds.
+  const wholeW = width >> 1;
   const planes = image.planes.map((src) => {
     const out = new Float32Array(w * h);
     for (let y = 0; y < h; y++) {
-      const y0 = 2 * y;
-      const y1 = Math.min(height - 1, y0 + 1);
-      for (let x = 0; x < w; x++) {
-        const x0 = 2 * x;
-        const x1 = Math.min(width - 1, x0 + 1);
-        let sum = decodeSrgb(src[y0 * width + x0]);
-        let count = 1;
-        if (x1 !== x0) { sum += decodeSrgb(src[y0 * width + x1]); count++; }
-        if (y1 !== y0) {
-          sum += decodeSrgb(src[y1 * width + x0]);
-          count++;
-          if (x1 !== x0) { sum += decodeSrgb(src[y1 * width + x1]); count++; }
+      const r0 = 2 * y * width;
+      const hasRow1 = 2 * y + 1 < height;
+      const r1 = hasRow1 ? r0 + width : r0;
+      const o = y * w;
+      if (hasRow1) {
+        for (let x = 0; x < wholeW; x++) {
+          const a = r0 + 2 * x, b = r1 + 2 * x;
+          out[o + x] = encode((decode(src[a]) + decode(src[a + 1]) + decode(src[b]) + decode(src[b + 1])) / 4);
         }
-        out[y * w + x] = encodeSrgb(sum / count);
+      } else {
+        for (let x = 0; x < wholeW; x++) out[o + x] = encode((decode(src[r0 + 2 * x]) + decode(src[r0 + 2 * x + 1])) / 2);
+      }
+      if (wholeW < w) {
+        const x0 = width - 1;
+        out[o + wholeW] = hasRow1 ? encode((decode(src[r0 + x0]) + decode(src[r1 + x0])) / 2) : encode(decode(src[r0 + x0]));
       }
     }
     return out;

@@ -10,12 +10,23 @@ export type Rng = () => number;
 export function createRng(seed: number): Rng {
   let state = seed >>> 0;
   return () => {
-    state = (state + 0x6d2b79f5) >>> 0;
-    let t = state;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+    state = advanceMulberry32(state);
+    return mixMulberry32(state);
   };
+}
+
+/** mulberry32's state after one draw: a Weyl sequence, so draw k's state is seed + k 0x6d2b79f5 (mod 2^32). */
+export function advanceMulberry32(state: number): number {
+  return (state + 0x6d2b79f5) >>> 0;
+}
+
+/** mulberry32's output for an advanced state, in [0, 1): createRng's draws, for loops that keep the state themselves. */
+export function mixMulberry32(state: number): number {
+  let t = state;
+  t = Math.imul(t ^ (t >>> 15), t | 1);
+  t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+  // Times 2^-32, exactly the division by 2^32 (a power of two), and cheaper.
+  return ((t ^ (t >>> 14)) >>> 0) * 2.3283064365386963e-10;
 }
 
 /** Standard normal deviate by the Box-Muller transform (Box and Muller 1958): z = sqrt(-2 ln u1) cos(2 pi u2). */

@@ -1,8 +1,7 @@
 // Renditions for display: natural (tone-mapped light) and structure (a radial
 // filter scaled to 0..1), and quantizers for 16-bit PNG and 8-bit tiles.
 import { ImagingError, requireNumberInRange } from "./errors";
-import { createRng } from "./random";
-import { computeLuminance, createSrgbEncoder, decodeSrgb, ditherToUint8, encodeSrgb } from "./srgb";
+import { computeLuminance, createSrgbEncoder, decodeSrgb, ditherPlaneInto, encodeSrgb } from "./srgb";
 import type { FilteredPlane } from "./radial";
 import type { PlaneImage } from "./types";
 
@@ -304,25 +303,34 @@ export function quantizeToUint16(image: PlaneImage): Uint16Array {
   const channels = image.planes.length;
   const n = image.width * image.height;
   const out = new Uint16Array(n * channels);
+  const code = (v: number) => Math.round(65535 * (v > 0 ? (v < 1 ? v : 1) : 0));
+  if (channels === 3) {
+    // Pixel by pixel: the three planes read and the samples written in order.
+    const [r, g, b] = image.planes;
+    for (let i = 0, o = 0; i < n; i++, o += 3) {
+      out[o] = code(r[i]);
+      out[o + 1] = code(g[i]);
+      out[o + 2] = code(b[i]);
+    }
+    return out;
+  }
   for (let c = 0; c < channels; c++) {
     const p = image.planes[c];
-    for (let i = 0; i < n; i++) {
-      const v = p[i];
-      out[i * channels + c] = Math.round(65535 * (v > 0 ? (v < 1 ? v : 1) : 0));
-    }
+    for (let i = 0, o = c; i < n; i++, o += channels) out[o] = code(p[i]);
   }
   return out;
 }
 
-/** Interleaved 8-bit samples from display values 0..1 with TPDF dither (see ditherToUint8), seeded for repeatable tiles. */
-export function quantizeToUint8(image: PlaneImage, seed = 1): Uint8Array {
+/**
+ * Interleaved 8-bit samples from display values 0..1 with TPDF dither (see
+ * ditherToUint8), seeded for repeatable tiles: one generator from `seed` runs
+ * through the planes in turn, or, given one seed per plane, each plane has its own.
+ */
+export function quantizeToUint8(image: PlaneImage, seed: number | number[] = 1): Uint8Array {
   const channels = image.planes.length;
-  const n = image.width * image.height;
-  const out = new Uint8Array(n * channels);
-  const rng = createRng(seed);
-  for (let c = 0; c < channels; c++) {
-    const q = ditherToUint8(image.planes[c], rng);
-    for (let i = 0; i < n; i++) out[i * channels + c] = q[i];
-  }
+  const out = new Uint8Array(image.width * image.height * channels);
+  if (Array.isArray(seed) && seed.length !== channels) throw new ImagingError("bad-parameter", `quantizeToUint8 needs one seed per plane (${channels}), got ${seed.length}`);
+  let state = Array.isArray(seed) ? 0 : seed;
+  for (let c = 0; c < channels; c++) state = ditherPlaneInto(image.planes[c], Array.isArray(seed) ? seed[c] : state, out, c, channels);
   return out;
 }

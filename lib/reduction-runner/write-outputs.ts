@@ -3,7 +3,7 @@
 import { writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
-import { encodePng16, encodePreview, writeFitsFile } from "@/lib/media";
+import { encodePreview, writeFitsFile, writePng16 } from "@/lib/media";
 import { PREVIEW_MAX_SIDE_PX } from "@/lib/media/encode";
 import { halveImageLinear } from "@/lib/imaging/pyramid";
 import { quantizeToUint16, quantizeToUint8 } from "@/lib/imaging/tone";
@@ -34,9 +34,9 @@ export function createHalvingCache(): HalveFn {
   };
 }
 
-/** Each plane quantized on its own (quantizers interleave; one plane interleaves to itself). */
-function splitQuantized<T extends Uint8Array | Uint16Array>(image: PlaneImage, quantize: (one: PlaneImage, k: number) => T): T[] {
-  return image.planes.map((plane, k) => quantize({ width: image.width, height: image.height, planes: [plane] }, k));
+/** Channels of a rendition (1 or 3 planes). */
+function channelsOf(image: PlaneImage): 1 | 3 {
+  return image.planes.length === 1 ? 1 : 3;
 }
 
 export async function writeMasterFits(dir: string, header: MasterHeaderInput): Promise<string> {
@@ -49,7 +49,7 @@ export async function writeMasterFits(dir: string, header: MasterHeaderInput): P
 
 export async function writeRenditionPng(dir: string, name: RenditionName, image: PlaneImage): Promise<string> {
   const path = join(dir, `${name}.png`);
-  await encodePng16({ width: image.width, height: image.height, planes: splitQuantized(image, (one) => quantizeToUint16(one)) }, path);
+  await writePng16({ width: image.width, height: image.height, channels: channelsOf(image), samples: quantizeToUint16(image) }, path);
   return path;
 }
 
@@ -62,9 +62,10 @@ export async function writeRenditionPng(dir: string, name: RenditionName, image:
 export async function writePreview(dir: string, image: PlaneImage, halve: HalveFn = halveImageLinear, fileName = "preview.jpg"): Promise<string> {
   let level = image;
   while (Math.max(level.width, level.height) > 2 * PREVIEW_MAX_SIDE_PX) level = halve(level);
-  const planes = splitQuantized(level, (one, k) => quantizeToUint8(one, 101 + k));
+  // Each plane dithered from a seed of its own (101, 102, 103).
+  const samples = quantizeToUint8(level, level.planes.map((_, k) => 101 + k));
   const path = join(dir, fileName);
-  await writeFile(path, await encodePreview({ width: level.width, height: level.height, planes }));
+  await writeFile(path, await encodePreview({ width: level.width, height: level.height, channels: channelsOf(level), samples }));
   return path;
 }
 

@@ -7,6 +7,7 @@ import { Worker } from "node:worker_threads";
 const SAMPLER_SOURCE = `
 const { parentPort, workerData } = require("node:worker_threads");
 let peak = 0;
+const marks = [];
 // Shared with the main thread: the peak since the last take, in KiB, which the main
 // thread reads and clears synchronously (from a progress callback inside synchronous work).
 const shared = new Int32Array(workerData.shared);
@@ -21,7 +22,9 @@ const sample = () => {
 const timer = setInterval(sample, workerData.intervalMs);
 parentPort.on("message", (m) => {
   sample();
-  if (m === "reset") peak = 0;
+  if (m && typeof m === "object" && "mark" in m) { marks.push([m.mark, peak]); peak = 0; }
+  else if (m === "marks") parentPort.postMessage(marks.splice(0));
+  else if (m === "reset") peak = 0;
   else if (m === "stop") { clearInterval(timer); parentPort.postMessage(peak); parentPort.close(); }
   else parentPort.postMessage(peak);
 });
@@ -37,6 +40,13 @@ export interface MemorySampler {
    * stage's span while the main thread is busy.
    */
   takeSpanPeakBytes: () => number;
+  /**
+   * Closes a stretch: keeps its peak under the label and starts the next one. Sent
+   * without waiting, so that synchronous code (a progress callback) can call it.
+   */
+  mark: (label: string) => void;
+  /** The stretches marked so far, [label, peak bytes] in order (and forgets them). */
+  readMarks: () => Promise<[string, number][]>;
   stop: () => Promise<number>;
 }
 
@@ -44,7 +54,7 @@ export function startMemorySampler(intervalMs = 50): MemorySampler {
   const shared = new SharedArrayBuffer(4);
   const span = new Int32Array(shared);
   const worker = new Worker(SAMPLER_SOURCE, { eval: true, workerData: { intervalMs, shared } });
-  const ask = (message: string) => new Promise<number>((resolve) => {
+  const ask = <T = number>(message: string) => new Promise<T>((resolve) => {
     worker.once("message", resolve);
     worker.postMessage(message);
   });
@@ -55,6 +65,8 @@ export function startMemorySampler(intervalMs = 50): MemorySampler {
       const now = process.memoryUsage.rss();
       return Math.max(now, Atomics.exchange(span, 0, Math.ceil(now / 1024)) * 1024);
     },
+    mark: (label) => worker.postMessage({ mark: label }),
+    readMarks: () => ask<[string, number][]>("marks"),
     stop: async () => {
       const peak = await ask("stop");
       await worker.terminate();
