@@ -10,6 +10,7 @@ import { chooseNeighbour, computeInitialTransforms, computeSearchRadiusPx, regis
 import { applyAffine, composeAffine, fromAffine, invertAffine, toAffine } from "@/lib/imaging/similarity";
 import { computeLuminancePlane } from "@/lib/imaging/srgb";
 import { synthesizeBracket } from "@/lib/imaging/synth-model";
+import { measureCoronaRmsPx } from "@/tests/support/registration-truth";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 
 const WIDTH = 320;
@@ -41,21 +42,9 @@ function prepareRegistration(linear: LinearFrame[]): RegistrationFrame[] {
   });
 }
 
-/** RMS distance between found and true master-to-frame maps over rings at 1.3, 1.9 and 2.5 solar radii (the reference frame is the scene here). */
+/** RMS distance between found and true master-to-frame maps over the corona (the reference frame is the scene here). */
 function measureRmsPx(found: ReturnType<typeof toAffine>, expected: ReturnType<typeof toAffine>, truth: ReturnType<typeof makeBracket>["truth"]): number {
-  let sum2 = 0;
-  let count = 0;
-  for (let k = 0; k < 72; k++) {
-    for (const rr of [1.3, 1.9, 2.5]) {
-      const x = truth.sunCentre.x + rr * truth.sunRadiusPx * Math.cos((k * Math.PI) / 36);
-      const y = truth.sunCentre.y + rr * truth.sunRadiusPx * Math.sin((k * Math.PI) / 36);
-      const p = applyAffine(found, x, y);
-      const q = applyAffine(expected, x, y);
-      sum2 += (p.x - q.x) ** 2 + (p.y - q.y) ** 2;
-      count++;
-    }
-  }
-  return Math.sqrt(sum2 / count);
+  return measureCoronaRmsPx(found, expected, truth.sunCentre, truth.sunRadiusPx);
 }
 
 describe("registerFrames when the longest frame is clipped over the inner corona", () => {

@@ -10,6 +10,7 @@ import { applyAffine, composeAffine, fromAffine, invertAffine, toAffine, type Af
 import { computeLuminancePlane } from "@/lib/imaging/srgb";
 import { synthesizeBracket } from "@/lib/imaging/synth-model";
 import { DEFAULT_REDUCTION_PARAMS } from "@/lib/imaging/types";
+import { measureCoronaRmsPx } from "@/tests/support/registration-truth";
 
 const WIDTH = 320;
 const HEIGHT = 256;
@@ -55,22 +56,8 @@ function makeBracket(): { frames: RegistrationFrame[]; expected: (referenceIndex
   return { frames: registration, expected, centre };
 }
 
-/** RMS distance between two maps over rings at 1.3, 1.9 and 2.5 solar radii about the Sun (master px). */
-function measureRmsPx(found: AffineSimilarity, expected: AffineSimilarity, centre: { x: number; y: number }): number {
-  let sum2 = 0;
-  let count = 0;
-  for (let k = 0; k < 72; k++) {
-    for (const rr of [1.3, 1.9, 2.5]) {
-      const x = centre.x + rr * SUN_RADIUS_PX * Math.cos((k * Math.PI) / 36);
-      const y = centre.y + rr * SUN_RADIUS_PX * Math.sin((k * Math.PI) / 36);
-      const p = applyAffine(found, x, y);
-      const q = applyAffine(expected, x, y);
-      sum2 += (p.x - q.x) ** 2 + (p.y - q.y) ** 2;
-      count++;
-    }
-  }
-  return Math.sqrt(sum2 / count);
-}
+/** RMS distance between two maps over the corona (master px). */
+const measureRmsPx = (found: AffineSimilarity, expected: AffineSimilarity, centre: { x: number; y: number }) => measureCoronaRmsPx(found, expected, centre, SUN_RADIUS_PX);
 
 describe("registration as pairs composed from the reference", () => {
   const { frames, expected, centre } = makeBracket();
