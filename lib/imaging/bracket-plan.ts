@@ -10,7 +10,7 @@ import { linearizeFrame, validateFrame } from "./linearize";
 import { estimateMoonTrack } from "./moon-track";
 import { measureBracketLevels, type FrameLevels, type LevelSource } from "./frame-levels";
 import type { LunarDisk } from "./radial";
-import { registerFrames, type FrameRegistration, type RegistrationFrame } from "./register";
+import { registerFramesInSteps, runRegistrationSteps, runRegistrationStepsOn, type FrameRegistration, type RegistrationFrame, type RegistrationPairRunner, type RegistrationSteps } from "./register";
 import { warpPlanes } from "./resample";
 import { convertResponseToTable, recoverResponseCurve, selectResponseSamples } from "./response";
 import { composeAffine, type AffineSimilarity } from "./similarity";
@@ -175,6 +175,19 @@ export interface PlanOptions {
  * inputs remain. Throws ImagingError when fewer than two frames can be placed.
  */
 export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, options: PlanOptions = {}): { plan: BracketPlan; ready: PreparedFrame[] } {
+  return runRegistrationSteps(planBracketInSteps(frames, prepared, params, options));
+}
+
+/**
+ * planBracket with the registration's pair comparisons run through `runPair` (a
+ * pool's worker threads), `lanes` at a time; the rest runs here. The same plan.
+ */
+export function planBracketOnThreads(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, options: PlanOptions, runPair: RegistrationPairRunner, lanes: number): Promise<{ plan: BracketPlan; ready: PreparedFrame[] }> {
+  return runRegistrationStepsOn(planBracketInSteps(frames, prepared, params, options), runPair, lanes);
+}
+
+/** planBracket as steps that hand out the registration's pair comparisons (see RegistrationSteps). */
+export function* planBracketInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, options: PlanOptions = {}): RegistrationSteps<{ plan: BracketPlan; ready: PreparedFrame[] }> {
   const timingsMs: Record<string, number> = {};
   let clock = performance.now();
   const lap = (stage: string) => {
@@ -212,7 +225,7 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
   // Always register on the corona; "moon" mode then moves each frame so that its
   // Moon (or, with offsets, its ephemeris Sun) lands on the reference's, using
   // the Moon path rather than limb fits that clipping has biased.
-  let registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
+  let registration = yield* registerFramesInSteps(ready.map(toRegistration), { mode: "corona" });
   lap("register");
 
   // Offsets and transmissions from the bracket itself (frame-levels.ts); an offset
@@ -247,7 +260,7 @@ export function planBracket(frames: LinearFrame[], prepared: readonly (PreparedF
     lap("levels");
     // Registered again only when some frame's counts changed (the same frames register the same way).
     if (moved && changed) {
-      registration = registerFrames(ready.map(toRegistration), { mode: "corona" });
+      registration = yield* registerFramesInSteps(ready.map(toRegistration), { mode: "corona" });
       lap("register");
     }
   }

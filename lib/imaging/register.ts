@@ -2,9 +2,20 @@
 //
 // Start: the limb fits (in "moon" mode the Moon's centre is the anchor; with
 // Moon-minus-Sun offsets the anchor becomes the Sun's centre). Refine (both
-// modes): frames are taken in order of exposure and each is compared with its
-// neighbour one step closer to the reference, so the two see the corona at
-// similar signal levels; transforms chain to the reference.
+// modes): frames are taken in order of exposure, outward from the reference,
+// and each is compared with a neighbour one step closer to the reference (the
+// frame it shares the most well-exposed corona with), so the two see the corona
+// at similar signal levels.
+//
+// The comparisons are independent pairs: every neighbour is chosen before any
+// comparison runs, and each frame i is compared with its neighbour n held at
+// n's own start (limb-fit) map, not at n's refined one. The pair gives the
+// map from frame n to frame i, R_i = m_i o start_n^-1 (m_i: the refined
+// master-to-frame-i map found against n at start_n); the transforms are then
+// composed down the tree from the reference, T_i = R_i o T_n, which chains them
+// to the reference as a comparison with n at T_n would. So the pairs of a
+// bracket can run side by side (registerFramesOnThreads), each from a few
+// small inputs (RegistrationPairTask), with the same result on any thread.
 //
 // Each comparison warps both frames into a common window of master pixels and
 // builds exposure-normalized, high-passed, masked corona images:
@@ -20,7 +31,7 @@
 // Each step warps from the original frame, so resampling never builds up.
 import { blurGaussian, blurGaussianMasked, blurMaskWeights } from "./blur";
 import { downsampleMean } from "./coarse-disk";
-import { ImagingError } from "./errors";
+import { ImagingError, type ImagingErrorCode } from "./errors";
 import { correlatePhase, nextPowerOfTwo } from "./fft";
 import { solveCholesky } from "./linalg";
 import { findKthSmallest } from "./select";
@@ -131,7 +142,8 @@ export function computeInitialTransforms(frames: RegistrationFrame[], referenceI
   });
 }
 
-interface RegionGrid extends Required<WarpWindow> {
+/** The grid of master pixels two frames are compared on (plain data: it travels with a pair to a worker thread). */
+export interface RegionGrid extends Required<WarpWindow> {
   /** Master coordinates of the Sun's (or Moon's) centre. */
   centreX: number;
   centreY: number;
@@ -161,7 +173,7 @@ function defineRegion(ref: RegistrationFrame, radiiAcross = 6): RegionGrid {
 }
 
 /** A frame's luminance and clipped mask at the registration window's step (box-averaged when the step exceeds 1). */
-interface SourceImage {
+export interface SourceImage {
   data: Float32Array;
   clipped: Uint8Array;
   width: number;
@@ -195,14 +207,18 @@ function createSourceImage(frame: RegistrationFrame, step: number): SourceImage 
 /** A frame's source image at a step; registerFrames keeps recent ones (createSourceCache). */
 export type SourceImages = (frame: RegistrationFrame, step: number) => SourceImage;
 
-/** Bytes of source images registerFrames keeps: a chain compares each frame with one registered just before, so a few suffice (about four at 24 megapixels). */
+/**
+ * Bytes of source images registerFrames keeps: pairs are built in the outward order, and
+ * each frame's neighbour is most often the frame just before it, so a few suffice (about
+ * four at 24 megapixels).
+ */
 const SOURCE_CACHE_BYTES = 128 * 1024 ** 2;
 
 /**
  * createSourceImage, remembering the most recently used images up to a byte
  * budget (least recently used out first): each frame is compared with a
- * neighbour registered just before it, whose image (box-averaged from the
- * whole frame, perhaps read back from disk) would otherwise be made again.
+ * neighbour whose pair was built just before, and whose image (box-averaged
+ * from the whole frame, perhaps read back from disk) would otherwise be made again.
  */
 function createSourceCache(budgetBytes = SOURCE_CACHE_BYTES): SourceImages {
   const cache = new Map<RegistrationFrame, Map<number, SourceImage>>();
@@ -244,8 +260,11 @@ interface Features {
   valid: Uint8Array;
 }
 
+/** What the comparison needs of a frame besides its pixels. */
+type FrameFacts = Pick<RegistrationFrame, "name" | "exposureS" | "noiseSigma" | "limb">;
+
 /** Exposure-normalized log light and validity of a frame warped into the region. */
-function buildLogImage(frame: RegistrationFrame, source: SourceImage, masterToFrame: AffineSimilarity, region: RegionGrid): Features {
+function buildLogImage(frame: FrameFacts, source: SourceImage, masterToFrame: AffineSimilarity, region: RegionGrid): Features {
   const toSource = toSourceMap(masterToFrame, source.step);
   const { planes, covered } = warpPlanes([source.data], source.width, source.height, toSource, region, "bicubic");
   const clipped = warpMask(source.clipped, source.width, source.height, toSource, region, 1);
@@ -481,8 +500,51 @@ function measureMove(a: AffineSimilarity, b: AffineSimilarity, region: RegionGri
   return Math.hypot(p.x - q.x, p.y - q.y);
 }
 
+/** One frame of a pair: what the comparison needs of it, and its source image at the region's step. */
+export interface PairSide extends FrameFacts {
+  image: SourceImage;
+}
+
 /**
- * Refines the transform of one frame against an already registered neighbour:
+ * One comparison of a registration, all its inputs (plain data, a few
+ * megabytes at most: the two source images at the region's step): frame i,
+ * its neighbour n held at n's start map, the region, the options.
+ */
+export interface RegistrationPairTask {
+  frame: PairSide;
+  neighbour: PairSide;
+  /** Master to frame i at the start (limb fits). */
+  start: AffineSimilarity;
+  /** Master to frame n at its start: where the neighbour is held. */
+  neighbourStart: AffineSimilarity;
+  region: RegionGrid;
+  estimateScale: boolean;
+  /** See computeSearchRadiusPx; absent: from the region's Moon. */
+  searchRadiusPx?: number;
+}
+
+/** What a pair comparison found: the refined master-to-frame-i map (against n at its start), or why it could not. */
+export type RegistrationPairOutcome =
+  | { ok: true; masterToFrame: AffineSimilarity; peak: number; similarity: number; iterations: number; confined: boolean }
+  | { ok: false; code: ImagingErrorCode; detail: string };
+
+/**
+ * Compares one pair (see refineAgainstNeighbour). Pure: the same task gives the
+ * same numbers on any thread. A comparison that fails with the imaging core's
+ * error comes back as { ok: false } with its code and words; any other fault throws.
+ */
+export function refineRegistrationPair(task: RegistrationPairTask): RegistrationPairOutcome {
+  try {
+    const refined = refineAgainstNeighbour(task.frame, task.start, task.neighbour, task.neighbourStart, task.region, { estimateScale: task.estimateScale, searchRadiusPx: task.searchRadiusPx });
+    return { ok: true, ...refined };
+  } catch (error) {
+    if (!(error instanceof ImagingError)) throw error;
+    return { ok: false, code: error.code, detail: error.detail };
+  }
+}
+
+/**
+ * Refines the transform of one frame against a neighbour held at a given map:
  * phase correlation for the translation first (robust to a start that is off by
  * pixels, though pulled a little toward zero by the common mask), then
  * Gauss-Newton alignment of translation, rotation and optionally scale until
@@ -492,20 +554,22 @@ function measureMove(a: AffineSimilarity, b: AffineSimilarity, region: RegionGri
  * step may take the frame farther than searchRadiusPx from its start (see
  * computeSearchRadiusPx): the correlation peak is sought only within it, and a
  * Gauss-Newton step that leaves it is undone and ends the refinement
- * (reported as confined). Returns the map and the phase correlation peak.
+ * (reported as confined). Held at its start map, the neighbour is off its
+ * refined place by its own start's error, so the radius bounds the move of the
+ * frame relative to the neighbour: what the two limb-fit starts got wrong
+ * between them. Returns the map and the phase correlation peak.
  */
-export function refineAgainstNeighbour(
-  frame: RegistrationFrame,
+function refineAgainstNeighbour(
+  frame: PairSide,
   start: AffineSimilarity,
-  neighbour: RegistrationFrame,
+  neighbour: PairSide,
   neighbourTransform: AffineSimilarity,
   region: RegionGrid,
-  options: { estimateScale?: boolean; maxIterations?: number; searchRadiusPx?: number; sources?: SourceImages } = {},
+  options: { estimateScale?: boolean; maxIterations?: number; searchRadiusPx?: number } = {},
 ): { masterToFrame: AffineSimilarity; peak: number; iterations: number; confined: boolean; similarity: number } {
   const searchRadiusPx = options.searchRadiusPx ?? computeSearchRadiusPx(region.moonRadiusPx);
-  const sourceOf = options.sources ?? createSourceImage;
-  const source = sourceOf(frame, region.step);
-  const neighbourSource = sourceOf(neighbour, region.step);
+  const source = frame.image;
+  const neighbourSource = neighbour.image;
   const refLog = buildLogImage(neighbour, neighbourSource, neighbourTransform, region);
   const pairHighPass = createPairHighPass(refLog, region);
   let m = start;
@@ -589,8 +653,89 @@ export function chooseNeighbour(valid: Uint8Array[], i: number, registered: numb
   return best;
 }
 
-/** Registers every frame to the reference; see the notes at the top of this file. */
-export function registerFrames(frames: RegistrationFrame[], options: RegistrationOptions): { referenceIndex: number; frames: FrameRegistration[] } {
+/**
+ * Pair comparisons a registration needs before it can go on: `count` of them,
+ * independent of each other. `task(k)` builds the k-th one's inputs (it makes the
+ * two source images, so call it just before that pair runs, not for all at once).
+ */
+export interface RegistrationPairBatch {
+  count: number;
+  task: (k: number) => RegistrationPairTask;
+}
+
+/** A registration as steps: it yields batches of pairs and is resumed with their outcomes, in the batch's order. */
+export type RegistrationSteps<T> = Generator<RegistrationPairBatch, T, RegistrationPairOutcome[]>;
+
+/** Runs the pairs of some registration steps here, one after another. */
+export function runRegistrationSteps<T>(steps: RegistrationSteps<T>): T {
+  let next = steps.next();
+  while (!next.done) {
+    const batch = next.value;
+    next = steps.next(Array.from({ length: batch.count }, (_, k) => refineRegistrationPair(batch.task(k))));
+  }
+  return next.value;
+}
+
+/** Runs one pair elsewhere (a worker thread); undefined when it could not, and the caller runs it itself. */
+export type RegistrationPairRunner = (task: RegistrationPairTask) => Promise<RegistrationPairOutcome | undefined>;
+
+/**
+ * Runs the pairs of some registration steps through `runPair`, `lanes` at a time,
+ * building each pair's inputs here just before it is sent. A pair the runner
+ * could not do is done on this thread. The outcomes, and so the result, are those
+ * of runRegistrationSteps: each pair is the same pure function of the same inputs.
+ */
+export async function runRegistrationStepsOn<T>(steps: RegistrationSteps<T>, runPair: RegistrationPairRunner, lanes: number): Promise<T> {
+  let next = steps.next();
+  while (!next.done) {
+    const batch = next.value;
+    const outcomes: RegistrationPairOutcome[] = new Array(batch.count);
+    let claimed = 0;
+    await Promise.all(Array.from({ length: Math.max(1, Math.min(lanes, batch.count)) }, async () => {
+      while (claimed < batch.count) {
+        const k = claimed++;
+        const task = batch.task(k);
+        outcomes[k] = (await runPair(task)) ?? refineRegistrationPair(task);
+      }
+    }));
+    next = steps.next(outcomes);
+  }
+  return next.value;
+}
+
+export interface Registration {
+  referenceIndex: number;
+  frames: FrameRegistration[];
+}
+
+/** Registers every frame to the reference, its pairs one after another on this thread; see the notes at the top of this file. */
+export function registerFrames(frames: RegistrationFrame[], options: RegistrationOptions): Registration {
+  return runRegistrationSteps(registerFramesInSteps(frames, options));
+}
+
+/** registerFrames with its pairs run through `runPair` (a pool's worker threads), `lanes` at a time: the same result. */
+export function registerFramesOnThreads(frames: RegistrationFrame[], options: RegistrationOptions, runPair: RegistrationPairRunner, lanes: number): Promise<Registration> {
+  return runRegistrationStepsOn(registerFramesInSteps(frames, options), runPair, lanes);
+}
+
+/**
+ * registerFrames as steps (see RegistrationSteps). First every frame's neighbour
+ * is chosen, as a chain outward from the reference would: among the reference
+ * and the frames before it in the outward order, the one it shares the most
+ * well-exposed corona with at the start maps. Then all pairs run at once (those
+ * that fail on the usual window again over the wide one), and the transforms are
+ * composed down the tree from the reference.
+ *
+ * A frame whose pair fails is placed by its limb (method "limb", T = its start,
+ * so a frame compared with it composes onto that start), or, with no limb of its
+ * own, is not placed ("failed"). A frame whose chosen neighbour was not placed is
+ * compared again with the placed frame among those before it that it shares the
+ * most with: the neighbour a chain that only ever chose among placed frames would
+ * have chosen. Only frames without a limb of their own can go unplaced, so such
+ * second comparisons are rare; they run together, in a batch of their own, as
+ * soon as it is known which frames before each are placed.
+ */
+export function* registerFramesInSteps(frames: RegistrationFrame[], options: RegistrationOptions): RegistrationSteps<Registration> {
   if (frames.length === 0) throw new ImagingError("too-few-frames", "registration needs frames");
   const withLimb = frames.map((f, i) => i).filter((i) => Number.isFinite(frames[i].limb.x) && Number.isFinite(frames[i].limb.radiusPx));
   if (withLimb.length === 0) throw new ImagingError("limb-not-found", "the lunar limb could not be found in any frame");
@@ -601,42 +746,82 @@ export function registerFrames(frames: RegistrationFrame[], options: Registratio
   const region = defineRegion(frames[referenceIndex]);
   const order = frames.map((_, i) => i).sort((a, b) => frames[a].exposureS - frames[b].exposureS || a - b);
   const refPos = order.indexOf(referenceIndex);
-  // Outward from the reference in exposure; each frame is compared with the registered
-  // frame it shares the most well-exposed corona with (at the start maps), which is
+  // Outward from the reference in exposure, shorter ones first; each frame is compared with the
+  // frame before it that it shares the most well-exposed corona with (at the start maps), which is
   // usually its neighbour in exposure but not when that one is clipped or faint where this one is good.
+  const outward = [...order.slice(0, refPos).reverse(), ...order.slice(refPos + 1)];
   const sources = createSourceCache();
   const validAtStart = frames.map((f, i) => buildLogImage(f, sources(f, region.step), start[i], region).valid);
+  const chosen = new Map<number, number>();
+  outward.forEach((i, k) => chosen.set(i, chooseNeighbour(validAtStart, i, [referenceIndex, ...outward.slice(0, k)])));
   // Long exposures are saturated over the inner corona and well exposed only far out:
   // when the usual window holds too little of both frames, they are compared over the whole frame.
   let wide: RegionGrid | undefined;
-  const registered = [referenceIndex];
-  for (const chain of [order.slice(0, refPos).reverse(), order.slice(refPos + 1)]) {
-    for (const i of chain) {
-      const neighbour = chooseNeighbour(validAtStart, i, registered);
-      // A frame without its own limb starts from the reference's pointing: allow a wider search.
-      const searchRadiusPx = frames[i].limbAssumed ? Math.max(3 * computeSearchRadiusPx(region.moonRadiusPx), 12) : undefined;
-      const attempt = (r: RegionGrid) => refineAgainstNeighbour(frames[i], start[i], frames[neighbour], result[neighbour].masterToFrame, r, { estimateScale: options.estimateScale, searchRadiusPx, sources });
-      try {
-        let refined;
-        try {
-          refined = attempt(region);
-        } catch (error) {
-          if (!(error instanceof ImagingError && error.code === "registration-failed")) throw error;
-          wide ??= defineRegion(frames[referenceIndex], Infinity);
-          refined = attempt(wide);
-        }
-        result[i] = { masterToFrame: refined.masterToFrame, peak: refined.peak, neighbour, method: "corona", similarity: refined.similarity };
-        registered.push(i);
-      } catch (error) {
-        if (!(error instanceof ImagingError)) throw error;
-        // The limb (and the ephemeris, when offsets are given) still places a frame whose limb was found.
-        if (!frames[i].limbAssumed) {
-          result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "limb", reason: error.detail };
-          registered.push(i);
-        } else {
-          result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "failed", reason: `${error.detail}, and its lunar limb could not be found either` };
-        }
+  const side = (i: number, step: number): PairSide => {
+    const f = frames[i];
+    return { name: f.name, exposureS: f.exposureS, noiseSigma: f.noiseSigma, limb: f.limb, image: sources(f, step) };
+  };
+  const taskOf = (i: number, n: number, r: RegionGrid): RegistrationPairTask => ({
+    frame: side(i, r.step), neighbour: side(n, r.step), start: start[i], neighbourStart: start[n], region: r,
+    estimateScale: options.estimateScale ?? false,
+    // A frame without its own limb starts from the reference's pointing: allow a wider search.
+    searchRadiusPx: frames[i].limbAssumed ? Math.max(3 * computeSearchRadiusPx(region.moonRadiusPx), 12) : undefined,
+  });
+  /** The pairs (frame, neighbour), each on the usual window and, where that fails, on the wide one. */
+  function* comparePairs(pairs: [number, number][]): Generator<RegistrationPairBatch, RegistrationPairOutcome[], RegistrationPairOutcome[]> {
+    const outcomes = yield { count: pairs.length, task: (k) => taskOf(pairs[k][0], pairs[k][1], region) };
+    const again = pairs.map((_, k) => k).filter((k) => { const o = outcomes[k]; return !o.ok && o.code === "registration-failed"; });
+    if (again.length > 0) {
+      wide ??= defineRegion(frames[referenceIndex], Infinity);
+      const widened = yield { count: again.length, task: (k) => taskOf(pairs[again[k]][0], pairs[again[k]][1], wide!) };
+      again.forEach((k, j) => { outcomes[k] = widened[j]; });
+    }
+    return outcomes;
+  }
+  const neighbourOf = new Map(chosen);
+  const outcomeOf = new Map<number, RegistrationPairOutcome>();
+  (yield* comparePairs(outward.map((i) => [i, chosen.get(i)!]))).forEach((o, k) => outcomeOf.set(outward[k], o));
+  // A frame with its own limb is always placed (on the corona, or by the limb); one without it
+  // only when its comparison stands, which is known once its neighbour is known to be placed.
+  const settled = new Set([referenceIndex]);
+  const isPlaced = (j: number): boolean | undefined => (j === referenceIndex || !frames[j].limbAssumed ? true : settled.has(j) ? outcomeOf.get(j)!.ok : undefined);
+  for (;;) {
+    const again: number[] = [];
+    for (const [k, i] of outward.entries()) {
+      if (settled.has(i)) continue;
+      const placed = isPlaced(neighbourOf.get(i)!);
+      if (placed === undefined) continue;
+      if (placed) {
+        settled.add(i);
+        continue;
       }
+      // Its neighbour could not be placed: compare it with the placed frame before it that it shares
+      // the most with, as soon as it is known which frames before it are placed.
+      const before = [referenceIndex, ...outward.slice(0, k)];
+      if (before.some((j) => isPlaced(j) === undefined)) continue;
+      neighbourOf.set(i, chooseNeighbour(validAtStart, i, before.filter((j) => isPlaced(j))));
+      again.push(i);
+    }
+    if (again.length === 0) break;
+    (yield* comparePairs(again.map((i) => [i, neighbourOf.get(i)!]))).forEach((o, k) => {
+      outcomeOf.set(again[k], o);
+      settled.add(again[k]);
+    });
+  }
+  // Down the tree: each frame's neighbour comes before it in the outward order, its transform made.
+  for (const i of outward) {
+    const neighbour = neighbourOf.get(i)!;
+    const outcome = outcomeOf.get(i)!;
+    if (outcome.ok) {
+      const held = result[neighbour].masterToFrame;
+      // T_i = m_i o start_n^-1 o T_n; when n sits at its start (the reference, or placed by its limb) that is m_i itself.
+      const masterToFrame = held === start[neighbour] ? outcome.masterToFrame : composeAffine(composeAffine(outcome.masterToFrame, invertAffine(start[neighbour])), held);
+      result[i] = { masterToFrame, peak: outcome.peak, neighbour, method: "corona", similarity: outcome.similarity };
+    } else if (!frames[i].limbAssumed) {
+      // The limb (and the ephemeris, when offsets are given) still places a frame whose limb was found.
+      result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "limb", reason: outcome.detail };
+    } else {
+      result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "failed", reason: `${outcome.detail}, and its lunar limb could not be found either` };
     }
   }
   if (options.mode === "moon") {

@@ -1,9 +1,11 @@
 // The flow's plan, from frames on local disk: sky geometry, registration,
 // offsets, transmissions, frames left out (planBracket). Runs in a worker thread
 // (plan-thread.ts), so that the worker's main thread keeps renewing the parent
-// job's lock however long the plan of a large bracket takes.
-import { startTypeScriptWorker } from "@/lib/reduction-runner/prepare-pool";
-import { planBracket, type BracketPlan } from "@/lib/imaging/bracket-plan";
+// job's lock however long the plan of a large bracket takes. The registration's
+// pairs are compared in two more threads (a frame pool of the plan's own), so
+// that both cores of the parent's machine work through it, with the same plan.
+import { createPreparePool, PREPARE_WORKERS, startTypeScriptWorker } from "@/lib/reduction-runner/prepare-pool";
+import { planBracketOnThreads, type BracketPlan } from "@/lib/imaging/bracket-plan";
 import { ImagingError } from "@/lib/imaging/errors";
 import { prepareFrameWithLimb, type PreparedFrame } from "@/lib/imaging/frame-stage";
 import type { LimbFit } from "@/lib/imaging/limb-fit";
@@ -44,9 +46,10 @@ export interface SkyPiece {
 
 export type PlanProgress = (stage: string, fraction: number, frames?: FrameCount) => void;
 
-export function planFromFiles(input: PlanInput, progress: PlanProgress): { plan: BracketPlan; sky: SkyPiece } {
+export async function planFromFiles(input: PlanInput, progress: PlanProgress): Promise<{ plan: BracketPlan; sky: SkyPiece }> {
   const cache = createArrayCache(PLAN_CACHE_BYTES);
   const spill = createFrameSpill({ parentDir: input.scratchDir });
+  const pool = createPreparePool();
   try {
     const frames: LinearFrame[] = [];
     const prepared: PreparedFrame[] = [];
@@ -64,9 +67,10 @@ export function planFromFiles(input: PlanInput, progress: PlanProgress): { plan:
     const planProgress: PlanProgress = (stage, fraction, frames) => {
       if (stage !== "linearize" && stage !== "limb") progress(stage, fraction, frames);
     };
-    const { plan } = planBracket(frames, prepared, sky.pipelineParams, { onProgress: planProgress, keepPrepared: (p) => spillPrepared(spill, p) });
+    const { plan } = await planBracketOnThreads(frames, prepared, sky.pipelineParams, { onProgress: planProgress, keepPrepared: (p) => spillPrepared(spill, p) }, (task) => pool.registerPair(task), PREPARE_WORKERS);
     return { plan, sky: { pipelineParams: sky.pipelineParams, registrationMode: sky.registrationMode, notes: sky.notes, skies: sky.skies, sun: sky.sun } };
   } finally {
+    await pool.close();
     spill.close();
   }
 }

@@ -2,11 +2,11 @@
 import { parentPort } from "node:worker_threads";
 import { describePlanFault, planFromFiles, type PlanInput, type PlanMessage } from "./plan-stage";
 
-parentPort?.once("message", (input: PlanInput) => {
+parentPort?.once("message", async (input: PlanInput) => {
   let last = -1;
   let lastStage = "";
   try {
-    const { plan, sky } = planFromFiles(input, (stage, fraction, frames) => {
+    const { plan, sky } = await planFromFiles(input, (stage, fraction, frames) => {
       // Progress at most every 1 %: messages are cheap, but not free.
       if (stage === lastStage && fraction - last < 0.01 && fraction !== 1 && !frames) return;
       last = fraction;

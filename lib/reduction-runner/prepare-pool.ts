@@ -1,6 +1,7 @@
 // Two worker threads that decode frames (and search each for the bracket's
-// defects) and run the per-frame stage of the pipeline (linearize, masks, limb
-// fit) side by side, so both cores work while the main thread only waits. Arrays
+// defects), run the per-frame stage of the pipeline (linearize, masks, limb
+// fit) and compare the pairs of the registration side by side, so both cores
+// work while the main thread only waits. Arrays
 // come back by transfer. A worker that cannot start or a frame that fails gives
 // `undefined`, and the caller does that frame on its own thread: the pool only
 // ever makes a reduction faster, never different.
@@ -11,6 +12,7 @@ import { pathToFileURL } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { DecodedFrame } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
+import type { RegistrationPairOutcome, RegistrationPairTask } from "@/lib/imaging/register";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
 import type { PlaneSource, PrepareReply, PrepareRequest } from "./prepare-messages";
 
@@ -32,6 +34,8 @@ export interface PreparePool {
    * (else the planes are copied to it). Undefined when the worker could not.
    */
   prepare(frame: LinearFrame, params: ReductionParams, files?: { path: string; length: number }[]): Promise<PreparedFrame | undefined>;
+  /** refineRegistrationPair(task) in a worker (the task's images are copied to it); undefined when the worker could not. */
+  registerPair(task: RegistrationPairTask): Promise<RegistrationPairOutcome | undefined>;
   close(): Promise<void>;
 }
 
@@ -113,6 +117,10 @@ export function createPreparePool(size = PREPARE_WORKERS): PreparePool {
       const { prepared } = reply;
       prepared.linear.masked = frame.badPixels;
       return prepared;
+    },
+    async registerPair(task) {
+      const reply = await send({ kind: "register-pair", id: nextId++, task });
+      return reply?.ok && "pair" in reply ? reply.pair : undefined;
     },
     async close() {
       await Promise.all(lanes.map((l) => l.worker.terminate()));

@@ -1,12 +1,13 @@
 // Worker thread of the frame pool (prepare-pool.ts): decodes a file (and, when
-// asked, searches it for the bracket's defects), or runs lib/imaging's
-// prepareFrame on a frame, then hands every array back by transfer, so nothing
-// is copied. Any fault is answered with ok: false and the caller redoes the work
+// asked, searches it for the bracket's defects), runs lib/imaging's
+// prepareFrame on a frame, or compares one pair of a registration, then hands
+// every array back by transfer, so nothing is copied. Any fault is answered with ok: false and the caller redoes the work
 // on its own thread, where the error keeps its class and message.
 import { readFileSync } from "node:fs";
 import { parentPort } from "node:worker_threads";
 import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
+import { refineRegistrationPair } from "@/lib/imaging/register";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
@@ -29,6 +30,7 @@ async function handle(request: PrepareRequest): Promise<PrepareReply> {
     const frame: LinearFrame = { name: decoded.name, image: decoded.image, exposureS: NaN, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel, encoding: decoded.encoding };
     return { id: request.id, ok: true, decoded, outliers: findFrameOutliers(frame) };
   }
+  if (request.kind === "register-pair") return { id: request.id, ok: true, pair: refineRegistrationPair(request.task) };
   const { frame, width, height, source, params } = request;
   // Planes read when looked at, as a spilled frame's are: linearizing reads them once and lets them
   // go once the luminance is made, so they do not sit beside the limb fit (288 MB at 24 megapixels).

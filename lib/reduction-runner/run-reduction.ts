@@ -7,7 +7,7 @@ import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
 import type { MergeAccumulator } from "@/lib/imaging/merge";
-import { planBracket } from "@/lib/imaging/bracket-plan";
+import { planBracketOnThreads } from "@/lib/imaging/bracket-plan";
 import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
@@ -119,10 +119,18 @@ const yieldToEventLoop = () => new Promise<void>((resolve) => setImmediate(resol
 /**
  * The numeric core's stages in order, as reducePreparedBracket runs them, but
  * giving the event loop a turn after the plan and after every frame merged, so
- * that a worker's job lock is renewed during a long reduction.
+ * that a worker's job lock is renewed during a long reduction. The plan's
+ * registration compares its pairs in the pool's threads, and the pool is closed
+ * as soon as the plan is made (the merge has no use for it).
  */
-async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined, scratchDir?: string): Promise<ReductionResult> {
-  const { plan, ready } = planBracket(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) });
+async function reduceInSteps(frames: LinearFrame[], prepared: readonly (PreparedFrame | undefined)[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined, pool: PreparePool, scratchDir?: string): Promise<ReductionResult> {
+  let planned;
+  try {
+    planned = await planBracketOnThreads(frames, prepared, params, { onProgress: progress, keepPrepared: spill && ((p) => spillPrepared(spill, p)) }, (task) => pool.registerPair(task), PREPARE_WORKERS);
+  } finally {
+    await pool.close();
+  }
+  const { plan, ready } = planned;
   await yieldToEventLoop();
   const started = performance.now();
   // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
@@ -216,8 +224,9 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       if (sky.sun) lap("sky-geometry");
       // Frames prepared with another clip fraction than the pipeline's would not be its own (the sky keeps it, so far).
       if (sky.pipelineParams.clipFraction !== params.clipFraction) prepared = [];
-    } finally {
+    } catch (error) {
       await pool.close();
+      throw error;
     }
     const registrationMode = sky.registrationMode;
     // The pool has reported the frames prepared; the pipeline's first stage, which only takes them
@@ -225,7 +234,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     const pipelineProgress: RunProgressFn = (stage, fraction, count) => {
       if (stage !== "linearize" && stage !== "limb") progress(stage, fraction, count);
     };
-    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, pipelineProgress, spill, options.scratchDir);
+    // The pool's threads compare the registration's pairs too; reduceInSteps closes it after the plan.
+    const result = await reduceInSteps(frames, prepared, sky.pipelineParams, pipelineProgress, spill, pool, options.scratchDir);
     spill?.close();
     prepared.length = 0;
     const helio = sky.completeGeometry(result);

@@ -7,6 +7,7 @@
 // --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy,
 // peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held;
 // --stop-at STAGE ends the reduction as that stage starts (e.g. merge-pilot: the stages up to the levels alone).
+// --stages prepare,register,register-pool also registers with the pairs compared in the frame pool's two threads (the same transforms).
 import { createHash } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -14,10 +15,11 @@ import { basename, join } from "node:path";
 import { findBadPixelsFromBracket } from "@/lib/imaging/calibrate-defects";
 import { fitLimb } from "@/lib/imaging/limb-fit";
 import { linearizeFrame } from "@/lib/imaging/linearize";
-import { registerFrames, type RegistrationFrame } from "@/lib/imaging/register";
+import { registerFrames, registerFramesOnThreads, type RegistrationFrame } from "@/lib/imaging/register";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
+import { createPreparePool, PREPARE_WORKERS } from "@/lib/reduction-runner/prepare-pool";
 import { startMemorySampler } from "./memory-sampler";
 
 interface Args {
@@ -180,9 +182,28 @@ async function main(): Promise<void> {
     });
   }
   result.limbs = limbs;
+  const describeRegistration = (registered: ReturnType<typeof registerFrames>) => registered.frames.map((r, i) => ({ name: frames[i].name, ...r.masterToFrame, method: r.method, neighbour: r.neighbour, peak: r.peak, similarity: r.similarity }));
   if (args.stages.has("register")) {
     const registered = time("register", () => registerFrames(registration, { mode: "corona" }));
-    result.registration = registered.frames.map((r, i) => ({ name: frames[i].name, ...r.masterToFrame, method: r.method, neighbour: r.neighbour, peak: r.peak, similarity: r.similarity }));
+    result.registration = describeRegistration(registered);
+  }
+  if (args.stages.has("register-pool")) {
+    // The pool's threads start before the clock (the runner has them running from the decode on);
+    // CPU time here is every thread's of this process, so cores busy = CPU / wall.
+    const pool = createPreparePool();
+    try {
+      // Both threads booted (tsx's loader, the imaging modules) by a decode each.
+      await Promise.all(picked.slice(0, PREPARE_WORKERS).map(({ path }) => pool.decode(path, basename(path), false)));
+      const started = performance.now();
+      const cpuStarted = cpuMs();
+      const registered = await registerFramesOnThreads(registration, { mode: "corona" }, (task) => pool.registerPair(task), PREPARE_WORKERS);
+      times["register-pool"] = performance.now() - started;
+      cpuTimes["register-pool"] = cpuMs() - cpuStarted;
+      result.registrationPool = describeRegistration(registered);
+      if (result.registration) console.log(`register-pool gives the same transforms as register: ${JSON.stringify(result.registration) === JSON.stringify(result.registrationPool)}`);
+    } finally {
+      await pool.close();
+    }
   }
   report(args, times, cpuTimes, result);
 }

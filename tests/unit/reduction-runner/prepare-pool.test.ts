@@ -1,16 +1,18 @@
-// The frame pool decodes, searches for defects and prepares in worker threads
-// exactly what the calling thread would, from planes in memory or spilled to
-// disk, and a file it cannot do comes back undefined for the caller to redo.
+// The frame pool decodes, searches for defects, prepares and compares the
+// registration's pairs in worker threads exactly what the calling thread would,
+// from planes in memory or spilled to disk, and a file it cannot do comes back
+// undefined for the caller to redo.
 import { rmSync, writeFileSync } from "node:fs";
 import { basename, dirname, join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { decodeFrame, toLinearFrame } from "@/lib/media";
+import { planBracket, planBracketOnThreads } from "@/lib/imaging/bracket-plan";
 import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import { DEFAULT_REDUCTION_PARAMS, type LinearFrame } from "@/lib/imaging/types";
 import { createFrameSpill } from "@/lib/reduction-runner/frame-spill";
-import { createPreparePool, type PreparePool } from "@/lib/reduction-runner/prepare-pool";
+import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "@/lib/reduction-runner/prepare-pool";
 import { writeBracketFixture, type BracketFixture } from "./bracket-fixture";
 
 let fixture: BracketFixture;
@@ -90,5 +92,31 @@ describe("prepare pool", () => {
     const frame = await decodeHere(fixture.filesOf("tiff")[0], fixture.exposuresS[0]);
     expect(await pool.prepare(frame, { ...DEFAULT_REDUCTION_PARAMS, clipFraction: 2 })).toBeUndefined();
     expect(await pool.prepare(frame, DEFAULT_REDUCTION_PARAMS)).toBeDefined();
+  });
+
+  it("compares a registration's pairs in its threads, and plans the bracket to the very same transforms as one thread does", async () => {
+    const frames = await Promise.all(fixture.filesOf("tiff").map((path, i) => decodeHere(path, fixture.exposuresS[i])));
+    // A lens-capped frame among them: its pair fails in the worker as it does here, and it is left out the same way.
+    const capped: LinearFrame = { ...frames[2], name: "lens-cap.tif", image: { ...frames[2].image, planes: frames[2].image.planes.map((p) => p.map(() => frames[2].blackLevel)) } };
+    const bracket = [...frames, capped];
+    const here = planBracket(bracket, [], DEFAULT_REDUCTION_PARAMS).plan;
+    let sent = 0;
+    let answered = 0;
+    const threaded = (await planBracketOnThreads(bracket, [], DEFAULT_REDUCTION_PARAMS, {}, async (task) => {
+      sent++;
+      const outcome = await pool.registerPair(task);
+      if (outcome) answered++;
+      return outcome;
+    }, PREPARE_WORKERS)).plan;
+    expect(sent).toBeGreaterThanOrEqual(bracket.length - 1);
+    expect(answered).toBe(sent);
+    expect(here.leftOut.map((l) => l.name)).toEqual(["lens-cap.tif"]);
+    expect(threaded.registration).toEqual(here.registration);
+    expect(threaded.leftOut).toEqual(here.leftOut);
+    expect(threaded.moons).toEqual(here.moons);
+    expect(threaded.transmissions).toEqual(here.transmissions);
+    // A pool that can do nothing: every pair is compared on the calling thread, with the same plan.
+    const refused = (await planBracketOnThreads(bracket, [], DEFAULT_REDUCTION_PARAMS, {}, async () => undefined, PREPARE_WORKERS)).plan;
+    expect(refused.registration).toEqual(here.registration);
   });
 });

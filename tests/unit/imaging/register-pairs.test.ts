@@ -1,0 +1,126 @@
+// Registration as independent pairs composed down the tree from the reference
+// (register.ts): accuracy against the synthetic truth on a bracket with repeated
+// exposures and frames that cannot be placed, and what happens to a frame whose
+// chosen neighbour turns out not to be placed.
+import { describe, expect, it } from "vitest";
+import { fitLimb } from "@/lib/imaging/limb-fit";
+import { linearizeFrame } from "@/lib/imaging/linearize";
+import { refineRegistrationPair, registerFramesInSteps, type Registration, type RegistrationFrame, type RegistrationPairTask } from "@/lib/imaging/register";
+import { applyAffine, composeAffine, fromAffine, invertAffine, toAffine, type AffineSimilarity } from "@/lib/imaging/similarity";
+import { computeLuminancePlane } from "@/lib/imaging/srgb";
+import { synthesizeBracket } from "@/lib/imaging/synth-model";
+import { DEFAULT_REDUCTION_PARAMS } from "@/lib/imaging/types";
+import { measureCoronaRmsPx } from "@/tests/support/registration-truth";
+
+const WIDTH = 320;
+const HEIGHT = 256;
+const SUN_RADIUS_PX = 32;
+// Nine exposures log-spaced from 1/2000 s to 1 s (the scale bench's ladder), taken twice.
+const LADDER = [0.0005, 0.001293, 0.003344, 0.008647, 0.02236, 0.05782, 0.1495, 0.3867, 1];
+const EXPOSURES = [...LADDER, ...LADDER];
+/** A fogged frame: flat light well above the noise everywhere, no limb, no corona. Every frame after it overlaps it most. */
+const FOGGED = 5;
+/** A frame at the black level (lens cap): no limb, nothing well exposed. */
+const CAPPED = 11;
+/** Saturated everywhere but the dark Moon: its limb is found, its corona is not there to compare. */
+const SATURATED = 16;
+
+function makeBracket(): { frames: RegistrationFrame[]; expected: (referenceIndex: number, i: number) => AffineSimilarity; centre: (referenceIndex: number) => { x: number; y: number } } {
+  // Deterministic pointing errors of up to 2 px and rolls of up to 0.2 degrees.
+  const shiftsPx = EXPOSURES.map((_, i) => ({ dx: 2 * Math.sin(1.7 * i + 0.3), dy: 2 * Math.cos(2.3 * i + 1.1) }));
+  const rotationsDeg = EXPOSURES.map((_, i) => 0.2 * Math.sin(0.9 * i + 0.5));
+  const { frames, truth } = synthesizeBracket({
+    width: WIDTH, height: HEIGHT, channels: 3, exposuresS: EXPOSURES, sunRadiusPx: SUN_RADIUS_PX, seed: 12,
+    shiftsPx, rotationsDeg, moonOffsetPx: { dx: -1, dy: -0.4 }, moonDriftPxPerFrame: { dx: 0.05, dy: 0.02 },
+  });
+  const { blackLevel, whiteLevel } = truth;
+  const registration = frames.map((f, i): RegistrationFrame => {
+    let planes = f.planes;
+    if (i === FOGGED) planes = planes.map((p) => p.map(() => blackLevel + 0.4 * (whiteLevel - blackLevel)));
+    if (i === CAPPED) planes = planes.map((p) => p.map(() => blackLevel));
+    if (i === SATURATED) {
+      const moon = truth.moonInFrame[i];
+      planes = planes.map((p) => p.map((_, j) => (Math.hypot((j % WIDTH) - moon.x, Math.floor(j / WIDTH) - moon.y) < truth.moonRadiusPx ? blackLevel : whiteLevel)));
+    }
+    const lin = linearizeFrame({ name: f.name, image: { width: WIDTH, height: HEIGHT, planes }, exposureS: f.exposureS, blackLevel, whiteLevel, encoding: "linear" }, DEFAULT_REDUCTION_PARAMS.clipFraction);
+    const luminance = computeLuminancePlane(lin.planes);
+    const limb = fitLimb(luminance, WIDTH, HEIGHT, { clipLevel: lin.clipLevel, clipped: lin.clipped, noiseSigma: lin.noiseSigma });
+    return {
+      name: f.name, width: WIDTH, height: HEIGHT, exposureS: f.exposureS, luminance, clipped: lin.clipped, noiseSigma: lin.noiseSigma,
+      limb: limb.verdict === "failed" ? { x: NaN, y: NaN, radiusPx: NaN } : { x: limb.x, y: limb.y, radiusPx: limb.radiusPx },
+    };
+  });
+  // The master is the reference frame: frame i's true master-to-frame map is truth_i o truth_ref^-1.
+  const expected = (ref: number, i: number) => composeAffine(toAffine(truth.transforms[i], WIDTH, HEIGHT), invertAffine(toAffine(truth.transforms[ref], WIDTH, HEIGHT)));
+  const centre = (ref: number) => applyAffine(toAffine(truth.transforms[ref], WIDTH, HEIGHT), truth.sunCentre.x, truth.sunCentre.y);
+  return { frames: registration, expected, centre };
+}
+
+/** RMS distance between two maps over the corona (master px). */
+const measureRmsPx = (found: AffineSimilarity, expected: AffineSimilarity, centre: { x: number; y: number }) => measureCoronaRmsPx(found, expected, centre, SUN_RADIUS_PX);
+
+describe("registration as pairs composed from the reference", () => {
+  const { frames, expected, centre } = makeBracket();
+  // Every batch of pairs the steps hand out, as (frame, neighbour, window width) by name.
+  const batches: { frame: string; neighbour: string; width: number }[][] = [];
+  const steps = registerFramesInSteps(frames, { mode: "corona" });
+  let next = steps.next();
+  while (!next.done) {
+    const batch = next.value;
+    const tasks: RegistrationPairTask[] = Array.from({ length: batch.count }, (_, k) => batch.task(k));
+    batches.push(tasks.map((t) => ({ frame: t.frame.name, neighbour: t.neighbour.name, width: t.region.width })));
+    next = steps.next(tasks.map(refineRegistrationPair));
+  }
+  const result: Registration = next.value;
+  const ref = result.referenceIndex;
+  const name = (i: number) => frames[i].name;
+
+  it("leaves out the frames that neither the corona nor their limb place, and places the saturated one by its limb", () => {
+    expect(result.frames[FOGGED].method).toBe("failed");
+    expect(result.frames[CAPPED].method).toBe("failed");
+    expect(result.frames[SATURATED].method).toBe("limb");
+    expect(result.frames.filter((r) => r.method === "corona")).toHaveLength(EXPOSURES.length - 4);
+  });
+
+  // Measured (this bracket): RMS 0.057 px over the 14 frames placed on the corona, worst frame
+  // 0.123 px, worst roll 0.084 degrees. The budget is the existing tests' (register.test.ts): 0.1 px
+  // RMS is what the merge needs; a single short frame, with little corona above its noise, may reach 0.3.
+  // The chain this replaced (each frame against its neighbour at the neighbour's refined map), on
+  // brackets of 9 to 36 frames of this generator with repeats and unplaceable frames: RMS 0.055 to
+  // 0.137 px, where the pairs gave 0.054 to 0.100 px (DEVELOPERS.md, "Registration as pairs").
+  it("places every frame on the corona within 0.1 px RMS of the truth, through trees several pairs deep", () => {
+    const errors: number[] = [];
+    result.frames.forEach((r, i) => {
+      if (r.method !== "corona") return;
+      errors.push(measureRmsPx(r.masterToFrame, expected(ref, i), centre(ref)));
+      expect(Math.abs(fromAffine(r.masterToFrame, WIDTH, HEIGHT).rotationDeg - fromAffine(expected(ref, i), WIDTH, HEIGHT).rotationDeg)).toBeLessThan(0.1);
+    });
+    expect(Math.sqrt(errors.reduce((s, e) => s + e * e, 0) / errors.length)).toBeLessThan(0.1);
+    expect(Math.max(...errors)).toBeLessThan(0.3);
+    // Depth of the tree: the longest path of comparisons from a frame to the reference.
+    const depth = (i: number): number => (i === ref ? 0 : 1 + depth(result.frames[i].neighbour));
+    expect(Math.max(...result.frames.map((r, i) => (r.method === "corona" ? depth(i) : 0)))).toBeGreaterThanOrEqual(4);
+  });
+
+  it("chooses every neighbour before comparing, all pairs at once, and compares again a frame whose neighbour was not placed", () => {
+    const [first] = batches;
+    // One pair per frame but the reference; the fogged frame is chosen by the frames after it (it overlaps them most).
+    expect(first).toHaveLength(EXPOSURES.length - 1);
+    const orphans = first.filter((p) => p.neighbour === name(FOGGED)).map((p) => p.frame);
+    expect(orphans.length).toBeGreaterThan(0);
+    for (const frame of orphans) {
+      const i = frames.findIndex((f) => f.name === frame);
+      const final = result.frames[i];
+      // Compared again, in a later batch, with a frame that is placed: the one it reports.
+      const again = batches.slice(1).flat().filter((p) => p.frame === frame);
+      expect(again.length).toBeGreaterThan(0);
+      expect(again[again.length - 1].neighbour).toBe(name(final.neighbour));
+      expect(final.method).toBe("corona");
+    }
+    // The orphans' second comparisons run side by side, not one batch each.
+    const secondRound = batches.slice(1).filter((b) => b.some((p) => orphans.includes(p.frame) && p.width === first.find((q) => q.frame === p.frame)!.width));
+    expect(secondRound).toHaveLength(1);
+    // No frame placed on the corona reports an unplaced neighbour.
+    for (const r of result.frames) if (r.method === "corona") expect(["corona", "limb", "reference"]).toContain(result.frames[r.neighbour].method);
+  });
+});
