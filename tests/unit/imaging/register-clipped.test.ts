@@ -90,7 +90,9 @@ describe("registerFrames when the longest frame is clipped over the inner corona
     const near = registerFrames(shifted(2.5), { mode: "corona" }).frames[LONGEST];
     expect(measureRmsPx(near.masterToFrame, expected, truth)).toBeLessThan(0.1);
     // 12 px off: the true answer lies outside the search radius, so the frame stays within it of its start,
-    // as compared with its neighbour held at the neighbour's own start (registration as pairs, register.ts).
+    // as compared with its neighbour (registration as pairs, register.ts: the radius bounds the move from
+    // the two limb-fit starts). Measured at the Sun's centre carried through the neighbour's own correction
+    // (a few tenths of a pixel), where the frames' roll difference (0.003 rad) moves the bound by ~0.001 px.
     const farFrames = shifted(12);
     const farResult = registerFrames(farFrames, { mode: "corona" });
     const far = farResult.frames[LONGEST];
@@ -99,7 +101,7 @@ describe("registerFrames when the longest frame is clipped over the inner corona
     const againstStart = n < 0 ? far.masterToFrame : composeAffine(composeAffine(far.masterToFrame, invertAffine(farResult.frames[n].masterToFrame)), starts[n]);
     const found = applyAffine(againstStart, truth.sunCentre.x, truth.sunCentre.y);
     const from = applyAffine(starts[LONGEST], truth.sunCentre.x, truth.sunCentre.y);
-    expect(Math.hypot(found.x - from.x, found.y - from.y)).toBeLessThanOrEqual(radius + 1e-9);
+    expect(Math.hypot(found.x - from.x, found.y - from.y)).toBeLessThanOrEqual(radius + 0.01);
     expect(measureRmsPx(far.masterToFrame, expected, truth)).toBeGreaterThan(1);
   });
 });
