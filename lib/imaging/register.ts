@@ -7,7 +7,9 @@
 // frame it shares the most well-exposed corona with), so the two see the corona
 // at similar signal levels.
 //
-// The comparisons are independent pairs: every neighbour is chosen before any
+// Two forms (options.form). "chain", the default: one pair after another, each
+// neighbour held at its refined map. "pairs": the comparisons are independent
+// pairs: every neighbour is chosen before any
 // comparison runs, and each frame i is compared with its neighbour n held at
 // n's own start (limb-fit) map, not at n's refined one. The pair gives the
 // map from frame n to frame i, R_i = m_i o start_n^-1 (m_i: the refined
@@ -84,6 +86,12 @@ export interface RegistrationOptions {
   referenceIndex?: number;
   /** Also estimate scale (off by default: the corona's smooth radial profile constrains it poorly). */
   estimateScale?: boolean;
+  /**
+   * "chain" (the default): each frame against its neighbour held at the neighbour's
+   * refined map, one pair after another. "pairs": independent pairs composed down the
+   * tree, in two rounds, whose pairs can run side by side (see the notes at the top).
+   */
+  form?: "chain" | "pairs";
 }
 
 export interface FrameRegistration {
@@ -772,7 +780,7 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
     const f = frames[i];
     return { name: f.name, exposureS: f.exposureS, noiseSigma: f.noiseSigma, limb: f.limb, image: sources(f, step) };
   };
-  const taskOf = (i: number, n: number, r: RegionGrid): RegistrationPairTask => ({
+  const pairTask = (i: number, n: number, r: RegionGrid): RegistrationPairTask => ({
     frame: side(i, r.step), neighbour: side(n, r.step), start: start[i], neighbourStart: start[n], region: r,
     estimateScale: options.estimateScale ?? false,
     // A frame without its own limb starts from the reference's pointing: allow a wider search.
@@ -781,8 +789,9 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
   /** Frames whose comparison stands on the wide window. */
   const onWide = new Set<number>();
   /** The pairs (frame, neighbour), each on the usual window and, where that fails, on the wide one. */
-  function* comparePairs(pairs: [number, number][]): Generator<RegistrationPairBatch, RegistrationPairOutcome[], RegistrationPairOutcome[]> {
+  function* comparePairs(pairs: [number, number][], held?: AffineSimilarity): Generator<RegistrationPairBatch, RegistrationPairOutcome[], RegistrationPairOutcome[]> {
     for (const [i] of pairs) onWide.delete(i);
+    const taskOf = (i: number, n: number, r: RegionGrid) => (held ? { ...pairTask(i, n, r), neighbourStart: held } : pairTask(i, n, r));
     const outcomes = yield { count: pairs.length, task: (k) => taskOf(pairs[k][0], pairs[k][1], region) };
     const again = pairs.map((_, k) => k).filter((k) => { const o = outcomes[k]; return !o.ok && o.code === "registration-failed"; });
     if (again.length > 0) {
@@ -794,6 +803,19 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
       });
     }
     return outcomes;
+  }
+  if ((options.form ?? "chain") === "chain") {
+    // One pair at a time, each frame against a placed frame held at its refined map, which it then takes.
+    const registered = [referenceIndex];
+    for (const i of outward) {
+      const neighbour = chooseNeighbour(validAtStart, i, registered);
+      const [outcome] = yield* comparePairs([[i, neighbour]], result[neighbour].masterToFrame);
+      if (outcome.ok) result[i] = { masterToFrame: outcome.masterToFrame, peak: outcome.peak, neighbour, method: "corona", similarity: outcome.similarity };
+      else if (!frames[i].limbAssumed) result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "limb", reason: outcome.detail };
+      else result[i] = { masterToFrame: start[i], peak: NaN, neighbour: -1, method: "failed", reason: `${outcome.detail}, and its lunar limb could not be found either` };
+      if (result[i].method !== "failed") registered.push(i);
+    }
+    return finishRegistration(frames, options, referenceIndex, result);
   }
   const neighbourOf = new Map(chosen);
   const outcomeOf = new Map<number, RegistrationPairOutcome>();
@@ -869,7 +891,7 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
         const n = neighbourOf.get(i)!;
         // The search radius still bounds the move from the limb-fit starts: measured from frame i's start as seen from n where it is now held.
         const searchFrom = composeAffine(composeAffine(start[i], invertAffine(start[n])), composed[n]);
-        return { ...taskOf(i, n, onWide.has(i) ? wide! : region), start: composed[i], neighbourStart: composed[n], searchTranslation: false, searchFrom };
+        return { ...pairTask(i, n, onWide.has(i) ? wide! : region), start: composed[i], neighbourStart: composed[n], searchTranslation: false, searchFrom };
       },
     };
     second.forEach((o, k) => {
@@ -881,6 +903,11 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
     });
     composeDown();
   }
+  return finishRegistration(frames, options, referenceIndex, result);
+}
+
+/** The registration as found, in "moon" mode with each frame's anchor moved onto the reference's. */
+function finishRegistration(frames: RegistrationFrame[], options: RegistrationOptions, referenceIndex: number, result: FrameRegistration[]): Registration {
   if (options.mode === "moon") {
     // Keep rotation and scale from the corona; put each frame's anchor (Moon, or Sun by ephemeris) onto the reference's.
     const refAnchor = computeAnchor(frames[referenceIndex]);

@@ -63,7 +63,7 @@ describe("registration as pairs composed from the reference", () => {
   const { frames, expected, centre } = makeBracket();
   // Every batch of pairs the steps hand out, as (frame, neighbour, window width) by name.
   const batches: { frame: string; neighbour: string; width: number; second: boolean }[][] = [];
-  const steps = registerFramesInSteps(frames, { mode: "corona" });
+  const steps = registerFramesInSteps(frames, { mode: "corona", form: "pairs" });
   let next = steps.next();
   while (!next.done) {
     const batch = next.value;
