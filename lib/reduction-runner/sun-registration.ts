@@ -52,10 +52,7 @@ function estimateFromBracket(frames: LinearFrame[], prepared: readonly PreparedF
   const { width, height } = frames[0].image;
   const registration = registerFrames(
     prepared.map((p) => ({
-      // Getters: a frame kept on disk is read when the registration reaches it, not the whole bracket at once.
-      name: p.linear.name, width, height, exposureS: p.linear.exposureS,
-      get luminance() { return p.luminance; },
-      get clipped() { return p.linear.clipped; },
+      name: p.linear.name, width, height, exposureS: p.linear.exposureS, luminance: p.luminance, clipped: p.linear.clipped,
       noiseSigma: p.linear.noiseSigma,
       limb: p.limb.verdict === "failed" ? { x: NaN, y: NaN, radiusPx: NaN } : { x: p.limb.x, y: p.limb.y, radiusPx: p.limb.radiusPx },
     })),
