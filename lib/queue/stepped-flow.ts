@@ -123,6 +123,36 @@ function readState(data: unknown): FlowState {
   return parsed.data as FlowState;
 }
 
+/**
+ * One line in the worker's log per part and per parent step, with when it started and ended
+ * (ms since the epoch) and this process's pid, so that an operator (and the scale benchmark,
+ * parseStepTimes) can see which steps ran one after the other and which were shared.
+ */
+function logStepTime(parentId: string, step: string, what: string, startMs: number): void {
+  const endMs = Date.now();
+  console.log(`[flow] ${parentId} ${step} ${what} start=${startMs} end=${endMs} ms=${endMs - startMs} pid=${process.pid}`);
+}
+
+/** One line logStepTime wrote. */
+export interface StepTime {
+  parentId: string;
+  step: string;
+  /** "run" for the parent's own work, else "part i/n". */
+  what: string;
+  startMs: number;
+  endMs: number;
+  pid: number;
+}
+
+/** Every step-time line in a worker's log. */
+export function parseStepTimes(log: string): StepTime[] {
+  const out: StepTime[] = [];
+  for (const m of log.matchAll(/^\[flow\] (\S+) (\S+) (run|part \d+\/\d+) start=(\d+) end=(\d+) ms=\d+ pid=(\d+)$/gm)) {
+    out.push({ parentId: m[1], step: m[2], what: m[3], startMs: Number(m[4]), endMs: Number(m[5]), pid: Number(m[6]) });
+  }
+  return out;
+}
+
 /** The id prefix of one step's parts of one parent job (the index follows). */
 export function partIdPrefix(parent: Pick<Job, "id" | "timestamp">, step: string): string {
   return `${parent.id}__${parent.timestamp}__${step}__`;
@@ -163,7 +193,9 @@ export class SteppedFlow<PC extends FlowJobContext<unknown>, CC extends FlowJobC
     if (!step?.part) throw new UnrecoverableError(`this flow has no step "${name}" with parts`);
     const parentId = ctx.job.parent?.id;
     if (!parentId || !ctx.job.parentKey) throw new UnrecoverableError(`part ${part + 1} of step "${name}" has no parent job`);
+    const startMs = Date.now();
     const result = (await step.part(ctx)) ?? null;
+    logStepTime(parentId, name, `part ${part + 1}/${parts}`, startMs);
     // A run that lost its lock (its process froze past it and the part was taken again) will not be
     // allowed to complete: it must not report either, or a late count could overwrite a later stage.
     if (!(await this.holdsLock(ctx))) return result;
@@ -193,7 +225,9 @@ export class SteppedFlow<PC extends FlowJobContext<unknown>, CC extends FlowJobC
       } else {
         await ctx.report(step.stage ?? step.name, 0);
       }
+      const startMs = Date.now();
       const value = step.run ? await step.run(stepCtx, results) : null;
+      if (step.run) logStepTime(job.id, step.name, "run", startMs);
       state = { step: state.step + 1, values: { ...state.values, [step.name]: value ?? null } };
       await this.saveState(job, state);
     }

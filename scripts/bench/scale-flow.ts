@@ -15,6 +15,7 @@ import type { Db } from "@/db/client";
 import { jobRuns, outboxMessages, reductions } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { getProducerRedis } from "@/lib/queue/connection";
+import { parseStepTimes } from "@/lib/queue/stepped-flow";
 import { QUEUES } from "@/lib/queue/jobs";
 import { startReduction } from "@/lib/reductions/reductions";
 import { bucketName, buildDerivedPrefix, deleteObjectsUnder, readSmallObject } from "@/lib/storage";
@@ -49,6 +50,39 @@ export interface FlowRunMeasured {
   peakTotalBytes: number;
   cpuS: number;
   framesLeftOut: number;
+  /** Each step of the flow in order, from the workers' step-time lines. */
+  steps: FlowStepTime[];
+}
+
+/** One step of the flow as the workers ran it. */
+export interface FlowStepTime {
+  step: string;
+  /** The parent's own work ("run"), or how many parts. */
+  parts: number;
+  /** From the first start to the last end of the step's work, ms. */
+  spanMs: number;
+  /** The work's durations added up, ms (above spanMs when parts ran side by side). */
+  busyMs: number;
+  /** Busy ms of each worker process, in the order of perWorker. */
+  busyByWorkerMs: number[];
+}
+
+/** The step table of one reduction from its workers' logs (lines written by lib/queue/stepped-flow.ts). */
+export function summarizeStepTimes(logs: string[], pids: number[], parentIdPart: string): FlowStepTime[] {
+  const times = logs.flatMap((log) => parseStepTimes(log)).filter((t) => t.parentId.includes(parentIdPart));
+  const order: string[] = [];
+  for (const t of [...times].sort((a, b) => a.startMs - b.startMs)) if (!order.includes(t.step)) order.push(t.step);
+  return order.map((step) => {
+    const of = times.filter((t) => t.step === step);
+    const parts = of.filter((t) => t.what !== "run").length;
+    return {
+      step,
+      parts,
+      spanMs: Math.max(...of.map((t) => t.endMs)) - Math.min(...of.map((t) => t.startMs)),
+      busyMs: of.reduce((s, t) => s + t.endMs - t.startMs, 0),
+      busyByWorkerMs: pids.map((pid) => of.filter((t) => t.pid === pid).reduce((s, t) => s + t.endMs - t.startMs, 0)),
+    };
+  });
 }
 
 export interface FlowRunFailed {
@@ -139,7 +173,8 @@ export async function measureFlowReduction(db: Db, actor: Actor, setId: string, 
             });
             const below = summary.processes.filter((p) => !pids.includes(p.pid));
             const cpuS = perWorker.reduce((s, w) => s + w.cpuS, 0) + below.reduce((s, p) => s + p.cpuS, 0);
-            return { measured: true, workers, wallMs, perWorker, below, peakTotalBytes: summary.peakTotalRssBytes, cpuS, framesLeftOut: await countFramesLeftOut(row.outputs) } satisfies FlowRunMeasured;
+            const steps = summarizeStepTimes(await Promise.all(procs.map((p) => p.readLog())), pids, reduction.id);
+            return { measured: true, workers, wallMs, perWorker, below, peakTotalBytes: summary.peakTotalRssBytes, cpuS, framesLeftOut: await countFramesLeftOut(row.outputs), steps } satisfies FlowRunMeasured;
           }
           if (row.state === "failed") throw new Error(`the reduction failed: ${row.error ?? "no reason recorded"}`);
           const dead = procs.findIndex((p) => !p.isRunning());

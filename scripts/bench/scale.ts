@@ -177,6 +177,11 @@ function describeFlowRun(run: FlowRun, single: MeasuredReduction | null): string
   if (!run.measured) return [`${label}: not measured: ${run.reason}`];
   const lines = [`${label}: ${(run.wallMs / 1000).toFixed(1)} s from start to done, CPU ${run.cpuS.toFixed(1)} s = ${(run.cpuS / (run.wallMs / 1000)).toFixed(2)} cores busy, all processes together at most ${mb(run.peakTotalBytes)} MB at one time, frames left out ${run.framesLeftOut}${single ? `; over the single process ${(run.wallMs / single.wallMs).toFixed(2)}` : ""}`];
   run.perWorker.forEach((w, i) => lines.push(`  worker process ${i + 1} (pid ${w.pid}): peak ${mb(w.peakRssBytes)} MB (${mb(w.idleRssBytes)} MB idle before the start), CPU ${w.cpuS.toFixed(1)} s`));
+  // Which steps ran one after the other: a step whose span is near its busy time had nothing to share.
+  for (const s of run.steps) {
+    const who = s.busyByWorkerMs.map((ms) => (ms / 1000).toFixed(1)).join(" + ");
+    lines.push(`    step ${s.step.padEnd(12)} ${s.parts > 0 ? `${s.parts} parts`.padEnd(9) : "parent   "} span ${(s.spanMs / 1000).toFixed(1).padStart(6)} s, busy ${(s.busyMs / 1000).toFixed(1).padStart(6)} s (${who})`);
+  }
   for (const p of run.below) lines.push(`  process ${p.comm} (pid ${p.pid}) below a worker: peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`);
   return lines;
 }

@@ -12,7 +12,7 @@ import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { jobRuns } from "@/db/schema";
 import { createRedis } from "@/lib/queue/connection";
-import { partIdPrefix, type FlowValue } from "@/lib/queue/stepped-flow";
+import { parseStepTimes, partIdPrefix, type FlowValue } from "@/lib/queue/stepped-flow";
 import { requireTestDatabase } from "../support/env";
 import { startOwnScript, type OwnProcess } from "../support/processes";
 import { TOY_QUEUE, toyKeys, type ToyConfig } from "../support/toy-flow";
@@ -154,6 +154,13 @@ describe("a stepped flow", () => {
     expectRanOnce(runs, [...squareParts, ...cubeParts, "step squares", "step combine", "step cubes"]);
     const partPids = new Set(squareParts.flatMap((w) => runs.get(w)!));
     expect(partPids).toEqual(new Set([a.pid, b.pid]));
+    // Each part's time is in the log of the process that ran it, once, and the parent's own steps too.
+    const times = parseStepTimes((await a.readLog()) + (await b.readLog())).filter((t) => t.parentId === jobId);
+    const squareTimes = times.filter((t) => t.step === "squares" && t.what !== "run");
+    expect(squareTimes.map((t) => t.what).sort()).toEqual(Array.from({ length: SLICES }, (_, i) => `part ${i + 1}/${SLICES}`).sort());
+    expect(new Set(squareTimes.map((t) => t.pid))).toEqual(new Set([a.pid, b.pid]));
+    expect(squareTimes.every((t) => t.endMs >= t.startMs + 100)).toBe(true);
+    expect(times.filter((t) => t.what === "run").map((t) => t.step)).toContain("combine");
 
     // Progress: every count of a step is within 0..total, each part reported, and the step ended at total of total.
     const reports = (await redis.lrange(toyKeys(runId).progress, 0, -1)).map((l) => l.split(" "));
