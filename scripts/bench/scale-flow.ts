@@ -6,8 +6,10 @@
 // takes); timed from that call until the row says done. Afterwards the workers are
 // stopped (SIGTERM, they finish what runs), and the reduction is removed with its
 // outputs, so the bench leaves only its sets behind.
+import { execFileSync } from "node:child_process";
 import { readFileSync } from "node:fs";
 import { rm } from "node:fs/promises";
+import { availableParallelism } from "node:os";
 import { dirname } from "node:path";
 import { Queue } from "bullmq";
 import { eq, sql } from "drizzle-orm";
@@ -67,6 +69,16 @@ export interface FlowStepTime {
   busyByWorkerMs: number[];
 }
 
+/** The workers' logs once one of them has the step's line for this reduction (at most 15 s later; else as they are). */
+async function waitForStepLine(readLogs: () => Promise<string[]>, parentIdPart: string, step: string): Promise<string[]> {
+  const until = performance.now() + 15_000;
+  for (;;) {
+    const logs = await readLogs();
+    if (logs.some((log) => parseStepTimes(log).some((t) => t.parentId.includes(parentIdPart) && t.step === step)) || performance.now() > until) return logs;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
 /** The step table of one reduction from its workers' logs (lines written by lib/queue/stepped-flow.ts). */
 export function summarizeStepTimes(logs: string[], pids: number[], parentIdPart: string): FlowStepTime[] {
   const times = logs.flatMap((log) => parseStepTimes(log)).filter((t) => t.parentId.includes(parentIdPart));
@@ -103,10 +115,15 @@ export async function clearBenchQueues(): Promise<void> {
 }
 
 /** Starts `count` worker processes on the bench's prefix, runs `work`, and stops them however it ends. */
-export async function withBenchWorkers<T>(count: number, work: (workers: OwnProcess[]) => Promise<T>): Promise<T> {
+export async function withBenchWorkers<T>(count: number, work: (workers: OwnProcess[]) => Promise<T>, oneCoreEach = false): Promise<T> {
   const workers: OwnProcess[] = [];
   try {
-    for (let i = 0; i < count; i++) workers.push(await startOwnWorker(`bench-worker-${i + 1}`, { QUEUE_PREFIX: BENCH_QUEUE_PREFIX }));
+    for (let i = 0; i < count; i++) {
+      const w = await startOwnWorker(`bench-worker-${i + 1}`, { QUEUE_PREFIX: BENCH_QUEUE_PREFIX });
+      workers.push(w);
+      // Every thread of the process (threads started later inherit it) on core i alone: a machine of one core.
+      if (oneCoreEach) execFileSync("/usr/bin/taskset", ["-a", "-p", "-c", String(i % availableParallelism()), String(w.pid)], { stdio: "ignore" });
+    }
     return await work(workers);
   } finally {
     await Promise.all(workers.map((w) => w.kill("SIGTERM")));
@@ -148,7 +165,7 @@ async function countFramesLeftOut(outputs: Record<string, string> | null): Promi
  * The bench set reduced by `workers` worker processes through the flow. A run that
  * fails (the reduction, a worker, the time limit) comes back unmeasured with why.
  */
-export async function measureFlowReduction(db: Db, actor: Actor, setId: string, frames: number, workers: number, log: (line: string) => void): Promise<FlowRun> {
+export async function measureFlowReduction(db: Db, actor: Actor, setId: string, frames: number, workers: number, log: (line: string) => void, oneCoreEach = false): Promise<FlowRun> {
   const timeoutMs = 10 * 60_000 + frames * 30_000;
   await clearBenchQueues();
   let reductionId: string | undefined;
@@ -173,7 +190,10 @@ export async function measureFlowReduction(db: Db, actor: Actor, setId: string, 
             });
             const below = summary.processes.filter((p) => !pids.includes(p.pid));
             const cpuS = perWorker.reduce((s, w) => s + w.cpuS, 0) + below.reduce((s, p) => s + p.cpuS, 0);
-            const steps = summarizeStepTimes(await Promise.all(procs.map((p) => p.readLog())), pids, reduction.id);
+            // The row says done while the last step's line is being written: wait for it a little.
+            const readLogs = () => Promise.all(procs.map((p) => p.readLog()));
+            const logs = await waitForStepLine(readLogs, reduction.id, "finish");
+            const steps = summarizeStepTimes(logs, pids, reduction.id);
             return { measured: true, workers, wallMs, perWorker, below, peakTotalBytes: summary.peakTotalRssBytes, cpuS, framesLeftOut: await countFramesLeftOut(row.outputs), steps } satisfies FlowRunMeasured;
           }
           if (row.state === "failed") throw new Error(`the reduction failed: ${row.error ?? "no reason recorded"}`);
@@ -189,7 +209,7 @@ export async function measureFlowReduction(db: Db, actor: Actor, setId: string, 
         watcher.stop();
         return { measured: false, workers, reason: error instanceof Error ? error.message : String(error) } satisfies FlowRunFailed;
       }
-    });
+    }, oneCoreEach);
   } catch (error) {
     // The workers did not start, or stopping them failed.
     return { measured: false, workers, reason: error instanceof Error ? error.message : String(error) };

@@ -140,7 +140,7 @@ async function prepareAppSide(brackets: readonly ScaleBracket[]): Promise<AppSid
  * worker processes of our own on the development services: from startReduction to
  * done, each process watched through /proc. A run that cannot be made says why.
  */
-async function measureReduction(bracket: ScaleBracket, workers: number, app: AppSide): Promise<FlowRun> {
+async function measureReduction(bracket: ScaleBracket, workers: number, app: AppSide, oneCoreEach: boolean): Promise<FlowRun> {
   if ("reason" in app) return { measured: false, workers, reason: app.reason };
   const setId = app.setIds.get(bracket.frames);
   if (!setId) return { measured: false, workers, reason: `no bench set of ${bracket.frames} frames` };
@@ -151,7 +151,7 @@ async function measureReduction(bracket: ScaleBracket, workers: number, app: App
     if (performance.now() - lastAt < 5000) return;
     lastAt = performance.now();
     process.stderr.write(`${line}\n`);
-  });
+  }, oneCoreEach);
 }
 
 function mb(bytes: number): string {
@@ -172,8 +172,8 @@ function describeProcesses(processes: WatchedProcess[]): string[] {
 }
 
 /** One flow run on a line, and each worker process on a line of its own. */
-function describeFlowRun(run: FlowRun, single: MeasuredReduction | null): string[] {
-  const label = `through the app's flow, ${run.workers} worker process${run.workers > 1 ? "es" : ""}`;
+function describeFlowRun(run: FlowRun, single: MeasuredReduction | null, oneCoreEach: boolean): string[] {
+  const label = `through the app's flow, ${run.workers} worker process${run.workers > 1 ? "es" : ""}${oneCoreEach ? " (one core each)" : ""}`;
   if (!run.measured) return [`${label}: not measured: ${run.reason}`];
   const lines = [`${label}: ${(run.wallMs / 1000).toFixed(1)} s from start to done, CPU ${run.cpuS.toFixed(1)} s = ${(run.cpuS / (run.wallMs / 1000)).toFixed(2)} cores busy, all processes together at most ${mb(run.peakTotalBytes)} MB at one time, frames left out ${run.framesLeftOut}${single ? `; over the single process ${(run.wallMs / single.wallMs).toFixed(2)}` : ""}`];
   run.perWorker.forEach((w, i) => lines.push(`  worker process ${i + 1} (pid ${w.pid}): peak ${mb(w.peakRssBytes)} MB (${mb(w.idleRssBytes)} MB idle before the start), CPU ${w.cpuS.toFixed(1)} s`));
@@ -257,6 +257,10 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     prepared.madeS += long.madeS;
   }
   const workerCounts = readWorkerCounts(argv);
+  // Each worker process held to a core of its own (taskset), as if each were a machine of one core:
+  // on this machine of two cores, one unbounded worker already uses both (its threads), and a second
+  // would find no core free; this shows what the flow shares when each worker brings its own.
+  const oneCoreEach = argv.includes("--one-core-each");
   const app = await prepareAppSide(brackets);
   if ("reason" in app) process.stderr.write(`${app.reason}\n`);
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-bench-scale-"));
@@ -266,7 +270,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     for (const bracket of brackets) {
       const single = flowOnly ? null : await measureInOneProcess(bracket, spill, scratch);
       const flows: FlowRun[] = [];
-      for (const workers of workerCounts) flows.push(await measureReduction(bracket, workers, app));
+      for (const workers of workerCounts) flows.push(await measureReduction(bracket, workers, app, oneCoreEach));
       let floor = null;
       if (single) {
         process.stderr.write(`floor for ${bracket.frames} frames\n`);
@@ -295,7 +299,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     `${spill === "always" ? "frames kept on local disk between stages" : spill === "never" ? "frames kept in memory" : "frames kept on disk or in memory as the reduction decides by the files' size"} (spill: ${spill}).\n`);
   for (const f of figures) {
     for (const line of describeSingle(f)) console.log(line);
-    for (const run of f.flows) for (const line of describeFlowRun(run, f.single)) console.log(`  ${line}`);
+    for (const run of f.flows) for (const line of describeFlowRun(run, f.single, oneCoreEach)) console.log(`  ${line}`);
     const ratio = twoOverOne(f.flows);
     console.log(`  two worker processes / one = ${ratio === null ? "not measured" : ratio.toFixed(2)}  (aim: at most ${AIM_TWO_OVER_ONE})`);
   }
@@ -316,6 +320,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     height: SCALE_HEIGHT,
     ladderSteps: SCALE_LADDER_STEPS,
     spill,
+    oneCoreEach,
     brackets: figures.map((f) => ({
       frames: f.frames,
       ...singleJson(f),
@@ -323,6 +328,7 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
         ? {
             workers: r.workers, wallMs: Math.round(r.wallMs), cpuS: Number(r.cpuS.toFixed(2)), peakTotalBytes: r.peakTotalBytes, framesLeftOut: r.framesLeftOut,
             perWorker: r.perWorker.map((w) => ({ peakRssBytes: w.peakRssBytes, idleRssBytes: w.idleRssBytes, cpuS: Number(w.cpuS.toFixed(2)) })),
+            steps: r.steps,
           }
         : { workers: r.workers, wallMs: null, reason: r.reason })),
       twoWorkersOverOne: twoOverOne(f.flows) === null ? null : Number(twoOverOne(f.flows)!.toFixed(3)),
