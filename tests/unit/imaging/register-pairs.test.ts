@@ -130,3 +130,51 @@ describe("registration as pairs composed from the reference", () => {
     for (const r of result.frames) if (r.method === "corona") expect(["corona", "limb", "reference"]).toContain(result.frames[r.neighbour].method);
   });
 });
+
+describe("the chain (the default form), its pairs in batches tree level by tree level", () => {
+  const { frames, expected, centre } = makeBracket();
+  // Every batch as (frame, neighbour, where the neighbour was held, window width) by name.
+  const batches: { frame: string; neighbour: string; held: AffineSimilarity; width: number }[][] = [];
+  const steps = registerFramesInSteps(frames, { mode: "corona" });
+  let next = steps.next();
+  while (!next.done) {
+    const batch = next.value;
+    const tasks: RegistrationPairTask[] = Array.from({ length: batch.count }, (_, k) => batch.task(k));
+    batches.push(tasks.map((t) => ({ frame: t.frame.name, neighbour: t.neighbour.name, held: t.neighbourStart, width: t.region.width })));
+    next = steps.next(tasks.map(refineRegistrationPair));
+  }
+  const result: Registration = next.value;
+  const ref = result.referenceIndex;
+  const indexOf = (name: string) => frames.findIndex((f) => f.name === name);
+
+  it("holds each neighbour at its refined map, as one pair at a time would, and never at a frame left unplaced", () => {
+    expect(result.frames[FOGGED].method).toBe("failed");
+    expect(result.frames[CAPPED].method).toBe("failed");
+    const compared = batches.flat();
+    for (const pair of compared) {
+      const n = indexOf(pair.neighbour);
+      // The neighbour was done before this batch, and its map then is its final map.
+      expect(result.frames[n].method).not.toBe("failed");
+      expect(pair.held).toEqual(result.frames[n].masterToFrame);
+      const before = batches.findIndex((b) => b.some((p) => p.frame === pair.frame));
+      if (n !== ref) expect(batches.findIndex((b) => b.some((p) => p.frame === pair.neighbour))).toBeLessThan(before);
+    }
+    // Each frame but the reference compared once on the usual window (again on the wide one only when that failed).
+    const usualWidth = Math.min(...compared.map((p) => p.width));
+    const once = compared.filter((p) => p.width === usualWidth).map((p) => p.frame).sort();
+    expect(once).toEqual(frames.map((f) => f.name).filter((_, i) => i !== ref).sort());
+    for (const [i, r] of result.frames.entries()) if (r.method === "corona") expect(compared.some((p) => p.frame === frames[i].name && p.neighbour === frames[r.neighbour].name)).toBe(true);
+  });
+
+  it("compares the frames of one tree level side by side: fewer batches than frames, and within the accuracy of the chain", () => {
+    expect(batches.length).toBeLessThan(frames.length / 2);
+    expect(Math.max(...batches.map((b) => b.length))).toBeGreaterThan(2);
+    const errors = result.frames.flatMap((r, i) => (r.method === "corona" ? [measureRmsPx(r.masterToFrame, expected(ref, i), centre(ref))] : []));
+    // Batching changes nothing the chain finds: on this bracket it measured 0.1033 px RMS one pair at
+    // a time and 0.1033 in batches (the same maps, compared to the last bit on the scale bench's 27
+    // frames). It is above register.test.ts's 0.1 because of the unplaceable frames (the pairs' two
+    // rounds: 0.066). 0.12 is the chain's own error on this bracket with a little room; that the
+    // batches hold each neighbour where one pair at a time would is the test above.
+    expect(Math.sqrt(errors.reduce((s, e) => s + e * e, 0) / errors.length)).toBeLessThan(0.12);
+  });
+});
