@@ -777,8 +777,16 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
   const outward = [...order.slice(0, refPos).reverse(), ...order.slice(refPos + 1)];
   const sources = createSourceCache();
   const validAtStart = frames.map((f, i) => buildLogImage(f, sources(f, region.step), start[i], region).valid);
+  // Overlaps are asked for again and again (each frame against every frame before it): counted once.
+  const overlaps = new Map<number, number>();
+  const overlap = (valid: Uint8Array[], i: number, j: number) => {
+    const key = i * frames.length + j;
+    let count = overlaps.get(key);
+    if (count === undefined) overlaps.set(key, (count = countOverlap(valid, i, j)));
+    return count;
+  };
   const chosen = new Map<number, number>();
-  outward.forEach((i, k) => chosen.set(i, chooseNeighbour(validAtStart, i, [referenceIndex, ...outward.slice(0, k)])));
+  outward.forEach((i, k) => chosen.set(i, chooseNeighbour(validAtStart, i, [referenceIndex, ...outward.slice(0, k)], overlap)));
   // Long exposures are saturated over the inner corona and well exposed only far out:
   // when the usual window holds too little of both frames, they are compared over the whole frame.
   let wide: RegionGrid | undefined;
@@ -827,13 +835,6 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
     const position = new Map(outward.map((i, k) => [i, k]));
     const done = new Set([referenceIndex]);
     const neighbourOf = new Map<number, number>();
-    const overlaps = new Map<number, number>();
-    const overlap = (valid: Uint8Array[], i: number, j: number) => {
-      const key = i * frames.length + j;
-      let count = overlaps.get(key);
-      if (count === undefined) overlaps.set(key, (count = countOverlap(valid, i, j)));
-      return count;
-    };
     while (done.size < frames.length) {
       const pairs: [number, number][] = [];
       for (const i of outward) {
@@ -880,7 +881,7 @@ export function* registerFramesInSteps(frames: RegistrationFrame[], options: Reg
       // the most with, as soon as it is known which frames before it are placed.
       const before = [referenceIndex, ...outward.slice(0, k)];
       if (before.some((j) => isPlaced(j) === undefined)) continue;
-      neighbourOf.set(i, chooseNeighbour(validAtStart, i, before.filter((j) => isPlaced(j))));
+      neighbourOf.set(i, chooseNeighbour(validAtStart, i, before.filter((j) => isPlaced(j)), overlap));
       again.push(i);
     }
     if (again.length === 0) break;
