@@ -3,12 +3,12 @@
 // reduction queued anew never reads an older run's pieces), deleted when the run
 // has stored its outputs. Keys are fixed by name, so a part that runs again
 // overwrites its own piece and nothing is counted twice.
-import { mkdir } from "node:fs/promises";
+import { mkdir, mkdtemp, readFile, rm } from "node:fs/promises";
+import { tmpdir } from "node:os";
 import path from "node:path";
-import { readFile } from "node:fs/promises";
-import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectBytes } from "@/lib/storage";
+import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectFileWhole } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
-import { decodeWork, encodeWork, readWorkFile, type ArrayReader } from "./work-blob";
+import { decodeWork, readWorkFile, writeWorkFile, type ArrayReader } from "./work-blob";
 
 export interface WorkPlace {
   reductionId: string;
@@ -20,9 +20,20 @@ function keyOf(place: WorkPlace, name: string): string {
   return `${buildReductionWorkPrefix(place.reductionId)}${place.runKey}/${name}.bin`;
 }
 
-/** Stores a piece under its name (overwriting a piece of that name). */
+/**
+ * Stores a piece under its name (overwriting a piece of that name). It goes through a
+ * file of its own, written array by array and streamed up, so that storing a value
+ * never holds a second copy of it in memory.
+ */
 export async function putWork(place: WorkPlace, name: string, value: unknown): Promise<void> {
-  await putObjectBytes({ bucket: bucketName("derived"), key: keyOf(place, name) }, encodeWork(value), "application/octet-stream");
+  const dir = await mkdtemp(path.join(tmpdir(), "crownlight-put-"));
+  try {
+    const file = path.join(dir, `${name}.bin`);
+    writeWorkFile(file, value);
+    await putObjectFileWhole({ bucket: bucketName("derived"), key: keyOf(place, name) }, file, "application/octet-stream");
+  } finally {
+    await rm(dir, { recursive: true, force: true });
+  }
 }
 
 /** Downloads a piece into `dir` and returns the file's path. */

@@ -70,6 +70,21 @@ export async function putObjectFile(ref: ObjectRef, path: string, contentType: s
   return size;
 }
 
+/** S3's limit on one PUT; larger files go up in parts (putObjectFile). */
+export const MAX_SINGLE_PUT_BYTES = 5 * 1024 ** 3;
+
+/**
+ * A file on disk streamed to S3 in one PUT (at most MAX_SINGLE_PUT_BYTES): no parts to
+ * assemble afterwards, which is what a store of large pieces on the same network wants.
+ * Returns its size.
+ */
+export async function putObjectFileWhole(ref: ObjectRef, path: string, contentType: string, s3: S3Client = getS3()): Promise<number> {
+  const { size } = await stat(path);
+  if (size > MAX_SINGLE_PUT_BYTES) return putObjectFile(ref, path, contentType, s3);
+  await s3.send(new PutObjectCommand({ Bucket: ref.bucket, Key: ref.key, Body: createReadStream(path), ContentType: contentType, ContentLength: size }));
+  return size;
+}
+
 /** Deletes one object; one already gone counts as deleted (S3 answers the same). */
 export async function deleteObject(ref: ObjectRef, s3: S3Client = getS3()): Promise<void> {
   await s3.send(new DeleteObjectCommand({ Bucket: ref.bucket, Key: ref.key }));

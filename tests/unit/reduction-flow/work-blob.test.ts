@@ -1,11 +1,11 @@
 // The file format a reduction's parts hand each other (lib/reduction-flow/work-blob.ts):
 // values come back as they went in, typed arrays bit for bit, non-finite numbers kept,
 // and a file on disk is read one array at a time, only when its field is read.
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
-import { createArrayCache, decodeWork, encodeWork, readWorkFile } from "@/lib/reduction-flow/work-blob";
+import { createArrayCache, decodeWork, encodeWork, readWorkFile, writeWorkFile } from "@/lib/reduction-flow/work-blob";
 import { sliceKept, MAX_MERGE_SLICES, MIN_FRAMES_PER_SLICE } from "@/lib/reduction-flow/reduction-flow";
 
 const dir = mkdtempSync(join(tmpdir(), "crownlight-work-blob-"));
@@ -86,6 +86,20 @@ describe("a reduction's work file", () => {
       expect(Object.is(again[1234], odd)).toBe(true);
       expect(encodeWork({ planes: [values] }).length).toBeGreaterThan(plain.length * 0.95);
     }
+  });
+
+  it("writes a file array by array with encodeWork's bytes, packed planes and odd lengths included", () => {
+    const counts = Float32Array.from({ length: 10_001 }, (_, i) => (i * 7919) % 65536);
+    // Odd byte lengths (a Uint8Array of 7, a packed plane of 10 001 values) end in alignment padding.
+    const value = { ...sample(), counts, tail: Uint8Array.from([1, 2, 3, 4, 5, 6, 7]) };
+    const path = join(dir, "written.bin");
+    const length = writeWorkFile(path, value);
+    const written = readFileSync(path);
+    expect(written.length).toBe(length);
+    expect(written.equals(encodeWork(value))).toBe(true);
+    const back = readWorkFile<typeof value>(path);
+    expect(back.counts).toEqual(counts);
+    expect(back.tail).toEqual(value.tail);
   });
 
   it("refuses a file that is not one, naming it", () => {
