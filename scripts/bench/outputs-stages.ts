@@ -15,6 +15,7 @@
 // Run: node --expose-gc --import tsx scripts/bench/outputs-stages.ts [--first 3] [--frames 3]
 //        [--stages renditions,files,tiles,whole,store] [--out FILE.json] [--keep DIR]
 // (`--cpu-prof` before --import for a profile; --keep DIR leaves the written folder there to compare.)
+import { createHash } from "node:crypto";
 import { cpSync, existsSync, mkdirSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { readdir, stat } from "node:fs/promises";
 import { loadavg, tmpdir } from "node:os";
@@ -139,6 +140,13 @@ function createStageClock(sampler: MemorySampler) {
   };
 }
 
+/** SHA-256 of planes' bytes in order: two versions of the renditions' code compare by it. */
+function hashPlanes(planes: ArrayBufferView[]): string {
+  const hash = createHash("sha256");
+  for (const p of planes) hash.update(new Uint8Array(p.buffer, p.byteOffset, p.byteLength));
+  return hash.digest("hex");
+}
+
 async function folderBytes(dir: string): Promise<{ files: number; bytes: number }> {
   let files = 0, bytes = 0;
   for (const e of await readdir(dir, { withFileTypes: true, recursive: true })) {
@@ -169,6 +177,13 @@ async function main(): Promise<void> {
     const natural = result.natural;
     const structure = result.structure;
     extra.natural = result.overall.natural;
+    // What the renditions and the finish report, timings aside: equal hashes mean the same output bit for bit.
+    const { timingsMs: _timings, ...figures } = result.overall;
+    extra.hashes = {
+      structure: hashPlanes(structure.planes),
+      natural: hashPlanes(natural.planes),
+      figures: createHash("sha256").update(JSON.stringify({ figures, frames: result.frames, coverage: hashPlanes([result.coverage]), master: hashPlanes(result.master.planes) })).digest("hex"),
+    };
     const dir = join(scratch, "files");
     mkdirSync(dir, { recursive: true });
     const halve = createHalvingCache();
@@ -245,6 +260,7 @@ async function main(): Promise<void> {
   for (const r of clock.rows) {
     console.log(`${r.stage.padEnd(40)} ${(r.wallMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(5)} ${r.peakMb.toFixed(0).padStart(6)} MB`);
   }
+  console.log(`hashes: ${JSON.stringify(extra.hashes)}; natural ${JSON.stringify(extra.natural)}`);
   if (extra.separateFolder) console.log(`files written one by one: ${JSON.stringify(extra.separateFolder)}`);
   if (extra.whole) console.log(`writeReductionOutputs: ${JSON.stringify(extra.whole)}`);
   if (args.out) writeFileSync(args.out, `${JSON.stringify({ rows: clock.rows, ...extra }, null, 2)}\n`);
