@@ -9,6 +9,7 @@ import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTal
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { applyAffine, fromAffine } from "./similarity";
 import { computeLuminancePlane } from "./srgb";
 import { createStructureMask } from "./structure-noise";
@@ -267,19 +268,22 @@ function blankEdgeBand(image: PlaneImage, bandPx: number): void {
 }
 
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
-export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner?: PlaneRunner): ReductionResult {
   const started = performance.now();
   // finishMerge consumes the accumulator: its buffers are free from here on.
   const merged = finishMerge(acc);
-  return finishMergedBracket(plan, merged, onProgress, mergeMs + (performance.now() - started));
+  return finishMergedBracket(plan, merged, onProgress, mergeMs + (performance.now() - started), runner);
 }
 
 /**
  * finishBracket from the merge's result (finishMerge's): the renditions and the
  * report. Reports progress "renditions" at 0, at 0.5 when the structure
- * rendition is done and the natural one starts, and at 1.
+ * rendition is done and the natural one starts, and at 1. A runner spreads the
+ * renditions' per-pixel steps and blurs over its threads: the same renditions
+ * and figures bit for bit, with the working planes and the renditions in its
+ * shared memory (no plane more than without it).
  */
-export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner: PlaneRunner = SERIAL_PLANE_RUNNER): ReductionResult {
   const clock = performance.now();
   const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
   const { width, height, params, referenceMoon, ref, keep } = plan;
@@ -302,7 +306,7 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const refOffset = offsets?.[plan.names[keep[ref]]];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
-  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes);
+  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height));
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
@@ -317,18 +321,20 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
   const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
   // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const structure = renderStructure(
-    params.filter === "mgn"
-      ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
-      : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength),
-    width, height,
-  );
+  const filtered = params.filter === "mgn"
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
+  const structure = renderStructure(filtered, width, height);
+  runner.release(filtered.data, filtered.valid);
+  // The filter's planes are done with: the natural rendition's are fewer (see PlaneRunner.trim).
+  runner.trim();
 
   progress("renditions", 0.5);
   const outsideMoon = createValidMask(width, height, referenceMoon);
   // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
   const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
-  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing });
+  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing, runner });
+  runner.release(luminance);
   luminance = undefined;
   // The same band is black in the natural rendition too: there only some frames reach, and a
   // column lit by the short exposures alone showed as a dotted line along the edge.
