@@ -267,6 +267,19 @@ function blankEdgeBand(image: PlaneImage, bandPx: number): void {
   }
 }
 
+/** The structure rendition of the luminance; every plane of the filter's is let go (released to the runner) before it returns. */
+function renderStructureRendition(plan: BracketPlan, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, filterCentre: { x: number; y: number }, runner: PlaneRunner): PlaneImage {
+  const { width, height, params } = plan;
+  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
+  // The strength weighs local structure against the overall image: MGN's h is its complement.
+  const filtered = params.filter === "mgn"
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
+  const structure = renderStructure(filtered, width, height);
+  runner.release(filtered.data, filtered.valid);
+  return structure;
+}
+
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
 export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner?: PlaneRunner): ReductionResult {
   const started = performance.now();
@@ -288,7 +301,6 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
   const { width, height, params, referenceMoon, ref, keep } = plan;
   const isEncoded = plan.isEncoded;
-  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
   const offsets = params.moonMinusSunPx;
   const timingsMs: Record<string, number> = { ...plan.timingsMs };
   const master: PlaneImage = { width, height, planes: merged.radiance };
@@ -320,12 +332,7 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   }
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
   const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
-  // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
-    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
-  const structure = renderStructure(filtered, width, height);
-  runner.release(filtered.data, filtered.valid);
+  const structure = renderStructureRendition(plan, luminance, structureMask, filterDisk, filterCentre, runner);
   // The filter's planes are done with: the natural rendition's are fewer (see PlaneRunner.trim).
   runner.trim();
 

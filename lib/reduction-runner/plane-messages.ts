@@ -27,3 +27,8 @@ export interface PlaneJob {
 export interface PlaneWorkerReady {
   ready: true;
 }
+
+/** Asks a worker for a full garbage collection (its references to planes the caller let go); it stores 1 into `collect` when done. */
+export interface PlaneCollect {
+  collect: Int32Array;
+}

@@ -7,15 +7,18 @@
 // same bit for bit whoever does which piece; a worker that cannot start takes
 // none, and a piece a worker could not do is done again by the calling thread:
 // the pool only ever makes a reduction faster, never different.
-import { setFlagsFromString } from "node:v8";
-import { runInNewContext } from "node:vm";
 import type { Worker } from "node:worker_threads";
 import type { PlaneKernel, PlaneRunner } from "@/lib/imaging/plane-runner";
-import { CONTROL, PIECE_DONE, PIECE_FAILED, type PlaneJob } from "./plane-messages";
+import { collectGarbage } from "./collect-garbage";
+import { CONTROL, PIECE_DONE, PIECE_FAILED, type PlaneCollect, type PlaneJob } from "./plane-messages";
 import { startTypeScriptWorker } from "./prepare-pool";
 
 /** Worker threads beside the calling thread: the machines have two cores, and the caller works too. */
 export const PLANE_WORKERS = 1;
+
+/** How long trim waits for a worker's collection, and in all, ms. */
+const COLLECT_WAIT_MS = 5000;
+const TRIM_WAIT_MS = 2000;
 
 export interface PlanePoolOptions {
   /** Worker threads; default PLANE_WORKERS. 0 gives a pool whose calling thread does everything. */
@@ -37,6 +40,8 @@ export interface PlanePoolCounts {
   alone: number;
   /** Pieces a worker could not do, done again by the calling thread. */
   redone: number;
+  /** Time spent giving memory back between phases (trim), ms. */
+  trimMs: number;
 }
 
 export interface PlanePool extends PlaneRunner {
@@ -83,24 +88,11 @@ function isAllShared(args: unknown): boolean {
   return true;
 }
 
-/**
- * A full garbage collection, which alone gives shared memory back (V8 does not
- * count it towards the pressure that prompts one): globalThis.gc when the process
- * was started with --expose-gc, else the same function from a context made once
- * the flag is set.
- */
-function collectGarbage(): void {
-  const exposed = (globalThis as { gc?: () => void }).gc;
-  if (exposed) return exposed();
-  setFlagsFromString("--expose-gc");
-  (runInNewContext("gc") as () => void)();
-}
-
 export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
   const lanes = Array.from({ length: options.workers ?? PLANE_WORKERS }, startLane);
   const piecesPerThread = Math.max(1, Math.floor(options.piecesPerThread ?? 6));
   const callerWorks = options.callerWorks ?? true;
-  const counts: PlanePoolCounts = { byCaller: 0, byWorkers: 0, alone: 0, redone: 0 };
+  const counts: PlanePoolCounts = { byCaller: 0, byWorkers: 0, alone: 0, redone: 0, trimMs: 0 };
   // Shared memory this pool handed out, and what was given back, by byte length, to hand out again.
   const own = new WeakSet<SharedArrayBuffer>();
   const spare = new Map<number, SharedArrayBuffer[]>();
@@ -116,9 +108,16 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
     new Uint8Array(reused).fill(0);
     return reused;
   };
+  // Each worker drops its own references to the planes (its last jobs' arguments) first, then this thread.
   const giveBack = () => {
     spare.clear();
     spareSet.clear();
+    for (const lane of lanes.filter((l) => !l.isDead)) {
+      const done = new Int32Array(new SharedArrayBuffer(4));
+      lane.worker.postMessage({ collect: done } satisfies PlaneCollect);
+      // A worker still starting (or gone) does not hold the renditions up.
+      Atomics.wait(done, 0, 0, COLLECT_WAIT_MS);
+    }
     collectGarbage();
   };
 
@@ -188,12 +187,24 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
     },
     counts: () => ({ ...counts }),
     trim() {
-      if (spareSet.size > 0) giveBack();
+      let bytes = 0;
+      for (const buffer of spareSet) bytes += buffer.byteLength;
+      if (bytes === 0) return;
+      const started = performance.now();
+      const before = process.memoryUsage.rss();
+      giveBack();
+      // The collection leaves the freeing to a background thread: wait until most of the memory
+      // has gone (at most TRIM_WAIT_MS), so that the next phase's planes are not made beside it.
+      const sleep = new Int32Array(new SharedArrayBuffer(4));
+      while (process.memoryUsage.rss() > before - bytes / 2 && performance.now() - started < TRIM_WAIT_MS) Atomics.wait(sleep, 0, 0, 5);
+      counts.trimMs += performance.now() - started;
     },
     async close() {
       await Promise.all(lanes.filter((l) => l.worker).map((l) => l.worker.terminate()));
       // What the renditions let go (kept for reuse or not) is given back before the outputs are written.
-      giveBack();
+      spare.clear();
+      spareSet.clear();
+      collectGarbage();
     },
   };
 }

@@ -3,7 +3,8 @@
 // that fails is marked so, and the calling thread does it again itself.
 import { parentPort } from "node:worker_threads";
 import { PLANE_KERNELS } from "@/lib/imaging/plane-kernels";
-import { CONTROL, PIECE_DONE, PIECE_FAILED, type PlaneJob, type PlaneWorkerReady } from "./plane-messages";
+import { collectGarbage } from "./collect-garbage";
+import { CONTROL, PIECE_DONE, PIECE_FAILED, type PlaneCollect, type PlaneJob, type PlaneWorkerReady } from "./plane-messages";
 
 function takePieces(job: PlaneJob): void {
   const { control, bounds } = job;
@@ -28,5 +29,11 @@ function takePieces(job: PlaneJob): void {
   }
 }
 
-parentPort?.on("message", (job: PlaneJob) => takePieces(job));
+parentPort?.on("message", (message: PlaneJob | PlaneCollect) => {
+  if ("collect" in message) {
+    collectGarbage();
+    Atomics.store(message.collect, 0, 1);
+    Atomics.notify(message.collect, 0);
+  } else takePieces(message);
+});
 parentPort?.postMessage({ ready: true } satisfies PlaneWorkerReady);
