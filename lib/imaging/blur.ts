@@ -92,7 +92,7 @@ export function blurGaussian(
   if (out) {
     if (out !== plane) out.set(plane);
   } else {
-    out = runner.float32(plane.length);
+    out = runner.float32(plane.length, true);
     out.set(plane);
   }
   if (sigmaPx === 0) return out;
@@ -105,7 +105,7 @@ export function blurGaussian(
   const bb = 1 - (c1 + c2 + c3);
   runner.run(BLUR_ROWS, { out, width, bb, c1, c2, c3 }, height);
   // Float32 halves the memory of a 24 Mpx plane; the error stays near 1e-7.
-  const cols = scratch && scratch.length >= width * height ? scratch : runner.float32(width * height);
+  const cols = scratch && scratch.length >= width * height ? scratch : runner.float32(width * height, true);
   runner.run(BLUR_COLUMNS, { out, cols, width, height, bb, c1, c2, c3 }, width);
   if (cols !== scratch) runner.release(cols);
   return out;
@@ -191,7 +191,7 @@ export function blurGaussianFast(
   const smallSigma = Math.sqrt(sigmaPx * sigmaPx - (f * f - 1) / 12) / f;
   const small = inScratch ? blurGaussian(sum, sw, sh, smallSigma, scratch.subarray(m, 2 * m), scratch.subarray(2 * m, 3 * m), runner) : blurGaussian(sum, sw, sh, smallSigma, undefined, undefined, runner);
   if (!inScratch) runner.release(sum);
-  out ??= runner.float32(width * height);
+  out ??= runner.float32(width * height, true);
   runner.run(SPREAD_BILINEAR, { small, out, width, f, sw, sh }, height);
   if (!inScratch) runner.release(small);
   return out;

@@ -236,8 +236,12 @@ export function mergeKeptFrames(plan: BracketPlan, frames: LinearFrame[], ready:
 function findEmptyPixels(merged: MergeResult): Uint8Array | undefined {
   const n = merged.width * merged.height;
   let holes: Uint8Array | undefined;
+  const planes = merged.radiance;
   for (let i = 0; i < n; i++) {
-    if (merged.coverage[i] !== 0 || merged.radiance.some((p) => p[i] !== 0)) continue;
+    if (merged.coverage[i] !== 0) continue;
+    let lit = false;
+    for (let c = 0; c < planes.length && !lit; c++) lit = planes[c][i] !== 0;
+    if (lit) continue;
     holes ??= new Uint8Array(n);
     holes[i] = 1;
   }
@@ -318,7 +322,7 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const refOffset = offsets?.[plan.names[keep[ref]]];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
-  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height));
+  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height, true));
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels

@@ -31,12 +31,15 @@ export function definePlaneKernel<A>(name: string, run: (args: A, start: number,
  * (or lists of them), numbers, strings, booleans, undefined.
  */
 export interface PlaneRunner {
-  /** A zeroed Float32Array its kernels may use. */
-  float32(length: number): Float32Array;
-  /** A zeroed Float64Array its kernels may use. */
-  float64(length: number): Float64Array;
-  /** A zeroed Uint8Array its kernels may use. */
-  uint8(length: number): Uint8Array;
+  /**
+   * A Float32Array its kernels may use, zeroed; with `written`, the caller
+   * writes every element before it reads any, and a reused array is not zeroed.
+   */
+  float32(length: number, written?: boolean): Float32Array;
+  /** A Float64Array its kernels may use (as float32). */
+  float64(length: number, written?: boolean): Float64Array;
+  /** A Uint8Array its kernels may use (as float32). */
+  uint8(length: number, written?: boolean): Uint8Array;
   /** kernel.run over [0, units), in pieces on any of the runner's threads; returns when every piece is done. */
   run<A>(kernel: PlaneKernel<A>, args: A, units: number): void;
   /**

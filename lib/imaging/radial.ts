@@ -143,7 +143,7 @@ function blurMaskWeight(
   const y0 = Math.max(0, box.y0 - margin), y1 = Math.min(height - 1, box.y1 + margin);
   const sw = x1 - x0 + 1, sh = y1 - y0 + 1;
   if (sw < 2 || sh < 2) return;
-  const sub = runner.float32(sw * sh);
+  const sub = runner.float32(sw * sh, true);
   for (let y = 0; y < sh; y++) {
     const from = (y + y0) * width + x0;
     for (let x = 0; x < sw; x++) sub[y * sw + x] = valid[from + x] ? 1 : 0;
@@ -231,7 +231,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   widths.forEach((w, i) => requireNumberInRange(`widthsPx[${i}]`, w, 0.5, 1e4));
   if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
   const n = width * height;
-  const valid = createValidMask(width, height, options.lunarDisk, options.valid, runner.uint8(n));
+  const valid = createValidMask(width, height, options.lunarDisk, options.valid, runner.uint8(n, true));
   let a0 = Infinity, a1 = -Infinity;
   for (let i = 0; i < n; i++) {
     if (!valid[i]) continue;
@@ -252,7 +252,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
       const w = runner.float32(n);
       const inv = 1 / (range * range);
       for (let i = 0; i < n; i++) if (valid[i] && options.noiseVariance[i] >= 0) { scaled[i] = options.noiseVariance[i] * inv; w[i] = 1; }
-      const scratchN = runner.float32(n);
+      const scratchN = runner.float32(n, true);
       const num = blurGaussianFast(scaled, width, height, 2, scaled, scratchN, runner);
       const den = blurGaussianFast(w, width, height, 2, w, scratchN, runner);
       for (let i = 0; i < n; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
@@ -265,11 +265,11 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   let leeMean: Float32Array | undefined;
   let leeGain: Float32Array | undefined;
   const sumArctan = runner.float32(n);
-  const diff = runner.float32(n);
-  // Buffers reused for every width (see blurGaussian on why).
-  const norm = runner.float32(n);
-  const local = runner.float32(n);
-  const scratch = runner.float32(n);
+  const diff = runner.float32(n, true);
+  // Buffers reused for every width (see blurGaussian on why), each written whole before it is read.
+  const norm = runner.float32(n, true);
+  const local = runner.float32(n, true);
+  const scratch = runner.float32(n, true);
   // Bounding box of the masked pixels: the blurred mask differs from 1 only within a few widths of it.
   let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
   for (let y = 0; y < height; y++) {
@@ -286,7 +286,7 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     blurGaussianFast(masked, width, height, w, local, scratch, runner);
     // The Lee estimate for the gamma image comes from the widest scale up to LEE_WIDTH_PX (or the finest).
     const first = noise !== undefined && w === leeWidth;
-    if (first) leeMean = runner.float32(n);
+    if (first) leeMean = runner.float32(n, true);
     runner.run(MGN_DETAIL, { valid, norm, masked, local, diff, leeMean: first ? leeMean : undefined }, n);
     const localVar = blurGaussianFast(local, width, height, w, local, scratch, runner);
     const nu = Math.max(0, 1 - 3 / (4 * Math.PI * w * w));

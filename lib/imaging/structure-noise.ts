@@ -50,7 +50,7 @@ export function estimateNoiseVariance(plane: Float32Array, width: number, height
   runner.run(NOISE_SQUARES, { hh, hasHh, sq, weight, width }, height);
   // The blurs work in place and the result goes into hh's buffer: at 24 megapixels the
   // estimate then peaks near 400 MB instead of 700 (the same numbers).
-  const scratch = runner.float32(n);
+  const scratch = runner.float32(n, true);
   const sqBlur = blurGaussianFast(sq, width, height, windowPx, sq, scratch, runner);
   const wBlur = blurGaussianFast(weight, width, height, windowPx, weight, scratch, runner);
   // Where no block was usable nearby, the median of the estimates stands in.
@@ -121,11 +121,14 @@ export function createStructureMask(width: number, height: number, coverage: Uin
   const disk = options.lunarDisk;
   const r2 = disk ? disk.radiusPx * disk.radiusPx : -1;
   for (let y = 0; y < height; y++) {
+    // A row farther from the disk's centre than its radius has no pixel on it (a square is never negative).
+    const dy2 = disk ? (y - disk.y) ** 2 : 0;
+    const crossesDisk = disk !== undefined && dy2 <= r2;
     for (let x = 0; x < width; x++) {
       const i = y * width + x;
       if (!coverage[i]) continue;
       if (x < band || y < band || x >= width - band || y >= height - band) continue;
-      if (disk && (x - disk.x) ** 2 + (y - disk.y) ** 2 <= r2) continue;
+      if (crossesDisk && (x - disk.x) ** 2 + dy2 <= r2) continue;
       out[i] = 1;
     }
   }

@@ -153,7 +153,7 @@ function computeRadialGain(lum: Float32Array, width: number, height: number, rin
   const bins = Math.ceil(maxR / binPx) + 1;
   const n = width * height;
   // Each pixel's ring (-1 inside r0), in the gain's own buffer until the gain replaces it.
-  const gain = runner.float32(n);
+  const gain = runner.float32(n, true);
   runner.run(RADIAL_BINS, { bins: gain, width, cx, cy, innerPx, binPx }, height);
   const sum = new Float64Array(bins), count = new Float64Array(bins);
   for (let i = 0; i < n; i++) {
@@ -178,7 +178,7 @@ function computeRadialGain(lum: Float32Array, width: number, height: number, rin
   }
   const first = profile[Math.floor(innerPx / binPx)];
   if (!(first > 0)) return gain.fill(1);
-  const binGain = runner.float64(bins);
+  const binGain = runner.float64(bins, true);
   for (let b = 0; b < bins; b++) binGain[b] = profile[b] > 0 ? Math.pow(profile[b] / first, -alpha) : 1;
   runner.run(RADIAL_GAIN, { gain, binGain }, n);
   return gain;
@@ -217,7 +217,7 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
   const gain = alpha > 0 ? computeRadialGain(source, width, height, ring!, alpha, options.valid, runner) : undefined;
   let lum = source;
   if (gain) {
-    lum = runner.float32(n);
+    lum = runner.float32(n, true);
     runner.run(SCALE_BY_GAIN, { source, gain, lum }, n);
   }
   const [autoBlack, autoWhite, median] = computePercentiles(lum, [options.blackPercentile ?? 1, options.whitePercentile ?? 99.99, 50], options.valid);
@@ -250,7 +250,7 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
   if (!(beta > 0 && Number.isFinite(beta))) throw new ImagingError("bad-parameter", `beta must be positive, got ${beta}`);
   // The linear planes are copied into the rendition's and turned into display values there.
   const planes = image.planes.map((p) => {
-    const plane = runner.float32(n);
+    const plane = runner.float32(n, true);
     plane.set(p);
     return plane;
   });

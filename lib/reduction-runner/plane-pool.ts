@@ -97,7 +97,7 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
   const own = new WeakSet<SharedArrayBuffer>();
   const spare = new Map<number, SharedArrayBuffer[]>();
   const spareSet = new Set<SharedArrayBuffer>();
-  const sharedBuffer = (bytes: number): SharedArrayBuffer => {
+  const sharedBuffer = (bytes: number, written = false): SharedArrayBuffer => {
     const reused = spare.get(bytes)?.pop();
     if (!reused) {
       const buffer = new SharedArrayBuffer(bytes);
@@ -105,7 +105,12 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
       return buffer;
     }
     spareSet.delete(reused);
-    new Uint8Array(reused).fill(0);
+    // Eight bytes at a time: a fill of shared memory goes element by element.
+    if (!written) {
+      const words = Math.floor(bytes / 8);
+      new Float64Array(reused, 0, words).fill(0);
+      new Uint8Array(reused, 8 * words).fill(0);
+    }
     return reused;
   };
   // Each worker drops its own references to the planes (its last jobs' arguments) first, then this thread.
@@ -139,9 +144,9 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
   };
 
   return {
-    float32: (length) => new Float32Array(sharedBuffer(4 * length)),
-    float64: (length) => new Float64Array(sharedBuffer(8 * length)),
-    uint8: (length) => new Uint8Array(sharedBuffer(length)),
+    float32: (length, written) => new Float32Array(sharedBuffer(4 * length, written)),
+    float64: (length, written) => new Float64Array(sharedBuffer(8 * length, written)),
+    uint8: (length, written) => new Uint8Array(sharedBuffer(length, written)),
     release(...arrays) {
       for (const a of arrays) {
         const buffer = a?.buffer;
