@@ -6,7 +6,11 @@
 // stays synchronous. A kernel's units are independent, so the result is the
 // same bit for bit whoever does which piece; a worker that cannot start takes
 // none, and a piece a worker could not do is done again by the calling thread:
-// the pool only ever makes a reduction faster, never different.
+// the pool only ever makes a reduction faster, never different. (A worker whose
+// thread ended inside a piece would leave the caller waiting; a kernel's error is
+// caught in the worker, so only the end of the process ends one there.)
+// Shared memory comes back only with a full garbage collection (collect-garbage.ts),
+// so the pool hands out again what lib/imaging releases, and trim and close collect.
 import type { Worker } from "node:worker_threads";
 import type { PlaneKernel, PlaneRunner } from "@/lib/imaging/plane-runner";
 import { collectGarbage } from "./collect-garbage";
@@ -16,9 +20,12 @@ import { startTypeScriptWorker } from "./prepare-pool";
 /** Worker threads beside the calling thread: the machines have two cores, and the caller works too. */
 export const PLANE_WORKERS = 1;
 
-/** How long trim waits for a worker's collection, and in all, ms. */
-const COLLECT_WAIT_MS = 5000;
-const TRIM_WAIT_MS = 2000;
+/**
+ * How long trim waits for each worker's collection (a worker that failed to start
+ * is known as such only once this thread's events run), and in all, ms.
+ */
+const COLLECT_WAIT_MS = 1000;
+const TRIM_WAIT_MS = 1500;
 
 export interface PlanePoolOptions {
   /** Worker threads; default PLANE_WORKERS. 0 gives a pool whose calling thread does everything. */
