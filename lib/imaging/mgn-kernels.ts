@@ -80,3 +80,38 @@ export const MGN_COMBINE = definePlaneKernel<{
     data[i] = h * g + ((1 - h) / widths) * sumArctan[i];
   }
 });
+
+/**
+ * Per row of [start, end): the least and greatest plane value over valid pixels
+ * (Infinity and -Infinity when none), found as a scan in raster order finds them
+ * (strict comparisons, so of equal values the first stays), and the first and last
+ * column of an invalid pixel (-1 when none). Taken over the rows in order they give
+ * the whole plane's, as one scan would.
+ */
+export const MGN_ROW_EXTENTS = definePlaneKernel<{ plane: Float32Array; valid: Uint8Array; width: number; low: Float64Array; high: Float64Array; firstMasked: Float64Array; lastMasked: Float64Array }>("mgn-row-extents", (args, start, end) => {
+  const { plane, valid, width, low, high, firstMasked, lastMasked } = args;
+  for (let y = start; y < end; y++) {
+    let a0 = Infinity, a1 = -Infinity, x0 = -1, x1 = -1;
+    const o = y * width;
+    for (let x = 0; x < width; x++) {
+      if (!valid[o + x]) {
+        if (x0 < 0) x0 = x;
+        x1 = x;
+        continue;
+      }
+      const v = plane[o + x];
+      if (v < a0) a0 = v;
+      if (v > a1) a1 = v;
+    }
+    low[y] = a0;
+    high[y] = a1;
+    firstMasked[y] = x0;
+    lastMasked[y] = x1;
+  }
+});
+
+/** out[i] = value over pixels [start, end) (a fill of shared memory as a loop: the builtin's goes element by element there). */
+export const FILL_PLANE = definePlaneKernel<{ out: Float32Array; value: number }>("fill-plane", (args, start, end) => {
+  const { out, value } = args;
+  for (let i = start; i < end; i++) out[i] = value;
+});

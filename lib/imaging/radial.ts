@@ -1,7 +1,7 @@
 // Radial filters that reveal coronal structure, computed about the Sun's centre
 // with the lunar disk masked.
 import { blurGaussianFast } from "./blur";
-import { MGN_COMBINE, MGN_DETAIL, MGN_SCALE, MGN_WEIGH } from "./mgn-kernels";
+import { FILL_PLANE, MGN_COMBINE, MGN_DETAIL, MGN_ROW_EXTENTS, MGN_SCALE, MGN_WEIGH } from "./mgn-kernels";
 import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { ImagingError, requireNumberInRange } from "./errors";
 import { denoiseLocally, estimateNoiseVariance } from "./structure-noise";
@@ -136,7 +136,7 @@ function blurMaskWeight(
   scratch: Float32Array,
   runner: PlaneRunner,
 ): void {
-  out.fill(1);
+  runner.run(FILL_PLANE, { out, value: 1 }, out.length);
   if (box.x1 < 0) return;
   const margin = Math.ceil(5 * w);
   const x0 = Math.max(0, box.x0 - margin), x1 = Math.min(width - 1, box.x1 + margin);
@@ -232,13 +232,22 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
   const n = width * height;
   const valid = createValidMask(width, height, options.lunarDisk, options.valid, runner.uint8(n, true));
+  // The valid values' range and the masked pixels' bounding box (the blurred mask differs from 1
+  // only within a few widths of it), row by row, then over the rows in order as one scan finds them.
+  const extents = { plane, valid, width, low: runner.float64(height, true), high: runner.float64(height, true), firstMasked: runner.float64(height, true), lastMasked: runner.float64(height, true) };
+  runner.run(MGN_ROW_EXTENTS, extents, height);
   let a0 = Infinity, a1 = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (!valid[i]) continue;
-    const v = plane[i];
-    if (v < a0) a0 = v;
-    if (v > a1) a1 = v;
+  let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
+  for (let y = 0; y < height; y++) {
+    if (extents.low[y] < a0) a0 = extents.low[y];
+    if (extents.high[y] > a1) a1 = extents.high[y];
+    if (extents.firstMasked[y] < 0) continue;
+    if (extents.firstMasked[y] < bx0) bx0 = extents.firstMasked[y];
+    if (extents.lastMasked[y] > bx1) bx1 = extents.lastMasked[y];
+    if (y < by0) by0 = y;
+    by1 = y;
   }
+  runner.release(extents.low, extents.high, extents.firstMasked, extents.lastMasked);
   if (!(a1 > a0)) return { data: new Float32Array(n), valid };
   const range = a1 - a0;
   const masked = runner.float32(n);
@@ -270,17 +279,6 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   const norm = runner.float32(n, true);
   const local = runner.float32(n, true);
   const scratch = runner.float32(n, true);
-  // Bounding box of the masked pixels: the blurred mask differs from 1 only within a few widths of it.
-  let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      if (valid[y * width + x]) continue;
-      if (x < bx0) bx0 = x;
-      if (x > bx1) bx1 = x;
-      if (y < by0) by0 = y;
-      if (y > by1) by1 = y;
-    }
-  }
   for (const w of widths) {
     blurMaskWeight(valid, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch, runner);
     blurGaussianFast(masked, width, height, w, local, scratch, runner);
