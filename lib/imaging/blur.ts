@@ -1,46 +1,19 @@
 // Gaussian blur and mask morphology on planes.
 import { ImagingError } from "./errors";
+import { definePlaneKernel, SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 
-/**
- * Recursive Gaussian blur of Young and van Vliet (1995), "Recursive
- * implementation of the Gaussian filter", Signal Processing 44:139. Cost is
- * independent of sigma. With q = 0.98711 sigma - 0.96330 (sigma >= 2.5) or
- * 3.97156 - 4.14554 sqrt(1 - 0.26891 sigma) (0.5 <= sigma < 2.5):
- *   b0 = 1.57825 + 2.44413 q + 1.4281 q^2 + 0.422205 q^3
- *   b1 = 2.44413 q + 2.85619 q^2 + 1.26661 q^3
- *   b2 = -(1.4281 q^2 + 1.26661 q^3),  b3 = 0.422205 q^3
- *   B = 1 - (b1 + b2 + b3) / b0
- *   forward  w[n] = B x[n] + (b1 w[n-1] + b2 w[n-2] + b3 w[n-3]) / b0
- *   backward y[n] = B w[n] + (b1 y[n+1] + b2 y[n+2] + b3 y[n+3]) / b0
- * Edges are extended with the edge value (the filter's steady state).
- * Returns a new plane (or `out`); sigma 0 returns a copy.
- */
-export function blurGaussian(
-  plane: Float32Array,
-  width: number,
-  height: number,
-  sigmaPx: number,
-  out?: Float32Array,
-  scratch?: Float32Array,
-): Float32Array {
-  if (!(sigmaPx >= 0) || !Number.isFinite(sigmaPx)) throw new ImagingError("bad-parameter", `blur sigmaPx must be finite and >= 0, got ${sigmaPx}`);
-  if (plane.length !== width * height) throw new ImagingError("bad-parameter", `blur: plane length ${plane.length} is not ${width} x ${height}`);
-  // `out` and `scratch` let callers reuse large buffers: fresh 100 MB arrays cost page faults and GC.
-  if (out) {
-    if (out !== plane) out.set(plane);
-  } else out = Float32Array.from(plane);
-  if (sigmaPx === 0) return out;
-  if (sigmaPx < 0.5) throw new ImagingError("bad-parameter", `blur sigmaPx must be 0 or at least 0.5 (recursive filter range), got ${sigmaPx}`);
-  const q = sigmaPx >= 2.5 ? 0.98711 * sigmaPx - 0.9633 : 3.97156 - 4.14554 * Math.sqrt(1 - 0.26891 * sigmaPx);
-  const b0 = 1.57825 + 2.44413 * q + 1.4281 * q * q + 0.422205 * q * q * q;
-  const c1 = (2.44413 * q + 2.85619 * q * q + 1.26661 * q * q * q) / b0;
-  const c2 = -(1.4281 * q * q + 1.26661 * q * q * q) / b0;
-  const c3 = (0.422205 * q * q * q) / b0;
-  const bb = 1 - (c1 + c2 + c3);
+interface RecursiveCoefficients {
+  bb: number;
+  c1: number;
+  c2: number;
+  c3: number;
+}
 
-  // Rows: one line at a time in a Float64 buffer.
+/** The row pass of blurGaussian over rows [start, end) of `out`, in place: one line at a time in a Float64 buffer. */
+export const BLUR_ROWS = definePlaneKernel<RecursiveCoefficients & { out: Float32Array; width: number }>("blur-rows", (args, start, end) => {
+  const { out, width, bb, c1, c2, c3 } = args;
   const line = new Float64Array(width);
-  for (let y = 0; y < height; y++) {
+  for (let y = start; y < end; y++) {
     const o = y * width;
     let w1 = out[o], w2 = w1, w3 = w1;
     for (let x = 0; x < width; x++) {
@@ -55,68 +28,112 @@ export function blurGaussian(
       y3 = y2; y2 = y1; y1 = v;
     }
   }
-  // Columns: all columns advance together row by row, which keeps memory access sequential.
-  const p1 = new Float64Array(width), p2 = new Float64Array(width), p3 = new Float64Array(width);
-  // Float32 halves the memory of a 24 Mpx plane; the error stays near 1e-7.
-  const cols = scratch && scratch.length >= width * height ? scratch : new Float32Array(width * height);
-  for (let x = 0; x < width; x++) p1[x] = p2[x] = p3[x] = out[x];
-  for (let y = 0; y < height; y++) {
-    const o = y * width;
-    for (let x = 0; x < width; x++) {
-      const w = bb * out[o + x] + c1 * p1[x] + c2 * p2[x] + c3 * p3[x];
-      cols[o + x] = w;
-      p3[x] = p2[x]; p2[x] = p1[x]; p1[x] = w;
-    }
-  }
-  const last = (height - 1) * width;
-  for (let x = 0; x < width; x++) p1[x] = p2[x] = p3[x] = cols[last + x];
-  for (let y = height - 1; y >= 0; y--) {
-    const o = y * width;
-    for (let x = 0; x < width; x++) {
-      const v = bb * cols[o + x] + c1 * p1[x] + c2 * p2[x] + c3 * p3[x];
-      out[o + x] = v;
-      p3[x] = p2[x]; p2[x] = p1[x]; p1[x] = v;
-    }
-  }
-  return out;
-}
+});
 
 /**
- * Wide Gaussian blurs on a reduced grid: box-average by f (a power of two with
- * f <= sigma / 2), blur there by sqrt(sigma^2 - (f^2 - 1) / 12) / f (a box of
- * f pixels already adds a variance of (f^2 - 1) / 12 px^2), and interpolate back
- * bilinearly. For sigma of 4 px and more this keeps the result within about 1 %
- * of the full blur's local contrast at a fraction of the cost; narrower blurs run
- * at full resolution.
+ * The column pass of blurGaussian over columns [start, end) of `out`, in place
+ * (the forward pass into `cols`): the range's columns advance together row by
+ * row, which keeps memory access sequential within each row.
  */
-export function blurGaussianFast(
+export const BLUR_COLUMNS = definePlaneKernel<RecursiveCoefficients & { out: Float32Array; cols: Float32Array; width: number; height: number }>("blur-columns", (args, start, end) => {
+  const { out, cols, width, height, bb, c1, c2, c3 } = args;
+  const span = end - start;
+  const p1 = new Float64Array(span), p2 = new Float64Array(span), p3 = new Float64Array(span);
+  for (let j = 0; j < span; j++) p1[j] = p2[j] = p3[j] = out[start + j];
+  for (let y = 0; y < height; y++) {
+    const o = y * width + start;
+    for (let j = 0; j < span; j++) {
+      const w = bb * out[o + j] + c1 * p1[j] + c2 * p2[j] + c3 * p3[j];
+      cols[o + j] = w;
+      p3[j] = p2[j]; p2[j] = p1[j]; p1[j] = w;
+    }
+  }
+  const last = (height - 1) * width + start;
+  for (let j = 0; j < span; j++) p1[j] = p2[j] = p3[j] = cols[last + j];
+  for (let y = height - 1; y >= 0; y--) {
+    const o = y * width + start;
+    for (let j = 0; j < span; j++) {
+      const v = bb * cols[o + j] + c1 * p1[j] + c2 * p2[j] + c3 * p3[j];
+      out[o + j] = v;
+      p3[j] = p2[j]; p2[j] = p1[j]; p1[j] = v;
+    }
+  }
+});
+
+/**
+ * Recursive Gaussian blur of Young and van Vliet (1995), "Recursive
+ * implementation of the Gaussian filter", Signal Processing 44:139. Cost is
+ * independent of sigma. With q = 0.98711 sigma - 0.96330 (sigma >= 2.5) or
+ * 3.97156 - 4.14554 sqrt(1 - 0.26891 sigma) (0.5 <= sigma < 2.5):
+ *   b0 = 1.57825 + 2.44413 q + 1.4281 q^2 + 0.422205 q^3
+ *   b1 = 2.44413 q + 2.85619 q^2 + 1.26661 q^3
+ *   b2 = -(1.4281 q^2 + 1.26661 q^3),  b3 = 0.422205 q^3
+ *   B = 1 - (b1 + b2 + b3) / b0
+ *   forward  w[n] = B x[n] + (b1 w[n-1] + b2 w[n-2] + b3 w[n-3]) / b0
+ *   backward y[n] = B w[n] + (b1 y[n+1] + b2 y[n+2] + b3 y[n+3]) / b0
+ * Edges are extended with the edge value (the filter's steady state).
+ * Returns a new plane (or `out`); sigma 0 returns a copy. Rows, then columns:
+ * each row's and each column's arithmetic is its own, so a runner may spread
+ * them over threads (`out` and `scratch` then from the runner, as `plane` when
+ * no `out` is given).
+ */
+export function blurGaussian(
   plane: Float32Array,
   width: number,
   height: number,
   sigmaPx: number,
   out?: Float32Array,
   scratch?: Float32Array,
+  runner: PlaneRunner = SERIAL_PLANE_RUNNER,
 ): Float32Array {
-  let f = 1;
-  while (f * 4 <= sigmaPx && f * 4 <= Math.min(width, height) / 8) f *= 2;
-  if (f === 1) return blurGaussian(plane, width, height, sigmaPx, out, scratch);
-  const sw = Math.ceil(width / f);
-  const sh = Math.ceil(height / f);
+  if (!(sigmaPx >= 0) || !Number.isFinite(sigmaPx)) throw new ImagingError("bad-parameter", `blur sigmaPx must be finite and >= 0, got ${sigmaPx}`);
+  if (plane.length !== width * height) throw new ImagingError("bad-parameter", `blur: plane length ${plane.length} is not ${width} x ${height}`);
+  // `out` and `scratch` let callers reuse large buffers: fresh 100 MB arrays cost page faults and GC.
+  if (out) {
+    if (out !== plane) out.set(plane);
+  } else {
+    out = runner.float32(plane.length, true);
+    out.set(plane);
+  }
+  if (sigmaPx === 0) return out;
+  if (sigmaPx < 0.5) throw new ImagingError("bad-parameter", `blur sigmaPx must be 0 or at least 0.5 (recursive filter range), got ${sigmaPx}`);
+  const q = sigmaPx >= 2.5 ? 0.98711 * sigmaPx - 0.9633 : 3.97156 - 4.14554 * Math.sqrt(1 - 0.26891 * sigmaPx);
+  const b0 = 1.57825 + 2.44413 * q + 1.4281 * q * q + 0.422205 * q * q * q;
+  const c1 = (2.44413 * q + 2.85619 * q * q + 1.26661 * q * q * q) / b0;
+  const c2 = -(1.4281 * q * q + 1.26661 * q * q * q) / b0;
+  const c3 = (0.422205 * q * q * q) / b0;
+  const bb = 1 - (c1 + c2 + c3);
+  runner.run(BLUR_ROWS, { out, width, bb, c1, c2, c3 }, height);
+  // Float32 halves the memory of a 24 Mpx plane; the error stays near 1e-7.
+  const cols = scratch && scratch.length >= width * height ? scratch : runner.float32(width * height, true);
+  runner.run(BLUR_COLUMNS, { out, cols, width, height, bb, c1, c2, c3 }, width);
+  if (cols !== scratch) runner.release(cols);
+  return out;
+}
+
+/**
+ * blurGaussianFast's box average over the small grid's rows [start, end): each
+ * cell sums its f x f pixels (rows in order, each row left to right) and is
+ * divided by its area (f x f inside, less along the right and bottom edges).
+ */
+export const BOX_AVERAGE = definePlaneKernel<{ plane: Float32Array; sum: Float32Array; width: number; height: number; f: number; sw: number }>("box-average", (args, start, end) => {
+  const { plane, sum, width, height, f, sw } = args;
   const shift = Math.log2(f);
-  const sum = new Float32Array(sw * sh);
-  for (let y = 0; y < height; y++) {
+  for (let y = start * f; y < Math.min(height, end * f); y++) {
     const row = (y >> shift) * sw;
     const o = y * width;
     for (let x = 0; x < width; x++) sum[row + (x >> shift)] += plane[o + x];
   }
-  // Cell areas: f x f inside, less along the right and bottom edges.
-  for (let j = 0; j < sh; j++) {
+  for (let j = start; j < end; j++) {
     const rows = Math.min(f, height - j * f);
     for (let i = 0; i < sw; i++) sum[j * sw + i] /= rows * Math.min(f, width - i * f);
   }
-  const small = blurGaussian(sum, sw, sh, Math.sqrt(sigmaPx * sigmaPx - (f * f - 1) / 12) / f);
+});
+
+/** blurGaussianFast's bilinear interpolation of the small grid back to full rows [start, end). */
+export const SPREAD_BILINEAR = definePlaneKernel<{ small: Float32Array; out: Float32Array; width: number; f: number; sw: number; sh: number }>("spread-bilinear", (args, start, end) => {
+  const { small, out, width, f, sw, sh } = args;
   // Small cell j covers full pixels j f .. j f + f - 1, centred at j f + (f - 1) / 2.
-  out ??= new Float32Array(width * height);
   const x0 = new Int32Array(width);
   const fx = new Float32Array(width);
   for (let x = 0; x < width; x++) {
@@ -125,7 +142,7 @@ export function blurGaussianFast(
     x0[x] = Math.min(sw - 2, Math.floor(u));
     fx[x] = u - x0[x];
   }
-  for (let y = 0; y < height; y++) {
+  for (let y = start; y < end; y++) {
     let v = (y - (f - 1) / 2) / f;
     v = v < 0 ? 0 : v > sh - 1 ? sh - 1 : v;
     const y0 = Math.min(sh - 2, Math.floor(v));
@@ -141,6 +158,42 @@ export function blurGaussianFast(
       out[o + x] = top + fy * (bottom - top);
     }
   }
+});
+
+/**
+ * Wide Gaussian blurs on a reduced grid: box-average by f (a power of two with
+ * f <= sigma / 2), blur there by sqrt(sigma^2 - (f^2 - 1) / 12) / f (a box of
+ * f pixels already adds a variance of (f^2 - 1) / 12 px^2), and interpolate back
+ * bilinearly. For sigma of 4 px and more this keeps the result within about 1 %
+ * of the full blur's local contrast at a fraction of the cost; narrower blurs run
+ * at full resolution. Every step is by rows or columns, so a runner may spread it
+ * over threads (as blurGaussian).
+ */
+export function blurGaussianFast(
+  plane: Float32Array,
+  width: number,
+  height: number,
+  sigmaPx: number,
+  out?: Float32Array,
+  scratch?: Float32Array,
+  runner: PlaneRunner = SERIAL_PLANE_RUNNER,
+): Float32Array {
+  let f = 1;
+  while (f * 4 <= sigmaPx && f * 4 <= Math.min(width, height) / 8) f *= 2;
+  if (f === 1) return blurGaussian(plane, width, height, sigmaPx, out, scratch, runner);
+  const sw = Math.ceil(width / f);
+  const sh = Math.ceil(height / f);
+  const m = sw * sh;
+  // The small grid's sums, blur and column pass fit in a full-size scratch (3 m <= 3 n / 4): no new arrays.
+  const inScratch = scratch !== undefined && scratch.length >= 3 * m;
+  const sum = inScratch ? scratch.subarray(0, m).fill(0) : runner.float32(m);
+  runner.run(BOX_AVERAGE, { plane, sum, width, height, f, sw }, sh);
+  const smallSigma = Math.sqrt(sigmaPx * sigmaPx - (f * f - 1) / 12) / f;
+  const small = inScratch ? blurGaussian(sum, sw, sh, smallSigma, scratch.subarray(m, 2 * m), scratch.subarray(2 * m, 3 * m), runner) : blurGaussian(sum, sw, sh, smallSigma, undefined, undefined, runner);
+  if (!inScratch) runner.release(sum);
+  out ??= runner.float32(width * height, true);
+  runner.run(SPREAD_BILINEAR, { small, out, width, f, sw, sh }, height);
+  if (!inScratch) runner.release(small);
   return out;
 }
 

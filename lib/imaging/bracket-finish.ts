@@ -9,6 +9,7 @@ import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTal
 import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { applyAffine, fromAffine } from "./similarity";
 import { computeLuminancePlane } from "./srgb";
 import { createStructureMask } from "./structure-noise";
@@ -235,8 +236,12 @@ export function mergeKeptFrames(plan: BracketPlan, frames: LinearFrame[], ready:
 function findEmptyPixels(merged: MergeResult): Uint8Array | undefined {
   const n = merged.width * merged.height;
   let holes: Uint8Array | undefined;
+  const planes = merged.radiance;
   for (let i = 0; i < n; i++) {
-    if (merged.coverage[i] !== 0 || merged.radiance.some((p) => p[i] !== 0)) continue;
+    if (merged.coverage[i] !== 0) continue;
+    let lit = false;
+    for (let c = 0; c < planes.length && !lit; c++) lit = planes[c][i] !== 0;
+    if (lit) continue;
     holes ??= new Uint8Array(n);
     holes[i] = 1;
   }
@@ -266,25 +271,40 @@ function blankEdgeBand(image: PlaneImage, bandPx: number): void {
   }
 }
 
+/** The structure rendition of the luminance; every plane of the filter's is let go (released to the runner) before it returns. */
+function renderStructureRendition(plan: BracketPlan, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, filterCentre: { x: number; y: number }, runner: PlaneRunner): PlaneImage {
+  const { width, height, params } = plan;
+  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
+  // The strength weighs local structure against the overall image: MGN's h is its complement.
+  const filtered = params.filter === "mgn"
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
+    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
+  const structure = renderStructure(filtered, width, height);
+  runner.release(filtered.data, filtered.valid);
+  return structure;
+}
+
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
-export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner?: PlaneRunner): ReductionResult {
   const started = performance.now();
   // finishMerge consumes the accumulator: its buffers are free from here on.
   const merged = finishMerge(acc);
-  return finishMergedBracket(plan, merged, onProgress, mergeMs + (performance.now() - started));
+  return finishMergedBracket(plan, merged, onProgress, mergeMs + (performance.now() - started), runner);
 }
 
 /**
  * finishBracket from the merge's result (finishMerge's): the renditions and the
  * report. Reports progress "renditions" at 0, at 0.5 when the structure
- * rendition is done and the natural one starts, and at 1.
+ * rendition is done and the natural one starts, and at 1. A runner spreads the
+ * renditions' per-pixel steps and blurs over its threads: the same renditions
+ * and figures bit for bit, with the working planes and the renditions in its
+ * shared memory (no plane more than without it).
  */
-export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0): ReductionResult {
+export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner: PlaneRunner = SERIAL_PLANE_RUNNER): ReductionResult {
   const clock = performance.now();
   const progress = (stage: string, fraction: number) => onProgress?.(stage, fraction);
   const { width, height, params, referenceMoon, ref, keep } = plan;
   const isEncoded = plan.isEncoded;
-  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
   const offsets = params.moonMinusSunPx;
   const timingsMs: Record<string, number> = { ...plan.timingsMs };
   const master: PlaneImage = { width, height, planes: merged.radiance };
@@ -302,7 +322,7 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const refOffset = offsets?.[plan.names[keep[ref]]];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
-  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes);
+  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height, true));
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
   const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
@@ -316,19 +336,16 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   }
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
   const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
-  // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const structure = renderStructure(
-    params.filter === "mgn"
-      ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength })
-      : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength),
-    width, height,
-  );
+  const structure = renderStructureRendition(plan, luminance, structureMask, filterDisk, filterCentre, runner);
+  // The filter's planes are done with: the natural rendition's are fewer (see PlaneRunner.trim).
+  runner.trim();
 
   progress("renditions", 0.5);
   const outsideMoon = createValidMask(width, height, referenceMoon);
   // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
   const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
-  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing });
+  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing, runner });
+  runner.release(luminance);
   luminance = undefined;
   // The same band is black in the natural rendition too: there only some frames reach, and a
   // column lit by the short exposures alone showed as a dotted line along the edge.

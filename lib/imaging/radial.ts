@@ -1,6 +1,8 @@
 // Radial filters that reveal coronal structure, computed about the Sun's centre
 // with the lunar disk masked.
 import { blurGaussianFast } from "./blur";
+import { FILL_PLANE, MGN_COMBINE, MGN_DETAIL, MGN_ROW_EXTENTS, MGN_SCALE, MGN_WEIGH } from "./mgn-kernels";
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { ImagingError, requireNumberInRange } from "./errors";
 import { denoiseLocally, estimateNoiseVariance } from "./structure-noise";
 import { computePercentiles } from "./tone";
@@ -17,10 +19,13 @@ export interface FilteredPlane {
   valid: Uint8Array;
 }
 
-/** Valid-pixel mask: the given mask (if any) minus the lunar disk (if any). */
-export function createValidMask(width: number, height: number, lunarDisk?: LunarDisk, valid?: Uint8Array): Uint8Array {
-  const out = valid ? Uint8Array.from(valid) : new Uint8Array(width * height).fill(1);
-  if (out.length !== width * height) throw new ImagingError("size-mismatch", `valid mask has ${out.length} values, expected ${width} x ${height}`);
+/** Valid-pixel mask: the given mask (if any) minus the lunar disk (if any); written into `into` when given (width x height). */
+export function createValidMask(width: number, height: number, lunarDisk?: LunarDisk, valid?: Uint8Array, into?: Uint8Array): Uint8Array {
+  if (valid && valid.length !== width * height) throw new ImagingError("size-mismatch", `valid mask has ${valid.length} values, expected ${width} x ${height}`);
+  if (into && into.length !== width * height) throw new ImagingError("size-mismatch", `the mask's buffer has ${into.length} values, expected ${width} x ${height}`);
+  const out = into ?? new Uint8Array(width * height);
+  if (valid) out.set(valid);
+  else out.fill(1);
   if (lunarDisk) {
     const r2 = lunarDisk.radiusPx * lunarDisk.radiusPx;
     for (let y = 0; y < height; y++) {
@@ -129,37 +134,23 @@ function blurMaskWeight(
   box: { x0: number; y0: number; x1: number; y1: number },
   out: Float32Array,
   scratch: Float32Array,
+  runner: PlaneRunner,
 ): void {
-  out.fill(1);
+  runner.run(FILL_PLANE, { out, value: 1 }, out.length);
   if (box.x1 < 0) return;
   const margin = Math.ceil(5 * w);
   const x0 = Math.max(0, box.x0 - margin), x1 = Math.min(width - 1, box.x1 + margin);
   const y0 = Math.max(0, box.y0 - margin), y1 = Math.min(height - 1, box.y1 + margin);
   const sw = x1 - x0 + 1, sh = y1 - y0 + 1;
   if (sw < 2 || sh < 2) return;
-  const sub = new Float32Array(sw * sh);
+  const sub = runner.float32(sw * sh, true);
   for (let y = 0; y < sh; y++) {
     const from = (y + y0) * width + x0;
     for (let x = 0; x < sw; x++) sub[y * sw + x] = valid[from + x] ? 1 : 0;
   }
-  const blurred = blurGaussianFast(sub, sw, sh, w, sub, scratch);
+  const blurred = blurGaussianFast(sub, sw, sh, w, sub, scratch, runner);
   for (let y = 0; y < sh; y++) out.set(blurred.subarray(y * sw, (y + 1) * sw), (y + y0) * width + x0);
-}
-
-/**
- * arctan by the polynomial of Abramowitz and Stegun (1964), Handbook of
- * Mathematical Functions, 4.4.49: arctan x = x + a2 x^3 + ... + a16 x^17 for
- * 0 <= x <= 1, |error| <= 2e-8, with arctan x = pi/2 - arctan(1/x) above 1. MGN
- * takes six arctangents per pixel; this is several times cheaper than Math.atan.
- */
-export function computeArctan(x: number): number {
-  const ax = x < 0 ? -x : x;
-  const t = ax > 1 ? 1 / ax : ax;
-  const t2 = t * t;
-  const p =
-    t * (1 + t2 * (-0.3333314528 + t2 * (0.1999355085 + t2 * (-0.1420889944 + t2 * (0.1065626393 + t2 * (-0.07528964 + t2 * (0.0429096138 + t2 * (-0.0161657367 + t2 * 0.0028662257))))))));
-  const r = ax > 1 ? Math.PI / 2 - p : p;
-  return x < 0 ? -r : r;
+  runner.release(sub);
 }
 
 export interface MgnOptions {
@@ -181,6 +172,11 @@ export interface MgnOptions {
   noiseVariance?: Float32Array;
   /** Weight each scale's enhancement by its local signal-to-noise ratio; default true. false gives the published filter unchanged. */
   snrWeighting?: boolean;
+  /**
+   * Runs the per-pixel steps and the blurs (on the calling thread when absent):
+   * the same numbers with any runner. The result's planes are the runner's.
+   */
+  runner?: PlaneRunner;
 }
 
 /**
@@ -193,6 +189,8 @@ export interface MgnOptions {
 const NOISE_OVERSUBTRACTION = 1.5;
 /** Width of the Lee estimate behind MGN's gamma image, px: wide enough to smooth noise where no structure stands out. */
 const LEE_WIDTH_PX = 5;
+
+export { computeArctan } from "./mgn-kernels";
 
 /** Defaults from memory of Morgan and Druckmueller (2014) (REFERENCES.md). */
 export const MGN_DEFAULTS = { k: 0.7, h: 0.7, gamma: 3.2, widthsPx: [1.25, 2.5, 5, 10, 20, 40] };
@@ -225,102 +223,78 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   const h = options.h ?? MGN_DEFAULTS.h;
   const gamma = options.gamma ?? MGN_DEFAULTS.gamma;
   const widths = options.widthsPx ?? MGN_DEFAULTS.widthsPx;
+  const runner = options.runner ?? SERIAL_PLANE_RUNNER;
   requireNumberInRange("k", k, 1e-6, 1e6);
   requireNumberInRange("h", h, 0, 1);
   requireNumberInRange("gamma", gamma, 1e-3, 1e3);
   if (!Array.isArray(widths) || widths.length === 0) throw new ImagingError("bad-parameter", "widthsPx must list at least one kernel width");
   widths.forEach((w, i) => requireNumberInRange(`widthsPx[${i}]`, w, 0.5, 1e4));
   if (plane.length !== width * height) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
-  const valid = createValidMask(width, height, options.lunarDisk, options.valid);
   const n = width * height;
+  const valid = createValidMask(width, height, options.lunarDisk, options.valid, runner.uint8(n, true));
+  // The valid values' range and the masked pixels' bounding box (the blurred mask differs from 1
+  // only within a few widths of it), row by row, then over the rows in order as one scan finds them.
+  const extents = { plane, valid, width, low: runner.float64(height, true), high: runner.float64(height, true), firstMasked: runner.float64(height, true), lastMasked: runner.float64(height, true) };
+  runner.run(MGN_ROW_EXTENTS, extents, height);
   let a0 = Infinity, a1 = -Infinity;
-  for (let i = 0; i < n; i++) {
-    if (!valid[i]) continue;
-    const v = plane[i];
-    if (v < a0) a0 = v;
-    if (v > a1) a1 = v;
+  let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
+  for (let y = 0; y < height; y++) {
+    if (extents.low[y] < a0) a0 = extents.low[y];
+    if (extents.high[y] > a1) a1 = extents.high[y];
+    if (extents.firstMasked[y] < 0) continue;
+    if (extents.firstMasked[y] < bx0) bx0 = extents.firstMasked[y];
+    if (extents.lastMasked[y] > bx1) bx1 = extents.lastMasked[y];
+    if (y < by0) by0 = y;
+    by1 = y;
   }
+  runner.release(extents.low, extents.high, extents.firstMasked, extents.lastMasked);
   if (!(a1 > a0)) return { data: new Float32Array(n), valid };
   const range = a1 - a0;
-  const masked = new Float32Array(n);
-  for (let i = 0; i < n; i++) {
-    // Shift by a0 before blurring: the same numbers for B and a B + b up to scale, which keeps float error low.
-    if (valid[i]) masked[i] = (plane[i] - a0) / range;
-  }
+  const masked = runner.float32(n);
+  runner.run(MGN_SCALE, { plane, valid, masked, a0, range }, n);
   // Noise variance in the units of `masked` ((B - a0) / range), smoothed over a few pixels.
   let noise: Float32Array | undefined;
   if (options.snrWeighting ?? true) {
     if (options.noiseVariance) {
       if (options.noiseVariance.length !== n) throw new ImagingError("size-mismatch", `noiseVariance has ${options.noiseVariance.length} values, expected ${width} x ${height}`);
-      const scaled = new Float32Array(n);
-      const w = new Float32Array(n);
+      const scaled = runner.float32(n);
+      const w = runner.float32(n);
       const inv = 1 / (range * range);
       for (let i = 0; i < n; i++) if (valid[i] && options.noiseVariance[i] >= 0) { scaled[i] = options.noiseVariance[i] * inv; w[i] = 1; }
-      const scratchN = new Float32Array(n);
-      const num = blurGaussianFast(scaled, width, height, 2, scaled, scratchN);
-      const den = blurGaussianFast(w, width, height, 2, w, scratchN);
+      const scratchN = runner.float32(n, true);
+      const num = blurGaussianFast(scaled, width, height, 2, scaled, scratchN, runner);
+      const den = blurGaussianFast(w, width, height, 2, w, scratchN, runner);
       for (let i = 0; i < n; i++) num[i] = den[i] > 1e-6 ? num[i] / den[i] : 0;
+      runner.release(den, scratchN);
       noise = num;
-    } else noise = estimateNoiseVariance(masked, width, height, valid);
+    } else noise = estimateNoiseVariance(masked, width, height, valid, undefined, runner);
   }
   // The finest width's local mean and gain give the Lee estimate behind the gamma image.
   const leeWidth = widths.reduce((best, w) => (w <= LEE_WIDTH_PX && w > best ? w : best), Math.min(...widths));
   let leeMean: Float32Array | undefined;
   let leeGain: Float32Array | undefined;
-  const sumArctan = new Float32Array(n);
-  const diff = new Float32Array(n);
-  // Buffers reused for every width (see blurGaussian on why).
-  const norm = new Float32Array(n);
-  const local = new Float32Array(n);
-  const scratch = new Float32Array(n);
-  // Bounding box of the masked pixels: the blurred mask differs from 1 only within a few widths of it.
-  let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      if (valid[y * width + x]) continue;
-      if (x < bx0) bx0 = x;
-      if (x > bx1) bx1 = x;
-      if (y < by0) by0 = y;
-      if (y > by1) by1 = y;
-    }
-  }
+  const sumArctan = runner.float32(n);
+  const diff = runner.float32(n, true);
+  // Buffers reused for every width (see blurGaussian on why), each written whole before it is read.
+  const norm = runner.float32(n, true);
+  const local = runner.float32(n, true);
+  const scratch = runner.float32(n, true);
   for (const w of widths) {
-    blurMaskWeight(valid, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch);
-    blurGaussianFast(masked, width, height, w, local, scratch);
+    blurMaskWeight(valid, width, height, w, { x0: bx0, y0: by0, x1: bx1, y1: by1 }, norm, scratch, runner);
+    blurGaussianFast(masked, width, height, w, local, scratch, runner);
     // The Lee estimate for the gamma image comes from the widest scale up to LEE_WIDTH_PX (or the finest).
     const first = noise !== undefined && w === leeWidth;
-    if (first) leeMean = new Float32Array(n);
-    for (let i = 0; i < n; i++) {
-      diff[i] = valid[i] && norm[i] > 1e-6 ? masked[i] - local[i] / norm[i] : 0;
-      if (first) leeMean![i] = masked[i] - diff[i];
-      local[i] = diff[i] * diff[i];
-    }
-    const localVar = blurGaussianFast(local, width, height, w, local, scratch);
+    if (first) leeMean = runner.float32(n, true);
+    runner.run(MGN_DETAIL, { valid, norm, masked, local, diff, leeMean: first ? leeMean : undefined }, n);
+    const localVar = blurGaussianFast(local, width, height, w, local, scratch, runner);
     const nu = Math.max(0, 1 - 3 / (4 * Math.PI * w * w));
-    if (first) leeGain = new Float32Array(n);
-    for (let i = 0; i < n; i++) {
-      if (!valid[i]) continue;
-      const variance = norm[i] > 1e-6 ? Math.max(0, localVar[i] / norm[i]) : 0;
-      const sd = Math.sqrt(variance);
-      let gain = 1;
-      if (noise) {
-        const noiseVar = nu * noise[i];
-        const signal = Math.max(0, variance - NOISE_OVERSUBTRACTION * noiseVar);
-        gain = signal + noiseVar > 0 ? signal / (signal + noiseVar) : 1;
-        if (first) leeGain![i] = gain;
-      }
-      sumArctan[i] += sd > 0 ? gain * computeArctan((k * diff[i]) / sd) : 0;
-    }
+    if (first) leeGain = runner.float32(n);
+    runner.run(MGN_WEIGH, { valid, norm, localVar, diff, sumArctan, noise, leeGain: first ? leeGain : undefined, nu, k, oversubtraction: NOISE_OVERSUBTRACTION }, n);
   }
-  const invGamma = 1 / gamma;
   // The result takes the buffer of the per-width differences, which are done with.
   const data = diff;
-  for (let i = 0; i < n; i++) {
-    if (!valid[i]) { data[i] = 0; continue; }
-    const b = leeMean && leeGain ? leeMean[i] + leeGain[i] * (masked[i] - leeMean[i]) : masked[i];
-    const g = Math.pow(Math.max(0, b), invGamma);
-    data[i] = h * g + ((1 - h) / widths.length) * sumArctan[i];
-  }
+  runner.run(MGN_COMBINE, { valid, masked, sumArctan, data, leeMean, leeGain, h, invGamma: 1 / gamma, widths: widths.length }, n);
+  runner.release(masked, noise, sumArctan, norm, local, scratch, leeMean, leeGain);
   return { data, valid };
 }
 

@@ -23,12 +23,15 @@ export function computeLuminance(red: number, green: number, blue: number): numb
   return 0.2126 * red + 0.7152 * green + 0.0722 * blue;
 }
 
-/** Luminance plane of 1 or 3 linear planes (a single plane is returned as a copy). */
-export function computeLuminancePlane(planes: Float32Array[]): Float32Array {
-  if (planes.length === 1) return Float32Array.from(planes[0]);
-  if (planes.length !== 3) throw new RangeError(`luminance needs 1 or 3 planes, got ${planes.length}`);
+/** Luminance plane of 1 or 3 linear planes (a single plane is returned as a copy), into `out` when given (as long as a plane). */
+export function computeLuminancePlane(planes: Float32Array[], out: Float32Array = new Float32Array(planes[0]?.length ?? 0)): Float32Array {
+  if (planes.length !== 1 && planes.length !== 3) throw new RangeError(`luminance needs 1 or 3 planes, got ${planes.length}`);
+  if (out.length !== planes[0].length) throw new RangeError(`the luminance's buffer has ${out.length} values, the planes ${planes[0].length}`);
+  if (planes.length === 1) {
+    out.set(planes[0]);
+    return out;
+  }
   const [r, g, b] = planes;
-  const out = new Float32Array(r.length);
   for (let i = 0; i < out.length; i++) out[i] = 0.2126 * r[i] + 0.7152 * g[i] + 0.0722 * b[i];
   return out;
 }

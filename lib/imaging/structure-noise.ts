@@ -3,6 +3,7 @@
 // the mask of pixels the rendition may show.
 import { blurGaussianFast } from "./blur";
 import { ImagingError, requireNumberInRange } from "./errors";
+import { definePlaneKernel, SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import type { LunarDisk } from "./radial";
 
 /** Rec. 709 / sRGB luminance weights (IEC 61966-2-1), as computeLuminance uses them. */
@@ -37,14 +38,37 @@ export function combineLuminanceVariance(variance: Float32Array[]): Float32Array
  * underestimated (interpolation smooths the finest scale): prefer the merge's
  * own variance when there is one.
  */
-export function estimateNoiseVariance(plane: Float32Array, width: number, height: number, valid?: Uint8Array, windowPx = 4): Float32Array {
+export function estimateNoiseVariance(plane: Float32Array, width: number, height: number, valid?: Uint8Array, windowPx = 4, runner: PlaneRunner = SERIAL_PLANE_RUNNER): Float32Array {
   requireNumberInRange("windowPx", windowPx, 1, 1000);
   const n = width * height;
   if (plane.length !== n) throw new ImagingError("size-mismatch", `plane has ${plane.length} values, expected ${width} x ${height}`);
-  const hh = new Float32Array(n);
-  const hasHh = new Uint8Array(n);
+  const hh = runner.float32(n);
+  const hasHh = runner.uint8(n);
+  runner.run(NOISE_DETAIL, { plane, valid, hh, hasHh, width }, height - 1);
+  const sq = runner.float32(n);
+  const weight = runner.float32(n);
+  runner.run(NOISE_SQUARES, { hh, hasHh, sq, weight, width }, height);
+  // The blurs work in place and the result goes into hh's buffer: at 24 megapixels the
+  // estimate then peaks near 400 MB instead of 700 (the same numbers).
+  const scratch = runner.float32(n, true);
+  const sqBlur = blurGaussianFast(sq, width, height, windowPx, sq, scratch, runner);
+  const wBlur = blurGaussianFast(weight, width, height, windowPx, weight, scratch, runner);
+  // Where no block was usable nearby, the median of the estimates stands in.
+  const estimates: number[] = [];
+  for (let i = 0; i < n; i += 97) if (wBlur[i] > 0.05) estimates.push(sqBlur[i] / wBlur[i]);
+  estimates.sort((a, b) => a - b);
+  const fallback = estimates.length > 0 ? estimates[estimates.length >> 1] : 0;
+  const out = hh;
+  runner.run(NOISE_RATIO, { sqBlur, wBlur, out, fallback }, n);
+  runner.release(hasHh, sq, weight, scratch);
+  return out;
+}
+
+/** The finest diagonal detail HH of the 2 x 2 blocks starting on rows [start, end) where all four pixels are valid. */
+const NOISE_DETAIL = definePlaneKernel<{ plane: Float32Array; valid?: Uint8Array; hh: Float32Array; hasHh: Uint8Array; width: number }>("noise-detail", (args, start, end) => {
+  const { plane, valid, hh, hasHh, width } = args;
   const ok = (i: number) => !valid || valid[i] === 1;
-  for (let y = 0; y + 1 < height; y++) {
+  for (let y = start; y < end; y++) {
     for (let x = 0; x + 1 < width; x++) {
       const i = y * width + x;
       if (!(ok(i) && ok(i + 1) && ok(i + width) && ok(i + width + 1))) continue;
@@ -52,9 +76,12 @@ export function estimateNoiseVariance(plane: Float32Array, width: number, height
       hasHh[i] = 1;
     }
   }
-  const sq = new Float32Array(n);
-  const weight = new Float32Array(n);
-  for (let y = 0; y < height; y++) {
+});
+
+/** Half the squared difference of neighbouring blocks' HH on rows [start, end), centred on the 4 x 2 block, with its weight. */
+const NOISE_SQUARES = definePlaneKernel<{ hh: Float32Array; hasHh: Uint8Array; sq: Float32Array; weight: Float32Array; width: number }>("noise-squares", (args, start, end) => {
+  const { hh, hasHh, sq, weight, width } = args;
+  for (let y = start; y < end; y++) {
     for (let x = 0; x + 2 < width; x++) {
       const i = y * width + x;
       if (!hasHh[i] || !hasHh[i + 2]) continue;
@@ -65,20 +92,15 @@ export function estimateNoiseVariance(plane: Float32Array, width: number, height
       weight[c] = 1;
     }
   }
-  // The blurs work in place and the result goes into hh's buffer: at 24 megapixels the
-  // estimate then peaks near 400 MB instead of 700 (the same numbers).
-  const scratch = new Float32Array(n);
-  const sqBlur = blurGaussianFast(sq, width, height, windowPx, sq, scratch);
-  const wBlur = blurGaussianFast(weight, width, height, windowPx, weight, scratch);
-  // Where no block was usable nearby, the median of the estimates stands in.
-  const estimates: number[] = [];
-  for (let i = 0; i < n; i += 97) if (wBlur[i] > 0.05) estimates.push(sqBlur[i] / wBlur[i]);
-  estimates.sort((a, b) => a - b);
-  const fallback = estimates.length > 0 ? estimates[estimates.length >> 1] : 0;
-  const out = hh;
-  for (let i = 0; i < n; i++) out[i] = wBlur[i] > 0.05 ? Math.max(0, sqBlur[i] / wBlur[i]) : fallback;
-  return out;
-}
+});
+
+/** The windowed mean square over pixels [start, end), or the fallback where the window held too few blocks. */
+const NOISE_RATIO = definePlaneKernel<{ sqBlur: Float32Array; wBlur: Float32Array; out: Float32Array; fallback: number }>("noise-ratio", (args, start, end) => {
+  const { sqBlur, wBlur, out, fallback } = args;
+  for (let i = start; i < end; i++) out[i] = wBlur[i] > 0.05 ? Math.max(0, sqBlur[i] / wBlur[i]) : fallback;
+});
+
+export const NOISE_KERNELS = [NOISE_DETAIL, NOISE_SQUARES, NOISE_RATIO];
 
 export interface StructureMaskOptions {
   lunarDisk?: LunarDisk;
@@ -99,11 +121,14 @@ export function createStructureMask(width: number, height: number, coverage: Uin
   const disk = options.lunarDisk;
   const r2 = disk ? disk.radiusPx * disk.radiusPx : -1;
   for (let y = 0; y < height; y++) {
+    // A row farther from the disk's centre than its radius has no pixel on it (a square is never negative).
+    const dy2 = disk ? (y - disk.y) ** 2 : 0;
+    const crossesDisk = disk !== undefined && dy2 <= r2;
     for (let x = 0; x < width; x++) {
       const i = y * width + x;
       if (!coverage[i]) continue;
       if (x < band || y < band || x >= width - band || y >= height - band) continue;
-      if (disk && (x - disk.x) ** 2 + (y - disk.y) ** 2 <= r2) continue;
+      if (crossesDisk && (x - disk.x) ** 2 + dy2 <= r2) continue;
       out[i] = 1;
     }
   }

@@ -1,11 +1,13 @@
 // Renditions for display: natural (tone-mapped light) and structure (a radial
 // filter scaled to 0..1), and quantizers for 16-bit PNG and 8-bit tiles.
 import { ImagingError, requireNumberInRange } from "./errors";
-import { computeLuminance, createSrgbEncoder, decodeSrgb, ditherPlaneInto, encodeSrgb } from "./srgb";
+import { applyStretch, NATURAL_PIXELS, RADIAL_BINS, RADIAL_GAIN, SCALE_BY_GAIN, type StretchCurve } from "./natural-kernels";
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
+import { computeLuminance, ditherPlaneInto, encodeSrgb } from "./srgb";
 import type { FilteredPlane } from "./radial";
 import type { PlaneImage } from "./types";
 
-export type StretchCurve = "asinh" | "log";
+export { applyShoulder, applyStretch, type StretchCurve } from "./natural-kernels";
 
 /** A ring about a centre, px: the brightest inner corona just outside the lunar limb. */
 export interface LimbRing {
@@ -53,6 +55,11 @@ export interface NaturalOptions {
   valid?: Uint8Array;
   /** The image's luminance when the caller already has it. */
   luminance?: Float32Array;
+  /**
+   * Runs the per-pixel steps (on the calling thread when absent): the same
+   * numbers with any runner. The rendition's planes are the runner's.
+   */
+  runner?: PlaneRunner;
 }
 
 export interface NaturalRendition {
@@ -61,26 +68,6 @@ export interface NaturalRendition {
   whitePoint: number;
   beta: number;
   curve: StretchCurve;
-}
-
-/**
- * Stretch curves on x in [0, 1]: asinh after Lupton et al. (1999), AJ 118:1406,
- * y = asinh(beta x) / asinh(beta); log, y = ln(1 + beta x) / ln(1 + beta).
- */
-export function applyStretch(x: number, beta: number, curve: StretchCurve): number {
-  if (x <= 0) return 0;
-  return curve === "asinh" ? Math.asinh(beta * x) / Math.asinh(beta) : Math.log1p(beta * x) / Math.log1p(beta);
-}
-
-/**
- * Highlight shoulder (our own, no published recipe): identity up to the knee k,
- * then y = k + (1 - k)(1 - exp(-(s - k) / (1 - k))), which meets the identity
- * with the same slope at k and approaches 1 without reaching it.
- */
-export function applyShoulder(s: number, knee: number): number {
-  if (s <= knee) return s;
-  if (knee >= 1) return 1;
-  return knee + (1 - knee) * (1 - Math.exp(-(s - knee) / (1 - knee)));
 }
 
 /**
@@ -155,24 +142,26 @@ export function measureWhiteFraction(image: PlaneImage, ring: LimbRing, threshol
  * Radial gain (P(r) / P(r0))^-alpha on the luminance about the ring's centre, r0
  * its inner radius: P is the mean valid luminance in rings 2 px wide, smoothed
  * over five rings and made non-increasing outwards (so a prominence or a
- * streamer does not dent the gain); 1 inside r0.
+ * streamer does not dent the gain); 1 inside r0. The rings' sums are taken on
+ * this thread in raster order (a float sum's rounding depends on its order);
+ * each pixel's ring before them, and its gain after, by the runner.
  */
-function computeRadialGain(lum: Float32Array, width: number, height: number, ring: LimbRing, alpha: number, valid?: Uint8Array): Float32Array {
+function computeRadialGain(lum: Float32Array, width: number, height: number, ring: LimbRing, alpha: number, valid: Uint8Array | undefined, runner: PlaneRunner): Float32Array {
   const { x: cx, y: cy, innerPx } = ring;
   const binPx = 2;
   const maxR = Math.hypot(Math.max(cx, width - cx), Math.max(cy, height - cy));
   const bins = Math.ceil(maxR / binPx) + 1;
+  const n = width * height;
+  // Each pixel's ring (-1 inside r0), in the gain's own buffer until the gain replaces it.
+  const gain = runner.float32(n, true);
+  runner.run(RADIAL_BINS, { bins: gain, width, cx, cy, innerPx, binPx }, height);
   const sum = new Float64Array(bins), count = new Float64Array(bins);
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const i = y * width + x;
-      if (valid && !valid[i]) continue;
-      const r = Math.hypot(x - cx, y - cy);
-      if (r < innerPx || !(lum[i] > 0)) continue;
-      const b = Math.floor(r / binPx);
-      sum[b] += lum[i];
-      count[b]++;
-    }
+  for (let i = 0; i < n; i++) {
+    if (valid && !valid[i]) continue;
+    const b = gain[i];
+    if (b < 0 || !(lum[i] > 0)) continue;
+    sum[b] += lum[i];
+    count[b]++;
   }
   const profile = new Float64Array(bins).fill(NaN);
   for (let b = 0; b < bins; b++) {
@@ -187,16 +176,11 @@ function computeRadialGain(lum: Float32Array, width: number, height: number, rin
     else if (Number.isFinite(last) && profile[b] > last) profile[b] = last;
     last = profile[b];
   }
-  const gain = new Float32Array(width * height).fill(1);
   const first = profile[Math.floor(innerPx / binPx)];
-  if (!(first > 0)) return gain;
-  const binGain = profile.map((p) => (p > 0 ? Math.pow(p / first, -alpha) : 1));
-  for (let y = 0; y < height; y++) {
-    for (let x = 0; x < width; x++) {
-      const r = Math.hypot(x - cx, y - cy);
-      if (r >= innerPx) gain[y * width + x] = binGain[Math.min(bins - 1, Math.floor(r / binPx))];
-    }
-  }
+  if (!(first > 0)) return gain.fill(1);
+  const binGain = runner.float64(bins, true);
+  for (let b = 0; b < bins; b++) binGain[b] = profile[b] > 0 ? Math.pow(profile[b] / first, -alpha) : 1;
+  runner.run(RADIAL_GAIN, { gain, binGain }, n);
   return gain;
 }
 
@@ -227,9 +211,15 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
   requireNumberInRange("radialCompression", alpha, 0, 0.95);
   if (alpha > 0 && !ring) throw new ImagingError("bad-parameter", "radialCompression needs limbRing (the centre to compress about)");
   const { width, height } = image;
+  const runner = options.runner ?? SERIAL_PLANE_RUNNER;
+  const n = width * height;
   const source = options.luminance ?? computeLuminanceOf(image);
-  const gain = alpha > 0 ? computeRadialGain(source, width, height, ring!, alpha, options.valid) : undefined;
-  const lum = gain ? source.map((v, i) => v * gain[i]) : source;
+  const gain = alpha > 0 ? computeRadialGain(source, width, height, ring!, alpha, options.valid, runner) : undefined;
+  let lum = source;
+  if (gain) {
+    lum = runner.float32(n, true);
+    runner.run(SCALE_BY_GAIN, { source, gain, lum }, n);
+  }
   const [autoBlack, autoWhite, median] = computePercentiles(lum, [options.blackPercentile ?? 1, options.whitePercentile ?? 99.99, 50], options.valid);
   const black = options.blackPoint ?? autoBlack;
   let white = options.whitePoint;
@@ -258,29 +248,14 @@ export function renderNatural(image: PlaneImage, options: NaturalOptions = {}): 
     beta = Math.exp((lo + hi) / 2);
   }
   if (!(beta > 0 && Number.isFinite(beta))) throw new ImagingError("bad-parameter", `beta must be positive, got ${beta}`);
-  const n = width * height;
-  const channels = image.planes.length;
-  const planes = image.planes.map(() => new Float32Array(n));
-  const encode = createSrgbEncoder();
-  const linear = new Float64Array(channels);
-  for (let i = 0; i < n; i++) {
-    const x = (lum[i] - black) / span;
-    const g = gain ? gain[i] : 1;
-    const factor = x > 0 ? (decodeSrgb(applyStretch(Math.min(x, 1e6), beta, curve)) / x) * g : 0;
-    let top = 0;
-    for (let c = 0; c < channels; c++) {
-      const v = ((image.planes[c][i] - black / g) / span) * factor;
-      linear[c] = v;
-      if (v > top) top = v;
-    }
-    // The shoulder acts on the brightest plane, and every plane follows it.
-    let fit = 1;
-    if (top > 0) {
-      const e = encodeSrgb(top);
-      if (e > knee) fit = decodeSrgb(applyShoulder(e, knee)) / top;
-    }
-    for (let c = 0; c < channels; c++) planes[c][i] = encode(linear[c] * fit);
-  }
+  // The linear planes are copied into the rendition's and turned into display values there.
+  const planes = image.planes.map((p) => {
+    const plane = runner.float32(n, true);
+    plane.set(p);
+    return plane;
+  });
+  runner.run(NATURAL_PIXELS, { planes, lum, gain, black, span, beta, curve, knee }, n);
+  runner.release(gain, lum === source ? undefined : lum);
   return { image: { width, height, planes }, blackPoint: black, whitePoint: white, beta, curve };
 }
 

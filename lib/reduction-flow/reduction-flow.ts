@@ -45,6 +45,7 @@ import type { CalibrationReport } from "@/lib/reduction-runner/calibration";
 import { checkSameEncoding, checkSameShape, describeDecodedFrame, describeMissingExposure, type FrameProvenance } from "@/lib/reduction-runner/decode-frames";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
 import { commitStagedOutput, createStagedOutput } from "@/lib/reduction-runner/output-dir";
+import { createPlanePool } from "@/lib/reduction-runner/plane-pool";
 import { checkOutputOptions, writeReductionOutputs } from "@/lib/reduction-runner/run-reduction";
 import { checkSkyOptions, computeHelioGeometry, type RunnerRegistrationMode, type SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
@@ -508,8 +509,15 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
         const survey = await cachedPiece<{ decoded: number[]; provenance: FrameProvenance[]; leftOut: FrameLeftOut[]; calibration: CalibrationReport }>(place, "survey");
         const sky = await getWork<SkyPiece>(place, "sky", dir);
         const plan = await cachedPiece<BracketPlan>(place, "plan");
-        const acc = await combineSlices(place, plan, "merge", sliceKept(plan.keep.length).length, dir);
-        const result = finishBracket(plan, acc, progress);
+        // The renditions on both cores, the same as on this thread alone (the pool's worker starts while the slices are read).
+        const planes = createPlanePool();
+        let result;
+        try {
+          const acc = await combineSlices(place, plan, "merge", sliceKept(plan.keep.length).length, dir);
+          result = finishBracket(plan, acc, progress, 0, planes);
+        } finally {
+          await planes.close();
+        }
         // Frames that could not be decoded are left out beside those the plan could not place.
         result.leftOut = [...survey.leftOut, ...result.leftOut];
         const helio = sky.skies && sky.sun ? computeHelioGeometry(sky.skies, sky.sun, result) : undefined;

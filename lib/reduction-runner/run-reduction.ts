@@ -18,6 +18,7 @@ import { checkFileList, decodeBracketFiles, type FrameProvenance } from "./decod
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
 import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
+import { createPlanePool } from "./plane-pool";
 import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "./prepare-pool";
 import { createWarpCache } from "./warp-cache";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput, type StagedOutput } from "./output-dir";
@@ -147,7 +148,14 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
   } finally {
     cache?.close();
   }
-  return finishBracket(plan, acc, progress, performance.now() - started);
+  // The renditions' per-pixel steps and blurs on both cores: this thread and the pool's worker
+  // (which starts while the merge is finished), with the same renditions as on this thread alone.
+  const planes = createPlanePool();
+  try {
+    return finishBracket(plan, acc, progress, performance.now() - started, planes);
+  } finally {
+    await planes.close();
+  }
 }
 
 /**

@@ -13,8 +13,10 @@
 // .cache/bench-outputs-6000x4000-<N>-from<K>-seed7/ (about 1 GB, a few minutes the first time).
 //
 // Run: node --expose-gc --import tsx scripts/bench/outputs-stages.ts [--first 3] [--frames 3]
-//        [--stages renditions,files,tiles,whole,store] [--out FILE.json] [--keep DIR]
+//        [--stages renditions,files,tiles,whole,store] [--out FILE.json] [--keep DIR] [--plane-workers N]
+// (--plane-workers 0: the renditions on this thread alone; default the runner's pool, plane-pool.ts.)
 // (`--cpu-prof` before --import for a profile; --keep DIR leaves the written folder there to compare.)
+import { createHash } from "node:crypto";
 import { cpSync, existsSync, mkdirSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { readdir, stat } from "node:fs/promises";
 import { loadavg, tmpdir } from "node:os";
@@ -30,6 +32,7 @@ import { decodeWork, encodeWork } from "@/lib/reduction-flow/work-blob";
 import type { FrameProvenance } from "@/lib/reduction-runner/decode-frames";
 import { writeMasterSummary } from "@/lib/reduction-runner/master-summary";
 import { createStagedOutput, commitStagedOutput } from "@/lib/reduction-runner/output-dir";
+import { createPlanePool, PLANE_WORKERS } from "@/lib/reduction-runner/plane-pool";
 import { writeReductionOutputs } from "@/lib/reduction-runner/run-reduction";
 import { createHalvingCache, writeMasterFits, writePreview, writeRenditionPng, writeRenditionTiles, RENDITIONS } from "@/lib/reduction-runner/write-outputs";
 import { BENCH_HEIGHT, BENCH_SEED, BENCH_WIDTH, prepareBenchBracket } from "./bench-bracket";
@@ -43,10 +46,12 @@ interface Args {
   stages: Set<string>;
   out?: string;
   keep?: string;
+  /** Worker threads of the renditions' plane pool; 0 renders on this thread alone. */
+  planeWorkers: number;
 }
 
 function readArgs(argv: string[]): Args {
-  const args: Args = { first: 3, frames: 3, stages: new Set(ALL_STAGES.filter((s) => s !== "store")) };
+  const args: Args = { first: 3, frames: 3, stages: new Set(ALL_STAGES.filter((s) => s !== "store")), planeWorkers: PLANE_WORKERS };
   for (let k = 0; k < argv.length; k++) {
     const value = argv[k + 1];
     if (argv[k] === "--first") args.first = Number(value);
@@ -54,11 +59,14 @@ function readArgs(argv: string[]): Args {
     else if (argv[k] === "--stages") args.stages = new Set(value.split(","));
     else if (argv[k] === "--out") args.out = value;
     else if (argv[k] === "--keep") args.keep = value;
+    else if (argv[k] === "--plane-workers") args.planeWorkers = Number(value);
     else continue;
     k++;
   }
   const unknown = [...args.stages].filter((s) => !ALL_STAGES.includes(s));
-  if (unknown.length > 0 || !(args.frames >= 2)) throw new Error(`usage: outputs-stages.ts [--first K] [--frames N >= 2] [--stages ${ALL_STAGES.join(",")}] [--out FILE.json] [--keep DIR]`);
+  if (unknown.length > 0 || !(args.frames >= 2) || !(Number.isInteger(args.planeWorkers) && args.planeWorkers >= 0)) {
+    throw new Error(`usage: outputs-stages.ts [--first K] [--frames N >= 2] [--stages ${ALL_STAGES.join(",")}] [--out FILE.json] [--keep DIR] [--plane-workers N >= 0]`);
+  }
   return args;
 }
 
@@ -139,6 +147,13 @@ function createStageClock(sampler: MemorySampler) {
   };
 }
 
+/** SHA-256 of planes' bytes in order: two versions of the renditions' code compare by it. */
+function hashPlanes(planes: ArrayBufferView[]): string {
+  const hash = createHash("sha256");
+  for (const p of planes) hash.update(new Uint8Array(p.buffer, p.byteOffset, p.byteLength));
+  return hash.digest("hex");
+}
+
 async function folderBytes(dir: string): Promise<{ files: number; bytes: number }> {
   let files = 0, bytes = 0;
   for (const e of await readdir(dir, { withFileTypes: true, recursive: true })) {
@@ -157,18 +172,34 @@ async function main(): Promise<void> {
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-outputs-stages-"));
   const extra: Record<string, unknown> = {};
   try {
+    // The renditions' pool as the runner and the flow start it, up before the clock starts.
+    const planes = args.planeWorkers > 0 ? createPlanePool({ workers: args.planeWorkers }) : undefined;
+    extra.planeWorkersUp = await planes?.ready();
     clock.settle();
     // The renditions always run: every later stage writes them.
-    const result: ReductionResult = finishMergedBracket(saved.plan, saved.merged, (stage, fraction) => {
-      if (stage !== "renditions") return;
-      if (fraction === 0) clock.start("structure rendition");
-      else if (fraction === 0.5) clock.start("natural rendition");
-      else if (fraction === 1) clock.close();
-    });
+    let result: ReductionResult;
+    try {
+      result = finishMergedBracket(saved.plan, saved.merged, (stage, fraction) => {
+        if (stage !== "renditions") return;
+        if (fraction === 0) clock.start("structure rendition");
+        else if (fraction === 0.5) clock.start("natural rendition");
+        else if (fraction === 1) clock.close();
+      }, 0, planes);
+    } finally {
+      extra.planePieces = planes?.counts();
+      await planes?.close();
+    }
     clock.settle();
     const natural = result.natural;
     const structure = result.structure;
     extra.natural = result.overall.natural;
+    // What the renditions and the finish report, timings aside: equal hashes mean the same output bit for bit.
+    const { timingsMs: _timings, ...figures } = result.overall;
+    extra.hashes = {
+      structure: hashPlanes(structure.planes),
+      natural: hashPlanes(natural.planes),
+      figures: createHash("sha256").update(JSON.stringify({ figures, frames: result.frames, coverage: hashPlanes([result.coverage]), master: hashPlanes(result.master.planes) })).digest("hex"),
+    };
     const dir = join(scratch, "files");
     mkdirSync(dir, { recursive: true });
     const halve = createHalvingCache();
@@ -245,6 +276,8 @@ async function main(): Promise<void> {
   for (const r of clock.rows) {
     console.log(`${r.stage.padEnd(40)} ${(r.wallMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / 1000).toFixed(2).padStart(7)} s ${(r.cpuMs / r.wallMs).toFixed(2).padStart(5)} ${r.peakMb.toFixed(0).padStart(6)} MB`);
   }
+  console.log(`hashes: ${JSON.stringify(extra.hashes)}; natural ${JSON.stringify(extra.natural)}`);
+  console.log(`plane pool: ${args.planeWorkers} worker(s) asked, ${extra.planeWorkersUp ?? 0} up; pieces ${JSON.stringify(extra.planePieces ?? {})}`);
   if (extra.separateFolder) console.log(`files written one by one: ${JSON.stringify(extra.separateFolder)}`);
   if (extra.whole) console.log(`writeReductionOutputs: ${JSON.stringify(extra.whole)}`);
   if (args.out) writeFileSync(args.out, `${JSON.stringify({ rows: clock.rows, ...extra }, null, 2)}\n`);
