@@ -258,11 +258,22 @@ export function sampleScoreBand(acc: MergeAccumulator, band: MergeFrameInput, of
   for (let i = Math.ceil(offset / step) * step; i < offset + len; i += step) sampleScoreAt(acc.pilot, band, i, i - offset, read2, tally);
 }
 
-/** The master pixels at which sampleScoreBand samples a frame's scores, in order (the same for every frame of a pass). */
+/** The sample's pixels of each pass, made once (they depend on the master's size alone). */
+const samplePixelsOf = new WeakMap<MergeAccumulator, Int32Array>();
+
+/**
+ * The master pixels at which sampleScoreBand samples a frame's scores, in order
+ * (the same for every frame of a pass: one array a pass, not to be written).
+ */
 export function listScoreSamplePixels(acc: MergeAccumulator): Int32Array {
-  const step = scoreSampleStep(acc);
-  const n = acc.width * acc.height;
-  return Int32Array.from({ length: Math.ceil(n / step) }, (_, j) => j * step);
+  let pixels = samplePixelsOf.get(acc);
+  if (!pixels) {
+    const step = scoreSampleStep(acc);
+    pixels = new Int32Array(Math.ceil((acc.width * acc.height) / step));
+    for (let j = 0; j < pixels.length; j++) pixels[j] = j * step;
+    samplePixelsOf.set(acc, pixels);
+  }
+  return pixels;
 }
 
 /**
