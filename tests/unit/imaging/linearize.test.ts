@@ -67,6 +67,18 @@ describe("repairing defects for a warp", () => {
     expect(Array.from(out)).toEqual([1, 2, 3, 4, 5, 5, 8, 8, 9, 10, 11, 11]);
   });
 
+  it("finds defects four pixels at a time as it does one at a time: after the last whole word, and in a map not aligned to words", () => {
+    // 5 x 3: the last pixel lies beyond the three whole words; the shifted map is read byte by byte.
+    const wide = Float32Array.from([1, 2, 3, 4, 5, 6, 70, 8, 9, 10, 11, 12, 13, 14, 1e6]);
+    const defects = Uint8Array.from([0, 0, 0, 0, 0, 0, 1, 0, 0, 0, 0, 0, 0, 0, 1]);
+    // Pixel 6 (x 1, y 1): 1, 2, 3, 8, 11, 12, 13, 6 -> sorted 1 2 3 6 8 11 12 13, upper median 8. Pixel 14 (x 4, y 2): 9, 10, 14 -> 10.
+    const expected = [1, 2, 3, 4, 5, 6, 8, 8, 9, 10, 11, 12, 13, 14, 10];
+    expect(Array.from(repairDefects(wide, defects, 5, 3))).toEqual(expected);
+    const shifted = new Uint8Array(16).subarray(1);
+    shifted.set(defects);
+    expect(Array.from(repairDefects(wide, shifted, 5, 3))).toEqual(expected);
+  });
+
   it("patchDefects gives the same plane in place and puts the defects' values back", () => {
     const p = plane();
     const restore = patchDefects(p, masked, 4, 3);

@@ -148,9 +148,10 @@ describe("selection and box means", () => {
 });
 
 describe("dilation by the 3 x 3 square", () => {
-  it.each([[23, 17], [1, 9], [9, 1], [1, 1]])("equals the brute-force dilation at %i x %i", (width, height) => {
+  // Widths of whole 32-bit words take the four-pixels-at-a-time path, where any non-zero byte counts as set.
+  it.each([[23, 17], [1, 9], [9, 1], [1, 1], [24, 17], [4, 3], [8, 1], [4, 1]])("equals the brute-force dilation at %i x %i", (width, height) => {
     const rng = createRng(width * 31 + height);
-    const mask = Uint8Array.from({ length: width * height }, () => (rng() < 0.06 ? 1 : 0));
+    const mask = Uint8Array.from({ length: width * height }, () => (rng() < 0.06 ? (rng() < 0.5 ? 1 : 128 + Math.floor(rng() * 128)) : 0));
     mask[0] = 1;
     const expected = new Uint8Array(width * height);
     for (let y = 0; y < height; y++) {
@@ -167,6 +168,10 @@ describe("dilation by the 3 x 3 square", () => {
     expect(dilateMask(mask, width, height, 1.5)).toEqual(expected);
     const scratch: [Uint8Array, Uint8Array] = [new Uint8Array(width * height).fill(7), new Uint8Array(width * height).fill(7)];
     expect(dilateMask(mask, width, height, 1, scratch)).toEqual(expected);
+    // A mask that starts one byte into its buffer goes pixel by pixel: the same result.
+    const shifted = new Uint8Array(width * height + 1).subarray(1);
+    shifted.set(mask);
+    expect(dilateMask(shifted, width, height, 1)).toEqual(expected);
   });
 });
 
@@ -209,39 +214,75 @@ describe("the bicubic warp", () => {
   });
 });
 
-describe("the merge's second pass", () => {
-  it("lists in its worst-frame record exactly the pixels whose plain outlier score passes the wing", () => {
+describe("the merge's passes", () => {
+  // Three planes go through loops written out for three (merge.ts); one plane through the general ones.
+  it.each([1, 3])("in %i plane(s): sums, weights and the worst-frame record follow the plain rule, pixel by pixel", (channels) => {
     // Four frames of a smooth scene at one level, photon noise, a few bright hits (trails, cosmic rays) and dark dips.
     const width = 80, height = 60, n = width * height;
     const exposures = [0.01, 0.02, 0.02, 0.04];
     const rng = createRng(7);
     const scene = Float32Array.from({ length: n }, (_, i) => 4e4 + 3e3 * Math.sin(i / 97));
     const frames: MergeFrameInput[] = exposures.map((t, f) => {
-      const plane = Float32Array.from(scene, (e) => {
-        const y = e * t;
-        return y + Math.sqrt(y) * 2 * (rng() + rng() + rng() - 1.5);
+      const planes = Array.from({ length: channels }, (_, c) => {
+        const plane = Float32Array.from(scene, (e) => {
+          const y = e * t * (1 - 0.1 * c);
+          return y + Math.sqrt(y) * 2 * (rng() + rng() + rng() - 1.5);
+        });
+        for (let hit = 0; hit < 40; hit++) plane[Math.floor(rng() * n)] *= rng() < 0.7 ? 1.05 + rng() * 0.2 : 0.9;
+        return plane;
       });
-      for (let hit = 0; hit < 40; hit++) plane[Math.floor(rng() * n)] *= rng() < 0.7 ? 1.05 + rng() * 0.2 : 0.9;
-      return { planes: [plane], exposureS: t, clipped: new Uint8Array(n), noiseFloor: new Uint8Array(n), clipLevel: 6e4, noiseSigma: 3 + f };
+      return { planes, exposureS: t, clipped: new Uint8Array(n), noiseFloor: new Uint8Array(n), clipLevel: 6e4, noiseSigma: 3 + f };
     });
-    const first = createMergeAccumulator(width, height, 1, "photon");
+    const first = createMergeAccumulator(width, height, channels, "photon");
     for (const f of frames) addFrameToMerge(first, f);
     const pilot = toPilot(first);
-    const second = createMergeAccumulator(width, height, 1, "photon", undefined, pilot);
+    const second = createMergeAccumulator(width, height, channels, "photon", undefined, pilot);
     for (const f of frames) addFrameToMerge(second, f);
 
-    // The plain rule (merge.ts): leave-one-out z, its scale the frame's 1.4826 MAD of |z| at the
-    // sampled pixels (every pixel here), negative z at 0.6; the record keeps the worst frame above 2.5.
+    // Every value sits below 0.6 of the clip level: the clip taper is 1. The first pass adds the
+    // counts (float32 sums) and the exposures (float64); the second weighs each frame by its noise
+    // share t E / (t E + sigma_r^2) at the pilot's radiance E (its middle plane of three), as float32.
+    const lum = pilot.sums[channels === 3 ? 1 : 0];
+    for (const i of [0, 1, 17, 2401, n - 1]) {
+      let exposure = 0;
+      const sums = new Float32Array(channels), sums2 = new Float32Array(channels);
+      let exposure2 = 0;
+      for (const f of frames) {
+        exposure += f.exposureS;
+        const expected = (f.exposureS * lum[i]) / pilot.weights[i];
+        const w = Math.fround(expected / (expected + f.noiseSigma! ** 2));
+        exposure2 += w * f.exposureS;
+        for (let c = 0; c < channels; c++) {
+          sums[c] += f.planes[c][i];
+          sums2[c] += w * f.planes[c][i];
+        }
+      }
+      expect(first.weights[0][i]).toBe(exposure);
+      expect(second.weights[0][i]).toBe(exposure2);
+      for (let c = 0; c < channels; c++) {
+        expect(first.sums[c][i]).toBe(sums[c]);
+        expect(second.sums[c][i]).toBe(sums2[c]);
+      }
+    }
+
+    // The plain rule (merge.ts): leave-one-out z on each plane, the worst plane's kept (the first of
+    // equal magnitude); its scale the frame's 1.4826 MAD of |z| at the sampled pixels (every pixel
+    // here), negative z at 0.6; the record keeps the worst frame above 2.5.
     const scores = frames.map((f) => {
       const t = f.exposureS, read2 = f.noiseSigma! ** 2;
       const z = Array.from({ length: n }, (_, i) => {
-        const y = f.planes[0][i];
-        const taper = 1; // every value sits below 0.6 of the clip level
+        const taper = 1;
         const tLoo = pilot.weights[i] - taper * t;
         if (!(tLoo > 1e-3 * t)) return 0;
-        const eLoo = (pilot.sums[0][i] - taper * y) / tLoo;
-        const variance = Math.max(t * eLoo, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
-        return Math.fround((y - t * eLoo) / Math.sqrt(variance));
+        let worst = 0;
+        for (let c = 0; c < channels; c++) {
+          const y = f.planes[c][i];
+          const eLoo = (pilot.sums[c][i] - taper * y) / tLoo;
+          const variance = Math.max(t * eLoo, 0) + read2 + (t * t * Math.max(eLoo, 0)) / tLoo + 1e-6;
+          const zc = (y - t * eLoo) / Math.sqrt(variance);
+          if (Math.abs(zc) > Math.abs(worst)) worst = zc;
+        }
+        return Math.fround(worst);
       });
       const sorted = Float32Array.from(z.filter((v) => v !== 0).map(Math.abs)).sort();
       const scale = Math.max(0.25, 1.4826 * sorted[sorted.length >> 1]);
@@ -249,14 +290,15 @@ describe("the merge's second pass", () => {
     });
     const expected: number[] = [];
     for (let i = 0; i < n; i++) if (frames.some((_, f) => scores[f][i] > 2.5)) expected.push(i);
-    expect(expected.length).toBeGreaterThan(20);
+    expect(expected.length).toBeGreaterThan(20 * channels);
     const worst = second.worst!;
     expect(Array.from(worst.pixel)).toEqual(expected);
     for (let j = 0; j < worst.pixel.length; j++) {
       const i = worst.pixel[j];
       const best = Math.max(...scores.map((s) => s[i]));
       expect(worst.score[j]).toBe(best);
-      expect(worst.frame[j]).toBe(scores.findIndex((s) => s[i] === best));
+      const f = scores.findIndex((s) => s[i] === best);
+      expect(worst.frame[j]).toBe(f);
     }
   });
 });
