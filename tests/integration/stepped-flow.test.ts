@@ -72,10 +72,14 @@ async function startToyRun(config: ToyConfig): Promise<{ runId: string; jobId: s
 
 async function finished(jobId: string): Promise<Record<string, FlowValue>> {
   return waitFor("the toy flow to finish", async () => {
-    const job = await queue.getJob(jobId);
-    const state = await job?.getState();
-    if (state === "failed") throw new Error(`the toy flow failed: ${job!.failedReason}`);
-    return state === "completed" ? (job!.returnvalue as Record<string, FlowValue>) : undefined;
+    // The state first, then the job: BullMQ stores the return value and moves the job to completed in
+    // one step, so a job read after its state says completed has its value. (Read the other way round,
+    // a job that finished between the two reads came back completed with no value.)
+    const state = await queue.getJobState(jobId);
+    if (state !== "completed" && state !== "failed") return undefined;
+    const job = (await queue.getJob(jobId))!;
+    if (state === "failed") throw new Error(`the toy flow failed: ${job.failedReason}`);
+    return job.returnvalue as Record<string, FlowValue>;
   }, 240_000, 100);
 }
 
