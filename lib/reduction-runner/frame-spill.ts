@@ -13,7 +13,9 @@ import { join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
 
 type Typed = Float32Array | Uint8Array | Uint16Array;
-type Kind = "f32" | "u8" | "u16";
+/** How an array is kept on disk; "f32-u16" is a float32 array of whole counts 0 to 65535 kept as uint16, half the bytes. */
+export type SpillKind = "f32" | "f32-u16" | "u8" | "u16";
+type Kind = SpillKind;
 
 interface Entry {
   path: string;
@@ -32,17 +34,24 @@ export interface FrameSpill {
    * to read itself (each file holds the array's bytes, nothing else); undefined
    * when the field is not spilled so.
    */
-  filesOf: <T extends object>(obj: T, field: keyof T & string) => { path: string; length: number }[] | undefined;
+  filesOf: <T extends object>(obj: T, field: keyof T & string) => SpilledFile[] | undefined;
   /**
    * Sets the byte budget of the in-memory cache and trims it to fit. A stage that
    * reads each frame once in order (the merge passes) gains nothing from a large
    * cache, and the bytes held are bytes the merge's accumulators need.
    */
   setCacheBytes: (bytes: number) => void;
-  /** Bytes written so far and read back from disk (cache misses). */
+  /** Bytes written to disk so far and read back from it (cache misses), as stored (whole counts in 16 bits). */
   stats: () => { writtenBytes: number; readBytes: number; cachedBytes: number };
   /** Deletes the files. */
   close: () => void;
+}
+
+/** A spilled array's file, for another thread to read with readSpilledFile. */
+export interface SpilledFile {
+  path: string;
+  kind: SpillKind;
+  length: number;
 }
 
 export interface FrameSpillOptions {
@@ -55,10 +64,29 @@ export interface FrameSpillOptions {
 /** Default in-memory cache: a few frames' luminance and masks at 24 megapixels. */
 export const DEFAULT_SPILL_CACHE_BYTES = 512 * 1024 ** 2;
 
+/** True when every value is a whole number from 0 to 65535 (a decoded frame's counts before calibration). */
+function holdsWholeCounts(array: Float32Array): boolean {
+  for (let i = 0; i < array.length; i++) {
+    const v = array[i];
+    // NaN fails the first test.
+    if (!(v >= 0 && v <= 65535) || v !== Math.floor(v)) return false;
+  }
+  return true;
+}
+
 function kindOf(array: Typed): Kind {
-  if (array instanceof Float32Array) return "f32";
+  if (array instanceof Float32Array) return holdsWholeCounts(array) ? "f32-u16" : "f32";
   if (array instanceof Uint16Array) return "u16";
   return "u8";
+}
+
+/** The bytes written for an array of that kind. */
+function bytesOnDisk(array: Typed, kind: Kind): Uint8Array {
+  if (kind === "f32-u16") {
+    const counts = Uint16Array.from(array);
+    return new Uint8Array(counts.buffer);
+  }
+  return new Uint8Array(array.buffer, array.byteOffset, array.byteLength);
 }
 
 function view(buffer: Buffer, kind: Kind, length: number): Typed {
@@ -68,8 +96,14 @@ function view(buffer: Buffer, kind: Kind, length: number): Typed {
   const owned = buffer.byteOffset === 0 && buffer.buffer.byteLength === buffer.byteLength;
   const bytes = owned ? new Uint8Array(buffer.buffer, 0, buffer.byteLength) : Uint8Array.from(buffer);
   if (kind === "f32") return new Float32Array(bytes.buffer, 0, length);
+  if (kind === "f32-u16") return Float32Array.from(new Uint16Array(bytes.buffer, 0, length));
   if (kind === "u16") return new Uint16Array(bytes.buffer, 0, length);
   return bytes.subarray(0, length);
+}
+
+/** Reads a spilled array's file (filesOf) as the array that was spilled. */
+export function readSpilledFile(file: SpilledFile): Typed {
+  return view(readFileSync(file.path), file.kind, file.length);
 }
 
 export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
@@ -99,9 +133,11 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   const put = (array: Typed): number => {
     const key = entries.length;
     const path = join(dir, `${key}.bin`);
-    writeFileSync(path, new Uint8Array(array.buffer, array.byteOffset, array.byteLength));
-    entries.push({ path, kind: kindOf(array), length: array.length });
-    writtenBytes += array.byteLength;
+    const kind = kindOf(array);
+    const bytes = bytesOnDisk(array, kind);
+    writeFileSync(path, bytes);
+    entries.push({ path, kind, length: array.length });
+    writtenBytes += bytes.byteLength;
     return key;
   };
 
@@ -114,8 +150,9 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     }
     const entry = entries[key];
     if (!entry) throw new Error(`spilled array ${key} does not exist`);
-    const array = view(readFileSync(entry.path), entry.kind, entry.length);
-    readBytes += array.byteLength;
+    const bytes = readFileSync(entry.path);
+    readBytes += bytes.byteLength;
+    const array = view(bytes, entry.kind, entry.length);
     remember(key, array);
     return array;
   };
@@ -149,8 +186,8 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
 
   const filesOf = <T extends object>(obj: T, field: keyof T & string) => {
     const keys = listed.get(obj)?.get(field);
-    if (!keys || keys.some((k) => entries[k].kind !== "f32")) return undefined;
-    return keys.map((k) => ({ path: entries[k].path, length: entries[k].length }));
+    if (!keys || keys.some((k) => entries[k].kind !== "f32" && entries[k].kind !== "f32-u16")) return undefined;
+    return keys.map((k) => ({ path: entries[k].path, kind: entries[k].kind, length: entries[k].length }));
   };
 
   return {
@@ -177,6 +214,79 @@ export function spillPrepared(spill: FrameSpill, prepared: PreparedFrame): Prepa
   for (const field of ["luminance", "clipped", "noiseFloor", "masked", "planes"] as const) spill.spillField(linear, field);
   if (!shared) spill.spillField(prepared, "luminance");
   else {
+    Object.defineProperty(prepared, "luminance", {
+      configurable: true,
+      enumerable: true,
+      get: () => linear.luminance,
+      set: (next: Float32Array) => Object.defineProperty(prepared, "luminance", { value: next, writable: true, configurable: true, enumerable: true }),
+    });
+  }
+  return prepared;
+}
+
+/**
+ * Prepared frames made again from their frames when read, the most recent few kept
+ * (least recently used first out), shared by a reduction's frames.
+ */
+export interface RemadeFrames {
+  /** The frame made again by `make`, or the copy kept from the last time. */
+  get: (key: object, make: () => PreparedFrame) => PreparedFrame;
+  /** How many frames were made again. */
+  stats: () => { made: number };
+  clear: () => void;
+}
+
+export function createRemadeFrames(capacity = 2): RemadeFrames {
+  // Map keeps insertion order: the first key is the least recently used.
+  const kept = new Map<object, PreparedFrame>();
+  let made = 0;
+  return {
+    get(key, make) {
+      const hit = kept.get(key);
+      if (hit) {
+        kept.delete(key);
+        kept.set(key, hit);
+        return hit;
+      }
+      const fresh = make();
+      made++;
+      kept.set(key, fresh);
+      for (const k of kept.keys()) {
+        if (kept.size <= capacity) break;
+        kept.delete(k);
+      }
+      return fresh;
+    },
+    stats: () => ({ made }),
+    clear: () => kept.clear(),
+  };
+}
+
+/**
+ * Lets a prepared frame's pixel arrays (luminance, clipped and noise-floor masks, and
+ * an encoded frame's linear planes) go, and makes them again from the frame when a
+ * stage reads them: `make` must linearize as the first preparation did, so that
+ * the arrays are the same, bit for bit. For brackets whose prepared arrays would not
+ * fit on the scratch disk beside their frames. The defect mask stays (the bracket's
+ * one map), and a field assigned later keeps its new value, as a spilled one does.
+ */
+export function remakePreparedOnRead(prepared: PreparedFrame, make: () => PreparedFrame, remade: RemadeFrames): PreparedFrame {
+  const { linear } = prepared;
+  // Read before the fields turn into getters, which would make the frame again.
+  const shared = prepared.luminance === linear.luminance;
+  const fresh = () => remade.get(prepared, make).linear;
+  const fields: ("luminance" | "clipped" | "noiseFloor" | "planes")[] = ["luminance", "clipped", "noiseFloor"];
+  if (linear.planes.length > 0) fields.push("planes");
+  for (const field of fields) {
+    Object.defineProperty(linear, field, {
+      configurable: true,
+      enumerable: true,
+      get: () => fresh()[field],
+      set: (next: unknown) => Object.defineProperty(linear, field, { value: next, writable: true, configurable: true, enumerable: true }),
+    });
+  }
+  // The frame's luminance is the linearized frame's (prepareFrame shares them); one kept apart stays in memory.
+  if (shared) {
     Object.defineProperty(prepared, "luminance", {
       configurable: true,
       enumerable: true,

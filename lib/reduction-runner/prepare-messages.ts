@@ -3,9 +3,10 @@ import type { DecodedFrame } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
 import type { RegistrationPairOutcome, RegistrationPairTask } from "@/lib/imaging/register";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
+import type { SpilledFile } from "./frame-spill";
 
 /** Where a frame's planes are for a worker: the arrays themselves, or spilled files it reads (frame-spill.ts). */
-export type PlaneSource = { planes: Float32Array[] } | { files: { path: string; length: number }[] };
+export type PlaneSource = { planes: Float32Array[] } | { files: SpilledFile[] };
 
 export type PrepareRequest =
   /** Decode a file; with findOutliers, also the frame's part of the bracket's defect search. */

@@ -14,6 +14,7 @@ import type { DecodedFrame } from "@/lib/media";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
 import type { RegistrationPairOutcome, RegistrationPairTask } from "@/lib/imaging/register";
 import type { LinearFrame, ReductionParams } from "@/lib/imaging/types";
+import type { SpilledFile } from "./frame-spill";
 import type { PlaneSource, PrepareReply, PrepareRequest } from "./prepare-messages";
 
 /** Workers in the pool: the machines have two cores. */
@@ -33,7 +34,7 @@ export interface PreparePool {
    * `files` are the frame's planes spilled to disk, which the worker reads itself
    * (else the planes are copied to it). Undefined when the worker could not.
    */
-  prepare(frame: LinearFrame, params: ReductionParams, files?: { path: string; length: number }[]): Promise<PreparedFrame | undefined>;
+  prepare(frame: LinearFrame, params: ReductionParams, files?: SpilledFile[]): Promise<PreparedFrame | undefined>;
   /** refineRegistrationPair(task) in a worker (the task's images are copied to it); undefined when the worker could not. */
   registerPair(task: RegistrationPairTask): Promise<RegistrationPairOutcome | undefined>;
   close(): Promise<void>;

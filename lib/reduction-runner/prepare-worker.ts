@@ -3,7 +3,6 @@
 // prepareFrame on a frame, or compares one pair of a registration, then hands
 // every array back by transfer, so nothing is copied. Any fault is answered with ok: false and the caller redoes the work
 // on its own thread, where the error keeps its class and message.
-import { readFileSync } from "node:fs";
 import { parentPort } from "node:worker_threads";
 import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
@@ -11,16 +10,12 @@ import { refineRegistrationPair } from "@/lib/imaging/register";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
+import { readSpilledFile } from "./frame-spill";
 import { collectTransferables, type PlaneSource, type PrepareReply, type PrepareRequest } from "./prepare-messages";
 
 function readPlanes(source: PlaneSource): Float32Array[] {
   if ("planes" in source) return source.planes;
-  return source.files.map(({ path, length }) => {
-    const bytes = readFileSync(path);
-    // A large file's buffer owns its memory from offset 0; a small one may sit unaligned in a shared pool.
-    const owned = bytes.byteOffset === 0 && bytes.buffer.byteLength === bytes.byteLength;
-    return new Float32Array(owned ? bytes.buffer : Uint8Array.from(bytes).buffer, 0, length);
-  });
+  return source.files.map((file) => readSpilledFile(file) as Float32Array);
 }
 
 async function handle(request: PrepareRequest): Promise<PrepareReply> {

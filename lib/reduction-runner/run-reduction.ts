@@ -3,12 +3,15 @@
 // worker's reduction job later. Output goes to a staging folder that is renamed
 // into place only when everything is written; on any failure it is removed, so
 // a failed run leaves nothing behind and never touches an earlier reduction.
-import { stat, writeFile } from "node:fs/promises";
+import { stat, statfs, writeFile } from "node:fs/promises";
+import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
 import type { MergeAccumulator } from "@/lib/imaging/merge";
 import { planBracketOnThreads } from "@/lib/imaging/bracket-plan";
+import { prepareFrameWithLimb } from "@/lib/imaging/frame-stage";
 import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
+import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { computeScaledSize, scaleImageLinear } from "@/lib/imaging/pyramid";
 import { DEFAULT_REDUCTION_PARAMS, FILTER_STRENGTH_RANGE, type FrameCount, type PlaneImage, type ReductionParams } from "@/lib/imaging/types";
@@ -17,7 +20,7 @@ import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles, type FrameProvenance } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
-import { createFrameSpill, spillPrepared, type FrameSpill } from "./frame-spill";
+import { createFrameSpill, createRemadeFrames, remakePreparedOnRead, spillPrepared, type FrameSpill, type RemadeFrames } from "./frame-spill";
 import { createPlanePool } from "./plane-pool";
 import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "./prepare-pool";
 import { createWarpCache } from "./warp-cache";
@@ -77,6 +80,14 @@ export interface RunReductionOptions {
    * when the files together exceed SPILL_ABOVE_FILE_BYTES.
    */
   spill?: "auto" | "always" | "never";
+  /**
+   * With frames kept on disk, where their prepared arrays (luminance, clipped and
+   * noise-floor masks; about 6 bytes a pixel) live between stages: "on-disk" beside the
+   * frames, "made-again" from each frame when a stage reads them (the same bits, more
+   * CPU, no disk), or "auto" (the default): on disk when they take at most half of the
+   * scratch folder's free space.
+   */
+  preparedFrames?: "auto" | "on-disk" | "made-again";
   /** Folder for that scratch data; default the system's temporary folder. */
   scratchDir?: string;
 }
@@ -98,9 +109,37 @@ async function openSpill(options: RunReductionOptions): Promise<FrameSpill | und
   return createFrameSpill({ parentDir: options.scratchDir, cacheBytes: 0 });
 }
 
+/** Bytes a frame's prepared arrays take on disk: luminance (float32), clipped and noise-floor masks, and an encoded frame's linear planes. */
+function preparedBytesOf(frame: LinearFrame): number {
+  const pixels = frame.image.width * frame.image.height;
+  return pixels * (4 + 1 + 1 + (frame.encoding === "linear" ? 0 : 4 * frame.image.planes.length));
+}
+
+/** Where the prepared arrays of a spilled reduction live (RunReductionOptions.preparedFrames). */
+async function choosePreparedFrames(options: RunReductionOptions, frames: readonly LinearFrame[]): Promise<"on-disk" | "made-again"> {
+  const asked = options.preparedFrames ?? "auto";
+  if (asked !== "auto") return asked;
+  const needed = frames.reduce((sum, f) => sum + preparedBytesOf(f), 0);
+  const fs = await statfs(options.scratchDir ?? tmpdir()).catch(() => undefined);
+  // No figure for the free space: kept on disk, as before there was a choice.
+  if (!fs) return "on-disk";
+  return needed <= (fs.bavail * fs.bsize) / 2 ? "on-disk" : "made-again";
+}
+
 export interface RunReductionResult {
   outDir: string;
   report: ReductionReport;
+  /** Where the frames lived between stages: for the bench and the command line's summary. */
+  scratch: ScratchSummary;
+}
+
+export interface ScratchSummary {
+  /** Frames kept in a scratch folder on local disk ("on-disk" prepared arrays beside them), or all in memory. */
+  preparedFrames: "in-memory" | "on-disk" | "made-again";
+  /** Bytes written to the scratch folder's frame files. */
+  writtenBytes: number;
+  /** Prepared frames made again from their frames ("made-again" only). */
+  framesMadeAgain: number;
 }
 
 /** Refuses a filter strength or output size out of range before anything is decoded, naming the option. */
@@ -164,8 +203,16 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
  * spilled frame's planes are read by the worker from their files). A frame the
  * pool could not do stays undefined, and the pipeline prepares it itself.
  */
-async function prepareFramesInPool(pool: PreparePool, frames: LinearFrame[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined): Promise<(PreparedFrame | undefined)[]> {
+async function prepareFramesInPool(pool: PreparePool, frames: LinearFrame[], params: ReductionParams, progress: RunProgressFn, spill: FrameSpill | undefined, remade: RemadeFrames | undefined): Promise<(PreparedFrame | undefined)[]> {
   progress("linearize", 0);
+  const keep = (frame: LinearFrame, ready: PreparedFrame): PreparedFrame => {
+    if (remade) {
+      const table = frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined;
+      // The pool's prepareFrame linearized with these same arguments; the limb it fitted is kept.
+      return remakePreparedOnRead(ready, () => prepareFrameWithLimb(frame, params, ready.limb, table), remade);
+    }
+    return spill ? spillPrepared(spill, ready) : ready;
+  };
   const prepared: (PreparedFrame | undefined)[] = new Array(frames.length).fill(undefined);
   let next = 0;
   let done = 0;
@@ -173,7 +220,7 @@ async function prepareFramesInPool(pool: PreparePool, frames: LinearFrame[], par
     while (next < frames.length) {
       const k = next++;
       const ready = await pool.prepare(frames[k], params, spill?.filesOf(frames[k].image, "planes"));
-      prepared[k] = ready && spill ? spillPrepared(spill, ready) : ready;
+      prepared[k] = ready && keep(frames[k], ready);
       done++;
       progress("limb", done / frames.length, { done, total: frames.length });
     }
@@ -216,6 +263,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     let calibration: CalibrationReport;
     let sky: ReturnType<typeof resolveSkyGeometry>;
     let prepared: (PreparedFrame | undefined)[];
+    let remade: RemadeFrames | undefined;
     try {
       const decodedBracket = await decodeBracketFiles(options.files, overrides, (f) => progress("decode", f, { done: Math.round(f * options.files.length), total: options.files.length }), { pool, findOutliers: !masters }, options.captureTimeOverrides, spill);
       ({ frames, provenance } = decodedBracket);
@@ -223,7 +271,8 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
       lap("decode");
 
-      prepared = await prepareFramesInPool(pool, frames, params, progress, spill);
+      remade = spill && (await choosePreparedFrames(options, frames)) === "made-again" ? createRemadeFrames() : undefined;
+      prepared = await prepareFramesInPool(pool, frames, params, progress, spill, remade);
       lap("linearize-and-limb");
 
       progress("sky", 0);
@@ -244,7 +293,13 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     };
     // The pool's threads compare the registration's pairs too; reduceInSteps closes it after the plan.
     const result = await reduceInSteps(frames, prepared, sky.pipelineParams, pipelineProgress, spill, pool, options.scratchDir);
+    const scratch: ScratchSummary = {
+      preparedFrames: !spill ? "in-memory" : remade ? "made-again" : "on-disk",
+      writtenBytes: spill?.stats().writtenBytes ?? 0,
+      framesMadeAgain: remade?.stats().made ?? 0,
+    };
     spill?.close();
+    remade?.clear();
     prepared.length = 0;
     const helio = sky.completeGeometry(result);
     // The pipeline's own stage times (added to the pool's preparation, which the pipeline's first stage then skips).
@@ -259,7 +314,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
     }, progress);
     await commitStagedOutput(output);
     progress("done", 1);
-    return { outDir: output.finalDir, report };
+    return { outDir: output.finalDir, report, scratch };
   } catch (error) {
     await discardStagedOutput(output);
     throw error;

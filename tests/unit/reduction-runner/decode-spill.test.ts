@@ -31,7 +31,8 @@ describe("decoding a bracket with its frames kept on disk", () => {
     const spill = createFrameSpill({ cacheBytes: 1024 ** 3 });
     try {
       const { frames, provenance } = await decodeBracketFiles(files, exposures, undefined, undefined, undefined, spill);
-      const planeBytes = 96 * 80 * 4;
+      // A 16-bit file's decoded planes hold whole counts 0 to 65535: they go to disk as 16 bits a sample.
+      const planeBytes = 96 * 80 * 2;
       expect(spill.stats()).toEqual({ writtenBytes: files.length * 3 * planeBytes, readBytes: 0, cachedBytes: 0 });
       expect(provenance.map((p) => p.planeCount)).toEqual([3, 3, 3]);
       // What was written is the frame: read back on demand, equal to a decode of the file.

@@ -6,7 +6,7 @@ import { readFileSync, rmSync } from "node:fs";
 import { basename, join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
-import { createFrameSpill } from "@/lib/reduction-runner/frame-spill";
+import { createFrameSpill, readSpilledFile } from "@/lib/reduction-runner/frame-spill";
 import { writeBracketFixture, type BracketFixture } from "./bracket-fixture";
 
 describe("the spill store", () => {
@@ -48,6 +48,40 @@ describe("the spill store", () => {
   });
 });
 
+describe("the spill store's float arrays of whole counts", () => {
+  it("keeps a decoded frame's counts as 16 bits on disk and gives back the same float32 values; anything else stays float32", () => {
+    const spill = createFrameSpill({ cacheBytes: 0 });
+    // Whole counts 0 to 65535, the range of a 16-bit file's decoded planes, with both ends.
+    const counts = Float32Array.from({ length: 1000 }, (_, i) => (i * 6553.5) % 65536 | 0);
+    counts[0] = 0;
+    counts[1] = 65535;
+    const k = spill.put(counts);
+    expect(spill.stats().writtenBytes).toBe(2 * counts.length);
+    const back = spill.get(k);
+    expect(back).toBeInstanceOf(Float32Array);
+    expect(Array.from(back)).toEqual(Array.from(counts));
+    // One value off the whole counts (a fraction, a negative, beyond 16 bits, NaN) keeps the array in float32.
+    for (const odd of [0.5, -1, 65536, Number.NaN]) {
+      const before = spill.stats().writtenBytes;
+      const values = Float32Array.from(counts);
+      values[500] = odd;
+      const key = spill.put(values);
+      expect(spill.stats().writtenBytes - before, String(odd)).toBe(4 * values.length);
+      const again = spill.get(key) as Float32Array;
+      expect(Object.is(again[500], Math.fround(odd)), String(odd)).toBe(true);
+      expect(again[499]).toBe(values[499]);
+    }
+    // Another thread reads the files of a spilled field itself, in either form.
+    const obj = { planes: [counts, Float32Array.from([0.25, 1.5])] };
+    spill.spillField(obj, "planes");
+    const files = spill.filesOf(obj, "planes")!;
+    expect(files.map((f) => f.kind)).toEqual(["f32-u16", "f32"]);
+    expect(Array.from(readSpilledFile(files[0]))).toEqual(Array.from(counts));
+    expect(Array.from(readSpilledFile(files[1]))).toEqual([0.25, 1.5]);
+    spill.close();
+  });
+});
+
 let fixture: BracketFixture;
 beforeAll(async () => {
   fixture = await writeBracketFixture();
@@ -59,15 +93,23 @@ describe("a reduction with its frames kept on disk", () => {
     const files = fixture.filesOf("tiff");
     const exposureOverrides = new Map(files.map((f, k) => [basename(f), fixture.exposuresS[k]]));
     const counts = new Map<string, { done: number; total: number }[]>();
-    const run = (spill: "always" | "never") =>
+    const run = (spill: "always" | "never", preparedFrames?: "on-disk" | "made-again") =>
       runReductionOnFiles({
-        files, outDir: join(fixture.dir, "..", `spill-${spill}`), registration: "corona", exposureOverrides, spill,
+        files, outDir: join(fixture.dir, "..", `spill-${spill}-${preparedFrames ?? "auto"}`), registration: "corona", exposureOverrides, spill, preparedFrames,
         onProgress: (stage, _fraction, frames) => {
-          if (spill === "always" && frames) counts.set(stage, [...(counts.get(stage) ?? []), frames]);
+          if (spill === "always" && preparedFrames === "on-disk" && frames) counts.set(stage, [...(counts.get(stage) ?? []), frames]);
         },
       });
     const inMemory = await run("never");
-    const onDisk = await run("always");
+    const onDisk = await run("always", "on-disk");
+    // The prepared arrays made again from each frame when read, as for a bracket whose arrays would not fit on the scratch disk.
+    const remade = await run("always", "made-again");
+    expect(inMemory.scratch.preparedFrames).toBe("in-memory");
+    expect(onDisk.scratch.preparedFrames).toBe("on-disk");
+    expect(remade.scratch.preparedFrames).toBe("made-again");
+    expect(remade.scratch.framesMadeAgain).toBeGreaterThanOrEqual(files.length);
+    // Only the frames' counts went to disk (16 bits a sample), not the prepared arrays beside them.
+    expect(remade.scratch.writtenBytes).toBeLessThan(onDisk.scratch.writtenBytes);
     // Stages that work frame by frame say how many frames they have done, ending at all of them.
     for (const stage of ["decode", "limb", "merge-pilot", "merge"]) {
       const seen = counts.get(stage) ?? [];
@@ -86,7 +128,10 @@ describe("a reduction with its frames kept on disk", () => {
     };
     expect(b.length).toBe(a.length);
     expect(b.subarray(dataStart(b)).equals(a.subarray(dataStart(a)))).toBe(true);
+    const c = masterOf(remade.outDir);
+    expect(c.subarray(dataStart(c)).equals(a.subarray(dataStart(a)))).toBe(true);
     const strip = (r: typeof inMemory.report) => JSON.stringify(r.frames);
     expect(strip(onDisk.report)).toBe(strip(inMemory.report));
-  }, 300_000);
+    expect(strip(remade.report)).toBe(strip(inMemory.report));
+  }, 450_000);
 });
