@@ -19,7 +19,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { completeFrameUpload, createBracketSet, giveFrameTimes, signParts, startFrameUpload } from "@/lib/bracket-sets";
 import { createSite } from "@/lib/sites/sites";
 import { bucketName, buildDerivedPrefix, deleteObjectsUnder } from "@/lib/storage";
-import type { ScaleBracket } from "./scale-bracket";
+import { DEFAULT_SCALE_SIZE, type ScaleBracket } from "./scale-bracket";
 
 const BENCH_EMAIL = "scale-benchmark@crownlight-bench.example";
 const BENCH_NAME = "Scale benchmark";
@@ -28,8 +28,11 @@ const ECLIPSE_ID = "2027-08-02";
 /** Every bench frame is ingested well within this, even with the machine busy. */
 const INGEST_TIMEOUT_MS = 20 * 60_000;
 
-export function benchSetName(frames: number): string {
-  return `Benchmark: ${frames} frames`;
+/** "Benchmark: 81 frames", with the size when it is not the default one. */
+export function benchSetName(bracket: Pick<ScaleBracket, "frames" | "size">): string {
+  const { width, height } = bracket.size;
+  const sized = width === DEFAULT_SCALE_SIZE.width && height === DEFAULT_SCALE_SIZE.height ? "" : ` of ${width} x ${height}`;
+  return `Benchmark: ${bracket.frames} frames${sized}`;
 }
 
 export interface BenchSet {
@@ -53,7 +56,7 @@ async function ensureSite(db: Db, actor: Actor): Promise<string> {
 
 /** The bench's set of this bracket when every one of its frames is there and ingested; otherwise null (an incomplete set is deleted). */
 async function findCompleteSet(db: Db, actor: Actor, bracket: ScaleBracket): Promise<string | null> {
-  const [set] = await db.select({ id: bracketSets.id }).from(bracketSets).where(and(eq(bracketSets.ownerId, actor.userId), eq(bracketSets.name, benchSetName(bracket.frames)))).limit(1);
+  const [set] = await db.select({ id: bracketSets.id }).from(bracketSets).where(and(eq(bracketSets.ownerId, actor.userId), eq(bracketSets.name, benchSetName(bracket)))).limit(1);
   if (!set) return null;
   const rows = await db.select({ name: frames.originalFileName, state: frames.ingestState, exposureS: frames.exposureS }).from(frames).where(eq(frames.bracketSetId, set.id));
   const wanted = new Map(bracket.files.map((f, k) => [basename(f), bracket.exposuresS[k]]));
@@ -116,18 +119,18 @@ export async function prepareBenchSets(db: Db, brackets: readonly ScaleBracket[]
   for (const bracket of brackets) {
     const found = await findCompleteSet(db, actor, bracket);
     if (found) {
-      log(`${benchSetName(bracket.frames)}: reused (every frame ingested)`);
+      log(`${benchSetName(bracket)}: reused (every frame ingested)`);
       sets.push({ frames: bracket.frames, setId: found });
       continue;
     }
-    const set = await createBracketSet(db, actor, { name: benchSetName(bracket.frames), eclipseId: ECLIPSE_ID, siteId, kitId: null, notes: "Made by npm run bench -- scale; removed or reused by its next run.", clockOffsetS: 0 });
+    const set = await createBracketSet(db, actor, { name: benchSetName(bracket), eclipseId: ECLIPSE_ID, siteId, kitId: null, notes: "Made by npm run bench -- scale; removed or reused by its next run.", clockOffsetS: 0 });
     sets.push({ frames: bracket.frames, setId: set.id });
     toSend.push({ bracket, setId: set.id });
   }
   if (toSend.length === 0) return { actor, sets };
   await withWorkers(async () => {
     for (const { bracket, setId } of toSend) {
-      log(`${benchSetName(bracket.frames)}: uploading ${bracket.files.length} frames through presigned multipart uploads`);
+      log(`${benchSetName(bracket)}: uploading ${bracket.files.length} frames through presigned multipart uploads`);
       for (const file of bracket.files) await uploadFrame(db, actor, setId, file);
     }
     await waitForIngest(db, toSend.map((s) => s.setId), log);

@@ -1,5 +1,7 @@
 // What scale.ts hands a reduction process (scale-reduce-child.ts) and what it prints back.
 
+import type { ScratchSummary } from "@/lib/reduction-runner/run-reduction";
+
 export const SCALE_CHILD_RESULT = "SCALE_CHILD_RESULT";
 
 export interface ScaleChildJob {
@@ -24,6 +26,8 @@ export interface ScaleChildResult {
   vmHwmBytes: number;
   /** The process's own user and system time from /proc/self/stat, clock ticks. */
   cpuTicks: { utime: number; stime: number };
+  /** Where the frames lived between stages. */
+  scratch: ScratchSummary;
 }
 
 /** The result line of a child's standard output; null when it printed none. */

@@ -18,7 +18,7 @@ async function main(): Promise<void> {
   const job = JSON.parse(readFileSync(jobPath, "utf8")) as ScaleChildJob;
   const exposureOverrides = new Map(job.files.map((file, k) => [basename(file), job.exposuresS[k]]));
   const started = performance.now();
-  const { report } = await runReductionOnFiles({ files: job.files, outDir: job.outDir, exposureOverrides, exposureOverrideSource: "the benchmark's exposure list", spill: job.spill, scratchDir: job.scratchDir });
+  const { report, scratch } = await runReductionOnFiles({ files: job.files, outDir: job.outDir, exposureOverrides, exposureOverrideSource: "the benchmark's exposure list", spill: job.spill, scratchDir: job.scratchDir });
   const reductionMs = performance.now() - started;
   await closeExifWriter();
   const status = parseProcStatus(readFileSync("/proc/self/status", "utf8"));
@@ -30,6 +30,7 @@ async function main(): Promise<void> {
     framesLeftOut: report.framesLeftOut.length,
     vmHwmBytes: status.hwmBytes,
     cpuTicks: { utime: stat.utimeTicks, stime: stat.stimeTicks },
+    scratch,
   };
   process.stdout.write(`${SCALE_CHILD_RESULT} ${JSON.stringify(result)}\n`);
 }

@@ -12,18 +12,19 @@
 // it: time, peak memory, CPU). Prints per bracket each measure, the floor and the
 // ratios, then the slope and the time with two worker processes over one. Aims are
 // printed, never asserted. `--frames 9,81` measures only some brackets.
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync, statfsSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { closeDb, getDb, type Db } from "@/db/client";
 import type { Actor } from "@/lib/auth/actor";
+import type { ScratchSummary } from "@/lib/reduction-runner/run-reduction";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { prepareDevelopmentServices } from "./bench-services";
 import { measureFloorMs } from "./floor";
 import { readClockTicksPerS, runWatched, type WatchedProcess } from "./process-monitor";
 import { fitLine } from "./proc-stats";
-import { SCALE_HEIGHT, SCALE_LADDER_STEPS, SCALE_LONG_FRAMES, SCALE_PASSES, SCALE_WIDTH, prepareLongScaleBracket, prepareScaleBrackets, type ScaleBracket } from "./scale-bracket";
+import { DEFAULT_SCALE_SIZE, SCALE_LADDER_STEPS, SCALE_LONG_FRAMES, SCALE_PASSES, prepareLongScaleBracket, prepareScaleBrackets, type ScaleBracket, type ScaleSize } from "./scale-bracket";
 import { prepareBenchSets } from "./scale-app";
 import { BENCH_QUEUE_PREFIX, clearBenchQueues, measureFlowReduction, withBenchWorkers, type FlowRun } from "./scale-flow";
 import { findScaleChildResult, SCALE_SPILL_MODES, type ScaleChildJob, type ScaleSpill } from "./scale-child-protocol";
@@ -66,6 +67,17 @@ function readFrameCounts(argv: readonly string[]): number[] | null {
   return counts;
 }
 
+/** `--size 6000x4000` makes and reduces brackets of that frame size (default 1500 x 1000; each size is cached apart). */
+function readSize(argv: readonly string[]): ScaleSize {
+  const at = argv.indexOf("--size");
+  if (at < 0) return DEFAULT_SCALE_SIZE;
+  const match = /^(\d{2,5})x(\d{2,5})$/.exec(argv[at + 1] ?? "");
+  const width = Number(match?.[1]);
+  const height = Number(match?.[2]);
+  if (!match || width < 64 || height < 64 || width > 12_000 || height > 12_000) throw new Error(`--size takes WIDTHxHEIGHT from 64 to 12000 pixels each (6000x4000), not ${argv[at + 1] ?? "nothing"}`);
+  return { width, height };
+}
+
 /** One reduction by runReductionOnFiles in a child process (no services, no queue). */
 interface MeasuredReduction {
   /** From starting the processes to the last one's exit, ms. */
@@ -83,6 +95,15 @@ interface MeasuredReduction {
   cpuS: number;
   /** Where the reduction left its outputs (natural.png for the floor). */
   outDir: string;
+  scratch: ScratchSummary;
+  /** Most bytes in use on the scratch folder's disk above what was in use at the start (frames, warped bands, outputs). */
+  peakDiskBytes: number;
+}
+
+/** Bytes in use on the file system that holds `dir`. */
+function diskUsedBytes(dir: string): number {
+  const fs = statfsSync(dir);
+  return (fs.blocks - fs.bfree) * fs.bsize;
 }
 
 /** One reduction of the bracket in a separate process, watched through /proc. */
@@ -93,7 +114,13 @@ async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scr
   const job: ScaleChildJob = { files: bracket.files, exposuresS: bracket.exposuresS, outDir, spill, scratchDir: scratch };
   process.stderr.write(`reducing ${bracket.frames} frames in one process\n`);
   writeFileSync(jobPath, JSON.stringify(job));
+  const diskAtStart = diskUsedBytes(scratch);
+  let peakDiskBytes = 0;
+  const diskTimer = setInterval(() => {
+    peakDiskBytes = Math.max(peakDiskBytes, diskUsedBytes(scratch) - diskAtStart);
+  }, 1000);
   const run = await runWatched(process.execPath, ["--import", "tsx", join(import.meta.dirname, "scale-reduce-child.ts"), jobPath], { cwd: process.cwd() });
+  clearInterval(diskTimer);
   const result = findScaleChildResult(run.stdout);
   if (run.exitCode !== 0 || !result) {
     throw new Error(`the reduction of ${bracket.frames} frames ended with ${run.signal ?? `exit code ${run.exitCode}`}:\n${run.stderr.trim().split("\n").slice(-20).join("\n")}`);
@@ -113,6 +140,8 @@ async function measureInOneProcess(bracket: ScaleBracket, spill: ScaleSpill, scr
     // Each process's own time (a descendant's as last sampled), so none is counted twice.
     cpuS: processes.reduce((sum, p) => sum + p.cpuS, 0),
     outDir,
+    scratch: result.scratch,
+    peakDiskBytes,
   };
 }
 
@@ -215,7 +244,16 @@ function singleJson(f: BracketFigures): Record<string, unknown> {
     floorMs: { decode: Math.round(f.floor.decodeMs), tile: Math.round(f.floor.tileMs) },
     ratioToFloor: Number((f.single.reductionMs / (f.floor.decodeMs + f.floor.tileMs)).toFixed(3)),
     framesLeftOut: f.single.framesLeftOut,
+    scratch: f.single.scratch,
+    peakDiskBytes: f.single.peakDiskBytes,
   };
+}
+
+function describeScratch(scratch: ScratchSummary): string {
+  const written = `${(scratch.writtenBytes / 1024 ** 3).toFixed(1)} GB written`;
+  if (scratch.preparedFrames === "in-memory") return "frames held in memory";
+  if (scratch.preparedFrames === "on-disk") return `frames and their prepared arrays on disk, ${written}`;
+  return `frames on disk, their prepared arrays made again when read (${scratch.framesMadeAgain} times), ${written}`;
 }
 
 /** The single process's lines of a bracket: its processes, stages, the floor and the ratio to it. */
@@ -227,6 +265,7 @@ function describeSingle(f: BracketFigures): string[] {
     `${f.frames} frames, single process: ${(s.wallMs / 1000).toFixed(1)} s (reduction ${(s.reductionMs / 1000).toFixed(1)} s), CPU ${s.cpuS.toFixed(1)} s = ${(s.cpuS / (s.wallMs / 1000)).toFixed(2)} cores busy, frames left out ${s.framesLeftOut}`,
     ...describeProcesses(s.processes).map((line) => `  ${line}`),
     `  all processes together at most ${mb(s.peakTotalBytes)} MB at one time`,
+    `  scratch: ${describeScratch(s.scratch)}; disk in use at most ${(s.peakDiskBytes / 1024 ** 3).toFixed(1)} GB above the start`,
     `  stages (ms): ${Object.entries(s.stagesMs).map(([stage, ms]) => `${stage} ${Math.round(ms)}`).join(", ")}`,
     `  floor: sharp decode ${(f.floor.decodeMs / 1000).toFixed(1)} s + tiling one rendition ${(f.floor.tileMs / 1000).toFixed(1)} s = ${(floorMs / 1000).toFixed(1)} s; reduction / floor = ${(s.reductionMs / floorMs).toFixed(2)}  (aim: at most ${AIM_RATIO_TO_FLOOR})`,
   ];
@@ -237,31 +276,41 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
   const only = readFrameCounts(argv);
   // The flow's measures alone (no single-process baseline, no floor): for a quick look at the sharing.
   const flowOnly = argv.includes("--flow-only");
+  const size = readSize(argv);
+  // The single process alone (no services, no flow): for sizes whose flow would not fit this machine's disk.
+  const singleOnly = argv.includes("--single-only");
+  if (flowOnly && singleOnly) throw new Error("--flow-only and --single-only exclude each other");
   const total = SCALE_PASSES[SCALE_PASSES.length - 1] * SCALE_LADDER_STEPS;
-  let lastTenth = -1;
-  const prepared = await prepareScaleBrackets(join(process.cwd(), ".cache"), (done) => {
-    const tenth = Math.floor((10 * done) / total);
-    if (tenth !== lastTenth) process.stderr.write(`making the frames: ${done} of ${total}\n`);
-    lastTenth = tenth;
-  });
-  const brackets = prepared.brackets.filter((b) => !only || only.includes(b.frames));
-  // The long bracket only when asked for: it is made once (about 15 minutes) and reduced for most of an hour.
+  const brackets: ScaleBracket[] = [];
+  let madeS = 0;
+  // The 81 frames only when one of their brackets is asked for (at 24 MP they take most of an hour to make).
+  if (!only || only.some((n) => n !== SCALE_LONG_FRAMES)) {
+    let lastTenth = -1;
+    const prepared = await prepareScaleBrackets(join(process.cwd(), ".cache"), size, (done) => {
+      const tenth = Math.floor((10 * done) / total);
+      if (tenth !== lastTenth) process.stderr.write(`making the frames: ${done} of ${total}\n`);
+      lastTenth = tenth;
+    });
+    brackets.push(...prepared.brackets.filter((b) => !only || only.includes(b.frames)));
+    madeS += prepared.madeS;
+  }
+  // The long bracket only when asked for: it is made once (about 15 minutes at the default size) and reduced for most of an hour.
   if (only?.includes(SCALE_LONG_FRAMES)) {
     let lastLong = -1;
-    const long = await prepareLongScaleBracket(join(process.cwd(), ".cache"), (done) => {
+    const long = await prepareLongScaleBracket(join(process.cwd(), ".cache"), size, (done) => {
       const tenth = Math.floor((10 * done) / SCALE_LONG_FRAMES);
       if (tenth !== lastLong) process.stderr.write(`making the long bracket's frames: ${done} of ${SCALE_LONG_FRAMES}\n`);
       lastLong = tenth;
     });
     brackets.push(...long.brackets);
-    prepared.madeS += long.madeS;
+    madeS += long.madeS;
   }
-  const workerCounts = readWorkerCounts(argv);
+  const workerCounts = singleOnly ? [] : readWorkerCounts(argv);
   // Each worker process held to a core of its own (taskset), as if each were a machine of one core:
   // on this machine of two cores, one unbounded worker already uses both (its threads), and a second
   // would find no core free; this shows what the flow shares when each worker brings its own.
   const oneCoreEach = argv.includes("--one-core-each");
-  const app = await prepareAppSide(brackets);
+  const app: AppSide = singleOnly ? { reason: "the flow not measured (--single-only)" } : await prepareAppSide(brackets);
   if ("reason" in app) process.stderr.write(`${app.reason}\n`);
   const scratch = mkdtempSync(join(tmpdir(), "crownlight-bench-scale-"));
   const figures: BracketFigures[] = [];
@@ -291,11 +340,14 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
   }
 
   const ladder = `a ${SCALE_LADDER_STEPS}-step ladder from 1/2000 s to 1 s taken ${SCALE_PASSES.join(", ")} times${figures.some((f) => f.frames === SCALE_LONG_FRAMES) ? `; the long bracket runs the ladder over ${SCALE_LONG_FRAMES} frames` : ""}`;
-  console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${SCALE_WIDTH} x ${SCALE_HEIGHT} 16-bit RGB TIFF (${ladder})${prepared.madeS ? `, made in ${prepared.madeS.toFixed(0)} s` : ", cached"}`);
-  console.log("Each bracket is reduced three times: by runReductionOnFiles in a single process of its own (the baseline of the memory slope");
-  console.log("and the ratio to the floor), and through the app's stepped flow with one and with two worker processes (worker/index.ts on the");
-  console.log(`development services, frames uploaded and ingested into a bench set, timed from starting the reduction to done). Every process is`);
-  console.log("watched through /proc with every process below it. Single process: " +
+  console.log(`\nCrownlight scale benchmark: brackets of ${figures.map((f) => f.frames).join(", ")} frames of ${size.width} x ${size.height} 16-bit RGB TIFF (${ladder})${madeS ? `, made in ${madeS.toFixed(0)} s` : ", cached"}`);
+  if (singleOnly) console.log("Each bracket is reduced once, by runReductionOnFiles in a single process of its own (--single-only: the flow is not measured).");
+  else {
+    console.log("Each bracket is reduced three times: by runReductionOnFiles in a single process of its own (the baseline of the memory slope");
+    console.log("and the ratio to the floor), and through the app's stepped flow with one and with two worker processes (worker/index.ts on the");
+    console.log(`development services, frames uploaded and ingested into a bench set, timed from starting the reduction to done).`);
+  }
+  console.log("Every process is watched through /proc with every process below it. Single process: " +
     `${spill === "always" ? "frames kept on local disk between stages" : spill === "never" ? "frames kept in memory" : "frames kept on disk or in memory as the reduction decides by the files' size"} (spill: ${spill}).\n`);
   for (const f of figures) {
     for (const line of describeSingle(f)) console.log(line);
@@ -316,8 +368,8 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
 
   console.log(JSON.stringify({
     bench: "scale",
-    width: SCALE_WIDTH,
-    height: SCALE_HEIGHT,
+    width: size.width,
+    height: size.height,
     ladderSteps: SCALE_LADDER_STEPS,
     spill,
     oneCoreEach,
