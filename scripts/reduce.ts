@@ -1,11 +1,13 @@
 // Reduces a bracket from files on disk into a new output folder.
 // Run: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK]
 //   [--clock-offset SECONDS] [--north-angle DEG] [--filter mgn|nrgf] [--exposures FILE.csv]
-//   [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...
+//   [--scratch DIR] [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...
 // Progress goes to stderr; exit 2 for bad input (the message names the file,
 // line or option), 1 for anything else.
+import { statSync } from "node:fs";
 import { basename } from "node:path";
 import { closeExifWriter } from "@/lib/media";
+import { ReductionInputError } from "@/lib/reduction-runner/errors";
 import { discardActiveStagingSync, isBadInputError, parseReduceArgs, parseSiteText, readExposuresCsv, readSiteTrackFile, runReductionOnFiles } from "@/lib/reduction-runner";
 
 /** One stderr line per stage, and one each time a stage passes another 10 %. */
@@ -29,7 +31,10 @@ async function main(): Promise<void> {
     ...(args.filter ? { filter: args.filter } : {}),
     ...(args.recoverResponse ? { recoverResponse: true } : {}),
   };
-  const { outDir, report } = await runReductionOnFiles({
+  if (args.scratchDir !== undefined && !statSync(args.scratchDir, { throwIfNoEntry: false })?.isDirectory()) {
+    throw new ReductionInputError("bad-option", `--scratch: ${args.scratchDir} is not a folder`);
+  }
+  const { outDir, report, scratch } = await runReductionOnFiles({
     files: args.files,
     outDir: args.outDir,
     params,
@@ -38,11 +43,18 @@ async function main(): Promise<void> {
     registration: args.registration,
     sky: { site, clockOffsetS: args.clockOffsetS, northAngleDeg: args.northAngleDeg, camera: args.camera },
     calibrationFiles: args.calibrationFiles,
+    scratchDir: args.scratchDir,
     onProgress: createProgressPrinter(),
   });
   const overall = report.overall as { referenceFrame: string; dynamicRangeStops: number; sky: { plateScaleArcsecPerPx?: number; northAngleDeg?: number; pAngleDeg?: number } };
   console.log(`${report.frames.length} frames reduced into ${outDir} (reference ${overall.referenceFrame}, ${overall.dynamicRangeStops} stops, ${report.timingsMs.total} ms)`);
   for (const left of report.framesLeftOut) console.log(`left out ${left.name}: ${left.reason}`);
+  if (scratch.preparedFrames !== "in-memory") {
+    const gb = (scratch.writtenBytes / 1024 ** 3).toFixed(1);
+    console.log(scratch.preparedFrames === "made-again"
+      ? `frames kept on local disk between stages (${gb} GB); their linearized arrays made again when read (${scratch.framesMadeAgain} times), as the scratch disk had no room for them`
+      : `frames kept on local disk between stages, with their linearized arrays (${gb} GB)`);
+  }
   for (const note of report.notes.slice(0, report.notes.length - 2)) console.log(note);
   const { sky } = overall;
   if (sky.plateScaleArcsecPerPx !== undefined) {

@@ -8,7 +8,7 @@ import { parseStrictNumber } from "@/lib/strict-number";
 export const REDUCE_USAGE =
   "usage: npm run reduce -- --out DIR [--register sun|moon|corona] [--site LAT,LON,ELEV | --site-file TRACK.gpx|csv] [--clock-offset SECONDS] " +
   "[--north-angle DEG | --mount equatorial|alt-az|fixed-tripod|hand-held|stabilised [--camera-roll DEG] [--flip-h] [--flip-v]] " +
-  "[--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...";
+  "[--filter mgn|nrgf] [--exposures FILE.csv] [--recover-response] [--scratch DIR] [--bias FILE]... [--dark FILE]... [--flat FILE]... FILE...";
 
 export interface ReduceArgs {
   outDir: string;
@@ -26,12 +26,14 @@ export interface ReduceArgs {
   northAngleDeg?: number;
   /** The kit's mount and flips, from which the north angle follows when it is not given. */
   camera?: CameraOrientation;
+  /** Folder for the frames kept on local disk between stages (default the system's temporary folder). */
+  scratchDir?: string;
   /** Calibration frames (each option repeatable), present when any was given. */
   calibrationFiles?: { bias: string[]; dark: string[]; flat: string[] };
 }
 
 const MOUNT_KINDS: readonly MountKind[] = ["equatorial", "alt-az", "fixed-tripod", "hand-held", "stabilised"];
-const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site", "site-file", "clock-offset", "north-angle", "mount", "camera-roll"]);
+const VALUE_OPTIONS = new Set(["out", "register", "filter", "exposures", "site", "site-file", "clock-offset", "north-angle", "mount", "camera-roll", "scratch"]);
 
 /** A decimal number option ("-12.5", "3e1"); the message names the option and the unit. */
 function parseNumberOption(values: Map<string, string>, key: string, unit: string): number | undefined {
@@ -98,7 +100,7 @@ export function parseReduceArgs(argv: string[]): ReduceArgs {
   const camera: CameraOrientation | undefined =
     mount === undefined ? undefined : { mount: mount as MountKind, cameraRollDeg, flipHorizontal: flags.has("flip-h"), flipVertical: flags.has("flip-v") };
   return {
-    outDir, files, registration, filter, exposuresCsv: values.get("exposures"), recoverResponse: flags.has("recover-response"),
+    outDir, files, registration, filter, exposuresCsv: values.get("exposures"), scratchDir: values.get("scratch"), recoverResponse: flags.has("recover-response"),
     siteText: values.get("site"), siteFile: values.get("site-file"),
     clockOffsetS: parseNumberOption(values, "clock-offset", "seconds"), northAngleDeg: parseNumberOption(values, "north-angle", "degrees"),
     camera,

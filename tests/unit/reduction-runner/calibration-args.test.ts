@@ -17,3 +17,12 @@ describe("parseReduceArgs: calibration frames", () => {
     expect(() => parseReduceArgs(["--out", "o", "--flat", "l1.fits", "l1.fits", "l2.fits"])).toThrow(/^l1\.fits: given both as a calibration frame and as a frame of the bracket/);
   });
 });
+
+describe("parseReduceArgs: the scratch folder", () => {
+  it("takes --scratch for the frames kept on disk, and names it when its value is missing", () => {
+    expect(parseReduceArgs(["--out", "o", "--scratch", "/mnt/big", "l1.fits", "l2.fits"]).scratchDir).toBe("/mnt/big");
+    expect(parseReduceArgs(["--out", "o", "l1.fits"]).scratchDir).toBeUndefined();
+    expect(() => parseReduceArgs(["--out", "o", "l1.fits", "--scratch"])).toThrow(/^--scratch: a value is required\nusage:/);
+    expect(REDUCE_USAGE).toContain("[--scratch DIR]");
+  });
+});
