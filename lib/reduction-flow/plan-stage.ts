@@ -13,7 +13,7 @@ import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { FrameCount, LinearFrame, ReductionParams } from "@/lib/imaging/types";
 import { MediaError } from "@/lib/media/errors";
 import { ReductionInputError } from "@/lib/reduction-runner/errors";
-import { createFrameSpill, spillPrepared } from "@/lib/reduction-runner/frame-spill";
+import { choosePreparedFrames, createFrameSpill, createRemadeFrames, remakePreparedOnRead, spillPrepared, type PreparedFramesChoice, type RemadeFrames } from "@/lib/reduction-runner/frame-spill";
 import { resolveSkyGeometry, type RunnerRegistrationMode, type SkyOptions } from "@/lib/reduction-runner/sky-run";
 import type { FrameSky } from "@/lib/reduction-runner/sun-geometry";
 import type { SunRegistration } from "@/lib/reduction-runner/sun-registration";
@@ -33,6 +33,8 @@ export interface PlanInput {
   sky?: SkyOptions;
   /** Folder for the prepared frames' pixels while planning. */
   scratchDir: string;
+  /** Where the prepared arrays live while planning (frame-spill.ts choosePreparedFrames); default "auto". */
+  preparedFrames?: PreparedFramesChoice;
 }
 
 /** The sky geometry the plan found, kept for the finish. */
@@ -53,12 +55,21 @@ export async function planFromFiles(input: PlanInput, progress: PlanProgress): P
   try {
     const frames: LinearFrame[] = [];
     const prepared: PreparedFrame[] = [];
+    let remade: RemadeFrames | undefined;
     input.frameFiles.forEach((file, j) => {
       const read = readWorkFile<LinearFrame>(file, cache);
       const frame = input.defects ? { ...read, badPixels: input.defects } : read;
       frames.push(frame);
-      // The limb fitted by the part; the linearization made again here, kept on local disk.
-      prepared.push(spillPrepared(spill, prepareFrameWithLimb(frame, input.params, input.limbs[j], frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined)));
+      if (j === 0) {
+        // The survey gave every frame one size and encoding; three colour planes at most.
+        const size = { width: frame.image.width, height: frame.image.height, encoding: frame.encoding, planeCount: 3 };
+        const choice = choosePreparedFrames(input.preparedFrames ?? "auto", input.frameFiles.map(() => size), input.scratchDir);
+        if (choice === "made-again") remade = createRemadeFrames();
+      }
+      // The limb fitted by the part; the linearization made again here, kept on local disk or made again when read.
+      const table = frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined;
+      const ready = prepareFrameWithLimb(frame, input.params, input.limbs[j], table);
+      prepared.push(remade ? remakePreparedOnRead(ready, () => prepareFrameWithLimb(frame, input.params, input.limbs[j], table), remade) : spillPrepared(spill, ready));
       progress("register", 0, { done: j + 1, total: input.frameFiles.length });
     });
     const sky = resolveSkyGeometry(frames, input.params, input.registration, input.sky, prepared);

@@ -7,10 +7,11 @@
 // Objects keep their shape: spillField replaces a field with a getter, so the
 // numeric core (lib/imaging) reads frame.image.planes or prepared.luminance as
 // before and never knows where the data lives.
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, rmSync, statfsSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
+import type { LinearFrame } from "@/lib/imaging/types";
 
 type Typed = Float32Array | Uint8Array | Uint16Array;
 /** How an array is kept on disk; "f32-u16" is a float32 array of whole counts 0 to 65535 kept as uint16, half the bytes. */
@@ -295,4 +296,38 @@ export function remakePreparedOnRead(prepared: PreparedFrame, make: () => Prepar
     });
   }
   return prepared;
+}
+
+/** Where prepared arrays live between stages: beside their frames on disk, made again when read, or chosen by the free space. */
+export type PreparedFramesChoice = "auto" | "on-disk" | "made-again";
+
+/** What the prepared arrays' size follows from: a frame's size, encoding and colour planes (given, so that spilled planes are not read to count them). */
+export interface PreparedSize {
+  width: number;
+  height: number;
+  encoding: LinearFrame["encoding"];
+  planeCount: number;
+}
+
+/** Bytes a frame's prepared arrays take on disk: luminance (float32), clipped and noise-floor masks, and an encoded frame's linear planes. */
+export function preparedBytesOf(frame: PreparedSize): number {
+  return frame.width * frame.height * (4 + 1 + 1 + (frame.encoding === "linear" ? 0 : 4 * frame.planeCount));
+}
+
+/**
+ * "auto": on disk when the prepared arrays of all the frames take at most half of the
+ * free space in `scratchDir` (the rest is left to the warp cache and the outputs), made
+ * again otherwise; no figure for the free space keeps them on disk.
+ */
+export function choosePreparedFrames(asked: PreparedFramesChoice, frames: readonly PreparedSize[], scratchDir: string): "on-disk" | "made-again" {
+  if (asked !== "auto") return asked;
+  const needed = frames.reduce((sum, f) => sum + preparedBytesOf(f), 0);
+  let free: number;
+  try {
+    const fs = statfsSync(scratchDir);
+    free = fs.bavail * fs.bsize;
+  } catch {
+    return "on-disk";
+  }
+  return needed <= free / 2 ? "on-disk" : "made-again";
 }

@@ -3,7 +3,7 @@
 // worker's reduction job later. Output goes to a staging folder that is renamed
 // into place only when everything is written; on any failure it is removed, so
 // a failed run leaves nothing behind and never touches an earlier reduction.
-import { stat, statfs, writeFile } from "node:fs/promises";
+import { stat, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
@@ -20,7 +20,7 @@ import { writeMasterSummary } from "./master-summary";
 import { checkFileList, decodeBracketFiles, type FrameProvenance } from "./decode-frames";
 import { checkOverridesMatchFiles } from "./exposures-csv";
 import { calibrateBracket, loadCalibrationMasters, type CalibrationReport } from "./calibration";
-import { createFrameSpill, createRemadeFrames, remakePreparedOnRead, spillPrepared, type FrameSpill, type RemadeFrames } from "./frame-spill";
+import { choosePreparedFrames, createFrameSpill, createRemadeFrames, remakePreparedOnRead, spillPrepared, type FrameSpill, type PreparedFramesChoice, type RemadeFrames } from "./frame-spill";
 import { createPlanePool } from "./plane-pool";
 import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "./prepare-pool";
 import { createWarpCache } from "./warp-cache";
@@ -87,7 +87,7 @@ export interface RunReductionOptions {
    * CPU, no disk), or "auto" (the default): on disk when they take at most half of the
    * scratch folder's free space.
    */
-  preparedFrames?: "auto" | "on-disk" | "made-again";
+  preparedFrames?: PreparedFramesChoice;
   /** Folder for that scratch data; default the system's temporary folder. */
   scratchDir?: string;
 }
@@ -107,23 +107,6 @@ async function openSpill(options: RunReductionOptions): Promise<FrameSpill | und
   // registration keeps its own small source images of the frames it compares), so a
   // cache would only hold memory, up to a bracket's worth of frames beside the stage's own.
   return createFrameSpill({ parentDir: options.scratchDir, cacheBytes: 0 });
-}
-
-/** Bytes a frame's prepared arrays take on disk: luminance (float32), clipped and noise-floor masks, and an encoded frame's linear planes. */
-function preparedBytesOf(frame: LinearFrame): number {
-  const pixels = frame.image.width * frame.image.height;
-  return pixels * (4 + 1 + 1 + (frame.encoding === "linear" ? 0 : 4 * frame.image.planes.length));
-}
-
-/** Where the prepared arrays of a spilled reduction live (RunReductionOptions.preparedFrames). */
-async function choosePreparedFrames(options: RunReductionOptions, frames: readonly LinearFrame[]): Promise<"on-disk" | "made-again"> {
-  const asked = options.preparedFrames ?? "auto";
-  if (asked !== "auto") return asked;
-  const needed = frames.reduce((sum, f) => sum + preparedBytesOf(f), 0);
-  const fs = await statfs(options.scratchDir ?? tmpdir()).catch(() => undefined);
-  // No figure for the free space: kept on disk, as before there was a choice.
-  if (!fs) return "on-disk";
-  return needed <= (fs.bavail * fs.bsize) / 2 ? "on-disk" : "made-again";
 }
 
 export interface RunReductionResult {
@@ -271,7 +254,7 @@ export async function runReductionOnFiles(options: RunReductionOptions): Promise
       applyClockOffsetToBracket(frames, provenance, options.sky?.clockOffsetS ?? 0);
       lap("decode");
 
-      remade = spill && (await choosePreparedFrames(options, frames)) === "made-again" ? createRemadeFrames() : undefined;
+      remade = spill && choosePreparedFrames(options.preparedFrames ?? "auto", frames.map((f, k) => ({ width: f.image.width, height: f.image.height, encoding: f.encoding, planeCount: provenance[k]?.planeCount ?? 3 })), options.scratchDir ?? tmpdir()) === "made-again" ? createRemadeFrames() : undefined;
       prepared = await prepareFramesInPool(pool, frames, params, progress, spill, remade);
       lap("linearize-and-limb");
 
