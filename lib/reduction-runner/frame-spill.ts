@@ -208,20 +208,24 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   };
 }
 
+/** Makes the prepared frame's luminance read the linearized frame's (which prepareFrame shares); an assignment keeps its own value. */
+function followLinearLuminance(prepared: PreparedFrame): void {
+  const { linear } = prepared;
+  Object.defineProperty(prepared, "luminance", {
+    configurable: true,
+    enumerable: true,
+    get: () => linear.luminance,
+    set: (next: Float32Array) => Object.defineProperty(prepared, "luminance", { value: next, writable: true, configurable: true, enumerable: true }),
+  });
+}
+
 /** Keeps a prepared frame's pixel arrays on disk; a luminance shared with the linearized frame is written once. */
 export function spillPrepared(spill: FrameSpill, prepared: PreparedFrame): PreparedFrame {
   const { linear } = prepared;
   const shared = prepared.luminance === linear.luminance;
   for (const field of ["luminance", "clipped", "noiseFloor", "masked", "planes"] as const) spill.spillField(linear, field);
   if (!shared) spill.spillField(prepared, "luminance");
-  else {
-    Object.defineProperty(prepared, "luminance", {
-      configurable: true,
-      enumerable: true,
-      get: () => linear.luminance,
-      set: (next: Float32Array) => Object.defineProperty(prepared, "luminance", { value: next, writable: true, configurable: true, enumerable: true }),
-    });
-  }
+  else followLinearLuminance(prepared);
   return prepared;
 }
 
@@ -287,14 +291,7 @@ export function remakePreparedOnRead(prepared: PreparedFrame, make: () => Prepar
     });
   }
   // The frame's luminance is the linearized frame's (prepareFrame shares them); one kept apart stays in memory.
-  if (shared) {
-    Object.defineProperty(prepared, "luminance", {
-      configurable: true,
-      enumerable: true,
-      get: () => linear.luminance,
-      set: (next: Float32Array) => Object.defineProperty(prepared, "luminance", { value: next, writable: true, configurable: true, enumerable: true }),
-    });
-  }
+  if (shared) followLinearLuminance(prepared);
   return prepared;
 }
 
