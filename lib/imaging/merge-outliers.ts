@@ -1,23 +1,29 @@
 // The second merge pass's outlier record and rejection (see merge.ts): per
 // master pixel the frame that disagrees most with the others, kept only where
-// it may be taken out, and taken out at the end of the pass.
+// it is to be taken out, and taken out at the end of the pass.
 
 /** Outliers: a score above this many sigmas of the leave-one-out prediction (after the frame's own z scale is measured). */
 export const OUTLIER_SIGMAS = 5;
-/** Around an outlier, the worst frame goes at this lower score too, so that a trail's wings below the threshold go with it. */
+/** Around a frame's outlier, the same frame goes at this lower score too, so that a trail's wings below the threshold go with it. */
 export const OUTLIER_WING_SIGMAS = 2.5;
 /** Outliers grow by this many pixels (the wings' reach). */
 const REJECT_GROW_PX = 2;
 
 /**
  * The second pass's record of outliers: per master pixel, the frame with the
- * largest outlier score so far and what it added, so that it can be taken out at
- * the end. Only pixels where that score passes OUTLIER_WING_SIGMAS are listed
- * (removeOutliers takes nothing out at a lower score, and a frame that scores
- * above it always beats one that scored below), in ascending master order, each
- * once, about 27 bytes each. Measured on the synthetic brackets: 23 647 of 24
- * million pixels over 3 frames of 6000 x 4000, 7 219 of 1.5 million over 9 frames
- * of 1500 x 1000, where a record of every pixel took 552 MB at 24 megapixels.
+ * largest outlier score so far among those to be taken out, and what it added,
+ * so that it can be taken out at the end. A frame is listed where it scores
+ * above OUTLIER_SIGMAS, and in its own wings: where it scores above
+ * OUTLIER_WING_SIGMAS within REJECT_GROW_PX of one of its own outliers
+ * (keepOwnWings, as each frame closes). Entries are in ascending master order,
+ * each pixel once, about 27 bytes each.
+ *
+ * The record grows with the outliers (trails, cosmic rays), not with the number
+ * of frames. An earlier rule listed every pixel where any frame passed the
+ * wing's threshold: with normal noise about 1.2 % of a frame's pixels do, so
+ * over 200 frames nearly every pixel was listed (about 650 MB at 24
+ * megapixels, twice that while a frame's entries were joined), and the wing
+ * rule then took out whichever frame was noisiest beside another frame's trail.
  */
 export interface WorstFrameRecord {
   /** Master pixel index, ascending. */
@@ -64,6 +70,41 @@ export function growCandidates(c: WorstCandidates, channels: number): void {
   c.contribution = Array.from({ length: channels }, (_, ch) => grow(c.contribution[ch] ?? new Float32Array(0), (n) => new Float32Array(n)));
 }
 
+/** Whether pixel i lies within r pixels (a square, cut at the image's edges) of a pixel in `hits`. */
+function isNearHit(hits: Set<number>, i: number, width: number, height: number, r: number): boolean {
+  const x = i % width;
+  const y = (i - x) / width;
+  for (let v = Math.max(0, y - r); v <= Math.min(height - 1, y + r); v++) {
+    for (let u = Math.max(0, x - r); u <= Math.min(width - 1, x + r); u++) if (hits.has(v * width + u)) return true;
+  }
+  return false;
+}
+
+/**
+ * Keeps, of one frame's candidates (its pixels above OUTLIER_WING_SIGMAS, in
+ * master order), its outliers and its own wings: those above OUTLIER_SIGMAS, and
+ * those within REJECT_GROW_PX of one. The arrays are compacted in place, in order.
+ */
+export function keepOwnWings(c: WorstCandidates, width: number, height: number): void {
+  let hits: Set<number> | undefined;
+  for (let j = 0; j < c.count; j++) if (c.score[j] > OUTLIER_SIGMAS) (hits ??= new Set()).add(c.pixel[j]);
+  let kept = 0;
+  if (hits) {
+    for (let j = 0; j < c.count; j++) {
+      if (!(c.score[j] > OUTLIER_SIGMAS) && !isNearHit(hits, c.pixel[j], width, height, REJECT_GROW_PX)) continue;
+      if (kept !== j) {
+        c.pixel[kept] = c.pixel[j];
+        c.score[kept] = c.score[j];
+        c.weight[kept] = c.weight[j];
+        c.wellExposed[kept] = c.wellExposed[j];
+        for (const plane of c.contribution) plane[kept] = plane[j];
+      }
+      kept++;
+    }
+  }
+  c.count = kept;
+}
+
 /**
  * Two worst-frame records as one: per pixel the entry with the higher score, the
  * one from `earlier` on a tie (as one pass over the frames in order keeps it).
@@ -106,31 +147,15 @@ export function joinWorstRecords(earlier: WorstFrameRecord, later: Omit<WorstFra
   return out;
 }
 
-/** Whether a pixel lies within r pixels (a square, cut at the image's edges) of a set pixel of `mask`. */
-function isNearSet(mask: Uint8Array, i: number, width: number, height: number, r: number): boolean {
-  const x = i % width;
-  const y = (i - x) / width;
-  for (let v = Math.max(0, y - r); v <= Math.min(height - 1, y + r); v++) {
-    for (let u = Math.max(0, x - r); u <= Math.min(width - 1, x + r); u++) if (mask[v * width + u]) return true;
-  }
-  return false;
-}
-
 /**
- * Takes the worst frame out where it is an outlier, and in the wings around one
- * (within REJECT_GROW_PX) where it scores above OUTLIER_WING_SIGMAS; counts what
- * each frame lost (frameRejected, by frame index). The accumulator's exposure
- * weights, sums and coverage are changed in place.
+ * Takes each listed frame out of its pixel (every entry of the record is an
+ * outlier or a wing of its frame's, see keepOwnWings); counts what each frame
+ * lost (frameRejected, by frame index). The accumulator's exposure weights, sums
+ * and coverage are changed in place.
  */
-export function removeOutliers(worst: WorstFrameRecord, width: number, height: number, exposure: Float64Array, sums: Float32Array[], coverage: Uint16Array, frameRejected: number[]): void {
-  const count = worst.pixel.length;
-  let hit: Uint8Array | undefined;
-  for (let j = 0; j < count; j++) if (worst.score[j] > OUTLIER_SIGMAS) (hit ??= new Uint8Array(width * height))[worst.pixel[j]] = 1;
-  if (!hit) return;
-  for (let j = 0; j < count; j++) {
+export function removeOutliers(worst: WorstFrameRecord, exposure: Float64Array, sums: Float32Array[], coverage: Uint16Array, frameRejected: number[]): void {
+  for (let j = 0; j < worst.pixel.length; j++) {
     const i = worst.pixel[j];
-    if (worst.score[j] <= (hit[i] ? OUTLIER_SIGMAS : OUTLIER_WING_SIGMAS)) continue;
-    if (!hit[i] && !isNearSet(hit, i, width, height, REJECT_GROW_PX)) continue;
     // Keep the pixel when the worst frame was its only light: a lone frame has nothing to disagree with.
     if (!(exposure[i] - worst.weight[j] > 1e-6 * exposure[i])) continue;
     exposure[i] -= worst.weight[j];

@@ -14,12 +14,13 @@
 //    outliers (trails, cosmic rays, hot pixels that moved with tracking) against
 //    the leave-one-out estimate of the other frames. A positive outlier in one
 //    frame also pulls the pilot, so every other frame looks a little low there:
-//    only the single worst frame at each pixel is taken out, once all frames are in.
+//    only the single worst frame at each pixel is taken out, once all frames are in,
+//    where it scores as an outlier or in the wings of its own outliers.
 //  - 8-bit data: Debevec and Malik (1997), SIGGRAPH, eq. 6:
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
 import { selectKth } from "./select";
 import { ImagingError } from "./errors";
-import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
+import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, keepOwnWings, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
 
 export { OUTLIER_SIGMAS, type WorstFrameRecord } from "./merge-outliers";
 
@@ -640,6 +641,7 @@ export function addBandToMerge(acc: MergeAccumulator, band: MergeFrameInput, off
 export function closeMergeFrame(acc: MergeAccumulator, tally: MergeFrameTally): void {
   const n = acc.width * acc.height;
   const candidates = tally.candidates;
+  if (acc.worst && candidates) keepOwnWings(candidates, acc.width, acc.height);
   if (acc.worst && candidates && candidates.count > 0) acc.worst = joinWorstRecords(acc.worst, candidates, candidates.count, 0, acc.frameWeight.length);
   tally.candidates = undefined;
   acc.frameWeight.push(tally.weightSum);
@@ -712,7 +714,7 @@ export function combineMergeAccumulators(parts: MergeAccumulator[]): MergeAccumu
 export function finishMerge(acc: MergeAccumulator): MergeResult {
   const n = acc.width * acc.height;
   acc.pilot = undefined;
-  if (acc.worst) removeOutliers(acc.worst, acc.width, acc.height, acc.weights[0], acc.sums, acc.coverage, acc.frameRejected);
+  if (acc.worst) removeOutliers(acc.worst, acc.weights[0], acc.sums, acc.coverage, acc.frameRejected);
   const radiance = acc.sums.map((sum, c) => {
     const weight = acc.weighting === "photon" ? acc.weights[0] : acc.weights[c];
     for (let i = 0; i < n; i++) {
