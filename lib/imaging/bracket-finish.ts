@@ -1,20 +1,17 @@
 // The merge and the finish of a reduction: merge passes over any slice of the
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
-import { type PreparedFrame, describeMergeFrame, openFrameWarp, warpFrameBand, warpFramePoints, LIMB_MARGIN_PX } from "./frame-stage";
+import { type PreparedFrame, describeMergeFrame, openFrameWarp, warpFrameBand, warpFramePoints } from "./frame-stage";
 import { describeTransmission, RELEASED_PLANE, type BracketPlan } from "./bracket-plan";
 import { ImagingError } from "./errors";
-import { linearizeFrame, repairDefects } from "./linearize";
+import { linearizeFrame } from "./linearize";
 import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, listScoreSamplePixels, sampleScorePoints, toPilot, type MergeAccumulator, type MergeFrameInput, type MergeFrameTally, type MergeResult, type PhotonPilot } from "./merge";
-import { applyMgn, applyNrgf, blendWithGlobalImage, createValidMask, type LunarDisk } from "./radial";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
 import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { applyAffine, fromAffine } from "./similarity";
-import { computeLuminancePlane } from "./srgb";
-import { createStructureMask } from "./structure-noise";
-import { computePercentiles, measureWhiteFraction, renderNatural, renderStructure } from "./tone";
-import { DEFAULT_REDUCTION_PARAMS, type FrameCount, type LinearFrame, type PlaneImage } from "./types";
+import { renderMasterRenditions } from "./renditions";
+import type { FrameCount, LinearFrame, PlaneImage } from "./types";
 import { PIPELINE_VERSION } from "./version";
 import type { ReductionResult } from "./pipeline";
 
@@ -248,42 +245,6 @@ function findEmptyPixels(merged: MergeResult): Uint8Array | undefined {
   return holes;
 }
 
-/** log2 of the 99.9th over the 0.1th percentile of positive, well-exposed luminance outside the Moon. */
-export function measureDynamicRangeStops(lum: Float32Array, width: number, height: number, coverage: Uint16Array, moon: LunarDisk): number {
-  const valid = createValidMask(width, height, { ...moon, radiusPx: moon.radiusPx + LIMB_MARGIN_PX });
-  for (let i = 0; i < lum.length; i++) if (!coverage[i] || !(lum[i] > 0)) valid[i] = 0;
-  const [lo, hi] = computePercentiles(lum, [0.1, 99.9], valid);
-  return lo > 0 && hi > lo ? Math.log2(hi / lo) : 0;
-}
-
-/** Sets every plane to 0 within bandPx of the image's edge. */
-function blankEdgeBand(image: PlaneImage, bandPx: number): void {
-  const { width, height } = image;
-  for (const p of image.planes) {
-    for (let y = 0; y < height; y++) {
-      const row = y * width;
-      if (y < bandPx || y >= height - bandPx) p.fill(0, row, row + width);
-      else {
-        p.fill(0, row, row + Math.min(bandPx, width));
-        p.fill(0, row + Math.max(0, width - bandPx), row + width);
-      }
-    }
-  }
-}
-
-/** The structure rendition of the luminance; every plane of the filter's is let go (released to the runner) before it returns. */
-function renderStructureRendition(plan: BracketPlan, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, filterCentre: { x: number; y: number }, runner: PlaneRunner): PlaneImage {
-  const { width, height, params } = plan;
-  const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
-  // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
-    : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
-  const structure = renderStructure(filtered, width, height);
-  runner.release(filtered.data, filtered.valid);
-  return structure;
-}
-
 /** The master, its renditions and the report of each frame, from a finished plan and its last merge pass. */
 export function finishBracket(plan: BracketPlan, acc: MergeAccumulator, onProgress?: (stage: string, fraction: number) => void, mergeMs = 0, runner?: PlaneRunner): ReductionResult {
   const started = performance.now();
@@ -310,23 +271,14 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
   const master: PlaneImage = { width, height, planes: merged.radiance };
   timingsMs["warp-and-merge"] = mergeMs;
   // The master keeps its empty pixels (every frame's defect there); the renditions show them
-  // filled from their neighbours, so that a masked defect is not a black dot in the picture.
-  // The filled copy is made where it is read (twice, when there are holes), not kept beside
-  // the structure filter's buffers.
+  // filled from their neighbours (renditions.ts).
   const holes = findEmptyPixels(merged);
-  const makeShown = (): PlaneImage => (holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master);
 
-  // One rendition after the other, each buffer let go after its last reader, so that at 24
-  // megapixels the structure filter's working planes never sit beside the natural rendition.
-  progress("renditions", 0);
   const refOffset = offsets?.[plan.names[keep[ref]]];
   const sunCentre = refOffset ? { x: referenceMoon.x - refOffset.dx, y: referenceMoon.y - refOffset.dy } : undefined;
   const filterCentre = sunCentre ?? { x: referenceMoon.x, y: referenceMoon.y };
-  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height, true));
-  const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, merged.coverage, referenceMoon);
-  const filterDisk = { ...referenceMoon, radiusPx: referenceMoon.radiusPx + 1 };
-  // Uncovered pixels and the canvas edge are masked, not enhanced. Along the edge, master pixels
-  // within the largest frame displacement (plus the bicubic reach of 2 px) miss some frames.
+  // Along the edge, master pixels within the largest frame displacement (plus the bicubic reach
+  // of 2 px) miss some frames.
   let reachPx = 0;
   for (const r of plan.registration) {
     for (const [x, y] of [[0, 0], [width - 1, 0], [0, height - 1], [width - 1, height - 1]]) {
@@ -335,23 +287,9 @@ export function finishMergedBracket(plan: BracketPlan, merged: MergeResult, onPr
     }
   }
   const edgeBandPx = Math.min(Math.ceil(reachPx) + 2, Math.floor(Math.min(width, height) / 4));
-  const structureMask = createStructureMask(width, height, merged.coverage, { lunarDisk: filterDisk, edgeBandPx });
-  const structure = renderStructureRendition(plan, luminance, structureMask, filterDisk, filterCentre, runner);
-  // The filter's planes are done with: the natural rendition's are fewer (see PlaneRunner.trim).
-  runner.trim();
-
-  progress("renditions", 0.5);
-  const outsideMoon = createValidMask(width, height, referenceMoon);
-  // White point at the top of the inner corona: the ring from the lunar limb to about 1.1 solar radii.
-  const limbRing = { x: referenceMoon.x, y: referenceMoon.y, innerPx: referenceMoon.radiusPx, outerPx: 1.1 * referenceMoon.radiusPx };
-  const natural = renderNatural(makeShown(), { valid: outsideMoon, luminance, limbRing, runner });
-  runner.release(luminance);
-  luminance = undefined;
-  // The same band is black in the natural rendition too: there only some frames reach, and a
-  // column lit by the short exposures alone showed as a dotted line along the edge.
-  blankEdgeBand(natural.image, edgeBandPx);
-  const whiteFractionAtLimb = measureWhiteFraction(natural.image, limbRing, undefined, outsideMoon);
-  progress("renditions", 1);
+  const { structure, natural, dynamicRangeStops, whiteFractionAtLimb } = renderMasterRenditions({
+    master, holes, coverage: merged.coverage, moon: referenceMoon, filterCentre, edgeBandPx, params, runner, onProgress: progress,
+  });
   timingsMs.renditions = performance.now() - clock;
 
   return {

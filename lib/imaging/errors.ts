@@ -9,7 +9,8 @@ export type ImagingErrorCode =
   | "bad-parameter"
   | "limb-not-found"
   | "registration-failed"
-  | "singular-system";
+  | "singular-system"
+  | "too-large";
 
 export class ImagingError extends Error {
   readonly code: ImagingErrorCode;

@@ -15,7 +15,7 @@ import type { BlackLevelSource, LinearFrame, PlaneImage, ProgressFn, ReductionPa
 export { PIPELINE_VERSION } from "./version";
 export { prepareFrame, warpFrameForMerge, type PreparedFrame } from "./frame-stage";
 export { recoverBracketResponse, TRANSMISSION_TOLERANCE, validateBracket, type BracketPlan, type FrameLeftOut } from "./bracket-plan";
-export { measureDynamicRangeStops } from "./bracket-finish";
+export { measureDynamicRangeStops } from "./renditions";
 
 export interface FrameReport {
   name: string;
