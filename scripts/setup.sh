@@ -3,7 +3,7 @@
 # lockfile changed). Safe to run again; quick when nothing is missing.
 . "$(dirname "$0")/lib/common.sh"
 
-APT_PACKAGES=(postgresql redis-server chromium libraw-bin perl python3-astropy python3-opencv python3-skimage python3-numpy python3-pyavm python3-ccdproc)
+APT_PACKAGES=(postgresql redis-server chromium libraw-bin perl python3-astropy python3-opencv python3-skimage python3-numpy python3-pyavm python3-ccdproc python3-reproject)
 
 missing=()
 for p in "${APT_PACKAGES[@]}"; do

@@ -17,7 +17,7 @@ import { ImagingError } from "./errors";
 import { correlatePhase } from "./fft";
 import { applyPixelMap, chooseCompositeGrid, helioToPixel, mapBetweenGrids, pixelToHelio, type HelioGrid, type PixelMap } from "./composite-geometry";
 import { computeEdgeTaper, computeEdgeWeight, computeMoonWeight, computeNeededScale, computeResolutionWeight, createMoonMask, lookUpNoise, measureNoiseProfile, type MoonMask, type NoiseProfile } from "./composite-weights";
-import { warpPlanes, type WarpTarget } from "./resample";
+import { warpPlanes, type ResampleKernel, type WarpTarget } from "./resample";
 import type { AffineSimilarity } from "./similarity";
 
 export interface CompositeInput {
@@ -442,11 +442,11 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
 
 /**
  * One master on another grid, by the composite's own resampling (Keys bicubic,
- * resample.ts): what the composite takes from it before weights. `covered` marks
- * the pixels whose source point lies in the master.
+ * resample.ts, unless told bilinear): what the composite takes from it before
+ * weights. `covered` marks the pixels whose source point lies in the master.
  */
-export function reprojectMaster(input: Pick<CompositeInput, "name" | "planes" | "grid">, onto: HelioGrid): WarpTarget {
-  return warpPlanes(input.planes, input.grid.width, input.grid.height, toSimilarity(mapBetweenGrids(onto, input.grid), input.name), { width: onto.width, height: onto.height }, "bicubic");
+export function reprojectMaster(input: Pick<CompositeInput, "name" | "planes" | "grid">, onto: HelioGrid, kernel: ResampleKernel = "bicubic"): WarpTarget {
+  return warpPlanes(input.planes, input.grid.width, input.grid.height, toSimilarity(mapBetweenGrids(onto, input.grid), input.name), { width: onto.width, height: onto.height }, kernel);
 }
 
 /** The composite's pixel of a helioprojective point, for reports and tests. */

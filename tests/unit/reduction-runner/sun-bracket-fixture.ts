@@ -37,7 +37,17 @@ export interface SunBracketFixture {
   /** Largest distance between the linear Moon path the generator draws and the ephemeris offsets, px. */
   pathNonlinearityPx: number;
   scaleArcsecPerPx: number;
+  sizePx: number;
 }
+
+/** Another kit on the same site and instant: its frames' size, the Sun's radius in them, and a roll of the camera (deg, added to every frame's turn). */
+export interface SunKit {
+  sizePx: number;
+  radiusPx: number;
+  rollDeg: number;
+}
+
+export const SUN_KIT: SunKit = { sizePx: SUN_SIZE_PX, radiusPx: SUN_RADIUS_PX, rollDeg: 0 };
 
 /** Offset of n arcsec north and e arcsec east in image pixels (x right, y down), for north at angle theta counter-clockwise from up. */
 function layOffsetInImage(northArcsec: number, eastArcsec: number, thetaDeg: number, scale: number): { dx: number; dy: number } {
@@ -50,39 +60,39 @@ function layOffsetInImage(northArcsec: number, eastArcsec: number, thetaDeg: num
   return { dx: (northArcsec * north.x + eastArcsec * east.x) / scale, dy: (northArcsec * north.y + eastArcsec * east.y) / scale };
 }
 
-export async function writeSunBracket(parent = mkdtempSync(join(tmpdir(), "crownlight-sun-"))): Promise<SunBracketFixture> {
+export async function writeSunBracket(parent = mkdtempSync(join(tmpdir(), "crownlight-sun-")), kit: SunKit = SUN_KIT): Promise<SunBracketFixture> {
   const maximum = findLocalCircumstances(SUN_SITE, Date.UTC(2024, 3, 8, 16, 0, 0)).maximum.utcMs;
   const exposuresS = Array.from({ length: FRAME_COUNT }, (_, k) => Number(((1 / 2000) * (2000 / 15) ** (k / (FRAME_COUNT - 1))).toPrecision(3)));
   const trueStartsMs = exposuresS.map((_, k) => Math.round(maximum + (k - (FRAME_COUNT - 1) / 2) * FRAME_INTERVAL_S * 1000));
   const states = trueStartsMs.map((t, k) => computeSunMoonState(SUN_SITE, t + exposuresS[k] * 500));
   const middle = states[(FRAME_COUNT - 1) / 2];
-  const scaleArcsecPerPx = middle.sun.semiDiameterArcsec / SUN_RADIUS_PX;
+  const scaleArcsecPerPx = middle.sun.semiDiameterArcsec / kit.radiusPx;
   const offsets = states.map((s) => layOffsetInImage(s.moonMinusSun.northArcsec, s.moonMinusSun.eastArcsec, NORTH_ANGLE_DEG, scaleArcsecPerPx));
   // The generator draws a straight, steady path; over 96 s the ephemeris is straight to far below a pixel.
   const drift = { dx: (offsets[FRAME_COUNT - 1].dx - offsets[0].dx) / (FRAME_COUNT - 1), dy: (offsets[FRAME_COUNT - 1].dy - offsets[0].dy) / (FRAME_COUNT - 1) };
   const pathNonlinearityPx = Math.max(...offsets.map((o, k) => Math.hypot(o.dx - offsets[0].dx - k * drift.dx, o.dy - offsets[0].dy - k * drift.dy)));
   const rng = createRng(SUN_SEED ^ 0x5eed);
   const { frames, truth } = synthesizeBracket({
-    width: SUN_SIZE_PX,
-    height: SUN_SIZE_PX,
+    width: kit.sizePx,
+    height: kit.sizePx,
     channels: 1,
     exposuresS,
-    sunRadiusPx: SUN_RADIUS_PX,
+    sunRadiusPx: kit.radiusPx,
     seed: SUN_SEED,
     moonRadiusRatio: middle.moon.semiDiameterArcsec / middle.sun.semiDiameterArcsec,
     moonOffsetPx: offsets[0],
     moonDriftPxPerFrame: drift,
     // Pointing errors between frames, as a tracking mount has them: up to 3 px and 0.2 deg.
     shiftsPx: exposuresS.map(() => ({ dx: (rng() - 0.5) * 6, dy: (rng() - 0.5) * 6 })),
-    rotationsDeg: exposuresS.map(() => (rng() - 0.5) * 0.4),
+    rotationsDeg: exposuresS.map(() => kit.rollDeg + (rng() - 0.5) * 0.4),
     captureStartMs: trueStartsMs[0],
     frameIntervalS: FRAME_INTERVAL_S,
   });
   const dir = join(parent, "bracket");
   const written = await writeSyntheticBracket(
     {
-      width: SUN_SIZE_PX,
-      height: SUN_SIZE_PX,
+      width: kit.sizePx,
+      height: kit.sizePx,
       blackLevel: truth.blackLevel,
       whiteLevel: truth.whiteLevel,
       // DATE-OBS as the camera wrote it: its clock ran ahead.
@@ -92,5 +102,5 @@ export async function writeSunBracket(parent = mkdtempSync(join(tmpdir(), "crown
     dir,
     ["fits"],
   );
-  return { dir, files: written.map((w) => join(dir, w.files.fits!)), truth, trueStartsMs, exposuresS, pathNonlinearityPx, scaleArcsecPerPx };
+  return { dir, files: written.map((w) => join(dir, w.files.fits!)), truth, trueStartsMs, exposuresS, pathNonlinearityPx, scaleArcsecPerPx, sizePx: kit.sizePx };
 }
