@@ -91,7 +91,7 @@ export async function runCompositeOnFiles(options: RunCompositeOptions): Promise
     let lap = performance.now();
     const renditions = renderMasterRenditions({
       master, coverage: result.coverage, moon: result.moonCover, filterCentre: { x: grid.sunX, y: grid.sunY }, edgeBandPx: 2,
-      params: { filter: options.filter ?? "mgn" }, onProgress: progress,
+      params: { filter: options.filter ?? "mgn" }, noiseVariance: result.noiseVariance, onProgress: progress,
     });
     const timingsMs: Record<string, number> = { read: readMs, ...result.timingsMs, renditions: performance.now() - lap };
 

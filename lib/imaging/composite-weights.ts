@@ -40,9 +40,15 @@ export function computeResolutionWeight(scaleArcsecPerPx: number, needed: number
   return smoothStep((needed / scaleArcsecPerPx - 0.8) / 0.2);
 }
 
-/** Pixels of an input kept clear of its edges (bicubic reach and the merge's thin edge), and the taper's length beyond them. */
+/**
+ * Pixels of an input kept clear of its edges (bicubic reach and the merge's thin
+ * edge), and the taper's length beyond them: a tenth of the field's shorter side
+ * (at least 32 px). Where an input ends, the composite's noise changes grain and
+ * level (the ending input's pixels leave the mix); a narrow taper showed that as
+ * a line in the structure rendition, whose filter brings noise up to view.
+ */
 export function computeEdgeTaper(width: number, height: number): { marginPx: number; taperPx: number } {
-  return { marginPx: 4, taperPx: Math.max(16, Math.round(0.03 * Math.min(width, height))) };
+  return { marginPx: 4, taperPx: Math.max(32, Math.round(0.1 * Math.min(width, height))) };
 }
 
 /** Weight of an input pixel at (x, y) for its distance to the field's nearest edge. */

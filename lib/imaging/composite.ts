@@ -77,6 +77,13 @@ export interface CompositeResult {
   radiance: Float32Array[];
   /** Inputs that contribute at each pixel. */
   coverage: Uint16Array;
+  /**
+   * Noise variance of the luminance at each pixel (the composite's units
+   * squared), from the inputs' measured noise and their weights: the structure
+   * filter's SNR weighting needs it, since an estimate from the image itself
+   * misses noise that reprojection has spread over neighbouring pixels.
+   */
+  noiseVariance: Float32Array;
   /** Per input, its share of the weight at each pixel, 0..255. */
   shares: Uint8Array[];
   inputs: CompositeInputReport[];
@@ -335,7 +342,7 @@ export function composeMasters(inputs: CompositeInput[], options: CompositeOptio
   }
   timingsMs.total = performance.now() - clock;
   return {
-    grid, radiance: merged.radiance, coverage: merged.coverage, shares: merged.shares, inputs: reports, sunRadiusPx,
+    grid, radiance: merged.radiance, coverage: merged.coverage, noiseVariance: merged.variance, shares: merged.shares, inputs: reports, sunRadiusPx,
     moonCover: { x: grid.sunX, y: grid.sunY, radiusPx: moonReach }, timingsMs,
   };
 }
@@ -346,6 +353,8 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
   const n = width * height;
   const sums = Array.from({ length: channels }, () => new Float32Array(n));
   const weightSum = new Float32Array(n);
+  // Sum of w^2 times each input's pixel variance: the composite's noise variance, once divided by the weight sum squared.
+  const variance = new Float32Array(n);
   const coverage = new Uint16Array(n);
   const shares = prepared.map(() => new Uint8Array(n));
   const weightTotals = prepared.map(() => 0);
@@ -357,21 +366,24 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
   // Per input, its weight against distance: inverse noise variance, and apart from it the resolution taper.
   const stepR = 0.005;
   const rTop = Math.hypot(width, height) / sunRadiusPx + 1;
-  const steps = Math.ceil(rTop / stepR) + 2;
-  const inverseVariance = prepared.map((p) => {
+  const stepCount = Math.ceil(rTop / stepR) + 2;
+  // Noise of an input's value at a composite pixel (its pixel's noise, in the composite's units), and
+  // that times the input's pixels per composite pixel's side: its noise per unit of sky area.
+  const pixelVariance = prepared.map((p) => {
     const lum = p.factors.reduce((s, f) => s + f, 0) / p.factors.length;
-    const ratio = p.grid.scaleArcsecPerPx / grid.scaleArcsecPerPx;
-    return Float64Array.from({ length: steps }, (_, j) => {
-      // Noise per composite pixel, times the input's pixels per composite pixel's side: per unit of sky area.
-      const sigma = lum * p.areaFactor * lookUpNoise(p.noise, j * stepR) * ratio;
-      return 1 / (sigma * sigma);
-    });
+    return Float64Array.from({ length: stepCount }, (_, j) => (lum * p.areaFactor * lookUpNoise(p.noise, j * stepR)) ** 2);
   });
-  const resolution = prepared.map((p) => Float64Array.from({ length: steps }, (_, j) => computeResolutionWeight(p.grid.scaleArcsecPerPx, computeNeededScale(grid.scaleArcsecPerPx, j * stepR))));
+  const inverseVariance = prepared.map((p, k) => {
+    const ratio = p.grid.scaleArcsecPerPx / grid.scaleArcsecPerPx;
+    return pixelVariance[k].map((v) => 1 / (v * ratio * ratio));
+  });
+  const resolution = prepared.map((p) => Float64Array.from({ length: stepCount }, (_, j) => computeResolutionWeight(p.grid.scaleArcsecPerPx, computeNeededScale(grid.scaleArcsecPerPx, j * stepR))));
   // The inputs finer than each one: where they are all absent, its resolution taper is lifted.
   const finer = prepared.map((p) => prepared.flatMap((q, k) => (q.grid.scaleArcsecPerPx < p.grid.scaleArcsecPerPx ? [k] : [])));
   // Each input's place in the band (edge and Moon tapers), before noise and resolution.
   const reach = prepared.map(() => new Float32Array(rows * width));
+  // Each band pixel's step in r (the tables' index), shared by the inputs.
+  const steps = new Int32Array(rows * width);
   for (let y0 = 0; y0 < height; y0 += rows) {
     const y1 = Math.min(height, y0 + rows);
     const len = (y1 - y0) * width;
@@ -410,6 +422,7 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
           for (const f of finer[k]) finerHere = Math.max(finerHere, reach[f][j]);
           const res = resolution[k][step];
           w[j] = place * inverseVariance[k][step] * (res + (1 - res) * (1 - finerHere));
+          steps[j] = step;
         }
       }
       for (let j = 0; j < len; j++) {
@@ -418,6 +431,7 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
         const i = y0 * width + j;
         for (let c = 0; c < channels; c++) sums[c][i] += wj * p.factors[c] * p.areaFactor * out.planes[Math.min(c, out.planes.length - 1)][j];
         weightSum[i] += wj;
+        variance[i] += wj * wj * pixelVariance[k][steps[j]];
         coverage[i]++;
       }
     }
@@ -436,8 +450,9 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
   for (let i = 0; i < n; i++) {
     const total = weightSum[i];
     for (let c = 0; c < channels; c++) sums[c][i] = total > 0 ? sums[c][i] / total : 0;
+    variance[i] = total > 0 ? variance[i] / (total * total) : 0;
   }
-  return { radiance: sums, coverage, shares, weightTotals };
+  return { radiance: sums, coverage, shares, weightTotals, variance };
 }
 
 /**

@@ -49,6 +49,8 @@ export interface RenditionsInput {
   /** Pixels along the canvas edge masked in the structure rendition and black in the natural one. */
   edgeBandPx: number;
   params: Pick<ReductionParams, "filter" | "filterStrength">;
+  /** Noise variance of the luminance per pixel, when the caller knows it (MGN's SNR weighting; estimated from the image when absent). */
+  noiseVariance?: Float32Array;
   runner?: PlaneRunner;
   /** "renditions" at 0, at 0.5 when the structure rendition is done, and at 1. */
   onProgress?: (stage: string, fraction: number) => void;
@@ -68,7 +70,7 @@ function renderStructureRendition(input: RenditionsInput, luminance: Float32Arra
   const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
   // The strength weighs local structure against the overall image: MGN's h is its complement.
   const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, runner })
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, noiseVariance: input.noiseVariance, runner })
     : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
   const structure = renderStructure(filtered, width, height);
   runner.release(filtered.data, filtered.valid);
