@@ -6,7 +6,8 @@
 //  (b) our 8-bit merge over OpenCV's MergeDebevec (python3-opencv) on the same
 //      codes, each side timed around the merge alone.
 // Run: npm run bench            (the gallery: npm run bench -- gallery; print bundles: npm run bench -- export;
-//      brackets of 9, 27 and 81 frames, each reduced in a watched process: npm run bench -- scale)
+//      brackets of 9, 27 and 81 frames, each reduced in a watched process: npm run bench -- scale;
+//      a composite of three 24-megapixel masters: npm run bench -- compose)
 import { mkdtempSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { basename, join } from "node:path";
@@ -99,8 +100,11 @@ async function main(): Promise<void> {
 // `npm run bench -- gallery` measures the public gallery instead (needs the app running).
 // `npm run bench -- export` measures the print bundle (no services needed).
 // `npm run bench -- scale` measures how a reduction grows with the number of frames, in one process and through the app's flow (needs the services).
+// `npm run bench -- compose` measures a composite of three 24-megapixel masters (no services needed).
 const run = process.argv.includes("scale")
   ? () => import("./bench/scale").then((m) => m.runScaleBench(process.argv.slice(2)))
+  : process.argv.includes("compose")
+  ? () => import("./bench/compose").then((m) => m.runComposeBench())
   : process.argv.includes("gallery")
     ? () => import("./bench-gallery").then(() => undefined)
     : process.argv.includes("export")

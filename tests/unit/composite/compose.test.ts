@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { composeMasters, reprojectMaster, type CompositeResult } from "@/lib/imaging/composite";
 import { blurGaussian } from "@/lib/imaging/blur";
 import { pixelToHelio } from "@/lib/imaging/composite-geometry";
-import { createSky, renderMaster, RSUN_ARCSEC, type KitSpec } from "./composite-fixture";
+import { createSky, renderMaster, RSUN_ARCSEC, type KitSpec } from "@/lib/imaging/synth-composite";
 
 // One corona through three kits: a long lens (8 arcsec/px, a field of about 2 solar
 // radii), a short lens of a third the focal length (24 arcsec/px, out to 6 radii,

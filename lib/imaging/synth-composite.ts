@@ -1,12 +1,12 @@
 // Synthetic masters of one corona seen through several kits: the scene model of
-// lib/imaging/synth-scene.ts (Baumbach's K+F corona with streamers, plumes, rays
-// and prominences) evaluated in helioprojective arcsec, integrated over each
-// kit's pixels, scaled by each camera's gain, with each observer's own Moon and
-// photon-like noise. Invented data for tests: the truth is the model.
-import { createRng } from "@/lib/imaging/random";
-import { createScene, evaluateCorona, evaluateProminences, type Scene } from "@/lib/imaging/synth-scene";
-import { pixelToHelio, type HelioGrid } from "@/lib/imaging/composite-geometry";
-import type { CompositeInput } from "@/lib/imaging/composite";
+// synth-scene.ts (Baumbach's K+F corona with streamers, plumes, rays and
+// prominences) evaluated in helioprojective arcsec, integrated over each kit's
+// pixels, scaled by each camera's gain, with each observer's own Moon and
+// photon-like noise. Invented data for tests and the benchmark: the truth is the model.
+import { createRng } from "./random";
+import { createScene, evaluateCorona, evaluateProminences, type Scene } from "./synth-scene";
+import { pixelToHelio, type HelioGrid } from "./composite-geometry";
+import type { CompositeInput } from "./composite";
 
 export const RSUN_ARCSEC = 960;
 /** The model's own pixel: fine enough for the finest kit (arcsec). */
@@ -30,6 +30,9 @@ export interface KitSpec {
   /** Photon-like noise: sigma^2 = noiseScale x value (DN/s); 0 for none. */
   noiseScale: number;
   seed: number;
+  /** Samples per pixel side for the pixel's mean (default 3); colour planes' relative gains (default one plane). */
+  subsamples?: number;
+  planeGains?: number[];
 }
 
 export interface SyntheticSky {
@@ -51,7 +54,7 @@ export function createSky(seed = 5): SyntheticSky {
   };
 }
 
-/** A kit's master: each pixel the model's mean over 3 x 3 points of it, times gain and pixel area, plus noise; 0 inside its Moon. */
+/** A kit's master: each pixel the model's mean over n x n points of it, times gain and pixel area, plus noise; 0 inside its Moon. */
 export function renderMaster(sky: SyntheticSky, kit: KitSpec): { input: CompositeInput; trueGrid: HelioGrid } {
   const { width, height } = kit;
   const trueGrid: HelioGrid = {
@@ -59,33 +62,36 @@ export function renderMaster(sky: SyntheticSky, kit: KitSpec): { input: Composit
     sunX: (width - 1) / 2 + (kit.sunOffsetPx?.dx ?? 0), sunY: (height - 1) / 2 + (kit.sunOffsetPx?.dy ?? 0),
   };
   const rng = createRng(kit.seed);
-  const plane = new Float32Array(width * height);
+  const planeGains = kit.planeGains ?? [1];
+  const planes = planeGains.map(() => new Float32Array(width * height));
   const moonR = 1.03 * RSUN_ARCSEC;
   const area = kit.scaleArcsecPerPx ** 2;
+  const n = kit.subsamples ?? 3;
+  const offsets = Array.from({ length: n }, (_, k) => (k + 0.5) / n - 0.5);
   for (let y = 0; y < height; y++) {
     for (let x = 0; x < width; x++) {
       let sum = 0;
-      for (const oy of [-1 / 3, 0, 1 / 3]) {
-        for (const ox of [-1 / 3, 0, 1 / 3]) {
+      for (const oy of offsets) {
+        for (const ox of offsets) {
           const w = pixelToHelio(trueGrid, x + ox, y + oy);
           if (Math.hypot(w.lonArcsec - kit.moonArcsec.lon, w.latArcsec - kit.moonArcsec.lat) < moonR) continue;
           sum += sky.radianceAt(w.lonArcsec, w.latArcsec);
         }
       }
-      const value = (kit.gain * area * sum) / 9;
-      const noise = kit.noiseScale > 0 ? Math.sqrt(kit.noiseScale * Math.max(value, 0) + kit.noiseScale) * 2 * (rng() + rng() + rng() - 1.5) : 0;
-      plane[y * width + x] = value + noise;
+      planeGains.forEach((g, c) => {
+        const value = (g * kit.gain * area * sum) / (n * n);
+        const noise = kit.noiseScale > 0 ? Math.sqrt(kit.noiseScale * Math.max(value, 0) + kit.noiseScale) * 2 * (rng() + rng() + rng() - 1.5) : 0;
+        planes[c][y * width + x] = value + noise;
+      });
     }
   }
   // The Moon in the master's own pixels, where the picture shows it (a WCS error does not move it).
-  const moonPx = (() => {
-    const a = (kit.solarNorthDeg * Math.PI) / 180;
-    const u = kit.moonArcsec.lon / kit.scaleArcsecPerPx, v = kit.moonArcsec.lat / kit.scaleArcsecPerPx;
-    return { x: trueGrid.sunX + Math.cos(a) * u - Math.sin(a) * v, y: trueGrid.sunY - Math.sin(a) * u - Math.cos(a) * v };
-  })();
+  const a = (kit.solarNorthDeg * Math.PI) / 180;
+  const u = kit.moonArcsec.lon / kit.scaleArcsecPerPx, v = kit.moonArcsec.lat / kit.scaleArcsecPerPx;
+  const moonPx = { x: trueGrid.sunX + Math.cos(a) * u - Math.sin(a) * v, y: trueGrid.sunY - Math.sin(a) * u - Math.cos(a) * v };
   const stated: HelioGrid = { ...trueGrid, sunX: trueGrid.sunX + (kit.wcsErrorPx?.dx ?? 0), sunY: trueGrid.sunY + (kit.wcsErrorPx?.dy ?? 0) };
   return {
-    input: { name: kit.name, planes: [plane], grid: stated, moon: { x: moonPx.x, y: moonPx.y, radiusPx: moonR / kit.scaleArcsecPerPx }, rsunArcsec: RSUN_ARCSEC },
+    input: { name: kit.name, planes, grid: stated, moon: { x: moonPx.x, y: moonPx.y, radiusPx: moonR / kit.scaleArcsecPerPx }, rsunArcsec: RSUN_ARCSEC },
     trueGrid,
   };
 }
