@@ -3,6 +3,7 @@
 import type { JobName, JobPayload } from "@/lib/queue/jobs";
 import type { BasicContext, HandlerContext } from "./dispatch";
 import { runFlowPart } from "./flows";
+import { runComposite } from "./jobs/composite-run";
 import { exportEdition } from "./jobs/edition-export";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
@@ -29,6 +30,7 @@ export const HANDLERS: { [N in JobName]: JobHandler<N> | SteeringJobHandler<N> }
   "reduction.run": runReduction,
   "reduction.part": runFlowPart,
   "uploads.sweep": sweepUploads,
+  "composite.run": runComposite,
   "edition.export": exportEdition,
   "outbox.resend": resendOutbox,
 };

@@ -8,3 +8,4 @@ export * from "./reductions";
 export * from "./plates";
 export * from "./review";
 export * from "./editions";
+export * from "./composites";

@@ -3,3 +3,4 @@ export { runCompositeOnFiles, COMPOSITE_REPORT_VERSION, type CompositeReport, ty
 export { CompositeInputError, isCompositeInputError, type CompositeInputCode } from "./errors";
 export { parseComposeArgs, COMPOSE_USAGE, type ComposeArgs } from "./cli-args";
 export { readCompositeMaster, requireOneEclipse, type ReadMaster, type MasterProvenance } from "./read-master";
+export { runCompositeInThread } from "./run-in-thread";

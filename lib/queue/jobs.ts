@@ -47,6 +47,12 @@ export const JOBS = {
     payload: z.object({ reductionId: z.uuid(), ...PART_FIELDS }),
     attempts: 3,
   },
+  // One composite of finished reductions: fetch their masters, compose, store outputs.
+  "composite.run": {
+    queue: "reduce",
+    payload: z.object({ compositeId: z.uuid() }),
+    attempts: 3,
+  },
   // One print bundle of an edition: sized files with metadata, texts, proof, ZIP.
   "edition.export": {
     queue: "export",

@@ -1,6 +1,6 @@
 // The storage adapter's public surface.
 export { bucketName, createS3Client, getS3, type BucketRole } from "./s3";
-export { buildDerivedPrefix, buildOriginalKey, buildThumbnailKey, toSafeFileName } from "./keys";
+export { buildDerivedPrefix, buildCompositePrefix, buildOriginalKey, buildThumbnailKey, toSafeFileName } from "./keys";
 export * from "./limits";
 export {
   abortMultipartUpload,

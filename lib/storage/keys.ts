@@ -48,3 +48,8 @@ export function buildDerivedPrefix(setId: string): string {
 export function buildReductionWorkPrefix(reductionId: string): string {
   return `work/reductions/${requireUuid(reductionId, "reduction id")}/`;
 }
+
+/** Prefix of a composite's outputs (its inputs are other reductions' masters, read where they are). */
+export function buildCompositePrefix(compositeId: string): string {
+  return `derived/composites/${requireUuid(compositeId, "composite id")}/`;
+}

@@ -5,10 +5,11 @@
 // composite's stage times, its peak memory, and its ratio to a floor measured in
 // the same run: reading the three masters (FITS) plus sharp tiling one rendition.
 // Run: npm run bench -- compose
-import { existsSync, mkdirSync, mkdtempSync, rmSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, renameSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { readFits, writeFitsFile, type FitsCard } from "@/lib/media";
+import { readFits } from "@/lib/media";
+import { encodeSyntheticMaster } from "../lib-synth/write-master";
 import { createSharp } from "@/lib/media/sharp-setup";
 import { runCompositeOnFiles } from "@/lib/composite-runner";
 import { createSky, renderMaster, type KitSpec } from "@/lib/imaging/synth-composite";
@@ -32,21 +33,8 @@ async function prepareMasters(dir: string): Promise<{ files: string[]; madeS: nu
   for (const [k, kit] of KITS.entries()) {
     process.stdout.write(`making ${kit.name} (${k + 1} of ${KITS.length})\n`);
     const { input } = renderMaster(sky, kit);
-    const a = (input.grid.solarNorthDeg * Math.PI) / 180;
-    const cards: FitsCard[] = [
-      { key: "DATE-AVG", value: "2027-08-02T10:07:30.000" },
-      { key: "CTYPE1", value: "HPLN-TAN" }, { key: "CTYPE2", value: "HPLT-TAN" },
-      { key: "CRPIX1", value: input.grid.sunX + 1, real: true }, { key: "CRPIX2", value: input.grid.sunY + 1, real: true },
-      { key: "CRVAL1", value: 0, real: true }, { key: "CRVAL2", value: 0, real: true },
-      { key: "CDELT1", value: kit.scaleArcsecPerPx, real: true }, { key: "CDELT2", value: kit.scaleArcsecPerPx, real: true },
-      { key: "PC1_1", value: Math.cos(a), real: true }, { key: "PC1_2", value: -Math.sin(a), real: true },
-      { key: "PC2_1", value: -Math.sin(a), real: true }, { key: "PC2_2", value: -Math.cos(a), real: true },
-      { key: "RSUN_OBS", value: input.rsunArcsec, real: true },
-      { key: "MOONX", value: input.moon.x + 1, real: true }, { key: "MOONY", value: input.moon.y + 1, real: true }, { key: "MOONR", value: input.moon.radiusPx, real: true },
-    ];
     // Written beside, then moved into place: a bench stopped half-way leaves no master that looks whole.
-    await writeFitsFile(`${files[k]}.partial`, { width: WIDTH, height: HEIGHT, planes: input.planes, cards, history: ["Synthetic master for the composite benchmark (invented data)."] });
-    const { renameSync } = await import("node:fs");
+    writeFileSync(`${files[k]}.partial`, encodeSyntheticMaster(input, "2027-08-02T10:07:30.000", ["Master for the composite benchmark."]));
     renameSync(`${files[k]}.partial`, files[k]);
   }
   return { files, madeS: (performance.now() - started) / 1000 };
