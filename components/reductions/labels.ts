@@ -41,6 +41,11 @@ const STAGES: Record<string, string> = {
   tiles: "Cutting tiles",
   summary: "Measuring profile and coverage",
   store: "Storing the outputs",
+  // A composite's stages (lib/imaging/composite.ts, lib/composite-runner).
+  read: "Reading the masters",
+  measure: "Measuring each master's noise",
+  match: "Matching the masters' positions and brightness",
+  write: "Writing the outputs",
   done: "Finished",
 };
 

@@ -23,11 +23,12 @@ const isActive = (s: ReductionProgressState["state"]) => s === "queued" || s ===
 
 /**
  * State and progress of one reduction, read from GET /api/reductions/{id}
- * every second while it is queued or running. Stage changes and the end are
- * announced politely; when the reduction is done the page is refreshed so the
+ * every second while it is queued or running (a composite's likewise, from
+ * `pollUrl`, with `noun` "composite"). Stage changes and the end are
+ * announced politely; when the run is done the page is refreshed so the
  * server renders its results.
  */
-export function ReductionProgress({ reductionId, initial }: { reductionId: string; initial: ReductionProgressState }) {
+export function ReductionProgress({ reductionId, initial, pollUrl, noun = "reduction" }: { reductionId: string; initial: ReductionProgressState; pollUrl?: string; noun?: "reduction" | "composite" }) {
   const router = useRouter();
   const [current, setCurrent] = useState<ReductionProgressState>(initial);
   const [failures, setFailures] = useState(0);
@@ -41,10 +42,10 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
     let stopped = false;
     const timer = setTimeout(async () => {
       try {
-        const res = await fetch(`/api/reductions/${encodeURIComponent(reductionId)}`, { cache: "no-store" });
+        const res = await fetch(pollUrl ?? `/api/reductions/${encodeURIComponent(reductionId)}`, { cache: "no-store" });
         if (stopped) return;
         if (res.status === 404 || res.status === 401) {
-          setCurrent((c) => ({ ...c, state: "failed", error: res.status === 404 ? "This reduction is no longer visible to you." : "Your session ended: sign in again to follow the reduction." }));
+          setCurrent((c) => ({ ...c, state: "failed", error: res.status === 404 ? `This ${noun} is no longer visible to you.` : `Your session ended: sign in again to follow the ${noun}.` }));
           return;
         }
         if (!res.ok) throw new Error(String(res.status));
@@ -59,7 +60,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
       stopped = true;
       clearTimeout(timer);
     };
-  }, [current, failures, reductionId]);
+  }, [current, failures, reductionId, pollUrl, noun]);
 
   useEffect(() => {
     if (!isActive(current.state) && !refreshed.current) {
@@ -77,7 +78,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
   const percent = Math.round(Math.min(1, Math.max(0, current.progress)) * 100);
   // What the live region says: the stage and the end, not every percent.
   const announcement =
-    current.state === "done" ? "The reduction is finished." : current.state === "failed" ? `The reduction failed. ${current.error ?? ""}` : current.state === "queued" ? "Waiting for a worker." : `${stage}.`;
+    current.state === "done" ? `The ${noun} is finished.` : current.state === "failed" ? `The ${noun} failed. ${current.error ?? ""}` : current.state === "queued" ? "Waiting for a worker." : `${stage}.`;
 
   return (
     <div className="flex flex-col gap-3 rounded-card border border-line bg-surface-raised p-5">
@@ -90,7 +91,7 @@ export function ReductionProgress({ reductionId, initial }: { reductionId: strin
       ) : null}
       {current.state === "failed" ? (
         <p role="alert" className="rounded-control border border-danger/50 bg-danger/10 px-3 py-2 text-danger">
-          {current.error ?? "The reduction failed without a reason on record."}
+          {current.error ?? `The ${noun} failed without a reason on record.`}
         </p>
       ) : null}
       {failures >= QUIET_FAILURES && isActive(current.state) ? (

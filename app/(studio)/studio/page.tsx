@@ -24,6 +24,7 @@ export default async function StudioPage() {
   const cards = [
     { href: "/studio/kits", title: "Kits", text: `${kits.length} camera and optics profile${kits.length === 1 ? "" : "s"}` },
     { href: "/studio/sites", title: "Sites", text: `${sites.length} observing site${sites.length === 1 ? "" : "s"}` },
+    { href: "/studio/composites", title: "Composites", text: "One corona from several kits or observers of one eclipse" },
     { href: "/planner", title: "Field planner", text: "Contact times, exposure ladder and framing for a site and kit" },
   ];
   return (
