@@ -18,7 +18,8 @@ import { enqueue } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
 import { createSite } from "@/lib/sites/sites";
 import { createDemoBracket } from "./demo-geometry";
-import { DEMO_ECLIPSE_ID, DEMO_EXPOSURES_S, DEMO_PARTIES, toDemoPlace, type DemoParty } from "./demo-scenario";
+import { seedDemoComposite } from "./demo-composite";
+import { DEMO_CORONA_SEED, DEMO_ECLIPSE_ID, DEMO_EXPOSURES_S, DEMO_PARTIES, toDemoPlace, type DemoParty } from "./demo-scenario";
 
 export type SeedLog = (line: string) => void;
 
@@ -112,6 +113,7 @@ async function prepareParty(db: Db, party: DemoParty, log: SeedLog): Promise<Pre
     exposuresS: DEMO_EXPOSURES_S,
     frameIntervalS: party.frameIntervalS,
     seed: party.seed,
+    sceneSeed: DEMO_CORONA_SEED,
     filePrefix: party.filePrefix,
   });
   const totalityS = (bracket.thirdContactMs - bracket.secondContactMs) / 1000;
@@ -177,4 +179,5 @@ export async function seedDemoBrackets(db: Db, log: SeedLog): Promise<void> {
   for (const party of DEMO_PARTIES) prepared.push(await prepareParty(db, party, log));
   await waitForIngest(db, prepared, log);
   for (const p of prepared) await startDemoReduction(db, p, log);
+  await seedDemoComposite(db, log);
 }

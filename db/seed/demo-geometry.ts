@@ -34,6 +34,8 @@ export interface DemoBracketSpec {
   exposuresS: number[];
   frameIntervalS: number;
   seed: number;
+  /** Seed of the corona itself: every demo bracket shows the same Sun (DEMO_CORONA_SEED). */
+  sceneSeed: number;
   /** File names get this prefix and a two-digit number. */
   filePrefix: string;
 }
@@ -91,13 +93,19 @@ export function createDemoBracket(spec: DemoBracketSpec): DemoBracket {
   const scale = computeDemoPlateScale(spec.pixelPitchUm, spec.focalMm);
   const sun = states[middle].sun.semiDiameterArcsec;
   const moon = states[middle].moon.semiDiameterArcsec;
-  const offsets = states.map((s) => convertSkyOffsetToPx(s.moonMinusSun.northArcsec, s.moonMinusSun.eastArcsec, northAngleDeg, scale));
+  // One corona for every observer: the generator draws it with solar north up, from one seed, and each
+  // camera's frames turn it by where solar north stands in their picture. In that drawing celestial north
+  // stands at -P; a frame turned by r shows north at (its angle in the drawing) - r (synth-model.ts), so
+  // r = -P - northAngleDeg puts it where the kit's mount says. The Moon is laid in the drawing too.
+  const northInSceneDeg = -states[middle].pDeg;
+  const turnDeg = northInSceneDeg - northAngleDeg;
+  const offsets = states.map((s) => convertSkyOffsetToPx(s.moonMinusSun.northArcsec, s.moonMinusSun.eastArcsec, northInSceneDeg, scale));
   // The generator moves the Moon by a constant step per frame; over a few seconds its path is straight.
   const drift = n > 1 ? { dx: (offsets[n - 1].dx - offsets[0].dx) / (n - 1), dy: (offsets[n - 1].dy - offsets[0].dy) / (n - 1) } : { dx: 0, dy: 0 };
   // Small pointing errors between frames, as a real mount has (up to 2 px and 0.1 deg).
   const rng = createRng(spec.seed ^ 0x5eed);
   const shiftsPx = spec.exposuresS.map(() => ({ dx: (rng() - 0.5) * 4, dy: (rng() - 0.5) * 4 }));
-  const rotationsDeg = spec.exposuresS.map(() => (rng() - 0.5) * 0.2);
+  const rotationsDeg = spec.exposuresS.map(() => turnDeg + (rng() - 0.5) * 0.2);
   const sunRadiusPx = sun / scale;
   const { frames } = synthesizeBracket({
     width: spec.width,
@@ -111,6 +119,7 @@ export function createDemoBracket(spec: DemoBracketSpec): DemoBracket {
     shiftsPx,
     rotationsDeg,
     seed: spec.seed,
+    sceneSeed: spec.sceneSeed,
     whiteLevel: WHITE_DN,
     blackLevel: BLACK_DN,
     captureStartMs: startMs,

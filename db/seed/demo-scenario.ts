@@ -9,6 +9,8 @@ import type { DemoSitePlace } from "./demo-geometry";
 export const DEMO_ECLIPSE_ID = "2027-08-02";
 /** Corona brackets run from about 1/1000 s to several seconds (REFERENCES.md, common practice); 5 steps of 2 stops here. */
 export const DEMO_EXPOSURES_S = [1 / 1000, 1 / 250, 1 / 60, 1 / 15, 1 / 4];
+/** One corona for the whole demo: every observer's brackets show the same Sun, so that their reductions compose. */
+export const DEMO_CORONA_SEED = 2027_0802;
 export const SYNTHETIC_NOTE = "Synthetic frames made by Crownlight's own generator for the demo scenario, with the Sun and Moon placed as seen from this site; not an observation.";
 
 export interface DemoParty {
@@ -66,6 +68,32 @@ export const DEMO_PARTIES: DemoParty[] = [
     frameIntervalS: 2,
     seed: 2027_0802_1,
     filePrefix: "luxor",
+  },
+  {
+    email: "oskar.lindqvist@kestrel-ridge.example",
+    site: { kind: "fixed", name: "Luxor, west bank of the Nile", publicLabel: "Luxor", latDeg: 25.69, lonDeg: 32.64, elevationM: 80, precision: "rounded" },
+    kit: {
+      name: "Tracking mount, 400 mm lens, mono camera",
+      camera: "Cooled mono camera",
+      sensorWidthMm: 6.144,
+      sensorHeightMm: 4.608,
+      pixelPitchUm: 4.8,
+      focalMm: 400,
+      teleconverter: 1,
+      fNumber: 5.6,
+      mount: "equatorial",
+      flipHorizontal: false,
+      flipVertical: false,
+      notes: "Demo kit. A long lens on the same mount, for the inner corona and prominences.",
+    },
+    setName: "Luxor inner corona, long lens",
+    setNotes: `Five exposures from 1/1000 s to 1/4 s through the 400 mm lens, beside the 100 mm bracket. ${SYNTHETIC_NOTE}`,
+    width: 1280,
+    height: 960,
+    channels: 1,
+    frameIntervalS: 2,
+    seed: 2027_0802_4,
+    filePrefix: "luxor-long",
   },
   {
     email: "nadia.fairweather@kestrel-ridge.example",

@@ -1,7 +1,7 @@
 // The demo scenario: the invented Kestrel Ridge Astronomical Society and its
 // people. Safe to run on every start: nothing is duplicated or overwritten.
 // With SEED_DEMO_BRACKETS=1 (scripts/start.sh sets it; tests never do) it also
-// uploads the three demo brackets and starts their reductions; that step needs
+// uploads the demo brackets, starts their reductions and composes the two Luxor kits and starts their reductions; that step needs
 // the worker running.
 import { createDb } from "../client";
 import { DEMO_PASSWORD, DEMO_PEOPLE, seedPeople } from "./people";

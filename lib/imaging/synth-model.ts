@@ -17,6 +17,11 @@ export interface SynthOptions {
   exposuresS: number[];
   sunRadiusPx: number;
   seed: number;
+  /**
+   * Seed of the corona and prominences alone (default: seed). Brackets that share it
+   * show one and the same Sun, while their noise and pointing follow their own seeds.
+   */
+  sceneSeed?: number;
   /** Sun centre in scene (reference) pixels; default a little off the image centre. */
   sunCentre?: { x: number; y: number };
   /** Moon radius over Sun radius; default 1.045. */
@@ -168,7 +173,7 @@ export function synthesizeBracket(options: SynthOptions): { frames: SynthFrame[]
   requireOption(psf === 0 || psf >= 0.5, "psfSigmaPx", `must be 0 or at least 0.5, got ${psf}`);
   const rng = createRng(o.seed);
   const sun = o.sunCentre ?? { x: (width - 1) / 2 + 0.37, y: (height - 1) / 2 - 0.21 };
-  const scene = createScene(o, sun, rng);
+  const scene = createScene(o, sun, o.sceneSeed === undefined ? rng : createRng(o.sceneSeed));
   const moonR = sunRadiusPx * (o.moonRadiusRatio ?? 1.045);
   const offset0 = o.moonOffsetPx ?? { dx: 0.012 * sunRadiusPx, dy: -0.008 * sunRadiusPx };
   const drift = o.moonDriftPxPerFrame ?? { dx: 0, dy: 0 };
