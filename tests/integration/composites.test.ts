@@ -7,13 +7,12 @@ import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { composites, reductions } from "@/db/schema";
+import { makeComposableReduction, TEST_KITS } from "../support/composite-fixtures";
 import type { Actor } from "@/lib/auth/actor";
 import { findComposite, listComposableReductions, listComposites, startComposite } from "@/lib/composites/composites";
-import { createSky, renderMaster, type KitSpec } from "@/lib/imaging/synth-composite";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
-import { bucketName, buildCompositePrefix, buildDerivedPrefix, findObjectSize, putObjectBytes, readSmallObject } from "@/lib/storage";
-import { encodeSyntheticMaster } from "@/scripts/lib-synth/write-master";
+import { bucketName, buildCompositePrefix, findObjectSize, readSmallObject } from "@/lib/storage";
 import { requireTestDatabase } from "../support/env";
 import { createMember, createSetFor } from "./bracket-upload-helpers";
 
@@ -35,28 +34,8 @@ async function waitFor<T>(what: string, read: () => Promise<T | undefined>, time
   throw new Error(`${what} did not happen within ${timeoutMs} ms`);
 }
 
-const KITS: KitSpec[] = [
-  { name: "long", width: 280, height: 210, scaleArcsecPerPx: 16, solarNorthDeg: 0, gain: 1, moonArcsec: { lon: 12, lat: -6 }, noiseScale: 4, seed: 1 },
-  { name: "short", width: 240, height: 180, scaleArcsecPerPx: 40, solarNorthDeg: 25, gain: 0.6, moonArcsec: { lon: 12, lat: -6 }, noiseScale: 40, seed: 2 },
-];
-const sky = createSky(5);
-
-/** A finished reduction whose master is one kit's synthetic master, with the figures the chooser reads. */
-async function finishedReduction(setId: string, kit: KitSpec | null): Promise<string> {
-  const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${red.id}/`;
-  let measurements: Record<string, unknown> = { masterSize: { width: 100, height: 80 } };
-  if (kit) {
-    const { input } = renderMaster(sky, kit);
-    await putObjectBytes({ bucket: bucketName("derived"), key: `${prefix}master.fits` }, Buffer.from(encodeSyntheticMaster(input, "2027-08-02T10:07:30.000")), "application/fits");
-    measurements = { masterSize: { width: kit.width, height: kit.height }, sky: { sunCentrePx: { x: input.grid.sunX, y: input.grid.sunY }, sunRadiusPx: input.rsunArcsec / kit.scaleArcsecPerPx, plateScaleArcsecPerPx: kit.scaleArcsecPerPx } };
-  }
-  await db
-    .update(reductions)
-    .set({ state: "done", progress: 1, pipelineVersion: "test", finishedAt: new Date(), outputs: { prefix, master: `${prefix}master.fits` }, measurements })
-    .where(eq(reductions.id, red.id));
-  return red.id;
-}
+const finishedReduction = (setId: string, kit: (typeof TEST_KITS)[number] | null) => makeComposableReduction(db, setId, kit);
+const KITS = TEST_KITS;
 
 let owner: Actor, other: Actor, curator: Actor;
 let longId: string, shortId: string, othersId: string, noSkyId: string, runningId: string;

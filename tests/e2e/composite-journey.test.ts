@@ -1,0 +1,93 @@
+// A curator composes two observers' finished reductions in the browser: the
+// chooser lists each with its plate scale and field, the composite runs in the
+// worker with its progress on the page, and the result shows both renditions,
+// the contribution map over them on request, each input's brightness factor and
+// position correction, and the credits. The photographers of the inputs see it;
+// another member is told it does not exist.
+import { eq } from "drizzle-orm";
+import type { Browser } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { closeDb, getDb } from "@/db/client";
+import { bracketSets, sites, users } from "@/db/schema";
+import { DEMO_PEOPLE } from "@/db/seed/people";
+import { launchBrowser, snap } from "../support/browser";
+import { makeComposableReduction, TEST_KITS } from "../support/composite-fixtures";
+import { signIn } from "../support/sign-in";
+import { APP, requireTestDatabase } from "../support/env";
+import { seriousViolations } from "../support/axe";
+
+requireTestDatabase();
+const tag = Date.now().toString(36);
+const person = (prefix: string) => DEMO_PEOPLE.find((p) => p.email.startsWith(prefix))!;
+const curator = DEMO_PEOPLE.find((p) => p.roles.includes("curator"))!;
+const longSet = `Long lens at Luxor ${tag}`;
+const shortSet = `Short lens at Cadiz ${tag}`;
+let browser: Browser;
+
+async function setOf(email: string, name: string, place: { latDeg: number; lonDeg: number }): Promise<string> {
+  const db = getDb();
+  const [owner] = await db.select({ id: users.id }).from(users).where(eq(users.email, email));
+  const [site] = await db.insert(sites).values({ ownerId: owner.id, name: `${name} site`, kind: "fixed", ...place }).returning({ id: sites.id });
+  const [set] = await db.insert(bracketSets).values({ ownerId: owner.id, name, eclipseId: "2027-08-02", siteId: site.id }).returning({ id: bracketSets.id });
+  return set.id;
+}
+
+beforeAll(async () => {
+  browser = await launchBrowser();
+  const db = getDb();
+  await makeComposableReduction(db, await setOf(person("oskar").email, longSet, { latDeg: 25.69, lonDeg: 32.64 }), TEST_KITS[0]);
+  await makeComposableReduction(db, await setOf(person("nadia").email, shortSet, { latDeg: 36.53, lonDeg: -6.29 }), TEST_KITS[1]);
+}, 60_000);
+afterAll(async () => {
+  await browser?.close();
+  await closeDb();
+});
+
+describe("composing two observers' reductions", () => {
+  let compositeUrl = "";
+
+  it("a curator chooses them, follows the run and sees the result with the contribution map", async () => {
+    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 } });
+    const page = await signIn(ctx, curator.email);
+    await page.goto("/studio/composites");
+    // Nothing chosen: the form says what is missing, in words.
+    await page.getByRole("button", { name: "Compose" }).click();
+    await page.getByText("Choose at least two reductions.").waitFor();
+    const long = page.getByRole("checkbox", { name: new RegExp(`${longSet}, by Oskar Lindqvist`) });
+    await page.getByText(/16\.00 arcsec per pixel; field 1\.\d solar radii to its nearest edge, 2\.\d to its corners/).waitFor();
+    await long.check();
+    await page.getByRole("checkbox", { name: new RegExp(shortSet) }).check();
+    await page.getByLabel("Title").fill(`Luxor and Cadiz ${tag}`);
+    await page.getByRole("button", { name: "Compose" }).click();
+    await page.waitForURL(/\/studio\/composites\/[0-9a-f-]{36}$/);
+    compositeUrl = new URL(page.url()).pathname;
+    await page.getByText("Finished: the results are below.").waitFor({ timeout: 120_000 });
+    await page.getByText(`Data: Oskar Lindqvist, Nadia Fairweather. Composed by ${curator.name}`, { exact: false }).waitFor();
+    const rows = page.getByRole("table", { name: "How each input went into the composite" }).getByRole("row");
+    expect(await rows.count()).toBe(3);
+    // The short lens's camera has 0.6 the gain of the long lens's: its factor is near 1 / 0.6.
+    expect(await rows.nth(2).innerText()).toMatch(/1\.6[4-9]\d/);
+    expect(await rows.nth(1).innerText()).toContain("(reference)");
+    const overlay = page.locator('img[src$="contribution.jpg"]');
+    expect(await overlay.count()).toBe(0);
+    await page.getByLabel("Show where each input contributes").check();
+    await overlay.first().waitFor({ state: "attached" });
+    expect(await overlay.count()).toBe(2);
+    await expect.poll(() => overlay.first().evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+    await snap(page, "composite-journey-result");
+    expect(await page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+    expect(await seriousViolations(page)).toEqual([]);
+    await ctx.close();
+  }, 180_000);
+
+  it("shows it to the photographers of its inputs and to nobody else", async () => {
+    for (const [who, visible] of [["oskar", true], ["nadia", true], ["priya", false]] as const) {
+      const ctx = await browser.newContext({ baseURL: APP });
+      const page = await signIn(ctx, person(who).email);
+      const res = await page.goto(compositeUrl);
+      expect(res?.status(), who).toBe(visible ? 200 : 404);
+      if (visible) await page.getByRole("heading", { name: `Luxor and Cadiz ${tag}` }).waitFor();
+      await ctx.close();
+    }
+  }, 120_000);
+});
