@@ -1,6 +1,5 @@
 "use client";
-import { useState } from "react";
-import { Checkbox } from "@/components/ui/checkbox";
+import { PlateViewer } from "@/components/viewer/plate-viewer";
 import { PageSection } from "@/components/ui/page-section";
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import type { CompositeDto } from "@/lib/composites/composites";
@@ -18,20 +17,19 @@ interface InputFigures {
 }
 
 interface ReportFigures {
-  grid?: { width: number; height: number; scaleArcsecPerPx: number };
+  grid?: { width: number; height: number; scaleArcsecPerPx: number; sunCentre: { x: number; y: number }; sunRadiusPx: number };
   inputs?: InputFigures[];
   notes?: string[];
   timingsMs?: Record<string, number>;
 }
 
 const RENDITIONS = [
-  { key: "natural", title: "Natural", text: "Tone-mapped light, close to what the eye saw.", preview: "preview.jpg" },
-  { key: "structure", title: "Structure", text: "Radially filtered to show the corona's structure.", preview: "preview-structure.jpg" },
+  { key: "natural", title: "Natural", text: "tone-mapped light, close to what the eye saw" },
+  { key: "structure", title: "Structure", text: "radially filtered to show the corona's structure" },
 ] as const;
 
-/** A finished composite: both renditions with the contribution map over them on request, each input's figures, and the files. */
+/** A finished composite: both renditions in the zooming viewer with the contribution map over them on request, each input's figures, and the files. */
 export function CompositeResult({ composite }: { composite: CompositeDto }) {
-  const [showMap, setShowMap] = useState(false);
   const report = (composite.measurements ?? {}) as ReportFigures;
   const inputs = report.inputs ?? [];
   const url = (path: string, download = false) => buildCompositeOutputUrl(composite.id, path, { download });
@@ -39,31 +37,27 @@ export function CompositeResult({ composite }: { composite: CompositeDto }) {
   return (
     <>
       <PageSection id="renditions" title="Renditions">
-        <Checkbox
-          checked={showMap}
-          onChange={(e) => setShowMap(e.currentTarget.checked)}
-          label="Show where each input contributes"
-          hint="Each input's colour, mixed where two share the light; see the list below."
-          className="mb-4"
-        />
-        <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
+        {report.grid ? (
+          <PlateViewer
+            title={composite.title}
+            altText={`The corona composed from ${legend.map((i) => i.name).join(" and ")}, solar north up.`}
+            renditions={RENDITIONS.map((r) => ({ key: r.key, label: r.title, tileSource: url(`tiles/${r.key}.dzi`), width: report.grid!.width, height: report.grid!.height }))}
+            geometry={{
+              sunCentre: report.grid.sunCentre,
+              sunRadiusPx: report.grid.sunRadiusPx,
+              solarNorthAngleDeg: 0,
+              plateScaleArcsecPerPx: report.grid.scaleArcsecPerPx,
+            }}
+            mapLayer={{ label: "Show where each input contributes", url: url("contribution.jpg"), legend: legend.map((i) => ({ label: `${i.name}: ${(100 * i.weightShare).toFixed(1)} % of the light`, colour: i.colour })) }}
+          />
+        ) : null}
+        <ul className="mt-4 flex flex-wrap gap-x-6 gap-y-2 text-sm">
           {RENDITIONS.map((r) => (
-            <figure key={r.key} className="flex flex-col gap-2">
-              <a href={url(`${r.key}.png`)} className="relative block overflow-hidden rounded-card border border-line bg-black">
-                {/* eslint-disable-next-line @next/next/no-img-element -- outputs served by our own route, already sized */}
-                <img src={url(r.preview)} alt={`${r.title} rendition of the composite ${composite.title}`} className="h-auto w-full" />
-                {showMap ? (
-                  // eslint-disable-next-line @next/next/no-img-element -- the same size as the preview under it
-                  <img src={url("contribution.jpg")} alt="" aria-hidden="true" className="absolute inset-0 h-full w-full opacity-60 mix-blend-screen" />
-                ) : null}
-                <span className="sr-only">Open the full-size {r.title.toLowerCase()} rendition</span>
-              </a>
-              <figcaption>
-                <span className="font-semibold">{r.title}.</span> <span className="text-ink-muted">{r.text}</span>
-              </figcaption>
-            </figure>
+            <li key={r.key}>
+              <a href={url(`${r.key}.png`)}>Full-size {r.title.toLowerCase()} rendition</a> <span className="text-ink-muted">({r.text})</span>
+            </li>
           ))}
-        </div>
+        </ul>
       </PageSection>
       <PageSection id="inputs" title="Inputs">
         <Table caption="How each input went into the composite">

@@ -44,6 +44,8 @@ const ZOOM_KEYS: Record<string, (shift: boolean) => 1 | -1 | 0> = {
   KeyS: (shift) => (shift ? -1 : 0),
 };
 export const ROTATION_STEP_DEG = 90;
+/** The map over the renditions lightens them by its colours ("screen") at this strength, so the corona stays readable under it. */
+const MAP_OPACITY = 0.6;
 /** Relative zoom and centre offset (in view widths) under which a view counts as the whole image. */
 const HOME_TOLERANCE = 0.01;
 
@@ -60,6 +62,8 @@ export class PlateStage {
   private readonly listeners = new Set<() => void>();
   private frame: StageFrame | null = null;
   private layers = new Map<RenditionKey, OpenSeadragon.TiledImage>();
+  /** The map drawn over the renditions on request (ViewerMapLayer), when one was given and loaded. */
+  private mapItem: OpenSeadragon.TiledImage | null = null;
   private shown: RenditionKey;
   private curtain: number | null = null;
   private comparePair: [RenditionKey, RenditionKey] | null;
@@ -80,6 +84,7 @@ export class PlateStage {
     renditions: ViewerRendition[],
     events: StageEvents,
     isCancelled: () => boolean,
+    mapUrl?: string,
   ): Promise<{ stage: PlateStage; failed: RenditionKey[] } | null> {
     const osd = (await loadOpenSeadragon()).default;
     // Unmounted while the script loaded (React's development double mount does this): build nothing.
@@ -118,6 +123,21 @@ export class PlateStage {
         }),
     );
     const failed = (await Promise.all(loads)).filter((k): k is RenditionKey => k !== null);
+    if (mapUrl) {
+      // Last, so on top; placed like every image (width 1 viewport unit), so it covers the renditions exactly.
+      await new Promise<void>((resolve) => {
+        viewer.addTiledImage({
+          tileSource: { type: "image", url: mapUrl, buildPyramid: false },
+          opacity: 0,
+          compositeOperation: "screen",
+          success: (event) => {
+            stage.mapItem = (event as unknown as { item: OpenSeadragon.TiledImage }).item;
+            resolve();
+          },
+          error: () => resolve(),
+        });
+      });
+    }
     if (stage.layers.size > 0 && !stage.layers.has(stage.shown)) stage.shown = [...stage.layers.keys()][0];
     stage.applyLayers();
     return { stage, failed };
@@ -162,6 +182,17 @@ export class PlateStage {
     if (this.layers.has(shown)) this.shown = shown;
     this.curtain = curtain !== null && this.comparePair && this.comparePair.every((k) => this.layers.has(k)) ? curtain : null;
     this.applyLayers();
+  }
+
+  /** Shows or hides the map over the renditions; false when there is none to show. */
+  setMapShown(on: boolean): boolean {
+    if (!this.mapItem) return false;
+    this.mapItem.setOpacity(on ? MAP_OPACITY : 0);
+    return true;
+  }
+
+  get hasMap(): boolean {
+    return this.mapItem !== null;
   }
 
   get canCompare(): boolean {

@@ -175,8 +175,8 @@ export function computeOverlayAvailability(g: ViewerGeometry): Record<OverlayKey
   const hasNorth = typeof g.solarNorthAngleDeg === "number" && Number.isFinite(g.solarNorthAngleDeg);
   const hasScale = positive(g.plateScaleArcsecPerPx);
   return {
-    rings: hasSun ? { available: true } : { available: false, reason: "This reduction did not record the Sun's centre and radius." },
-    moon: hasMoon ? { available: true } : { available: false, reason: "This reduction did not record the Moon's outline." },
+    rings: hasSun ? { available: true } : { available: false, reason: "The Sun's centre and radius are not known for this image." },
+    moon: hasMoon ? { available: true } : { available: false, reason: "The Moon's outline is not on record for this image." },
     north: hasNorth ? { available: true } : { available: false, reason: "The position angle of solar north is not known for this plate." },
     scale:
       hasScale || positive(g.sunRadiusPx)

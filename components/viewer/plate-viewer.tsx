@@ -12,7 +12,7 @@ import { OverlayLayer } from "./overlay-layer";
 import { ShareLink } from "./share-link";
 import type { OverlayKey, PlateViewerProps, RenditionKey } from "./types";
 import { decodeViewState, formatViewQuery, type ViewState } from "./view-state";
-import { CurtainControl, OverlayToggles, RenditionSwitch } from "./viewer-options";
+import { CurtainControl, MapLayerToggle, OverlayToggles, RenditionSwitch } from "./viewer-options";
 import { ViewerToolbar } from "./viewer-toolbar";
 
 /** Quiet time before the address bar and the announcement follow the view (common practice for debouncing). */
@@ -22,7 +22,7 @@ const DEFAULT_CURTAIN = 0.5;
 
 type Status = { kind: "loading" } | { kind: "ready" } | { kind: "failed"; message: string };
 
-export function PlateViewer({ title, altText, renditions, geometry }: PlateViewerProps) {
+export function PlateViewer({ title, altText, renditions, geometry, mapLayer }: PlateViewerProps) {
   const hostRef = useRef<HTMLDivElement>(null);
   const rootRef = useRef<HTMLElement>(null);
   const altId = useId();
@@ -35,6 +35,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
   const [curtain, setCurtain] = useState<number | null>(null);
   const [overlays, setOverlays] = useState<ReadonlySet<OverlayKey>>(new Set());
   const [fullPage, setFullPage] = useState(false);
+  const [mapShown, setMapShown] = useState(false);
   const [zoomReadout, setZoomReadout] = useState("");
   const [rotationDeg, setRotationDeg] = useState(0);
   const [announcement, setAnnouncement] = useState("");
@@ -128,6 +129,7 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
         gestureHint: (gesture, modifier) => (gesture === "drag" ? "Use two fingers to move the image" : `Hold ${modifier} and turn the wheel to zoom`),
       },
       () => cancelled,
+      mapLayer?.url,
     )
       .then((result) => {
         if (!result) return;
@@ -173,6 +175,10 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
     if (!stage) return;
     stage.setView(rendition, curtain);
   }, [stage, rendition, curtain]);
+
+  useEffect(() => {
+    stage?.setMapShown(mapShown);
+  }, [stage, mapShown]);
 
   useEffect(() => {
     if (stage) scheduleAddress(stage);
@@ -288,6 +294,9 @@ export function PlateViewer({ title, altText, renditions, geometry }: PlateViewe
             onMove={setCurtain}
           />
         </div>
+        {mapLayer ? (
+          <MapLayerToggle layer={mapLayer} shown={mapShown} available={stage?.hasMap ?? false} disabled={disabled} onChange={setMapShown} />
+        ) : null}
         <OverlayToggles
           availability={availability}
           on={overlays}

@@ -23,11 +23,25 @@ export interface ViewerRendition {
  */
 export type ViewerGeometry = PlateGeometry;
 
+/**
+ * A map drawn over the renditions on request, in their pixels scaled to its own
+ * size (a composite's contribution map: each input's share in its colour).
+ */
+export interface ViewerMapLayer {
+  /** The toggle's label, e.g. "Where each input contributes". */
+  label: string;
+  /** URL of one plain image (JPEG or PNG) covering the whole rendition. */
+  url: string;
+  /** What each colour means, shown beside the toggle. */
+  legend: { label: string; colour: string }[];
+}
+
 export interface PlateViewerProps {
   title: string;
   altText: string;
   renditions: ViewerRendition[];
   geometry: ViewerGeometry;
+  mapLayer?: ViewerMapLayer;
 }
 
 /** The overlays a visitor can switch on; the keys are also the share link's names. */

@@ -2,7 +2,7 @@
 import { useId } from "react";
 import { cx } from "@/components/ui/cx";
 import type { OverlayAvailability } from "./overlay-geometry";
-import { OVERLAY_KEYS, type OverlayKey, type RenditionKey, type ViewerRendition } from "./types";
+import { OVERLAY_KEYS, type OverlayKey, type RenditionKey, type ViewerMapLayer, type ViewerRendition } from "./types";
 
 const OVERLAY_LABELS: Record<OverlayKey, string> = {
   rings: "Rings at 1 to 4 solar radii",
@@ -163,5 +163,27 @@ export function OverlayToggles({
         })}
       </ul>
     </fieldset>
+  );
+}
+
+/** The map over the renditions (a composite's contribution map): a checkbox and the legend of its colours. */
+export function MapLayerToggle({ layer, shown, available, disabled, onChange }: { layer: ViewerMapLayer; shown: boolean; available: boolean; disabled: boolean; onChange: (on: boolean) => void }) {
+  const legendId = useId();
+  return (
+    <div className="flex min-w-0 flex-col gap-2">
+      <label className={cx("flex items-center gap-3 text-sm font-medium text-ink", (!available || disabled) && "cursor-not-allowed opacity-60")}>
+        <input type="checkbox" className="size-5 accent-accent" checked={shown && available} disabled={!available || disabled} aria-describedby={legendId} onChange={(e) => onChange(e.target.checked)} />
+        {layer.label}
+      </label>
+      <ul id={legendId} className="ml-8 flex flex-col gap-1 text-sm text-ink-muted">
+        {layer.legend.map((item) => (
+          <li key={item.label} className="flex items-center gap-2">
+            <span aria-hidden="true" className="inline-block size-3 shrink-0 rounded-sm border border-line" style={{ backgroundColor: item.colour }} />
+            <span>{item.label}</span>
+          </li>
+        ))}
+        {available || disabled ? null : <li>The map could not be loaded.</li>}
+      </ul>
+    </div>
   );
 }
