@@ -9,6 +9,7 @@ import type { StructureFilter } from "@/lib/imaging/types";
 import { PIPELINE_VERSION } from "@/lib/imaging/version";
 import { writeFitsFile } from "@/lib/media";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput } from "@/lib/reduction-runner/output-dir";
+import { createPlanePool } from "@/lib/reduction-runner/plane-pool";
 import { writePreview, writeRenditionPng, writeRenditionTiles } from "@/lib/reduction-runner/write-outputs";
 import type { TilePyramidResult } from "@/lib/reduction-runner/tiles";
 import { buildCompositeCards } from "./composite-fits";
@@ -70,6 +71,9 @@ export async function runCompositeOnFiles(options: RunCompositeOptions): Promise
   const progress = (stage: string, f: number) => options.onProgress?.(stage, f);
   if (options.files.length < 2) throw new CompositeInputError("too-few-masters", `a composite needs at least two master FITS files, got ${options.files.length}`);
   const output = await createStagedOutput(options.outDir);
+  // The renditions' per-pixel steps and blurs on both cores (as a reduction's are): the composite's planes live in
+  // the pool's shared memory, and the pool's worker starts while the masters are read and merged.
+  const planes = createPlanePool();
   try {
     const seen = new Set<string>();
     for (const file of options.files) {
@@ -83,7 +87,7 @@ export async function runCompositeOnFiles(options: RunCompositeOptions): Promise
     }
     requireOneEclipse(masters);
     const readMs = performance.now() - clock;
-    const result = composeMasters(masters.map((m) => m.input), { scaleArcsecPerPx: options.scaleArcsecPerPx, refine: options.refine, onProgress: progress });
+    const result = composeMasters(masters.map((m) => m.input), { scaleArcsecPerPx: options.scaleArcsecPerPx, refine: options.refine, onProgress: progress, runner: planes });
     // The inputs are in the composite now: let their planes go before the renditions.
     for (const m of masters) m.input.planes = [];
     const { grid } = result;
@@ -91,7 +95,7 @@ export async function runCompositeOnFiles(options: RunCompositeOptions): Promise
     let lap = performance.now();
     const renditions = renderMasterRenditions({
       master, coverage: result.coverage, moon: result.moonCover, filterCentre: { x: grid.sunX, y: grid.sunY }, edgeBandPx: 2,
-      params: { filter: options.filter ?? "mgn" }, noiseVariance: result.noiseVariance, onProgress: progress,
+      params: { filter: options.filter ?? "mgn" }, noiseVariance: result.noiseVariance, runner: planes, onProgress: progress,
     });
     const timingsMs: Record<string, number> = { read: readMs, ...result.timingsMs, renditions: performance.now() - lap };
 
@@ -145,5 +149,7 @@ export async function runCompositeOnFiles(options: RunCompositeOptions): Promise
   } catch (error) {
     await discardStagedOutput(output);
     throw error;
+  } finally {
+    await planes.close();
   }
 }

@@ -17,6 +17,7 @@ import { ImagingError } from "./errors";
 import { correlatePhase } from "./fft";
 import { applyPixelMap, chooseCompositeGrid, helioToPixel, mapBetweenGrids, pixelToHelio, type HelioGrid, type PixelMap } from "./composite-geometry";
 import { computeEdgeTaper, computeEdgeWeight, computeMoonWeight, computeNeededScale, computeResolutionWeight, createMoonMask, lookUpNoise, measureNoiseProfile, type MoonMask, type NoiseProfile } from "./composite-weights";
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { warpPlanes, type ResampleKernel, type WarpTarget } from "./resample";
 import type { AffineSimilarity } from "./similarity";
 
@@ -38,6 +39,11 @@ export interface CompositeOptions {
   refine?: boolean;
   /** Composite rows merged at a time (memory); default 128. */
   bandRows?: number;
+  /**
+   * Allocates the composite's planes (radiance and noise variance), so that the
+   * renditions' kernels may run on its threads (renditions.ts); plain arrays when absent.
+   */
+  runner?: PlaneRunner;
   onProgress?: (stage: string, fraction: number) => void;
 }
 
@@ -327,7 +333,7 @@ export function composeMasters(inputs: CompositeInput[], options: CompositeOptio
   timingsMs.match = performance.now() - lap;
 
   lap = performance.now();
-  const merged = mergeOnGrid(prepared, grid, channels, sunRadiusPx, options.bandRows ?? 128, (f) => progress("merge", f));
+  const merged = mergeOnGrid(prepared, grid, channels, sunRadiusPx, options.bandRows ?? 128, (f) => progress("merge", f), options.runner ?? SERIAL_PLANE_RUNNER);
   timingsMs.merge = performance.now() - lap;
   const totalWeight = merged.weightTotals.reduce((s, w) => s + w, 0);
   reports.forEach((r, k) => (r.weightShare = totalWeight > 0 ? merged.weightTotals[k] / totalWeight : 0));
@@ -348,13 +354,13 @@ export function composeMasters(inputs: CompositeInput[], options: CompositeOptio
 }
 
 /** The inputs' pixels on the composite's grid, band by band: weighted sums, coverage and each input's share. */
-function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, sunRadiusPx: number, bandRows: number, onProgress: (f: number) => void) {
+function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, sunRadiusPx: number, bandRows: number, onProgress: (f: number) => void, runner: PlaneRunner) {
   const { width, height } = grid;
   const n = width * height;
-  const sums = Array.from({ length: channels }, () => new Float32Array(n));
+  const sums = Array.from({ length: channels }, () => runner.float32(n));
   const weightSum = new Float32Array(n);
   // Sum of w^2 times each input's pixel variance: the composite's noise variance, once divided by the weight sum squared.
-  const variance = new Float32Array(n);
+  const variance = runner.float32(n);
   const coverage = new Uint16Array(n);
   const shares = prepared.map(() => new Uint8Array(n));
   const weightTotals = prepared.map(() => 0);
