@@ -143,10 +143,14 @@ export async function startComposite(db: DbOrTx, actor: Actor | null, request: C
     .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
     .where(inArray(reductions.id, input.reductionIds));
   const byId = new Map(rows.map((r) => [r.id, r]));
+  // Every choice is found first, so that what is said of one never depends on another that is not the actor's.
   for (const id of input.reductionIds) {
     const r = byId.get(id);
     // Another member's reduction is not found for a member, exactly like one that does not exist.
     if (!r || (!isCurator && r.ownerId !== a.userId)) throw notFound("A chosen reduction");
+  }
+  for (const id of input.reductionIds) {
+    const r = byId.get(id)!;
     if (r.state !== "done") throw new AppError("invalid_input", `The reduction of "${r.setName}" has not finished; compose finished reductions only.`, [{ field: "reductionIds", message: "a reduction has not finished" }]);
     if (!describeComposable(r.measurements ?? null)) {
       throw new AppError("invalid_input", `The reduction of "${r.setName}" has no sky coordinates: reduce it registered on the Sun, with its site and the frames' capture times, to compose it.`, [{ field: "reductionIds", message: "a reduction has no sky coordinates" }]);

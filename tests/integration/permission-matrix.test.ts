@@ -169,6 +169,24 @@ const API_CASES: Case[] = [
   },
   // The member's finished reduction: its owner and curators read its files; other members are told it does not exist.
   { route: "/api/reductions/[id]/files/[...path]", method: "GET", path: ({ reductionId }) => `/api/reductions/${reductionId}/files/report.json`, expect: ownSetRead },
+  // Composites: every member may list and compose (their own reductions; curators anyone's). A chosen reduction that is
+  // missing, or another member's, is not found; so is a composite that does not exist (tests/integration/composites.test.ts
+  // covers composites that do).
+  { route: "/api/composites", method: "GET", path: () => "/api/composites", expect: { visitor: 401, member: 200, curator: 200, editor: 200, admin: 200 } },
+  {
+    route: "/api/composites",
+    method: "POST",
+    path: () => "/api/composites",
+    body: ({ reductionId }: Ids) => ({ title: "Matrix composite", reductionIds: [reductionId, "00000000-0000-4000-8000-000000000000"] }),
+    expect: { visitor: 401, member: 404, curator: 404, editor: 404, admin: 404 },
+  },
+  { route: "/api/composites/[id]", method: "GET", path: () => "/api/composites/00000000-0000-4000-8000-000000000000", expect: { visitor: 401, member: 404, curator: 404, editor: 404, admin: 404 } },
+  {
+    route: "/api/composites/[id]/files/[...path]",
+    method: "GET",
+    path: () => "/api/composites/00000000-0000-4000-8000-000000000000/files/report.json",
+    expect: { visitor: 401, member: 404, curator: 404, editor: 404, admin: 404 },
+  },
   // The review desk (curators). The matrix's set is still gathering: a curator's decision is refused by the state machine (409).
   {
     route: "/api/review/sets/[id]/decisions",
@@ -262,6 +280,8 @@ const PAGE_CASES: { path: string; expect: Record<Who, number> }[] = [
   { path: "/eclipses", expect: everyone(200) },
   { path: "/planner", expect: everyone(200) },
   { path: "/studio/kits", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/composites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
+  { path: "/studio/composites/00000000-0000-4000-8000-000000000000", expect: { visitor: 307, member: 404, curator: 404, editor: 404, admin: 404 } },
   { path: "/studio/kits/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
   { path: "/studio/sites/new", expect: { visitor: 307, member: 200, curator: 200, editor: 200, admin: 200 } },
