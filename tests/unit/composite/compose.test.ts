@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { composeMasters, reprojectMaster, type CompositeResult } from "@/lib/imaging/composite";
 import { blurGaussian } from "@/lib/imaging/blur";
-import { pixelToHelio } from "@/lib/imaging/composite-geometry";
+import { chooseCompositeGrid, pixelToHelio } from "@/lib/imaging/composite-geometry";
 import { createSky, renderMaster, RSUN_ARCSEC, type KitSpec } from "@/lib/imaging/synth-composite";
 
 // One corona through three kits: a long lens (8 arcsec/px, a field of about 2 solar
@@ -152,3 +152,15 @@ function correlateFineStructure(image: Float32Array, truth: Float32Array, width:
   }
   return ab / Math.sqrt(aa * bb);
 }
+
+describe("the composite's grid", () => {
+  it("refuses a canvas past its limits and names the plate scale that fits", () => {
+    // A 1 arcsec/px lens beside one whose field reaches 30 000 arcsec: 60 000 px a side at the finer scale.
+    const fine = { width: 1000, height: 1000, sunX: 499.5, sunY: 499.5, scaleArcsecPerPx: 1, solarNorthDeg: 0 };
+    const wide = { width: 1000, height: 1000, sunX: 499.5, sunY: 499.5, scaleArcsecPerPx: 30, solarNorthDeg: 0 };
+    expect(() => chooseCompositeGrid([fine, wide])).toThrow(/30001 x 30001 px at 1\.000 arcsec\/px, beyond 16384 px a side or 160 megapixels; choose a plate scale of at least 2\.3\d\d arcsec\/px/);
+    const g = chooseCompositeGrid([fine, wide], 2.5);
+    expect(g.width).toBeLessThanOrEqual(16_384);
+    expect(g.width * g.height).toBeLessThanOrEqual(160e6);
+  });
+});
