@@ -79,7 +79,8 @@ describe("composites", () => {
 
   it("composes a member's two kits in the worker and stores the outputs; only those concerned see it", async () => {
     const started = await startComposite(db, owner, { title: "Luxor, both lenses", reductionIds: [shortId, longId] });
-    expect(started.state).toBe("queued");
+    // A worker may take the job before the answer is read.
+    expect(["queued", "running"]).toContain(started.state);
     expect(started.inputs.map((i) => i.setName)).toEqual(["Short lens, Luxor", "Long lens, Luxor"]);
     const done = await waitFor("the composite", async () => {
       const c = await findComposite(db, owner, started.id);
