@@ -1,13 +1,12 @@
 // One output of a finished composite, streamed from S3, for whoever may see the
 // composite (findComposite's rule); to anyone else it answers "not found".
-import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { composites } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { findOutputContentType } from "@/lib/reductions/output-paths";
-import { bucketName, getS3, isMissingObject } from "@/lib/storage";
+import { bucketName, openObjectStream } from "@/lib/storage";
 import { findComposite } from "./composites";
 import { isCompositeOutputPath } from "./output-paths";
 
@@ -32,18 +31,7 @@ export async function openCompositeOutput(db: DbOrTx, actor: Actor | null, compo
   const [row] = await db.select({ outputs: composites.outputs }).from(composites).where(eq(composites.id, composite.id)).limit(1);
   const prefix = composite.state === "done" && typeof row?.outputs?.prefix === "string" ? row.outputs.prefix : null;
   if (!prefix) throw notFound(`The files of this composite (it is ${composite.state})`);
-  try {
-    const out = await getS3().send(new GetObjectCommand({ Bucket: bucketName("derived"), Key: prefix + path }));
-    if (!out.Body) throw notFound(`The file ${path} of this composite`);
-    return {
-      body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>,
-      contentType: findOutputContentType(path),
-      contentLength: out.ContentLength,
-      etag: out.ETag,
-      downloadName: buildDownloadName(composite.id, path),
-    };
-  } catch (err) {
-    if (isMissingObject(err)) throw notFound(`The file ${path} of this composite`);
-    throw err;
-  }
+  const file = await openObjectStream({ bucket: bucketName("derived"), key: prefix + path });
+  if (!file) throw notFound(`The file ${path} of this composite`);
+  return { ...file, contentType: findOutputContentType(path), downloadName: buildDownloadName(composite.id, path) };
 }

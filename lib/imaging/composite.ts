@@ -15,7 +15,7 @@
 import { blurGaussian, blurGaussianMasked } from "./blur";
 import { ImagingError } from "./errors";
 import { correlatePhase } from "./fft";
-import { applyPixelMap, chooseCompositeGrid, helioToPixel, mapBetweenGrids, pixelToHelio, type HelioGrid, type PixelMap } from "./composite-geometry";
+import { applyPixelMap, chooseCompositeGrid, helioToPixel, mapBetweenGrids, type HelioGrid, type PixelMap } from "./composite-geometry";
 import { computeEdgeTaper, computeEdgeWeight, computeMoonWeight, computeNeededScale, computeResolutionWeight, createMoonMask, lookUpNoise, measureNoiseProfile, type MoonMask, type NoiseProfile } from "./composite-weights";
 import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { warpPlanes, type ResampleKernel, type WarpTarget } from "./resample";
@@ -469,10 +469,3 @@ function mergeOnGrid(prepared: Prepared[], grid: HelioGrid, channels: number, su
 export function reprojectMaster(input: Pick<CompositeInput, "name" | "planes" | "grid">, onto: HelioGrid, kernel: ResampleKernel = "bicubic"): WarpTarget {
   return warpPlanes(input.planes, input.grid.width, input.grid.height, toSimilarity(mapBetweenGrids(onto, input.grid), input.name), { width: onto.width, height: onto.height }, kernel);
 }
-
-/** The composite's pixel of a helioprojective point, for reports and tests. */
-export function locateOnComposite(result: Pick<CompositeResult, "grid">, lonArcsec: number, latArcsec: number): { x: number; y: number } {
-  return helioToPixel(result.grid, lonArcsec, latArcsec);
-}
-
-export { pixelToHelio };

@@ -10,7 +10,7 @@ import { bracketSets, frames, reductions } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { findVisibleSet } from "@/lib/bracket-sets/access";
 import { AppError, notFound } from "@/lib/errors";
-import { bucketName, getS3, isMissingObject, toSafeFileName } from "@/lib/storage";
+import { bucketName, getS3, isMissingObject, openObjectStream, toSafeFileName } from "@/lib/storage";
 import { buildOutputDownloadName, findOutputContentType, isReductionOutputPath } from "./output-paths";
 import { parseReportView, type ReductionReportView } from "./report-view";
 
@@ -56,20 +56,9 @@ export async function openReductionOutput(db: DbOrTx, actor: Actor | null, reduc
   }
   const found = await findVisibleOutputs(db, actor, reductionId);
   if (!found.prefix) throw notFound(`The files of this reduction (it is ${found.state})`);
-  try {
-    const out = await getS3().send(new GetObjectCommand({ Bucket: bucketName("derived"), Key: found.prefix + path }));
-    if (!out.Body) throw notFound(`The file ${path} of this reduction`);
-    return {
-      body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>,
-      contentType: findOutputContentType(path),
-      contentLength: out.ContentLength,
-      etag: out.ETag,
-      downloadName: buildOutputDownloadName(found.setName, reductionId, path),
-    };
-  } catch (err) {
-    if (isMissingObject(err)) throw notFound(`The file ${path} of this reduction`);
-    throw err;
-  }
+  const file = await openObjectStream({ bucket: bucketName("derived"), key: found.prefix + path });
+  if (!file) throw notFound(`The file ${path} of this reduction`);
+  return { ...file, contentType: findOutputContentType(path), downloadName: buildOutputDownloadName(found.setName, reductionId, path) };
 }
 
 export interface FrameRef {

@@ -15,6 +15,18 @@ export function isMissingObject(err: unknown): boolean {
 }
 
 /** Size in bytes, or null when there is no such object. */
+/** An object streamed for a response: its body, length and ETag; null when it does not exist (any other fault throws). */
+export async function openObjectStream(ref: ObjectRef, s3: S3Client = getS3()): Promise<{ body: ReadableStream<Uint8Array>; contentLength?: number; etag?: string } | null> {
+  try {
+    const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+    if (!out.Body) return null;
+    return { body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>, contentLength: out.ContentLength, etag: out.ETag };
+  } catch (err) {
+    if (isMissingObject(err)) return null;
+    throw err;
+  }
+}
+
 export async function findObjectSize(ref: ObjectRef, s3: S3Client = getS3()): Promise<number | null> {
   try {
     const out = await s3.send(new HeadObjectCommand({ Bucket: ref.bucket, Key: ref.key }));

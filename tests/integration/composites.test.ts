@@ -14,6 +14,7 @@ import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
 import { bucketName, buildCompositePrefix, findObjectSize, readSmallObject } from "@/lib/storage";
 import { requireTestDatabase } from "../support/env";
+import { waitFor } from "../support/wait";
 import { createMember, createSetFor } from "./bracket-upload-helpers";
 
 requireTestDatabase();
@@ -23,16 +24,6 @@ afterAll(async () => {
   await closeProducerRedis();
   await closeDb();
 });
-
-async function waitFor<T>(what: string, read: () => Promise<T | undefined>, timeoutMs = 120_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  while (Date.now() < deadline) {
-    const v = await read();
-    if (v !== undefined) return v;
-    await new Promise((r) => setTimeout(r, 300));
-  }
-  throw new Error(`${what} did not happen within ${timeoutMs} ms`);
-}
 
 const finishedReduction = (setId: string, kit: (typeof TEST_KITS)[number] | null) => makeComposableReduction(db, setId, kit);
 const KITS = TEST_KITS;
@@ -86,7 +77,7 @@ describe("composites", () => {
       const c = await findComposite(db, owner, started.id);
       if (c.state === "failed") throw new Error(`the composite failed: ${c.error}`);
       return c.state === "done" ? c : undefined;
-    });
+    }, 120_000);
     const prefix = buildCompositePrefix(started.id);
     for (const file of ["master.fits", "natural.png", "structure.png", "contribution.jpg", "report.json", "tiles/natural.dzi"]) {
       expect(await findObjectSize({ bucket: bucketName("derived"), key: prefix + file }), file).toBeGreaterThan(0);
