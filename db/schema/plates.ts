@@ -1,10 +1,12 @@
 // Plates: what the society publishes. A plate pins one reduction of a bracket
-// set through its versions; replacing the reduction makes a new version, and
-// every version keeps its own permanent link. Drafts and withdrawn plates never
+// set, or one composite of several reductions, through its versions; replacing
+// it makes a new version, and every version keeps its own permanent link. Drafts and withdrawn plates never
 // reach public queries; a withdrawn plate keeps its record and says why.
-import { index, integer, jsonb, pgTable, text, timestamp, uniqueIndex, uuid, boolean } from "drizzle-orm/pg-core";
+import { sql } from "drizzle-orm";
+import { boolean, check, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { bracketSets } from "./brackets";
+import { composites } from "./composites";
 import { reductions } from "./reductions";
 import { eclipses } from "./sky";
 
@@ -22,9 +24,8 @@ export const plates = pgTable(
   {
     id: uuid("id").primaryKey().defaultRandom(),
     slug: text("slug").notNull(),
-    bracketSetId: uuid("bracket_set_id")
-      .notNull()
-      .references(() => bracketSets.id, { onDelete: "restrict" }),
+    /** The one bracket set a reduction's plate shows; null for a composite's plate, whose sets are its inputs'. */
+    bracketSetId: uuid("bracket_set_id").references(() => bracketSets.id, { onDelete: "restrict" }),
     eclipseId: text("eclipse_id")
       .notNull()
       .references(() => eclipses.id),
@@ -61,9 +62,9 @@ export const plateVersions = pgTable(
       .notNull()
       .references(() => plates.id, { onDelete: "cascade" }),
     version: integer("version").notNull(),
-    reductionId: uuid("reduction_id")
-      .notNull()
-      .references(() => reductions.id, { onDelete: "restrict" }),
+    /** What the version shows: one finished reduction or one finished composite, never both. */
+    reductionId: uuid("reduction_id").references(() => reductions.id, { onDelete: "restrict" }),
+    compositeId: uuid("composite_id").references(() => composites.id, { onDelete: "restrict" }),
     renditions: jsonb("renditions").$type<Rendition[]>().notNull(),
     /** Pixel size of each published rendition's pyramid, read from its info.json at publishing. */
     imageSizes: jsonb("image_sizes").$type<Partial<Record<Rendition, { width: number; height: number }>>>().notNull(),
@@ -75,7 +76,12 @@ export const plateVersions = pgTable(
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [uniqueIndex("plate_versions_plate_version_key").on(t.plateId, t.version), index("plate_versions_reduction_idx").on(t.reductionId)],
+  (t) => [
+    uniqueIndex("plate_versions_plate_version_key").on(t.plateId, t.version),
+    index("plate_versions_reduction_idx").on(t.reductionId),
+    index("plate_versions_composite_idx").on(t.compositeId),
+    check("plate_versions_one_source", sql`(${t.reductionId} is null) <> (${t.compositeId} is null)`),
+  ],
 );
 
 export interface PlateGeometry {
@@ -96,6 +102,8 @@ export interface PlateFacts {
   referenceFrame: string | null;
   dynamicRangeStops: number | null;
   masterSize: { width: number; height: number } | null;
+  /** A composite's inputs in its order: each one's exposures and capture span (absent for a reduction). */
+  inputs?: Pick<PlateFacts, "exposuresS" | "captureStartUtc" | "captureEndUtc">[];
 }
 
 export type Plate = typeof plates.$inferSelect;

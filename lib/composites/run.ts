@@ -11,6 +11,8 @@ import { asc, eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { bracketSets, compositeInputs, composites, reductions } from "@/db/schema";
 import { isCompositeInputError, runCompositeInThread } from "@/lib/composite-runner";
+import { getEnv } from "@/lib/env";
+import { compositeFilesBase } from "@/lib/plates/source";
 import { uploadReductionFolder } from "@/lib/reduction-flow/store-outputs";
 import { bucketName, buildCompositePrefix, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 
@@ -51,6 +53,8 @@ export async function runCompositeJob(db: DbOrTx, compositeId: string, attempt: 
     let lastWrite = 0;
     const { outDir, report } = await runCompositeInThread({
       files, outDir: join(scratch, "out"), scaleArcsecPerPx: row.params.scaleArcsecPerPx, refine: row.params.refine, filter: row.params.filter,
+      // The pyramids' info.json name the public tile route, as a reduction's do: a plate of the composite serves them there.
+      iiifBaseUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}${compositeFilesBase(compositeId)}`,
       onProgress: (stage, fraction) => {
         const now = Date.now();
         if (now - lastWrite < PROGRESS_EVERY_MS && fraction < 1) return;

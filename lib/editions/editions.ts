@@ -14,7 +14,7 @@ import { findActiveExport } from "./export/active";
 import { findEditionRow, isUuid, lockDraftEdition, lockEdition, lockItem, requireEditor, touch, type LockedEdition } from "./guards";
 import { addItemSchema, editionNameSchema, embargoSchema, moveItemSchema, newEditionSchema, updateItemSchema, type EditionNameInput } from "./input";
 import { compareWithRendition, SLOT_SPECS, type PixelSize } from "./print-sizes";
-import { reductionFilesBase } from "@/lib/plates/public";
+import { plateFilesBase, sourceOfVersion } from "@/lib/plates/source";
 
 export interface OtherEditionDto {
   id: string;
@@ -130,6 +130,7 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
       renditions: plateVersions.renditions,
       imageSizes: plateVersions.imageSizes,
       reductionId: plateVersions.reductionId,
+      compositeId: plateVersions.compositeId,
     })
     .from(editionItems)
     .innerJoin(plates, eq(plates.id, editionItems.plateId))
@@ -140,14 +141,14 @@ export async function findEdition(db: Db, actor: Actor | null, editionId: string
   return {
     ...edition,
     itemCount: rows.length,
-    items: rows.map(({ imageSizes, reductionId, ...r }) => {
+    items: rows.map(({ imageSizes, reductionId, compositeId, ...r }) => {
       const available = imageSizes[r.rendition] ?? null;
       const custom = r.slot === "custom" && r.customWidthMm !== null && r.customDpi !== null ? { widthMm: r.customWidthMm, dpi: r.customDpi } : null;
       const need = available && (r.slot !== "custom" || custom) ? compareWithRendition(r.slot, custom, available) : null;
       return {
         ...r,
         imageSizes,
-        thumbnailUrl: `${reductionFilesBase(reductionId)}/preview.jpg`,
+        thumbnailUrl: `${plateFilesBase(sourceOfVersion({ reductionId, compositeId }))}/preview.jpg`,
         slotLabel: r.slot === "custom" ? (custom ? `Custom, ${custom.widthMm} mm at ${custom.dpi} dpi` : "Custom (incomplete)") : SLOT_SPECS[r.slot].label,
         available,
         needed: need?.needed ?? null,

@@ -62,21 +62,34 @@ export type PlateEditInput = z.infer<typeof plateEditSchema>;
 
 export const renditionsSchema = z.array(z.enum(RENDITIONS, { error: "expected natural or structure" })).min(1, { error: "choose at least one rendition" });
 
-export const draftPlateSchema = z.object({
-  reductionId: z.uuid({ error: "expected the id of a finished reduction" }),
-  renditions: renditionsSchema,
-});
+/** What a plate shows: a finished reduction or a finished composite, exactly one. */
+const exactlyOneSource = (v: { reductionId?: string; compositeId?: string }, ctx: z.RefinementCtx) => {
+  if (Boolean(v.reductionId) === Boolean(v.compositeId)) {
+    ctx.addIssue({ code: "custom", path: ["reductionId"], message: "choose one finished reduction or one finished composite for the plate to show" });
+  }
+};
+
+export const draftPlateSchema = z
+  .object({
+    reductionId: z.uuid({ error: "expected the id of a finished reduction" }).optional(),
+    compositeId: z.uuid({ error: "expected the id of a finished composite" }).optional(),
+    renditions: renditionsSchema,
+  })
+  .superRefine(exactlyOneSource);
 
 export const withdrawSchema = z.object({
   reason: z.string().trim().min(5, { error: "give a reason of at least 5 characters; the public page shows it" }).max(500, { error: "the reason must be at most 500 characters" }),
   kind: z.enum(WITHDRAWAL_KINDS, { error: "expected temporary or permanent" }),
 });
 
-export const newVersionSchema = z.object({
-  reductionId: z.uuid({ error: "expected the id of a finished reduction" }),
-  renditions: renditionsSchema,
-  changeNote: z.string().trim().min(5, { error: "say in at least 5 characters what changed" }).max(500, { error: "the change note must be at most 500 characters" }),
-});
+export const newVersionSchema = z
+  .object({
+    reductionId: z.uuid({ error: "expected the id of a finished reduction" }).optional(),
+    compositeId: z.uuid({ error: "expected the id of a finished composite" }).optional(),
+    renditions: renditionsSchema,
+    changeNote: z.string().trim().min(5, { error: "say in at least 5 characters what changed" }).max(500, { error: "the change note must be at most 500 characters" }),
+  })
+  .superRefine(exactlyOneSource);
 
 export const plateReportSchema = z.object({
   kind: z.enum(PLATE_REPORT_KINDS, { error: "expected rights, error or other" }),

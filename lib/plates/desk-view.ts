@@ -3,16 +3,16 @@
 // public page will reveal of the site, reports, history). DTOs only; every
 // function requires review:use.
 import type { PlateTexts } from "./desk-input";
-import { and, desc, eq } from "drizzle-orm";
+import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { auditLog, bracketSets, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { auditLog, bracketSets, compositeInputs, composites, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import type { LocationPrecision } from "@/db/schema";
 import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
-import { findPlateRow, pipelineCredit, toPlateLicence } from "./desk";
+import { findPlateRow, joinNames, pipelineCredit, toPlateLicence } from "./desk";
 import { countOpenReports, listPlateReports, type PlateReportDto } from "./reports";
-import { reductionFilesBase } from "./public";
+import { plateFilesBase, sourceOfVersion } from "./source";
 
 export interface DeskPlateRowDto {
   id: string;
@@ -38,17 +38,25 @@ export async function listDeskPlates(db: Db, actor: Actor | null, state?: PlateS
       withdrawnKind: plates.withdrawnKind,
       setName: bracketSets.name,
       photographer: users.name,
+      acquiredBy: plates.acquiredBy,
       currentVersion: plates.currentVersion,
       updatedAt: plates.updatedAt,
     })
     .from(plates)
-    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    // A composite's plate has no one set: it lists as a composite, credited as its text says.
+    .leftJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .leftJoin(users, eq(users.id, bracketSets.ownerId))
     .where(state ? eq(plates.state, state) : undefined)
     .orderBy(desc(plates.updatedAt))
     .limit(500);
   const open = await countOpenReports(db, actor);
-  return rows.map((r) => ({ ...r, openReports: open.get(r.id) ?? 0, updatedAt: r.updatedAt.toISOString() }));
+  return rows.map(({ acquiredBy, ...r }) => ({
+    ...r,
+    setName: r.setName ?? "A composite of several sets",
+    photographer: r.photographer ?? acquiredBy,
+    openReports: open.get(r.id) ?? 0,
+    updatedAt: r.updatedAt.toISOString(),
+  }));
 }
 
 export interface LocationCheckDto {
@@ -82,32 +90,48 @@ export interface DeskPlateDto extends PlateTexts {
   currentVersion: number;
   publishedAt: string | null;
   withdrawn: { at: string; reason: string; kind: WithdrawalKind } | null;
+  /** The set a reduction's plate shows; for a composite's plate, the composite's sets together (approved only when every one is). */
   set: { id: string; name: string; state: BracketSetState; photographer: string };
+  /** Set for a composite's plate: the composite and each of its input sets. */
+  composite: { id: string; title: string; sets: { id: string; name: string; state: BracketSetState; photographer: string }[] } | null;
   /** What the credit fields are prefilled with, for "use the suggestion" buttons. */
   suggestions: { acquiredBy: string; processedBy: string; licence: PlateLicence };
-  versions: { version: number; reductionId: string; renditions: Rendition[]; changeNote: string; createdAt: string; url: string }[];
-  finishedReductions: { id: string; pipelineVersion: string | null; finishedAt: string | null; filter: string; registration: string }[];
-  location: LocationCheckDto | null;
+  versions: { version: number; renditions: Rendition[]; changeNote: string; createdAt: string; url: string }[];
+  /** What a new version may show: finished reductions of the plate's set, or finished composites of its eclipse. */
+  sourceKind: "reduction" | "composite";
+  finishedReductions: { id: string; pipelineVersion: string | null; finishedAt: string | null; filter: string; registration: string; title?: string }[];
+  /** What the public page shows of each site (one per input set of a composite). */
+  locations: LocationCheckDto[];
   reports: PlateReportDto[];
   /** The chosen renditions of the current version, as the public viewer takes them (tiles only). */
   image: { renditions: { key: Rendition; width: number; height: number; tileSource: string }[]; geometry: PlateGeometry };
   history: { action: string; at: string; actorName: string | null; detail: Record<string, unknown> }[];
 }
 
+type SetRow = { id: string; name: string; state: BracketSetState; photographer: string; siteId: string };
+
+async function findPlateSets(db: Db, plate: { bracketSetId: string | null }, compositeId: string | null): Promise<SetRow[]> {
+  const columns = { id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, photographer: users.name, siteId: bracketSets.siteId };
+  if (plate.bracketSetId) return db.select(columns).from(bracketSets).innerJoin(users, eq(users.id, bracketSets.ownerId)).where(eq(bracketSets.id, plate.bracketSetId)).limit(1);
+  if (!compositeId) return [];
+  return db
+    .select(columns)
+    .from(compositeInputs)
+    .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
+    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(compositeInputs.compositeId, compositeId))
+    .orderBy(asc(compositeInputs.position));
+}
+
 export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string): Promise<DeskPlateDto> {
   requirePermission(actor, "review:use", "the plate desk");
   const plate = await findPlateRow(db, plateId);
-  const [set] = await db
-    .select({ id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, photographer: users.name, siteId: bracketSets.siteId })
-    .from(bracketSets)
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
-    .where(eq(bracketSets.id, plate.bracketSetId))
-    .limit(1);
-  const [site] = await db.select({ name: sites.name, publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1);
   const versions = await db
     .select({
       version: plateVersions.version,
       reductionId: plateVersions.reductionId,
+      compositeId: plateVersions.compositeId,
       renditions: plateVersions.renditions,
       changeNote: plateVersions.changeNote,
       createdAt: plateVersions.createdAt,
@@ -117,11 +141,31 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     .from(plateVersions)
     .where(eq(plateVersions.plateId, plateId))
     .orderBy(desc(plateVersions.version));
-  const finished = await db
-    .select({ id: reductions.id, pipelineVersion: reductions.pipelineVersion, finishedAt: reductions.finishedAt, params: reductions.params })
-    .from(reductions)
-    .where(and(eq(reductions.bracketSetId, plate.bracketSetId), eq(reductions.state, "done")))
-    .orderBy(desc(reductions.finishedAt));
+  const current = versions.find((v) => v.version === plate.currentVersion);
+  const compositeId = plate.bracketSetId ? null : (current?.compositeId ?? null);
+  const sets = await findPlateSets(db, plate, compositeId);
+  const siteRows = await Promise.all(
+    sets.map(async (set) => (await db.select({ name: sites.name, publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1))[0]),
+  );
+  const [comp] = compositeId
+    ? await db.select({ id: composites.id, title: composites.title, composer: users.name }).from(composites).leftJoin(users, eq(users.id, composites.composedBy)).where(eq(composites.id, compositeId)).limit(1)
+    : [];
+  const finished = plate.bracketSetId
+    ? (
+        await db
+          .select({ id: reductions.id, pipelineVersion: reductions.pipelineVersion, finishedAt: reductions.finishedAt, params: reductions.params })
+          .from(reductions)
+          .where(and(eq(reductions.bracketSetId, plate.bracketSetId), eq(reductions.state, "done")))
+          .orderBy(desc(reductions.finishedAt))
+      ).map((r) => ({ id: r.id, pipelineVersion: r.pipelineVersion, finishedAt: r.finishedAt?.toISOString() ?? null, filter: String(r.params.filter ?? ""), registration: String(r.params.registration ?? "") }))
+    : (
+        await db
+          .select({ id: composites.id, title: composites.title, pipelineVersion: composites.pipelineVersion, finishedAt: composites.finishedAt, params: composites.params })
+          .from(composites)
+          .where(and(eq(composites.eclipseId, plate.eclipseId), eq(composites.state, "done")))
+          .orderBy(desc(composites.finishedAt))
+          .limit(100)
+      ).map((c) => ({ id: c.id, title: c.title, pipelineVersion: c.pipelineVersion, finishedAt: c.finishedAt?.toISOString() ?? null, filter: c.params.filter, registration: "composite" }));
   const history = await db
     .select({ action: auditLog.action, at: auditLog.createdAt, actorName: users.name, detail: auditLog.detail })
     .from(auditLog)
@@ -129,9 +173,13 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     .where(and(eq(auditLog.subjectType, "plate"), eq(auditLog.subjectId, plateId)))
     .orderBy(desc(auditLog.id))
     .limit(100);
-  const current = versions.find((v) => v.version === plate.currentVersion);
-  const currentRed = finished.find((r) => r.id === current?.reductionId);
+  const currentSource = current ? finished.find((r) => r.id === (current.reductionId ?? current.compositeId)) : undefined;
   const settings = await findSocietySettings(db);
+  const waiting = sets.find((x) => x.state !== "approved");
+  const set = plate.bracketSetId && sets[0]
+    ? { id: sets[0].id, name: sets[0].name, state: sets[0].state, photographer: sets[0].photographer }
+    : { id: comp?.id ?? "", name: comp?.title ?? "", state: waiting?.state ?? ("approved" as BracketSetState), photographer: joinNames(sets.map((x) => x.photographer)) };
+  const base = current ? plateFilesBase(sourceOfVersion(current)) : "";
   return {
     id: plate.id,
     slug: plate.slug,
@@ -146,22 +194,23 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     currentVersion: plate.currentVersion,
     publishedAt: plate.publishedAt?.toISOString() ?? null,
     withdrawn: plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "", kind: plate.withdrawnKind ?? "temporary" } : null,
-    set: { id: set.id, name: set.name, state: set.state, photographer: set.photographer },
-    suggestions: { acquiredBy: set.photographer, processedBy: pipelineCredit(currentRed?.pipelineVersion ?? null), licence: toPlateLicence(settings.defaultLicence) },
-    versions: versions.map((v) => ({ version: v.version, reductionId: v.reductionId, renditions: v.renditions, changeNote: v.changeNote, createdAt: v.createdAt.toISOString(), url: `/plates/${plate.slug}/v/${v.version}` })),
-    finishedReductions: finished.map((r) => ({
-      id: r.id,
-      pipelineVersion: r.pipelineVersion,
-      finishedAt: r.finishedAt?.toISOString() ?? null,
-      filter: String(r.params.filter ?? ""),
-      registration: String(r.params.registration ?? ""),
-    })),
-    location: site ? checkLocation(site) : null,
+    set,
+    composite: comp ? { id: comp.id, title: comp.title, sets: sets.map(({ siteId: _siteId, ...x }) => x) } : null,
+    suggestions: {
+      acquiredBy: set.photographer,
+      // A composite's processing credit names whoever composed it first, as its draft did (desk.ts).
+      processedBy: comp?.composer ? `${comp.composer} (composite), ${pipelineCredit(currentSource?.pipelineVersion ?? null)}` : pipelineCredit(currentSource?.pipelineVersion ?? null),
+      licence: toPlateLicence(settings.defaultLicence),
+    },
+    versions: versions.map((v) => ({ version: v.version, renditions: v.renditions, changeNote: v.changeNote, createdAt: v.createdAt.toISOString(), url: `/plates/${plate.slug}/v/${v.version}` })),
+    sourceKind: plate.bracketSetId ? "reduction" : "composite",
+    finishedReductions: finished,
+    locations: siteRows.filter((x) => x !== undefined).map(checkLocation),
     reports: await listPlateReports(db, actor, plateId),
     image: {
       renditions: (current?.renditions ?? []).flatMap((key) => {
         const size = current?.imageSizes[key];
-        return size ? [{ key, width: size.width, height: size.height, tileSource: `${reductionFilesBase(current!.reductionId)}/${key}-iiif/info.json` }] : [];
+        return size ? [{ key, width: size.width, height: size.height, tileSource: `${base}/${key}-iiif/info.json` }] : [];
       }),
       geometry: current?.geometry ?? {},
     },

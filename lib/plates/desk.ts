@@ -1,12 +1,12 @@
-// The plate desk: curators turn an approved set's finished reduction into a
-// plate, write what the public reads, publish, withdraw, restore and add
-// versions. Every function takes the actor and requires review:use; every
+// The plate desk: curators turn an approved set's finished reduction, or a
+// finished composite of approved sets, into a plate, write what the public
+// reads, publish, withdraw, restore and add versions. Every function takes the actor and requires review:use; every
 // change writes the audit log in the same transaction as the change.
 import { randomUUID } from "node:crypto";
-import { and, eq, sql } from "drizzle-orm";
+import { and, asc, desc, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, outboxMessages, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { bracketSets, compositeInputs, composites, outboxMessages, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { appLink } from "@/lib/bracket-sets/notify";
 import { plateStateMail } from "@/lib/email/templates";
@@ -15,7 +15,7 @@ import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { draftPlateSchema, newVersionSchema, plateEditSchema, withdrawSchema, type PlateEditInput } from "./desk-input";
-import { createPlateFromReduction, readReductionForPlate, slugify } from "./publish";
+import { createPlateFromComposite, createPlateFromReduction, readCompositeForPlate, readReductionForPlate, slugify, versionSource, type PreparedSource } from "./publish";
 import { makeWebJpeg } from "./web-jpeg";
 import { forgetPublicAccess } from "./reduction-files";
 
@@ -46,6 +46,46 @@ async function requireApprovedSet(db: Db, setId: string, doing: string): Promise
     throw new AppError("conflict", `The bracket set "${set.name}" is ${set.state}; it must be approved on the review desk before ${doing}.`);
   }
   return set;
+}
+
+/** The bracket sets a composite is made of, each with its photographer, in the composite's order. */
+async function findCompositeSets(db: DbOrTx, compositeId: string): Promise<{ setId: string; name: string; state: string; ownerName: string; ownerEmail: string }[]> {
+  return db
+    .select({ setId: bracketSets.id, name: bracketSets.name, state: bracketSets.state, ownerName: users.name, ownerEmail: users.email })
+    .from(compositeInputs)
+    .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
+    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .where(eq(compositeInputs.compositeId, compositeId))
+    .orderBy(asc(compositeInputs.position));
+}
+
+/** Every input's set approved: a composite's plate publishes nobody's data before the curators have seen it. */
+async function requireApprovedInputs(db: DbOrTx, compositeId: string, doing: string): Promise<{ name: string; ownerName: string }[]> {
+  const sets = await findCompositeSets(db, compositeId);
+  if (sets.length === 0) throw notFound("That composite");
+  const waiting = sets.filter((s) => s.state !== "approved");
+  if (waiting.length) {
+    const list = waiting.map((s) => `"${s.name}" (${s.state})`).join(", ");
+    throw new AppError("conflict", `Every bracket set in the composite must be approved on the review desk before ${doing}; not yet: ${list}.`);
+  }
+  return sets;
+}
+
+/** The composite shown by a plate's current version, or null for a reduction's plate. */
+async function findCurrentComposite(db: DbOrTx, plate: Plate): Promise<string | null> {
+  const [v] = await db
+    .select({ compositeId: plateVersions.compositeId })
+    .from(plateVersions)
+    .where(and(eq(plateVersions.plateId, plate.id), eq(plateVersions.version, plate.currentVersion)))
+    .limit(1);
+  return v?.compositeId ?? null;
+}
+
+/** "A", "A and B", "A, B and C": the data credit of several photographers. */
+export function joinNames(names: string[]): string {
+  const unique = [...new Set(names)];
+  return unique.length <= 1 ? (unique[0] ?? "") : `${unique.slice(0, -1).join(", ")} and ${unique.at(-1)}`;
 }
 
 /** True for PostgreSQL's unique violation on the slug index, however the driver wraps it. */
@@ -84,7 +124,9 @@ export function pipelineCredit(pipelineVersion: string | null): string {
  */
 export async function createDraftPlate(db: Db, actor: Actor | null, input: unknown): Promise<{ id: string; slug: string }> {
   const curator = requireCurator(actor, "making plates");
-  const { reductionId, renditions } = parseInput(draftPlateSchema, input);
+  const { reductionId, compositeId, renditions } = parseInput(draftPlateSchema, input);
+  if (compositeId) return createDraftCompositePlate(db, curator, compositeId, renditions);
+  if (!reductionId) throw notFound("That reduction");
   const [red] = await db
     .select({ setId: reductions.bracketSetId, state: reductions.state, pipelineVersion: reductions.pipelineVersion })
     .from(reductions)
@@ -114,6 +156,47 @@ export async function createDraftPlate(db: Db, actor: Actor | null, input: unkno
     return plate;
   });
   // Another draft may take the same name between the check and the insert.
+  return created.catch((err: unknown) => {
+    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
+  });
+}
+
+/**
+ * A draft plate from a finished composite whose inputs' sets are all approved:
+ * the composite's title, every input's photographer as data credit, whoever
+ * composed it (with the pipeline) as processing credit.
+ */
+async function createDraftCompositePlate(db: Db, curator: Actor, compositeId: string, renditions: Rendition[]): Promise<{ id: string; slug: string }> {
+  const [row] = await db
+    .select({ title: composites.title, state: composites.state, pipelineVersion: composites.pipelineVersion, composer: users.name })
+    .from(composites)
+    .leftJoin(users, eq(users.id, composites.composedBy))
+    .where(eq(composites.id, compositeId))
+    .limit(1);
+  if (!row) throw notFound("That composite");
+  if (row.state !== "done") throw new AppError("conflict", `The composite "${row.title}" is ${row.state}; a plate can be made once it has finished.`);
+  const sets = await requireApprovedInputs(db, compositeId, "a plate can be made from it");
+  const settings = await findSocietySettings(db);
+  const slug = await uniqueSlug(db, slugify(row.title));
+  const pipeline = pipelineCredit(row.pipelineVersion);
+  const created = db.transaction(async (tx) => {
+    const plate = await createPlateFromComposite(tx, {
+      compositeId,
+      slug,
+      title: row.title,
+      caption: "",
+      description: "",
+      altText: "",
+      acquiredBy: joinNames(sets.map((s) => s.ownerName)),
+      processedBy: row.composer ? `${row.composer} (composite), ${pipeline}` : pipeline,
+      licence: toPlateLicence(settings.defaultLicence),
+      renditions,
+      publish: false,
+      createdBy: curator.userId,
+    });
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { compositeId, renditions, slug } });
+    return plate;
+  });
   return created.catch((err: unknown) => {
     throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
   });
@@ -170,19 +253,30 @@ type PlateChange = "published" | "withdrawn-temporary" | "withdrawn-permanent" |
  * outbox, in the caller's transaction: the change and its mail exist together
  * or not at all. Returns the outbox id to queue once the transaction commits.
  */
-async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, reason: string | null): Promise<string | null> {
-  const [owner] = await tx
-    .select({ name: users.name, email: users.email, setName: bracketSets.name })
-    .from(bracketSets)
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
-    .where(eq(bracketSets.id, plate.bracketSetId))
-    .limit(1);
-  if (!owner) return null;
+async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, reason: string | null): Promise<string[]> {
+  const compositeId = plate.bracketSetId ? null : await findCurrentComposite(tx, plate);
+  const owners = plate.bracketSetId
+    ? await tx
+        .select({ name: users.name, email: users.email, setName: bracketSets.name })
+        .from(bracketSets)
+        .innerJoin(users, eq(users.id, bracketSets.ownerId))
+        .where(eq(bracketSets.id, plate.bracketSetId))
+        .limit(1)
+    : compositeId
+      ? (await findCompositeSets(tx, compositeId)).map((s) => ({ name: s.ownerName, email: s.ownerEmail, setName: s.name }))
+      : [];
   const society = (await findSocietySettings(tx)).name;
-  const id = randomUUID();
-  const mail = plateStateMail(society, owner.email, owner.name, { change, title: plate.title, setName: owner.setName, reason, url: appLink(`/plates/${plate.slug}`) });
-  await tx.insert(outboxMessages).values({ id, ...mail });
-  return id;
+  // One message to each photographer, naming their set (or sets) in the plate.
+  const byEmail = new Map<string, { name: string; sets: string[] }>();
+  for (const o of owners) byEmail.set(o.email, { name: o.name, sets: [...(byEmail.get(o.email)?.sets ?? []), o.setName] });
+  const ids: string[] = [];
+  for (const [email, owner] of byEmail) {
+    const id = randomUUID();
+    const mail = plateStateMail(society, email, owner.name, { change, title: plate.title, setName: joinNames(owner.sets), reason, url: appLink(`/plates/${plate.slug}`) });
+    await tx.insert(outboxMessages).values({ id, ...mail });
+    ids.push(id);
+  }
+  return ids;
 }
 
 /**
@@ -190,10 +284,10 @@ async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, rea
  * the plate's reductions (so a restored plate's images answer at once and a
  * withdrawn plate's stop at once), and the photographer's mail is queued.
  */
-async function afterStateChange(db: Db, plateId: string, outboxId: string | null): Promise<void> {
-  const rows = await db.select({ reductionId: plateVersions.reductionId }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
-  for (const { reductionId } of rows) forgetPublicAccess(reductionId);
-  if (outboxId) await enqueue(db, "mail.send", { outboxId });
+async function afterStateChange(db: Db, plateId: string, outboxIds: string[]): Promise<void> {
+  const rows = await db.select({ reductionId: plateVersions.reductionId, compositeId: plateVersions.compositeId }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
+  for (const row of rows) forgetPublicAccess((row.reductionId ?? row.compositeId)!);
+  for (const outboxId of outboxIds) await enqueue(db, "mail.send", { outboxId });
 }
 
 /** Checks what publishing needs besides an approved set: the texts the public reads. */
@@ -205,13 +299,18 @@ function requireReadyToPublish(plate: Plate): void {
   if (fields.length) throw new AppError("invalid_input", `"${plate.title}" is not ready: ${fields.map((f) => f.message).join("; ")}.`, fields);
 }
 
-/** Draft -> published, once the set is approved. Makes the version's web JPEG first, so a failure publishes nothing. */
+/** Draft -> published, once the set (or every set of a composite) is approved. Makes the version's web JPEG first, so a failure publishes nothing. */
 export async function publishPlate(db: Db, actor: Actor | null, plateId: string): Promise<void> {
   const curator = requireCurator(actor, "publishing plates");
   const plate = await findPlateRow(db, plateId);
   if (plate.state !== "draft") throw new AppError("conflict", `"${plate.title}" is ${plate.state}; only a draft can be published (a withdrawn plate is restored instead).`);
   requireReadyToPublish(plate);
-  await requireApprovedSet(db, plate.bracketSetId, "its plate can be published");
+  if (plate.bracketSetId) await requireApprovedSet(db, plate.bracketSetId, "its plate can be published");
+  else {
+    const compositeId = await findCurrentComposite(db, plate);
+    if (!compositeId) throw notFound("What that plate shows");
+    await requireApprovedInputs(db, compositeId, "its plate can be published");
+  }
   await makeWebJpeg(db, plateId, plate.currentVersion);
   const outboxId = await db.transaction(async (tx) => {
     const done = await tx
@@ -274,24 +373,34 @@ export async function restorePlate(db: Db, actor: Actor | null, plateId: string)
  */
 export async function addPlateVersion(db: Db, actor: Actor | null, plateId: string, input: unknown): Promise<{ version: number }> {
   const curator = requireCurator(actor, "replacing a plate's reduction");
-  const { reductionId, renditions, changeNote } = parseInput(newVersionSchema, input);
+  const { reductionId, compositeId, renditions, changeNote } = parseInput(newVersionSchema, input);
   const plate = await findPlateRow(db, plateId);
   if (plate.state === "withdrawn" && plate.withdrawnKind === "permanent") throw new AppError("conflict", `"${plate.title}" was withdrawn for good; it takes no new versions.`);
-  const prepared = await readReductionForPlate(db, reductionId, renditions as Rendition[]);
-  if (prepared.setId !== plate.bracketSetId) {
-    throw new AppError("invalid_input", "The new reduction must come from the plate's own bracket set.", [{ field: "reductionId", message: "from another bracket set" }]);
+  let prepared: PreparedSource;
+  if (plate.bracketSetId) {
+    if (!reductionId) throw new AppError("invalid_input", "This plate shows one bracket set: its new version is another reduction of that set.", [{ field: "reductionId", message: "choose a reduction of the plate's own bracket set" }]);
+    prepared = await readReductionForPlate(db, reductionId, renditions as Rendition[]);
+    if (prepared.setId !== plate.bracketSetId) {
+      throw new AppError("invalid_input", "The new reduction must come from the plate's own bracket set.", [{ field: "reductionId", message: "from another bracket set" }]);
+    }
+  } else {
+    if (!compositeId) throw new AppError("invalid_input", "This plate shows a composite: its new version is another finished composite.", [{ field: "compositeId", message: "choose a finished composite" }]);
+    prepared = await readCompositeForPlate(db, compositeId, renditions as Rendition[]);
+    if (prepared.eclipseId !== plate.eclipseId) throw new AppError("invalid_input", "The new composite must be of the plate's own eclipse.", [{ field: "compositeId", message: "of another eclipse" }]);
+    if (plate.state !== "draft") await requireApprovedInputs(db, compositeId, "it can be shown on a published plate");
   }
+  const source = prepared.source;
   const version = await db.transaction(async (tx) => {
     // Lock the plate row so two curators cannot both add version n+1.
     const [locked] = await tx.select({ current: plates.currentVersion }).from(plates).where(eq(plates.id, plateId)).for("update");
     const [{ max }] = await tx.select({ max: sql<number>`coalesce(max(${plateVersions.version}), 0)::int` }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
     const next = Math.max(max, locked.current) + 1;
-    await tx.insert(plateVersions).values({ plateId, version: next, reductionId, renditions: prepared.renditions, imageSizes: prepared.imageSizes, geometry: prepared.geometry, facts: prepared.facts, changeNote, createdBy: curator.userId });
+    await tx.insert(plateVersions).values({ plateId, version: next, ...versionSource(source), renditions: prepared.renditions, imageSizes: prepared.imageSizes, geometry: prepared.geometry, facts: prepared.facts, changeNote, createdBy: curator.userId });
     await tx.update(plates).set({ currentVersion: next, updatedAt: sql`now()` }).where(eq(plates.id, plateId));
-    await recordAudit(tx, { actorId: curator.userId, action: "plate.version-added", subjectType: "plate", subjectId: plateId, detail: { from: locked.current, to: next, reductionId, changeNote } });
+    await recordAudit(tx, { actorId: curator.userId, action: "plate.version-added", subjectType: "plate", subjectId: plateId, detail: { from: locked.current, to: next, [source.kind === "composite" ? "compositeId" : "reductionId"]: source.id, changeNote } });
     return next;
   });
-  forgetPublicAccess(reductionId);
+  forgetPublicAccess(source.id);
   if (plate.state !== "draft") await makeWebJpeg(db, plateId, version);
   return { version };
 }

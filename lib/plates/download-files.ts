@@ -2,9 +2,10 @@
 // visitor is about to fetch. Names: download-names.ts.
 import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { plates, reductions } from "@/db/schema";
+import { composites, plates, reductions } from "@/db/schema";
 import { bucketName, findObjectSize } from "@/lib/storage";
 import { REDUCTION_FILE_OF, type PlateDownloadKind } from "./download-names";
+import type { PlateSource } from "./source";
 import { makeWebJpeg, webJpegKey } from "./web-jpeg";
 
 /**
@@ -14,12 +15,15 @@ import { makeWebJpeg, webJpegKey } from "./web-jpeg";
  */
 export async function findPlateDownloadSizes(
   db: DbOrTx,
-  plate: { slug: string; version: number; reductionId: string },
+  plate: { slug: string; version: number; source: PlateSource },
   kinds: PlateDownloadKind[],
 ): Promise<Partial<Record<PlateDownloadKind, number | null>>> {
   const [row] = await db.select({ id: plates.id }).from(plates).where(eq(plates.slug, plate.slug)).limit(1);
-  const [red] = await db.select({ outputs: reductions.outputs }).from(reductions).where(eq(reductions.id, plate.reductionId)).limit(1);
-  const prefix = red?.outputs?.prefix ?? null;
+  const [source] =
+    plate.source.kind === "composite"
+      ? await db.select({ outputs: composites.outputs }).from(composites).where(eq(composites.id, plate.source.id)).limit(1)
+      : await db.select({ outputs: reductions.outputs }).from(reductions).where(eq(reductions.id, plate.source.id)).limit(1);
+  const prefix = typeof source?.outputs?.prefix === "string" ? source.outputs.prefix : null;
   const derived = bucketName("derived");
   const entries = await Promise.all(
     kinds.map(async (kind): Promise<[PlateDownloadKind, number | null]> => {

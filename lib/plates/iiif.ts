@@ -3,6 +3,7 @@
 // Image API service), and a Collection per eclipse. Pure functions of the
 // public DTOs and the site's base URL.
 import type { PlateCardDto, PublicPlateDto } from "./public";
+import { plateFilesBase } from "./source";
 
 const PRESENTATION_CONTEXT = "http://iiif.io/api/presentation/3/context.json";
 type LanguageMap = Record<string, string[]>;
@@ -43,10 +44,16 @@ export function collectionUrl(appUrl: string, eclipseId: string): string {
 
 /** The site as the public may see it: its public label, country and position at its precision; nothing for a hidden site. */
 function describeSite(plate: PublicPlateDto): string {
-  const pos = plate.site.position;
+  if (plate.composite) {
+    return plate.composite.inputs.map((i) => `${i.photographer}: ${describePosition(i.site.label, null, i.site.position)}`).join("; ");
+  }
+  return describePosition(plate.site.label, plate.siteCountry, plate.site.position);
+}
+
+function describePosition(siteLabel: string | null, country: string | null, pos: PublicPlateDto["site"]["position"]): string {
   if (!pos) return "kept private by the observer";
   const digits = pos.precision === "exact" ? 4 : 1;
-  const place = [plate.site.label, plate.siteCountry].filter(Boolean).join(", ");
+  const place = [siteLabel, country].filter(Boolean).join(", ");
   const where = `${pos.latDeg.toFixed(digits)}°, ${pos.lonDeg.toFixed(digits)}°${pos.precision === "rounded" ? ", rounded to about 10 km" : ""}`;
   return place ? `${place} (${where})` : where;
 }
@@ -54,12 +61,15 @@ function describeSite(plate: PublicPlateDto): string {
 /** `credit` is the plate's credit line (lib/plates/credit.ts), the manifest's required statement. */
 export function buildPlateManifest(plate: PublicPlateDto, appUrl: string, credit: string): Record<string, unknown> {
   const id = manifestUrl(appUrl, plate.slug, plate.isCurrentVersion ? undefined : plate.version);
-  const filesBase = `${appUrl}/iiif/reductions/${plate.reductionId}`;
+  const filesBase = `${appUrl}${plateFilesBase(plate.source)}`;
   const metadata = [
     label("Eclipse", `Total solar eclipse of ${plate.eclipseId}`),
     label("Site", describeSite(plate)),
     ...(plate.captureSpan ? [label("Time (UTC)", `${plate.captureSpan.start} to ${plate.captureSpan.end}`)] : []),
     ...(plate.kit ? [label("Instrument", `${plate.kit.camera}, ${plate.kit.focalMm} mm f/${plate.kit.fNumber}`)] : []),
+    ...(plate.composite
+      ? [label("Composed from", plate.composite.inputs.map((i) => `${i.photographer}${i.kit ? ` (${i.kit.camera}, ${i.kit.focalMm} mm)` : ""}`).join("; "))]
+      : []),
     ...(plate.exposuresS.length ? [label("Exposures (s)", plate.exposuresS.map((e) => e.toPrecision(3)).join(", "))] : []),
     label("Data acquired by", plate.acquiredBy),
     label("Processed by", plate.processedBy),

@@ -1,18 +1,18 @@
 // What the public may read of plates: published plates only, as DTOs, with a
 // site's position never finer than its precision allows. A withdrawn plate
-// answers with its metadata and the reason, but no images.
-import { and, desc, eq, ilike, inArray, lt, ne, or, sql, type SQL } from "drizzle-orm";
+// answers with its metadata and the reason, but no images. A composite's plate
+// lists each input (photographer, instrument, site at its precision, what the
+// composite took from it) instead of one set's site and kit.
+import { and, asc, desc, eq, ilike, inArray, isNull, lt, ne, or, sql, type SQL } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
-import { bracketSets, kits, plates, plateVersions, reductions, sites, users, type Plate, type PlateGeometry, type Rendition } from "@/db/schema";
+import { bracketSets, compositeInputs, composites, kits, plates, plateVersions, reductions, sites, users, type Plate, type PlateFacts, type PlateGeometry, type Rendition } from "@/db/schema";
 import { notFound } from "@/lib/errors";
 import { toPublicSite, type PublicPosition } from "@/lib/sites/precision";
 import { REDUCTION_FILE_OF, plateDownloadName, type PlateDownloadKind } from "./download-names";
 import { LICENCE_INFO, type LicenceInfo } from "./licences";
+import { plateFilesBase, sourceOfVersion, type PlateSource } from "./source";
 
-/** Where a reduction's public files are served; the tiles folder's names follow the worker's layout. */
-export function reductionFilesBase(reductionId: string): string {
-  return `/iiif/reductions/${reductionId}`;
-}
+export { reductionFilesBase } from "./source";
 
 export interface PlateCardDto {
   slug: string;
@@ -56,6 +56,33 @@ export interface PlateVersionLinkDto {
   url: string;
 }
 
+/** One input of a composite's plate, as the public reads it: no set names, the site at its precision. */
+export interface PublicCompositeInputDto {
+  photographer: string;
+  site: { label: string | null; kind: string; position: PublicPosition | null };
+  kit: { name: string; camera: string; focalMm: number; fNumber: number } | null;
+  captureSpan: { start: string; end: string } | null;
+  exposuresS: number[];
+  pipelineVersion: string | null;
+  /** From the composite's report: where this input reaches, how fine it is, how it was matched, and its share of the light. */
+  plateScaleArcsecPerPx: number | null;
+  fieldR: { inner: number; outer: number } | null;
+  factors: number[];
+  refinementArcsec: number | null;
+  isReference: boolean;
+  weightShare: number | null;
+  /** The colour this input has in the contribution map. */
+  colour: string | null;
+}
+
+export interface PublicCompositeDto {
+  composedBy: string | null;
+  inputs: PublicCompositeInputDto[];
+  /** The map of which input gives the light where, the viewer's layer. */
+  contributionUrl: string;
+  scaleArcsecPerPx: number | null;
+}
+
 export interface PublicPlateDto extends PlateCardDto {
   version: number;
   isCurrentVersion: boolean;
@@ -82,7 +109,9 @@ export interface PublicPlateDto extends PlateCardDto {
   downloads: PlateDownloadDto[];
   versions: PlateVersionLinkDto[];
   withdrawn: { at: string; reason: string; kind: "temporary" | "permanent" } | null;
-  reductionId: string;
+  /** What the version shows: a reduction of one set, or a composite (then `composite` lists its inputs). */
+  source: PlateSource;
+  composite: PublicCompositeDto | null;
 }
 
 export interface PlateFilters {
@@ -105,7 +134,7 @@ const CARD_SITE_COLUMNS = { publicLabel: sites.publicLabel, latDeg: sites.latDeg
 /** A plate's country, unless its site is hidden: the filters and facets never reveal it either. */
 const PUBLIC_COUNTRY = sql<string | null>`case when ${sites.precision} = 'hidden' then null else ${plates.siteCountry} end`;
 
-function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }, site: CardSite): PlateCardDto {
+function cardOf(p: Plate, v: { reductionId: string | null; compositeId: string | null; renditions: Rendition[] }, site: CardSite): PlateCardDto {
   const shown = site ? toPublicSite(site, p.siteCountry) : { label: null, country: null, position: null };
   return {
     slug: p.slug,
@@ -118,7 +147,7 @@ function cardOf(p: Plate, v: { reductionId: string; renditions: Rendition[] }, s
     sitePosition: shown.position,
     photographer: p.acquiredBy,
     renditions: v.renditions,
-    previewUrl: `${reductionFilesBase(v.reductionId)}/preview.jpg`,
+    previewUrl: `${plateFilesBase(sourceOfVersion(v))}/preview.jpg`,
     publishedAt: p.publishedAt?.toISOString() ?? null,
   };
 }
@@ -129,7 +158,8 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
   const where: SQL[] = [eq(plates.state, "published")];
   if (filters.eclipseId) where.push(eq(plates.eclipseId, filters.eclipseId));
   if (filters.featuredOnly) where.push(eq(plates.featured, true));
-  if (filters.country) where.push(eq(plates.siteCountry, filters.country), ne(sites.precision, "hidden"));
+  // A composite's plate has a country only when every input's site shows it (lib/plates/publish.ts).
+  if (filters.country) where.push(eq(plates.siteCountry, filters.country), or(isNull(plates.bracketSetId), ne(sites.precision, "hidden")) as SQL);
   if (filters.photographer) where.push(eq(plates.acquiredBy, filters.photographer));
   if (filters.rendition) where.push(sql`${plateVersions.renditions} @> ${JSON.stringify([filters.rendition])}::jsonb`);
   if (filters.q?.trim()) {
@@ -147,20 +177,22 @@ export async function listPublishedPlates(db: DbOrTx, filters: PlateFilters = {}
     .select({
       plate: plates,
       reductionId: plateVersions.reductionId,
+      compositeId: plateVersions.compositeId,
       renditions: plateVersions.renditions,
       site: CARD_SITE_COLUMNS,
     })
     .from(plates)
     .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, plates.currentVersion)))
-    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
-    .innerJoin(sites, eq(sites.id, bracketSets.siteId))
+    // A composite's plate has no one set or site: its card names none.
+    .leftJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .leftJoin(sites, eq(sites.id, bracketSets.siteId))
     .where(and(...where))
     .orderBy(desc(plates.publishedAt), desc(plates.slug))
     .limit(limit + 1);
   const page = rows.slice(0, limit);
   const last = page.at(-1);
   return {
-    plates: page.map((r) => cardOf(r.plate, r, r.site)),
+    plates: page.map((r) => cardOf(r.plate, r, r.site?.precision ? r.site : null)),
     nextCursor: rows.length > limit && last ? `${last.plate.publishedAt?.toISOString()}|${last.plate.slug}` : null,
   };
 }
@@ -170,22 +202,11 @@ export async function listPlateFacets(db: DbOrTx): Promise<{ eclipses: string[];
   const rows = await db
     .selectDistinct({ eclipseId: plates.eclipseId, country: PUBLIC_COUNTRY, photographer: plates.acquiredBy })
     .from(plates)
-    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
-    .innerJoin(sites, eq(sites.id, bracketSets.siteId))
+    .leftJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    .leftJoin(sites, eq(sites.id, bracketSets.siteId))
     .where(eq(plates.state, "published"));
   const uniq = (xs: (string | null)[]) => [...new Set(xs.filter((x): x is string => !!x))].sort();
   return { eclipses: uniq(rows.map((r) => r.eclipseId)).reverse(), countries: uniq(rows.map((r) => r.country)), photographers: uniq(rows.map((r) => r.photographer)) };
-}
-
-/** True when a published plate shows this reduction in its current version: its files are public then. */
-export async function isReductionPublic(db: DbOrTx, reductionId: string): Promise<boolean> {
-  const [row] = await db
-    .select({ id: plates.id })
-    .from(plateVersions)
-    .innerJoin(plates, and(eq(plates.id, plateVersions.plateId), eq(plates.currentVersion, plateVersions.version)))
-    .where(and(eq(plateVersions.reductionId, reductionId), eq(plates.state, "published")))
-    .limit(1);
-  return Boolean(row);
 }
 
 const num = (v: unknown): number | null => (typeof v === "number" && Number.isFinite(v) ? v : null);
@@ -204,20 +225,24 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
   const versions = await db.select().from(plateVersions).where(eq(plateVersions.plateId, plate.id)).orderBy(desc(plateVersions.version));
   const v = versions.find((x) => x.version === (version ?? plate.currentVersion));
   if (!v) throw notFound(`Version ${version} of that plate`);
-  const [red] = await db.select().from(reductions).where(eq(reductions.id, v.reductionId)).limit(1);
-  const [set] = await db
-    .select({ siteId: bracketSets.siteId, kitId: bracketSets.kitId, ownerName: users.name })
-    .from(bracketSets)
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
-    .where(eq(bracketSets.id, plate.bracketSetId))
-    .limit(1);
+  const source = sourceOfVersion(v);
+  const [red] = v.reductionId ? await db.select().from(reductions).where(eq(reductions.id, v.reductionId)).limit(1) : [];
+  const [comp] = v.compositeId ? await db.select().from(composites).where(eq(composites.id, v.compositeId)).limit(1) : [];
+  const [set] = plate.bracketSetId
+    ? await db
+        .select({ siteId: bracketSets.siteId, kitId: bracketSets.kitId, ownerName: users.name })
+        .from(bracketSets)
+        .innerJoin(users, eq(users.id, bracketSets.ownerId))
+        .where(eq(bracketSets.id, plate.bracketSetId))
+        .limit(1)
+    : [];
   const [site] = set ? await db.select({ ...CARD_SITE_COLUMNS, kind: sites.kind }).from(sites).where(eq(sites.id, set.siteId)).limit(1) : [];
   const [kit] = set?.kitId ? await db.select().from(kits).where(eq(kits.id, set.kitId)).limit(1) : [];
 
-  const m = (red?.measurements ?? {}) as Record<string, unknown>;
+  const m = (red?.measurements ?? comp?.measurements ?? {}) as Record<string, unknown>;
   const timings = (m.timingsMs ?? {}) as Record<string, unknown>;
   const facts = v.facts;
-  const base = reductionFilesBase(v.reductionId);
+  const base = plateFilesBase(source);
   const withdrawn = plate.state === "withdrawn" ? { at: plate.withdrawnAt?.toISOString() ?? "", reason: plate.withdrawnReason ?? "", kind: plate.withdrawnKind ?? "permanent" } : null;
   const licence = LICENCE_INFO[plate.licence];
   const renditionFiles: PublicRenditionDto[] = withdrawn
@@ -247,7 +272,7 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
             })
           : []),
       ];
-  const params = (red?.params ?? {}) as unknown as Record<string, unknown>;
+  const params = (red?.params ?? comp?.params ?? {}) as unknown as Record<string, unknown>;
   const card = cardOf(plate, v, site);
   return {
     ...card,
@@ -264,11 +289,12 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
     renditionFiles,
     geometry: withdrawn ? {} : v.geometry,
     disclosure: {
-      pipelineVersion: red?.pipelineVersion ?? null,
-      registration: String(params.registration ?? ""),
+      pipelineVersion: red?.pipelineVersion ?? comp?.pipelineVersion ?? null,
+      registration: comp ? "composite" : String(params.registration ?? ""),
       filter: String(params.filter ?? ""),
       filterStrength: num(params.filterStrength) ?? 0.3,
-      stages: Object.entries(timings).flatMap(([name, ms]) => (num(ms) === null ? [] : [{ name, ms: num(ms) as number }])),
+      // A composite's steps are described in words on its page (and each input was reduced by the stages above).
+      stages: comp ? [] : Object.entries(timings).flatMap(([name, ms]) => (num(ms) === null ? [] : [{ name, ms: num(ms) as number }])),
       moonSilhouetteUtc: facts.moonSilhouetteUtc,
       referenceFrame: facts.referenceFrame,
       dynamicRangeStops: facts.dynamicRangeStops,
@@ -276,6 +302,66 @@ export async function findPublicPlate(db: DbOrTx, slug: string, version?: number
     downloads,
     versions: versions.map((x) => ({ version: x.version, createdAt: x.createdAt.toISOString(), changeNote: x.changeNote, url: `/plates/${plate.slug}/v/${x.version}` })),
     withdrawn,
-    reductionId: v.reductionId,
+    source,
+    composite: comp ? await describeComposite(db, comp, base, facts.inputs ?? []) : null,
+  };
+}
+
+interface InputFigures {
+  isReference?: boolean;
+  scaleArcsecPerPx?: number;
+  fieldR?: { inner: number; outer: number };
+  factors?: number[];
+  refinement?: { lonArcsec: number; latArcsec: number; applied: boolean };
+  weightShare?: number;
+  colour?: string;
+}
+
+/** A composite's inputs for its public plate: each photographer, instrument and site (at its precision), with the composite's figures for it. */
+async function describeComposite(db: DbOrTx, comp: typeof composites.$inferSelect, base: string, inputFacts: NonNullable<PlateFacts["inputs"]>): Promise<PublicCompositeDto> {
+  const rows = await db
+    .select({
+      position: compositeInputs.position,
+      photographer: users.name,
+      site: { ...CARD_SITE_COLUMNS, kind: sites.kind },
+      kit: { name: kits.name, camera: kits.camera, focalMm: kits.focalMm, fNumber: kits.fNumber },
+      kitId: kits.id,
+      pipelineVersion: reductions.pipelineVersion,
+    })
+    .from(compositeInputs)
+    .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
+    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
+    .innerJoin(users, eq(users.id, bracketSets.ownerId))
+    .innerJoin(sites, eq(sites.id, bracketSets.siteId))
+    .leftJoin(kits, eq(kits.id, bracketSets.kitId))
+    .where(eq(compositeInputs.compositeId, comp.id))
+    .orderBy(asc(compositeInputs.position));
+  const report = (comp.measurements ?? {}) as { inputs?: InputFigures[]; grid?: { scaleArcsecPerPx?: number } };
+  const [composer] = comp.composedBy ? await db.select({ name: users.name }).from(users).where(eq(users.id, comp.composedBy)).limit(1) : [];
+  return {
+    composedBy: composer?.name ?? null,
+    contributionUrl: `${base}/contribution.jpg`,
+    scaleArcsecPerPx: num(report.grid?.scaleArcsecPerPx),
+    inputs: rows.map((r) => {
+      const figures = report.inputs?.[r.position] ?? {};
+      const shown = toPublicSite(r.site, null);
+      const facts = inputFacts[r.position];
+      const refinement = figures.refinement?.applied ? Math.hypot(figures.refinement.lonArcsec, figures.refinement.latArcsec) : null;
+      return {
+        photographer: r.photographer,
+        site: { label: shown.label, kind: r.site.kind, position: shown.position },
+        kit: r.kitId ? r.kit : null,
+        captureSpan: facts?.captureStartUtc && facts.captureEndUtc ? { start: facts.captureStartUtc, end: facts.captureEndUtc } : null,
+        exposuresS: facts?.exposuresS ?? [],
+        pipelineVersion: r.pipelineVersion,
+        plateScaleArcsecPerPx: num(figures.scaleArcsecPerPx),
+        fieldR: figures.fieldR ?? null,
+        factors: figures.factors ?? [],
+        refinementArcsec: refinement,
+        isReference: figures.isReference ?? false,
+        weightShare: num(figures.weightShare),
+        colour: figures.colour ?? null,
+      };
+    }),
   };
 }

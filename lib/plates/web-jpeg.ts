@@ -13,7 +13,7 @@ import { and, eq } from "drizzle-orm";
 import { ExifTool, type WriteTags } from "exiftool-vendored";
 import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { plates, plateVersions, reductions, type PlateLicence } from "@/db/schema";
+import { composites, plates, plateVersions, reductions, type PlateLicence } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { createSharp } from "@/lib/media/sharp-setup";
 import { bucketName, isMissingObject, putObjectBytes, readSmallObject } from "@/lib/storage";
@@ -122,13 +122,14 @@ async function sourceJpeg(prefix: string): Promise<Buffer> {
  */
 export async function makeWebJpeg(db: DbOrTx, plateId: string, version: number): Promise<string> {
   const [row] = await db
-    .select({ plate: plates, prefix: reductions.outputs })
+    .select({ plate: plates, reductionOutputs: reductions.outputs, compositeOutputs: composites.outputs })
     .from(plates)
     .innerJoin(plateVersions, and(eq(plateVersions.plateId, plates.id), eq(plateVersions.version, version)))
-    .innerJoin(reductions, eq(reductions.id, plateVersions.reductionId))
+    .leftJoin(reductions, eq(reductions.id, plateVersions.reductionId))
+    .leftJoin(composites, eq(composites.id, plateVersions.compositeId))
     .where(eq(plates.id, plateId))
     .limit(1);
-  const prefix = row?.prefix?.prefix;
+  const prefix = row?.reductionOutputs?.prefix ?? row?.compositeOutputs?.prefix;
   if (!row || !prefix) throw new AppError("not_found", `Version ${version} of that plate was not found.`);
   const society = await findSocietySettings(db);
   const { plate } = row;

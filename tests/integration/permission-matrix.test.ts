@@ -8,10 +8,10 @@ import sharp from "sharp";
 import { eq } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
-import { reductions, sites } from "@/db/schema";
+import { compositeInputs, composites, reductions, sites } from "@/db/schema";
 import { encodeFits } from "@/lib/media";
-import { createPlateFromReduction } from "@/lib/plates/publish";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { createPlateFromComposite, createPlateFromReduction } from "@/lib/plates/publish";
+import { bucketName, buildCompositePrefix, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { Client } from "../support/http";
 
@@ -36,6 +36,10 @@ interface Ids {
   reductionId: string;
   /** A finished reduction of a third set of the member's, shown by a published plate. */
   publishedReductionId: string;
+  /** A finished composite the member made of their two reductions; no plate shows it. */
+  compositeId: string;
+  /** Another such composite, shown by a published plate. */
+  publishedCompositeId: string;
 }
 
 interface Case {
@@ -160,6 +164,18 @@ const API_CASES: Case[] = [
   { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "published master", path: ({ publishedReductionId }) => `/iiif/reductions/${publishedReductionId}/master.fits`, expect: everyone(200) },
   // Never report.json on this route, published or not: it holds the exact site.
   { route: "/iiif/reductions/[id]/[...path]", method: "GET", label: "published report", path: ({ publishedReductionId }) => `/iiif/reductions/${publishedReductionId}/report.json`, expect: everyone(404) },
+  // A composite's files, on the same terms: the composer (the member here) and curators while no published plate shows it.
+  {
+    route: "/iiif/composites/[id]/[...path]",
+    method: "GET",
+    label: "unpublished contribution map",
+    path: ({ compositeId }) => `/iiif/composites/${compositeId}/contribution.jpg`,
+    expect: { visitor: 404, member: 200, curator: 200, editor: 404, admin: 404 },
+  },
+  { route: "/iiif/composites/[id]/[...path]", method: "GET", label: "published preview", path: ({ publishedCompositeId }) => `/iiif/composites/${publishedCompositeId}/preview.jpg`, expect: everyone(200) },
+  { route: "/iiif/composites/[id]/[...path]", method: "GET", label: "published contribution map", path: ({ publishedCompositeId }) => `/iiif/composites/${publishedCompositeId}/contribution.jpg`, expect: everyone(200) },
+  { route: "/iiif/composites/[id]/[...path]", method: "GET", label: "published report", path: ({ publishedCompositeId }) => `/iiif/composites/${publishedCompositeId}/report.json`, expect: everyone(404) },
+  { route: "/iiif/composites/[id]/[...path]", method: "GET", label: "no such composite", path: () => `/iiif/composites/${NO_ID}/preview.jpg`, expect: everyone(404) },
   // An id that names no reduction: not found for everyone signed in.
   {
     route: "/api/reductions/[id]",
@@ -328,7 +344,7 @@ function routeTemplates(): string[] {
 
 const clients = {} as Record<Who, Client>;
 let memberId = "";
-const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "", reductionId: "", publishedReductionId: "" };
+const ids: Ids = { memberId: "", siteId: "", setId: "", uploadId: "", frameId: "", reductionId: "", publishedReductionId: "", compositeId: "", publishedCompositeId: "" };
 
 async function ok<T>(call: Promise<{ status: number; body: unknown }>, status: number): Promise<T> {
   const res = await call;
@@ -373,6 +389,39 @@ async function prepareBracketSet(): Promise<void> {
     publish: true,
     createdBy: null,
   });
+  // Two composites of the member's two reductions, one of them on a published plate.
+  ids.compositeId = await storeFinishedComposite([ids.reductionId, ids.publishedReductionId]);
+  ids.publishedCompositeId = await storeFinishedComposite([ids.reductionId, ids.publishedReductionId]);
+  await createPlateFromComposite(db, {
+    ...PLATE_TEXTS,
+    compositeId: ids.publishedCompositeId,
+    slug: `matrix-composite-${ids.publishedCompositeId.slice(0, 8)}`,
+    title: "Matrix composite plate",
+    licence: "CC-BY-4.0",
+    renditions: ["natural"],
+    publish: true,
+    createdBy: null,
+  });
+}
+
+/** A finished composite written directly, composed by the member: its rows, report, pyramid descriptor, preview and contribution map. */
+async function storeFinishedComposite(reductionIds: string[]): Promise<string> {
+  const db = getDb();
+  const [row] = await db
+    .insert(composites)
+    .values({ eclipseId: "2027-08-02", composedBy: memberId, title: "Matrix composite", params: { refine: true, filter: "mgn" }, state: "done", progress: 1 })
+    .returning({ id: composites.id });
+  await db.insert(compositeInputs).values(reductionIds.map((reductionId, position) => ({ compositeId: row.id, position, reductionId })));
+  const prefix = buildCompositePrefix(row.id);
+  const stored = (key: string) => ({ bucket: bucketName("derived"), key: prefix + key });
+  const jpeg = await sharp({ create: { width: 8, height: 8, channels: 3, background: "#204060" } }).jpeg().toBuffer();
+  const report = { reportVersion: 1, kind: "composite", grid: { width: 8, height: 8, scaleArcsecPerPx: 10, sunCentre: { x: 4, y: 4 }, sunRadiusPx: 2, solarNorthDeg: 0 }, inputs: [] };
+  await putObjectBytes(stored("report.json"), Buffer.from(JSON.stringify(report)), "application/json");
+  await putObjectBytes(stored("tiles/natural-iiif/info.json"), Buffer.from(JSON.stringify({ width: 8, height: 8 })), "application/json");
+  await putObjectBytes(stored("preview.jpg"), jpeg, "image/jpeg");
+  await putObjectBytes(stored("contribution.jpg"), jpeg, "image/jpeg");
+  await db.update(composites).set({ outputs: { prefix, report: `${prefix}report.json`, tiles: `${prefix}tiles/` }, measurements: report }).where(eq(composites.id, row.id));
+  return row.id;
 }
 
 /** A finished reduction written directly in a new set of the member's: its row, report, pyramid descriptor, preview and master. */

@@ -85,7 +85,7 @@ describe("the plate desk", () => {
     expect(desk.state).toBe("draft");
     expect(desk.acquiredBy).toBe(owner.name);
     expect(desk.processedBy).toBe("Crownlight pipeline 0.9.0-test");
-    expect(desk.location).toMatchObject({ precision: "rounded", warning: null });
+    expect(desk.locations).toEqual([expect.objectContaining({ precision: "rounded", warning: null })]);
     await expect(findPublicPlate(db, slug)).rejects.toMatchObject({ code: "not_found" });
     expect(await auditActions()).toContain("plate.created");
   });
@@ -149,9 +149,9 @@ describe("the plate desk", () => {
     const { version } = await addPlateVersion(db, curator, plateId, { reductionId: secondReduction, renditions: ["natural"], changeNote: "Re-reduced with a gentler filter" });
     expect(version).toBe(2);
     const current = await findPublicPlate(db, slug);
-    expect(current).toMatchObject({ version: 2, isCurrentVersion: true, reductionId: secondReduction });
+    expect(current).toMatchObject({ version: 2, isCurrentVersion: true, source: { kind: "reduction", id: secondReduction } });
     const old = await findPublicPlate(db, slug, 1);
-    expect(old).toMatchObject({ version: 1, isCurrentVersion: false, reductionId: firstReduction });
+    expect(old).toMatchObject({ version: 1, isCurrentVersion: false, source: { kind: "reduction", id: firstReduction } });
     expect(current.versions.map((v) => v.url)).toEqual([`/plates/${slug}/v/2`, `/plates/${slug}/v/1`]);
     const client = new Client();
     expect((await client.request(`/plates/${slug}/v/1`)).status).toBe(200);

@@ -49,7 +49,8 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     downloads: [{ kind: "master", label: "Master, FITS", url: `/iiif/reductions/${RID}/master.fits?name=corona-v1-master.fits`, format: "application/fits", fileName: "corona-v1-master.fits" }],
     versions: [],
     withdrawn: null,
-    reductionId: RID,
+    source: { kind: "reduction", id: RID },
+    composite: null,
     ...overrides,
   };
 }

@@ -16,7 +16,7 @@ import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { ZipFile } from "yazl";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, editionExports, editionItems, editions, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry, type LocationPrecision } from "@/db/schema";
+import { bracketSets, editionExports, editionItems, editions, composites, kits, plates, plateVersions, reductions, sites, users, type ExportFileEntry, type LocationPrecision } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
 import { editionExportFailedMail, editionExportReadyMail } from "@/lib/email/templates";
@@ -74,6 +74,7 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
       plate: plates,
       facts: plateVersions.facts,
       outputs: reductions.outputs,
+      compositeOutputs: composites.outputs,
       site: { name: sites.publicLabel, precision: sites.precision, latDeg: sites.latDeg, lonDeg: sites.lonDeg, elevationM: sites.elevationM },
       kitId: kits.id,
       kit: { name: kits.name, camera: kits.camera, focalMm: kits.focalMm, fNumber: kits.fNumber },
@@ -81,15 +82,17 @@ async function loadItems(db: DbOrTx, editionId: string): Promise<ItemRow[]> {
     .from(editionItems)
     .innerJoin(plates, eq(plates.id, editionItems.plateId))
     .innerJoin(plateVersions, and(eq(plateVersions.plateId, editionItems.plateId), eq(plateVersions.version, editionItems.plateVersion)))
-    .innerJoin(reductions, eq(reductions.id, plateVersions.reductionId))
-    .innerJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
+    // A version shows a reduction or a composite; a composite's plate has no one set, site or kit.
+    .leftJoin(reductions, eq(reductions.id, plateVersions.reductionId))
+    .leftJoin(composites, eq(composites.id, plateVersions.compositeId))
+    .leftJoin(bracketSets, eq(bracketSets.id, plates.bracketSetId))
     .leftJoin(sites, eq(sites.id, bracketSets.siteId))
     .leftJoin(kits, eq(kits.id, bracketSets.kitId))
     .where(eq(editionItems.editionId, editionId))
     .orderBy(asc(editionItems.position));
-  return rows.map(({ outputs, kitId, kit, site, ...r }) => ({
+  return rows.map(({ outputs, compositeOutputs, kitId, kit, site, ...r }) => ({
     ...r,
-    prefix: typeof outputs?.prefix === "string" ? outputs.prefix : null,
+    prefix: typeof outputs?.prefix === "string" ? outputs.prefix : typeof compositeOutputs?.prefix === "string" ? compositeOutputs.prefix : null,
     site: site?.precision ? site : null,
     kit: kitId ? kit : null,
   }));
@@ -99,6 +102,7 @@ const num = (v: unknown) => (typeof v === "number" && Number.isFinite(v) ? v : u
 
 /** The master's sky geometry from report.json (overall.sky), or null when the reduction has none. */
 export function masterSkyFromReport(report: Record<string, unknown>): MasterSky | null {
+  if (report.kind === "composite") return compositeSkyFromReport(report);
   const overall = (report.overall ?? {}) as Record<string, unknown>;
   const sky = (overall.sky ?? {}) as Record<string, unknown>;
   const master = (overall.masterSize ?? {}) as { width?: unknown; height?: unknown };
@@ -115,6 +119,18 @@ export function masterSkyFromReport(report: Record<string, unknown>): MasterSky 
   if (observer && num(observer.latDeg) !== undefined && num(observer.lonDeg) !== undefined) {
     out.observer = { latDeg: observer.latDeg as number, lonDeg: observer.lonDeg as number, elevationM: num(observer.elevationM) ?? 0 };
   }
+  return out;
+}
+
+/** A composite's grid: north up, the Sun at its centre pixel; it stands for several observers, so it names none. */
+function compositeSkyFromReport(report: Record<string, unknown>): MasterSky | null {
+  const grid = (report.grid ?? {}) as { width?: unknown; height?: unknown; scaleArcsecPerPx?: unknown; sunCentre?: { x?: unknown; y?: unknown }; solarNorthDeg?: unknown };
+  const width = num(grid.width);
+  const height = num(grid.height);
+  if (!width || !height) return null;
+  const out: MasterSky = { masterWidth: width, masterHeight: height, northAngleDeg: num(grid.solarNorthDeg) ?? 0 };
+  if (num(grid.sunCentre?.x) !== undefined && num(grid.sunCentre?.y) !== undefined) out.sunCentrePx = { x: grid.sunCentre!.x as number, y: grid.sunCentre!.y as number };
+  if (num(grid.scaleArcsecPerPx)) out.plateScaleArcsecPerPx = grid.scaleArcsecPerPx as number;
   return out;
 }
 
