@@ -3,6 +3,7 @@ import type { ReactNode } from "react";
 import type { PublicPlateDto } from "@/lib/plates/public";
 import { formatExposure } from "@/components/bracket-sets/exposure-text";
 import { describeTiming } from "@/components/reductions/labels";
+import { CompositeInputs } from "./composite-inputs";
 import { PlateDownloads } from "./plate-downloads";
 import { formatDate, formatDateTime } from "@/lib/format/dates";
 
@@ -36,6 +37,7 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
         <dl className="grid grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
           <Row term="Data acquired by">{plate.acquiredBy}</Row>
           <Row term="Processed by">{plate.processedBy}</Row>
+          {plate.composite?.composedBy ? <Row term="Composite made by">{plate.composite.composedBy}</Row> : null}
           <Row term="Published by">{society}</Row>
           <Row term="Credit line">{credit}</Row>
           <Row term="Licence">
@@ -54,8 +56,10 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
           <Row term="Eclipse">
             <Link href={`/eclipses/${plate.eclipseId}`}>Total solar eclipse of {plate.eclipseId}</Link>
           </Row>
-          <Row term="Site">
-            {pos ? (
+          <Row term={plate.composite ? "Sites" : "Site"}>
+            {plate.composite ? (
+              <span>{plate.composite.inputs.length} inputs, each with its site below{plate.siteCountry ? `, all in ${plate.siteCountry}` : ""}.</span>
+            ) : pos ? (
               <>
                 {plate.site.label}
                 {plate.site.kind === "moving" ? `${plate.site.label ? " " : ""}(moving: ship or aircraft)` : ""}
@@ -86,18 +90,30 @@ export function PlateDetails({ plate, society, credit }: { plate: PublicPlateDto
         <h2 id="processing-h" className="mb-3 text-lg font-semibold">
           How this image was made
         </h2>
+        {plate.composite ? (
+          <p className="mb-3 max-w-prose text-sm text-ink-muted">
+            Each input below is a bracket reduced on its own (its frames aligned and merged across their exposures into one image of the light). The inputs were then placed on one
+            grid centred on the Sun with solar north up, at the finest input&apos;s plate scale{plate.composite.scaleArcsecPerPx ? ` (${plate.composite.scaleArcsecPerPx.toFixed(2)} arcsec per pixel)` : ""}, from each
+            one&apos;s sky coordinates refined by matching the corona itself. Each input&apos;s brightness was scaled to the first&apos;s where they overlap, and the light merged with
+            weights that fade smoothly towards each input&apos;s field edge and its own Moon, and where a finer input covers. The structure rendition applies a radial filter (
+            {plate.disclosure.filter === "nrgf" ? "normalizing radial graded filter" : "multi-scale Gaussian normalization"}). The viewer&apos;s map layer shows which input gives the light where. Nothing was
+            painted or cloned.
+          </p>
+        ) : (
         <p className="mb-3 max-w-prose text-sm text-ink-muted">
           The frames of one bracket were aligned {plate.disclosure.registration === "sun" ? "on the Sun's centre (from the site, the time and the ephemeris)" : plate.disclosure.registration === "moon" ? "on the Moon's limb" : "on the corona"}, merged across their
           exposures into one image of the light, and shown two ways: the natural rendition compresses the brightness range; the structure rendition applies a radial filter (
           {plate.disclosure.filter === "nrgf" ? "normalizing radial graded filter" : "multi-scale Gaussian normalization"}, strength {plate.disclosure.filterStrength}) that brings out structure far from the
           limb. Nothing was painted or cloned.
         </p>
+        )}
+        {plate.composite ? <CompositeInputs composite={plate.composite} /> : null}
         <dl className="grid grid-cols-[max-content_1fr] gap-x-6 gap-y-2 text-sm">
           {plate.disclosure.pipelineVersion ? <Row term="Pipeline">{plate.disclosure.pipelineVersion}</Row> : null}
           {plate.disclosure.referenceFrame ? <Row term="Reference frame">{plate.disclosure.referenceFrame}</Row> : null}
           {plate.disclosure.moonSilhouetteUtc ? <Row term="Moon silhouette as at">{utcTime(plate.disclosure.moonSilhouetteUtc)}</Row> : null}
           {plate.disclosure.dynamicRangeStops !== null ? <Row term="Brightness range recorded">{plate.disclosure.dynamicRangeStops.toFixed(1)} stops</Row> : null}
-          {plate.disclosure.stages.length ? (
+          {plate.disclosure.stages.some((s) => STAGE_ORDER.includes(s.name)) ? (
             <Row term="Stages">
               <ol className="list-decimal pl-5">
                 {plate.disclosure.stages

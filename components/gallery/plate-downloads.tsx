@@ -2,11 +2,12 @@ import { getDb } from "@/db/client";
 import { formatBytes } from "@/lib/format/bytes";
 import { findPlateDownloadSizes } from "@/lib/plates/download-files";
 import type { PlateDownloadDto } from "@/lib/plates/public";
+import type { PlateSource } from "@/lib/plates/source";
 
 const FORMAT_WORDS: Record<string, string> = { "image/jpeg": "JPEG", "image/png": "PNG", "application/fits": "FITS" };
 
 /** Each download with the name it is saved under and its size, read from storage when the page is made. */
-export async function PlateDownloads({ plate }: { plate: { slug: string; version: number; reductionId: string; downloads: PlateDownloadDto[] } }) {
+export async function PlateDownloads({ plate }: { plate: { slug: string; version: number; source: PlateSource; downloads: PlateDownloadDto[] } }) {
   const sizes = await findPlateDownloadSizes(
     getDb(),
     plate,

@@ -1,6 +1,7 @@
 "use client";
-// The review page's way into the plate desk: choose one of the set's finished
-// reductions and its renditions, make a draft plate, open its editor.
+// The way into the plate desk: on the review page, choose one of the set's
+// finished reductions and its renditions; on a composite's page, its
+// renditions. Makes a draft plate and opens its editor.
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { Button } from "@/components/ui/button";
@@ -17,11 +18,13 @@ export interface MakePlateReduction {
 }
 
 export interface MakePlateButtonProps {
-  setId: string;
-  reductions: MakePlateReduction[];
+  setId?: string;
+  reductions?: MakePlateReduction[];
+  /** A finished composite to show instead of one of a set's reductions. */
+  compositeId?: string;
 }
 
-export function MakePlateButton({ setId, reductions }: MakePlateButtonProps) {
+export function MakePlateButton({ setId, reductions = [], compositeId }: MakePlateButtonProps) {
   const router = useRouter();
   const finished = reductions.filter((r) => r.state === "done");
   const [pending, setPending] = useState(false);
@@ -32,18 +35,21 @@ export function MakePlateButton({ setId, reductions }: MakePlateButtonProps) {
     const form = new FormData(e.currentTarget);
     setPending(true);
     setProblem(null);
-    const res = await callApi<{ id: string }>("POST", "/api/review/plates", { reductionId: String(form.get("reductionId") ?? ""), renditions: form.getAll("renditions").map(String) });
+    const source = compositeId ? { compositeId } : { reductionId: String(form.get("reductionId") ?? "") };
+    const res = await callApi<{ id: string }>("POST", "/api/review/plates", { ...source, renditions: form.getAll("renditions").map(String) });
     setPending(false);
     if (!res.ok) return setProblem(res.problem);
     router.push(`/review/plates/${res.data.id}`);
   }
 
-  if (finished.length === 0) return <p className="text-sm text-ink-muted">No reduction of this set has finished, so no plate can be made yet.</p>;
+  if (!compositeId && finished.length === 0) return <p className="text-sm text-ink-muted">No reduction of this set has finished, so no plate can be made yet.</p>;
   return (
     <form onSubmit={submit} noValidate className="flex max-w-xl flex-col gap-3" data-set-id={setId}>
-      <Field label="Reduction to show" required error={problem?.fields.reductionId}>
-        <Select name="reductionId" options={finished.map((r) => ({ value: r.id, label: r.label }))} />
-      </Field>
+      {compositeId ? null : (
+        <Field label="Reduction to show" required error={problem?.fields.reductionId}>
+          <Select name="reductionId" options={finished.map((r) => ({ value: r.id, label: r.label }))} />
+        </Field>
+      )}
       <RenditionsPicker legend="Renditions to show" error={problem?.fields.renditions} />
       {problem ? (
         <p role="alert" className="text-sm font-medium text-danger">

@@ -22,20 +22,25 @@ export interface PlateStateActionsProps {
   withdrawnKind: WithdrawalKind | null;
   licence: PlateLicence;
   photographer: string;
-  /** The bracket set's review state: publishing needs "approved". */
+  /** The bracket set's review state: publishing needs "approved" (for a composite, the first of its sets that is not). */
   setState: ReviewState;
+  /** A composite's plate shows several sets, each of which must be approved. */
+  isComposite?: boolean;
 }
 
 type Move = { kind: "publish" } | { kind: "restore" } | { kind: "withdraw"; how: WithdrawalKind; reason: string };
 
 const SUCCESS: Record<string, string> = {
-  publish: "Published. The photographer has been told by e-mail.",
-  restore: "Back in the gallery. The photographer has been told by e-mail.",
-  "withdraw-temporary": "Withdrawn for the time being. The photographer has been told by e-mail.",
-  "withdraw-permanent": "Withdrawn for good. The photographer has been told by e-mail.",
+  publish: "Published.",
+  restore: "Back in the gallery.",
+  "withdraw-temporary": "Withdrawn for the time being.",
+  "withdraw-permanent": "Withdrawn for good.",
 };
 
-export function PlateStateActions({ plateId, title, state, withdrawnKind, licence, photographer, setState }: PlateStateActionsProps) {
+/** "The photographer has" or, for a composite's plate, "The photographers have" been told. */
+const toldLine = (isComposite: boolean) => (isComposite ? " The photographers have been told by e-mail." : " The photographer has been told by e-mail.");
+
+export function PlateStateActions({ plateId, title, state, withdrawnKind, licence, photographer, setState, isComposite = false }: PlateStateActionsProps) {
   const router = useRouter();
   const [pending, setPending] = useState(false);
   const [problem, setProblem] = useState<ApiProblem | null>(null);
@@ -56,7 +61,7 @@ export function PlateStateActions({ plateId, title, state, withdrawnKind, licenc
     setPending(false);
     setAsking(null);
     if (!res.ok) return setProblem(res.problem);
-    setDone(SUCCESS[key]);
+    setDone(`${SUCCESS[key]}${toldLine(isComposite)}`);
     router.refresh();
   }
 
@@ -80,7 +85,13 @@ export function PlateStateActions({ plateId, title, state, withdrawnKind, licenc
     <div className="flex flex-col gap-4">
       {state === "draft" ? (
         <div className="flex flex-col gap-2">
-          {setState !== "approved" ? <p className="text-sm">The bracket set is {STATE_LABELS[setState]}; it must be approved before this plate can be published.</p> : null}
+          {setState !== "approved" ? (
+            <p className="text-sm">
+              {isComposite
+                ? `A bracket set in the composite is ${STATE_LABELS[setState]}; every one must be approved before this plate can be published.`
+                : `The bracket set is ${STATE_LABELS[setState]}; it must be approved before this plate can be published.`}
+            </p>
+          ) : null}
           <div>
             <Button variant="primary" onClick={() => setAsking({ kind: "publish" })}>
               Publish the plate

@@ -1,6 +1,6 @@
 "use client";
 // A plate's versions with their permanent links, and the form that replaces
-// the reduction it shows (version n+1 with a change note).
+// the reduction (or composite) it shows (version n+1 with a change note).
 import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
@@ -18,11 +18,13 @@ export interface PlateVersionsProps {
   currentVersion: number;
   versions: DeskPlateDto["versions"];
   finishedReductions: DeskPlateDto["finishedReductions"];
+  sourceKind: DeskPlateDto["sourceKind"];
   /** A plate withdrawn for good takes no new versions. */
   readOnly: boolean;
 }
 
-export function PlateVersions({ plateId, currentVersion, versions, finishedReductions, readOnly }: PlateVersionsProps) {
+export function PlateVersions({ plateId, currentVersion, versions, finishedReductions, sourceKind, readOnly }: PlateVersionsProps) {
+  const field = sourceKind === "composite" ? "compositeId" : "reductionId";
   const router = useRouter();
   const [pending, setPending] = useState(false);
   const [problem, setProblem] = useState<ApiProblem | null>(null);
@@ -36,7 +38,7 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
     setProblem(null);
     setDone(null);
     const res = await callApi<{ version: number }>("POST", `/api/review/plates/${plateId}/versions`, {
-      reductionId: String(form.get("reductionId") ?? ""),
+      [field]: String(form.get(field) ?? ""),
       renditions: form.getAll("renditions").map(String),
       changeNote: String(form.get("changeNote") ?? ""),
     });
@@ -62,13 +64,16 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
       </ol>
       {readOnly ? null : (
         <form onSubmit={submit} noValidate className="flex max-w-xl flex-col gap-3">
-          <h3 className="text-base font-semibold">Replace the reduction (new version)</h3>
-          <Field label="Reduction" required error={problem?.fields.reductionId}>
+          <h3 className="text-base font-semibold">{sourceKind === "composite" ? "Replace the composite (new version)" : "Replace the reduction (new version)"}</h3>
+          <Field label={sourceKind === "composite" ? "Composite" : "Reduction"} required error={problem?.fields[field]}>
             <Select
-              name="reductionId"
+              name={field}
               options={finishedReductions.map((r) => ({
                 value: r.id,
-                label: `${r.filter.toUpperCase()}, registered on ${r.registration}, ${r.finishedAt ? formatDateTime(r.finishedAt) : "unfinished"} (pipeline ${r.pipelineVersion ?? "unknown"})`,
+                label:
+                  sourceKind === "composite"
+                    ? `“${r.title ?? "Composite"}”, ${r.filter.toUpperCase()}, ${r.finishedAt ? formatDateTime(r.finishedAt) : "unfinished"} (pipeline ${r.pipelineVersion ?? "unknown"})`
+                    : `${r.filter.toUpperCase()}, registered on ${r.registration}, ${r.finishedAt ? formatDateTime(r.finishedAt) : "unfinished"} (pipeline ${r.pipelineVersion ?? "unknown"})`,
               }))}
             />
           </Field>

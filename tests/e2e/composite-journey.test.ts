@@ -3,8 +3,11 @@
 // worker with its progress on the page, and the result shows both renditions,
 // the contribution map over them on request, each input's brightness factor and
 // position correction, and the credits. The photographers of the inputs see it;
-// another member is told it does not exist.
-import { eq } from "drizzle-orm";
+// another member is told it does not exist. Once both sets are approved, the
+// curator makes a plate of it from its page, publishes it on the plate desk, and
+// a visitor's viewer on the public plate lays the contribution map over the
+// corona, with every input listed under "how this image was made".
+import { eq, inArray } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
@@ -23,6 +26,7 @@ const curator = DEMO_PEOPLE.find((p) => p.roles.includes("curator"))!;
 const longSet = `Long lens at Luxor ${tag}`;
 const shortSet = `Short lens at Cadiz ${tag}`;
 let browser: Browser;
+const setIds: string[] = [];
 
 async function setOf(email: string, name: string, place: { latDeg: number; lonDeg: number }): Promise<string> {
   const db = getDb();
@@ -35,8 +39,9 @@ async function setOf(email: string, name: string, place: { latDeg: number; lonDe
 beforeAll(async () => {
   browser = await launchBrowser();
   const db = getDb();
-  await makeComposableReduction(db, await setOf(person("oskar").email, longSet, { latDeg: 25.69, lonDeg: 32.64 }), TEST_KITS[0]);
-  await makeComposableReduction(db, await setOf(person("nadia").email, shortSet, { latDeg: 36.53, lonDeg: -6.29 }), TEST_KITS[1]);
+  setIds.push(await setOf(person("oskar").email, longSet, { latDeg: 25.69, lonDeg: 32.64 }), await setOf(person("nadia").email, shortSet, { latDeg: 36.53, lonDeg: -6.29 }));
+  await makeComposableReduction(db, setIds[0], TEST_KITS[0]);
+  await makeComposableReduction(db, setIds[1], TEST_KITS[1]);
 }, 60_000);
 afterAll(async () => {
   await browser?.close();
@@ -95,4 +100,50 @@ describe("composing two observers' reductions", () => {
       await ctx.close();
     }
   }, 120_000);
+
+  it("the curator publishes it as a plate, and a visitor's viewer shows the contribution map", async () => {
+    // The review desk's approval of both sets is another journey (review-journey.test.ts).
+    await getDb().update(bracketSets).set({ state: "approved" }).where(inArray(bracketSets.id, setIds));
+    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 } });
+    const page = await signIn(ctx, curator.email);
+    await page.goto(compositeUrl);
+    await page.getByRole("heading", { name: "Plate" }).waitFor();
+    await page.getByRole("button", { name: "Make a plate" }).click();
+    await page.waitForURL(/\/review\/plates\/[0-9a-f-]{36}$/);
+    // Both photographers are credited for the data, the curator for the composite.
+    expect(await page.getByLabel("Data acquisition").inputValue()).toBe("Oskar Lindqvist and Nadia Fairweather");
+    expect(await page.getByLabel("Processing").inputValue()).toMatch(new RegExp(`^${curator.name} \\(composite\\)`));
+    await page.getByRole("heading", { name: "What the public sees of the sites" }).waitFor();
+    await page.locator('[aria-roledescription="zoomable image"]').waitFor({ timeout: 20_000 });
+    await page.getByRole("textbox", { name: "Caption", exact: true }).fill("One corona from Luxor and Cadiz, a long and a short lens; synthetic test data.");
+    await page.getByLabel("Alt text").fill("A dark Moon ringed by the corona, solar north up.");
+    await page.getByRole("button", { name: "Save the texts" }).click();
+    await page.getByRole("status").filter({ hasText: "Saved:" }).waitFor();
+    await page.getByRole("button", { name: "Publish the plate" }).click();
+    await page.getByRole("dialog", { name: /^Publish “/ }).getByRole("button", { name: "Publish", exact: true }).click();
+    await page.getByRole("status").filter({ hasText: "Published." }).waitFor();
+    const slug = (await page.getByRole("link", { name: /^\/plates\// }).innerText()).replace(/^\/plates\//, "");
+    await snap(page, "composite-journey-plate-desk");
+    await ctx.close();
+
+    const visitor = await browser.newContext({ baseURL: APP, viewport: { width: 1280, height: 900 } });
+    const pub = await visitor.newPage();
+    await pub.goto(`/plates/${slug}`);
+    await pub.getByRole("heading", { name: "The 2 inputs" }).waitFor();
+    await pub.getByText("Oskar Lindqvist and Nadia Fairweather").first().waitFor();
+    const layer = pub.getByRole("checkbox", { name: "Show where each input contributes" });
+    await expect.poll(() => layer.isEnabled(), { timeout: 30_000 }).toBe(true);
+    await layer.check();
+    await pub.getByText(/^Nadia Fairweather: \d+\.\d % of the light$/).waitFor();
+    await pub.waitForTimeout(1500);
+    await snap(pub, "composite-journey-public-plate");
+    expect(await pub.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+    expect(await seriousViolations(pub)).toEqual([]);
+    // On a phone the page does not scroll sideways either.
+    await pub.setViewportSize({ width: 390, height: 844 });
+    await pub.getByRole("heading", { name: "The 2 inputs" }).scrollIntoViewIfNeeded();
+    await snap(pub, "composite-journey-public-plate-phone");
+    expect(await pub.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+    await visitor.close();
+  }, 180_000);
 });

@@ -41,7 +41,21 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
         title={plate.title}
         lead={
           <>
-            From the bracket set “{plate.set.name}” by {plate.set.photographer} (set {STATE_LABELS[plate.set.state]}). Version {plate.currentVersion}.
+            {plate.composite ? (
+              <>
+                From the composite <Link href={`/studio/composites/${plate.composite.id}`}>“{plate.composite.title}”</Link> of{" "}
+                {plate.composite.sets.map((s, i) => (
+                  <span key={s.id}>
+                    {i ? (i === plate.composite!.sets.length - 1 ? " and " : ", ") : ""}“{s.name}” by {s.photographer} ({STATE_LABELS[s.state]})
+                  </span>
+                ))}
+                . Version {plate.currentVersion}.
+              </>
+            ) : (
+              <>
+                From the bracket set “{plate.set.name}” by {plate.set.photographer} (set {STATE_LABELS[plate.set.state]}). Version {plate.currentVersion}.
+              </>
+            )}
           </>
         }
       >
@@ -90,16 +104,21 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
         </div>
       </PageSection>
 
-      <PageSection id="location-h" title="What the public sees of the site">
-        <LocationCheck location={plate.location} />
+      <PageSection id="location-h" title={plate.locations.length > 1 ? "What the public sees of the sites" : "What the public sees of the site"}>
+        {plate.locations.length === 0 ? <LocationCheck location={null} /> : null}
+        <div className="flex flex-col gap-4">
+          {plate.locations.map((location, i) => (
+            <LocationCheck key={i} location={location} />
+          ))}
+        </div>
       </PageSection>
 
       <PageSection id="state-h" title="Publishing and withdrawal">
-        <PlateStateActions plateId={plate.id} title={plate.title} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} licence={plate.licence} photographer={plate.set.photographer} setState={plate.set.state} />
+        <PlateStateActions plateId={plate.id} title={plate.title} state={plate.state} withdrawnKind={plate.withdrawn?.kind ?? null} licence={plate.licence} photographer={plate.set.photographer} setState={plate.set.state} isComposite={plate.composite !== null} />
       </PageSection>
 
       <PageSection id="versions-h" title="Versions">
-        <PlateVersions plateId={plate.id} currentVersion={plate.currentVersion} versions={plate.versions} finishedReductions={plate.finishedReductions} readOnly={finalWithdrawal} />
+        <PlateVersions plateId={plate.id} currentVersion={plate.currentVersion} versions={plate.versions} finishedReductions={plate.finishedReductions} sourceKind={plate.sourceKind} readOnly={finalWithdrawal} />
       </PageSection>
 
       <PageSection id="publications-h" title="Publication history">
