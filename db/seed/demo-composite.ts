@@ -1,13 +1,17 @@
 // The demo's composite: Oskar Lindqvist's two Luxor kits, the 100 mm lens for
 // the corona's reach and the 400 mm lens for the inner corona, composed once
 // both reductions are finished. The seed waits for them a while (the worker is
-// running); if they are not done by then, the next start composes them.
+// running); if they are not done by then, the next start composes them. Once
+// the composite has finished, publish-demo.ts puts it in the gallery as a plate.
 import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { bracketSets, composites, reductions, users } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { findRolesOfUser } from "../queries/roles";
 import { startComposite } from "@/lib/composites/composites";
+import { createPlateFromComposite, findPlateOfSource, slugify } from "@/lib/plates/publish";
+import { makeWebJpeg } from "@/lib/plates/web-jpeg";
+import { SYNTHETIC_NOTE } from "./demo-scenario";
 import type { SeedLog } from "./demo-brackets";
 
 export const DEMO_COMPOSITE = {
@@ -53,4 +57,52 @@ export async function seedDemoComposite(db: Db, log: SeedLog): Promise<void> {
     }
     await new Promise((r) => setTimeout(r, 2000));
   }
+}
+
+const PLATE_TEXT = {
+  title: "Luxor through two lenses (demo)",
+  caption: "One corona from two cameras at the same site: the long lens gives the inner corona its detail, the short lens the streamers far out. Synthetic demo data.",
+  altText: "A black lunar disk ringed by a finely detailed inner corona, with long pale streamers spreading east and west; solar north is up.",
+  description: "Composed from two reductions of the same totality: a 400 mm lens for the inner corona and a 100 mm lens for its reach. The viewer's map layer shows which lens gives the light where.",
+};
+
+/** Waits (up to `timeoutMs`) for the demo composite and publishes it as a featured plate, once. */
+export async function publishDemoComposite(db: Db, log: SeedLog, timeoutMs = 10 * 60_000): Promise<void> {
+  const [user] = await db.select({ id: users.id, name: users.name }).from(users).where(eq(users.email, DEMO_COMPOSITE.email)).limit(1);
+  if (!user) return;
+  const find = async () =>
+    (await db.select().from(composites).where(and(eq(composites.composedBy, user.id), eq(composites.title, DEMO_COMPOSITE.title))).limit(1))[0];
+  const deadline = Date.now() + timeoutMs;
+  let composite = await find();
+  let said = "";
+  while (composite && (composite.state === "queued" || composite.state === "running") && Date.now() < deadline) {
+    const line = `${DEMO_COMPOSITE.title}: composite ${composite.state}${composite.stage ? `, ${composite.stage}` : ""} ${Math.round(composite.progress * 100)} %`;
+    if (line !== said) log((said = line));
+    await new Promise((r) => setTimeout(r, 2000));
+    composite = await find();
+  }
+  if (!composite || composite.state !== "done") {
+    log(`${DEMO_COMPOSITE.title}: composite ${composite?.state ?? "not started"}; no plate published (the next start tries again)`);
+    return;
+  }
+  const existing = await findPlateOfSource(db, composite.id);
+  if (existing) {
+    log(`${DEMO_COMPOSITE.title}: plate /plates/${existing.slug} already published`);
+    return;
+  }
+  const plate = await createPlateFromComposite(db, {
+    compositeId: composite.id,
+    slug: slugify("Luxor through two lenses 2027"),
+    ...PLATE_TEXT,
+    description: `${PLATE_TEXT.description}\n\n${SYNTHETIC_NOTE}`,
+    acquiredBy: user.name,
+    processedBy: `${user.name} (composite), Crownlight pipeline (${composite.pipelineVersion ?? "unknown version"})`,
+    licence: "CC-BY-4.0",
+    renditions: ["natural", "structure"],
+    featured: true,
+    publish: true,
+    createdBy: null,
+  });
+  await makeWebJpeg(db, plate.id, 1);
+  log(`${DEMO_COMPOSITE.title}: published as /plates/${plate.slug}`);
 }

@@ -1,9 +1,10 @@
-// `node --import tsx db/seed/publish-demo.ts`: publishes the demo reductions as
-// plates once they have finished (scripts/start.sh runs it after the app is up),
+// `node --import tsx db/seed/publish-demo.ts`: publishes the demo reductions and
+// the demo composite as plates once they have finished (scripts/start.sh runs it after the app is up),
 // then lays them out in the editor's draft edition.
 import { createDb } from "@/db/client";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { seedDemoEdition } from "./demo-edition";
+import { publishDemoComposite } from "./demo-composite";
 import { publishDemoPlates } from "./demo-plates";
 
 const url = process.env.DATABASE_URL;
@@ -18,6 +19,7 @@ if (/\/crownlight_test(_lane\d{1,2})?$/.test(url)) {
 const { db, pool } = createDb(url, 2);
 try {
   await publishDemoPlates(db, (line) => console.log(`db/seed: ${line}`));
+  await publishDemoComposite(db, (line) => console.log(`db/seed: ${line}`));
   await seedDemoEdition(db, (line) => console.log(`db/seed: ${line}`));
 } finally {
   await closeWebJpegWriter();
