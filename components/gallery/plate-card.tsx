@@ -12,7 +12,7 @@ export function PlateCard({ plate }: { plate: PlateCardDto }) {
           <span className="text-lg font-semibold text-ink group-hover:text-accent">{plate.title}</span>
           {plate.caption ? <span className="text-sm text-ink-muted">{plate.caption}</span> : null}
           <span className="mt-1 text-xs text-ink-muted">
-            {plate.eclipseId} · {plate.siteCountry ?? "site not given"} · {plate.photographer}
+            {plate.eclipseId} · {plate.isComposite ? "composite" : (plate.siteCountry ?? "site not given")} · {plate.photographer}
           </span>
         </span>
       </Link>

@@ -27,6 +27,8 @@ export interface PlateCardDto {
   /** At the site's precision; null when the observer keeps it private. */
   sitePosition: PublicPosition | null;
   photographer: string;
+  /** True for a composite's plate: several kits or observers, no one site. */
+  isComposite: boolean;
   renditions: Rendition[];
   previewUrl: string;
   publishedAt: string | null;
@@ -146,6 +148,7 @@ function cardOf(p: Plate, v: { reductionId: string | null; compositeId: string |
     siteLabel: shown.label,
     sitePosition: shown.position,
     photographer: p.acquiredBy,
+    isComposite: v.compositeId !== null,
     renditions: v.renditions,
     previewUrl: `${plateFilesBase(sourceOfVersion(v))}/preview.jpg`,
     publishedAt: p.publishedAt?.toISOString() ?? null,

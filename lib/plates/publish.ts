@@ -206,7 +206,7 @@ export async function readCompositeForPlate(db: DbOrTx, compositeId: string, ren
   if (renditions.length === 0) throw new AppError("invalid_input", "Choose at least one rendition to publish.", [{ field: "renditions", message: "choose at least one" }]);
   const unique = [...new Set(renditions)];
   const inputs = await db
-    .select({ outputs: reductions.outputs, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision })
+    .select({ outputs: reductions.outputs })
     .from(compositeInputs)
     .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
     .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
@@ -216,13 +216,12 @@ export async function readCompositeForPlate(db: DbOrTx, compositeId: string, ren
   const report = await readJson(`${row.outputs.prefix}report.json`);
   const inputReports = await Promise.all(inputs.map((i) => (i.outputs?.report ? readJson(i.outputs.report).catch(() => ({})) : Promise.resolve({}))));
   const imageSizes = await readImageSizes(`${row.outputs.prefix}tiles/`, unique);
-  // One country when every input stood in it and shows its site; otherwise none (the page names each input's site).
-  const countries = inputs.some((i) => i.precision === "hidden") ? [] : [...new Set(inputs.map((i) => findCountry(i.latDeg, i.lonDeg)))];
   return {
     source: { kind: "composite", id: compositeId },
     setId: null,
     eclipseId: row.eclipseId,
-    siteCountry: countries.length === 1 ? countries[0] : null,
+    // No one country: a composite may span sites and countries, and each input's site is shown at its own precision on the page.
+    siteCountry: null,
     renditions: unique,
     imageSizes,
     geometry: geometryFromCompositeReport(report, imageSizes[unique[0]]?.width ?? 0),

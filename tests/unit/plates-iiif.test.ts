@@ -27,6 +27,7 @@ function plate(overrides: Partial<PublicPlateDto> = {}): PublicPlateDto {
     siteLabel: "Luxor",
     sitePosition: { latDeg: 25.7, lonDeg: 32.6, precision: "rounded" },
     photographer: "Oskar Lindqvist",
+    isComposite: false,
     renditions: ["natural", "structure"],
     previewUrl: `/iiif/reductions/${RID}/preview.jpg`,
     publishedAt: "2027-08-20T10:00:00.000Z",
