@@ -1,5 +1,5 @@
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
-import type { CoverageView } from "@/lib/reductions/report-view";
+import type { CoverageView } from "@/lib/reductions/report-schema";
 
 /**
  * Where the frames overlap: the small coverage map (black where no frame

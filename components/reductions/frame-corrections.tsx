@@ -1,6 +1,6 @@
-import type { ReductionReportView } from "@/lib/reductions/report-view";
+import type { ParsedReport } from "@/lib/reductions/report-schema";
 
-type Frame = ReductionReportView["frames"][number];
+type Frame = ParsedReport["frames"][number];
 
 // lib/imaging/types.ts BlackLevelSource, in words.
 const OFFSET_SOURCES: Record<string, string> = {
@@ -50,7 +50,7 @@ function plural(n: number, one: string, many = `${one}s`): string {
 }
 
 /** One sentence on the calibration the reduction applied. */
-function describeCalibration(calibration: ReductionReportView["calibration"]): string {
+function describeCalibration(calibration: ParsedReport["calibration"]): string {
   if (!calibration || calibration.source === "none") return "No calibration frames were given and no sensor defects were found in the bracket.";
   if (calibration.source === "bracket") return `No calibration frames were given; ${plural(calibration.badPixelCount, "sensor defect")} (pixels that stay bright at one place on the sensor through the bracket) were found in the frames themselves and masked.`;
   const m = calibration.masters;
@@ -64,7 +64,7 @@ function describeCalibration(calibration: ReductionReportView["calibration"]): s
   return `Calibrated with ${parts.join("; ") || "the set's calibration frames"}; ${plural(calibration.badPixelCount, "sensor defect")} (hot, stuck or dead pixels) masked in every frame.`;
 }
 
-export function FrameCorrections({ report }: { report: ReductionReportView }) {
+export function FrameCorrections({ report }: { report: ParsedReport }) {
   const leftOut = report.framesLeftOut ?? [];
   const notes = (report.notes ?? []).filter((n) => !n.startsWith("Tile pyramids") && !n.startsWith("master.fits carries") && !n.startsWith("Renditions, preview"));
   const remarks = report.frames.flatMap((f) => [f.offset?.note, f.transmissionNote, f.registrationNote].filter((x): x is string => Boolean(x)).map((text) => ({ name: f.name, text })));

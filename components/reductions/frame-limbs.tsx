@@ -1,4 +1,4 @@
-import type { ReportFrameView } from "@/lib/reductions/report-view";
+import type { ReportFrame } from "@/lib/reductions/report-schema";
 
 function formatExposure(s: number | null | undefined): string {
   if (s == null) return "exposure unknown";
@@ -13,7 +13,7 @@ const VERDICTS: Record<string, string> = { sound: "sound fit", doubtful: "doubtf
  * circle in the frame's own pixel grid (the SVG's viewBox is the decoded frame,
  * laid exactly over the thumbnail, so the circle scales with it).
  */
-export function FrameLimbs({ setId, frames, frameIds, referenceFrame }: { setId: string; frames: ReportFrameView[]; frameIds: Record<string, string>; referenceFrame: string | null }) {
+export function FrameLimbs({ setId, frames, frameIds, referenceFrame }: { setId: string; frames: ReportFrame[]; frameIds: Record<string, string>; referenceFrame: string | null }) {
   if (frames.length === 0) return <p className="text-ink-muted">The report lists no frames.</p>;
   return (
     <ul className="grid grid-cols-2 gap-4 sm:grid-cols-3 lg:grid-cols-4" aria-label="Frames and their fitted limbs">

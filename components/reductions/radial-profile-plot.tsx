@@ -1,6 +1,6 @@
 import { useId } from "react";
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
-import type { RadialProfileView } from "@/lib/reductions/report-view";
+import type { RadialProfileView } from "@/lib/reductions/report-schema";
 
 const W = 640;
 const H = 360;

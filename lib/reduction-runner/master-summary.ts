@@ -8,6 +8,7 @@ import type { ReductionResult } from "@/lib/imaging/pipeline";
 import { computeRadialProfile, fitRadialPowerLaw, summarizeCoverage } from "@/lib/imaging/profile";
 import { computeLuminancePlane } from "@/lib/imaging/srgb";
 import { computeSunRadiusPx, type HelioGeometry } from "./helio-wcs";
+import type { CoverageInput, RadialProfileInput } from "@/lib/reductions/report-schema";
 
 /** Ring width of the profile, solar radii. */
 export const PROFILE_STEP_R = 0.05;
@@ -21,8 +22,8 @@ function roundTo(value: number, digits: number): number | null {
 }
 
 export interface MasterSummary {
-  radialProfile: Record<string, unknown>;
-  coverage: Record<string, unknown>;
+  radialProfile: RadialProfileInput;
+  coverage: CoverageInput;
 }
 
 /**

@@ -6,6 +6,7 @@ import { computeSolarNorthAngleDeg, computeSunRadiusPx, type HelioGeometry } fro
 import { describeSite, type SiteSpec } from "./sky-site";
 import type { FrameSky } from "./sun-geometry";
 import type { SunRegistration } from "./sun-registration";
+import type { ReportFrameSkyInput, ReportSkyInput } from "@/lib/reductions/report-schema";
 
 export interface SkyReportInput {
   registrationMode: "sun" | "moon" | "corona";
@@ -20,8 +21,8 @@ function roundTo(value: number, digits = 4): number | null {
   return Number.isFinite(value) ? Number(value.toFixed(digits)) : null;
 }
 
-export function buildSkyReport(input: SkyReportInput): { overall: Record<string, unknown>; frames: Map<string, Record<string, unknown>> } {
-  const frames = new Map<string, Record<string, unknown>>();
+export function buildSkyReport(input: SkyReportInput): { overall: ReportSkyInput; frames: Map<string, ReportFrameSkyInput> } {
+  const frames = new Map<string, ReportFrameSkyInput>();
   const { sun, helio, skies } = input;
   for (const s of skies ?? []) {
     const px = sun?.offsetsPx[s.name];
@@ -31,7 +32,7 @@ export function buildSkyReport(input: SkyReportInput): { overall: Record<string,
       moonMinusSunPx: px ? { dx: roundTo(px.dx), dy: roundTo(px.dy) } : null,
     });
   }
-  const overall: Record<string, unknown> = {
+  const overall: ReportSkyInput = {
     registrationMode: input.registrationMode,
     clockOffsetS: input.clockOffsetS,
     site: input.site ? describeSite(input.site) : null,

@@ -1,5 +1,6 @@
 // report.json: what the reduction did, per frame and overall, in plain numbers
-// that the worker will copy into the database and the review desk shows.
+// that the worker will copy into the database and the review desk shows. Its
+// contract (the schema every reader parses with) is lib/reductions/report-schema.ts.
 // Pixel coordinates here are 0-based pixel centres (lib/imaging's convention);
 // the FITS header writes them 1-based.
 import type { ReductionResult } from "@/lib/imaging/pipeline";
@@ -8,25 +9,9 @@ import type { FrameProvenance } from "./decode-frames";
 import { buildSkyReport, type SkyReportInput } from "./report-sky";
 import type { MasterSummary } from "./master-summary";
 import type { TilePyramidResult } from "./tiles";
+import { REPORT_VERSION, type ReductionReport } from "@/lib/reductions/report-schema";
 
-export const REPORT_VERSION = 1;
-
-export interface ReductionReport {
-  reportVersion: number;
-  createdUtc: string;
-  pipelineVersion: string;
-  parameters: ReductionResult["overall"]["parameters"];
-  exposureOverrideSource?: string;
-  frames: Record<string, unknown>[];
-  overall: Record<string, unknown>;
-  timingsMs: Record<string, number>;
-  outputs: Record<string, unknown>;
-  /** Calibration masters used (or defects found in the bracket), for the page. */
-  calibration: { source: CalibrationReport["source"]; badPixelCount: number; masters: unknown } | null;
-  /** Frames the reduction could not use, each with its reason; the reduction went on without them. */
-  framesLeftOut: { name: string; frameId: string | null; reason: string }[];
-  notes: string[];
-}
+export { REPORT_VERSION, type ReductionReport } from "@/lib/reductions/report-schema";
 
 function roundTo(value: number, digits = 4): number | null {
   return Number.isFinite(value) ? Number(value.toFixed(digits)) : null;

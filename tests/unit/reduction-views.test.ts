@@ -7,7 +7,7 @@ import { describe, expect, it } from "vitest";
 import { CoverageMap } from "@/components/reductions/coverage-map";
 import { FrameLimbs } from "@/components/reductions/frame-limbs";
 import { RadialProfilePlot } from "@/components/reductions/radial-profile-plot";
-import { parseReportView } from "@/lib/reductions/report-view";
+import { parseReport } from "@/lib/reductions/report-schema";
 
 const rings = Array.from({ length: 40 }, (_, k) => {
   const innerR = 1 + 0.05 * k;
@@ -15,7 +15,7 @@ const rings = Array.from({ length: 40 }, (_, k) => {
   return { innerR, outerR: innerR + 0.05, meanR, meanLuminance: 1e-6 * meanR ** -2.5, pixelCount: 100 + k, ringFraction: k > 35 ? 0.3 : 1 };
 });
 
-const report = parseReportView({
+const report = parseReport({
   pipelineVersion: "crownlight-imaging 0.1.0",
   frames: [
     { name: "f1.fits", frameId: null, decoded: { width: 320, height: 256, planes: 1 }, exposure: { seconds: 0.008, source: "fits-header" }, limb: { x: 160.25, y: 120.5, radiusPx: 40.2, rmsPx: 0.31, inlierFraction: 0.9, verdict: "sound" }, weights: { weightShare: 0.25 } },
@@ -31,10 +31,10 @@ describe("report.json as the page reads it", () => {
     expect(report.frames).toHaveLength(2);
     expect(report.overall.radialProfile?.rings).toHaveLength(40);
     expect(report.overall.coverage ?? null).toBeNull();
-    const old = parseReportView({ frames: [{ name: "x" }], overall: {} });
+    const old = parseReport({ frames: [{ name: "x" }], overall: {} });
     expect(old.overall.referenceFrame).toBeNull();
     expect(old.frames[0].limb).toBeNull();
-    expect(() => parseReportView("not an object")).toThrow(SyntaxError);
+    expect(() => parseReport("not an object")).toThrow(SyntaxError);
   });
 });
 

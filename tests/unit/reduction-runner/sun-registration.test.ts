@@ -7,6 +7,7 @@
 import { readFileSync, rmSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { parseReport, strictReportSchema } from "@/lib/reductions/report-schema";
 import { runReductionOnFiles, type ReductionReport } from "@/lib/reduction-runner";
 import { applyAffine, toAffine, type SimilarityTransform } from "@/lib/imaging/similarity";
 import { CLOCK_AHEAD_S, NORTH_ANGLE_DEG, SUN_SITE, SUN_SIZE_PX, writeSunBracket, type SunBracketFixture } from "./sun-bracket-fixture";
@@ -101,5 +102,15 @@ describe("registration on the Sun", () => {
     // The silhouette is the reference frame's, at its true mid-exposure (camera time less the clock offset).
     expect(Date.parse(sky.moonSilhouetteUtc)).toBeCloseTo(trueStartsMs[ref] + exposuresS[ref] * 500, -1);
     expect(report.frames[0].captureTimeUtc).toBe(new Date(trueStartsMs[0]).toISOString());
+  });
+
+  it("writes report.json as its contract says: the strict schema passes every run's report, every section present", () => {
+    for (const [mode, report] of runs) {
+      const parsed = strictReportSchema.safeParse(report);
+      expect(parsed.error?.issues ?? [], mode).toEqual([]);
+      // The lenient reader gives the same values back for a current report.
+      expect(parseReport(report).overall.sky?.registrationMode, mode).toBe(report.overall.sky?.registrationMode);
+      expect(parseReport(report).overall.radialProfile?.rings.length, mode).toBe(report.overall.radialProfile?.rings.length);
+    }
   });
 });
