@@ -3,7 +3,7 @@ import { PlateViewer } from "@/components/viewer/plate-viewer";
 import { PageSection } from "@/components/ui/page-section";
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import type { CompositeDto } from "@/lib/composites/composites";
-import { buildCompositeOutputUrl } from "@/lib/composites/output-paths";
+import { buildCompositeOutputUrl } from "@/lib/reductions/files/manifest";
 
 interface InputFigures {
   colour: string;

@@ -1,7 +1,7 @@
 // Server-rendered parts of the reduction page: parameters, measurements, the
 // stage log, the renditions and the downloads.
 import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
-import { buildOutputUrl } from "@/lib/reductions/output-paths";
+import { buildOutputUrl } from "@/lib/reductions/files/manifest";
 import { describeTiming, FILTER_LABELS, MOON_SOURCES, OUTPUT_SIZE_LABEL, REGISTRATION_SHORT } from "./labels";
 import { formatDateTime } from "@/lib/format/dates";
 

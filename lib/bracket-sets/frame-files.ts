@@ -2,14 +2,13 @@
 // curators): the ingest thumbnail, and the original as uploaded, streamed from
 // S3 without passing whole through memory. A refused frame's original stays
 // downloadable so that its owner can get it back.
-import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { and, eq } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
 import { frames } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { notFound } from "@/lib/errors";
-import { bucketName, getS3, isMissingObject, type ObjectRef } from "@/lib/storage";
+import { bucketName, openObjectStream, type ObjectRef } from "@/lib/storage";
 import { findVisibleSet } from "./access";
 
 export interface FrameFile {
@@ -34,14 +33,9 @@ async function findVisibleFrame(db: DbOrTx, actor: Actor | null, setId: string, 
 }
 
 async function openObject(ref: ObjectRef, what: string, fallbackType: string): Promise<Omit<FrameFile, "fileName">> {
-  try {
-    const out = await getS3().send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
-    if (!out.Body) throw notFound(what);
-    return { body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>, contentType: out.ContentType || fallbackType, contentLength: out.ContentLength ?? null };
-  } catch (err) {
-    if (isMissingObject(err)) throw notFound(what);
-    throw err;
-  }
+  const out = await openObjectStream(ref);
+  if (!out) throw notFound(what);
+  return { body: out.body, contentType: out.contentType || fallbackType, contentLength: out.contentLength ?? null };
 }
 
 export async function openFrameThumbnail(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<FrameFile> {

@@ -12,7 +12,7 @@ import type { DbOrTx } from "@/db/client";
 import { bracketSets, compositeInputs, composites, reductions } from "@/db/schema";
 import { isCompositeInputError, runCompositeInThread } from "@/lib/composite-runner";
 import { getEnv } from "@/lib/env";
-import { compositeFilesBase } from "@/lib/plates/source";
+import { compositeFilesBase } from "@/lib/reductions/files/manifest";
 import { uploadReductionFolder } from "@/lib/reduction-flow/store-outputs";
 import { bucketName, buildCompositePrefix, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 

@@ -1,11 +1,10 @@
 // Reachability of every service the app needs, each with a time limit, for
 // monitoring: all up answers 200, any down answers 503 with which one.
 import net from "node:net";
-import { HeadBucketCommand } from "@aws-sdk/client-s3";
 import { sql } from "drizzle-orm";
 import { getDb } from "@/db/client";
 import { getProducerRedis } from "@/lib/queue/connection";
-import { bucketName, getS3 } from "@/lib/storage/s3";
+import { bucketName, checkBucket } from "@/lib/storage";
 
 export type ServiceName = "postgres" | "redis" | "s3" | "smtp";
 
@@ -64,7 +63,7 @@ export async function checkHealth(): Promise<HealthReport> {
   const services = await Promise.all([
     timed("postgres", () => getDb().execute(sql`select 1`)),
     timed("redis", () => getProducerRedis().ping()),
-    timed("s3", () => getS3().send(new HeadBucketCommand({ Bucket: bucketName("originals") }))),
+    timed("s3", () => checkBucket(bucketName("originals"))),
     timed("smtp", () => probeSmtp(process.env.SMTP_URL ?? "")),
   ]);
   return { ok: services.every((s) => s.ok), checkedAt: new Date().toISOString(), services };

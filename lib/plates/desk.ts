@@ -17,7 +17,7 @@ import { parseInput } from "@/lib/validation";
 import { draftPlateSchema, newVersionSchema, plateEditSchema, withdrawSchema, type PlateEditInput } from "./desk-input";
 import { createPlateFromComposite, createPlateFromReduction, readCompositeForPlate, readReductionForPlate, slugify, versionSource, type PreparedSource } from "./publish";
 import { makeWebJpeg } from "./web-jpeg";
-import { forgetPublicAccess } from "./reduction-files";
+import { forgetPublicAccess } from "@/lib/reductions/files/serve";
 
 export { countWords, CAPTION_MAX_WORDS } from "./desk-input";
 

@@ -12,7 +12,6 @@ import { REDUCTION_FILE_OF, plateDownloadName, type PlateDownloadKind } from "./
 import { LICENCE_INFO, type LicenceInfo } from "./licences";
 import { plateFilesBase, sourceOfVersion, type PlateSource } from "./source";
 
-export { reductionFilesBase } from "./source";
 
 export interface PlateCardDto {
   slug: string;

@@ -9,6 +9,7 @@ import { AppError } from "@/lib/errors";
 import type { PlateTexts } from "./desk-input";
 import { findCountry } from "@/lib/geo/country";
 import { bucketName, readSmallObject } from "@/lib/storage";
+import { parseReport } from "@/lib/reductions/report-schema";
 import type { PlateSource } from "./source";
 
 export interface NewPlateTexts extends PlateTexts {
@@ -52,50 +53,45 @@ export function slugify(text: string): string {
  * renditions may be smaller than the master (a reduction's output size), so
  * positions and radii scale by the width ratio; plate scale grows by it.
  */
-export function geometryFromReport(report: Record<string, unknown>, renditionWidth: number): PlateGeometry {
-  const overall = (report.overall ?? {}) as Record<string, unknown>;
-  const sky = (overall.sky ?? {}) as Record<string, unknown>;
-  const master = (overall.masterSize ?? {}) as { width?: number };
-  const k = num(master.width) ? renditionWidth / (master.width as number) : 1;
-  const scalePoint = (p?: { x: number; y: number }) => (p ? { x: p.x * k, y: p.y * k } : undefined);
+export function geometryFromReport(input: unknown, renditionWidth: number): PlateGeometry {
+  const { overall } = parseReport(input);
+  const sky = overall.sky;
+  const width = overall.masterSize?.width;
+  const k = width ? renditionWidth / width : 1;
+  const scalePoint = (p: { x: number | null; y: number | null } | null | undefined) => (p && p.x !== null && p.y !== null ? { x: p.x * k, y: p.y * k } : undefined);
   const g: PlateGeometry = {};
-  const sunCentre = scalePoint(point(sky.sunCentrePx) ?? point(overall.sunCentrePx));
-  const sunRadius = num(sky.sunRadiusPx);
-  if (sunCentre && sunRadius !== undefined) {
+  const sunCentre = scalePoint(sky?.sunCentrePx) ?? scalePoint(overall.sunCentrePx);
+  const sunRadius = sky?.sunRadiusPx;
+  if (sunCentre && typeof sunRadius === "number") {
     g.sunCentre = sunCentre;
     g.sunRadiusPx = sunRadius * k;
   }
-  const moonCentre = scalePoint(point(overall.moonCentrePx));
-  const moonRadius = num(overall.moonRadiusPx);
-  if (moonCentre && moonRadius !== undefined) {
+  const moonCentre = scalePoint(overall.moonCentrePx);
+  if (moonCentre && typeof overall.moonRadiusPx === "number") {
     g.moonCentre = moonCentre;
-    g.moonRadiusPx = moonRadius * k;
+    g.moonRadiusPx = overall.moonRadiusPx * k;
   }
-  const north = num(sky.solarNorthAngleDeg);
-  if (north !== undefined) g.solarNorthAngleDeg = north;
-  const scale = num(sky.plateScaleArcsecPerPx);
-  if (scale !== undefined) g.plateScaleArcsecPerPx = scale / k;
+  if (typeof sky?.solarNorthAngleDeg === "number") g.solarNorthAngleDeg = sky.solarNorthAngleDeg;
+  if (typeof sky?.plateScaleArcsecPerPx === "number") g.plateScaleArcsecPerPx = sky.plateScaleArcsecPerPx / k;
   return g;
 }
 
-export function factsFromReport(report: Record<string, unknown>): PlateFacts {
-  const overall = (report.overall ?? {}) as Record<string, unknown>;
-  const sky = (overall.sky ?? {}) as Record<string, unknown>;
-  const frames = Array.isArray(report.frames) ? (report.frames as Record<string, unknown>[]) : [];
-  const exposures = frames.map((f) => num((f.exposure as { seconds?: unknown } | undefined)?.seconds)).filter((x): x is number => x !== undefined);
+export function factsFromReport(input: unknown): PlateFacts {
+  const { frames, overall } = parseReport(input);
+  const exposures = frames.map((f) => f.exposure?.seconds).filter((x): x is number => typeof x === "number" && Number.isFinite(x));
   const times = frames
-    .map((f) => ((f.sky as { midExposureUtc?: unknown } | null)?.midExposureUtc ?? f.captureTimeUtc) as unknown)
+    .map((f) => f.sky?.midExposureUtc ?? f.captureTimeUtc)
     .filter((t): t is string => typeof t === "string")
     .sort();
-  const master = overall.masterSize as { width?: number; height?: number } | undefined;
+  const master = overall.masterSize;
   return {
     exposuresS: exposures.sort((a, b) => a - b),
     captureStartUtc: times[0] ?? null,
     captureEndUtc: times.at(-1) ?? null,
-    moonSilhouetteUtc: typeof sky.moonSilhouetteUtc === "string" ? sky.moonSilhouetteUtc : null,
-    referenceFrame: typeof overall.referenceFrame === "string" ? overall.referenceFrame : null,
-    dynamicRangeStops: num(overall.dynamicRangeStops) ?? null,
-    masterSize: master && num(master.width) && num(master.height) ? { width: master.width as number, height: master.height as number } : null,
+    moonSilhouetteUtc: overall.sky?.moonSilhouetteUtc ?? null,
+    referenceFrame: overall.referenceFrame,
+    dynamicRangeStops: overall.dynamicRangeStops,
+    masterSize: master ? { width: master.width, height: master.height } : null,
   };
 }
 

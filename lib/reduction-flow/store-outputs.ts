@@ -8,15 +8,8 @@ import { eq, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { reductions } from "@/db/schema";
 import type { ReductionReport } from "@/lib/reduction-runner/report";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
-
-const CONTENT_TYPES: Record<string, string> = {
-  ".fits": "application/fits",
-  ".png": "image/png",
-  ".jpg": "image/jpeg",
-  ".json": "application/json",
-  ".dzi": "application/xml",
-};
+import { findOutputContentType } from "@/lib/reductions/files/manifest";
+import { bucketName, buildReductionPrefix, putObjectBytes } from "@/lib/storage";
 
 async function listFiles(dir: string, prefix = ""): Promise<string[]> {
   const out: string[] = [];
@@ -45,8 +38,7 @@ export async function uploadReductionFolder(prefix: string, outDir: string, onPr
   const lane = async () => {
     while (next < outputs.length) {
       const rel = outputs[next++];
-      const type = CONTENT_TYPES[path.extname(rel).toLowerCase()] ?? "application/octet-stream";
-      await putObjectBytes({ bucket: bucketName("derived"), key: prefix + rel }, await readFile(path.join(outDir, rel)), type);
+      await putObjectBytes({ bucket: bucketName("derived"), key: prefix + rel }, await readFile(path.join(outDir, rel)), findOutputContentType(rel));
       if (++done % 20 === 0) onProgress(done / outputs.length);
     }
   };
@@ -58,7 +50,7 @@ export async function uploadReductionFolder(prefix: string, outDir: string, onPr
 export async function storeReductionOutputs(db: DbOrTx, reductionId: string, outDir: string, report: ReductionReport, onProgress: (fraction: number) => void): Promise<void> {
   const [red] = await db.select({ setId: reductions.bracketSetId }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
   if (!red) throw new Error(`reduction ${reductionId} does not exist`);
-  const prefix = `${buildDerivedPrefix(red.setId)}reductions/${reductionId}/`;
+  const prefix = buildReductionPrefix(red.setId, reductionId);
   await uploadReductionFolder(prefix, outDir, onProgress);
   const overall = report.overall as Record<string, unknown>;
   await db

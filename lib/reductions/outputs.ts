@@ -1,65 +1,14 @@
-// Reading a reduction's outputs: one file streamed from S3 for the files route,
-// and the parsed report for the reduction page. Visible exactly when the
-// reduction is (its bracket set's owner and curators); to anyone else a
-// reduction answers "not found", like one that does not exist.
-import { GetObjectCommand } from "@aws-sdk/client-s3";
+// What the reduction page reads of a reduction's outputs beyond its row: the
+// parsed report and the frames it names. Visible exactly when the reduction is
+// (its bracket set's owner and curators; lib/reductions/files/serve.ts decides);
+// the files themselves are served by lib/reductions/files.
 import { eq } from "drizzle-orm";
-import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { bracketSets, frames, reductions } from "@/db/schema";
+import { bracketSets, frames } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
-import { findVisibleSet } from "@/lib/bracket-sets/access";
-import { AppError, notFound } from "@/lib/errors";
-import { bucketName, getS3, isMissingObject, openObjectStream, toSafeFileName } from "@/lib/storage";
-import { buildOutputDownloadName, findOutputContentType, isReductionOutputPath } from "./output-paths";
-import { parseReportView, type ReductionReportView } from "./report-view";
-
-const REDUCTION_NOT_FOUND = "That reduction";
-
-interface VisibleOutputs {
-  setId: string;
-  setName: string;
-  state: string;
-  /** Key prefix of the outputs; null until the reduction is done. */
-  prefix: string | null;
-}
-
-async function findVisibleOutputs(db: DbOrTx, actor: Actor | null, reductionId: string): Promise<VisibleOutputs> {
-  if (!z.uuid().safeParse(reductionId).success) throw notFound(REDUCTION_NOT_FOUND);
-  const [row] = await db
-    .select({ setId: reductions.bracketSetId, state: reductions.state, outputs: reductions.outputs })
-    .from(reductions)
-    .where(eq(reductions.id, reductionId))
-    .limit(1);
-  if (!row) throw notFound(REDUCTION_NOT_FOUND);
-  // Visible exactly when its bracket set is (the same rule as findReduction).
-  const { set } = await findVisibleSet(db, actor, row.setId).catch((err: unknown) => {
-    if (err instanceof AppError && err.code !== "not_found") throw err;
-    throw notFound(REDUCTION_NOT_FOUND);
-  });
-  const prefix = row.state === "done" && typeof row.outputs?.prefix === "string" ? row.outputs.prefix : null;
-  return { setId: row.setId, setName: set.name, state: row.state, prefix };
-}
-
-export interface ReductionOutputFile {
-  body: ReadableStream<Uint8Array>;
-  contentType: string;
-  contentLength?: number;
-  etag?: string;
-  downloadName: string;
-}
-
-/** One output of a finished reduction, streamed from S3. */
-export async function openReductionOutput(db: DbOrTx, actor: Actor | null, reductionId: string, path: string): Promise<ReductionOutputFile> {
-  if (!isReductionOutputPath(path)) {
-    throw new AppError("invalid_input", `"${path.slice(0, 80)}" is not one of a reduction's files: expected master.fits, natural.png, structure.png, preview.jpg, preview-structure.jpg, coverage.png, report.json or a tile under tiles/.`);
-  }
-  const found = await findVisibleOutputs(db, actor, reductionId);
-  if (!found.prefix) throw notFound(`The files of this reduction (it is ${found.state})`);
-  const file = await openObjectStream({ bucket: bucketName("derived"), key: found.prefix + path });
-  if (!file) throw notFound(`The file ${path} of this reduction`);
-  return { ...file, contentType: findOutputContentType(path), downloadName: buildOutputDownloadName(found.setName, reductionId, path) };
-}
+import { bucketName, isMissingObject, readSmallObject, toSafeFileName } from "@/lib/storage";
+import { findVisibleOutputs } from "./files/serve";
+import { parseReport, type ParsedReport } from "./report-schema";
 
 export interface FrameRef {
   id: string;
@@ -70,7 +19,7 @@ export interface ReductionOutputsView {
   setId: string;
   setName: string;
   /** Parsed report.json; null while the reduction is not done or when the report cannot be read. */
-  report: ReductionReportView | null;
+  report: ParsedReport | null;
   /** Why report is null when the reduction is done. */
   reportProblem: string | null;
   /** Frame ids by the names the report gives frames. */
@@ -84,20 +33,20 @@ export interface ReductionOutputsView {
  * front when two files share a name); a report that carries frame ids wins.
  */
 export async function findReductionOutputsView(db: DbOrTx, actor: Actor | null, reductionId: string): Promise<ReductionOutputsView> {
-  const found = await findVisibleOutputs(db, actor, reductionId);
-  const [set] = await db.select({ name: bracketSets.name }).from(bracketSets).where(eq(bracketSets.id, found.setId)).limit(1);
-  const view: ReductionOutputsView = { setId: found.setId, setName: set?.name ?? found.setName, report: null, reportProblem: null, frameIdsByName: {} };
+  const found = await findVisibleOutputs(db, actor, { kind: "reduction", id: reductionId });
+  const setId = found.setId!;
+  const [set] = await db.select({ name: bracketSets.name }).from(bracketSets).where(eq(bracketSets.id, setId)).limit(1);
+  const view: ReductionOutputsView = { setId, setName: set?.name ?? found.setName ?? "", report: null, reportProblem: null, frameIdsByName: {} };
   if (!found.prefix) return view;
   try {
-    const out = await getS3().send(new GetObjectCommand({ Bucket: bucketName("derived"), Key: `${found.prefix}report.json` }));
-    const text = out.Body ? await out.Body.transformToString("utf8") : "";
-    view.report = parseReportView(JSON.parse(text));
+    const bytes = await readSmallObject({ bucket: bucketName("derived"), key: `${found.prefix}report.json` }, 64 * 1024 ** 2);
+    view.report = parseReport(JSON.parse(bytes.toString("utf8")));
   } catch (err) {
     if (!isMissingObject(err) && !(err instanceof SyntaxError)) throw err;
     view.reportProblem = isMissingObject(err) ? "report.json is missing from the reduction's files." : "report.json could not be read as JSON.";
     return view;
   }
-  const rows: FrameRef[] = await db.select({ id: frames.id, originalFileName: frames.originalFileName }).from(frames).where(eq(frames.bracketSetId, found.setId));
+  const rows: FrameRef[] = await db.select({ id: frames.id, originalFileName: frames.originalFileName }).from(frames).where(eq(frames.bracketSetId, setId));
   const byId = new Map(rows.map((r) => [r.id, r]));
   for (const f of view.report.frames) {
     const direct = f.frameId && byId.has(f.frameId) ? f.frameId : null;

@@ -7,7 +7,7 @@ import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/sch
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "./limits";
-import { forgetPublicAccess } from "@/lib/plates/reduction-files";
+import { forgetPublicAccess } from "@/lib/reductions/files/serve";
 import { strictNumber } from "@/lib/strict-number";
 import { parseTrackText } from "./track-file";
 

@@ -1,6 +1,6 @@
 // The storage adapter's public surface.
 export { bucketName, createS3Client, getS3, type BucketRole } from "./s3";
-export { buildDerivedPrefix, buildCompositePrefix, buildOriginalKey, buildThumbnailKey, toSafeFileName } from "./keys";
+export { buildDerivedPrefix, buildCompositePrefix, buildReductionPrefix, buildOriginalKey, buildThumbnailKey, toSafeFileName } from "./keys";
 export * from "./limits";
 export {
   abortMultipartUpload,
@@ -14,5 +14,5 @@ export {
   type SignedPart,
   type UploadedPart,
 } from "./multipart";
-export { deleteObject, deleteObjectsUnder, downloadObjectToFile, findObjectSize, isMissingObject, openObjectStream, listObjectKeys, putObjectBytes, putObjectFile, putObjectFileWhole, readObjectRange, readSmallObject } from "./objects";
+export { checkBucket, deleteObject, deleteObjectsUnder, downloadObjectToFile, findObjectSize, isMissingObject, openObjectStream, listObjectKeys, putObjectBytes, putObjectFile, putObjectFileWhole, readObjectRange, readSmallObject } from "./objects";
 export { sweepAbandonedUploads, type SweepResult } from "./sweep-uploads";

@@ -44,6 +44,11 @@ export function buildDerivedPrefix(setId: string): string {
   return `derived/${requireUuid(setId, "bracket set id")}/`;
 }
 
+/** Prefix of a reduction's outputs, beside its set's other derived files (lib/reductions/files/manifest.ts lists them). */
+export function buildReductionPrefix(setId: string, reductionId: string): string {
+  return `${buildDerivedPrefix(setId)}reductions/${requireUuid(reductionId, "reduction id")}/`;
+}
+
 /** Prefix of the pieces a reduction's parts hand each other while it runs (deleted when it ends). */
 export function buildReductionWorkPrefix(reductionId: string): string {
   return `work/reductions/${requireUuid(reductionId, "reduction id")}/`;

@@ -4,7 +4,7 @@ import { createReadStream, createWriteStream } from "node:fs";
 import { stat } from "node:fs/promises";
 import { Transform, type Readable } from "node:stream";
 import { pipeline } from "node:stream/promises";
-import { DeleteObjectCommand, GetObjectCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
+import { DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
 import type { ObjectRef } from "./multipart";
 import { getS3 } from "./s3";
@@ -16,15 +16,20 @@ export function isMissingObject(err: unknown): boolean {
 
 /** Size in bytes, or null when there is no such object. */
 /** An object streamed for a response: its body, length and ETag; null when it does not exist (any other fault throws). */
-export async function openObjectStream(ref: ObjectRef, s3: S3Client = getS3()): Promise<{ body: ReadableStream<Uint8Array>; contentLength?: number; etag?: string } | null> {
+export async function openObjectStream(ref: ObjectRef, s3: S3Client = getS3()): Promise<{ body: ReadableStream<Uint8Array>; contentLength?: number; etag?: string; contentType?: string } | null> {
   try {
     const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
     if (!out.Body) return null;
-    return { body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>, contentLength: out.ContentLength, etag: out.ETag };
+    return { body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>, contentLength: out.ContentLength, etag: out.ETag, contentType: out.ContentType };
   } catch (err) {
     if (isMissingObject(err)) return null;
     throw err;
   }
+}
+
+/** Resolves when the bucket answers (the health check's probe of the store). */
+export async function checkBucket(bucket: string, s3: S3Client = getS3()): Promise<void> {
+  await s3.send(new HeadBucketCommand({ Bucket: bucket }));
 }
 
 export async function findObjectSize(ref: ObjectRef, s3: S3Client = getS3()): Promise<number | null> {

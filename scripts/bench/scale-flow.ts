@@ -20,7 +20,7 @@ import { getProducerRedis } from "@/lib/queue/connection";
 import { parseStepTimes } from "@/lib/queue/stepped-flow";
 import { QUEUES } from "@/lib/queue/jobs";
 import { startReduction } from "@/lib/reductions/reductions";
-import { bucketName, buildDerivedPrefix, deleteObjectsUnder, readSmallObject } from "@/lib/storage";
+import { bucketName, buildReductionPrefix, deleteObjectsUnder, readSmallObject } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
 import { startOwnWorker, type OwnProcess } from "../../tests/support/processes";
 import { readClockTicksPerS, watchProcessTrees, type WatchedProcess } from "./process-monitor";
@@ -146,7 +146,7 @@ async function logTail(workers: OwnProcess[]): Promise<string> {
 
 /** The reduction, its outputs and its job records go, so that runs do not pile up in the development database and S3. */
 async function removeReduction(db: Db, reductionId: string, setId: string): Promise<void> {
-  await deleteObjectsUnder({ bucket: bucketName("derived"), prefix: `${buildDerivedPrefix(setId)}reductions/${reductionId}/` });
+  await deleteObjectsUnder({ bucket: bucketName("derived"), prefix: buildReductionPrefix(setId, reductionId) });
   await deleteObjectsUnder({ bucket: bucketName("derived"), prefix: buildReductionWorkPrefix(reductionId) });
   await db.delete(jobRuns).where(sql`${jobRuns.payload}->>'reductionId' = ${reductionId}`);
   // The outcome mail to the bench member (lib/reductions notifyReductionOutcome's outbox id).

@@ -18,7 +18,7 @@ import { createDraftPlate } from "@/lib/plates/desk";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { signIn } from "../support/sign-in";
@@ -42,7 +42,7 @@ beforeAll(async () => {
   ownerEmail = owner.email;
   const setId = await createSetFor(db, owner, `Cadiz corona ${tag}`);
   const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(setId, red.id);
   const put = (key: string, body: Buffer, type: string) => putObjectBytes({ bucket: bucketName("derived"), key: prefix + key }, body, type);
   await put("report.json", Buffer.from(JSON.stringify({ frames: [], overall: { masterSize: { width: 64, height: 48 } } })), "application/json");
   // A valid IIIF Image API 3.0 level-0 descriptor, so the desk's viewer opens it as the public page would.

@@ -11,7 +11,7 @@ import { reductions, sites, users } from "@/db/schema";
 import { DEMO_PEOPLE } from "@/db/seed/people";
 import { createBracketSet } from "@/lib/bracket-sets";
 import { createPlateFromReduction } from "@/lib/plates/publish";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { APP, requireTestDatabase } from "../support/env";
@@ -79,7 +79,7 @@ describe("a site's privacy", () => {
     const actor = { userId: owner.id, email: member.email, name: owner.name, roles: ["member" as const] };
     const set = await createBracketSet(db, actor, { name: `Privacy journey ${tag}`, eclipseId: "2027-08-02", siteId, kitId: null, notes: "", clockOffsetS: 0 });
     const [red] = await db.insert(reductions).values({ bracketSetId: set.id, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-    const prefix = `${buildDerivedPrefix(set.id)}reductions/${red.id}/`;
+    const prefix = buildReductionPrefix(set.id, red.id);
     const json = (key: string, v: unknown) => putObjectBytes({ bucket: bucketName("derived"), key: prefix + key }, Buffer.from(JSON.stringify(v)), "application/json");
     await json("report.json", { frames: [], overall: { masterSize: { width: 40, height: 30 } } });
     await json("tiles/natural-iiif/info.json", { width: 40, height: 30 });

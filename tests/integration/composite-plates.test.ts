@@ -15,7 +15,7 @@ import { addPlateVersion, createDraftPlate, publishPlate, updatePlate, withdrawP
 import { findDeskPlate } from "@/lib/plates/desk-view";
 import { buildPlateManifest } from "@/lib/plates/iiif";
 import { findPublicPlate, listPublishedPlates } from "@/lib/plates/public";
-import { classifyReductionPath, servePlateSourceFile } from "@/lib/plates/reduction-files";
+import { serveOutputFile } from "@/lib/reductions/files/serve";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
@@ -86,9 +86,9 @@ describe("a composite's plate", () => {
   });
 
   it("keeps its files private while a draft: the composer and the photographers only", async () => {
-    await expect(servePlateSourceFile(db, null, source(), "natural-iiif/info.json", false)).rejects.toMatchObject({ code: "not_found" });
-    await expect(servePlateSourceFile(db, stranger, source(), "preview.jpg", false)).rejects.toMatchObject({ code: "not_found" });
-    const own = await servePlateSourceFile(db, shortOwner, source(), "preview.jpg", false);
+    await expect(serveOutputFile(db, null, source(), "natural-iiif/info.json", { route: "public", download: false })).rejects.toMatchObject({ code: "not_found" });
+    await expect(serveOutputFile(db, stranger, source(), "preview.jpg", { route: "public", download: false })).rejects.toMatchObject({ code: "not_found" });
+    const own = await serveOutputFile(db, shortOwner, source(), "preview.jpg", { route: "public", download: false });
     expect(own.status).toBe(200);
     expect(own.headers.get("cache-control")).toMatch(/no-store/);
     await own.body?.cancel();
@@ -140,24 +140,23 @@ describe("a composite's plate", () => {
   });
 
   it("serves the published composite's tiles, preview and map to anyone, and nothing else", async () => {
-    const info = await servePlateSourceFile(db, null, source(), "natural-iiif/info.json", false);
+    const info = await serveOutputFile(db, null, source(), "natural-iiif/info.json", { route: "public", download: false });
     expect(info.status).toBe(200);
     expect(info.headers.get("cache-control")).toMatch(/public/);
     // The pyramid names the public route, so that any IIIF viewer fetches its tiles there.
     const body = (await info.json()) as { id?: string; "@id"?: string };
     expect(body.id ?? body["@id"]).toMatch(new RegExp(`/iiif/composites/${compositeId}/natural-iiif$`));
-    const map = await servePlateSourceFile(db, null, source(), "contribution.jpg", false);
+    const map = await serveOutputFile(db, null, source(), "contribution.jpg", { route: "public", download: false });
     expect(map.headers.get("content-type")).toBe("image/jpeg");
     expect(Buffer.from(await map.arrayBuffer()).subarray(0, 2)).toEqual(Buffer.from([0xff, 0xd8]));
-    await expect(servePlateSourceFile(db, null, source(), "report.json", false)).rejects.toMatchObject({ code: "not_found" });
+    await expect(serveOutputFile(db, null, source(), "report.json", { route: "public", download: false })).rejects.toMatchObject({ code: "not_found" });
     // The contribution map is a composite's alone.
-    expect(classifyReductionPath("contribution.jpg")).toBeNull();
-    expect(classifyReductionPath("contribution.jpg", "composite")).toBe("preview");
+    await expect(serveOutputFile(db, null, { kind: "reduction", id: longRed }, "contribution.jpg", { route: "public", download: false })).rejects.toMatchObject({ code: "not_found" });
   });
 
   it("stops serving the files to the public once withdrawn", async () => {
     await withdrawPlate(db, curator, plateId, { reason: "A question about the data", kind: "temporary" });
-    await expect(servePlateSourceFile(db, null, source(), "natural-iiif/info.json", false)).rejects.toMatchObject({ code: "not_found" });
+    await expect(serveOutputFile(db, null, source(), "natural-iiif/info.json", { route: "public", download: false })).rejects.toMatchObject({ code: "not_found" });
     const plate = await findPublicPlate(db, slug);
     expect(plate.renditionFiles).toEqual([]);
     expect(plate.composite?.inputs).toHaveLength(2);

@@ -17,7 +17,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { closeProducerRedis, createRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
 import { startReduction } from "@/lib/reductions/reductions";
-import { bucketName, buildDerivedPrefix, getS3, listObjectKeys, readObjectRange } from "@/lib/storage";
+import { bucketName, buildDerivedPrefix, getS3, listObjectKeys, readObjectRange, buildReductionPrefix } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
 import { requireTestDatabase } from "../support/env";
 import { startOwnWorker, type OwnProcess } from "../support/processes";
@@ -125,7 +125,7 @@ async function killAndRecover(setId: string, isKillPoint: (r: { stage: string | 
   expect(done.finishedAt).not.toBeNull();
 
   // One reduction, one prefix: nothing under the set's reductions but this one's outputs.
-  const expectedPrefix = `${buildDerivedPrefix(setId)}reductions/${started.id}/`;
+  const expectedPrefix = buildReductionPrefix(setId, started.id);
   expect(done.outputs?.prefix).toBe(expectedPrefix);
   expect(await db.select({ id: reductions.id }).from(reductions).where(eq(reductions.bracketSetId, setId))).toHaveLength(1);
   const objects = await listObjects(`${buildDerivedPrefix(setId)}reductions/`);

@@ -17,7 +17,7 @@ import { bracketSets, reductions, sites, users } from "@/db/schema";
 import { encodeFits } from "@/lib/media";
 import { createPlateFromReduction } from "@/lib/plates/publish";
 import { buildHelioWcsCards, computeObsGeoM } from "@/lib/reduction-runner/helio-wcs";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { APP, requireTestDatabase } from "../support/env";
 import { Client } from "../support/http";
 import { runPython } from "../unit/media/python-reference";
@@ -55,7 +55,7 @@ const cases: Record<"rounded" | "hidden", Case> = {
 /** The stored outputs of a finished reduction at the exact site, as the worker writes them. */
 async function storeReduction(setId: string): Promise<string> {
   const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(setId, red.id);
   const put = (key: string, bytes: Uint8Array, type: string) => putObjectBytes({ bucket: bucketName("derived"), key: prefix + key }, Buffer.from(bytes), type);
   const json = (key: string, value: unknown) => put(key, Buffer.from(JSON.stringify(value)), "application/json");
   await json("report.json", {

@@ -11,7 +11,7 @@ import { closeDb, getDb } from "@/db/client";
 import { compositeInputs, composites, reductions, sites } from "@/db/schema";
 import { encodeFits } from "@/lib/media";
 import { createPlateFromComposite, createPlateFromReduction } from "@/lib/plates/publish";
-import { bucketName, buildCompositePrefix, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, buildCompositePrefix, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { Client } from "../support/http";
 
@@ -432,7 +432,7 @@ async function storeFinishedReduction(siteId: string, setName: string): Promise<
     .insert(reductions)
     .values({ bracketSetId: reduced.id, requestedBy: memberId, params: { registration: "sun", filter: "mgn", recoverResponse: false }, state: "done", progress: 1 })
     .returning({ id: reductions.id });
-  const prefix = `${buildDerivedPrefix(reduced.id)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(reduced.id, red.id);
   const report = { reportVersion: 1, pipelineVersion: "matrix", frames: [], overall: {}, timingsMs: {}, outputs: {}, notes: [] };
   const derived = (key: string) => ({ bucket: bucketName("derived"), key: prefix + key });
   await putObjectBytes(derived("report.json"), Buffer.from(JSON.stringify(report)), "application/json");

@@ -4,11 +4,11 @@ import { eq } from "drizzle-orm";
 import sharp from "sharp";
 import type { Db } from "@/db/client";
 import { reductions } from "@/db/schema";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 
 export async function makeFinishedReduction(db: Db, forSet: string, shade: number, requestedBy: string | null = null): Promise<string> {
   const [red] = await db.insert(reductions).values({ bracketSetId: forSet, requestedBy, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(forSet)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(forSet, red.id);
   const ref = (key: string) => ({ bucket: bucketName("derived"), key: prefix + key });
   const putJson = (key: string, value: unknown) => putObjectBytes(ref(key), Buffer.from(JSON.stringify(value)), "application/json");
   await putJson("report.json", {

@@ -9,7 +9,7 @@ import { closeDb, getDb } from "@/db/client";
 import { bracketSets, plates, reductions, sites } from "@/db/schema";
 import { createPlateFromReduction } from "@/lib/plates/publish";
 import { findPublicPlate, listPublishedPlates } from "@/lib/plates/public";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import { APP, requireTestDatabase } from "../support/env";
 import { Client } from "../support/http";
@@ -27,7 +27,7 @@ let publicReductionId = "";
 /** A finished reduction whose report and pyramid descriptors are in the S3 fake. */
 async function finishedReduction(setId: string): Promise<string> {
   const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(setId, red.id);
   const put = (key: string, value: unknown) => putObjectBytes({ bucket: bucketName("derived"), key: prefix + key }, Buffer.from(JSON.stringify(value)), "application/json");
   await put("report.json", {
     frames: [{ exposure: { seconds: 0.01 }, captureTimeUtc: "2027-08-02T10:04:40.000Z" }],

@@ -10,7 +10,7 @@ import { closeDb, getDb } from "@/db/client";
 import { reductions, users } from "@/db/schema";
 import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
 import { Client } from "../support/http";
 import { requireTestDatabase } from "../support/env";
 import { createSetFor } from "./bracket-upload-helpers";
@@ -40,7 +40,7 @@ beforeAll(async () => {
   const setId = await createSetFor(db, owner, "Cádiz: short lens");
 
   doneId = randomUUID();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${doneId}/`;
+  const prefix = buildReductionPrefix(setId, doneId);
   png = await sharp({ create: { width: 6, height: 4, channels: 3, background: "#304050" } }).png().toBuffer();
   const derived = bucketName("derived");
   await putObjectBytes({ bucket: derived, key: `${prefix}natural.png` }, png, "image/png");

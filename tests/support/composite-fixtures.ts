@@ -6,7 +6,7 @@ import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { reductions } from "@/db/schema";
 import { createSky, renderMaster, type KitSpec } from "@/lib/imaging/synth-composite";
-import { bucketName, buildDerivedPrefix, putObjectBytes } from "@/lib/storage";
+import { bucketName, buildReductionPrefix, putObjectBytes } from "@/lib/storage";
 import { encodeSyntheticMaster } from "@/scripts/lib-synth/write-master";
 
 /** A long lens and one of 0.4 its focal length turned 25 deg, the second camera at 0.6 the gain. */
@@ -20,7 +20,7 @@ const sky = createSky(5);
 /** A finished reduction of the set whose master is `kit`'s (or, without a kit, one with no sky coordinates). */
 export async function makeComposableReduction(db: DbOrTx, setId: string, kit: KitSpec | null): Promise<string> {
   const [red] = await db.insert(reductions).values({ bracketSetId: setId, params: { registration: "sun", filter: "mgn", recoverResponse: false } }).returning();
-  const prefix = `${buildDerivedPrefix(setId)}reductions/${red.id}/`;
+  const prefix = buildReductionPrefix(setId, red.id);
   let measurements: Record<string, unknown> = { masterSize: { width: 100, height: 80 } };
   if (kit) {
     const { input } = renderMaster(sky, kit);

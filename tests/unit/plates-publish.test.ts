@@ -1,6 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { AT_SEA, findCountry } from "@/lib/geo/country";
-import { classifyReductionPath } from "@/lib/plates/reduction-files";
+import { findPublicOutput } from "@/lib/reductions/files/manifest";
+
+const classifyReductionPath = (path: string, of: "reduction" | "composite" = "reduction") => findPublicOutput(path, of)?.entry.kind ?? null;
 import { factsFromReport, geometryFromReport, slugify } from "@/lib/plates/publish";
 
 describe("plate slugs", () => {
@@ -72,6 +74,17 @@ describe("reduction file paths", () => {
     expect(classifyReductionPath("report.json")).toBeNull();
     expect(classifyReductionPath("../../originals/x")).toBeNull();
     expect(classifyReductionPath("natural_files/../../x.jpg")).toBeNull();
+    // Stored under tiles/, asked for without it; nothing else under tiles/.
+    expect(findPublicOutput("natural.dzi", "reduction")?.path).toBe("tiles/natural.dzi");
+    expect(classifyReductionPath("tiles/natural.dzi")).toBeNull();
+    expect(classifyReductionPath("preview-structure.jpg")).toBeNull();
+    expect(classifyReductionPath("coverage.png")).toBeNull();
+  });
+
+  it("serves a composite's contribution map, which a reduction does not have", () => {
+    expect(classifyReductionPath("contribution.jpg", "composite")).toBe("preview");
+    expect(classifyReductionPath("contribution.jpg")).toBeNull();
+    expect(classifyReductionPath("report.json", "composite")).toBeNull();
   });
 });
 

@@ -1,6 +1,6 @@
 // Which paths the reduction files route serves, and the names and URLs it gives them.
 import { describe, expect, it } from "vitest";
-import { buildOutputDownloadName, buildOutputUrl, findOutputContentType, isReductionOutputPath } from "@/lib/reductions/output-paths";
+import { buildOutputDownloadName, buildOutputUrl, findOutputContentType, isReductionOutputPath } from "@/lib/reductions/files/manifest";
 
 describe("isReductionOutputPath", () => {
   it.each([

@@ -18,7 +18,7 @@ import { Badge } from "@/components/ui/badge";
 import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { findBracketSet } from "@/lib/bracket-sets";
-import { reductionFilesBase } from "@/lib/plates/public";
+import { reductionFilesBase } from "@/lib/reductions/files/manifest";
 import { listReductions } from "@/lib/reductions/reductions";
 import { listCuratorNotes, listDecisionHistory } from "@/lib/review/history";
 import { availableActions, STATE_LABELS, type CuratorAction } from "@/lib/review/state-machine";

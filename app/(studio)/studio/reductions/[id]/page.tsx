@@ -17,7 +17,7 @@ import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
 import { getDb } from "@/db/client";
 import { findBracketSet } from "@/lib/bracket-sets";
 import { checkSetGeometry } from "@/lib/bracket-sets/set-checks";
-import { buildOutputUrl } from "@/lib/reductions/output-paths";
+import { buildOutputUrl } from "@/lib/reductions/files/manifest";
 import { findReductionOutputsView } from "@/lib/reductions/outputs";
 import { findReduction, listReductions } from "@/lib/reductions/reductions";
 import { assessRunChoices } from "@/lib/reductions/run-options";
