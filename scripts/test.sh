@@ -7,7 +7,8 @@
 #   scripts/test.sh [vitest filters...]
 # TEST_LANE=1..14 runs a second suite beside the first (its own database, Redis
 # database, queue prefix, port and build folder), for parallel work on one machine.
-# TEST_QUICK=1 skips lint and the type check.
+# TEST_QUICK=1 skips lint and the type check. Skipped and todo tests count as
+# failures unless ALLOW_SKIP=1.
 . "$(dirname "$0")/lib/common.sh"
 . "$(dirname "$0")/lib/app.sh"
 
@@ -80,11 +81,20 @@ rm -f "$report"
 if [ -f "$report" ]; then
   # A suite that fails before its tests run (import or setup error) counts as
   # one failure, so a broken file can never pass silently.
-  read -r vp vf < <(node -e '
+  read -r vp vf vs < <(node -e '
     const r = require(process.argv[1]);
     const broken = (r.testResults || []).filter((s) => s.status === "failed" && !s.assertionResults.some((a) => a.status === "failed")).length;
-    console.log(r.numPassedTests, r.numFailedTests + broken);' "$report")
+    console.log(r.numPassedTests, r.numFailedTests + broken, (r.numPendingTests || 0) + (r.numTodoTests || 0));' "$report")
   passed=$((passed + vp)); failed=$((failed + vf))
+  # A skipped or todo test asserts nothing: it fails the run unless ALLOW_SKIP=1 says it is meant.
+  if [ "$vs" -gt 0 ]; then
+    if [ "${ALLOW_SKIP:-0}" = 1 ]; then
+      say "$vs test(s) skipped or todo (allowed by ALLOW_SKIP=1)"
+    else
+      say "FAILED: $vs test(s) skipped or todo; finish or remove them, or run with ALLOW_SKIP=1"
+      failed=$((failed + vs))
+    fi
+  fi
 else
   say "vitest wrote no report"; failed=$((failed + 1))
 fi

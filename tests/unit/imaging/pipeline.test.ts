@@ -94,7 +94,10 @@ describe("reduceBracket in moon mode", () => {
       expect(error).toBeLessThan(f.limb.verdict === "sound" ? 0.05 : 0.2);
       expect(Math.abs(f.transform.rotationDeg - ROTATIONS_DEG[i])).toBeLessThan(0.02);
     });
-    expect(Math.sqrt(sum2 / result.frames.length)).toBeLessThan(0.12); // measured 0.10
+    // Measured 0.10 px RMS (one frame clipped all round, four sound ones within hundredths). The bound guards that
+    // mix rather than any one frame: a second frame drifting to the 0.2 px allowed above would add 0.2² / 5 to the
+    // mean square and give sqrt(0.10² + 0.008) = 0.134 px, which fails; noise in the sound fits does not reach it.
+    expect(Math.sqrt(sum2 / result.frames.length)).toBeLessThan(0.12);
   });
 });
 
