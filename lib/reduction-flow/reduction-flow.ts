@@ -56,7 +56,7 @@ import { deleteReductionWork, fetchWorkFile, getWork, putWork, type WorkPlace } 
 import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
-/** What the worker gives the parent (worker/dispatch.ts HandlerContext). */
+/** What the worker gives the parent (lib/queue/job-context.ts SteeringContext, built by worker/dispatch.ts). */
 export interface ReductionParentContext extends FlowJobContext<{ reductionId: string }> {
   db: Db;
 }

@@ -1,11 +1,10 @@
 import { UnrecoverableError } from "bullmq";
 import { and, eq, inArray, sql } from "drizzle-orm";
-import { editionExports, jobRuns } from "@/db/schema";
+import { editionExports } from "@/db/schema";
 import { failExport, finishExport, makeBundle } from "@/lib/editions/export/bundle";
 import { AppError } from "@/lib/errors";
 import { MediaError } from "@/lib/media/errors";
-import { JOBS } from "@/lib/queue/jobs";
-import type { JobHandler } from "../registry";
+import type { JobHandler } from "@/lib/queue/job-context";
 
 /**
  * Makes one print bundle. A bundle already done is left alone; bad data (a
@@ -13,7 +12,7 @@ import type { JobHandler } from "../registry";
  * export at once with the reason; anything else is retried, and fails the
  * export on the last attempt. The edition changes only when the ZIP is stored.
  */
-export const exportEdition: JobHandler<"edition.export"> = async ({ db, jobId, payload, report }) => {
+export const exportEdition: JobHandler<"edition.export"> = async ({ db, payload, report, isFinalAttempt }) => {
   const [row] = await db.select({ state: editionExports.state }).from(editionExports).where(eq(editionExports.id, payload.exportId)).limit(1);
   if (!row) throw new UnrecoverableError(`export ${payload.exportId} does not exist`);
   // Only an export still under way is taken: a finished or failed one, or one another run took meanwhile, is left alone.
@@ -36,8 +35,7 @@ export const exportEdition: JobHandler<"edition.export"> = async ({ db, jobId, p
       await failExport(db, payload.exportId, err.message);
       throw new UnrecoverableError(err.message);
     }
-    const [run] = await db.select({ attempts: jobRuns.attempts }).from(jobRuns).where(eq(jobRuns.id, jobId)).limit(1);
-    if ((run?.attempts ?? 0) >= JOBS["edition.export"].attempts) {
+    if (isFinalAttempt) {
       await failExport(db, payload.exportId, `the bundle could not be made (${err instanceof Error ? err.message : String(err)})`);
     } else {
       await db

@@ -24,7 +24,7 @@ import { decodeFrame, encodeThumbnail, isMediaError } from "@/lib/media";
 import { isPlausibleExposure } from "@/lib/media/exposure";
 import { JOBS } from "@/lib/queue/jobs";
 import { bucketName, buildThumbnailKey, downloadObjectToFile, isMissingObject, putObjectBytes } from "@/lib/storage";
-import type { JobHandler } from "../registry";
+import type { JobHandler } from "@/lib/queue/job-context";
 
 interface FrameToIngest {
   id: string;
@@ -96,7 +96,7 @@ export const ingestFrame: JobHandler<"frame.ingest"> = async (ctx) => {
   try {
     await ingestFrameOnce(ctx);
   } catch (err) {
-    if (err instanceof UnrecoverableError || !ctx.isLastAttempt) throw err;
+    if (err instanceof UnrecoverableError || !ctx.isFinalAttempt) throw err;
     const [frame] = await ctx.db
       .select({ id: frames.id, bracketSetId: frames.bracketSetId, originalKey: frames.originalKey, originalFileName: frames.originalFileName, sizeBytes: frames.sizeBytes, exposureSource: frames.exposureSource })
       .from(frames)

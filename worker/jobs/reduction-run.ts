@@ -3,7 +3,7 @@ import { eq } from "drizzle-orm";
 import { reductions } from "@/db/schema";
 import { reductionFlow } from "@/lib/reduction-flow/reduction-flow";
 import { notifyReductionOutcome } from "@/lib/reductions/reductions";
-import type { SteeringJobHandler } from "../registry";
+import type { SteeringJobHandler } from "@/lib/queue/job-context";
 
 /**
  * One reduction, as a stepped flow whose parts any worker takes
@@ -20,7 +20,7 @@ export const runReduction: SteeringJobHandler<"reduction.run"> = async (ctx) => 
     await reductionFlow.runParent(ctx);
   } catch (err) {
     // Waiting for parts is not a fault; a fault that will be retried shows the reduction queued with its reason.
-    if (!(err instanceof WaitingChildrenError) && !(err instanceof UnrecoverableError) && !ctx.isLastAttempt) {
+    if (!(err instanceof WaitingChildrenError) && !(err instanceof UnrecoverableError) && !ctx.isFinalAttempt) {
       await db.update(reductions).set({ state: "queued", error: (err as Error).message }).where(eq(reductions.id, red.id));
     }
     throw err;
