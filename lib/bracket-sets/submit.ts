@@ -3,21 +3,20 @@
 // has finished, and every curator gets a mail with a link to the set. The move
 // is the review state machine's "submit"; it is kept in the review history and
 // the audit log like a curator's decision.
-import { randomUUID } from "node:crypto";
 import { and, count, desc, eq, ne } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, frames, outboxMessages, reductions, reviewDecisions, userRoles, users } from "@/db/schema";
+import { bracketSets, frames, reductions, reviewDecisions, userRoles, users } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { reviewRequestedMail } from "@/lib/email/templates";
 import { AppError, forbidden } from "@/lib/errors";
-import { enqueue } from "@/lib/queue/enqueue";
 import { planTransition } from "@/lib/review/state-machine";
 import { findVisibleSet } from "./access";
 import { toSummary } from "./bracket-sets";
 import type { BracketSetSummaryDto } from "./dto";
-import { appLink } from "./notify";
 
 export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetSummaryDto> {
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
@@ -65,14 +64,12 @@ export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: s
     });
     const ids: string[] = [];
     for (const c of curators) {
-      const id = randomUUID();
-      await tx.insert(outboxMessages).values({ id, ...reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url, isResubmission: plan.isResubmission }) });
-      ids.push(id);
+      ids.push(await stageMail(tx, reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url, isResubmission: plan.isResubmission })));
     }
     return { updated: row, outboxIds: ids };
   });
   // Queued after the commit, so the mail job always finds its message.
-  for (const outboxId of outboxIds) await enqueue(db, "mail.send", { outboxId });
+  await sendStagedMail(db, outboxIds);
   const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
   return toSummary(updated, a, a.name, n);
 }

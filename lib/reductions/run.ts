@@ -8,7 +8,8 @@ import { and, eq, inArray, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { bracketSets, reductions, users, type Reduction } from "@/db/schema";
-import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { reductionFailedMail, reductionFinishedMail } from "@/lib/email/templates";
 import { isFailedForGood, type BasicJobContext } from "@/lib/queue/job-context";
 import { deleteReductionWork } from "@/lib/reduction-flow/work-store";
@@ -127,5 +128,5 @@ export async function notifyReductionOutcome(db: DbOrTx, reductionId: string): P
     row.state === "done"
       ? reductionFinishedMail(society, to.email, to.name, outcome)
       : reductionFailedMail(society, to.email, to.name, { ...outcome, reason: row.error ?? "no reason was recorded" });
-  await queueMailOnce(db, `reduction-outcome-${reductionId}`, draft);
+  await sendStagedMail(db, [await stageMail(db, { id: `reduction-outcome-${reductionId}`, ...draft })]);
 }

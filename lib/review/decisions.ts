@@ -3,19 +3,18 @@
 // curator saw it (two curators deciding at once: one wins, the other is told),
 // the decision row, the private note, the audit entry and the mail to the
 // photographer. The mail is queued after the commit so the job finds it.
-import { randomUUID } from "node:crypto";
 import { and, desc, eq, isNotNull } from "drizzle-orm";
 import { z } from "zod";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, curatorNotes, outboxMessages, reductions, reviewDecisions, users, type ReviewReason } from "@/db/schema";
+import { bracketSets, curatorNotes, reductions, reviewDecisions, users, type ReviewReason } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { findVisibleSet } from "@/lib/bracket-sets/access";
-import { appLink } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { reviewDecisionMail } from "@/lib/email/templates";
 import { AppError } from "@/lib/errors";
-import { enqueue } from "@/lib/queue/enqueue";
 import { parseInput } from "@/lib/validation";
 import { CURATOR_ACTIONS, planTransition, type CuratorAction, type ReviewState } from "./state-machine";
 
@@ -143,7 +142,6 @@ export async function decide(db: Db, actor: Actor | null, setId: string, raw: De
     });
     let id: string | null = null;
     if (owner) {
-      id = randomUUID();
       const mail = reviewDecisionMail(society, owner.email, owner.name, {
         action: input.action,
         setName: set.name,
@@ -151,11 +149,11 @@ export async function decide(db: Db, actor: Actor | null, setId: string, raw: De
         message,
         url: appLink(`/studio/sets/${set.id}`),
       });
-      await tx.insert(outboxMessages).values({ id, ...mail });
+      id = await stageMail(tx, mail);
     }
     return { decision: row, outboxId: id };
   });
-  if (outboxId) await enqueue(db, "mail.send", { outboxId });
+  if (outboxId) await sendStagedMail(db, [outboxId]);
 
   return {
     id: decision.id,

@@ -5,7 +5,7 @@
 // credits, the proof's page).
 import { readFile } from "node:fs/promises";
 import type { SocietySettings } from "@/db/schema";
-import { appLink } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
 import { AppError } from "@/lib/errors";
 import { createSharp } from "@/lib/media/sharp-setup";
 import { plateCreditLine } from "@/lib/plates/credit";

@@ -9,7 +9,8 @@ import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { editionExports, editions, users } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
-import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { editionExportFailedMail, editionExportReadyMail } from "@/lib/email/templates";
 import { AppError } from "@/lib/errors";
 import { formatBytes } from "@/lib/format/bytes";
@@ -61,50 +62,58 @@ export async function runExportJob(ctx: BasicJobContext<{ exportId: string }>): 
   await finishExport(db, exportId, result);
 }
 
+type ExportOutcome = { ok: true; bytes: number; plates: number } | { ok: false; reason: string };
+
 /**
- * Marks the export done and the edition exported, with the audit entry, in one
- * transaction; only an export still under way changes (a repeated call does
- * nothing). The e-mail is queued after the commit: a Redis hiccup then leaves
- * the mail pending in the outbox, never the bundle undone.
+ * Marks the export done and the edition exported, with the audit entry and the
+ * editor's mail, in one transaction; only an export still under way changes (a
+ * repeated call does nothing).
  */
 async function finishExport(db: Db, exportId: string, result: BundleResult): Promise<void> {
-  const row = await db.transaction(async (tx) => {
+  const mailIds = await db.transaction(async (tx) => {
     const [done] = await tx
       .update(editionExports)
       .set({ state: "done", progress: 1, stage: "Ready", objectKey: result.objectKey, zipName: result.zipName, bytes: result.bytes, files: result.files, warnings: result.warnings, error: null, finishedAt: sql`now()` })
       .where(and(eq(editionExports.id, exportId), inArray(editionExports.state, ACTIVE)))
       .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
-    if (!done) return null;
+    if (!done) return [];
     await tx.update(editions).set({ state: "exported", updatedAt: sql`now()` }).where(eq(editions.id, done.editionId));
     await recordAudit(tx, { actorId: done.requestedBy, action: "edition.exported", subjectType: "edition", subjectId: done.editionId, detail: { exportId, bytes: result.bytes, files: result.files.length } });
-    return done;
+    return stageExportMail(tx, exportId, done, { ok: true, bytes: result.bytes, plates: result.plates });
   });
-  if (row) await notifyExport(db, exportId, row.editionId, row.requestedBy, { ok: true, bytes: result.bytes, plates: result.plates });
+  await sendExportMail(db, exportId, mailIds);
 }
 
 /** Marks an export under way as failed with its reason (a finished one stays finished) and tells the editor. */
-async function failExport(db: DbOrTx, exportId: string, reason: string): Promise<void> {
-  const [row] = await db
-    .update(editionExports)
-    .set({ state: "failed", error: reason, stage: "Failed", finishedAt: sql`now()` })
-    .where(and(eq(editionExports.id, exportId), inArray(editionExports.state, ACTIVE)))
-    .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
-  if (row) await notifyExport(db, exportId, row.editionId, row.requestedBy, { ok: false, reason });
+async function failExport(db: Db, exportId: string, reason: string): Promise<void> {
+  const mailIds = await db.transaction(async (tx) => {
+    const [failed] = await tx
+      .update(editionExports)
+      .set({ state: "failed", error: reason, stage: "Failed", finishedAt: sql`now()` })
+      .where(and(eq(editionExports.id, exportId), inArray(editionExports.state, ACTIVE)))
+      .returning({ editionId: editionExports.editionId, requestedBy: editionExports.requestedBy });
+    return failed ? stageExportMail(tx, exportId, failed, { ok: false, reason }) : [];
+  });
+  await sendExportMail(db, exportId, mailIds);
 }
 
-async function notifyExport(db: DbOrTx, exportId: string, editionId: string, userId: string | null, outcome: { ok: true; bytes: number; plates: number } | { ok: false; reason: string }): Promise<void> {
-  if (!userId) return;
+/** Stages the mail that tells the editor who started the export its outcome; one message per export and outcome. */
+async function stageExportMail(tx: DbOrTx, exportId: string, row: { editionId: string; requestedBy: string | null }, outcome: ExportOutcome): Promise<string[]> {
+  if (!row.requestedBy) return [];
+  const [user] = await tx.select({ name: users.name, email: users.email }).from(users).where(eq(users.id, row.requestedBy)).limit(1);
+  const [edition] = await tx.select({ title: editions.title }).from(editions).where(eq(editions.id, row.editionId)).limit(1);
+  if (!user || !edition) return [];
+  const society = (await findSocietySettings(tx)).name;
+  const url = appLink(`/editions/${row.editionId}#exports-h`);
+  const message = outcome.ok
+    ? { id: `edition-export-ready-${exportId}`, ...editionExportReadyMail(society, user.email, user.name, { title: edition.title, plates: outcome.plates, size: formatBytes(outcome.bytes), url }) }
+    : { id: `edition-export-failed-${exportId}`, ...editionExportFailedMail(society, user.email, user.name, { title: edition.title, reason: outcome.reason, url }) };
+  return [await stageMail(tx, message)];
+}
+
+async function sendExportMail(db: Db, exportId: string, mailIds: string[]): Promise<void> {
   try {
-    const [user] = await db.select({ name: users.name, email: users.email }).from(users).where(eq(users.id, userId)).limit(1);
-    const [edition] = await db.select({ title: editions.title }).from(editions).where(eq(editions.id, editionId)).limit(1);
-    if (!user || !edition) return;
-    const society = (await findSocietySettings(db)).name;
-    const url = appLink(`/editions/${editionId}#exports-h`);
-    if (outcome.ok) {
-      await queueMailOnce(db, `edition-export-ready-${exportId}`, editionExportReadyMail(society, user.email, user.name, { title: edition.title, plates: outcome.plates, size: formatBytes(outcome.bytes), url }));
-    } else {
-      await queueMailOnce(db, `edition-export-failed-${exportId}`, editionExportFailedMail(society, user.email, user.name, { title: edition.title, reason: outcome.reason, url }));
-    }
+    await sendStagedMail(db, mailIds);
   } catch (err) {
     // The bundle's state is already recorded; a mail that could not be queued stays pending in the outbox.
     console.error(`[edition-export] the e-mail about export ${exportId} could not be queued:`, err);
