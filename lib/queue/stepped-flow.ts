@@ -18,23 +18,11 @@
 import { UnrecoverableError, WaitingChildrenError, type Job } from "bullmq";
 import { z } from "zod";
 import type { JobRun, SteeringFields } from "./job-context";
+import { STEP_NAME, type PartFields } from "./part-fields";
 
 export type FlowValue = string | number | boolean | null | FlowValue[] | { [key: string]: FlowValue };
 
-/** Step names go into job ids and Redis keys: lower-case words, no ':'. */
-const STEP_NAME = /^[a-z][a-z0-9-]{0,39}$/;
-
-/** Fields every part payload carries beside its ids: its step, its index in that step and the step's count of parts. */
-export const PART_FIELDS = {
-  step: z.string().regex(STEP_NAME),
-  part: z.number().int().min(0),
-  parts: z.number().int().min(1),
-};
-export interface PartFields {
-  step: string;
-  part: number;
-  parts: number;
-}
+export { PART_FIELDS, type PartFields } from "./part-fields";
 
 /** Part jobs: retried with backoff, kept a day after success (never by count: a large flow has thousands of parts). */
 const PART_JOB_OPTIONS = {
