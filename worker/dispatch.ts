@@ -1,14 +1,14 @@
 // From a BullMQ job to its typed handler: the payload is validated again (a stale
 // or forged payload is refused without retry), the state is mirrored to
-// PostgreSQL, and the handler gets its context (the job and the worker's lock
-// token for handlers that steer their own job, report functions, queues on the
-// worker's connection). Generic over the job registry so that tests can run
-// their own jobs through the same path.
+// PostgreSQL, and the handler gets its context (lib/queue/job-context.ts: the
+// attempt, the job and the worker's lock token for handlers that steer their
+// own job, report functions, queues on the worker's connection). Generic over
+// the job registry so that tests can run their own jobs through the same path.
 import { Queue, UnrecoverableError, type Job, type Worker } from "bullmq";
 import type { Redis } from "ioredis";
 import type { z } from "zod";
 import type { Db } from "@/db/client";
-import type { FlowJobContext } from "@/lib/queue/stepped-flow";
+import { attemptOf, isFailedForGood, type SteeringContext } from "@/lib/queue/job-context";
 import { mirrorJob } from "./mirror";
 
 export interface JobDefinition {
@@ -17,22 +17,8 @@ export interface JobDefinition {
   attempts: number;
 }
 
-/** What every handler gets. */
-export interface BasicContext<P> {
-  db: Db;
-  jobId: string;
-  payload: P;
-  /** Reports stage and progress (0..1); mirrored to PostgreSQL. */
-  report: (stage: string, fraction: number) => Promise<void>;
-  /** True on the job's last attempt: a handler whose failure would leave a row waiting for ever records the failure itself. */
-  isLastAttempt: boolean;
-}
-
-/** The whole context: also the BullMQ job, the worker's lock token and the rest a handler that steers its own job needs. */
-export interface HandlerContext<P> extends BasicContext<P>, FlowJobContext<P> {}
-
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- each handler takes its own payload; the dispatcher checks it against the registry first
-export type AnyHandler = (ctx: HandlerContext<any>) => Promise<unknown>;
+export type AnyHandler = (ctx: SteeringContext<any>) => Promise<unknown>;
 
 export interface Dispatcher {
   process: (job: Job, token?: string) => Promise<unknown>;
@@ -69,13 +55,13 @@ export function createDispatcher(options: {
     if (!def || !handler) throw new UnrecoverableError(`unknown job ${job.name}`);
     const parsed = def.payload.safeParse(job.data);
     if (!parsed.success) throw new UnrecoverableError(`bad payload for ${job.name}: ${parsed.error.issues[0]?.message}`);
-    await mirrorJob(db, id, { state: "running", attempts: job.attemptsMade + 1, error: null });
+    const { attempt, isFinalAttempt } = attemptOf(job);
+    await mirrorJob(db, id, { state: "running", attempts: attempt, error: null });
     const report = async (stage: string, fraction: number) => {
       await job.updateProgress(Math.round(fraction * 100));
       await reportJob(id, stage, fraction);
     };
-    const isLastAttempt = job.attemptsMade + 1 >= (job.opts.attempts ?? 1);
-    return handler({ db, job, token, jobId: id, payload: parsed.data, report, reportJob, isLastAttempt, queue, redis: connection });
+    return handler({ db, job, token, jobId: id, payload: parsed.data, report, reportJob, attempt, isFinalAttempt, queue, redis: connection });
   };
 
   const close = async () => {
@@ -92,9 +78,9 @@ export function mirrorOutcomes(worker: Worker, db: Db, label: string): void {
   });
   worker.on("failed", (job, err) => {
     if (!job) return;
-    const final = err instanceof UnrecoverableError || job.attemptsMade >= (job.opts.attempts ?? 1);
+    const final = isFailedForGood(job, err);
     console.error(`[${label}] ${job.name} ${job.id} ${final ? "failed" : "will retry"}: ${err.message}`);
-    void mirrorJob(db, job.id ?? "", { state: final ? "failed" : "queued", error: err.message, attempts: job.attemptsMade }).catch(
+    void mirrorJob(db, job.id ?? "", { state: final ? "failed" : "queued", error: err.message, attempts: attemptOf(job, "failed").attempt }).catch(
       (e) => console.error("mirror", e),
     );
   });

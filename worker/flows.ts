@@ -5,7 +5,7 @@ import { UnrecoverableError } from "bullmq";
 import type { JobName } from "@/lib/queue/jobs";
 import { reductionFlow } from "@/lib/reduction-flow/reduction-flow";
 import type { FlowJobContext, PartFields, SteppedFlow } from "@/lib/queue/stepped-flow";
-import type { SteeringJobHandler } from "./registry";
+import type { SteeringJobHandler } from "@/lib/queue/job-context";
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any -- each flow types its own contexts
 export const FLOWS_BY_PART_JOB: Partial<Record<JobName, SteppedFlow<any, any>>> = {

@@ -3,13 +3,13 @@
 // mirrored to PostgreSQL), and SIGTERM/SIGINT let running jobs finish before the
 // process exits.
 import { hostname } from "node:os";
-import { Queue, UnrecoverableError, Worker } from "bullmq";
-import { failReductionIfOpen } from "@/lib/reduction-flow/reduction-flow";
+import { Queue, Worker } from "bullmq";
 import { closeDb, getDb } from "@/db/client";
 import { closeExportExifTool } from "@/lib/editions/export/embed";
 import { requireEnvOrExit } from "@/lib/env";
 import { createRedis } from "@/lib/queue/connection";
 import { JOBS, QUEUES } from "@/lib/queue/jobs";
+import { failReductionGivenUp } from "@/lib/reductions/run";
 import { createDispatcher, mirrorOutcomes } from "./dispatch";
 import { HANDLERS } from "./registry";
 
@@ -51,8 +51,8 @@ const workers = QUEUES.map((queue) => {
   mirrorOutcomes(w, db, "worker");
   // A reduction's parent that BullMQ fails without running it (stalled too often) still ends its reduction.
   w.on("failed", (job, err) => {
-    if (job?.name !== "reduction.run" || !(err instanceof UnrecoverableError || job.attemptsMade >= (job.opts.attempts ?? 1) || /stalled more than allowable/.test(err.message))) return;
-    void failReductionIfOpen(db, (job.data as { reductionId: string }).reductionId, err.message).catch((e) => console.error("[worker] reduction failure not recorded", e));
+    if (job?.name !== "reduction.run") return;
+    void failReductionGivenUp(db, job, err).catch((e) => console.error("[worker] reduction failure not recorded", e));
   });
   return w;
 });

@@ -4,11 +4,10 @@
 import { sql } from "drizzle-orm";
 import { bigint, boolean, check, doublePrecision, index, integer, jsonb, pgTable, real, text, timestamp, uniqueIndex, uuid } from "drizzle-orm/pg-core";
 import { users } from "./auth";
+import { BRACKET_SET_STATES } from "./review-states";
 import { eclipses, kits, sites } from "./sky";
 
-/** gathering: frames being uploaded; the review states are set by the review desk. */
-export const BRACKET_SET_STATES = ["gathering", "awaiting-review", "changes-requested", "approved", "rejected"] as const;
-export type BracketSetState = (typeof BRACKET_SET_STATES)[number];
+export { BRACKET_SET_STATES, type BracketSetState } from "./review-states";
 
 export const bracketSets = pgTable(
   "bracket_sets",

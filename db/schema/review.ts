@@ -3,10 +3,11 @@
 // who on the desk has taken a set in hand.
 import { index, pgTable, text, timestamp, uuid } from "drizzle-orm/pg-core";
 import { users } from "./auth";
-import { BRACKET_SET_STATES, bracketSets } from "./brackets";
+import { bracketSets } from "./brackets";
 import { reductions } from "./reductions";
+import { BRACKET_SET_STATES, REVIEW_DECISION_ACTIONS } from "./review-states";
 
-export const REVIEW_DECISION_ACTIONS = ["submit", "request-changes", "approve", "reject", "reopen"] as const;
+export { REVIEW_DECISION_ACTIONS, type ReviewDecisionAction } from "./review-states";
 
 export const reviewDecisions = pgTable(
   "review_decisions",

@@ -9,7 +9,7 @@ import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { insertRole } from "@/db/queries/roles";
 import * as schema from "@/db/schema";
-import { queueMail } from "@/lib/email/outbox";
+import { sendStagedMail, stageMail, type MailDraft } from "@/lib/email/outbox";
 import { invitationMail, passwordResetMail, verificationMail } from "@/lib/email/templates";
 import { describeInvitation, extendInvitationToken, INVITATION_VALID_DAYS, isAwaitingFirstPassword, isDisabled } from "@/lib/people/account-state";
 import { getEnv } from "@/lib/env";
@@ -29,6 +29,8 @@ function createAuth() {
   const appOrigin = new URL(env.APP_URL).origin;
   const altOrigin = appOrigin.includes("127.0.0.1") ? appOrigin.replace("127.0.0.1", "localhost") : appOrigin.replace("localhost", "127.0.0.1");
   const rateStore = createRedisRateStore(getProducerRedis(), "crownlight:auth-rate:");
+  // These mails tell of no change of ours: each is staged and sent at once.
+  const sendNow = async (draft: MailDraft) => sendStagedMail(db, [await stageMail(db, draft)]);
 
   return betterAuth({
     appName: "Crownlight",
@@ -49,10 +51,10 @@ function createAuth() {
         if (await isAwaitingFirstPassword(db, user.id)) {
           await extendInvitationToken(db, token);
           const invitation = await describeInvitation(db, user.id);
-          await queueMail(db, invitationMail(society, user.email, user.name, { ...invitation, url, validDays: INVITATION_VALID_DAYS }));
+          await sendNow(invitationMail(society, user.email, user.name, { ...invitation, url, validDays: INVITATION_VALID_DAYS }));
           return;
         }
-        await queueMail(db, passwordResetMail(society, user.email, url));
+        await sendNow(passwordResetMail(society, user.email, url));
       },
     },
     emailVerification: {
@@ -61,7 +63,7 @@ function createAuth() {
       expiresIn: 24 * 3600,
       async sendVerificationEmail({ user, url }) {
         const society = (await findSocietySettings(db)).name;
-        await queueMail(db, verificationMail(society, user.email, url));
+        await sendNow(verificationMail(society, user.email, url));
       },
     },
     session: { expiresIn: 30 * 24 * 3600, updateAge: 24 * 3600 },

@@ -4,12 +4,13 @@
 import { and, eq } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { bracketSets, type BracketSet } from "@/db/schema";
+import { bracketSets, frames, type BracketSet, type Frame } from "@/db/schema";
 import { requirePermission, requireSignedIn, type Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 
 export const SET_NOT_FOUND = "That bracket set";
+export const FRAME_NOT_FOUND = "That frame";
 
 /** The set states in which frames may still be added or corrected. */
 const OPEN_STATES: ReadonlySet<BracketSet["state"]> = new Set(["gathering", "changes-requested"]);
@@ -48,4 +49,13 @@ export async function findOwnOpenSet(db: DbOrTx, actor: Actor | null, setId: str
     throw new AppError("conflict", `The bracket set "${set.name}" is ${set.state}; frames can be added or corrected only while it is gathering or has changes requested.`);
   }
   return { actor: a, set };
+}
+
+/** A frame of a set the actor owns and may still change, with the set; "not found" for an id that is no frame of that set. */
+export async function findFrameOfOwnOpenSet(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<{ actor: Actor; set: BracketSet; frame: Frame }> {
+  const found = await findOwnOpenSet(db, actor, setId);
+  if (!z.uuid().safeParse(frameId).success) throw notFound(FRAME_NOT_FOUND);
+  const [frame] = await db.select().from(frames).where(and(eq(frames.id, frameId), eq(frames.bracketSetId, found.set.id))).limit(1);
+  if (!frame) throw notFound(FRAME_NOT_FOUND);
+  return { ...found, frame };
 }

@@ -134,49 +134,48 @@ export async function findBracketSet(db: DbOrTx, actor: Actor | null, setId: str
   };
 }
 
-/** Seconds the camera clock ran ahead of UTC (negative: behind); applied when times are read. */
-export async function setClockOffset(db: DbOrTx, actor: Actor | null, setId: string, clockOffsetS: number): Promise<BracketSetSummaryDto> {
+/** Changes fields of a set the actor owns and may still change; `values` may check them first. Returns the set's summary. */
+async function changeOwnOpenSet(
+  db: DbOrTx,
+  actor: Actor | null,
+  setId: string,
+  values: (a: Actor) => Promise<Partial<typeof bracketSets.$inferInsert>>,
+): Promise<BracketSetSummaryDto> {
   const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
   const [updated] = await db
     .update(bracketSets)
-    .set({ clockOffsetS, updatedAt: sql`now()` })
+    .set({ ...(await values(a)), updatedAt: sql`now()` })
     .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
     .returning();
   const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
   return toSummary(updated, a, a.name, n);
 }
 
-/**
- * The clock offset, typed in seconds or taken from a frame that photographed a
- * trusted clock: offset = the frame's camera capture time - the true time shown.
- */
+/** Seconds the camera clock ran ahead of UTC (negative: behind); applied when times are read. */
+export async function setClockOffset(db: DbOrTx, actor: Actor | null, setId: string, clockOffsetS: number): Promise<BracketSetSummaryDto> {
+  return changeOwnOpenSet(db, actor, setId, async () => ({ clockOffsetS }));
+}
+
 /** The kit (camera and mount) of an open set: it gives the plate scale and the image orientation. */
 async function setKit(db: DbOrTx, actor: Actor | null, setId: string, kitId: string | null): Promise<BracketSetSummaryDto> {
-  const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
-  if (kitId) await requireOwnReference(db, kits, kitId, a.userId, "kitId", "That kit");
-  const [updated] = await db
-    .update(bracketSets)
-    .set({ kitId, updatedAt: sql`now()` })
-    .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
-    .returning();
-  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
-  return toSummary(updated, a, a.name, n);
+  return changeOwnOpenSet(db, actor, setId, async (a) => {
+    if (kitId) await requireOwnReference(db, kits, kitId, a.userId, "kitId", "That kit");
+    return { kitId };
+  });
 }
 
 /** North in the image as the photographer knows it (degrees counter-clockwise from up); wins over the kit's mount; null forgets it. */
 async function setNorthAngle(db: DbOrTx, actor: Actor | null, setId: string, northAngleDeg: number | null): Promise<BracketSetSummaryDto> {
-  const { actor: a, set } = await findOwnOpenSet(db, actor, setId);
   // Kept in -180..180 so the page shows one value for one direction.
   const normalised = northAngleDeg === null ? null : ((((northAngleDeg + 180) % 360) + 360) % 360) - 180;
-  const [updated] = await db
-    .update(bracketSets)
-    .set({ northAngleDeg: normalised, updatedAt: sql`now()` })
-    .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId)))
-    .returning();
-  const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
-  return toSummary(updated, a, a.name, n);
+  return changeOwnOpenSet(db, actor, setId, async () => ({ northAngleDeg: normalised }));
 }
 
+/**
+ * One change of an open set: its north angle, its kit, or its clock offset,
+ * typed in seconds or taken from a frame that photographed a trusted clock
+ * (offset = the frame's camera capture time - the true time shown).
+ */
 export async function updateBracketSet(db: DbOrTx, actor: Actor | null, setId: string, input: UpdateBracketSetInput): Promise<BracketSetSummaryDto> {
   if (input.northAngleDeg !== undefined) return setNorthAngle(db, actor, setId, input.northAngleDeg);
   if (input.kitId !== undefined) return setKit(db, actor, setId, input.kitId);

@@ -9,7 +9,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { isPlausibleExposure, MAX_EXPOSURE_S, MIN_EXPOSURE_S } from "@/lib/media/exposure";
 import { bucketName, deleteObject } from "@/lib/storage";
-import { findOwnOpenSet } from "./access";
+import { findFrameOfOwnOpenSet, findOwnOpenSet } from "./access";
 import { findCalibrationFaultInSet, isCalibrationKind, toFrameShape } from "./calibration-check";
 import { toFrameDto } from "./bracket-sets";
 import type { FrameDto } from "./dto";
@@ -62,14 +62,7 @@ export async function correctFrame(db: DbOrTx, actor: Actor | null, setId: strin
  * that nothing a reduction used ever disappears. Its bytes can then be sent again.
  */
 export async function removeRefusedFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<void> {
-  const { set } = await findOwnOpenSet(db, actor, setId);
-  if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
-  const [frame] = await db
-    .select({ id: frames.id, ingestState: frames.ingestState, originalKey: frames.originalKey, thumbnailKey: frames.thumbnailKey, originalFileName: frames.originalFileName })
-    .from(frames)
-    .where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id)))
-    .limit(1);
-  if (!frame) throw notFound("That frame");
+  const { set, frame } = await findFrameOfOwnOpenSet(db, actor, setId, frameId);
   if (frame.ingestState !== "refused") {
     throw new AppError("conflict", `${frame.originalFileName} was not refused, so it stays; leave it out of reductions by excluding it instead.`);
   }

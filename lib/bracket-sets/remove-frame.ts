@@ -7,14 +7,13 @@
 // the removal until it ends, since the worker may be reading the file.
 import { DeleteObjectCommand } from "@aws-sdk/client-s3";
 import { and, eq, inArray } from "drizzle-orm";
-import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
 import { frames, reductions, uploads } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
-import { AppError, notFound } from "@/lib/errors";
+import { AppError } from "@/lib/errors";
 import { bucketName, buildThumbnailKey } from "@/lib/storage";
 import { getS3 } from "@/lib/storage/s3";
-import { findOwnOpenSet } from "./access";
+import { findFrameOfOwnOpenSet } from "./access";
 import type { RemovedFrameDto } from "./dto";
 
 async function deleteStored(bucket: string, key: string): Promise<void> {
@@ -23,20 +22,13 @@ async function deleteStored(bucket: string, key: string): Promise<void> {
 }
 
 export async function removeFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<RemovedFrameDto> {
-  const { set } = await findOwnOpenSet(db, actor, setId);
-  if (!z.uuid().safeParse(frameId).success) throw notFound("That frame");
-  const [frame] = await db
-    .select({ id: frames.id, fileName: frames.originalFileName, originalKey: frames.originalKey, thumbnailKey: frames.thumbnailKey, ingestState: frames.ingestState })
-    .from(frames)
-    .where(and(eq(frames.id, frameId), eq(frames.bracketSetId, set.id)))
-    .limit(1);
-  if (!frame) throw notFound("That frame");
+  const { set, frame } = await findFrameOfOwnOpenSet(db, actor, setId, frameId);
   const runs = await db
     .select({ state: reductions.state })
     .from(reductions)
     .where(and(eq(reductions.bracketSetId, set.id), inArray(reductions.state, ["queued", "running", "done"])));
   if (runs.some((r) => r.state === "queued" || r.state === "running")) {
-    throw new AppError("conflict", `${frame.fileName} cannot be removed while a reduction of "${set.name}" is waiting or running; remove it when the reduction has ended.`);
+    throw new AppError("conflict", `${frame.originalFileName} cannot be removed while a reduction of "${set.name}" is waiting or running; remove it when the reduction has ended.`);
   }
   const isOriginalDeleted = runs.length === 0;
   await db.transaction(async (tx) => {
@@ -45,9 +37,9 @@ export async function removeFrame(db: DbOrTx, actor: Actor | null, setId: string
   });
   // After the commit: a storage fault leaves an unreferenced object, never a row without its file.
   const thumbnailKey = frame.thumbnailKey ?? buildThumbnailKey(set.id, frame.id);
-  await deleteStored(bucketName("derived"), thumbnailKey).catch((err) => console.error(`[frames] thumbnail of ${frame.fileName} not deleted:`, err));
+  await deleteStored(bucketName("derived"), thumbnailKey).catch((err) => console.error(`[frames] thumbnail of ${frame.originalFileName} not deleted:`, err));
   if (isOriginalDeleted) {
-    await deleteStored(bucketName("originals"), frame.originalKey).catch((err) => console.error(`[frames] original of ${frame.fileName} not deleted:`, err));
+    await deleteStored(bucketName("originals"), frame.originalKey).catch((err) => console.error(`[frames] original of ${frame.originalFileName} not deleted:`, err));
   }
-  return { id: frame.id, fileName: frame.fileName, isOriginalDeleted };
+  return { id: frame.id, fileName: frame.originalFileName, isOriginalDeleted };
 }

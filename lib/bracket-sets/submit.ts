@@ -1,23 +1,21 @@
 // Sending a bracket set for review: the owner moves it from gathering (or
 // changes requested: a resubmission) to awaiting review once a reduction of it
 // has finished, and every curator gets a mail with a link to the set. The move
-// is the review state machine's "submit"; it is kept in the review history and
-// the audit log like a curator's decision.
-import { randomUUID } from "node:crypto";
-import { and, count, desc, eq, ne } from "drizzle-orm";
+// is the review state machine's "submit", applied by lib/review/move.ts like a
+// curator's decision, so it is kept in the review history and the audit log.
+import { and, count, eq, ne } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, frames, outboxMessages, reductions, reviewDecisions, userRoles, users } from "@/db/schema";
-import { recordAudit } from "@/lib/audit/record";
+import { frames, userRoles, users } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
+import { appLink } from "@/lib/email/app-link";
 import { reviewRequestedMail } from "@/lib/email/templates";
-import { AppError, forbidden } from "@/lib/errors";
-import { enqueue } from "@/lib/queue/enqueue";
+import { forbidden } from "@/lib/errors";
+import { applyReviewMove } from "@/lib/review/move";
 import { planTransition } from "@/lib/review/state-machine";
 import { findVisibleSet } from "./access";
 import { toSummary } from "./bracket-sets";
 import type { BracketSetSummaryDto } from "./dto";
-import { appLink } from "./notify";
 
 export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: string): Promise<BracketSetSummaryDto> {
   const { actor: a, set } = await findVisibleSet(db, actor, setId);
@@ -25,15 +23,6 @@ export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: s
   requirePermission(a, "brackets:own");
   // Refuses, naming the state, a set already on the desk or decided.
   const plan = planTransition(set.state, "submit", "owner");
-  const [finished] = await db
-    .select({ id: reductions.id, pipelineVersion: reductions.pipelineVersion })
-    .from(reductions)
-    .where(and(eq(reductions.bracketSetId, set.id), eq(reductions.state, "done")))
-    .orderBy(desc(reductions.createdAt))
-    .limit(1);
-  if (!finished) {
-    throw new AppError("conflict", `The bracket set "${set.name}" has no finished reduction yet; start one, wait until it is done, then send the set for review.`);
-  }
 
   const society = (await findSocietySettings(db)).name;
   const curators = await db
@@ -43,36 +32,9 @@ export async function submitBracketSet(db: DbOrTx, actor: Actor | null, setId: s
     .where(and(eq(userRoles.role, "curator"), eq(users.emailVerified, true), ne(users.id, a.userId)));
   // Curators open the set on their desk.
   const url = appLink(`/review/sets/${set.id}`);
+  const mails = curators.map((c) => reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url, isResubmission: plan.isResubmission }));
 
-  const { updated, outboxIds } = await db.transaction(async (tx) => {
-    const [row] = await tx
-      .update(bracketSets)
-      .set({ state: "awaiting-review", updatedAt: new Date() })
-      .where(and(eq(bracketSets.id, set.id), eq(bracketSets.ownerId, a.userId), eq(bracketSets.state, plan.from)))
-      .returning();
-    // Another request moved the set first: nothing is sent twice.
-    if (!row) throw new AppError("conflict", `The bracket set "${set.name}" has just been sent for review.`);
-    const [decision] = await tx
-      .insert(reviewDecisions)
-      .values({ bracketSetId: set.id, fromState: plan.from, toState: plan.to, action: "submit", decidedBy: a.userId, reductionId: finished.id, pipelineVersion: finished.pipelineVersion })
-      .returning({ id: reviewDecisions.id });
-    await recordAudit(tx, {
-      actorId: a.userId,
-      action: plan.isResubmission ? "review.resubmit" : "review.submit",
-      subjectType: "bracket-set",
-      subjectId: set.id,
-      detail: { from: plan.from, to: plan.to, reason: null, pipelineVersion: finished.pipelineVersion, reductionId: finished.id, decisionId: decision.id },
-    });
-    const ids: string[] = [];
-    for (const c of curators) {
-      const id = randomUUID();
-      await tx.insert(outboxMessages).values({ id, ...reviewRequestedMail(society, c.email, c.name, { name: set.name, photographerName: a.name, url, isResubmission: plan.isResubmission }) });
-      ids.push(id);
-    }
-    return { updated: row, outboxIds: ids };
-  });
-  // Queued after the commit, so the mail job always finds its message.
-  for (const outboxId of outboxIds) await enqueue(db, "mail.send", { outboxId });
+  const moved = await applyReviewMove(db, { set, plan, actorId: a.userId, mails });
   const [{ n }] = await db.select({ n: count() }).from(frames).where(eq(frames.bracketSetId, set.id));
-  return toSummary(updated, a, a.name, n);
+  return toSummary(moved.set, a, a.name, n);
 }

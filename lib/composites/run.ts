@@ -12,6 +12,7 @@ import type { DbOrTx } from "@/db/client";
 import { bracketSets, compositeInputs, composites, reductions } from "@/db/schema";
 import { isCompositeInputError, runCompositeInThread } from "@/lib/composite-runner";
 import { getEnv } from "@/lib/env";
+import type { JobAttempt } from "@/lib/queue/job-context";
 import { compositeFilesBase } from "@/lib/reductions/files/manifest";
 import { uploadReductionFolder } from "@/lib/reduction-flow/store-outputs";
 import { bucketName, buildCompositePrefix, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
@@ -27,7 +28,7 @@ export class CompositeRefusedError extends Error {
 /** Progress is written at most this often (a composite reports many small steps). */
 const PROGRESS_EVERY_MS = 1000;
 
-export async function runCompositeJob(db: DbOrTx, compositeId: string, attempt: { isLastAttempt: boolean }): Promise<"done" | "already-done"> {
+export async function runCompositeJob(db: DbOrTx, compositeId: string, attempt: Pick<JobAttempt, "isFinalAttempt">): Promise<"done" | "already-done"> {
   const [row] = await db.select().from(composites).where(eq(composites.id, compositeId)).limit(1);
   if (!row) throw new CompositeRefusedError(`composite ${compositeId} does not exist`);
   if (row.state === "done") return "already-done";
@@ -81,7 +82,7 @@ export async function runCompositeJob(db: DbOrTx, compositeId: string, attempt: 
     const refused = error instanceof CompositeRefusedError || isCompositeInputError(error);
     const message = error instanceof Error ? error.message : String(error);
     // A refusal fails at once; any other fault shows the composite queued with its reason until the last attempt.
-    const state = refused || attempt.isLastAttempt ? "failed" : "queued";
+    const state = refused || attempt.isFinalAttempt ? "failed" : "queued";
     await db.update(composites).set({ state, error: message, ...(state === "failed" ? { finishedAt: sql`now()` } : {}) }).where(eq(composites.id, compositeId));
     throw refused && !(error instanceof CompositeRefusedError) ? new CompositeRefusedError(message, { cause: error }) : error;
   } finally {

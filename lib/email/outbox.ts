@@ -1,6 +1,11 @@
-// Queue a message: write it to the outbox, then enqueue a job with its id.
+// The outbox: every e-mail the app sends is first a row here, written in the
+// same transaction as the change it tells of (stageMail), and queued for the
+// mail.send job only after that transaction has committed (sendStagedMail), so
+// a change and its mail exist together or not at all, and the job always finds
+// its message. A message whose queueing failed after the commit stays pending
+// and is queued again by the outbox.resend job (resendStrandedMail).
 import { randomUUID } from "node:crypto";
-import { and, eq, lt, sql } from "drizzle-orm";
+import { and, eq, inArray, lt, sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { outboxMessages, type OutboxMessage } from "@/db/schema";
 import { enqueue, getQueue, jobIdFor } from "@/lib/queue/enqueue";
@@ -13,11 +18,41 @@ export interface MailDraft {
   html?: string;
 }
 
-export async function queueMail(db: DbOrTx, draft: MailDraft): Promise<string> {
-  const id = randomUUID();
-  await db.insert(outboxMessages).values({ id, ...draft });
-  await enqueue(db, "mail.send", { outboxId: id });
+export interface MailMessage extends MailDraft {
+  /**
+   * A fixed outbox id for a message that must go once however often its writer
+   * runs (a retried job): staged again, the message already there is kept.
+   * Without it, each call stages a new message.
+   */
+  id?: string;
+}
+
+/**
+ * Writes a message into the outbox in the caller's transaction (`tx`, or the
+ * database for a message that tells of no change) and returns its id. Nothing
+ * is sent until sendStagedMail is called with the id after the commit; a
+ * transaction that rolls back takes the message with it.
+ */
+export async function stageMail(tx: DbOrTx, message: MailMessage): Promise<string> {
+  const { id = randomUUID(), ...draft } = message;
+  await tx.insert(outboxMessages).values({ id, ...draft }).onConflictDoNothing({ target: outboxMessages.id });
   return id;
+}
+
+/**
+ * Queues staged messages for sending, once their transaction has committed.
+ * Only messages still pending are queued: one sent already (a fixed id staged
+ * again) is not sent twice, and one rolled back is not in the outbox at all.
+ * The mail job's id follows from the outbox id, so queueing twice sends once.
+ */
+export async function sendStagedMail(db: DbOrTx, ids: readonly string[]): Promise<void> {
+  if (ids.length === 0) return;
+  const rows = await db
+    .select({ id: outboxMessages.id })
+    .from(outboxMessages)
+    .where(and(inArray(outboxMessages.id, [...ids]), eq(outboxMessages.state, "pending")));
+  const pending = new Set(rows.map((r) => r.id));
+  for (const outboxId of ids) if (pending.has(outboxId)) await enqueue(db, "mail.send", { outboxId });
 }
 
 export async function findOutboxMessage(db: DbOrTx, id: string): Promise<OutboxMessage | undefined> {

@@ -1,11 +1,11 @@
 // Members' camera and optics profiles. Every function takes the actor; a member
 // sees and changes only their own kits.
-import { and, asc, eq, sql } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
 import { kits, MOUNTS, type Kit } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
-import { notFound } from "@/lib/errors";
+import { findOwnRow, listOwnRows } from "@/lib/auth/own-rows";
 import { strictNumber } from "@/lib/strict-number";
 
 // Form fields arrive as strings: numbers are read strictly (lib/strict-number.ts), checkboxes are "on" or absent.
@@ -40,17 +40,11 @@ function toDto(k: Kit): KitDto {
 }
 
 export async function listKits(db: DbOrTx, actor: Actor | null): Promise<KitDto[]> {
-  const a = requirePermission(actor, "studio:use");
-  const rows = await db.select().from(kits).where(eq(kits.ownerId, a.userId)).orderBy(asc(kits.name));
-  return rows.map(toDto);
+  return (await listOwnRows(db, actor, kits)).map(toDto);
 }
 
 export async function findKit(db: DbOrTx, actor: Actor | null, id: string): Promise<KitDto> {
-  const a = requirePermission(actor, "studio:use");
-  if (!z.uuid().safeParse(id).success) throw notFound("That kit");
-  const [row] = await db.select().from(kits).where(and(eq(kits.id, id), eq(kits.ownerId, a.userId))).limit(1);
-  if (!row) throw notFound("That kit");
-  return toDto(row);
+  return toDto(await findOwnRow(db, actor, kits, id, "That kit"));
 }
 
 export async function createKit(db: DbOrTx, actor: Actor | null, input: KitInput): Promise<KitDto> {

@@ -2,15 +2,14 @@
 // finished composite of approved sets, into a plate, write what the public
 // reads, publish, withdraw, restore and add versions. Every function takes the actor and requires review:use; every
 // change writes the audit log in the same transaction as the change.
-import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, compositeInputs, composites, outboxMessages, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { bracketSets, compositeInputs, composites, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
-import { appLink } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { plateStateMail } from "@/lib/email/templates";
-import { enqueue } from "@/lib/queue/enqueue";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
@@ -251,7 +250,7 @@ type PlateChange = "published" | "withdrawn-temporary" | "withdrawn-permanent" |
 /**
  * Writes the photographer's mail about a change of their plate into the
  * outbox, in the caller's transaction: the change and its mail exist together
- * or not at all. Returns the outbox id to queue once the transaction commits.
+ * or not at all. Returns the outbox ids to send once the transaction commits.
  */
 async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, reason: string | null): Promise<string[]> {
   const compositeId = plate.bracketSetId ? null : await findCurrentComposite(tx, plate);
@@ -271,10 +270,7 @@ async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, rea
   for (const o of owners) byEmail.set(o.email, { name: o.name, sets: [...(byEmail.get(o.email)?.sets ?? []), o.setName] });
   const ids: string[] = [];
   for (const [email, owner] of byEmail) {
-    const id = randomUUID();
-    const mail = plateStateMail(society, email, owner.name, { change, title: plate.title, setName: joinNames(owner.sets), reason, url: appLink(`/plates/${plate.slug}`) });
-    await tx.insert(outboxMessages).values({ id, ...mail });
-    ids.push(id);
+    ids.push(await stageMail(tx, plateStateMail(society, email, owner.name, { change, title: plate.title, setName: joinNames(owner.sets), reason, url: appLink(`/plates/${plate.slug}`) })));
   }
   return ids;
 }
@@ -287,7 +283,7 @@ async function writePlateMail(tx: DbOrTx, plate: Plate, change: PlateChange, rea
 async function afterStateChange(db: Db, plateId: string, outboxIds: string[]): Promise<void> {
   const rows = await db.select({ reductionId: plateVersions.reductionId, compositeId: plateVersions.compositeId }).from(plateVersions).where(eq(plateVersions.plateId, plateId));
   for (const row of rows) forgetPublicAccess((row.reductionId ?? row.compositeId)!);
-  for (const outboxId of outboxIds) await enqueue(db, "mail.send", { outboxId });
+  await sendStagedMail(db, outboxIds);
 }
 
 /** Checks what publishing needs besides an approved set: the texts the public reads. */

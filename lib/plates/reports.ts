@@ -1,17 +1,16 @@
 // Reports from the public about a plate: a visitor (no account) says there is
 // a rights question, an error or something else; curators are e-mailed, see
 // the open reports in the plate editor and answer by e-mail. The answer is kept.
-import { randomUUID } from "node:crypto";
 import { and, asc, desc, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { outboxMessages, plateReports, plates, userRoles, users, type PlateReportKind, type PlateReportState } from "@/db/schema";
+import { plateReports, plates, userRoles, users, type PlateReportKind, type PlateReportState } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
-import { appLink } from "@/lib/bracket-sets/notify";
+import { appLink } from "@/lib/email/app-link";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { plateReportAnswerMail, plateReportedMail } from "@/lib/email/templates";
 import { AppError, notFound } from "@/lib/errors";
-import { enqueue } from "@/lib/queue/enqueue";
 import { parseInput } from "@/lib/validation";
 import { plateReportSchema, reportAnswerSchema } from "./desk-input";
 
@@ -40,10 +39,6 @@ export interface PlateReportDto {
   answeredAt: string | null;
   answeredByName: string | null;
   createdAt: string;
-}
-
-async function queueAfterCommit(db: Db, ids: string[]): Promise<void> {
-  for (const outboxId of ids) await enqueue(db, "mail.send", { outboxId });
 }
 
 /**
@@ -83,15 +78,13 @@ export async function submitPlateReport(db: Db, slug: string, input: unknown, cl
       .returning({ id: plateReports.id });
     const ids: string[] = [];
     for (const c of mailCurators ? curators : []) {
-      const mailId = randomUUID();
-      await tx.insert(outboxMessages).values({ id: mailId, ...plateReportedMail(society, c.email, c.name, { plateTitle: plate.title, kind: values.kind, message: values.message, url, quietMinutes: REPORT_MAIL_WINDOW_S / 60 }) });
-      ids.push(mailId);
+      ids.push(await stageMail(tx, plateReportedMail(society, c.email, c.name, { plateTitle: plate.title, kind: values.kind, message: values.message, url, quietMinutes: REPORT_MAIL_WINDOW_S / 60 })));
     }
     // The reporter's address stays out of the audit log; the report row keeps it.
     await recordAudit(tx, { actorId: null, action: "plate.reported", subjectType: "plate", subjectId: plate.id, detail: { reportId: row.id, kind: values.kind } });
     return { id: row.id, mailIds: ids };
   });
-  await queueAfterCommit(db, mailIds);
+  await sendStagedMail(db, mailIds);
   return { id };
 }
 
@@ -140,14 +133,14 @@ export async function answerPlateReport(db: Db, actor: Actor | null, plateId: st
   if (!row) throw notFound("That report");
   if (row.state === "closed") throw new AppError("conflict", "That report is closed; it takes no further answers.");
   const society = (await findSocietySettings(db)).name;
-  const mailId = randomUUID();
-  await db.transaction(async (tx) => {
+  const mailId = await db.transaction(async (tx) => {
     await tx
       .update(plateReports)
       .set({ state: close ? "closed" : "answered", answer, answeredBy: curator.userId, answeredAt: new Date() })
       .where(eq(plateReports.id, reportId));
-    await tx.insert(outboxMessages).values({ id: mailId, ...plateReportAnswerMail(society, row.reporterEmail, { plateTitle: row.plateTitle, answer, url: appLink(`/plates/${row.slug}`) }) });
+    const id = await stageMail(tx, plateReportAnswerMail(society, row.reporterEmail, { plateTitle: row.plateTitle, answer, url: appLink(`/plates/${row.slug}`) }));
     await recordAudit(tx, { actorId: curator.userId, action: "plate.report-answered", subjectType: "plate", subjectId: plateId, detail: { reportId, closed: close } });
+    return id;
   });
-  await queueAfterCommit(db, [mailId]);
+  await sendStagedMail(db, [mailId]);
 }

@@ -2,7 +2,7 @@
 // job has a name, the queue it runs on, a zod payload of ids only, and retry
 // settings. Handlers live in worker/jobs/, one file per job.
 import { z } from "zod";
-import { PART_FIELDS } from "./stepped-flow";
+import { PART_FIELDS } from "./part-fields";
 
 // "reduce" is its own queue so that long reductions never hold up ingests or mail;
 // "export" likewise, so that an editor's print bundle does not wait behind them.

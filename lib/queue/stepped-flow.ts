@@ -15,26 +15,14 @@
 //   parent's processed hash under the part's own job key, only when the part
 //   completes while holding its lock. Results are then read by part index, so a
 //   part retried after a kill, or run twice, is counted once.
-import { UnrecoverableError, WaitingChildrenError, type Job, type Queue } from "bullmq";
-import type { Redis } from "ioredis";
+import { UnrecoverableError, WaitingChildrenError, type Job } from "bullmq";
 import { z } from "zod";
+import type { JobRun, SteeringFields } from "./job-context";
+import { STEP_NAME, type PartFields } from "./part-fields";
 
 export type FlowValue = string | number | boolean | null | FlowValue[] | { [key: string]: FlowValue };
 
-/** Step names go into job ids and Redis keys: lower-case words, no ':'. */
-const STEP_NAME = /^[a-z][a-z0-9-]{0,39}$/;
-
-/** Fields every part payload carries beside its ids: its step, its index in that step and the step's count of parts. */
-export const PART_FIELDS = {
-  step: z.string().regex(STEP_NAME),
-  part: z.number().int().min(0),
-  parts: z.number().int().min(1),
-};
-export interface PartFields {
-  step: string;
-  part: number;
-  parts: number;
-}
+export { PART_FIELDS, type PartFields } from "./part-fields";
 
 /** Part jobs: retried with backoff, kept a day after success (never by count: a large flow has thousands of parts). */
 const PART_JOB_OPTIONS = {
@@ -47,23 +35,8 @@ const PART_JOB_OPTIONS = {
 /** Parts are added in batches of this many (one MULTI each). */
 const ADD_BATCH = 200;
 
-/** What the worker gives every handler that a flow needs (worker/dispatch.ts builds it). */
-export interface FlowJobContext<P> {
-  job: Job;
-  /** The lock token the worker processes this job with; a parent needs it to wait for its parts. */
-  token: string | undefined;
-  jobId: string;
-  payload: P;
-  isLastAttempt: boolean;
-  /** Stage and progress (0..1) of this job, mirrored for pages. */
-  report(stage: string, fraction: number): Promise<void>;
-  /** Stage and progress of another job (a part reports its parent's). */
-  reportJob(jobId: string, stage: string, fraction: number): Promise<void>;
-  /** A queue on the worker's connection and prefix. */
-  queue(name: string): Queue;
-  /** The worker's Redis connection (a part counts its step's finished parts with it). */
-  redis: Redis;
-}
+/** What the worker gives every handler that a flow needs (worker/dispatch.ts builds it; lib/queue/job-context.ts). */
+export interface FlowJobContext<P> extends JobRun<P>, SteeringFields {}
 
 /** A parent step's context: the parent's own, plus what the earlier steps returned. */
 export type StepContext<PC> = PC & { values: Readonly<Record<string, FlowValue>> };
@@ -180,7 +153,7 @@ export class SteppedFlow<PC extends FlowJobContext<unknown>, CC extends FlowJobC
       return await this.runSteps(ctx);
     } catch (err) {
       if (err instanceof WaitingChildrenError) throw err;
-      const final = err instanceof UnrecoverableError || ctx.isLastAttempt;
+      const final = err instanceof UnrecoverableError || ctx.isFinalAttempt;
       if (final && this.definition.onFailed) await this.definition.onFailed(ctx, err instanceof Error ? err : new Error(String(err)));
       throw err;
     }

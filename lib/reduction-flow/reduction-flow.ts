@@ -22,7 +22,7 @@ import { mkdtemp, rm } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
 import { UnrecoverableError } from "bullmq";
-import { eq, sql } from "drizzle-orm";
+import { eq } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
@@ -50,13 +50,14 @@ import { checkOutputOptions, writeReductionOutputs } from "@/lib/reduction-runne
 import { checkSkyOptions, computeHelioGeometry, type RunnerRegistrationMode, type SkyOptions } from "@/lib/reduction-runner/sky-run";
 import { findCalibrationFrames, findCalibrationMismatch } from "@/lib/reductions/calibration-frames";
 import { describeReductionFailure } from "@/lib/reductions/failure-text";
-import { notifyReductionOutcome, selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
+import { failReduction, markReductionRunning } from "@/lib/reductions/run";
+import { selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { bucketName, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 import { deleteReductionWork, fetchWorkFile, getWork, putWork, type WorkPlace } from "./work-store";
 import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
-/** What the worker gives the parent (worker/dispatch.ts HandlerContext). */
+/** What the worker gives the parent (lib/queue/job-context.ts SteeringContext, built by worker/dispatch.ts). */
 export interface ReductionParentContext extends FlowJobContext<{ reductionId: string }> {
   db: Db;
 }
@@ -322,7 +323,7 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
       run: (ctx) => asInputFault(async () => {
         const inputs = await gatherInputs(ctx.db, ctx.payload.reductionId);
         await putWork(placeOfParent(ctx), "inputs", inputs);
-        await ctx.db.update(reductions).set({ state: "running", startedAt: sql`now()`, error: null, progress: 0 }).where(eq(reductions.id, ctx.payload.reductionId));
+        await markReductionRunning(ctx.db, ctx.payload.reductionId);
         return { lights: inputs.lights.length, calibration: inputs.calibration.length };
       }),
     },
@@ -542,8 +543,6 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
     await setStage(ctx.db, ctx.payload.reductionId, stage, total > 0 ? done / total : 0, { done, total });
   },
   onFailed: async (ctx, error) => {
-    const [red] = await ctx.db.select({ state: reductions.state }).from(reductions).where(eq(reductions.id, ctx.payload.reductionId)).limit(1);
-    if (!red || red.state === "failed" || red.state === "done") return;
     // A part's failure reaches the parent as "part i of n of step "x" failed: reason": people read the reason.
     const partFault = /^part (\d+) of (\d+) of step "([^"]+)" failed: ([\s\S]*)$/.exec(error.message);
     const reason = partFault ? partFault[4] : error.message;
@@ -551,32 +550,10 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
     const retried = !(error instanceof UnrecoverableError);
     const words = partFault && !isPeopleText(reason) ? `a worker failed while ${PEOPLE_STAGES[partFault[3]] ?? "reducing"}: ${reason}` : reason;
     await failReduction(ctx.db, ctx.payload.reductionId, retried ? `${words} (after ${JOBS["reduction.run"].attempts} attempts)` : words);
-    await deleteReductionWork(ctx.payload.reductionId).catch(() => undefined);
   },
 });
 
 /** True for a reason already in people's words (a fault of the input the runner described). */
 function isPeopleText(reason: string): boolean {
   return !/^(Error|TypeError|RangeError|ECONN|ENO|EACCES)\b/.test(reason);
-}
-
-/**
- * For a parent job that failed without running its own failure path (BullMQ fails a job
- * that stalled more often than allowed without calling its handler): marks the
- * reduction failed unless it has ended already.
- */
-export async function failReductionIfOpen(db: DbOrTx, reductionId: string, message: string): Promise<void> {
-  const [red] = await db.select({ state: reductions.state }).from(reductions).where(eq(reductions.id, reductionId)).limit(1);
-  if (!red || red.state === "done" || red.state === "failed") return;
-  const words = /stalled more than allowable limit/.test(message)
-    ? "the worker processes running it stopped responding more than once (killed, or out of memory); start the reduction again"
-    : message;
-  await failReduction(db, reductionId, words);
-  await deleteReductionWork(reductionId).catch(() => undefined);
-}
-
-/** Marks the reduction failed for good and tells the photographer why. */
-export async function failReduction(db: DbOrTx, reductionId: string, reason: string): Promise<void> {
-  await db.update(reductions).set({ state: "failed", error: reason, finishedAt: sql`now()` }).where(eq(reductions.id, reductionId));
-  await notifyReductionOutcome(db, reductionId);
 }

@@ -1,12 +1,14 @@
 // The last of a reduction: its finished output folder goes to S3 under the
-// reduction's own prefix, and the row records it done with its measurements.
+// reduction's own prefix, and the reduction is recorded done with its
+// measurements (lib/reductions/run.ts).
 // Keys are fixed by file name, so a parent that runs this again after a crash
 // overwrites what it had stored and leaves nothing twice.
 import { readdir, readFile } from "node:fs/promises";
 import path from "node:path";
-import { eq, sql } from "drizzle-orm";
+import { eq } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { reductions } from "@/db/schema";
+import { markReductionDone } from "@/lib/reductions/run";
 import type { ReductionReport } from "@/lib/reduction-runner/report";
 import { findOutputContentType } from "@/lib/reductions/files/manifest";
 import { bucketName, buildReductionPrefix, putObjectBytes } from "@/lib/storage";
@@ -53,28 +55,17 @@ export async function storeReductionOutputs(db: DbOrTx, reductionId: string, out
   const prefix = buildReductionPrefix(red.setId, reductionId);
   await uploadReductionFolder(prefix, outDir, onProgress);
   const overall = report.overall as Record<string, unknown>;
-  await db
-    .update(reductions)
-    .set({
-      state: "done",
-      stage: "done",
-      // A retry that recovered leaves no fault behind.
-      error: null,
-      progress: 1,
-      stageFramesDone: null,
-      stageFramesTotal: null,
-      finishedAt: sql`now()`,
-      pipelineVersion: report.pipelineVersion,
-      outputs: {
-        prefix,
-        master: `${prefix}master.fits`,
-        natural: `${prefix}natural.png`,
-        structure: `${prefix}structure.png`,
-        preview: `${prefix}preview.jpg`,
-        report: `${prefix}report.json`,
-        tiles: `${prefix}tiles/`,
-      },
-      measurements: { ...overall, parameters: report.parameters, timingsMs: report.timingsMs },
-    })
-    .where(eq(reductions.id, reductionId));
+  await markReductionDone(db, reductionId, {
+    pipelineVersion: report.pipelineVersion,
+    outputs: {
+      prefix,
+      master: `${prefix}master.fits`,
+      natural: `${prefix}natural.png`,
+      structure: `${prefix}structure.png`,
+      preview: `${prefix}preview.jpg`,
+      report: `${prefix}report.json`,
+      tiles: `${prefix}tiles/`,
+    },
+    measurements: { ...overall, parameters: report.parameters, timingsMs: report.timingsMs },
+  });
 }

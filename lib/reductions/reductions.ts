@@ -4,14 +4,11 @@
 import { and, asc, desc, eq } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
-import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, frames, reductions, users, type Frame, type Reduction, type ReductionParamsRecord } from "@/db/schema";
+import { frames, reductions, type Frame, type Reduction, type ReductionParamsRecord } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { can } from "@/lib/auth/permissions";
 import { findVisibleSet } from "@/lib/bracket-sets/access";
 import { cameraCaptureAt } from "@/lib/bracket-sets/camera-time";
-import { appLink, queueMailOnce } from "@/lib/bracket-sets/notify";
-import { reductionFailedMail, reductionFinishedMail } from "@/lib/email/templates";
 import { AppError, forbidden, notFound } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
 import { rewordRunnerMessage } from "./failure-text";
@@ -147,38 +144,4 @@ export async function listReductions(db: DbOrTx, actor: Actor | null, setId: str
   await findVisibleSet(db, actor, setId);
   const rows = await db.select().from(reductions).where(eq(reductions.bracketSetId, setId)).orderBy(desc(reductions.createdAt));
   return rows.map(toDto);
-}
-
-/**
- * Tells the person who started the reduction that it finished or failed for
- * good, with a link to it: the photographer for their own runs (link to the
- * studio), the curator for a re-reduction started on the review desk (link to
- * the set on the desk; the photographer is not written to about curators'
- * trials). Runs without a known starter go to the set's owner. One outbox
- * message per reduction: a repeated job, or a crash between the state change
- * and this call, sends it once.
- */
-export async function notifyReductionOutcome(db: DbOrTx, reductionId: string): Promise<void> {
-  const [row] = await db
-    .select({ state: reductions.state, error: reductions.error, setId: bracketSets.id, setName: bracketSets.name, ownerId: bracketSets.ownerId, requestedBy: reductions.requestedBy })
-    .from(reductions)
-    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
-    .where(eq(reductions.id, reductionId))
-    .limit(1);
-  if (!row || (row.state !== "done" && row.state !== "failed")) return;
-  const byCurator = row.requestedBy !== null && row.requestedBy !== row.ownerId;
-  const [to] = await db
-    .select({ name: users.name, email: users.email })
-    .from(users)
-    .where(eq(users.id, byCurator ? row.requestedBy! : row.ownerId))
-    .limit(1);
-  if (!to) return;
-  const society = (await findSocietySettings(db)).name;
-  const url = appLink(byCurator ? `/review/sets/${row.setId}#reductions-h` : `/studio/reductions/${reductionId}`);
-  const outcome = { setName: row.setName, url, isReReduction: byCurator };
-  const draft =
-    row.state === "done"
-      ? reductionFinishedMail(society, to.email, to.name, outcome)
-      : reductionFailedMail(society, to.email, to.name, { ...outcome, reason: row.error ?? "no reason was recorded" });
-  await queueMailOnce(db, `reduction-outcome-${reductionId}`, draft);
 }

@@ -1,13 +1,14 @@
 // The review states of a bracket set and the moves between them. Pure: the
 // decisions service and the photographer's submit both ask it, so a move that
 // is not in this table cannot happen anywhere.
+import { BRACKET_SET_STATES, REVIEW_DECISION_ACTIONS, type BracketSetState, type ReviewDecisionAction } from "@/db/schema/review-states";
 import { AppError, type FieldProblem } from "@/lib/errors";
 
-export const REVIEW_STATES = ["gathering", "awaiting-review", "changes-requested", "approved", "rejected"] as const;
-export type ReviewState = (typeof REVIEW_STATES)[number];
-
-export const REVIEW_ACTIONS = ["submit", "request-changes", "approve", "reject", "reopen"] as const;
-export type ReviewAction = (typeof REVIEW_ACTIONS)[number];
+/** The set's states and the review's moves are the columns' own lists (db/schema/review-states.ts), under the names the desk uses. */
+export const REVIEW_STATES = BRACKET_SET_STATES;
+export type ReviewState = BracketSetState;
+export const REVIEW_ACTIONS = REVIEW_DECISION_ACTIONS;
+export type ReviewAction = ReviewDecisionAction;
 
 /** The actions a curator takes on the desk (submit is the photographer's). */
 export const CURATOR_ACTIONS = ["request-changes", "approve", "reject", "reopen"] as const satisfies readonly ReviewAction[];

@@ -1,11 +1,12 @@
 // Members' observing sites: fixed places, or moving ones (a ship, an aircraft)
 // described by a time-stamped track. A member sees and changes only their own.
-import { and, asc, eq, sql } from "drizzle-orm";
+import { and, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import type { DbOrTx } from "@/db/client";
 import { LOCATION_PRECISIONS, sites, type Site, type TrackPoint } from "@/db/schema";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
-import { AppError, notFound } from "@/lib/errors";
+import { findOwnRow, listOwnRows } from "@/lib/auth/own-rows";
+import { AppError } from "@/lib/errors";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "./limits";
 import { forgetPublicAccess } from "@/lib/reductions/files/serve";
 import { strictNumber } from "@/lib/strict-number";
@@ -130,18 +131,12 @@ function toRow(input: SiteInput): Omit<typeof sites.$inferInsert, "ownerId"> {
 }
 
 export async function listSites(db: DbOrTx, actor: Actor | null): Promise<SiteDto[]> {
-  const a = requirePermission(actor, "studio:use");
-  const rows = await db.select().from(sites).where(eq(sites.ownerId, a.userId)).orderBy(asc(sites.name));
-  return rows.map(toDto);
+  return (await listOwnRows(db, actor, sites)).map(toDto);
 }
 
 /** The full row, track included, for the owner's own use (planner, reductions). */
 export async function findOwnSite(db: DbOrTx, actor: Actor | null, id: string): Promise<Site> {
-  const a = requirePermission(actor, "studio:use");
-  if (!z.uuid().safeParse(id).success) throw notFound("That site");
-  const [row] = await db.select().from(sites).where(and(eq(sites.id, id), eq(sites.ownerId, a.userId))).limit(1);
-  if (!row) throw notFound("That site");
-  return row;
+  return findOwnRow(db, actor, sites, id, "That site");
 }
 
 export async function findSite(db: DbOrTx, actor: Actor | null, id: string): Promise<SiteDto> {

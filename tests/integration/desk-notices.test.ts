@@ -20,7 +20,7 @@ import { createDraftPlate, updatePlate } from "@/lib/plates/desk";
 import { closeWebJpegWriter } from "@/lib/plates/web-jpeg";
 import { closeProducerRedis } from "@/lib/queue/connection";
 import { closeQueues } from "@/lib/queue/enqueue";
-import { notifyReductionOutcome } from "@/lib/reductions/reductions";
+import { notifyReductionOutcome } from "@/lib/reductions/run";
 import { APP, requireTestDatabase } from "../support/env";
 import { Client } from "../support/http";
 import { firstLink, waitForMail } from "../support/mailbox";

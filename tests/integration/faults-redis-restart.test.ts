@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { frames, jobRuns, outboxMessages } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
-import { queueMail } from "@/lib/email/outbox";
+import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { closeProducerRedis, createRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
 import { MAILBOX, requireTestDatabase } from "../support/env";
@@ -47,7 +47,9 @@ afterAll(async () => {
 });
 
 async function queueTestMail(n: number): Promise<void> {
-  mailIds.push(await queueMail(db, { to: recipient, subject: `Restart check ${n}`, text: `Message ${n} of a queue that outlives a Redis restart.` }));
+  const id = await stageMail(db, { to: recipient, subject: `Restart check ${n}`, text: `Message ${n} of a queue that outlives a Redis restart.` });
+  await sendStagedMail(db, [id]);
+  mailIds.push(id);
 }
 
 async function countIngested(): Promise<number> {

@@ -12,6 +12,7 @@ import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { submitBracketSet } from "@/lib/bracket-sets";
 import { decide } from "@/lib/review/decisions";
+import { findDecidedReduction } from "@/lib/review/move";
 import { findLatestMessageToPhotographer, listCuratorNotes, listDecisionHistory } from "@/lib/review/history";
 import { assignToMe, listReviewQueue, queueQuerySchema } from "@/lib/review/queue";
 import { parseInput } from "@/lib/validation";
@@ -242,6 +243,45 @@ describe("review decisions", () => {
     await db.update(frames).set({ included: false }).where(and(eq(frames.bracketSetId, setId), eq(frames.originalFileName, "l1.fits")));
     const after = await listReviewQueue(db, curator, parseInput(queueQuerySchema, { photographer: owner.userId, state: "all" }));
     expect(after.rows.find((r) => r.id === setId)?.frameCount).toBe(2);
+  });
+});
+
+describe("the reduction decided on", () => {
+  it("is the set's latest finished reduction, and a submission and a later decision record the same one", async () => {
+    const setId = await createSetFor(db, owner, `Rattlesnake Butte bracket ${tag}`);
+    const params = { registration: "sun" as const, filter: "mgn" as const, recoverResponse: false };
+    const at = (minutes: number) => new Date(Date.UTC(2027, 7, 2, 12, minutes));
+    // Started first but finished last: the one decided on.
+    const [early] = await db
+      .insert(reductions)
+      .values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "done", progress: 1, pipelineVersion: `early.${tag}`, createdAt: at(0), finishedAt: at(30) })
+      .returning({ id: reductions.id });
+    // Started later, finished sooner; and one finished without a finish time (an older row), started last of all.
+    await db.insert(reductions).values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "done", progress: 1, pipelineVersion: `late.${tag}`, createdAt: at(5), finishedAt: at(20) });
+    await db.insert(reductions).values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "done", progress: 1, pipelineVersion: `untimed.${tag}`, createdAt: at(10) });
+    // Still running: not finished, whenever it started.
+    await db.insert(reductions).values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "running", createdAt: at(40) });
+
+    expect(await findDecidedReduction(db, setId)).toEqual({ id: early.id, pipelineVersion: `early.${tag}` });
+    await submitBracketSet(db, owner, setId);
+    const decided = await decide(db, curator, setId, { action: "approve" });
+    expect(decided.pipelineVersion).toBe(`early.${tag}`);
+    const rows = await db.select({ action: reviewDecisions.action, reductionId: reviewDecisions.reductionId }).from(reviewDecisions).where(eq(reviewDecisions.bracketSetId, setId));
+    expect(rows.sort((a, b) => a.action.localeCompare(b.action))).toEqual([
+      { action: "approve", reductionId: early.id },
+      { action: "submit", reductionId: early.id },
+    ]);
+  });
+
+  it("counts a finished reduction without a finish time when none has one", async () => {
+    const setId = await createSetFor(db, owner, `Untimed bracket ${tag}`);
+    const params = { registration: "sun" as const, filter: "mgn" as const, recoverResponse: false };
+    await db.insert(reductions).values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "done", pipelineVersion: `older.${tag}`, createdAt: new Date(Date.UTC(2027, 7, 2, 12, 0)) });
+    const [newer] = await db
+      .insert(reductions)
+      .values({ bracketSetId: setId, requestedBy: owner.userId, params, state: "done", pipelineVersion: `newer.${tag}`, createdAt: new Date(Date.UTC(2027, 7, 2, 12, 5)) })
+      .returning({ id: reductions.id });
+    expect((await findDecidedReduction(db, setId))?.id).toBe(newer.id);
   });
 });
 

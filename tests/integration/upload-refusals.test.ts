@@ -102,9 +102,9 @@ describe("a frame whose ingest fails with any fault", () => {
       .returning();
     // A fault that is not bad input: the job's own progress report fails (as a database hiccup would).
     const failing = { db, jobId: "test", payload: { frameId: row.id }, report: async () => Promise.reject(new Error("connection reset")) };
-    await expect(ingestFrame({ ...failing, isLastAttempt: false })).rejects.toThrow("connection reset");
+    await expect(ingestFrame({ ...failing, attempt: 1, isFinalAttempt: false })).rejects.toThrow("connection reset");
     expect((await db.select().from(frames).where(eq(frames.id, row.id)))[0].ingestState).toBe("received");
-    await expect(ingestFrame({ ...failing, isLastAttempt: true })).rejects.toThrow(/could not be read after 3 attempts/);
+    await expect(ingestFrame({ ...failing, attempt: 3, isFinalAttempt: true })).rejects.toThrow(/could not be read after 3 attempts/);
     const [after] = await db.select().from(frames).where(eq(frames.id, row.id));
     expect(after.ingestState).toBe("refused");
     expect(after.refusalReason).toBe(

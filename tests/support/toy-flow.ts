@@ -14,7 +14,7 @@ import { UnrecoverableError } from "bullmq";
 import type { Redis } from "ioredis";
 import { z } from "zod";
 import { defineSteppedFlow, PART_FIELDS, type FlowValue, type PartFields } from "@/lib/queue/stepped-flow";
-import type { HandlerContext } from "@/worker/dispatch";
+import type { SteeringContext } from "@/lib/queue/job-context";
 
 export const TOY_QUEUE = "toy-flow";
 const RUN_ID = z.string().regex(/^[a-z0-9-]+$/);
@@ -37,8 +37,8 @@ export interface ToyConfig {
   failAt?: string[];
 }
 
-type ToyParent = HandlerContext<{ runId: string }>;
-type ToyPart = HandlerContext<{ runId: string } & PartFields>;
+type ToyParent = SteeringContext<{ runId: string }>;
+type ToyPart = SteeringContext<{ runId: string } & PartFields>;
 
 export function toyKeys(runId: string) {
   const base = `${process.env.QUEUE_PREFIX ?? "crownlight"}:toy:${runId}`;

@@ -1,6 +1,6 @@
 import { UnrecoverableError } from "bullmq";
 import { findOutboxMessage, deliverOutboxMessage } from "@/lib/email/outbox";
-import type { JobHandler } from "../registry";
+import type { JobHandler } from "@/lib/queue/job-context";
 
 // Sends one outbox message. A missing message is bad input (no retry); an SMTP
 // fault is transient and retried with backoff by BullMQ.

@@ -1,5 +1,5 @@
 import { resendStrandedMail } from "@/lib/email/outbox";
-import type { JobHandler } from "../registry";
+import type { JobHandler } from "@/lib/queue/job-context";
 
 // Queues again pending mail that has no job (lib/email/outbox.ts). Scheduled every 5 minutes by the worker.
 export const resendOutbox: JobHandler<"outbox.resend"> = async ({ db, report }) => {

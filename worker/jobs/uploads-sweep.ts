@@ -1,5 +1,5 @@
 import { sweepAbandonedUploads } from "@/lib/storage/sweep-uploads";
-import type { JobHandler } from "../registry";
+import type { JobHandler } from "@/lib/queue/job-context";
 
 // Aborts multipart uploads left open longer than the limit (a closed browser
 // tab), so S3 keeps no orphaned parts. Scheduled hourly by the worker.

@@ -2,7 +2,7 @@
 // (checked before it is queued, so the editor hears of a missing slot at once),
 // follow its progress, list the bundles, download one, and reopen an exported
 // edition for changes (its bundles stay). The work itself is bundle.ts, run by
-// the worker's edition.export job on the "export" queue.
+// the worker's edition.export job on the "export" queue (its states: run.ts).
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { and, desc, eq, sql } from "drizzle-orm";
 import { z } from "zod";

@@ -7,7 +7,7 @@ import { encodeFits } from "@/lib/media";
 import { cardKey, cardNumber, findFitsHeaderLength, splitFitsHeader } from "@/lib/media/fits-header-edit";
 import { geodeticFromObsGeo, streamPublicMaster, toPublicMasterCards } from "@/lib/plates/public-master";
 import { buildHelioWcsCards, computeObsGeoM } from "@/lib/reduction-runner/helio-wcs";
-import { publicSkyFromReport } from "@/lib/editions/export/bundle";
+import { publicSkyFromReport } from "@/lib/editions/export/sky";
 import { avmSpatial } from "@/lib/editions/export/metadata";
 import { toPublicObserver, toPublicSite } from "@/lib/sites/precision";
 
