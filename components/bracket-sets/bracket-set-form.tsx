@@ -1,7 +1,7 @@
 "use client";
 import { useActionState } from "react";
 import { FormMessage } from "@/components/auth/form-message";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select, type SelectOption } from "@/components/ui/select";

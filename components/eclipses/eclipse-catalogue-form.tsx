@@ -4,7 +4,7 @@ import { FormMessage } from "@/components/auth/form-message";
 import { Badge } from "@/components/ui/badge";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { formatDate } from "@/lib/format/dates";
 
 export interface CatalogueRow {

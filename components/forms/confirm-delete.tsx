@@ -3,7 +3,7 @@ import { useActionState, useState } from "react";
 import { FormMessage } from "@/components/auth/form-message";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 
 
 /** Delete with a confirmation dialog; the server checks ownership again. */

@@ -4,7 +4,7 @@ import { FormMessage } from "@/components/auth/form-message";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { capitalize, fieldLabel } from "@/lib/field-labels";
 
 

@@ -5,7 +5,7 @@ import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "@/lib/sites/limits";
 import type { SiteDto } from "@/lib/sites/sites";
 
