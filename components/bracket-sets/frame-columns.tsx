@@ -12,9 +12,11 @@ import {
   metaHelper,
   rowSortingFeature,
   tableFeatures,
+  type CellContext,
   type FilterFn,
   type SortFn,
 } from "@tanstack/react-table";
+import type { ReactNode } from "react";
 import type { FrameDto } from "@/lib/bracket-sets/dto";
 import { judgeClipping } from "@/lib/bracket-sets/triage";
 import { Button } from "@/components/ui/button";
@@ -101,20 +103,28 @@ const kindFilter: FilterFn<Features, TriageRow> = (row, _columnId, kind: string)
 
 const col = createColumnHelper<Features, TriageRow>();
 
+/** A cell drawn from its frame and what the page gives the table. */
+const frameCell =
+  <TValue,>(render: (f: TriageRow, m: FrameTableMeta) => ReactNode) =>
+  ({ row, table }: CellContext<Features, TriageRow, TValue>) =>
+    render(row.original, table.options.meta!);
+
+/** The row's problem when it concerns this field. */
+const problemOf = (m: FrameTableMeta, f: FrameDto, field: RowProblem["field"]) => (m.problems[f.id]?.field === field ? m.problems[f.id].text : undefined);
+
 const FRAME_COLUMNS = col.columns([
   col.display({
     id: "thumbnail",
     header: "Thumbnail",
     meta: { className: `${CELL} max-md:col-span-2`, label: "" },
-    cell: ({ row, table }) => {
-      const f = row.original;
-      return f.hasThumbnail ? (
+    cell: frameCell((f, m) =>
+      f.hasThumbnail ? (
         // eslint-disable-next-line @next/next/no-img-element -- a private, already small thumbnail
-        <img src={`/api/bracket-sets/${table.options.meta!.setId}/frames/${f.id}/thumbnail`} alt={`Thumbnail of ${f.fileName}`} width={80} height={54} className="h-14 w-20 rounded bg-black object-contain" loading="lazy" />
+        <img src={`/api/bracket-sets/${m.setId}/frames/${f.id}/thumbnail`} alt={`Thumbnail of ${f.fileName}`} width={80} height={54} className="h-14 w-20 rounded bg-black object-contain" loading="lazy" />
       ) : (
         <span className="text-ink-muted">{f.ingestState === "received" ? "checking…" : "no thumbnail"}</span>
-      );
-    },
+      ),
+    ),
   }),
   col.accessor("fileName", {
     id: "name",
@@ -122,49 +132,35 @@ const FRAME_COLUMNS = col.columns([
     sortFn: sortBy((a, b) => a.fileName.localeCompare(b.fileName, undefined, { numeric: true })),
     filterFn: nameFilter,
     meta: { className: `${CELL} max-md:col-span-2 font-mono font-normal break-words md:min-w-44`, label: "File", isRowHeader: true },
-    cell: ({ row, table }) => {
-      const f = row.original;
-      const problem = table.options.meta!.problems[f.id];
-      return (
-        <>
-          <a href={`/api/bracket-sets/${table.options.meta!.setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
-            <FileName name={f.fileName} />
-          </a>
-          {f.ingestState === "refused" ? <p className="mt-1 font-sans text-danger">Refused: {f.refusalReason}</p> : null}
-          {problem?.field === "row" ? <p className="mt-1 font-sans text-xs font-medium text-danger">{problem.text}</p> : null}
-        </>
-      );
-    },
+    cell: frameCell((f, m) => (
+      <>
+        <a href={`/api/bracket-sets/${m.setId}/frames/${f.id}/original`} aria-label={`Download the original of ${f.fileName}`}>
+          <FileName name={f.fileName} />
+        </a>
+        {f.ingestState === "refused" ? <p className="mt-1 font-sans text-danger">Refused: {f.refusalReason}</p> : null}
+        {problemOf(m, f, "row") ? <p className="mt-1 font-sans text-xs font-medium text-danger">{problemOf(m, f, "row")}</p> : null}
+      </>
+    )),
   }),
   col.accessor("correctedCaptureAt", {
     id: "time",
     header: "Time (UTC)",
     sortFn: sortBy(byTime),
     meta: { className: `${CELL} max-md:col-span-2`, label: "Camera clock time (UTC)" },
-    cell: ({ row, table }) => {
-      const m = table.options.meta!;
-      const f = row.original;
-      const problem = m.problems[f.id];
-      return <TimeCell f={f} day={m.eclipseDay} canEdit={m.canEdit} pending={m.busy === `frame-${f.id}`} problem={problem?.field === "time" ? problem.text : undefined} onSave={m.saveTime} />;
-    },
+    cell: frameCell((f, m) => <TimeCell f={f} day={m.eclipseDay} canEdit={m.canEdit} pending={m.busy === `frame-${f.id}`} problem={problemOf(m, f, "time")} onSave={m.saveTime} />),
   }),
   col.accessor("exposureS", {
     id: "exposure",
     header: "Exposure",
     sortFn: sortBy((a, b) => num(a.exposureS) - num(b.exposureS)),
     meta: { className: `${CELL} max-md:col-span-2`, label: "Exposure" },
-    cell: ({ row, table }) => {
-      const m = table.options.meta!;
-      const f = row.original;
-      const problem = m.problems[f.id];
-      return <ExposureCell f={f} canEdit={m.canEdit} pending={m.busy === `frame-${f.id}`} problem={problem?.field === "exposure" ? problem.text : undefined} onSave={m.saveExposure} />;
-    },
+    cell: frameCell((f, m) => <ExposureCell f={f} canEdit={m.canEdit} pending={m.busy === `frame-${f.id}`} problem={problemOf(m, f, "exposure")} onSave={m.saveExposure} />),
   }),
   col.display({
     id: "isoF",
     header: "ISO · f/",
     meta: { className: `${CELL} font-mono`, label: "ISO · f/" },
-    cell: ({ row }) => `${row.original.iso ?? "—"} · ${row.original.fNumber ?? "—"}`,
+    cell: frameCell((f) => `${f.iso ?? "—"} · ${f.fNumber ?? "—"}`),
   }),
   col.accessor("kind", {
     id: "kind",
@@ -172,10 +168,8 @@ const FRAME_COLUMNS = col.columns([
     enableSorting: false,
     filterFn: kindFilter,
     meta: { className: CELL, label: "Kind" },
-    cell: ({ row, table }) => {
-      const m = table.options.meta!;
-      const f = row.original;
-      return m.canEdit && f.ingestState !== "refused" ? (
+    cell: frameCell((f, m) =>
+      m.canEdit && f.ingestState !== "refused" ? (
         <select
           aria-label={`Kind of ${f.fileName}`}
           value={f.kind}
@@ -190,48 +184,44 @@ const FRAME_COLUMNS = col.columns([
         </select>
       ) : (
         f.kind
-      );
-    },
+      ),
+    ),
   }),
   col.accessor((f) => f.flags.clippedFraction, {
     id: "clipped",
     header: "Clipped",
     sortFn: sortBy((a, b) => num(a.flags.clippedFraction) - num(b.flags.clippedFraction)),
     meta: { className: `${CELL} font-mono`, label: "Clipped" },
-    cell: ({ row }) => (row.original.flags.clippedFraction === undefined ? "—" : `${(100 * row.original.flags.clippedFraction).toFixed(1)} %`),
+    cell: frameCell((f) => (f.flags.clippedFraction === undefined ? "—" : `${(100 * f.flags.clippedFraction).toFixed(1)} %`)),
   }),
   col.accessor((f) => f.flags.sharpness, {
     id: "sharpness",
     header: "Findings",
     sortFn: sortBy((a, b) => num(a.flags.sharpness) - num(b.flags.sharpness)),
     meta: { className: `${CELL} max-md:col-span-2`, label: "Findings" },
-    cell: ({ row, table }) => <Findings f={row.original} shortest={table.options.meta!.shortest} />,
+    cell: frameCell((f, m) => <Findings f={f} shortest={m.shortest} />),
   }),
   col.display({
     id: "histogram",
     header: "Histogram",
     meta: { className: CELL, label: "Histogram" },
-    cell: ({ row }) => <FrameHistogram bins={row.original.flags.histogram} label={row.original.fileName} />,
+    cell: frameCell((f) => <FrameHistogram bins={f.flags.histogram} label={f.fileName} />),
   }),
   col.accessor((f) => f.groupNumber ?? 1, {
     id: "group",
     header: "Group",
     sortFn: sortBy((a, b) => (a.groupNumber ?? 1) - (b.groupNumber ?? 1) || byTime(a, b)),
     meta: { className: CELL, label: "Group" },
-    cell: ({ row, table }) => {
-      const m = table.options.meta!;
-      const f = row.original;
-      return (
-        <>
-          <span className="font-mono">{f.groupNumber ?? 1}</span>
-          {m.canEdit && f.correctedCaptureAt ? (
-            <Button size="sm" variant="quiet" aria-label={`Split here: start a new group at ${f.fileName}`} onClick={() => m.groupAction({ action: "split", frameId: f.id }, `A new group starts at ${f.fileName}.`)}>
-              Split here
-            </Button>
-          ) : null}
-        </>
-      );
-    },
+    cell: frameCell((f, m) => (
+      <>
+        <span className="font-mono">{f.groupNumber ?? 1}</span>
+        {m.canEdit && f.correctedCaptureAt ? (
+          <Button size="sm" variant="quiet" aria-label={`Split here: start a new group at ${f.fileName}`} onClick={() => m.groupAction({ action: "split", frameId: f.id }, `A new group starts at ${f.fileName}.`)}>
+            Split here
+          </Button>
+        ) : null}
+      </>
+    )),
   }),
   col.accessor("included", {
     id: "included",
@@ -239,20 +229,16 @@ const FRAME_COLUMNS = col.columns([
     enableSorting: false,
     filterFn: showFilter,
     meta: { className: CELL, label: "Included" },
-    cell: ({ row, table }) => {
-      const m = table.options.meta!;
-      const f = row.original;
-      return (
-        <input
-          type="checkbox"
-          aria-label={`Include ${f.fileName} in reductions`}
-          checked={f.included && f.ingestState !== "refused"}
-          disabled={!m.canEdit || f.ingestState === "refused"}
-          onChange={(e) => m.patchFrame(f, { included: e.target.checked }, `${f.fileName} is ${e.target.checked ? "included" : "excluded"}.`)}
-          className="h-5 w-5"
-        />
-      );
-    },
+    cell: frameCell((f, m) => (
+      <input
+        type="checkbox"
+        aria-label={`Include ${f.fileName} in reductions`}
+        checked={f.included && f.ingestState !== "refused"}
+        disabled={!m.canEdit || f.ingestState === "refused"}
+        onChange={(e) => m.patchFrame(f, { included: e.target.checked }, `${f.fileName} is ${e.target.checked ? "included" : "excluded"}.`)}
+        className="h-5 w-5"
+      />
+    )),
   }),
 ]);
 
@@ -260,10 +246,7 @@ const REMOVE_COLUMN = col.display({
   id: "remove",
   header: () => <span className="sr-only">Remove</span>,
   meta: { className: CELL, label: "" },
-  cell: ({ row, table }) => {
-    const m = table.options.meta!;
-    return <RemoveCell f={row.original} pending={m.busy === `remove-${row.original.id}`} onRemove={m.removeFrame} />;
-  },
+  cell: frameCell((f, m) => <RemoveCell f={f} pending={m.busy === `remove-${f.id}`} onRemove={m.removeFrame} />),
 });
 
 /** The columns for a reader, and for the owner of an open set (who may also remove frames). */
