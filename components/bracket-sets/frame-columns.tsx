@@ -1,6 +1,6 @@
 "use client";
 // The frame table's columns for TanStack Table: what each column shows, how it
-// sorts (the same order as before: frames without a value go last) and which
+// sorts (the comparisons the table always had: a missing number goes last) and which
 // filters it carries (kind, file name, and "show" on the Included column). The
 // table holds the sorting and filter state; frame-triage.tsx draws the markup
 // and does the calls. Cells reach the page's handlers through the table's meta.
@@ -75,7 +75,7 @@ export function isFlagged(f: FrameDto, shortest: ReadonlyMap<number, number>): b
 /** Cells of the frame table; on a phone each row becomes a card and each cell shows its header above its value. */
 const CELL = "px-3 py-2 max-md:px-0 max-md:py-1 max-md:before:block max-md:before:text-xs max-md:before:font-sans max-md:before:font-medium max-md:before:text-ink-muted max-md:before:content-[attr(data-label)]";
 
-// Ascending comparisons; the table turns them round for descending. A missing value goes last.
+// Ascending comparisons; the table turns them round for descending. A missing number goes last.
 const num = (v: number | null | undefined) => (v === null || v === undefined ? Number.POSITIVE_INFINITY : v);
 const byTime = (a: FrameDto, b: FrameDto) => (a.correctedCaptureAt ?? "~").localeCompare(b.correctedCaptureAt ?? "~") || a.fileName.localeCompare(b.fileName);
 const sortBy =
