@@ -5,7 +5,7 @@ import { SiteFooter } from "@/components/shell/site-footer";
 import { SiteHeader } from "@/components/shell/site-header";
 import { ThemeScript } from "@/components/shell/theme-script";
 import { SignOutButton } from "@/components/auth/sign-out-button";
-import { ToastProvider } from "@/components/ui/toast";
+import { Providers } from "@/components/data/providers";
 import { getDb } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { navFor } from "@/lib/auth/nav";
@@ -35,7 +35,7 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
         <ThemeScript nonce={requestHeaders.get("x-nonce") ?? undefined} />
       </head>
       <body className="flex min-h-screen flex-col bg-surface font-sans text-ink antialiased">
-        <ToastProvider>
+        <Providers>
           <SiteHeader
             societyName={settings.name}
             nav={nav}
@@ -46,7 +46,7 @@ export default async function RootLayout({ children }: { children: ReactNode }) 
             {children}
           </main>
           <SiteFooter textLicence={{ name: settings.siteTextLicenceName, href: settings.siteTextLicenceUrl }} />
-        </ToastProvider>
+        </Providers>
       </body>
     </html>
   );

@@ -7,9 +7,7 @@ import type { Action } from "@/lib/auth/permissions";
 import { AppError, toErrorBody } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { currentActor } from "./actor";
-import type { ActionResult } from "@/components/forms/action-result";
-
-export type { ActionResult } from "@/components/forms/action-result";
+import { markedFieldsMessage, type ActionResult } from "@/lib/http/action-result";
 
 /**
  * The one wrapper for server actions: session and permission checked on the
@@ -33,8 +31,7 @@ export function serverAction<S extends z.ZodType>(
       if (err instanceof AppError) {
         // Field problems are shown beside their fields, under the labels people read;
         // the summary only says how many there are.
-        const n = err.fields.length;
-        const message = n > 0 ? `Please correct ${n === 1 ? "the marked field" : `the ${n} marked fields`}.` : err.message;
+        const message = err.fields.length > 0 ? markedFieldsMessage(err.fields.length) : err.message;
         return { ok: false, message, fields: err.fields, values };
       }
       const { body } = toErrorBody(err);

@@ -5,7 +5,7 @@ import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
-import { FormMessage } from "./form-message";
+import { Feedback } from "@/components/ui/feedback";
 
 export function ForgotPasswordForm() {
   const [error, setError] = useState("");
@@ -26,11 +26,11 @@ export function ForgotPasswordForm() {
   if (done) {
     // The same answer whether or not the address has an account, so the form
     // cannot be used to find out who is a member.
-    return <FormMessage tone="ok">If that address has an account, a link to set a new password is on its way.</FormMessage>;
+    return <Feedback look="box" success="If that address has an account, a link to set a new password is on its way." />;
   }
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4">
-      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Feedback look="box" problem={error} />
       <Field label="E-mail">
         <Input name="email" type="email" autoComplete="email" required />
       </Field>

@@ -6,7 +6,7 @@ import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
-import { FormMessage } from "./form-message";
+import { Feedback } from "@/components/ui/feedback";
 
 export function ResetPasswordForm({ token, linkError }: { token?: string; linkError?: string }) {
   const [error, setError] = useState(linkError ? describeAuthError({ code: linkError }) : "");
@@ -15,9 +15,14 @@ export function ResetPasswordForm({ token, linkError }: { token?: string; linkEr
 
   if (!token) {
     return (
-      <FormMessage tone="danger">
-        {error || "This page needs the link from the e-mail."} <Link href="/forgot-password">Ask for a new link.</Link>
-      </FormMessage>
+      <Feedback
+        look="box"
+        problem={
+          <>
+            {error || "This page needs the link from the e-mail."} <Link href="/forgot-password">Ask for a new link.</Link>
+          </>
+        }
+      />
     );
   }
 
@@ -39,14 +44,19 @@ export function ResetPasswordForm({ token, linkError }: { token?: string; linkEr
 
   if (done) {
     return (
-      <FormMessage tone="ok">
-        Your password is changed. <Link href="/sign-in">Sign in with it.</Link>
-      </FormMessage>
+      <Feedback
+        look="box"
+        success={
+          <>
+            Your password is changed. <Link href="/sign-in">Sign in with it.</Link>
+          </>
+        }
+      />
     );
   }
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4">
-      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Feedback look="box" problem={error} />
       <Field label="New password" hint="At least 10 characters, and not a common password.">
         <Input name="password" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
       </Field>

@@ -8,7 +8,7 @@ import { SubmitButton } from "@/components/ui/submit-button";
 import { safeNextPath } from "@/lib/http/safe-next";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
-import { FormMessage } from "./form-message";
+import { Feedback } from "@/components/ui/feedback";
 
 export function SignInForm({ next }: { next?: string }) {
   const router = useRouter();
@@ -36,7 +36,7 @@ export function SignInForm({ next }: { next?: string }) {
 
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4" noValidate={false}>
-      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Feedback look="box" problem={error} />
       <Field label="E-mail">
         <Input name="email" type="email" autoComplete="email" required />
       </Field>

@@ -6,7 +6,7 @@ import { SubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
 import { DISPLAY_NAME_MAX, DISPLAY_NAME_MIN } from "@/lib/auth/display-name";
-import { FormMessage } from "./form-message";
+import { Feedback } from "@/components/ui/feedback";
 
 export function SignUpForm() {
   const [error, setError] = useState("");
@@ -37,15 +37,13 @@ export function SignUpForm() {
 
   if (sentTo) {
     return (
-      <FormMessage tone="ok">
-        Almost there: we sent a confirmation link to {sentTo}. Open it to finish signing up.
-      </FormMessage>
+      <Feedback look="box" success={`Almost there: we sent a confirmation link to ${sentTo}. Open it to finish signing up.`} />
     );
   }
 
   return (
     <form onSubmit={onSubmit} className="flex flex-col gap-4">
-      {error ? <FormMessage tone="danger">{error}</FormMessage> : null}
+      <Feedback look="box" problem={error} />
       <Field label="Name" hint="As it should appear in photo credits.">
         <Input name="name" autoComplete="name" required minLength={DISPLAY_NAME_MIN} maxLength={DISPLAY_NAME_MAX} />
       </Field>

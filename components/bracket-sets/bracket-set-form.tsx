@@ -1,7 +1,7 @@
 "use client";
 import { useActionState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
-import type { FormAction } from "@/components/forms/action-result";
+import { Feedback } from "@/components/ui/feedback";
+import type { FormAction } from "@/lib/http/action-result";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select, type SelectOption } from "@/components/ui/select";
@@ -23,7 +23,7 @@ export function BracketSetForm({ action, eclipses, sites, kits, defaultEclipseId
   const v = (name: string, fallback = "") => state?.values?.[name] ?? fallback;
   return (
     <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex max-w-2xl flex-col gap-5">
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Feedback look="box" result={state} />
       <Field label="Name" hint="For example “Second contact, 400 mm refractor”." error={err("name")} required>
         <Input name="name" defaultValue={v("name")} required minLength={2} maxLength={120} />
       </Field>

@@ -3,51 +3,43 @@
 // photographed a trusted clock (a GPS receiver's display, a radio-controlled
 // watch) together with the true time that clock showed.
 import { useId, useState, type FormEvent } from "react";
-import type { FrameDto } from "@/lib/bracket-sets/dto";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "./api-client";
-import { useApiAction } from "./use-api-action";
+import { Feedback } from "@/components/ui/feedback";
+import type { FrameDto } from "@/lib/bracket-sets/dto";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 import { parseStrictNumber } from "@/lib/strict-number";
 
 type Mode = "typed" | "frame";
 
+/** What the form sends: the offset typed, or the frame of a clock and the true time it showed; refused here when unreadable. */
+function readOffset(mode: Mode, form: FormData): Record<string, unknown> {
+  const refuse = (field: string, text: string) => ApiProblem.local(text, { [field]: text });
+  if (mode === "typed") {
+    const text = String(form.get("clockOffsetS") ?? "").trim();
+    const value = parseStrictNumber(text);
+    if (Number.isNaN(value)) throw refuse("clockOffsetS", `Clock offset: "${text}" is not a number of seconds.`);
+    return { clockOffsetS: value };
+  }
+  const frameId = String(form.get("clockFrameId") ?? "");
+  const shown = String(form.get("clockShownAt") ?? "").trim();
+  if (!frameId) throw refuse("clockFrameId", "Choose the frame that shows the clock.");
+  // The time typed is UTC; a value without a zone is read as UTC, not local time.
+  const iso = /[zZ]|[+-]\d\d:?\d\d$/.test(shown) ? shown : `${shown}Z`;
+  if (!shown || Number.isNaN(Date.parse(iso))) throw refuse("clockShownAt", `Time the clock showed: "${shown}" is not a date and time such as 2027-08-02T10:59:30.`);
+  return { clockFrameId: frameId, clockShownAt: new Date(iso).toISOString() };
+}
+
 export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string; clockOffsetS: number; frames: FrameDto[] }) {
   const id = useId();
   const [mode, setMode] = useState<Mode>("typed");
-  const { pending, message: result, setMessage: setResult, run } = useApiAction();
+  const save = useApiMutation(async (form: FormData) => fetchJson<{ clockOffsetS: number }>(`/api/bracket-sets/${setId}`, { method: "PATCH", body: readOffset(mode, form) }));
+  const isInvalid = (field: string) => save.error?.fields[field] !== undefined || undefined;
   const timed = frames.filter((f) => f.captureAt && f.ingestState === "ingested");
 
-  async function onSubmit(e: FormEvent<HTMLFormElement>) {
+  function onSubmit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const form = new FormData(e.currentTarget);
-    let body: Record<string, unknown>;
-    if (mode === "typed") {
-      const text = String(form.get("clockOffsetS") ?? "").trim();
-      const value = parseStrictNumber(text);
-      if (Number.isNaN(value)) {
-        setResult({ tone: "danger", text: `Clock offset: "${text}" is not a number of seconds.`, field: "clockOffsetS" });
-        return;
-      }
-      body = { clockOffsetS: value };
-    } else {
-      const frameId = String(form.get("clockFrameId") ?? "");
-      const shown = String(form.get("clockShownAt") ?? "").trim();
-      if (!frameId) {
-        setResult({ tone: "danger", text: "Choose the frame that shows the clock.", field: "clockFrameId" });
-        return;
-      }
-      // The time typed is UTC; a value without a zone is read as UTC, not local time.
-      const iso = /[zZ]|[+-]\d\d:?\d\d$/.test(shown) ? shown : `${shown}Z`;
-      if (!shown || Number.isNaN(Date.parse(iso))) {
-        setResult({ tone: "danger", text: `Time the clock showed: "${shown}" is not a date and time such as 2027-08-02T10:59:30.`, field: "clockShownAt" });
-        return;
-      }
-      body = { clockFrameId: frameId, clockShownAt: new Date(iso).toISOString() };
-    }
-    await run(
-      () => callApi<{ clockOffsetS: number }>(`/api/bracket-sets/${setId}`, { method: "PATCH", body }),
-      (saved) => `Camera clock offset is now ${saved.clockOffsetS} s; frame times below are corrected.`,
-    );
+    save.mutate(new FormData(e.currentTarget));
   }
 
   return (
@@ -79,7 +71,7 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
             type="number"
             step="any"
             defaultValue={clockOffsetS}
-            aria-invalid={result?.field === "clockOffsetS" || undefined}
+            aria-invalid={isInvalid("clockOffsetS")}
             className="w-40 rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
           />
         </div>
@@ -89,7 +81,7 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
             <label htmlFor={`${id}-f`} className="text-sm font-medium">
               Frame that shows the clock
             </label>
-            <select id={`${id}-f`} name="clockFrameId" aria-invalid={result?.field === "clockFrameId" || undefined} className="rounded-control border border-line-strong bg-surface-raised px-3 py-2">
+            <select id={`${id}-f`} name="clockFrameId" aria-invalid={isInvalid("clockFrameId")} className="rounded-control border border-line-strong bg-surface-raised px-3 py-2">
               <option value="">Choose a frame</option>
               {timed.map((f) => (
                 <option key={f.id} value={f.id}>
@@ -108,17 +100,15 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
               type="datetime-local"
               step={1}
               defaultValue="2027-08-02T10:00:00"
-              aria-invalid={result?.field === "clockShownAt" || undefined}
+              aria-invalid={isInvalid("clockShownAt")}
               className="rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
             />
           </div>
         </div>
       )}
-      <div role="status" aria-live="polite" className="text-sm font-medium">
-        {result ? <span className={result.tone === "ok" ? "text-ok" : "text-danger"}>{result.text}</span> : null}
-      </div>
+      <Feedback live look="tinted" problem={save.error} success={save.data ? `Camera clock offset is now ${save.data.clockOffsetS} s; frame times below are corrected.` : null} />
       <div>
-        <Button type="submit" pending={pending} pendingLabel="Saving…">
+        <Button type="submit" pending={save.isPending} pendingLabel="Saving…">
           Save clock offset
         </Button>
       </div>

@@ -4,11 +4,12 @@
 // happens in the frame table. The server checks everything and changes nothing
 // when a row is bad; its message names the line and the column.
 import { useId, useState, type FormEvent } from "react";
-import type { FrameTimesResultDto } from "@/lib/bracket-sets/dto";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi, withFieldLabels } from "./api-client";
+import { Feedback } from "@/components/ui/feedback";
+import type { FrameTimesResultDto } from "@/lib/bracket-sets/dto";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 import { FILE_INPUT_CLASSES } from "./upload-limits";
-import { useApiAction } from "./use-api-action";
 
 const FIELD = "rounded-control border border-line-strong bg-surface-raised px-3 py-2";
 
@@ -21,10 +22,6 @@ const FIELD_LABELS: Record<string, string> = {
   fileName: "The CSV's name",
 };
 
-function sendTimes(setId: string, body: Record<string, unknown>): Promise<FrameTimesResultDto> {
-  return withFieldLabels(callApi<FrameTimesResultDto>(`/api/bracket-sets/${setId}/frame-times`, { body }), FIELD_LABELS);
-}
-
 function describeResult(r: FrameTimesResultDto): string {
   const parts = [r.timesSet ? `${r.timesSet} capture time${r.timesSet === 1 ? "" : "s"}` : "", r.exposuresSet ? `${r.exposuresSet} exposure${r.exposuresSet === 1 ? "" : "s"}` : ""].filter(Boolean);
   return parts.length ? `Saved ${parts.join(" and ")}.` : "Nothing needed changing.";
@@ -32,36 +29,24 @@ function describeResult(r: FrameTimesResultDto): string {
 
 export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }: { setId: string; eclipseDay: string; untimedCount: number; lightCount: number }) {
   const id = useId();
-  const csv = useApiAction();
-  const interval = useApiAction();
+  const sendTimes = (body: Record<string, unknown>) => fetchJson<FrameTimesResultDto>(`/api/bracket-sets/${setId}/frame-times`, { body });
+  const csv = useApiMutation(async (file: File | null) => {
+    if (!file || file.size === 0) throw ApiProblem.local("Choose the CSV file first.");
+    return sendTimes({ method: "csv", fileName: file.name, text: await file.text() });
+  });
+  const interval = useApiMutation((body: Record<string, string>) => sendTimes({ method: "interval", ...body }));
   const [fileName, setFileName] = useState<string | null>(null);
 
-  async function sendCsv(e: FormEvent<HTMLFormElement>) {
+  function sendCsv(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const file = (new FormData(e.currentTarget).get("csv") as File | null) ?? null;
-    if (!file || file.size === 0) {
-      csv.setMessage({ tone: "danger", text: "Choose the CSV file first." });
-      return;
-    }
-    const text = await file.text();
-    await csv.run(() => sendTimes(setId, { method: "csv", fileName: file.name, text }), (r) => `${file.name}: ${describeResult(r)}`);
+    csv.mutate((new FormData(e.currentTarget).get("csv") as File | null) ?? null);
   }
 
-  async function sendInterval(e: FormEvent<HTMLFormElement>) {
+  function sendInterval(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const data = new FormData(e.currentTarget);
-    await interval.run(
-      () => sendTimes(setId, { method: "interval", firstAt: String(data.get("firstAt") ?? ""), intervalS: String(data.get("intervalS") ?? ""), scope: String(data.get("scope") ?? "missing") }),
-      (r) => `${describeResult(r)} In shot order: ${r.fileNames.slice(0, 3).join(", ")}${r.fileNames.length > 3 ? ", …" : ""}.`,
-    );
+    interval.mutate({ firstAt: String(data.get("firstAt") ?? ""), intervalS: String(data.get("intervalS") ?? ""), scope: String(data.get("scope") ?? "missing") });
   }
-
-  const status = (m: typeof csv.message) =>
-    m ? (
-      <p role={m.tone === "danger" ? "alert" : "status"} className={`text-sm font-medium ${m.tone === "ok" ? "text-ok" : "text-danger"}`}>
-        {m.text}
-      </p>
-    ) : null;
 
   return (
     <section aria-labelledby={`${id}-h`} className="flex flex-col gap-4">
@@ -75,7 +60,7 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
         Give times as the camera&apos;s clock showed them: the set&apos;s clock offset is applied to them exactly as to the times in the files. A time you give wins over the file&apos;s, which is kept.
       </p>
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-2">
-        <form onSubmit={(e) => void sendCsv(e)} className="flex flex-col gap-3 rounded-card border border-line p-4" aria-describedby={`${id}-csv-hint`}>
+        <form onSubmit={sendCsv} className="flex flex-col gap-3 rounded-card border border-line p-4" aria-describedby={`${id}-csv-hint`}>
           <h3 className="font-semibold">From a CSV, by file name</h3>
           <p id={`${id}-csv-hint`} className="text-sm text-ink-muted">
             A header row with <code>file</code> and <code>capture_time</code>, <code>exposure_s</code> or both; other columns are ignored. Times in ISO 8601 with their zone
@@ -86,13 +71,13 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
           </label>
           <input id={`${id}-csv`} name="csv" type="file" accept=".csv,.tsv,.txt,text/csv,text/plain" className={FILE_INPUT_CLASSES} onChange={(e) => setFileName(e.target.files?.[0]?.name ?? null)} />
           <div>
-            <Button type="submit" pending={csv.pending} pendingLabel="Reading…" disabled={!fileName}>
+            <Button type="submit" pending={csv.isPending} pendingLabel="Reading…" disabled={!fileName}>
               Use this CSV
             </Button>
           </div>
-          {status(csv.message)}
+          <Feedback look="tinted" labels={FIELD_LABELS} problem={csv.error} success={csv.data && csv.variables ? `${csv.variables.name}: ${describeResult(csv.data)}` : null} />
         </form>
-        <form onSubmit={(e) => void sendInterval(e)} className="flex flex-col gap-3 rounded-card border border-line p-4">
+        <form onSubmit={sendInterval} className="flex flex-col gap-3 rounded-card border border-line p-4">
           <h3 className="font-semibold">From the first time and an interval</h3>
           <p className="text-sm text-ink-muted">Frames are taken in the order of their file names as the camera numbered them (IMG_9 before IMG_10), each one the interval after the one before, start to start.</p>
           <div className="flex flex-wrap gap-4">
@@ -118,11 +103,16 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
             </label>
           </fieldset>
           <div>
-            <Button type="submit" pending={interval.pending} pendingLabel="Saving…">
+            <Button type="submit" pending={interval.isPending} pendingLabel="Saving…">
               Give these times
             </Button>
           </div>
-          {status(interval.message)}
+          <Feedback
+            look="tinted"
+            labels={FIELD_LABELS}
+            problem={interval.error}
+            success={interval.data ? `${describeResult(interval.data)} In shot order: ${interval.data.fileNames.slice(0, 3).join(", ")}${interval.data.fileNames.length > 3 ? ", …" : ""}.` : null}
+          />
         </form>
       </div>
       <p className="text-sm text-ink-muted">One frame at a time: type its time in the frame table.</p>

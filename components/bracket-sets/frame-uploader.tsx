@@ -10,8 +10,9 @@ import { useRouter } from "next/navigation";
 import { useEffect, useId, useMemo, useRef, useState, useSyncExternalStore, type DragEvent } from "react";
 import type { FrameDto, SignedPartsDto, UploadDto, UploadPartsDto } from "@/lib/bracket-sets/dto";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { ProgressBar } from "@/components/ui/progress-bar";
-import { ApiError, callApi } from "./api-client";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 import { FILE_INPUT_CLASSES, FRAME_EXTENSIONS, formatBytes, type UploadLimits } from "./upload-limits";
 
 type FrameMeta = Meta & { frameId?: string };
@@ -113,30 +114,30 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
       retryDelays: [0, 1000, 3000, 5000, 10000],
       getChunkSize: () => limits.partSizeBytes,
       async createMultipartUpload(file) {
-        const u = await callApi<UploadDto>(base, {
+        const u = await fetchJson<UploadDto>(base, {
           body: { fileName: file.name, sizeBytes: file.size, contentType: file.type || undefined },
         });
         return { uploadId: u.id, key: u.frameId };
       },
       async signPart(_file, { uploadId, partNumber, signal }) {
-        const signed = await callApi<SignedPartsDto>(`${base}/${uploadId}/parts`, { body: { partNumbers: [partNumber] }, signal });
+        const signed = await fetchJson<SignedPartsDto>(`${base}/${uploadId}/parts`, { body: { partNumbers: [partNumber] }, signal });
         const url = signed.urls.find((u) => u.partNumber === partNumber)?.url;
         if (!url) throw new Error(`The server signed no address for part ${partNumber}.`);
         return { method: "PUT", url };
       },
       async listParts(_file, { uploadId, signal }): Promise<AwsS3Part[]> {
-        const held = await callApi<UploadPartsDto>(`${base}/${uploadId}/parts`, { signal });
+        const held = await fetchJson<UploadPartsDto>(`${base}/${uploadId}/parts`, { signal });
         return held.parts.map((p) => ({ PartNumber: p.partNumber, Size: p.sizeBytes, ETag: p.etag }));
       },
       async completeMultipartUpload(_file, { uploadId, signal }) {
         // The server asks S3 which parts arrived and checks the whole file.
-        const frame = await callApi<FrameDto>(`${base}/${uploadId}/complete`, { method: "POST", body: {}, signal });
+        const frame = await fetchJson<FrameDto>(`${base}/${uploadId}/complete`, { method: "POST", body: {}, signal });
         // A repeated completion answers with the frame as first recorded, refused or not.
         if (frame.ingestState === "refused") throw new Error(frame.refusalReason ?? `${frame.fileName} was refused.`);
         return { location: `/api/bracket-sets/${setId}/frames/${frame.id}` };
       },
       async abortMultipartUpload(_file, { uploadId, signal }) {
-        await callApi<UploadDto>(`${base}/${uploadId}`, { method: "DELETE", signal });
+        await fetchJson<UploadDto>(`${base}/${uploadId}`, { method: "DELETE", signal });
       },
     });
     // Keyed on the values, not the object: the page's server data are read again while frames are checked,
@@ -174,7 +175,7 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
     };
     uppy.on("upload-success", onSuccess);
     const onError = (file: FrameFile | undefined, error: Error) => {
-      if (file && error instanceof ApiError && error.status >= 400 && error.status < 500) {
+      if (file && error instanceof ApiProblem && error.isRefusal) {
         setRefusedRows((list) => [...list, { ...rowOf(file, resumedIds.current, frameIds.current), state: "refused", message: error.message }]);
         uppy.removeFile(file.id);
       }
@@ -285,11 +286,7 @@ export function FrameUploader({ setId, limits, openUploads, frames }: { setId: s
           The connection is lost. Uploads wait and continue by themselves when it comes back.
         </p>
       ) : null}
-      {notice ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {notice}
-        </p>
-      ) : null}
+      <Feedback problem={notice} />
 
       <div className="flex flex-col gap-3">
         {/* No bar until a file is chosen: an empty bar would move as if something were under way. */}

@@ -1,10 +1,13 @@
 "use client";
 import Link from "next/link";
 import { useId, useState, type FormEvent } from "react";
-import type { OrientationOutlook } from "@/lib/bracket-sets/orientation";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi, withFieldLabels } from "./api-client";
-import { useApiAction } from "./use-api-action";
+import { Feedback } from "@/components/ui/feedback";
+import type { OrientationOutlook } from "@/lib/bracket-sets/orientation";
+import { fetchJson } from "@/lib/http/client-fetch";
+
+const NORTH_LABELS = { northAngleDeg: "North angle" };
 
 /**
  * The set's kit and where north will come from, changeable while frames may
@@ -27,26 +30,13 @@ export function KitChooser({
 }) {
   const id = useId();
   const [value, setValue] = useState(kitId ?? "");
-  const kit = useApiAction();
-  const north = useApiAction();
-  const save = () =>
-    kit.run(
-      () => callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { kitId: value || null } }),
-      () => (value ? "Kit saved; new reductions use its plate scale and mount." : "The set has no kit now."),
-    );
+  const patch = (body: Record<string, unknown>) => fetchJson(`/api/bracket-sets/${setId}`, { method: "PATCH", body });
+  const kit = useApiMutation((kitId: string) => patch({ kitId: kitId || null }));
+  const north = useApiMutation((text: string) => patch({ northAngleDeg: text === "" ? null : text }));
   const saveNorth = (e: FormEvent<HTMLFormElement>) => {
     e.preventDefault();
-    const text = String(new FormData(e.currentTarget).get("northAngleDeg") ?? "").trim();
-    void north.run(
-      () => withFieldLabels(callApi(`/api/bracket-sets/${setId}`, { method: "PATCH", body: { northAngleDeg: text === "" ? null : text } }), { northAngleDeg: "North angle" }),
-      () => (text === "" ? "The north angle is forgotten; the kit's mount decides again." : "North angle saved; new reductions use it."),
-    );
+    north.mutate(String(new FormData(e.currentTarget).get("northAngleDeg") ?? "").trim());
   };
-  const status = (m: typeof kit.message) => (
-    <p role="status" aria-live="polite" className="text-sm font-medium">
-      {m ? <span className={m.tone === "ok" ? "text-ok" : "text-danger"}>{m.text}</span> : null}
-    </p>
-  );
   return (
     <div className="flex flex-col gap-4">
       <div className="flex flex-wrap items-end gap-3">
@@ -63,14 +53,14 @@ export function KitChooser({
             ))}
           </select>
         </div>
-        <Button onClick={() => void save()} pending={kit.pending} pendingLabel="Saving…" disabled={value === (kitId ?? "")}>
+        <Button onClick={() => kit.mutate(value)} pending={kit.isPending} pendingLabel="Saving…" disabled={value === (kitId ?? "")}>
           Save kit
         </Button>
         <Link href={kitId ? `/studio/kits/${kitId}` : "/studio/kits/new"} className="pb-2 text-sm">
           {kitId ? "Edit this kit's mount and optics" : "Make a new kit"}
         </Link>
       </div>
-      {status(kit.message)}
+      <Feedback live look="tinted" problem={kit.error} success={kit.isSuccess ? (kit.variables ? "Kit saved; new reductions use its plate scale and mount." : "The set has no kit now.") : null} />
       <div className={`max-w-3xl rounded-card border p-4 ${outlook.needsAnswer ? "border-warn/60 bg-warn/10" : "border-line"}`}>
         <h3 className="font-semibold">North in the image</h3>
         <p className={`mt-1 text-sm ${outlook.needsAnswer ? "text-warn" : "text-ink-muted"}`}>{outlook.text}</p>
@@ -87,14 +77,20 @@ export function KitChooser({
               className="w-32 rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
             />
           </label>
-          <Button type="submit" pending={north.pending} pendingLabel="Saving…">
+          <Button type="submit" pending={north.isPending} pendingLabel="Saving…">
             Save north angle
           </Button>
         </form>
         <p id={`${id}-north-hint`} className="mt-1 text-xs text-ink-muted">
           For example from a star field or a plate solve of a frame taken with the same set-up. Leave it empty to let the kit&apos;s mount decide.
         </p>
-        {status(north.message)}
+        <Feedback
+          live
+          look="tinted"
+          problem={north.error}
+          labels={NORTH_LABELS}
+          success={north.isSuccess ? (north.variables === "" ? "The north angle is forgotten; the kit's mount decides again." : "North angle saved; new reductions use it.") : null}
+        />
       </div>
     </div>
   );

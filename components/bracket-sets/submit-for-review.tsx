@@ -1,40 +1,31 @@
 "use client";
 import { useRouter } from "next/navigation";
-import { useEffect, useRef, useState } from "react";
+import { useEffect, useRef } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "./api-client";
+import { Feedback } from "@/components/ui/feedback";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 /** Hands the set to the curators; it can no longer be changed until they ask for changes. */
 export function SubmitForReview({ setId, hasReduction }: { setId: string; hasReduction: boolean }) {
   const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<string | null>(null);
-  const submit = async () => {
-    setPending(true);
-    setProblem(null);
-    try {
-      await callApi(`/api/bracket-sets/${setId}/submit`, { method: "POST", body: {} });
-      // The page shows the confirmation at its top (this form goes away with the set's state) and moves the focus there.
-      router.replace(`/studio/sets/${setId}?submitted=1`, { scroll: true });
-      router.refresh();
-    } catch (err) {
-      setProblem((err as Error).message);
-      setPending(false);
-    }
-  };
+  const submit = useApiMutation(() => fetchJson(`/api/bracket-sets/${setId}/submit`, { body: {} }), {
+    // The page shows the confirmation at its top (this form goes away with the set's state) and moves the focus there.
+    onSuccess: () => router.replace(`/studio/sets/${setId}?submitted=1`, { scroll: true }),
+  });
+  // Still pending while the page changes to the submitted set.
+  const pending = submit.isPending || submit.isSuccess;
   return (
     <div className="flex flex-col gap-2">
       <div>
-        <Button variant="primary" onClick={() => void submit()} pending={pending} pendingLabel="Submitting…" disabled={!hasReduction}>
+        <Button variant="primary" onClick={() => submit.mutate()} pending={pending} pendingLabel="Submitting…" disabled={!hasReduction}>
           Submit for review
         </Button>
       </div>
       <p className="text-sm text-ink-muted">
         {hasReduction ? "Curators check the frames and the reductions, then publish or ask you for changes." : "Submitting needs at least one finished reduction."}
       </p>
-      <p role="status" aria-live="polite" className="text-sm font-medium text-danger">
-        {problem}
-      </p>
+      <Feedback live look="tinted" problem={submit.error} />
     </div>
   );
 }

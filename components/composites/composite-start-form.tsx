@@ -1,15 +1,17 @@
 "use client";
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
-import { FormMessage } from "@/components/auth/form-message";
-import { callApi } from "@/components/forms/call-api";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
 import { Checkbox } from "@/components/ui/checkbox";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import type { ComposableReduction } from "@/lib/composites/composites";
 import { FILTER_LABELS } from "@/components/reductions/labels";
+import { markedFieldsMessage } from "@/lib/http/action-result";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 
 const MAX_INPUTS = 6;
 
@@ -18,44 +20,35 @@ const MAX_INPUTS = 6;
  * plate scale and its field in solar radii, and starts their composite. The
  * server checks everything again; its refusals show under the form.
  */
+/** The form's values as the server takes them, or the problems found before sending. */
+function readChoice(data: FormData, chosen: string[]) {
+  const scaleText = String(data.get("scale") ?? "").trim();
+  const problems: Record<string, string> = {};
+  if (chosen.length < 2) problems.reductionIds = "Choose at least two reductions.";
+  const scale = scaleText === "" ? undefined : Number(scaleText);
+  if (scale !== undefined && !(scale > 0)) problems.scaleArcsecPerPx = "A plate scale is a positive number of arcseconds per pixel.";
+  const title = String(data.get("title") ?? "").trim();
+  if (!title) problems.title = "Give the composite a title.";
+  if (Object.keys(problems).length) throw ApiProblem.local(markedFieldsMessage(Object.keys(problems).length), problems);
+  return { title, reductionIds: chosen, refine: data.get("refine") === "on", filter: data.get("filter"), ...(scale ? { scaleArcsecPerPx: scale } : {}) };
+}
+
 export function CompositeStartForm({ choices, canComposeOthers }: { choices: ComposableReduction[]; canComposeOthers: boolean }) {
   const router = useRouter();
   const [chosen, setChosen] = useState<string[]>([]);
-  const [message, setMessage] = useState<string | null>(null);
-  const [fields, setFields] = useState<Record<string, string>>({});
-  const [pending, setPending] = useState(false);
+  const compose = useApiMutation(async (data: FormData) => fetchJson<{ id: string }>("/api/composites", { body: readChoice(data, chosen) }), {
+    refresh: false,
+    onSuccess: (created) => router.push(`/studio/composites/${created.id}`),
+  });
+  const fields = compose.error?.fields ?? {};
   const eclipses = [...new Set(choices.map((c) => c.eclipseId))];
   const chosenEclipse = choices.find((c) => c.reductionId === chosen[0])?.eclipseId ?? null;
 
   const toggle = (id: string, on: boolean) => setChosen((list) => (on ? [...list, id] : list.filter((x) => x !== id)));
 
-  async function submit(event: FormEvent<HTMLFormElement>) {
+  function submit(event: FormEvent<HTMLFormElement>) {
     event.preventDefault();
-    const data = new FormData(event.currentTarget);
-    const scaleText = String(data.get("scale") ?? "").trim();
-    const problems: Record<string, string> = {};
-    if (chosen.length < 2) problems.reductionIds = "Choose at least two reductions.";
-    const scale = scaleText === "" ? undefined : Number(scaleText);
-    if (scale !== undefined && !(scale > 0)) problems.scaleArcsecPerPx = "A plate scale is a positive number of arcseconds per pixel.";
-    const title = String(data.get("title") ?? "").trim();
-    if (!title) problems.title = "Give the composite a title.";
-    setFields(problems);
-    if (Object.keys(problems).length) {
-      setMessage(`Please correct ${Object.keys(problems).length === 1 ? "the marked field" : "the marked fields"}.`);
-      return;
-    }
-    setPending(true);
-    setMessage(null);
-    const result = await callApi<{ id: string }>("POST", "/api/composites", {
-      title, reductionIds: chosen, refine: data.get("refine") === "on", filter: data.get("filter"), ...(scale ? { scaleArcsecPerPx: scale } : {}),
-    });
-    setPending(false);
-    if (result.ok) {
-      router.push(`/studio/composites/${result.data.id}`);
-      return;
-    }
-    setFields(result.problem.fields);
-    setMessage(result.problem.message);
+    compose.mutate(new FormData(event.currentTarget));
   }
 
   return (
@@ -113,10 +106,10 @@ export function CompositeStartForm({ choices, canComposeOthers }: { choices: Com
         </Select>
       </Field>
       <Checkbox name="refine" defaultChecked label="Refine each input's position by correlating its corona with the finest input's" hint="The correction found is reported: it measures the input's sky coordinates' error." />
-      {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
+      <Feedback look="box" problem={compose.error} />
       <div>
-        <Button type="submit" variant="primary" disabled={pending}>
-          {pending ? "Starting…" : "Compose"}
+        <Button type="submit" variant="primary" disabled={compose.isPending}>
+          {compose.isPending ? "Starting…" : "Compose"}
         </Button>
       </div>
     </form>

@@ -1,10 +1,10 @@
 "use client";
 import { useActionState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Badge } from "@/components/ui/badge";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { formatDate } from "@/lib/format/dates";
 
 export interface CatalogueRow {
@@ -71,7 +71,7 @@ export function EclipseCatalogueForm({ action, groups }: { action: FormAction; g
       ))}
       <div className="sticky bottom-0 flex flex-wrap items-center gap-4 border-t border-line bg-surface py-3">
         <SubmitButton pendingLabel="Saving…">Save the catalogue</SubmitButton>
-        {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+        <Feedback look="box" result={state} />
       </div>
     </form>
   );

@@ -2,10 +2,10 @@
 // Adds a published plate to the edition. When the plate is already in another
 // edition the server adds it all the same and names those editions: the
 // warning stays on screen so the editor can take it out again.
-import { useRouter } from "next/navigation";
-import { useState } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "@/components/forms/call-api";
+import { Feedback } from "@/components/ui/feedback";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 interface Other {
   id: string;
@@ -15,37 +15,20 @@ interface Other {
 }
 
 export function AddPlateButton({ editionId, plateId, plateTitle }: { editionId: string; plateId: string; plateTitle: string }) {
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [message, setMessage] = useState<{ tone: "ok" | "warn" | "error"; text: string } | null>(null);
-
-  async function add() {
-    setPending(true);
-    setMessage(null);
-    const res = await callApi<{ itemId: string; alsoIn: Other[] }>("POST", `/api/editions/${editionId}/items`, { plateId });
-    setPending(false);
-    if (!res.ok) return setMessage({ tone: "error", text: res.problem.message });
-    const also = res.data.alsoIn;
-    setMessage(
-      also.length
-        ? { tone: "warn", text: `Added, but “${plateTitle}” is already in ${also.map((e) => `“${e.title}${e.issueLabel ? `, ${e.issueLabel}` : ""}”`).join(" and ")}. Check it is not offered to two outlets by mistake.` }
-        : { tone: "ok", text: `Added “${plateTitle}”.` },
-    );
-    router.refresh();
-  }
+  const add = useApiMutation(() => fetchJson<{ itemId: string; alsoIn: Other[] }>(`/api/editions/${editionId}/items`, { body: { plateId } }));
+  const also = add.data?.alsoIn ?? [];
+  const warning = also.length
+    ? `Added, but “${plateTitle}” is already in ${also.map((e) => `“${e.title}${e.issueLabel ? `, ${e.issueLabel}` : ""}”`).join(" and ")}. Check it is not offered to two outlets by mistake.`
+    : null;
 
   return (
     <div className="flex flex-col gap-1">
       <div>
-        <Button size="sm" pending={pending} pendingLabel="Adding…" onClick={add} aria-label={`Add “${plateTitle}” to the edition`}>
+        <Button size="sm" pending={add.isPending} pendingLabel="Adding…" onClick={() => add.mutate()} aria-label={`Add “${plateTitle}” to the edition`}>
           Add
         </Button>
       </div>
-      {message ? (
-        <p role={message.tone === "ok" ? "status" : "alert"} className={message.tone === "ok" ? "text-sm" : "text-sm font-medium text-danger"}>
-          {message.text}
-        </p>
-      ) : null}
+      <Feedback problem={add.error ?? warning} success={add.isSuccess ? `Added “${plateTitle}”.` : null} />
     </div>
   );
 }

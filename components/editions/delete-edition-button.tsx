@@ -4,27 +4,22 @@
 // edition all the same.
 import { useRouter } from "next/navigation";
 import { useState } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import { callApi } from "@/components/forms/call-api";
+import { Feedback } from "@/components/ui/feedback";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 export function DeleteEditionButton({ editionId, title, itemCount }: { editionId: string; title: string; itemCount: number }) {
   const router = useRouter();
   const [open, setOpen] = useState(false);
-  const [pending, setPending] = useState(false);
-  const [error, setError] = useState<string | null>(null);
-
-  async function remove() {
-    setPending(true);
-    setError(null);
-    const res = await callApi("DELETE", `/api/editions/${editionId}`);
-    if (!res.ok) {
-      setPending(false);
-      setOpen(false);
-      return setError(res.problem.message);
-    }
-    router.push("/editions");
-  }
+  const remove = useApiMutation(() => fetchJson(`/api/editions/${editionId}`, { method: "DELETE" }), {
+    refresh: false,
+    onSuccess: () => router.push("/editions"),
+    onError: () => setOpen(false),
+  });
+  // Still pending while the browser leaves for the list of editions.
+  const pending = remove.isPending || remove.isSuccess;
 
   const plates = itemCount === 0 ? "It holds no plates." : `Its ${itemCount === 1 ? "plate leaves" : `${itemCount} plates leave`} it; the plates themselves stay as they are.`;
   return (
@@ -32,11 +27,7 @@ export function DeleteEditionButton({ editionId, title, itemCount }: { editionId
       <Button variant="danger" onClick={() => setOpen(true)}>
         Delete this edition…
       </Button>
-      {error ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {error}
-        </p>
-      ) : null}
+      <Feedback problem={remove.error} />
       <Dialog
         open={open}
         onClose={() => setOpen(false)}
@@ -48,7 +39,7 @@ export function DeleteEditionButton({ editionId, title, itemCount }: { editionId
             <Button variant="secondary" onClick={() => setOpen(false)} disabled={pending}>
               Keep it
             </Button>
-            <Button variant="danger" pending={pending} pendingLabel="Deleting…" onClick={remove}>
+            <Button variant="danger" pending={pending} pendingLabel="Deleting…" onClick={() => remove.mutate()}>
               Delete the edition
             </Button>
           </>

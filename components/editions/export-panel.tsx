@@ -5,10 +5,12 @@
 // exported edition for changes. The server checks the editor on every call.
 import { useRouter } from "next/navigation";
 import { useEffect, useRef, useState, type FormEvent } from "react";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { useExportProgress } from "@/components/data/progress-queries";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
 import { Checkbox } from "@/components/ui/checkbox";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { ProgressBar } from "@/components/ui/progress-bar";
@@ -16,80 +18,57 @@ import type { ExportDto } from "@/lib/editions/export/exports";
 import { DEFAULT_FILE_NAME_TEMPLATE, FILE_NAME_FIELDS } from "@/lib/editions/file-names";
 import { formatBytes } from "@/lib/format/bytes";
 import { formatDateTime } from "@/lib/format/dates";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 const TONE = { queued: "neutral", running: "neutral", done: "ok", failed: "danger" } as const;
+const isUnderWay = (e: ExportDto) => e.state === "queued" || e.state === "running";
+
+interface ExportOptions {
+  cmyk: boolean;
+  greyscale: boolean;
+  fileNameTemplate: string;
+}
 
 export function ExportPanel({ editionId, editionState, itemCount, initial }: { editionId: string; editionState: "draft" | "exported"; itemCount: number; initial: ExportDto[] }) {
   const router = useRouter();
-  const [exports, setExports] = useState(initial);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [reopenProblem, setReopenProblem] = useState<string | null>(null);
-  const [starting, setStarting] = useState(false);
-  const [reopening, setReopening] = useState(false);
-  const [pollProblem, setPollProblem] = useState<string | null>(null);
+  // Exports started here that the server-rendered list does not hold yet.
+  const [started, setStarted] = useState<ExportDto[]>([]);
   const [announce, setAnnounce] = useState("");
-  const active = exports.find((e) => e.state === "queued" || e.state === "running");
-  const activeId = active?.id ?? null;
   const lastStage = useRef<string | null>(null);
+  const known = [...started.filter((e) => !initial.some((x) => x.id === e.id)), ...initial];
+  // The server runs one export of an edition at a time: the one it last said is under way is followed.
+  const followed = useExportProgress(editionId, known.find(isUnderWay)?.id ?? null);
+  const exports = known.map((e) => (followed.data?.id === e.id ? followed.data : e));
+  const active = exports.find(isUnderWay);
 
-  // Polls the export under way once a second, one request at a time; stops with a message when the server refuses.
+  // Each new step is announced politely; the end reads the page's data again (the edition's state, the bundle).
+  const latest = followed.data;
   useEffect(() => {
-    if (!activeId) return;
-    let stopped = false;
-    let timer: number | undefined;
-    const tick = async () => {
-      const res = await callApi<{ export: ExportDto }>("GET", `/api/editions/${editionId}/exports/${activeId}`);
-      if (stopped) return;
-      if (!res.ok) {
-        setPollProblem(`Progress could not be read: ${res.problem.message} Reload the page to see where the export is.`);
-        return;
-      }
-      const e = res.data.export;
-      setExports((list) => list.map((x) => (x.id === e.id ? e : x)));
-      if (e.stage && e.stage !== lastStage.current) {
-        lastStage.current = e.stage;
-        setAnnounce(e.state === "done" ? "The print bundle is ready to download." : e.state === "failed" ? `The export failed: ${e.error ?? "no reason given"}` : e.stage);
-      }
-      if (e.state === "done" || e.state === "failed") router.refresh();
-      else timer = window.setTimeout(tick, 1000);
-    };
-    timer = window.setTimeout(tick, 1000);
-    return () => {
-      stopped = true;
-      window.clearTimeout(timer);
-    };
-  }, [activeId, editionId, router]);
+    if (!latest) return;
+    if (latest.stage && latest.stage !== lastStage.current) {
+      lastStage.current = latest.stage;
+      setAnnounce(latest.state === "done" ? "The print bundle is ready to download." : latest.state === "failed" ? `The export failed: ${latest.error ?? "no reason given"}` : latest.stage);
+    }
+    if (!isUnderWay(latest)) router.refresh();
+  }, [latest, router]);
 
-  async function start(ev: FormEvent<HTMLFormElement>) {
+  const start = useApiMutation((options: ExportOptions) => fetchJson<{ export: ExportDto }>(`/api/editions/${editionId}/exports`, { body: options }), {
+    onSuccess: (data) => {
+      lastStage.current = null;
+      setAnnounce("Export started. The plates are held until the bundle is done.");
+      setStarted((list) => [data.export, ...list]);
+    },
+  });
+  const reopen = useApiMutation(() => fetchJson(`/api/editions/${editionId}/reopen`, { body: {} }), {
+    onSuccess: () => setAnnounce("The edition is a draft again; its bundles stay below."),
+  });
+
+  function submit(ev: FormEvent<HTMLFormElement>) {
     ev.preventDefault();
     const form = new FormData(ev.currentTarget);
-    setStarting(true);
-    setProblem(null);
-    setPollProblem(null);
-    const res = await callApi<{ export: ExportDto }>("POST", `/api/editions/${editionId}/exports`, {
-      cmyk: form.get("cmyk") === "on",
-      greyscale: form.get("greyscale") === "on",
-      fileNameTemplate: String(form.get("fileNameTemplate") ?? ""),
-    });
-    setStarting(false);
-    if (!res.ok) return setProblem(res.problem);
-    lastStage.current = null;
-    setAnnounce("Export started. The plates are held until the bundle is done.");
-    setExports((list) => [res.data.export, ...list]);
-    router.refresh();
+    start.mutate({ cmyk: form.get("cmyk") === "on", greyscale: form.get("greyscale") === "on", fileNameTemplate: String(form.get("fileNameTemplate") ?? "") });
   }
 
-  async function reopen() {
-    setReopening(true);
-    setReopenProblem(null);
-    const res = await callApi("POST", `/api/editions/${editionId}/reopen`, {});
-    setReopening(false);
-    if (!res.ok) return setReopenProblem(res.problem.message);
-    setAnnounce("The edition is a draft again; its bundles stay below.");
-    router.refresh();
-  }
-
-  const generalError = problem && !Object.keys(problem.fields).length ? problem.message : null;
   return (
     <div className="space-y-6">
       <p role="status" aria-live="polite" className="sr-only">
@@ -98,17 +77,13 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
       {editionState === "exported" ? (
         <div className="flex flex-wrap items-center gap-3 rounded-control border border-line p-3 text-sm">
           <p>This edition was exported, so its plates are fixed. Reopen it to change them; the bundles made so far stay.</p>
-          <Button type="button" size="md" variant="secondary" onClick={reopen} pending={reopening} pendingLabel="Reopening…">
+          <Button type="button" size="md" variant="secondary" onClick={() => reopen.mutate()} pending={reopen.isPending} pendingLabel="Reopening…">
             Reopen for changes
           </Button>
-          {reopenProblem ? (
-            <p role="alert" className="w-full font-medium text-danger">
-              {reopenProblem}
-            </p>
-          ) : null}
+          <Feedback problem={reopen.error?.message} className="w-full" />
         </div>
       ) : null}
-      <form onSubmit={start} noValidate className="space-y-4" aria-describedby="export-what">
+      <form onSubmit={submit} noValidate className="space-y-4" aria-describedby="export-what">
         <p id="export-what" className="text-sm text-ink-muted">
           Each plate becomes a 16-bit TIFF (LZW, sRGB with its profile) and a high-quality JPEG at the size its slot needs, with the credits, licence, caption, alt text and
           astronomy metadata written into every file; the bundle adds a captions file, a credits file, a metadata JSON and a PDF proof with each plate at its printed size.
@@ -118,15 +93,12 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
           <Checkbox name="cmyk" label="CMYK TIFF for the printer" hint="8-bit CMYK; the profile used is named in the bundle's metadata." />
           <Checkbox name="greyscale" label="Greyscale TIFF" hint="16-bit grey, for black-and-white pages." />
         </fieldset>
-        <Field label="File names" hint={`Fields: ${FILE_NAME_FIELDS.map((f) => `{${f}}`).join(", ")}. Unsafe characters become hyphens.`} error={problem?.fields.fileNameTemplate}>
+        <Field label="File names" hint={`Fields: ${FILE_NAME_FIELDS.map((f) => `{${f}}`).join(", ")}. Unsafe characters become hyphens.`} error={start.error?.fields.fileNameTemplate}>
           <Input name="fileNameTemplate" defaultValue={DEFAULT_FILE_NAME_TEMPLATE} spellCheck={false} autoComplete="off" />
         </Field>
-        {generalError ? (
-          <p role="alert" className="text-sm font-medium text-danger">
-            {generalError}
-          </p>
-        ) : null}
-        <Button type="submit" size="md" pending={starting} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
+        {/* A problem with the file names shows under that field. */}
+        <Feedback problem={start.error?.hasFields ? null : start.error} />
+        <Button type="submit" size="md" pending={start.isPending} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
           Make print bundle
         </Button>
         {itemCount === 0 ? <p className="text-sm text-ink-muted">Add a plate first.</p> : null}
@@ -135,11 +107,7 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
       <div>
         <h3 className="mb-2 text-lg font-semibold">Bundles</h3>
         {exports.length === 0 ? <p className="text-sm text-ink-muted">No bundles yet.</p> : null}
-        {pollProblem ? (
-          <p role="alert" className="mb-2 text-sm font-medium text-danger">
-            {pollProblem}
-          </p>
-        ) : null}
+        <Feedback problem={followed.error ? `Progress could not be read: ${followed.error.message} Reload the page to see where the export is.` : null} className="mb-2" />
         <ul className="space-y-3">
           {exports.map((e) => (
             <li key={e.id} className="rounded-control border border-line p-3">

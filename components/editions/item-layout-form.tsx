@@ -4,15 +4,16 @@
 // needs against what the rendition has follows every change at once, before
 // saving (the same sums the server and the export use, lib/editions/print-sizes.ts).
 // The server checks every value; the custom fields only show for the custom slot.
-import { useRouter } from "next/navigation";
 import { useId, useState, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
 import { compareWithRendition, CUSTOM_DPI, CUSTOM_MM, SLOT_SPECS, type PixelSize, type SlotKey, type SlotNeed } from "@/lib/editions/print-sizes";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 export interface ItemLayoutFormProps {
   editionId: string;
@@ -53,35 +54,26 @@ function comparePanel(slot: string, widthMm: string, dpi: string, rendition: str
 }
 
 export function ItemLayoutForm(props: ItemLayoutFormProps) {
-  const router = useRouter();
   const panelId = useId();
   const [slot, setSlot] = useState(props.slot);
   const [widthMm, setWidthMm] = useState(props.customWidthMm === null ? "" : String(props.customWidthMm));
   const [dpi, setDpi] = useState(String(props.customDpi ?? 300));
   const [rendition, setRendition] = useState(props.rendition);
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [done, setDone] = useState(false);
+  const save = useApiMutation((body: Record<string, unknown>) => fetchJson(`/api/editions/${props.editionId}/items/${props.itemId}`, { method: "PATCH", body }));
+  const problem = save.error;
   const panel = comparePanel(slot, widthMm, dpi, rendition, props.imageSizes);
   const unsaved = slot !== props.slot || rendition !== props.rendition || (slot === "custom" && (widthMm !== String(props.customWidthMm ?? "") || dpi !== String(props.customDpi ?? 300)));
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const form = new FormData(e.currentTarget);
-    setPending(true);
-    setProblem(null);
-    setDone(false);
-    const res = await callApi("PATCH", `/api/editions/${props.editionId}/items/${props.itemId}`, {
+    save.mutate({
       slot,
       customWidthMm: slot === "custom" ? widthMm : undefined,
       customDpi: slot === "custom" ? dpi : undefined,
       rendition,
       captionOverride: String(form.get("captionOverride") ?? ""),
     });
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    setDone(true);
-    router.refresh();
   }
 
   return (
@@ -143,19 +135,10 @@ export function ItemLayoutForm(props: ItemLayoutFormProps) {
       <Field label="Caption in this edition" hint="Printed instead of the plate's own caption. Leave empty to print the plate's own." error={problem?.fields.captionOverride}>
         <Textarea name="captionOverride" rows={2} maxLength={2000} defaultValue={props.captionOverride ?? ""} disabled={props.readOnly} />
       </Field>
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {Object.keys(problem.fields).length ? "Please correct the marked fields." : problem.message}
-        </p>
-      ) : null}
-      {done ? (
-        <p role="status" className="text-sm">
-          Saved.
-        </p>
-      ) : null}
+      <Feedback problem={problem} summarizeFields success={save.isSuccess ? "Saved." : null} />
       {props.readOnly ? null : (
         <div>
-          <Button type="submit" size="sm" pending={pending} pendingLabel="Saving…">
+          <Button type="submit" size="sm" pending={save.isPending} pendingLabel="Saving…">
             Save layout
           </Button>
         </div>

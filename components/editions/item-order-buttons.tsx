@@ -3,12 +3,13 @@
 // After a move the refreshed page puts the row in its new place: the focus goes back to
 // the button that was pressed (or its sibling, when that one is now disabled at either
 // end), and the new position is announced politely through the page's live region.
-import { useRouter } from "next/navigation";
-import { useCallback, useEffect, useRef, useState } from "react";
-import { Button } from "@/components/ui/button";
-import { useToast } from "@/components/ui/use-toast";
-import { callApi } from "@/components/forms/call-api";
+import { useCallback, useEffect, useRef } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { focusAfterMove, type OrderDirection } from "@/components/editions/order-focus";
+import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
+import { useToast } from "@/components/ui/use-toast";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 export interface ItemOrderButtonsProps {
   editionId: string;
@@ -20,15 +21,19 @@ export interface ItemOrderButtonsProps {
 }
 
 export function ItemOrderButtons({ editionId, itemId, plateTitle, position, count }: ItemOrderButtonsProps) {
-  const router = useRouter();
   const toast = useToast();
-  const [pending, setPending] = useState<OrderDirection | "remove" | null>(null);
-  const [message, setMessage] = useState<string | null>(null);
   const up = useRef<HTMLButtonElement>(null);
   const down = useRef<HTMLButtonElement>(null);
   // The move waiting for the refreshed page: which button was pressed, and where the server put the plate.
   const moved = useRef<{ pressed: OrderDirection; position: number } | null>(null);
   const base = `/api/editions/${editionId}/items/${itemId}`;
+  const move = useApiMutation((direction: OrderDirection) => fetchJson<{ position: number }>(`${base}/move`, { body: { direction } }), {
+    onSuccess: (data, direction) => {
+      moved.current = { pressed: direction, position: data.position };
+    },
+  });
+  const remove = useApiMutation(() => fetchJson(base, { method: "DELETE" }));
+  const pending: OrderDirection | "remove" | null = move.isPending ? move.variables : remove.isPending ? "remove" : null;
   const isFirst = position === 1;
   const isLast = position === count;
 
@@ -48,41 +53,28 @@ export function ItemOrderButtons({ editionId, itemId, plateTitle, position, coun
     if (pending === null) settle();
   }, [pending, settle]);
 
-  async function move(direction: OrderDirection) {
-    setPending(direction);
-    setMessage(null);
-    const res = await callApi<{ position: number }>("POST", `${base}/move`, { direction });
-    setPending(null);
-    if (!res.ok) return setMessage(res.problem.message);
-    moved.current = { pressed: direction, position: res.data.position };
-    router.refresh();
-  }
-
-  async function remove() {
-    setPending("remove");
-    setMessage(null);
-    const res = await callApi("DELETE", base);
-    setPending(null);
-    if (!res.ok) return setMessage(res.problem.message);
-    router.refresh();
-  }
+  // One message at a time: a new press forgets the other button's refusal.
+  const press = (direction: OrderDirection) => {
+    remove.reset();
+    move.mutate(direction);
+  };
+  const takeOut = () => {
+    move.reset();
+    remove.mutate();
+  };
 
   return (
     <div className="flex flex-col gap-2">
-      <Button ref={up} size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => move("up")} aria-label={`Up: move “${plateTitle}” earlier`}>
+      <Button ref={up} size="sm" disabled={isFirst} pending={pending === "up"} onClick={() => press("up")} aria-label={`Up: move “${plateTitle}” earlier`}>
         ↑ Up
       </Button>
-      <Button ref={down} size="sm" disabled={isLast} pending={pending === "down"} onClick={() => move("down")} aria-label={`Down: move “${plateTitle}” later`}>
+      <Button ref={down} size="sm" disabled={isLast} pending={pending === "down"} onClick={() => press("down")} aria-label={`Down: move “${plateTitle}” later`}>
         ↓ Down
       </Button>
-      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={remove} aria-label={`Take out “${plateTitle}”`}>
+      <Button size="sm" variant="danger" pending={pending === "remove"} pendingLabel="Removing…" onClick={takeOut} aria-label={`Take out “${plateTitle}”`}>
         Take out
       </Button>
-      {message ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {message}
-        </p>
-      ) : null}
+      <Feedback problem={move.error ?? remove.error} />
     </div>
   );
 }

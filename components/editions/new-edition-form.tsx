@@ -1,48 +1,37 @@
 "use client";
 // Starts an edition: title, newsletter or journal, issue label, optional embargo date.
 import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import type { FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
+import { formStrings } from "@/components/forms/form-values";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { fetchJson } from "@/lib/http/client-fetch";
+import { EDITION_KIND_OPTIONS } from "./edition-kinds";
 
 export function NewEditionForm() {
   const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
+  const start = useApiMutation((body: Record<string, string>) => fetchJson<{ id: string }>("/api/editions", { body }), {
+    refresh: false,
+    onSuccess: (data) => router.push(`/editions/${data.id}`),
+  });
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const form = new FormData(e.currentTarget);
-    setPending(true);
-    setProblem(null);
-    const res = await callApi<{ id: string }>("POST", "/api/editions", {
-      title: String(form.get("title") ?? ""),
-      kind: String(form.get("kind") ?? ""),
-      issueLabel: String(form.get("issueLabel") ?? ""),
-      embargoDate: String(form.get("embargoDate") ?? ""),
-    });
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    router.push(`/editions/${res.data.id}`);
+    start.mutate(formStrings(new FormData(e.currentTarget), ["title", "kind", "issueLabel", "embargoDate"]));
   }
 
+  const problem = start.error;
   return (
     <form onSubmit={submit} noValidate className="flex max-w-xl flex-col gap-4">
       <Field label="Title" required error={problem?.fields.title}>
         <Input name="title" maxLength={200} placeholder="Kestrel Ridge Bulletin, autumn 2027" />
       </Field>
       <Field label="Kind" required error={problem?.fields.kind}>
-        <Select
-          name="kind"
-          defaultValue="newsletter"
-          options={[
-            { value: "newsletter", label: "Newsletter" },
-            { value: "journal", label: "Journal" },
-          ]}
-        />
+        <Select name="kind" defaultValue="newsletter" options={EDITION_KIND_OPTIONS} />
       </Field>
       <Field label="Issue label" hint="As printed, such as “No. 41” or “Vol. 12, issue 3”." error={problem?.fields.issueLabel}>
         <Input name="issueLabel" maxLength={80} />
@@ -50,13 +39,9 @@ export function NewEditionForm() {
       <Field label="Embargo until" hint="Optional. The plates' desk pages show it." error={problem?.fields.embargoDate}>
         <Input name="embargoDate" type="date" />
       </Field>
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {problem.fields && Object.keys(problem.fields).length ? "Please correct the marked fields." : problem.message}
-        </p>
-      ) : null}
+      <Feedback problem={problem} summarizeFields />
       <div>
-        <Button type="submit" variant="primary" pending={pending} pendingLabel="Starting…">
+        <Button type="submit" variant="primary" pending={start.isPending} pendingLabel="Starting…">
           Start the edition
         </Button>
       </div>

@@ -4,9 +4,11 @@
 // answer (and any change of rendition) stays in view and takes the focus, as
 // the button it replaces is gone.
 import { useRouter } from "next/navigation";
-import { useEffect, useRef, useState, useTransition } from "react";
+import { useEffect, useRef, useTransition } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
-import { callApi } from "@/components/forms/call-api";
+import { Feedback } from "@/components/ui/feedback";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 interface Answer {
   version: number;
@@ -15,26 +17,18 @@ interface Answer {
 
 export function NewestVersionButton({ editionId, itemId, plateTitle, version, currentVersion }: { editionId: string; itemId: string; plateTitle: string; version: number; currentVersion: number }) {
   const router = useRouter();
-  const [pending, setPending] = useState(false);
   const [refreshing, startRefresh] = useTransition();
-  const [error, setError] = useState<string | null>(null);
-  const [answer, setAnswer] = useState<Answer | null>(null);
+  const take = useApiMutation(() => fetchJson<Answer>(`/api/editions/${editionId}/items/${itemId}/newest-version`, { method: "POST" }), {
+    refresh: false,
+    onSuccess: () => startRefresh(() => router.refresh()),
+  });
+  const answer = take.data;
   const done = useRef<HTMLParagraphElement>(null);
 
   // Focus the answer once the refreshed page shows the item at its new version.
   useEffect(() => {
     if (answer && version === answer.version) done.current?.focus();
   }, [answer, version]);
-
-  async function take() {
-    setPending(true);
-    setError(null);
-    const res = await callApi<Answer>("POST", `/api/editions/${editionId}/items/${itemId}/newest-version`);
-    setPending(false);
-    if (!res.ok) return setError(res.problem.message);
-    setAnswer(res.data);
-    startRefresh(() => router.refresh());
-  }
 
   if (answer && version === answer.version) {
     return (
@@ -47,14 +41,10 @@ export function NewestVersionButton({ editionId, itemId, plateTitle, version, cu
   return (
     <div className="mt-1 flex flex-col items-start gap-1">
       <p className="text-sm font-medium">Version {currentVersion} is newer.</p>
-      <Button size="sm" pending={pending || refreshing} pendingLabel="Switching…" onClick={take} aria-label={`Use version ${currentVersion} of “${plateTitle}”`}>
+      <Button size="sm" pending={take.isPending || refreshing} pendingLabel="Switching…" onClick={() => take.mutate()} aria-label={`Use version ${currentVersion} of “${plateTitle}”`}>
         Use version {currentVersion}
       </Button>
-      {error ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {error}
-        </p>
-      ) : null}
+      <Feedback problem={take.error} />
     </div>
   );
 }

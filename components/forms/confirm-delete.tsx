@@ -1,9 +1,9 @@
 "use client";
 import { useActionState, useState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 
 
 /** Delete with a confirmation dialog; the server checks ownership again. */
@@ -25,7 +25,7 @@ export function ConfirmDelete({
   const [state, formAction, pending] = useActionState(action, null);
   return (
     <>
-      {state && !state.ok ? <FormMessage tone="danger">{state.message}</FormMessage> : null}
+      <Feedback look="box" problem={state && !state.ok ? state.message : null} />
       <Button variant="danger" onClick={() => setOpen(true)}>
         Delete {thing}
       </Button>

@@ -4,7 +4,7 @@
 // answered. The answer shows as a notice (which replaces any earlier one).
 import { useActionState, useEffect, useState } from "react";
 import { useToast } from "@/components/ui/use-toast";
-import type { ActionResult, FormAction } from "./action-result";
+import type { ActionResult, FormAction } from "@/lib/http/action-result";
 
 export function useConfirmedAction(action: FormAction) {
   const [asking, setAsking] = useState(false);

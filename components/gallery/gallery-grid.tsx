@@ -1,43 +1,47 @@
 "use client";
 // The gallery's grid: the first page comes rendered from the server, later pages
 // from /api/plates as the visitor scrolls (or presses "More plates"), with the
-// same filters. Works without JavaScript up to the first page. The page keys
-// this component by its filters, so new filters start a new list.
-import { useEffect, useRef, useState } from "react";
-import type { PlateCardDto } from "@/lib/plates/public";
+// same filters, as one TanStack infinite query. Works without JavaScript up to
+// the first page. The page keys this component by its filters, so new filters
+// start a new list.
+import { useInfiniteQuery } from "@tanstack/react-query";
+import { useEffect, useRef } from "react";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
+import { fetchJson } from "@/lib/http/client-fetch";
+import type { PlateCardDto } from "@/lib/plates/public";
 import { PlateCard } from "./plate-card";
 
-export function GalleryGrid({ initial, nextCursor, query }: { initial: PlateCardDto[]; nextCursor: string | null; query: string }) {
-  const [plates, setPlates] = useState(initial);
-  const [cursor, setCursor] = useState(nextCursor);
-  const [loading, setLoading] = useState(false);
-  const [error, setError] = useState("");
-  const sentinel = useRef<HTMLDivElement>(null);
+interface PlatesPage {
+  plates: PlateCardDto[];
+  nextCursor: string | null;
+}
 
-  async function loadMore() {
-    if (!cursor || loading) return;
-    setLoading(true);
-    setError("");
-    try {
+export function GalleryGrid({ initial, nextCursor, query }: { initial: PlateCardDto[]; nextCursor: string | null; query: string }) {
+  const list = useInfiniteQuery({
+    queryKey: ["plates", query],
+    queryFn: ({ pageParam, signal }) => {
       const params = new URLSearchParams(query);
-      params.set("cursor", cursor);
-      const res = await fetch(`/api/plates?${params}`);
-      if (!res.ok) throw new Error(`the server answered ${res.status}`);
-      const page = (await res.json()) as { plates: PlateCardDto[]; nextCursor: string | null };
-      setPlates((p) => [...p, ...page.plates]);
-      setCursor(page.nextCursor);
-    } catch (err) {
-      setError(`More plates could not be loaded: ${(err as Error).message}.`);
-    } finally {
-      setLoading(false);
-    }
-  }
+      if (pageParam) params.set("cursor", pageParam);
+      return fetchJson<PlatesPage>(`/api/plates?${params}`, { signal });
+    },
+    initialPageParam: null as string | null,
+    getNextPageParam: (last) => last.nextCursor,
+    initialData: { pages: [{ plates: initial, nextCursor }], pageParams: [null] },
+    // Published plates do not need reading again while the visitor scrolls: only the next page is fetched.
+    staleTime: Infinity,
+  });
+  const plates = list.data.pages.flatMap((p) => p.plates);
+  const { hasNextPage, isFetchingNextPage, fetchNextPage } = list;
+  const loadMore = () => {
+    if (hasNextPage && !isFetchingNextPage) void fetchNextPage();
+  };
+  const sentinel = useRef<HTMLDivElement>(null);
 
   useEffect(() => {
     const el = sentinel.current;
-    if (!el || !cursor) return;
-    const io = new IntersectionObserver((entries) => entries.some((e) => e.isIntersecting) && void loadMore(), { rootMargin: "600px" });
+    if (!el || !hasNextPage) return;
+    const io = new IntersectionObserver((entries) => entries.some((e) => e.isIntersecting) && loadMore(), { rootMargin: "600px" });
     io.observe(el);
     return () => io.disconnect();
   });
@@ -51,16 +55,12 @@ export function GalleryGrid({ initial, nextCursor, query }: { initial: PlateCard
       </ul>
       <div ref={sentinel} />
       <p role="status" aria-live="polite" className="text-sm text-ink-muted">
-        {loading ? "Loading more plates…" : `${plates.length} plate${plates.length === 1 ? "" : "s"} shown${cursor ? "" : ", all that match"}.`}
+        {isFetchingNextPage ? "Loading more plates…" : `${plates.length} plate${plates.length === 1 ? "" : "s"} shown${hasNextPage ? "" : ", all that match"}.`}
       </p>
-      {error ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {error}
-        </p>
-      ) : null}
-      {cursor ? (
+      <Feedback problem={list.isFetchNextPageError && list.error ? `More plates could not be loaded. ${list.error.message}` : null} />
+      {hasNextPage ? (
         <div>
-          <Button onClick={() => void loadMore()} pending={loading} pendingLabel="Loading…">
+          <Button onClick={loadMore} pending={isFetchingNextPage} pendingLabel="Loading…">
             More plates
           </Button>
         </div>

@@ -2,13 +2,16 @@
 // "Report this plate": a visitor without an account tells the curators about a
 // rights question, an error or something else. Closed by default, so the plate
 // page stays about the plate; the server checks everything again.
-import { useId, useState, type FormEvent } from "react";
+import { useId, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
+import { formStrings } from "@/components/forms/form-values";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 const KINDS = [
   { value: "rights", label: "A rights question (who made it, who may use it)" },
@@ -18,23 +21,13 @@ const KINDS = [
 
 export function ReportPlateForm({ slug, title }: { slug: string; title: string }) {
   const headingId = useId();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [sent, setSent] = useState(false);
+  // The public page has nothing to read again after a report.
+  const report = useApiMutation((body: Record<string, string>) => fetchJson(`/api/plates/${encodeURIComponent(slug)}/reports`, { body }), { refresh: false });
+  const problem = report.error;
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const form = new FormData(e.currentTarget);
-    setPending(true);
-    setProblem(null);
-    const res = await callApi("POST", `/api/plates/${encodeURIComponent(slug)}/reports`, {
-      kind: String(form.get("kind") ?? ""),
-      message: String(form.get("message") ?? ""),
-      email: String(form.get("email") ?? ""),
-    });
-    setPending(false);
-    if (res.ok) setSent(true);
-    else setProblem(res.problem);
+    report.mutate(formStrings(new FormData(e.currentTarget), ["kind", "message", "email"]));
   }
 
   return (
@@ -44,10 +37,8 @@ export function ReportPlateForm({ slug, title }: { slug: string; title: string }
       </h2>
       <details className="mt-2">
         <summary className="cursor-pointer text-sm font-medium">Tell the curators about a rights question or an error</summary>
-        {sent ? (
-          <p role="status" className="mt-4 max-w-prose text-sm">
-            Thank you. The curators have your report on “{title}” and will answer at the address you gave.
-          </p>
+        {report.isSuccess ? (
+          <Feedback className="mt-4 max-w-prose" success={`Thank you. The curators have your report on “${title}” and will answer at the address you gave.`} />
         ) : (
           <form onSubmit={submit} noValidate className="mt-4 flex max-w-xl flex-col gap-4">
             <p className="text-sm text-ink-muted">The curators read every report. We use your address only to answer you.</p>
@@ -60,13 +51,9 @@ export function ReportPlateForm({ slug, title }: { slug: string; title: string }
             <Field label="Your e-mail address" required error={problem?.fields.email}>
               <Input name="email" type="email" autoComplete="email" required />
             </Field>
-            {problem ? (
-              <p role="alert" className="text-sm font-medium text-danger">
-                {problem.message}
-              </p>
-            ) : null}
+            <Feedback problem={problem} />
             <div>
-              <Button type="submit" variant="secondary" pending={pending} pendingLabel="Sending…">
+              <Button type="submit" variant="secondary" pending={report.isPending} pendingLabel="Sending…">
                 Send the report
               </Button>
             </div>

@@ -1,13 +1,13 @@
 "use client";
 import { useActionState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Checkbox } from "@/components/ui/checkbox";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { Textarea } from "@/components/ui/textarea";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 
 
 export interface KitValues {
@@ -47,7 +47,7 @@ export function KitForm({ action, initial, submitLabel }: { action: FormAction; 
   );
   return (
     <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex flex-col gap-5">
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Feedback look="box" result={state} />
       {initial.id ? <input type="hidden" name="id" value={initial.id} /> : null}
       <div className="grid gap-5 sm:grid-cols-2">
         <Field label="Kit name" hint="For you: e.g. “Long lens on the equatorial mount”." error={err("name")} required>

@@ -1,7 +1,7 @@
 "use client";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { useConfirmedAction } from "@/components/forms/use-confirmed-action";
 
 /** Disable a person (no sign-in, sessions end) or enable them again, after a confirmation. */

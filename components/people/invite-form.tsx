@@ -1,11 +1,11 @@
 "use client";
 import { useActionState, useState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Checkbox } from "@/components/ui/checkbox";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 
 const EXTRA_ROLES = [
   { value: "curator", label: "Curator" },
@@ -20,7 +20,7 @@ export function InviteForm({ action }: { action: FormAction }) {
   const err = (f: string) => (state && !state.ok ? state.fields?.find((x) => x.field === f)?.message : undefined);
   return (
     <form action={formAction} className="flex flex-col gap-4" key={state?.ok ? state.message : "invite"}>
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Feedback look="box" result={state} />
       <div className="grid gap-4 sm:grid-cols-2">
         <Field label="Name" required error={err("name")}>
           <Input name="name" autoComplete="off" defaultValue={state && !state.ok ? state.values?.name : undefined} />

@@ -10,6 +10,15 @@ import { SENSOR_FORMATS } from "@/lib/planner/sensor-formats";
 import type { SiteDto } from "@/lib/sites/sites";
 import { WorldPicker } from "./world-picker";
 
+const MOUNT_OPTIONS = [
+  { value: "", label: "Not given" },
+  { value: "equatorial", label: "Equatorial" },
+  { value: "alt-az", label: "Alt-azimuth" },
+  { value: "fixed-tripod", label: "Fixed tripod" },
+  { value: "hand-held", label: "Hand-held" },
+  { value: "stabilised", label: "Stabilised platform" },
+];
+
 const ZONES = ["UTC", ...Intl.supportedValuesOf("timeZone").filter((z) => z !== "UTC")];
 
 /**
@@ -85,18 +94,7 @@ export function PlannerForm({
           <Input name="focal" type="number" step="any" min={1} defaultValue={query.focal ?? ""} />
         </Field>
         <Field label="Mount" error={errorFor("mount")}>
-          <Select
-            name="mount"
-            defaultValue={query.mount ?? ""}
-            options={[
-              { value: "", label: "Not given" },
-              { value: "equatorial", label: "Equatorial" },
-              { value: "alt-az", label: "Alt-azimuth" },
-              { value: "fixed-tripod", label: "Fixed tripod" },
-              { value: "hand-held", label: "Hand-held" },
-              { value: "stabilised", label: "Stabilised platform" },
-            ]}
-          />
+          <Select name="mount" defaultValue={query.mount ?? ""} options={MOUNT_OPTIONS} />
         </Field>
         <Field label="ISO speeds" hint="Up to six, separated by commas." error={errorFor("isos")}>
           <Input name="isos" defaultValue={query.isos.join(",")} />

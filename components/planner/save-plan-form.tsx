@@ -1,10 +1,10 @@
 "use client";
 import { useActionState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { capitalize, fieldLabel } from "@/lib/field-labels";
 
 
@@ -19,11 +19,11 @@ export function SavePlanForm({ action, hidden, defaultName }: { action: FormActi
         <Input name="name" defaultValue={defaultName} maxLength={80} required />
       </Field>
       <SubmitButton variant="secondary">Save this plan</SubmitButton>
-      {state ? (
-        <FormMessage tone={state.ok ? "ok" : "danger"}>
-          {state.fields?.length ? state.fields.map((f) => `${f.field === "name" ? "Plan name" : capitalize(fieldLabel(f.field))}: ${f.message}`).join("; ") : state.message}
-        </FormMessage>
-      ) : null}
+      {/* The form has one field of its own: a refusal names each field in the message. */}
+      <Feedback
+        look="box"
+        result={state?.fields?.length ? { ...state, message: state.fields.map((f) => `${f.field === "name" ? "Plan name" : capitalize(fieldLabel(f.field))}: ${f.message}`).join("; ") } : state}
+      />
     </form>
   );
 }

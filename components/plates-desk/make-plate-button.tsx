@@ -3,11 +3,13 @@
 // finished reductions and its renditions; on a composite's page, its
 // renditions. Makes a draft plate and opens its editor.
 import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import type { FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { fetchJson } from "@/lib/http/client-fetch";
 import { RenditionsPicker } from "./renditions-picker";
 
 export interface MakePlateReduction {
@@ -27,19 +29,17 @@ export interface MakePlateButtonProps {
 export function MakePlateButton({ setId, reductions = [], compositeId }: MakePlateButtonProps) {
   const router = useRouter();
   const finished = reductions.filter((r) => r.state === "done");
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
+  const make = useApiMutation((body: Record<string, unknown>) => fetchJson<{ id: string }>("/api/review/plates", { body }), {
+    refresh: false,
+    onSuccess: (plate) => router.push(`/review/plates/${plate.id}`),
+  });
+  const problem = make.error;
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const form = new FormData(e.currentTarget);
-    setPending(true);
-    setProblem(null);
     const source = compositeId ? { compositeId } : { reductionId: String(form.get("reductionId") ?? "") };
-    const res = await callApi<{ id: string }>("POST", "/api/review/plates", { ...source, renditions: form.getAll("renditions").map(String) });
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    router.push(`/review/plates/${res.data.id}`);
+    make.mutate({ ...source, renditions: form.getAll("renditions").map(String) });
   }
 
   if (!compositeId && finished.length === 0) return <p className="text-sm text-ink-muted">No reduction of this set has finished, so no plate can be made yet.</p>;
@@ -51,13 +51,9 @@ export function MakePlateButton({ setId, reductions = [], compositeId }: MakePla
         </Field>
       )}
       <RenditionsPicker legend="Renditions to show" error={problem?.fields.renditions} />
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {problem.message}
-        </p>
-      ) : null}
+      <Feedback problem={problem} />
       <div>
-        <Button type="submit" variant="primary" pending={pending} pendingLabel="Making the plate…">
+        <Button type="submit" variant="primary" pending={make.isPending} pendingLabel="Making the plate…">
           Make a plate
         </Button>
       </div>

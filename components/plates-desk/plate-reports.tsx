@@ -1,48 +1,38 @@
 "use client";
 // Reports from the public on one plate, open first, each with its answer form.
-import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import type { FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
-import type { PlateReportDto } from "@/lib/plates/reports";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
 import { formatDate, formatDateTime } from "@/lib/format/dates";
+import { fetchJson } from "@/lib/http/client-fetch";
+import type { PlateReportDto } from "@/lib/plates/reports";
 
 const KIND_LABEL = { rights: "Rights", error: "Error", other: "Other" } as const;
 
 function AnswerForm({ plateId, reportId }: { plateId: string; reportId: string }) {
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
+  const send = useApiMutation((body: { answer: string; close: boolean }) => fetchJson(`/api/review/plates/${plateId}/reports/${reportId}/answer`, { body }));
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const form = new FormData(e.currentTarget);
-    setPending(true);
-    setProblem(null);
-    const res = await callApi("POST", `/api/review/plates/${plateId}/reports/${reportId}/answer`, { answer: String(form.get("answer") ?? ""), close: form.get("close") === "on" });
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    router.refresh();
+    send.mutate({ answer: String(form.get("answer") ?? ""), close: form.get("close") === "on" });
   }
 
   return (
     <form onSubmit={submit} noValidate className="mt-3 flex flex-col gap-2">
-      <Field label="Answer to the reporter (sent by e-mail)" required error={problem?.fields.answer}>
+      <Field label="Answer to the reporter (sent by e-mail)" required error={send.error?.fields.answer}>
         <Textarea name="answer" rows={3} maxLength={4000} />
       </Field>
       <label className="flex items-center gap-2 text-sm">
         <input type="checkbox" name="close" defaultChecked /> Close the report with this answer
       </label>
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {problem.message}
-        </p>
-      ) : null}
+      <Feedback problem={send.error} />
       <div>
-        <Button type="submit" size="sm" pending={pending} pendingLabel="Sending…">
+        <Button type="submit" size="sm" pending={send.isPending} pendingLabel="Sending…">
           Send the answer
         </Button>
       </div>

@@ -4,14 +4,15 @@
 // happen (the photographer is told by e-mail) and repeats the licence warning
 // where the plate carries a Creative Commons licence. The server decides what
 // is allowed; the buttons offered follow the plate's state.
-import { useRouter } from "next/navigation";
 import { useRef, useState, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
 import { Dialog } from "@/components/ui/dialog";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateLicence, PlateState, WithdrawalKind } from "@/db/schema/plates";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 import { licenceWarning } from "@/lib/plates/licences";
 import { STATE_LABELS, type ReviewState } from "@/lib/review/state-machine";
 
@@ -41,41 +42,38 @@ const SUCCESS: Record<string, string> = {
 const toldLine = (isComposite: boolean) => (isComposite ? " The photographers have been told by e-mail." : " The photographer has been told by e-mail.");
 
 export function PlateStateActions({ plateId, title, state, withdrawnKind, licence, photographer, setState, isComposite = false }: PlateStateActionsProps) {
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [done, setDone] = useState<string | null>(null);
   const [asking, setAsking] = useState<Move | null>(null);
+  // A withdrawal without its reason, caught before the dialog opens.
+  const [missingReason, setMissingReason] = useState<ApiProblem | null>(null);
   const reasonRef = useRef<HTMLTextAreaElement>(null);
   const warning = licenceWarning(licence);
+  const move = useApiMutation(
+    (m: Move) =>
+      m.kind === "withdraw"
+        ? fetchJson(`/api/review/plates/${plateId}/withdraw`, { body: { reason: m.reason, kind: m.how } })
+        : fetchJson(`/api/review/plates/${plateId}/${m.kind}`, { method: "POST" }),
+    { onSuccess: () => setAsking(null), onError: () => setAsking(null) },
+  );
+  const pending = move.isPending;
+  const problem = missingReason ?? move.error;
+  const done = move.isSuccess && move.variables ? `${SUCCESS[move.variables.kind === "withdraw" ? `withdraw-${move.variables.how}` : move.variables.kind]}${toldLine(isComposite)}` : null;
 
-  async function run(move: Move) {
-    setPending(true);
-    setProblem(null);
-    setDone(null);
-    const [url, body, key] =
-      move.kind === "withdraw"
-        ? [`/api/review/plates/${plateId}/withdraw`, { reason: move.reason, kind: move.how }, `withdraw-${move.how}`]
-        : [`/api/review/plates/${plateId}/${move.kind}`, undefined, move.kind];
-    const res = await callApi("POST", url, body);
-    setPending(false);
-    setAsking(null);
-    if (!res.ok) return setProblem(res.problem);
-    setDone(`${SUCCESS[key]}${toldLine(isComposite)}`);
-    router.refresh();
+  function run(m: Move) {
+    setMissingReason(null);
+    move.mutate(m);
   }
 
   function askWithdraw(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
     const how = (e.nativeEvent as SubmitEvent).submitter?.getAttribute("value") as WithdrawalKind;
     const reason = String(new FormData(e.currentTarget).get("reason") ?? "").trim();
-    setDone(null);
+    move.reset();
     if (!reason) {
-      setProblem({ message: "Give the reason for withdrawing: the public page shows it.", fields: { reason: "Give the reason; the public page shows it." } });
+      setMissingReason(ApiProblem.local("Give the reason for withdrawing: the public page shows it.", { reason: "Give the reason; the public page shows it." }));
       reasonRef.current?.focus();
       return;
     }
-    setProblem(null);
+    setMissingReason(null);
     setAsking({ kind: "withdraw", how, reason });
   }
 
@@ -124,16 +122,7 @@ export function PlateStateActions({ plateId, title, state, withdrawnKind, licenc
         </form>
       ) : null}
       {state === "withdrawn" && withdrawnKind === "permanent" ? <p className="text-sm">Withdrawn for good: the plate keeps its public record and takes no further changes.</p> : null}
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {problem.message}
-        </p>
-      ) : null}
-      {done ? (
-        <p role="status" className="text-sm">
-          {done}
-        </p>
-      ) : null}
+      <Feedback problem={problem} success={done} />
       <Dialog
         open={asking !== null}
         onClose={() => setAsking(null)}

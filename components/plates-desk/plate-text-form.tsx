@@ -2,17 +2,18 @@
 // What the public reads of a plate: title, caption (40 words, counted as the
 // curator types with the same countWords the server applies), description, alt
 // text, the two credits, the licence and the link name.
-import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
 import type { PlateLicence } from "@/db/schema/plates";
+import { fetchJson } from "@/lib/http/client-fetch";
 import { CAPTION_MAX_WORDS, countWords, type PlateTexts } from "@/lib/plates/desk-input";
 import { LICENCE_INFO, licenceWarning } from "@/lib/plates/licences";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
 
 export interface PlateTextValues extends PlateTexts {
   slug: string;
@@ -43,30 +44,22 @@ const FIELD_NAMES: Record<string, string> = {
 };
 
 export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOnly }: PlateTextFormProps) {
-  const router = useRouter();
   const [v, setV] = useState<PlateTextValues>(values);
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [saved, setSaved] = useState<string | null>(null);
+  const save = useApiMutation((texts: PlateTextValues) => fetchJson<{ changed: string[] }>(`/api/review/plates/${plateId}`, { method: "PATCH", body: texts }));
+  const problem = save.error;
+  const saved = save.data ? (save.data.changed.length ? `Saved: ${save.data.changed.map((f) => FIELD_NAMES[f] ?? f).join(", ")}.` : "Nothing had changed.") : null;
   const words = countWords(v.caption);
   const over = words > CAPTION_MAX_WORDS;
   const set = (k: keyof PlateTextValues) => (e: { target: { value: string } }) => setV((old) => ({ ...old, [k]: e.target.value }));
 
-  async function save(e: FormEvent) {
+  function submit(e: FormEvent) {
     e.preventDefault();
-    setPending(true);
-    setProblem(null);
-    setSaved(null);
-    const res = await callApi<{ changed: string[] }>("PATCH", `/api/review/plates/${plateId}`, v);
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    setSaved(res.data.changed.length ? `Saved: ${res.data.changed.map((f) => FIELD_NAMES[f] ?? f).join(", ")}.` : "Nothing had changed.");
-    router.refresh();
+    save.mutate(v);
   }
 
   const isCc = v.licence !== "all-rights-reserved";
   return (
-    <form onSubmit={save} noValidate className="flex max-w-3xl flex-col gap-5">
+    <form onSubmit={submit} noValidate className="flex max-w-3xl flex-col gap-5">
       <fieldset disabled={readOnly} className="flex flex-col gap-5">
         <Field label="Title" required error={problem?.fields.title}>
           <Input name="title" value={v.title} onChange={set("title")} maxLength={160} />
@@ -121,19 +114,10 @@ export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOn
           <Input name="slug" value={v.slug} onChange={set("slug")} readOnly={slugLocked} />
         </Field>
       </fieldset>
-      {problem ? (
-        <p role="alert" className="text-sm font-medium text-danger">
-          {problem.message}
-        </p>
-      ) : null}
-      {saved ? (
-        <p role="status" className="text-sm">
-          {saved}
-        </p>
-      ) : null}
+      <Feedback problem={problem} success={saved} />
       {readOnly ? null : (
         <div>
-          <Button type="submit" variant="primary" pending={pending} pendingLabel="Saving…">
+          <Button type="submit" variant="primary" pending={save.isPending} pendingLabel="Saving…">
             Save the texts
           </Button>
         </div>

@@ -2,16 +2,17 @@
 // A plate's versions with their permanent links, and the form that replaces
 // the reduction (or composite) it shows (version n+1 with a change note).
 import Link from "next/link";
-import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
+import { useRef, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
 import type { DeskPlateDto } from "@/lib/plates/desk-view";
-import { callApi, type ApiProblem } from "@/components/forms/call-api";
-import { RenditionsPicker } from "./renditions-picker";
 import { formatDate, formatDateTime } from "@/lib/format/dates";
+import { fetchJson } from "@/lib/http/client-fetch";
+import { RenditionsPicker } from "./renditions-picker";
 
 export interface PlateVersionsProps {
   plateId: string;
@@ -25,28 +26,19 @@ export interface PlateVersionsProps {
 
 export function PlateVersions({ plateId, currentVersion, versions, finishedReductions, sourceKind, readOnly }: PlateVersionsProps) {
   const field = sourceKind === "composite" ? "compositeId" : "reductionId";
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [problem, setProblem] = useState<ApiProblem | null>(null);
-  const [done, setDone] = useState<string | null>(null);
+  const formRef = useRef<HTMLFormElement>(null);
+  const add = useApiMutation(
+    (form: FormData) =>
+      fetchJson<{ version: number }>(`/api/review/plates/${plateId}/versions`, {
+        body: { [field]: String(form.get(field) ?? ""), renditions: form.getAll("renditions").map(String), changeNote: String(form.get("changeNote") ?? "") },
+      }),
+    { onSuccess: () => formRef.current?.reset() },
+  );
+  const problem = add.error;
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const formEl = e.currentTarget;
-    const form = new FormData(formEl);
-    setPending(true);
-    setProblem(null);
-    setDone(null);
-    const res = await callApi<{ version: number }>("POST", `/api/review/plates/${plateId}/versions`, {
-      [field]: String(form.get(field) ?? ""),
-      renditions: form.getAll("renditions").map(String),
-      changeNote: String(form.get("changeNote") ?? ""),
-    });
-    setPending(false);
-    if (!res.ok) return setProblem(res.problem);
-    setDone(`Version ${res.data.version} is now the current one.`);
-    formEl.reset();
-    router.refresh();
+    add.mutate(new FormData(e.currentTarget));
   }
 
   return (
@@ -63,7 +55,7 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
         ))}
       </ol>
       {readOnly ? null : (
-        <form onSubmit={submit} noValidate className="flex max-w-xl flex-col gap-3">
+        <form ref={formRef} onSubmit={submit} noValidate className="flex max-w-xl flex-col gap-3">
           <h3 className="text-base font-semibold">{sourceKind === "composite" ? "Replace the composite (new version)" : "Replace the reduction (new version)"}</h3>
           <Field label={sourceKind === "composite" ? "Composite" : "Reduction"} required error={problem?.fields[field]}>
             <Select
@@ -81,18 +73,9 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
           <Field label="Change note" required hint="Shown beside the version on the public page." error={problem?.fields.changeNote}>
             <Textarea name="changeNote" rows={2} maxLength={500} />
           </Field>
-          {problem ? (
-            <p role="alert" className="text-sm font-medium text-danger">
-              {problem.message}
-            </p>
-          ) : null}
-          {done ? (
-            <p role="status" className="text-sm">
-              {done}
-            </p>
-          ) : null}
+          <Feedback problem={problem} success={add.data ? `Version ${add.data.version} is now the current one.` : null} />
           <div>
-            <Button type="submit" pending={pending} pendingLabel="Adding the version…">
+            <Button type="submit" pending={add.isPending} pendingLabel="Adding the version…">
               Add the version
             </Button>
           </div>

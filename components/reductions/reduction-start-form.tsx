@@ -1,23 +1,21 @@
 "use client";
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
 import { Checkbox } from "@/components/ui/checkbox";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
+import { markedFieldsMessage } from "@/lib/http/action-result";
+import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
 import type { RunChoice } from "@/lib/reductions/run-options";
 import { DEFAULT_FILTER_STRENGTH, OUTPUT_LONG_SIDES_PX, REGISTRATION_MODES, reductionParamsSchema, type ReductionParamsInput, type RegistrationModeInput } from "@/lib/reductions/schemas";
 import { fieldProblems } from "@/lib/validation";
 import { FILTER_LABELS, OUTPUT_SIZE_LABEL, REGISTRATION_LABELS } from "./labels";
 
 type FieldName = "registration" | "filter" | "filterStrength" | "outputLongSidePx" | "recoverResponse" | "groupNumber";
-
-interface Problem {
-  field: string;
-  message: string;
-}
 
 /** The form's values as the schema takes them (strings are coerced by it). */
 function readForm(form: HTMLFormElement): Record<string, unknown> {
@@ -71,56 +69,39 @@ export function ReductionStartForm({
     else notes.push({ modes: [m], note, isOffered: isOffered(m) });
   }
   const short = (m: RegistrationModeInput) => REGISTRATION_LABELS[m].replace(/ \(.*\)$/, "");
-  const [problems, setProblems] = useState<Problem[]>([]);
-  const [message, setMessage] = useState<string | null>(null);
-  const [started, setStarted] = useState<string | null>(null);
-  const [pending, setPending] = useState(false);
-  const err = (field: FieldName) => problems.find((p) => p.field === field)?.message;
-
-  async function handleSubmit(event: FormEvent<HTMLFormElement>) {
-    event.preventDefault();
-    setMessage(null);
-    setStarted(null);
-    const raw = readForm(event.currentTarget);
-    const checked = reductionParamsSchema.safeParse(raw);
-    if (!checked.success) {
-      const found = fieldProblems(checked.error, raw).map((p) => ({ field: p.field.split(".")[0], message: p.message }));
-      setProblems(found);
-      setMessage(`Please correct ${found.length === 1 ? "the marked field" : `the ${found.length} marked fields`}.`);
-      return;
-    }
-    setProblems([]);
-    setPending(true);
-    try {
-      const res = await fetch(`/api/bracket-sets/${encodeURIComponent(setId)}/reductions`, {
-        method: "POST",
-        headers: { "content-type": "application/json" },
-        body: JSON.stringify(checked.data),
-      });
-      const body = (await res.json().catch(() => null)) as { id?: string; error?: { message: string; fields?: Problem[] } } | null;
-      if (res.ok && body?.id) {
-        if (stayHere) {
-          setStarted("Re-reduction started. It is queued and shows in the list of reductions, with its progress.");
-          router.refresh();
-        } else {
-          router.push(`/studio/reductions/${body.id}`);
-        }
-        return;
+  const start = useApiMutation(
+    async (raw: Record<string, unknown>) => {
+      // The server's own schema, in the browser first: problems show under their labels before anything is sent.
+      const checked = reductionParamsSchema.safeParse(raw);
+      if (!checked.success) {
+        const found = fieldProblems(checked.error, raw);
+        throw ApiProblem.local(markedFieldsMessage(found.length), Object.fromEntries(found.map((p) => [p.field.split(".")[0], p.message])));
       }
-      const fields = body?.error?.fields ?? [];
-      setProblems(fields);
-      setMessage(fields.length ? `Please correct ${fields.length === 1 ? "the marked field" : `the ${fields.length} marked fields`}.` : (body?.error?.message ?? `The reduction could not be started (status ${res.status}).`));
-    } catch {
-      setMessage("The server could not be reached. Check the connection and try again.");
-    } finally {
-      setPending(false);
-    }
+      return fetchJson<{ id: string }>(`/api/bracket-sets/${encodeURIComponent(setId)}/reductions`, { body: checked.data });
+    },
+    {
+      // The review desk stays and reads its list again; elsewhere the browser goes to the new reduction's page.
+      refresh: stayHere,
+      onSuccess: (reduction) => {
+        if (!stayHere) router.push(`/studio/reductions/${reduction.id}`);
+      },
+    },
+  );
+  const err = (field: FieldName) => start.error?.fields[field];
+
+  function handleSubmit(event: FormEvent<HTMLFormElement>) {
+    event.preventDefault();
+    start.mutate(readForm(event.currentTarget));
   }
 
   return (
     <form onSubmit={handleSubmit} noValidate className="flex flex-col gap-5">
-      {message ? <FormMessage tone="danger">{message}</FormMessage> : null}
-      {started ? <FormMessage tone="ok">{started}</FormMessage> : null}
+      <Feedback
+        look="box"
+        problem={start.error}
+        summarizeFields
+        success={start.isSuccess && stayHere ? "Re-reduction started. It is queued and shows in the list of reductions, with its progress." : null}
+      />
       <div className="grid grid-cols-1 gap-5 sm:grid-cols-2">
         <Field
           label="Align frames on"
@@ -166,7 +147,7 @@ export function ReductionStartForm({
         {err("recoverResponse") ? <p className="mt-1 text-sm font-medium text-danger">{err("recoverResponse")}</p> : null}
       </div>
       <div>
-        <Button type="submit" variant="primary" pending={pending} pendingLabel="Starting…">
+        <Button type="submit" variant="primary" pending={start.isPending} pendingLabel="Starting…">
           {submitLabel}
         </Button>
       </div>

@@ -1,14 +1,14 @@
 "use client";
 // The curator's decision on one set. Only the actions the state machine
 // allows from the set's state are offered; the server checks again.
-import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
-import { ApiError, callApi } from "@/components/bracket-sets/api-client";
-import { FormMessage } from "@/components/auth/form-message";
+import { useRef, useState, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
 import { Textarea } from "@/components/ui/textarea";
+import { fetchJson } from "@/lib/http/client-fetch";
 import { ACTION_LABELS, TRANSITIONS, type CuratorAction } from "@/lib/review/state-machine";
 
 export interface ReasonOption {
@@ -35,38 +35,28 @@ export function DecisionForm({
   changeReasons: ReasonOption[];
   rejectionReasons: ReasonOption[];
 }) {
-  const router = useRouter();
   const [chosen, setAction] = useState<CuratorAction>(actions[0]);
   // After a decision the page offers other actions; fall back to the first one open.
   const action = actions.includes(chosen) ? chosen : actions[0];
-  const [pending, setPending] = useState(false);
-  const [result, setResult] = useState<{ ok: boolean; text: string; fields: Record<string, string> } | null>(null);
+  const formRef = useRef<HTMLFormElement>(null);
+  const decide = useApiMutation((body: { action: CuratorAction; reasonCode?: string; message?: string; note?: string }) => fetchJson(`/api/review/sets/${setId}/decisions`, { body }), {
+    onSuccess: () => formRef.current?.reset(),
+  });
+  const fields = decide.error?.fields;
   const reasons = action === "request-changes" ? changeReasons : action === "reject" ? rejectionReasons : [];
   const requires = TRANSITIONS[action].requires as readonly string[];
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const formEl = e.currentTarget;
-    const form = new FormData(formEl);
+    const form = new FormData(e.currentTarget);
     const text = (k: string) => String(form.get(k) ?? "").trim() || undefined;
-    setPending(true);
-    setResult(null);
-    try {
-      await callApi(`/api/review/sets/${setId}/decisions`, { body: { action, reasonCode: text("reasonCode"), message: text("message"), note: text("note") } });
-      setResult({ ok: true, text: `Done: ${ACTION_LABELS[action]}. The photographer has been told by e-mail.`, fields: {} });
-      formEl.reset();
-      router.refresh();
-    } catch (err) {
-      const fields = err instanceof ApiError ? Object.fromEntries(err.fields.map((f) => [f.field, f.message])) : {};
-      setResult({ ok: false, text: (err as Error).message, fields });
-    } finally {
-      setPending(false);
-    }
+    decide.mutate({ action, reasonCode: text("reasonCode"), message: text("message"), note: text("note") });
   }
 
+  const decided = decide.variables?.action;
   return (
-    <form onSubmit={(e) => void submit(e)} className="flex max-w-2xl flex-col gap-5" noValidate>
-      {result ? <FormMessage tone={result.ok ? "ok" : "danger"}>{result.text}</FormMessage> : null}
+    <form ref={formRef} onSubmit={submit} className="flex max-w-2xl flex-col gap-5" noValidate>
+      <Feedback look="box" problem={decide.error} success={decide.isSuccess && decided ? `Done: ${ACTION_LABELS[decided]}. The photographer has been told by e-mail.` : null} />
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 font-semibold">Decision</legend>
         {actions.map((a) => (
@@ -80,7 +70,7 @@ export function DecisionForm({
         ))}
       </fieldset>
       {reasons.length ? (
-        <Field label="Reason" error={result?.fields.reasonCode} required>
+        <Field label="Reason" error={fields?.reasonCode} required>
           <Select key={action} name="reasonCode" placeholder="Choose a reason" options={reasons} required defaultValue="" />
         </Field>
       ) : null}
@@ -88,7 +78,7 @@ export function DecisionForm({
         <Field
           label="Message to the photographer"
           hint="Sent by e-mail and shown on their set's page."
-          error={result?.fields.message}
+          error={fields?.message}
           required={requires.includes("message")}
         >
           <Textarea name="message" rows={4} maxLength={4000} />
@@ -97,13 +87,13 @@ export function DecisionForm({
       <Field
         label={action === "reopen" ? "Why the decision is taken back (private)" : "Private note for curators"}
         hint="Only curators read it; it is never shown or sent to the photographer."
-        error={result?.fields.note}
+        error={fields?.note}
         required={requires.includes("note")}
       >
         <Textarea name="note" rows={3} maxLength={4000} />
       </Field>
       <div>
-        <Button type="submit" variant={action === "reject" ? "danger" : "primary"} pending={pending} pendingLabel="Saving…">
+        <Button type="submit" variant={action === "reject" ? "danger" : "primary"} pending={decide.isPending} pendingLabel="Saving…">
           {ACTION_LABELS[action][0].toUpperCase() + ACTION_LABELS[action].slice(1)}
         </Button>
       </div>

@@ -9,6 +9,7 @@ import { useEffect, useId, useRef, useState } from "react";
 import { Button } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
+import { deepZoomOptions } from "@/components/viewer/deep-zoom-options";
 
 export interface ComparisonChoice {
   /** Unique among the choices, e.g. "<reduction id>:structure". */
@@ -50,18 +51,7 @@ export function LinkedComparison({ choices }: { choices: ComparisonChoice[] }) {
       for (const side of [0, 1] as Side[]) {
         const host = hosts.current[side];
         if (!host) continue;
-        const viewer = osd({
-          element: host,
-          showNavigationControl: false,
-          cooperativeGestures: true,
-          crossOriginPolicy: "Anonymous",
-          visibilityRatio: 0.4,
-          minZoomImageRatio: 0.8,
-          maxZoomPixelRatio: 4,
-          animationTime: window.matchMedia?.("(prefers-reduced-motion: reduce)").matches ? 0.05 : 0.6,
-          gestureSettingsMouse: { clickToZoom: false, dblClickToZoom: true },
-          gestureSettingsTouch: { pinchRotate: false },
-        });
+        const viewer = osd(deepZoomOptions(host, { minZoomImageRatio: 0.8, animationTimeS: 0.6 }));
         viewer.addHandler("canvas-key", (e) => {
           if (BLOCKED_KEYS.has(e.originalEvent.code)) e.preventDefaultAction = true;
         });

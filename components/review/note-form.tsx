@@ -1,42 +1,31 @@
 "use client";
-import { useRouter } from "next/navigation";
-import { useState, type FormEvent } from "react";
-import { ApiError, callApi } from "@/components/bracket-sets/api-client";
-import { FormMessage } from "@/components/auth/form-message";
+import { useRef, type FormEvent } from "react";
+import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
+import { fetchJson } from "@/lib/http/client-fetch";
 
 /** Adds a private note for the other curators, without a decision. */
 export function NoteForm({ setId }: { setId: string }) {
-  const router = useRouter();
-  const [pending, setPending] = useState(false);
-  const [result, setResult] = useState<{ ok: boolean; text: string; field?: string } | null>(null);
+  const formRef = useRef<HTMLFormElement>(null);
+  const keep = useApiMutation((text: string) => fetchJson(`/api/review/sets/${setId}/notes`, { body: { body: text } }), {
+    onSuccess: () => formRef.current?.reset(),
+  });
 
-  async function submit(e: FormEvent<HTMLFormElement>) {
+  function submit(e: FormEvent<HTMLFormElement>) {
     e.preventDefault();
-    const formEl = e.currentTarget;
-    setPending(true);
-    setResult(null);
-    try {
-      await callApi(`/api/review/sets/${setId}/notes`, { body: { body: String(new FormData(formEl).get("body") ?? "") } });
-      setResult({ ok: true, text: "Note kept." });
-      formEl.reset();
-      router.refresh();
-    } catch (err) {
-      setResult({ ok: false, text: (err as Error).message, field: err instanceof ApiError ? err.fields.find((f) => f.field === "body")?.message : undefined });
-    } finally {
-      setPending(false);
-    }
+    keep.mutate(String(new FormData(e.currentTarget).get("body") ?? ""));
   }
   return (
-    <form onSubmit={(e) => void submit(e)} className="flex max-w-2xl flex-col gap-3" noValidate>
-      {result ? <FormMessage tone={result.ok ? "ok" : "danger"}>{result.text}</FormMessage> : null}
-      <Field label="New private note" hint="Only curators read it." error={result?.field} required>
+    <form ref={formRef} onSubmit={submit} className="flex max-w-2xl flex-col gap-3" noValidate>
+      <Feedback look="box" problem={keep.error} success={keep.isSuccess ? "Note kept." : null} />
+      <Field label="New private note" hint="Only curators read it." error={keep.error?.fields.body} required>
         <Textarea name="body" rows={3} maxLength={4000} />
       </Field>
       <div>
-        <Button type="submit" size="sm" pending={pending} pendingLabel="Saving…">
+        <Button type="submit" size="sm" pending={keep.isPending} pendingLabel="Saving…">
           Keep note
         </Button>
       </div>

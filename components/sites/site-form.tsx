@@ -1,11 +1,11 @@
 "use client";
 import { useActionState, useState, type ChangeEvent } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 import { MAX_TRACK_CHARS, MAX_TRACK_LABEL } from "@/lib/sites/limits";
 import type { SiteDto } from "@/lib/sites/sites";
 
@@ -47,7 +47,7 @@ export function SiteForm({ action, site }: { action: FormAction; site?: SiteDto 
 
   return (
     <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex flex-col gap-5">
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Feedback look="box" result={state} />
       {site ? <input type="hidden" name="id" value={site.id} /> : null}
       <Field label="Site name" hint="Yours only: for example “Luxor, the hotel roof” or “MV Sfax Star, deck 6”. Public pages never show it." error={err("name")} required>
         <Input name="name" defaultValue={v("name", initial("name"))} required maxLength={80} />

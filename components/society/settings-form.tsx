@@ -1,12 +1,12 @@
 "use client";
 import { useActionState } from "react";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
 import { Select } from "@/components/ui/select";
 import { SubmitButton } from "@/components/ui/submit-button";
 import { Textarea } from "@/components/ui/textarea";
-import type { FormAction } from "@/components/forms/action-result";
+import type { FormAction } from "@/lib/http/action-result";
 
 
 export function SettingsForm({
@@ -32,7 +32,7 @@ export function SettingsForm({
   const v = (name: keyof typeof initial) => state?.values?.[name] ?? initial[name];
   return (
     <form key={state ? JSON.stringify(state.values ?? {}) : "initial"} action={formAction} className="flex max-w-2xl flex-col gap-5">
-      {state ? <FormMessage tone={state.ok ? "ok" : "danger"}>{state.message}</FormMessage> : null}
+      <Feedback look="box" result={state} />
       <Field label="Society name" error={err("name")} required>
         <Input name="name" defaultValue={v("name")} required maxLength={120} />
       </Field>

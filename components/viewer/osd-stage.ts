@@ -4,6 +4,7 @@
 // image, and a small store of the image-to-screen map that the overlay layer
 // reads on every frame. Loaded only in the browser (see plate-viewer.tsx).
 import type OpenSeadragon from "openseadragon";
+import { deepZoomOptions } from "./deep-zoom-options";
 import type { ImageToScreen } from "./overlay-geometry";
 import type { RenditionKey, ViewerRendition } from "./types";
 import type { VisibleRegion } from "./view-state";
@@ -90,19 +91,9 @@ export class PlateStage {
     // Unmounted while the script loaded (React's development double mount does this): build nothing.
     if (isCancelled()) return null;
     const viewer = osd({
-      element: host,
-      showNavigationControl: false,
-      cooperativeGestures: true,
-      crossOriginPolicy: "Anonymous",
-      visibilityRatio: 0.4,
-      minZoomImageRatio: 0.5,
-      maxZoomPixelRatio: 4,
-      // People who ask for less motion get jumps that are nearly immediate (a spring still needs a little time).
-      animationTime: window.matchMedia?.("(prefers-reduced-motion: reduce)").matches ? 0.05 : 0.8,
+      ...deepZoomOptions(host, { minZoomImageRatio: 0.5, animationTimeS: 0.8, flickEnabled: true }),
       rotationIncrement: ROTATION_STEP_DEG,
       zoomPerScroll: ZOOM_STEP,
-      gestureSettingsMouse: { clickToZoom: false, dblClickToZoom: true },
-      gestureSettingsTouch: { pinchRotate: false, flickEnabled: true },
     });
     const stage = new PlateStage(osd, viewer, renditions, events);
     stage.listen();

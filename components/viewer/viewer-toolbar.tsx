@@ -13,6 +13,22 @@ const SEGMENT =
   "bg-surface-raised hover:bg-surface-hover disabled:cursor-not-allowed disabled:opacity-50 " +
   "aria-pressed:bg-accent aria-pressed:text-on-accent first:rounded-l-control last:rounded-r-control focus-visible:relative focus-visible:z-10";
 
+/** Quarter-turn arrows, one the mirror of the other. */
+const TURN_ICONS = {
+  left: (
+    <>
+      <path d="M9 4 5 8l4 4" />
+      <path d="M5 8h8a6 6 0 0 1 0 12h-2" />
+    </>
+  ),
+  right: (
+    <>
+      <path d="m15 4 4 4-4 4" />
+      <path d="M19 8h-8a6 6 0 0 0 0 12h2" />
+    </>
+  ),
+};
+
 function Segment({
   label,
   onClick,
@@ -107,30 +123,8 @@ export function ViewerToolbar(p: ViewerToolbarProps) {
         />
       </Group>
       <Group name="Turn" note={p.disabled ? undefined : `${Math.round(p.rotationDeg)}°`}>
-        <Segment
-          label="Turn a quarter left"
-          keys="Shift+R"
-          onClick={p.onRotateLeft}
-          disabled={p.disabled}
-          icon={
-            <>
-              <path d="M9 4 5 8l4 4" />
-              <path d="M5 8h8a6 6 0 0 1 0 12h-2" />
-            </>
-          }
-        />
-        <Segment
-          label="Turn a quarter right"
-          keys="R"
-          onClick={p.onRotateRight}
-          disabled={p.disabled}
-          icon={
-            <>
-              <path d="m15 4 4 4-4 4" />
-              <path d="M19 8h-8a6 6 0 0 0 0 12h2" />
-            </>
-          }
-        />
+        <Segment label="Turn a quarter left" keys="Shift+R" onClick={p.onRotateLeft} disabled={p.disabled} icon={TURN_ICONS.left} />
+        <Segment label="Turn a quarter right" keys="R" onClick={p.onRotateRight} disabled={p.disabled} icon={TURN_ICONS.right} />
       </Group>
       <Group name="View">
         <Segment

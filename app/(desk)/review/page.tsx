@@ -2,20 +2,21 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { PageTitle } from "@/components/page-title";
-import { QueueTable, type QueueColumn } from "@/components/review/queue-table";
+import { QueueTable, type QueueColumn, type QueueColumnKey } from "@/components/review/queue-table";
 import { buttonClasses } from "@/components/ui/button";
 import { EmptyState } from "@/components/ui/empty-state";
+import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
 import { getDb } from "@/db/client";
-import { listReviewQueue, QUEUE_STATES, queueQuerySchema, type QueueQuery, type QueueSort } from "@/lib/review/queue";
+import { listReviewQueue, QUEUE_STATES, queueQuerySchema, type QueueQuery } from "@/lib/review/queue";
 import { STATE_LABELS } from "@/lib/review/state-machine";
 import { fieldProblems, summarizeProblems } from "@/lib/validation";
 import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Review desk" };
 
-const COLUMNS: { key: QueueSort | "reductions" | "assigned"; label: string; sortable: boolean }[] = [
+const COLUMNS: { key: QueueColumnKey; label: string; sortable: boolean }[] = [
   { key: "submitted", label: "Sent", sortable: true },
   { key: "name", label: "Bracket set", sortable: true },
   { key: "photographer", label: "Photographer", sortable: true },
@@ -48,10 +49,10 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
     };
     return new URLSearchParams(Object.entries(merged).filter((e): e is [string, string] => !!e[1])).toString();
   };
-  const columns: QueueColumn[] = COLUMNS.map((c, i) => {
+  const columns: QueueColumn[] = COLUMNS.map((c) => {
     const active = c.sortable && c.key === query.sort;
     return {
-      key: `${c.key}-${i}`,
+      key: c.key,
       label: c.label,
       direction: active ? (query.dir === "asc" ? "ascending" : "descending") : "none",
       href: c.sortable ? `/review?${params({ sort: c.key, dir: active && query.dir === "asc" ? "desc" : "asc", page: "1" })}` : undefined,
@@ -64,11 +65,7 @@ export default async function ReviewQueuePage({ searchParams }: { searchParams: 
       <PageTitle title="Review desk" lead="Bracket sets members have sent for review, and the decisions taken on them. Open a set to look at its frames and reductions and decide.">
         <Link href="/review/plates">Plates: drafts, published, withdrawn, reports</Link>
       </PageTitle>
-      {problems.length ? (
-        <p role="alert" className="mb-4 text-danger">
-          Ignored a filter in the address: {summarizeProblems(problems)}
-        </p>
-      ) : null}
+      <Feedback className="mb-4" problem={problems.length ? `Ignored a filter in the address: ${summarizeProblems(problems)}` : null} />
 
       <nav aria-label="Sets by state" className="mb-4">
         <ul className="flex flex-wrap gap-2">

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { EclipseFilterForm } from "@/components/eclipses/eclipse-filter-form";
 import { EclipseTable } from "@/components/eclipses/eclipse-table";
 import { PageTitle } from "@/components/page-title";
@@ -23,7 +23,7 @@ export default async function EclipsesPage({ searchParams }: { searchParams: Pro
       />
       {problems.length ? (
         <div className="mb-6">
-          <FormMessage tone="danger">{problems.join(" ")}</FormMessage>
+          <Feedback look="box" problem={problems.join(" ")} />
         </div>
       ) : null}
       <EclipseFilterForm filter={filter} />

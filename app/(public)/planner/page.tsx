@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { currentActor } from "@/app/_server/actor";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { PageTitle } from "@/components/page-title";
 import { Countdown } from "@/components/planner/countdown";
 import { FrameDrawing } from "@/components/planner/frame-drawing";
@@ -53,9 +53,7 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
       <SolarSafetyNote className="mb-8" />
       {fieldProblems.length ? (
         <div className="mb-6" data-testid="address-problems">
-          <FormMessage tone="danger">
-            Some values in the address could not be used, so the plan below leaves them out: {fieldProblems.map((p) => p.message).join(" ")}
-          </FormMessage>
+          <Feedback look="box" problem={`Some values in the address could not be used, so the plan below leaves them out: ${fieldProblems.map((p) => p.message).join(" ")}`} />
         </div>
       ) : null}
       <PlannerForm
@@ -69,7 +67,7 @@ export default async function PlannerPage({ searchParams }: { searchParams: Prom
       />
       {problem ? (
         <div className="mt-8">
-          <FormMessage tone="danger">{problem}</FormMessage>
+          <Feedback look="box" problem={problem} />
           {reach && insideHref ? (
             <p className="mt-3" data-testid="totality-reach">
               The nearest place that sees {resolved?.eclipse.kind === "annular" ? "annularity" : "totality"} is about {reach.distanceKm} km to the {reach.direction}.{" "}

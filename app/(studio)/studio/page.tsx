@@ -5,8 +5,7 @@ import { LinkCards } from "@/components/link-cards";
 import { PageTitle } from "@/components/page-title";
 import { Badge } from "@/components/ui/badge";
 import { buttonClasses } from "@/components/ui/button";
-import { EmptyState } from "@/components/ui/empty-state";
-import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
+import { linkColumn, RecordTable, type RecordColumn } from "@/components/ui/record-table";
 import { getDb } from "@/db/client";
 import { listBracketSets } from "@/lib/bracket-sets";
 import { listKits } from "@/lib/kits/kits";
@@ -15,6 +14,33 @@ import { STATE_LABELS } from "@/lib/review/state-machine";
 import { listSites } from "@/lib/sites/sites";
 
 export const metadata: Metadata = { title: "Studio" };
+
+type BracketSet = Awaited<ReturnType<typeof listBracketSets>>[number];
+type Latest = Awaited<ReturnType<typeof findLatestReductions>>;
+
+function setColumns(latest: Latest): RecordColumn<BracketSet>[] {
+  return [
+    linkColumn("Name", (s) => `/studio/sets/${s.id}`, (s) => s.name),
+    { header: "Eclipse", className: "font-mono", cell: (s) => s.eclipseId },
+    { header: "Frames", className: "font-mono", cell: (s) => s.frameCount },
+    { header: "State", cell: (s) => <Badge tone={s.state === "approved" ? "ok" : s.state === "rejected" ? "danger" : "neutral"}>{STATE_LABELS[s.state]}</Badge> },
+    {
+      header: "Latest reduction",
+      cell: (s) => {
+        const r = latest.get(s.id);
+        return r ? (
+          <Link href={`/studio/reductions/${r.id}`}>
+            {r.state}
+            {r.state === "running" ? ` (${Math.round(100 * (r.progress ?? 0))} %)` : ""}
+          </Link>
+        ) : (
+          <span className="text-ink-muted">none yet</span>
+        );
+      },
+    },
+    { header: "Camera clock offset", className: "font-mono", cell: (s) => `${s.clockOffsetS} s` },
+  ];
+}
 
 export default async function StudioPage() {
   const actor = await requirePagePermission("studio:use", "/studio");
@@ -39,50 +65,16 @@ export default async function StudioPage() {
           New bracket set
         </Link>
       </div>
-      {ownSets.length === 0 ? (
-        <EmptyState
-          title="No bracket sets yet"
-          message="A bracket set holds one camera's frames from one eclipse. Create one, add its frames from your computer, and start a reduction."
-        />
-      ) : (
-        <Table caption="Your bracket sets" captionHidden>
-          <TableHead>
-            <TableRow>
-              <TableHeader>Name</TableHeader>
-              <TableHeader>Eclipse</TableHeader>
-              <TableHeader>Frames</TableHeader>
-              <TableHeader>State</TableHeader>
-              <TableHeader>Latest reduction</TableHeader>
-              <TableHeader>Camera clock offset</TableHeader>
-            </TableRow>
-          </TableHead>
-          <TableBody>
-            {ownSets.map((s) => (
-              <TableRow key={s.id}>
-                <TableCell>
-                  <Link href={`/studio/sets/${s.id}`}>{s.name}</Link>
-                </TableCell>
-                <TableCell className="font-mono">{s.eclipseId}</TableCell>
-                <TableCell className="font-mono">{s.frameCount}</TableCell>
-                <TableCell>
-                  <Badge tone={s.state === "approved" ? "ok" : s.state === "rejected" ? "danger" : "neutral"}>{STATE_LABELS[s.state]}</Badge>
-                </TableCell>
-                <TableCell>
-                  {latest.get(s.id) ? (
-                    <Link href={`/studio/reductions/${latest.get(s.id)?.id}`}>
-                      {latest.get(s.id)?.state}
-                      {latest.get(s.id)?.state === "running" ? ` (${Math.round(100 * (latest.get(s.id)?.progress ?? 0))} %)` : ""}
-                    </Link>
-                  ) : (
-                    <span className="text-ink-muted">none yet</span>
-                  )}
-                </TableCell>
-                <TableCell className="font-mono">{s.clockOffsetS} s</TableCell>
-              </TableRow>
-            ))}
-          </TableBody>
-        </Table>
-      )}
+      <RecordTable
+        caption="Your bracket sets"
+        captionHidden
+        rows={ownSets}
+        columns={setColumns(latest)}
+        empty={{
+          title: "No bracket sets yet",
+          message: "A bracket set holds one camera's frames from one eclipse. Create one, add its frames from your computer, and start a reduction.",
+        }}
+      />
     </>
   );
 }

@@ -2,7 +2,7 @@
 import { revalidatePath } from "next/cache";
 import { unstable_rethrow } from "next/navigation";
 import { currentActor } from "@/app/_server/actor";
-import type { ActionResult } from "@/components/forms/action-result";
+import type { ActionResult } from "@/lib/http/action-result";
 import { getDb } from "@/db/client";
 import { requirePermission } from "@/lib/auth/actor";
 import { editEclipseCatalogue } from "@/lib/eclipses/eclipses";

@@ -2,22 +2,18 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { PageTitle } from "@/components/page-title";
-import { RoleSwitch } from "@/components/people/role-switch";
-import { Badge } from "@/components/ui/badge";
+import { PeopleTable } from "@/components/people/people-table";
 import { buttonClasses } from "@/components/ui/button";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { Table, TableBody, TableCell, TableEmptyRow, TableHead, TableHeader, TableRow } from "@/components/ui/table";
 import { getDb } from "@/db/client";
 import { ROLE_LABELS, ROLES } from "@/lib/auth/roles";
 import { listPeople, peopleQuerySchema } from "@/lib/people/people";
 import { fieldProblems, summarizeProblems } from "@/lib/validation";
 import { Select } from "@/components/ui/select";
-import { DisablePerson } from "@/components/people/disable-person";
 import { InviteForm } from "@/components/people/invite-form";
 import { INVITATION_VALID_DAYS } from "@/lib/people/account-state";
 import { changeRoleAction, inviteAction, setDisabledAction } from "./actions";
-import { formatDate } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "People" };
 
@@ -68,54 +64,14 @@ export default async function PeoplePage({ searchParams }: { searchParams: Promi
           Ignored a filter in the address: {ignored}
         </p>
       ) : null}
-      <Table caption={`People, page ${result.page} of ${pages} (${result.total} in all)`}>
-        <TableHead>
-          <TableRow>
-            <TableHeader>Name</TableHeader>
-            <TableHeader className="hidden md:table-cell">E-mail</TableHeader>
-            <TableHeader className="hidden md:table-cell">Joined</TableHeader>
-            <TableHeader>Roles (press to grant or revoke)</TableHeader>
-            <TableHeader>Sign-in</TableHeader>
-          </TableRow>
-        </TableHead>
-        <TableBody>
-          {result.people.length === 0 ? (
-            <TableEmptyRow colSpan={5}>{filtered ? "No one matches these filters." : "No one has an account yet."}</TableEmptyRow>
-          ) : (
-            result.people.map((p) => (
-              <TableRow key={p.id}>
-                <TableCell>
-                  {p.name} {p.emailVerified ? null : <Badge tone="warn">address not confirmed</Badge>} {p.disabledAt ? <Badge tone="danger">disabled</Badge> : null}
-                  {/* On a phone the address and the date sit under the name, so the roles keep their room. */}
-                  <span className="block text-sm break-all text-ink-muted md:hidden">{p.email}</span>
-                  <span className="block text-sm text-ink-muted md:hidden">Joined {formatDate(p.joinedAt)}</span>
-                </TableCell>
-                <TableCell className="hidden text-sm break-all md:table-cell">{p.email}</TableCell>
-                <TableCell className="hidden text-sm whitespace-nowrap md:table-cell">{formatDate(p.joinedAt)}</TableCell>
-                <TableCell>
-                  <div className="flex flex-wrap gap-2" role="group" aria-label={`Roles of ${p.name}`}>
-                    {ROLES.map((role) => (
-                      <RoleSwitch
-                        key={role}
-                        action={changeRoleAction}
-                        userId={p.id}
-                        role={role}
-                        label={ROLE_LABELS[role]}
-                        held={p.roles.includes(role)}
-                        personName={p.name}
-                        lockedReason={role === "admin" && p.id === actor.userId && p.roles.includes("admin") ? "You cannot revoke your own administrator role; another administrator can." : undefined}
-                      />
-                    ))}
-                  </div>
-                </TableCell>
-                <TableCell>
-                  <DisablePerson action={setDisabledAction} userId={p.id} personName={p.name} disabled={p.disabledAt !== null} isSelf={p.id === actor.userId} />
-                </TableCell>
-              </TableRow>
-            ))
-          )}
-        </TableBody>
-      </Table>
+      <PeopleTable
+        people={result.people}
+        caption={`People, page ${result.page} of ${pages} (${result.total} in all)`}
+        emptyText={filtered ? "No one matches these filters." : "No one has an account yet."}
+        selfId={actor.userId}
+        changeRole={changeRoleAction}
+        setDisabled={setDisabledAction}
+      />
       <nav aria-label="Pages of people" className="mt-4 flex items-center gap-3">
         {result.page > 1 ? (
           <Link href={link(result.page - 1)} className={buttonClasses({ size: "sm" })}>

@@ -6,7 +6,7 @@ import { PageTitle } from "@/components/page-title";
 import { Badge } from "@/components/ui/badge";
 import { EmptyState } from "@/components/ui/empty-state";
 import { PageSection } from "@/components/ui/page-section";
-import { Table, TableBody, TableCell, TableHead, TableHeader, TableRow } from "@/components/ui/table";
+import { linkColumn, RecordTable, type RecordColumn } from "@/components/ui/record-table";
 import { STATE_TONES } from "@/components/reductions/labels";
 import { getDb } from "@/db/client";
 import { can } from "@/lib/auth/permissions";
@@ -14,6 +14,15 @@ import { listComposableReductions, listComposites } from "@/lib/composites/compo
 import { formatDateTime } from "@/lib/format/dates";
 
 export const metadata: Metadata = { title: "Composites" };
+
+type Composite = Awaited<ReturnType<typeof listComposites>>[number];
+
+const COLUMNS: RecordColumn<Composite>[] = [
+  linkColumn("Title", (c) => `/studio/composites/${c.id}`, (c) => c.title),
+  { header: "Inputs", cell: (c) => c.inputs.map((i) => i.setName).join(", ") },
+  { header: "State", cell: (c) => <Badge tone={STATE_TONES[c.state]}>{c.state}</Badge> },
+  { header: "Started", cell: (c) => formatDateTime(c.createdAt) },
+];
 
 export default async function CompositesPage() {
   const actor = await requirePagePermission("studio:use", "/studio/composites");
@@ -25,34 +34,13 @@ export default async function CompositesPage() {
         <Link href="/studio">Back to the studio</Link>
       </PageTitle>
       <PageSection id="yours" title={can(actor.roles, "review:use") ? "All composites" : "Your composites"}>
-        {composites.length === 0 ? (
-          <EmptyState title="No composites yet" message="Choose two or more reductions below to make the first." />
-        ) : (
-          <Table caption="Composites" captionHidden>
-            <TableHead>
-              <TableRow>
-                <TableHeader>Title</TableHeader>
-                <TableHeader>Inputs</TableHeader>
-                <TableHeader>State</TableHeader>
-                <TableHeader>Started</TableHeader>
-              </TableRow>
-            </TableHead>
-            <TableBody>
-              {composites.map((c) => (
-                <TableRow key={c.id}>
-                  <TableCell>
-                    <Link href={`/studio/composites/${c.id}`}>{c.title}</Link>
-                  </TableCell>
-                  <TableCell>{c.inputs.map((i) => i.setName).join(", ")}</TableCell>
-                  <TableCell>
-                    <Badge tone={STATE_TONES[c.state]}>{c.state}</Badge>
-                  </TableCell>
-                  <TableCell>{formatDateTime(c.createdAt)}</TableCell>
-                </TableRow>
-              ))}
-            </TableBody>
-          </Table>
-        )}
+        <RecordTable
+          caption="Composites"
+          captionHidden
+          rows={composites}
+          columns={COLUMNS}
+          empty={{ title: "No composites yet", message: "Choose two or more reductions below to make the first." }}
+        />
       </PageSection>
       <PageSection id="new" title="Compose">
         {choices.length < 2 ? (

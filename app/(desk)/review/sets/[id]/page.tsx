@@ -2,7 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
-import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
+import { SetActivityNotice } from "@/components/bracket-sets/set-activity-notice";
 import { BracketChart } from "@/components/bracket-sets/bracket-chart";
 import { FrameTriage } from "@/components/bracket-sets/frame-triage";
 import { PageTitle } from "@/components/page-title";
@@ -59,7 +59,7 @@ export default async function ReviewSetPage({ params }: { params: Promise<{ id: 
           <Link href="/review">Back to the queue</Link>
         </div>
       </PageTitle>
-      <AutoRefresh active={running > 0} message={running ? `${running} reduction${running === 1 ? "" : "s"} in progress…` : ""} />
+      <SetActivityNotice setId={set.id} initial={{ checking: 0, running }} />
 
       <nav aria-label="On this page" className="mb-8">
         <ul className="flex flex-wrap gap-4 text-sm">

@@ -29,7 +29,6 @@ export default async function CompositePage({ params }: { params: Promise<{ id: 
       </PageTitle>
       <ReductionProgress
         reductionId={composite.id}
-        pollUrl={`/api/composites/${encodeURIComponent(composite.id)}`}
         noun="composite"
         initial={{ state: composite.state, stage: composite.stage, progress: composite.progress, error: composite.error }}
       />

@@ -2,7 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { ConfirmDelete } from "@/components/forms/confirm-delete";
 import { KitForm } from "@/components/kits/kit-form";
 import { KitOptics } from "@/components/kits/kit-optics";
@@ -24,7 +24,7 @@ export default async function KitPage({ params, searchParams }: { params: Promis
       <PageTitle title={kit.name} lead={kit.camera}>
         <Link href="/studio/kits">All kits</Link>
       </PageTitle>
-      {saved ? <FormMessage tone="ok">Kit saved.</FormMessage> : null}
+      <Feedback look="box" success={saved ? "Kit saved." : null} />
       <KitOptics kit={kit} />
       <SolarSafetyNote className="my-8" />
       <section aria-labelledby="edit-kit" className="mt-8">

@@ -12,8 +12,8 @@ import { ReductionDownloads, ReductionMeasurements, ReductionParameters, Renditi
 import { ReductionList } from "@/components/reductions/reduction-list";
 import { ReductionProgress } from "@/components/reductions/reduction-progress";
 import { ReductionStartForm } from "@/components/reductions/reduction-start-form";
-import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
 import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
+import { SetActivityNotice } from "@/components/bracket-sets/set-activity-notice";
 import { getDb } from "@/db/client";
 import { findBracketSet } from "@/lib/bracket-sets";
 import { checkSetGeometry } from "@/lib/bracket-sets/set-checks";
@@ -47,7 +47,7 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
   const checks = await checkSetGeometry(db, actor, view.setId, fitted.map((f) => f.limb!.radiusPx as number), times);
   const usable = set.frames.filter((f) => f.kind === "light" && f.included && f.ingestState === "ingested");
   const choices = assessRunChoices(usable.map((f) => ({ fileName: f.fileName, hasTime: f.captureAt !== null })), true);
-  const othersRunning = siblings.some((r) => r.id !== reduction.id && (r.state === "queued" || r.state === "running"));
+  const othersRunning = siblings.filter((r) => r.id !== reduction.id && (r.state === "queued" || r.state === "running")).length;
 
   return (
     <>
@@ -55,7 +55,13 @@ export default async function ReductionPage({ params }: { params: Promise<{ id: 
         <Link href={`/studio/sets/${view.setId}`}>Back to the bracket set</Link>
       </PageTitle>
 
-      <AutoRefresh active={othersRunning} message="Another reduction of this set is in progress; the list below follows it." intervalMs={4000} />
+      <SetActivityNotice
+        setId={view.setId}
+        initial={{ checking: 0, running: othersRunning }}
+        excludeReductionId={reduction.id}
+        othersMessage="Another reduction of this set is in progress; the list below follows it."
+        intervalMs={4000}
+      />
 
       <ScaleWarning text={checks.scaleWarning} />
 

@@ -2,8 +2,8 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
-import { AutoRefresh } from "@/components/bracket-sets/auto-refresh";
 import { ScaleWarning } from "@/components/bracket-sets/scale-warning";
+import { SetActivityNotice } from "@/components/bracket-sets/set-activity-notice";
 import { BracketChart } from "@/components/bracket-sets/bracket-chart";
 import { BracketReach } from "@/components/bracket-sets/bracket-reach";
 import { FrameTimesPanel } from "@/components/bracket-sets/frame-times-panel";
@@ -91,12 +91,7 @@ export default async function BracketSetPage({ params, searchParams }: { params:
         </div>
       </PageTitle>
 
-      <AutoRefresh
-        active={checking > 0 || running > 0}
-        message={[checking ? `Checking ${checking} frame${checking === 1 ? "" : "s"}…` : "", running ? `${running} reduction${running === 1 ? "" : "s"} in progress…` : ""]
-          .filter(Boolean)
-          .join(" ")}
-      />
+      <SetActivityNotice setId={set.id} initial={{ checking, running }} watchFrames />
 
       {justSubmitted && set.state === "awaiting-review" && set.isOwn ? <SubmittedNotice /> : null}
 

@@ -2,7 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { requirePagePermission } from "@/app/_server/actor";
 import { foundOr404 } from "@/app/_server/found";
-import { FormMessage } from "@/components/auth/form-message";
+import { Feedback } from "@/components/ui/feedback";
 import { ConfirmDelete } from "@/components/forms/confirm-delete";
 import { PageTitle } from "@/components/page-title";
 import { getDb } from "@/db/client";
@@ -25,7 +25,7 @@ export default async function SitePage({ params, searchParams }: { params: Promi
       <PageTitle title={site.name} lead={site.kind === "fixed" ? "A fixed site" : "A moving site with a track"}>
         <Link href="/studio/sites">All sites</Link>
       </PageTitle>
-      {saved ? <FormMessage tone="ok">Site saved.</FormMessage> : null}
+      <Feedback look="box" success={saved ? "Site saved." : null} />
       <dl className="grid max-w-2xl grid-cols-[max-content_1fr] gap-x-6 gap-y-2">
         <dt className="text-ink-muted">{site.kind === "fixed" ? "Position" : "Start of track"}</dt>
         <dd className="font-mono">
