@@ -2,7 +2,7 @@
 // finished composite of approved sets, into a plate, write what the public
 // reads, publish, withdraw, restore and add versions. Every function takes the actor and requires review:use; every
 // change writes the audit log in the same transaction as the change.
-import { and, asc, desc, eq, sql } from "drizzle-orm";
+import { and, asc, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { bracketSets, compositeInputs, composites, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";

@@ -91,7 +91,7 @@ function buildReportSchema(lenient: boolean) {
     rsunObsArcsec: num().optional(),
     dsunObsM: num().optional(),
     /** The exact site: never for the public (print bundles and public masters round it). */
-    observer: or(z.object({ latDeg: z.number(), lonDeg: z.number(), elevationM: z.number() }).nullable().optional(), null),
+    observer: or(z.object({ latDeg: z.number(), lonDeg: z.number(), elevationM: or(z.number(), 0) }).nullable().optional(), null),
     moonSilhouetteUtc: text().optional(),
     conventions: text().optional(),
   });

@@ -2,30 +2,27 @@
 // spatial fields, the Sun's place), read from the report.json a reduction or a
 // composite stored beside its renditions.
 import type { LocationPrecision } from "@/db/schema";
+import { parseReport } from "@/lib/reductions/report-schema";
 import { toPublicObserver } from "@/lib/sites/precision";
 import type { MasterSky } from "./metadata";
 
 const num = (v: unknown) => (typeof v === "number" && Number.isFinite(v) ? v : undefined);
 
-/** The master's sky geometry from report.json (overall.sky), or null when the reduction has none. */
+/** The master's sky geometry from report.json (overall.sky, read with the report's schema), or null when the reduction has none. */
 export function masterSkyFromReport(report: Record<string, unknown>): MasterSky | null {
   if (report.kind === "composite") return compositeSkyFromReport(report);
-  const overall = (report.overall ?? {}) as Record<string, unknown>;
-  const sky = (overall.sky ?? {}) as Record<string, unknown>;
-  const master = (overall.masterSize ?? {}) as { width?: unknown; height?: unknown };
-  const width = num(master.width);
-  const height = num(master.height);
+  const { overall } = parseReport(report);
+  const sky = overall.sky;
+  const width = overall.masterSize?.width;
+  const height = overall.masterSize?.height;
   if (!width || !height) return null;
-  const centre = sky.sunCentrePx as { x?: unknown; y?: unknown } | undefined;
-  const observer = sky.observer as { latDeg?: unknown; lonDeg?: unknown; elevationM?: unknown } | undefined;
   const out: MasterSky = { masterWidth: width, masterHeight: height };
-  if (centre && num(centre.x) !== undefined && num(centre.y) !== undefined) out.sunCentrePx = { x: centre.x as number, y: centre.y as number };
-  if (num(sky.plateScaleArcsecPerPx)) out.plateScaleArcsecPerPx = sky.plateScaleArcsecPerPx as number;
-  if (num(sky.northAngleDeg) !== undefined) out.northAngleDeg = sky.northAngleDeg as number;
-  if (typeof sky.moonSilhouetteUtc === "string") out.referenceUtc = sky.moonSilhouetteUtc;
-  if (observer && num(observer.latDeg) !== undefined && num(observer.lonDeg) !== undefined) {
-    out.observer = { latDeg: observer.latDeg as number, lonDeg: observer.lonDeg as number, elevationM: num(observer.elevationM) ?? 0 };
-  }
+  const centre = sky?.sunCentrePx;
+  if (typeof centre?.x === "number" && typeof centre.y === "number") out.sunCentrePx = { x: centre.x, y: centre.y };
+  if (sky?.plateScaleArcsecPerPx) out.plateScaleArcsecPerPx = sky.plateScaleArcsecPerPx;
+  if (typeof sky?.northAngleDeg === "number") out.northAngleDeg = sky.northAngleDeg;
+  if (typeof sky?.moonSilhouetteUtc === "string") out.referenceUtc = sky.moonSilhouetteUtc;
+  if (sky?.observer) out.observer = { latDeg: sky.observer.latDeg, lonDeg: sky.observer.lonDeg, elevationM: sky.observer.elevationM };
   return out;
 }
 
