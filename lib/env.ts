@@ -23,6 +23,21 @@ const url = (protocols: string[]) =>
     { error: `expected a URL (${protocols.join(" or ")})` },
   );
 
+/** A whole number of milliseconds, at least 1 s; `fallback` when unset or empty. */
+const milliseconds = (fallback: number) =>
+  z
+    .string()
+    .optional()
+    .transform((v, ctx) => {
+      if (v === undefined || v === "") return fallback;
+      const ms = Number(v);
+      if (!Number.isInteger(ms) || ms < 1000) {
+        ctx.addIssue({ code: "custom", message: "expected a whole number of milliseconds, at least 1000" });
+        return z.NEVER;
+      }
+      return ms;
+    });
+
 export const envSchema = z
   .object({
     NODE_ENV: z.enum(["development", "test", "production"]).default("development"),
@@ -42,6 +57,19 @@ export const envSchema = z
       .string()
       .refine((v) => v === "" || existsSync(v), { error: "expected the path of a readable ICC profile file" })
       .optional(),
+    /** Prefix of every BullMQ key, so that test lanes and benches keep their own queues beside the app's. */
+    QUEUE_PREFIX: z
+      .string()
+      .regex(/^[A-Za-z0-9_-]{1,60}$/, { error: "expected letters, digits, - or _ (at most 60)" })
+      .default("crownlight"),
+    /**
+     * The reduce queue's job lock and stalled-check interval, ms (the worker's). A
+     * reduction's numeric stages hold the event loop for seconds at a time; a long lock
+     * keeps BullMQ from handing the job to another worker meanwhile. Tests of a killed
+     * worker's recovery shorten both.
+     */
+    WORKER_REDUCE_LOCK_MS: milliseconds(10 * 60_000),
+    WORKER_REDUCE_STALLED_INTERVAL_MS: milliseconds(5 * 60_000),
     SMTP_URL: url(["smtp:", "smtps:"]),
     SMTP_IGNORE_TLS: bool.default(false),
     MAIL_FROM: z.string({ error: "is missing" }).min(3, { error: "must be a sender address" }),

@@ -16,28 +16,16 @@ import { HANDLERS } from "./registry";
 const env = requireEnvOrExit("worker");
 const db = getDb();
 const connection = createRedis(env.REDIS_URL, true);
-const prefix = process.env.QUEUE_PREFIX ?? "crownlight";
+const prefix = env.QUEUE_PREFIX;
 const dispatcher = createDispatcher({ db, connection, prefix, jobs: JOBS, handlers: HANDLERS });
-
-/** A whole number of milliseconds from env, at least 1 s; a bad value stops the worker naming the variable. */
-function readMs(name: string, fallback: number): number {
-  const text = process.env[name];
-  if (text === undefined || text === "") return fallback;
-  const ms = Number(text);
-  if (!Number.isInteger(ms) || ms < 1000) {
-    console.error(`[worker] ${name} must be a whole number of milliseconds, at least 1000; got "${text}"`);
-    process.exit(1);
-  }
-  return ms;
-}
 
 // A reduction's numeric stages hold the event loop for seconds at a time; a
 // long lock keeps BullMQ from handing the job to another worker meanwhile. The
 // price: a reduction whose worker was killed is taken again only after the lock
 // expires and two stalled checks pass (10 to 20 min by default). Tests of that
 // recovery shorten both; the lock must stay longer than any stage of a real bracket.
-const reduceLockMs = readMs("WORKER_REDUCE_LOCK_MS", 10 * 60_000);
-const reduceStalledMs = readMs("WORKER_REDUCE_STALLED_INTERVAL_MS", 5 * 60_000);
+const reduceLockMs = env.WORKER_REDUCE_LOCK_MS;
+const reduceStalledMs = env.WORKER_REDUCE_STALLED_INTERVAL_MS;
 
 const workers = QUEUES.map((queue) => {
   const w = new Worker(queue, dispatcher.process, {

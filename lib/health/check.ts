@@ -1,5 +1,6 @@
 // Reachability of every service the app needs, each with a time limit, for
 // monitoring: all up answers 200, any down answers 503 with which one.
+import { getEnv } from "@/lib/env";
 import net from "node:net";
 import { sql } from "drizzle-orm";
 import { getDb } from "@/db/client";
@@ -64,7 +65,7 @@ export async function checkHealth(): Promise<HealthReport> {
     timed("postgres", () => getDb().execute(sql`select 1`)),
     timed("redis", () => getProducerRedis().ping()),
     timed("s3", () => checkBucket(bucketName("originals"))),
-    timed("smtp", () => probeSmtp(process.env.SMTP_URL ?? "")),
+    timed("smtp", () => probeSmtp(getEnv().SMTP_URL)),
   ]);
   return { ok: services.every((s) => s.ok), checkedAt: new Date().toISOString(), services };
 }

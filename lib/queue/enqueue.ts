@@ -2,6 +2,7 @@
 // deterministic (same work, same id: BullMQ keeps one), and a job_runs row
 // mirrors the job in PostgreSQL before it reaches Redis, so pages read state
 // from the database.
+import { getEnv } from "@/lib/env";
 import { Queue } from "bullmq";
 import { sql } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
@@ -14,7 +15,7 @@ const queues = new Map<QueueName, Queue>();
 export function getQueue(name: QueueName): Queue {
   let q = queues.get(name);
   if (!q) {
-    q = new Queue(name, { connection: getProducerRedis(), prefix: process.env.QUEUE_PREFIX ?? "crownlight" });
+    q = new Queue(name, { connection: getProducerRedis(), prefix: getEnv().QUEUE_PREFIX });
     queues.set(name, q);
   }
   return q;

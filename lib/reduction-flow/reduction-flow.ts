@@ -18,6 +18,8 @@
 //   pilot        parent  the first pass combined
 //   merge        parts   slices of kept frames, last pass
 //   finish       parent  combine, render, write, store, record
+import { getEnv } from "@/lib/env";
+import { reductionFilesBase } from "@/lib/reductions/files/manifest";
 import { mkdtemp, rm } from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
@@ -282,7 +284,7 @@ export async function gatherInputs(db: DbOrTx, reductionId: string): Promise<Flo
     lights, calibration, params, registration, sky,
     outputLongSidePx: stored.outputLongSidePx ?? 0,
     // IIIF ids name where the app serves this reduction's tiles.
-    iiifBaseUrl: `${(process.env.APP_URL ?? "").replace(/\/+$/, "")}/iiif/reductions/${red.id}`,
+    iiifBaseUrl: `${getEnv().APP_URL.replace(/\/+$/, "")}${reductionFilesBase(red.id)}`,
     exposureOverrideSource: "the photographer's corrections",
   };
 }

@@ -52,6 +52,16 @@ describe("environment validation", () => {
     expect(parseEnv({ ...GOOD, EDITION_CMYK_ICC_PROFILE: "" }).EDITION_CMYK_ICC_PROFILE).toBe("");
   });
 
+  it("gives the queue prefix and the reduce lock their defaults, and names a bad value", () => {
+    const env = parseEnv(GOOD);
+    expect(env.QUEUE_PREFIX).toBe("crownlight");
+    expect(env.WORKER_REDUCE_LOCK_MS).toBe(600_000);
+    expect(env.WORKER_REDUCE_STALLED_INTERVAL_MS).toBe(300_000);
+    expect(parseEnv({ ...GOOD, WORKER_REDUCE_LOCK_MS: "60000" }).WORKER_REDUCE_LOCK_MS).toBe(60_000);
+    expect(problemsOf({ ...GOOD, WORKER_REDUCE_LOCK_MS: "500" })).toEqual([{ name: "WORKER_REDUCE_LOCK_MS", message: "expected a whole number of milliseconds, at least 1000" }]);
+    expect(problemsOf({ ...GOOD, QUEUE_PREFIX: "a b" })[0].name).toBe("QUEUE_PREFIX");
+  });
+
   it("names every bad variable at once", () => {
     const problems = problemsOf({ ...GOOD, SMTP_URL: "nonsense", BETTER_AUTH_SECRET: "short", S3_FORCE_PATH_STYLE: "yes" });
     expect(problems.map((p) => p.name).sort()).toEqual(["BETTER_AUTH_SECRET", "S3_FORCE_PATH_STYLE", "SMTP_URL"]);

@@ -4,6 +4,7 @@
 // captions, credits, proof and README (bundle-texts.ts), then metadata.json and
 // the ZIP, streamed to the exports bucket (pack.ts). Progress goes to the
 // export row as it goes. Nothing of the edition or its plates is changed here.
+import { getEnv } from "@/lib/env";
 import { mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -41,7 +42,7 @@ export async function makeBundle(db: DbOrTx, exportId: string, report: ExportRep
   if (items.length === 0) throw new AppError("conflict", `"${edition.title}" has no plates to export.`);
   const society = await findSocietySettings(db);
   const { options } = row;
-  const cmykProfilePath = process.env.EDITION_CMYK_ICC_PROFILE || undefined;
+  const cmykProfilePath = getEnv().EDITION_CMYK_ICC_PROFILE || undefined;
   const stems = buildItemStems(options.fileNameTemplate, items);
 
   const dir = await mkdtemp(join(tmpdir(), "crownlight-edition-export-"));
