@@ -466,13 +466,8 @@ function addFirstPassBand3(acc: MergeAccumulator, band: MergeFrameInput, offset:
   const len = clipped.length;
   let weightSum = tally.weightSum, contributing = 0, well = 0;
   for (let k = 0; k < len; k++) {
-    if (covered !== undefined && covered[k] === 0) continue;
-    if (masked !== undefined && masked[k] !== 0) continue;
     const i = offset + k;
-    if (clipped[k] !== 0) {
-      if (bound > fallback[i]) fallback[i] = bound;
-      continue;
-    }
+    if (isLeftOut(covered, masked, clipped, fallback, k, i, bound)) continue;
     const y0 = p0[k], y1 = p1[k], y2 = p2[k];
     const taper = Math.fround(computeClipTaper(brightest(y0, y1, y2), clipLevel));
     if (!(taper > 0)) continue;
@@ -482,11 +477,32 @@ function addFirstPassBand3(acc: MergeAccumulator, band: MergeFrameInput, offset:
     s1[i] += taper * y1;
     s2[i] += taper * y2;
     contributing++;
-    if (noiseFloor[k] === 0) {
-      coverage[i]++;
-      well++;
-    }
+    well += countWellExposed(noiseFloor[k], coverage, i);
   }
+  closeBandTally(tally, weightSum, contributing, well);
+}
+
+/**
+ * True for a frame pixel the merge leaves out: outside the frame, masked, or
+ * clipped (a clipped pixel still raises the master pixel's fallback to `bound`).
+ */
+function isLeftOut(covered: Uint8Array | undefined, masked: Uint8Array | undefined, clipped: Uint8Array, fallback: Float32Array, k: number, i: number, bound: number): boolean {
+  if (covered !== undefined && covered[k] === 0) return true;
+  if (masked !== undefined && masked[k] !== 0) return true;
+  if (clipped[k] === 0) return false;
+  if (bound > fallback[i]) fallback[i] = bound;
+  return true;
+}
+
+/** 1, counting the master pixel's coverage, when the frame's pixel is above its noise floor; else 0. */
+function countWellExposed(noiseFloorK: number, coverage: Uint16Array, i: number): number {
+  if (noiseFloorK !== 0) return 0;
+  coverage[i]++;
+  return 1;
+}
+
+/** A band's weight sum (a running total) and counts into the frame's tally. */
+function closeBandTally(tally: MergeFrameTally, weightSum: number, contributing: number, well: number): void {
   tally.weightSum = weightSum;
   tally.contributing += contributing;
   tally.well += well;
@@ -518,13 +534,8 @@ function addSecondPassBand3(
   const screenBound = scale === undefined ? 0 : SCREEN_SHARE * (OUTLIER_WING_SIGMAS * scale) ** 2;
   let weightSum = tally.weightSum, contributing = 0, well = 0, considered = 0;
   for (let k = 0; k < len; k++) {
-    if (covered !== undefined && covered[k] === 0) continue;
-    if (masked !== undefined && masked[k] !== 0) continue;
     const i = offset + k;
-    if (clipped[k] !== 0) {
-      if (bound > fallback[i]) fallback[i] = bound;
-      continue;
-    }
+    if (isLeftOut(covered, masked, clipped, fallback, k, i, bound)) continue;
     const y0 = p0[k], y1 = p1[k], y2 = p2[k];
     const clipTaper = Math.fround(computeClipTaper(brightest(y0, y1, y2), clipLevel));
     const pilotWeight = pilotWeights[i];
@@ -546,14 +557,9 @@ function addSecondPassBand3(
     s1[i] += w * y1;
     s2[i] += w * y2;
     contributing++;
-    if (noiseFloor[k] === 0) {
-      coverage[i]++;
-      well++;
-    }
+    well += countWellExposed(noiseFloor[k], coverage, i);
   }
-  tally.weightSum = weightSum;
-  tally.contributing += contributing;
-  tally.well += well;
+  closeBandTally(tally, weightSum, contributing, well);
   tally.considered += considered;
 }
 
