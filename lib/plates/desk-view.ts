@@ -7,10 +7,10 @@ import { and, asc, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { auditLog, bracketSets, compositeInputs, composites, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
-import { requirePermission, type Actor } from "@/lib/auth/actor";
+import type { Actor } from "@/lib/auth/actor";
 import type { LocationPrecision } from "@/db/schema";
 import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
-import { findPlateRow, joinNames, pipelineCredit, toPlateLicence } from "./desk";
+import { findPlateRow, joinNames, pipelineCredit, requireCurator, toPlateLicence } from "./desk";
 import { countOpenReports, listPlateReports, type PlateReportDto } from "./reports";
 import { plateFilesBase, sourceOfVersion } from "./source";
 
@@ -28,7 +28,7 @@ export interface DeskPlateRowDto {
 }
 
 export async function listDeskPlates(db: Db, actor: Actor | null, state?: PlateState): Promise<DeskPlateRowDto[]> {
-  requirePermission(actor, "review:use", "the plate desk");
+  requireCurator(actor, "the plate desk");
   const rows = await db
     .select({
       id: plates.id,
@@ -125,22 +125,9 @@ async function findPlateSets(db: Db, plate: { bracketSetId: string | null }, com
 }
 
 export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string): Promise<DeskPlateDto> {
-  requirePermission(actor, "review:use", "the plate desk");
+  requireCurator(actor, "the plate desk");
   const plate = await findPlateRow(db, plateId);
-  const versions = await db
-    .select({
-      version: plateVersions.version,
-      reductionId: plateVersions.reductionId,
-      compositeId: plateVersions.compositeId,
-      renditions: plateVersions.renditions,
-      changeNote: plateVersions.changeNote,
-      createdAt: plateVersions.createdAt,
-      imageSizes: plateVersions.imageSizes,
-      geometry: plateVersions.geometry,
-    })
-    .from(plateVersions)
-    .where(eq(plateVersions.plateId, plateId))
-    .orderBy(desc(plateVersions.version));
+  const versions = await db.select().from(plateVersions).where(eq(plateVersions.plateId, plateId)).orderBy(desc(plateVersions.version));
   const current = versions.find((v) => v.version === plate.currentVersion);
   const compositeId = plate.bracketSetId ? null : (current?.compositeId ?? null);
   const sets = await findPlateSets(db, plate, compositeId);

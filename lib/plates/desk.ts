@@ -22,7 +22,8 @@ export { countWords, CAPTION_MAX_WORDS } from "./desk-input";
 
 export const PLATE_NOT_FOUND = "That plate";
 
-function requireCurator(actor: Actor | null, what: string): Actor {
+/** The plate desk's one permission: curators (review:use) do everything on it. */
+export function requireCurator(actor: Actor | null, what: string): Actor {
   return requirePermission(actor, "review:use", what);
 }
 

@@ -6,13 +6,14 @@ import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
 import { plateReports, plates, userRoles, users, type PlateReportKind, type PlateReportState } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
-import { requirePermission, type Actor } from "@/lib/auth/actor";
+import type { Actor } from "@/lib/auth/actor";
 import { appLink } from "@/lib/email/app-link";
 import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { plateReportAnswerMail, plateReportedMail } from "@/lib/email/templates";
 import { AppError, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { plateReportSchema, reportAnswerSchema } from "./desk-input";
+import { requireCurator } from "./desk";
 
 /** Reports per client address: generous for people, tight for scripts. */
 export const REPORT_RATE = { window: 600, max: 5 } as const;
@@ -90,7 +91,7 @@ export async function submitPlateReport(db: Db, slug: string, input: unknown, cl
 
 /** A plate's reports, open first, newest first within each state. */
 export async function listPlateReports(db: Db, actor: Actor | null, plateId: string): Promise<PlateReportDto[]> {
-  requirePermission(actor, "review:use", "reading reports on plates");
+  requireCurator(actor, "reading reports on plates");
   const rows = await db
     .select({
       id: plateReports.id,
@@ -112,7 +113,7 @@ export async function listPlateReports(db: Db, actor: Actor | null, plateId: str
 
 /** Open reports across all plates, for the desk's list. */
 export async function countOpenReports(db: Db, actor: Actor | null): Promise<Map<string, number>> {
-  requirePermission(actor, "review:use", "reading reports on plates");
+  requireCurator(actor, "reading reports on plates");
   const rows = await db.select({ plateId: plateReports.plateId }).from(plateReports).where(eq(plateReports.state, "open"));
   const out = new Map<string, number>();
   for (const r of rows) out.set(r.plateId, (out.get(r.plateId) ?? 0) + 1);
@@ -121,7 +122,7 @@ export async function countOpenReports(db: Db, actor: Actor | null): Promise<Map
 
 /** The curator answers the reporter by e-mail; the answer is kept with the report. */
 export async function answerPlateReport(db: Db, actor: Actor | null, plateId: string, reportId: string, input: unknown): Promise<void> {
-  const curator = requirePermission(actor, "review:use", "answering reports on plates");
+  const curator = requireCurator(actor, "answering reports on plates");
   const { answer, close } = parseInput(reportAnswerSchema, input);
   if (!/^[0-9a-f-]{36}$/i.test(reportId) || !/^[0-9a-f-]{36}$/i.test(plateId)) throw notFound("That report");
   const [row] = await db
