@@ -5,20 +5,19 @@
 // keeps the originals that reduction was made from: originals are never changed,
 // and a reduction's record stays reproducible. A reduction still running refuses
 // the removal until it ends, since the worker may be reading the file.
-import { DeleteObjectCommand } from "@aws-sdk/client-s3";
 import { and, eq, inArray } from "drizzle-orm";
 import type { DbOrTx } from "@/db/client";
 import { frames, reductions, uploads } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { AppError } from "@/lib/errors";
 import { bucketName, buildThumbnailKey } from "@/lib/storage";
-import { getS3 } from "@/lib/storage/s3";
+import { deleteObject } from "@/lib/storage";
 import { findFrameOfOwnOpenSet } from "./access";
 import type { RemovedFrameDto } from "./dto";
 
 async function deleteStored(bucket: string, key: string): Promise<void> {
   // S3 answers a delete of a missing key with success, so a repeated removal is harmless.
-  await getS3().send(new DeleteObjectCommand({ Bucket: bucket, Key: key }));
+  await deleteObject({ bucket, key });
 }
 
 export async function removeFrame(db: DbOrTx, actor: Actor | null, setId: string, frameId: string): Promise<RemovedFrameDto> {

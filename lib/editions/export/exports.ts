@@ -3,7 +3,6 @@
 // follow its progress, list the bundles, download one, and reopen an exported
 // edition for changes (its bundles stay). The work itself is bundle.ts, run by
 // the worker's edition.export job on the "export" queue (its states: run.ts).
-import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { and, desc, eq, sql } from "drizzle-orm";
 import { z } from "zod";
 import type { Db, DbOrTx } from "@/db/client";
@@ -12,7 +11,7 @@ import { recordAudit } from "@/lib/audit/record";
 import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { enqueue } from "@/lib/queue/enqueue";
-import { bucketName, getS3, isMissingObject } from "@/lib/storage";
+import { bucketName, openObjectStream } from "@/lib/storage";
 import { parseInput } from "@/lib/validation";
 import { checkTemplate, DEFAULT_FILE_NAME_TEMPLATE } from "../file-names";
 import { findEditionRow, lockEdition } from "../guards";
@@ -148,14 +147,9 @@ export async function openExportDownload(db: Db, actor: Actor | null, editionId:
   requirePermission(actor, "editions:use", "print bundles");
   const row = await findRow(db, editionId, exportId);
   if (row.state !== "done" || !row.objectKey || !row.zipName) throw new AppError("conflict", `That print bundle is ${row.state}; it can be downloaded once it is done.`);
-  try {
-    const out = await getS3().send(new GetObjectCommand({ Bucket: bucketName("exports"), Key: row.objectKey }));
-    if (!out.Body) throw notFound(EXPORT);
-    return { body: out.Body.transformToWebStream() as ReadableStream<Uint8Array>, contentLength: out.ContentLength, fileName: row.zipName };
-  } catch (err) {
-    if (isMissingObject(err)) throw notFound("The ZIP of that print bundle");
-    throw err;
-  }
+  const out = await openObjectStream({ bucket: bucketName("exports"), key: row.objectKey });
+  if (!out) throw notFound("The ZIP of that print bundle");
+  return { body: out.body, contentLength: out.contentLength, fileName: row.zipName };
 }
 
 /** An exported edition back to draft, so its plates can change; its bundles stay. */
