@@ -9,9 +9,8 @@ import { bracketSets, composites, reductions, users } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import { findRolesOfUser } from "../queries/roles";
 import { startComposite } from "@/lib/composites/composites";
-import { createPlateFromComposite, findPlateOfSource, slugify } from "@/lib/plates/publish";
-import { makeWebJpeg } from "@/lib/plates/web-jpeg";
-import { SYNTHETIC_NOTE } from "./demo-scenario";
+import { createPlateFromComposite, findPlateOfSource } from "@/lib/plates/publish";
+import { demoPlateTexts, finishDemoPlate } from "./demo-plates";
 import type { SeedLog } from "./demo-brackets";
 
 export const DEMO_COMPOSITE = {
@@ -90,19 +89,7 @@ export async function publishDemoComposite(db: Db, log: SeedLog, timeoutMs = 10 
     log(`${DEMO_COMPOSITE.title}: plate /plates/${existing.slug} already published`);
     return;
   }
-  const plate = await createPlateFromComposite(db, {
-    compositeId: composite.id,
-    slug: slugify("Luxor through two lenses 2027"),
-    ...PLATE_TEXT,
-    description: `${PLATE_TEXT.description}\n\n${SYNTHETIC_NOTE}`,
-    acquiredBy: user.name,
-    processedBy: `${user.name} (composite), Crownlight pipeline (${composite.pipelineVersion ?? "unknown version"})`,
-    licence: "CC-BY-4.0",
-    renditions: ["natural", "structure"],
-    featured: true,
-    publish: true,
-    createdBy: null,
-  });
-  await makeWebJpeg(db, plate.id, 1);
-  log(`${DEMO_COMPOSITE.title}: published as /plates/${plate.slug}`);
+  const texts = demoPlateTexts(PLATE_TEXT, user.name, `${user.name} (composite), Crownlight pipeline (${composite.pipelineVersion ?? "unknown version"})`);
+  const plate = await createPlateFromComposite(db, { compositeId: composite.id, ...texts });
+  await finishDemoPlate(db, plate, DEMO_COMPOSITE.title, log);
 }

@@ -5,13 +5,13 @@
 import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { bracketSets, reductions, users } from "@/db/schema";
-import { createPlateFromReduction, findPlateOfReduction, slugify } from "@/lib/plates/publish";
+import { createPlateFromReduction, findPlateOfReduction, slugify, type NewPlateTexts } from "@/lib/plates/publish";
 import { makeWebJpeg } from "@/lib/plates/web-jpeg";
 import { DEMO_PARTIES, SYNTHETIC_NOTE } from "./demo-scenario";
 
 type SeedLog = (line: string) => void;
 
-interface DemoPlateText {
+export interface DemoPlateText {
   title: string;
   caption: string;
   altText: string;
@@ -39,6 +39,28 @@ const TEXTS: Record<string, DemoPlateText> = {
     description: "Taken from the deck of a ship under way; the site is the ship's time-stamped track, so the Sun's position is computed for where the ship was at each frame.",
   },
 };
+
+/** A demo plate's texts: the synthetic-data note under the description, CC BY, both renditions, featured, published. */
+export function demoPlateTexts(text: DemoPlateText, acquiredBy: string, processedBy: string): NewPlateTexts {
+  return {
+    slug: slugify(`${text.title.replace(/\(demo\)/, "")} 2027`),
+    ...text,
+    description: `${text.description}\n\n${SYNTHETIC_NOTE}`,
+    acquiredBy,
+    processedBy,
+    licence: "CC-BY-4.0",
+    renditions: ["natural", "structure"],
+    featured: true,
+    publish: true,
+    createdBy: null,
+  };
+}
+
+/** The web JPEG with the credits in its metadata, as publishing on the desk makes it; then the log line. */
+export async function finishDemoPlate(db: Db, plate: { id: string; slug: string }, what: string, log: SeedLog): Promise<void> {
+  await makeWebJpeg(db, plate.id, 1);
+  log(`${what}: published as /plates/${plate.slug}`);
+}
 
 async function latestReductionOf(db: Db, setId: string) {
   const [r] = await db.select().from(reductions).where(eq(reductions.bracketSetId, setId)).orderBy(desc(reductions.createdAt)).limit(1);
@@ -79,21 +101,8 @@ export async function publishDemoPlates(db: Db, log: SeedLog, timeoutMs = 10 * 6
       log(`${party.setName}: plate /plates/${existing.slug} already published`);
       continue;
     }
-    const plate = await createPlateFromReduction(db, {
-      reductionId: red.id,
-      slug: slugify(`${text.title.replace(/\(demo\)/, "")} 2027`),
-      ...text,
-      description: `${text.description}\n\n${SYNTHETIC_NOTE}`,
-      acquiredBy: owner.name,
-      processedBy: `Crownlight pipeline (${red.pipelineVersion ?? "unknown version"})`,
-      licence: "CC-BY-4.0",
-      renditions: ["natural", "structure"],
-      featured: true,
-      publish: true,
-      createdBy: null,
-    });
-    // The web JPEG with the credits in its metadata, as publishing on the desk makes it.
-    await makeWebJpeg(db, plate.id, 1);
-    log(`${party.setName}: published as /plates/${plate.slug}`);
+    const texts = demoPlateTexts(text, owner.name, `Crownlight pipeline (${red.pipelineVersion ?? "unknown version"})`);
+    const plate = await createPlateFromReduction(db, { reductionId: red.id, ...texts });
+    await finishDemoPlate(db, plate, party.setName, log);
   }
 }

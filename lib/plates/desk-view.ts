@@ -3,14 +3,14 @@
 // public page will reveal of the site, reports, history). DTOs only; every
 // function requires review:use.
 import type { PlateTexts } from "./desk-input";
-import { and, asc, desc, eq } from "drizzle-orm";
+import { and, desc, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { auditLog, bracketSets, compositeInputs, composites, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { auditLog, bracketSets, composites, plates, plateVersions, reductions, sites, users, type BracketSetState, type PlateGeometry, type PlateLicence, type PlateState, type Rendition, type WithdrawalKind } from "@/db/schema";
 import type { Actor } from "@/lib/auth/actor";
 import type { LocationPrecision } from "@/db/schema";
 import { toPublicPosition, type PublicPosition } from "@/lib/sites/precision";
-import { findPlateRow, joinNames, pipelineCredit, requireCurator, toPlateLicence } from "./desk";
+import { findCompositeSets, findPlateRow, joinNames, pipelineCredit, requireCurator, toPlateLicence } from "./desk";
 import { countOpenReports, listPlateReports, type PlateReportDto } from "./reports";
 import { plateFilesBase, sourceOfVersion } from "./source";
 
@@ -110,18 +110,14 @@ export interface DeskPlateDto extends PlateTexts {
 
 type SetRow = { id: string; name: string; state: BracketSetState; photographer: string; siteId: string };
 
+/** The set a reduction's plate shows, or the sets of the composite its current version shows. */
 async function findPlateSets(db: Db, plate: { bracketSetId: string | null }, compositeId: string | null): Promise<SetRow[]> {
-  const columns = { id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, photographer: users.name, siteId: bracketSets.siteId };
-  if (plate.bracketSetId) return db.select(columns).from(bracketSets).innerJoin(users, eq(users.id, bracketSets.ownerId)).where(eq(bracketSets.id, plate.bracketSetId)).limit(1);
+  if (plate.bracketSetId) {
+    const columns = { id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, photographer: users.name, siteId: bracketSets.siteId };
+    return db.select(columns).from(bracketSets).innerJoin(users, eq(users.id, bracketSets.ownerId)).where(eq(bracketSets.id, plate.bracketSetId)).limit(1);
+  }
   if (!compositeId) return [];
-  return db
-    .select(columns)
-    .from(compositeInputs)
-    .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
-    .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
-    .innerJoin(users, eq(users.id, bracketSets.ownerId))
-    .where(eq(compositeInputs.compositeId, compositeId))
-    .orderBy(asc(compositeInputs.position));
+  return (await findCompositeSets(db, compositeId)).map(({ ownerName, ownerEmail: _email, ...set }) => ({ ...set, photographer: ownerName }));
 }
 
 export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string): Promise<DeskPlateDto> {

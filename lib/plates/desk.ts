@@ -5,7 +5,7 @@
 import { and, asc, eq, sql } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { findSocietySettings } from "@/db/queries/settings";
-import { bracketSets, compositeInputs, composites, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
+import { bracketSets, compositeInputs, composites, type BracketSetState, PLATE_LICENCES, plates, plateVersions, reductions, users, type Plate, type PlateLicence, type Rendition, type WithdrawalKind } from "@/db/schema";
 import { recordAudit } from "@/lib/audit/record";
 import { appLink } from "@/lib/email/app-link";
 import { sendStagedMail, stageMail } from "@/lib/email/outbox";
@@ -14,7 +14,7 @@ import { requirePermission, type Actor } from "@/lib/auth/actor";
 import { AppError, notFound } from "@/lib/errors";
 import { parseInput } from "@/lib/validation";
 import { draftPlateSchema, newVersionSchema, plateEditSchema, withdrawSchema, type PlateEditInput } from "./desk-input";
-import { createPlateFromComposite, createPlateFromReduction, readCompositeForPlate, readReductionForPlate, slugify, versionSource, type PreparedSource } from "./publish";
+import { createPlateFromComposite, createPlateFromReduction, readCompositeForPlate, readReductionForPlate, slugify, versionSource, type NewPlateTexts, type PreparedSource } from "./publish";
 import { makeWebJpeg } from "./web-jpeg";
 import { forgetPublicAccess } from "@/lib/reductions/files/serve";
 
@@ -48,10 +48,19 @@ async function requireApprovedSet(db: Db, setId: string, doing: string): Promise
   return set;
 }
 
-/** The bracket sets a composite is made of, each with its photographer, in the composite's order. */
-async function findCompositeSets(db: DbOrTx, compositeId: string): Promise<{ setId: string; name: string; state: string; ownerName: string; ownerEmail: string }[]> {
+export interface CompositeSetRow {
+  id: string;
+  name: string;
+  state: BracketSetState;
+  ownerName: string;
+  ownerEmail: string;
+  siteId: string;
+}
+
+/** The bracket sets a composite is made of, each with its photographer and site, in the composite's order. */
+export async function findCompositeSets(db: DbOrTx, compositeId: string): Promise<CompositeSetRow[]> {
   return db
-    .select({ setId: bracketSets.id, name: bracketSets.name, state: bracketSets.state, ownerName: users.name, ownerEmail: users.email })
+    .select({ id: bracketSets.id, name: bracketSets.name, state: bracketSets.state, ownerName: users.name, ownerEmail: users.email, siteId: bracketSets.siteId })
     .from(compositeInputs)
     .innerJoin(reductions, eq(reductions.id, compositeInputs.reductionId))
     .innerJoin(bracketSets, eq(bracketSets.id, reductions.bracketSetId))
@@ -136,29 +145,8 @@ export async function createDraftPlate(db: Db, actor: Actor | null, input: unkno
   const set = await requireApprovedSet(db, red.setId, "a plate can be made from it");
   const settings = await findSocietySettings(db);
   const slug = await uniqueSlug(db, slugify(set.name));
-  // One transaction: the plate and its audit row exist together or not at all.
-  const created = db.transaction(async (tx) => {
-    const plate = await createPlateFromReduction(tx, {
-      reductionId,
-      slug,
-      title: set.name,
-      caption: "",
-      description: "",
-      altText: "",
-      acquiredBy: set.ownerName,
-      processedBy: pipelineCredit(red.pipelineVersion),
-      licence: toPlateLicence(settings.defaultLicence),
-      renditions,
-      publish: false,
-      createdBy: curator.userId,
-    });
-    await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { reductionId, renditions, slug } });
-    return plate;
-  });
-  // Another draft may take the same name between the check and the insert.
-  return created.catch((err: unknown) => {
-    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
-  });
+  const texts = draftTexts({ slug, title: set.name, acquiredBy: set.ownerName, processedBy: pipelineCredit(red.pipelineVersion), renditions, curator, licence: settings.defaultLicence });
+  return writeDraft(db, curator, { reductionId, renditions, slug }, (tx) => createPlateFromReduction(tx, { reductionId, ...texts }));
 }
 
 /**
@@ -179,27 +167,37 @@ async function createDraftCompositePlate(db: Db, curator: Actor, compositeId: st
   const settings = await findSocietySettings(db);
   const slug = await uniqueSlug(db, slugify(row.title));
   const pipeline = pipelineCredit(row.pipelineVersion);
-  const created = db.transaction(async (tx) => {
-    const plate = await createPlateFromComposite(tx, {
-      compositeId,
-      slug,
-      title: row.title,
-      caption: "",
-      description: "",
-      altText: "",
-      acquiredBy: joinNames(sets.map((s) => s.ownerName)),
-      processedBy: row.composer ? `${row.composer} (composite), ${pipeline}` : pipeline,
-      licence: toPlateLicence(settings.defaultLicence),
-      renditions,
-      publish: false,
-      createdBy: curator.userId,
+  const texts = draftTexts({
+    slug,
+    title: row.title,
+    acquiredBy: joinNames(sets.map((s) => s.ownerName)),
+    processedBy: row.composer ? `${row.composer} (composite), ${pipeline}` : pipeline,
+    renditions,
+    curator,
+    licence: settings.defaultLicence,
+  });
+  return writeDraft(db, curator, { compositeId, renditions, slug }, (tx) => createPlateFromComposite(tx, { compositeId, ...texts }));
+}
+
+/** A draft's first texts: empty caption, description and alt text, the society's licence, not published. */
+function draftTexts(d: { slug: string; title: string; acquiredBy: string; processedBy: string; renditions: Rendition[]; curator: Actor; licence: string }): NewPlateTexts {
+  return {
+    slug: d.slug, title: d.title, caption: "", description: "", altText: "", acquiredBy: d.acquiredBy, processedBy: d.processedBy,
+    licence: toPlateLicence(d.licence), renditions: d.renditions, publish: false, createdBy: d.curator.userId,
+  };
+}
+
+/** The draft and its audit row in one transaction; another draft taking the same link name at the same moment is said so. */
+async function writeDraft(db: Db, curator: Actor, detail: Record<string, unknown> & { slug: string }, create: (tx: DbOrTx) => Promise<{ id: string; slug: string }>): Promise<{ id: string; slug: string }> {
+  try {
+    return await db.transaction(async (tx) => {
+      const plate = await create(tx);
+      await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail });
+      return plate;
     });
-    await recordAudit(tx, { actorId: curator.userId, action: "plate.created", subjectType: "plate", subjectId: plate.id, detail: { compositeId, renditions, slug } });
-    return plate;
-  });
-  return created.catch((err: unknown) => {
-    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${slug}" at the same moment; try again.`) : err;
-  });
+  } catch (err) {
+    throw isSlugTaken(err) ? new AppError("conflict", `Another plate took the link name "${detail.slug}" at the same moment; try again.`) : err;
+  }
 }
 
 const EDITABLE: (keyof PlateEditInput)[] = ["title", "caption", "description", "altText", "acquiredBy", "processedBy", "licence", "slug"];
