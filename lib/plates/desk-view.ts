@@ -104,7 +104,12 @@ export interface DeskPlateDto extends PlateTexts {
   locations: LocationCheckDto[];
   reports: PlateReportDto[];
   /** The chosen renditions of the current version, as the public viewer takes them (tiles only). */
-  image: { renditions: { key: Rendition; width: number; height: number; tileSource: string }[]; geometry: PlateGeometry };
+  image: {
+    renditions: { key: Rendition; width: number; height: number; tileSource: string }[];
+    geometry: PlateGeometry;
+    /** A composite's contribution map, the viewer's layer as the public page has it. */
+    mapLayer: { label: string; url: string; legend: { label: string; colour: string }[] } | null;
+  };
   history: { action: string; at: string; actorName: string | null; detail: Record<string, unknown> }[];
 }
 
@@ -120,6 +125,19 @@ async function findPlateSets(db: Db, plate: { bracketSetId: string | null }, com
   return (await findCompositeSets(db, compositeId)).map(({ ownerName, ownerEmail: _email, ...set }) => ({ ...set, photographer: ownerName }));
 }
 
+/** The contribution map and its legend: each input's photographer, colour and share of the light, from the composite's report. */
+function describeMapLayer(base: string, measurements: Record<string, unknown> | null, sets: SetRow[]): DeskPlateDto["image"]["mapLayer"] {
+  const inputs = (Array.isArray(measurements?.inputs) ? measurements.inputs : []) as { colour?: string; weightShare?: number }[];
+  return {
+    label: "Show where each input contributes",
+    url: `${base}/contribution.jpg`,
+    legend: inputs.map((input, k) => ({
+      label: `${sets[k]?.photographer ?? `Input ${k + 1}`}${typeof input.weightShare === "number" ? `: ${(100 * input.weightShare).toFixed(1)} % of the light` : ""}`,
+      colour: input.colour ?? "#888888",
+    })),
+  };
+}
+
 export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string): Promise<DeskPlateDto> {
   requireCurator(actor, "the plate desk");
   const plate = await findPlateRow(db, plateId);
@@ -131,7 +149,7 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
     sets.map(async (set) => (await db.select({ name: sites.name, publicLabel: sites.publicLabel, latDeg: sites.latDeg, lonDeg: sites.lonDeg, precision: sites.precision }).from(sites).where(eq(sites.id, set.siteId)).limit(1))[0]),
   );
   const [comp] = compositeId
-    ? await db.select({ id: composites.id, title: composites.title, composer: users.name }).from(composites).leftJoin(users, eq(users.id, composites.composedBy)).where(eq(composites.id, compositeId)).limit(1)
+    ? await db.select({ id: composites.id, title: composites.title, composer: users.name, measurements: composites.measurements }).from(composites).leftJoin(users, eq(users.id, composites.composedBy)).where(eq(composites.id, compositeId)).limit(1)
     : [];
   const finished = plate.bracketSetId
     ? (
@@ -196,6 +214,7 @@ export async function findDeskPlate(db: Db, actor: Actor | null, plateId: string
         return size ? [{ key, width: size.width, height: size.height, tileSource: `${base}/${key}-iiif/info.json` }] : [];
       }),
       geometry: current?.geometry ?? {},
+      mapLayer: comp ? describeMapLayer(base, comp.measurements, sets) : null,
     },
     history: history.map((h) => ({ action: h.action, at: h.at.toISOString(), actorName: h.actorName, detail: h.detail })),
   };

@@ -115,6 +115,8 @@ describe("composing two observers' reductions", () => {
     expect(await page.getByLabel("Processing").inputValue()).toMatch(new RegExp(`^${curator.name} \\(composite\\)`));
     await page.getByRole("heading", { name: "What the public sees of the sites" }).waitFor();
     await page.locator('[aria-roledescription="zoomable image"]').waitFor({ timeout: 20_000 });
+    // The desk's viewer offers the contribution map as the public one will.
+    await page.getByRole("checkbox", { name: "Show where each input contributes" }).waitFor();
     await page.getByRole("textbox", { name: "Caption", exact: true }).fill("One corona from Luxor and Cadiz, a long and a short lens; synthetic test data.");
     await page.getByLabel("Alt text").fill("A dark Moon ringed by the corona, solar north up.");
     await page.getByRole("button", { name: "Save the texts" }).click();

@@ -78,6 +78,9 @@ describe("a composite's plate", () => {
     expect(desk.composite?.sets.map((s) => s.name)).toEqual([`Long lens ${tag}`, `Short lens ${tag}`]);
     expect(desk.locations.map((l) => l.precision)).toEqual(["rounded", "hidden"]);
     expect(desk.image.renditions[0].tileSource).toBe(`/iiif/composites/${compositeId}/natural-iiif/info.json`);
+    // The desk's viewer has the contribution map too, its legend naming each input's photographer in the composite's order.
+    expect(desk.image.mapLayer?.url).toBe(`/iiif/composites/${compositeId}/contribution.jpg`);
+    expect(desk.image.mapLayer?.legend.map((l) => l.label.split(":")[0])).toEqual([longOwner.name, shortOwner.name]);
     // A version of another kind is refused, naming what to choose.
     await expect(addPlateVersion(db, curator, plateId, { reductionId: longRed, renditions: ["natural"], changeNote: "A single reduction instead" })).rejects.toMatchObject({
       code: "invalid_input",

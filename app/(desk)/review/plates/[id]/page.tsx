@@ -78,7 +78,7 @@ export default async function PlateEditorPage({ params }: { params: Promise<{ id
           <div className="min-w-0 xl:sticky xl:top-4 xl:self-start">
             <h3 className="mb-2 text-base font-semibold">The image, as the public viewer shows it</h3>
             {plate.image.renditions.length ? (
-              <PlateViewer title={plate.title} altText={plate.altText || `Image of the plate “${plate.title}” (no alt text yet)`} renditions={plate.image.renditions.map((r) => ({ ...r, label: RENDITION_LABELS[r.key] }))} geometry={plate.image.geometry} />
+              <PlateViewer title={plate.title} altText={plate.altText || `Image of the plate “${plate.title}” (no alt text yet)`} renditions={plate.image.renditions.map((r) => ({ ...r, label: RENDITION_LABELS[r.key] }))} geometry={plate.image.geometry} mapLayer={plate.image.mapLayer ?? undefined} />
             ) : (
               <p className="text-sm text-ink-muted">This version has no rendition to show.</p>
             )}
