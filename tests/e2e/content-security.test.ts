@@ -17,6 +17,7 @@ import { launchBrowser, snap } from "../support/browser";
 import { violationsOn, watchCsp } from "../support/csp";
 import { APP, requireTestDatabase } from "../support/env";
 import { HOSTILE_NEXT } from "../support/hostile-next";
+import { signIn } from "../support/sign-in";
 import { makeExportablePlate, person } from "../integration/edition-fixtures";
 
 requireTestDatabase();
@@ -48,7 +49,8 @@ afterAll(async () => {
   await closeDb();
 });
 
-async function signIn(ctx: BrowserContext, email: string, next = ""): Promise<Page> {
+/** Through the form, with the address to go to after it. */
+async function signInThroughForm(ctx: BrowserContext, email: string, next: string): Promise<Page> {
   const page = await ctx.newPage();
   await page.goto(`/sign-in${next ? `?next=${encodeURIComponent(next)}` : ""}`);
   await page.getByLabel("E-mail").fill(email);
@@ -100,7 +102,7 @@ describe("sign-up", () => {
 describe("after sign-in", () => {
   it("a hostile ?next= lands on the app, never another origin", async () => {
     const ctx = await browser.newContext({ baseURL: APP });
-    const page = await signIn(ctx, person("member").email, "/\\evil.example/x");
+    const page = await signInThroughForm(ctx, person("member").email, "/\\evil.example/x");
     await page.waitForLoadState("load");
     expect(new URL(page.url()).origin).toBe(APP);
     expect(new URL(page.url()).pathname).toBe("/");

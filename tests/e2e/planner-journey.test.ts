@@ -8,13 +8,13 @@ import { randomUUID } from "node:crypto";
 import fs from "node:fs";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import { seriousViolations } from "../support/axe";
 import { launchBrowser, snap } from "../support/browser";
 import { APP } from "../support/env";
+import { signIn } from "../support/sign-in";
 
 let browser: Browser;
-const ip = () => `10.88.${Math.floor(Math.random() * 250)}.${Math.floor(Math.random() * 250)}`;
 
 beforeAll(async () => {
   browser = await launchBrowser();
@@ -25,7 +25,7 @@ afterAll(async () => {
 
 describe("field planner", () => {
   it("lets a visitor plan for a typed place and download the timeline", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, acceptDownloads: true, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const ctx = await browser.newContext({ baseURL: APP, acceptDownloads: true });
     const page = await ctx.newPage();
     await page.goto("/planner?eclipse=2027-08-02");
     await page.getByLabel("Place name (optional)").fill("Cadiz");
@@ -57,7 +57,7 @@ describe("field planner", () => {
   });
 
   it("tells a visitor outside the path how far totality is, advises on the partial phase, and leads into the path", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const ctx = await browser.newContext({ baseURL: APP });
     const page = await ctx.newPage();
     // Tunis: north of the 2027 path (DESIGN.md: the eclipse is only partial there).
     await page.goto("/planner?eclipse=2027-08-02&place=Tunis&lat=36.8&lon=10.18");
@@ -78,7 +78,7 @@ describe("field planner", () => {
   });
 
   it("draws the frame for a sensor format picked from the list", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const ctx = await browser.newContext({ baseURL: APP });
     const page = await ctx.newPage();
     await page.goto("/planner?eclipse=2027-08-02&lat=25.69&lon=32.64");
     await page.getByLabel("Focal length (mm)").fill("800");
@@ -96,7 +96,7 @@ describe("field planner", () => {
   });
 
   it("answers bad values in the address with messages beside the fields", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const ctx = await browser.newContext({ baseURL: APP });
     const page = await ctx.newPage();
     const res = await page.goto("/planner?eclipse=2027-13-45&lat=abc&lon=500&isos=1,2&sensor=potato&tz=Mars%2FOlympus&f=0");
     expect(res?.status()).toBe(200);
@@ -118,7 +118,7 @@ describe("field planner", () => {
   });
 
   it("fits a phone and passes axe", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true, extraHTTPHeaders: { "x-forwarded-for": ip() } });
+    const ctx = await browser.newContext({ baseURL: APP, viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true });
     const page = await ctx.newPage();
     for (const [address, shot] of [
       ["/planner?eclipse=2027-08-02&place=Cadiz&lat=36.53&lon=-6.29&focal=400&sensor=aps-c&mount=equatorial", "14-planner-phone"],
@@ -135,14 +135,9 @@ describe("field planner", () => {
   });
 
   it("shows a member's saved kit and site in the planner", async () => {
-    const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": ip() } });
-    const page = await ctx.newPage();
+    const ctx = await browser.newContext({ baseURL: APP });
     const member = DEMO_PEOPLE.find((p) => p.roles.join() === "member" && p.email.startsWith("nadia"))!;
-    await page.goto("/sign-in");
-    await page.getByLabel("E-mail").fill(member.email);
-    await page.getByLabel("Password").fill(DEMO_PASSWORD);
-    await page.getByRole("button", { name: "Sign in" }).click();
-    await page.waitForURL(APP + "/", { timeout: 15_000 });
+    const page = await signIn(ctx, member.email);
 
     const kitName = `Refractor ${randomUUID().slice(0, 4)}`;
     await page.goto("/studio/kits/new");

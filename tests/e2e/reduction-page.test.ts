@@ -13,7 +13,7 @@ import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { closeDb, getDb } from "@/db/client";
 import { reductions, users } from "@/db/schema";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import type { Actor } from "@/lib/auth/actor";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
 import { bucketName, putObjectBytes, buildReductionPrefix } from "@/lib/storage";
@@ -21,6 +21,7 @@ import { findOutputContentType } from "@/lib/reductions/files/manifest";
 import { APP, requireTestDatabase } from "../support/env";
 import { launchBrowser, snap } from "../support/browser";
 import { seriousViolations } from "../support/axe";
+import { signIn } from "../support/sign-in";
 import { expectNoSidewaysScroll } from "../support/layout";
 import { createSetFor } from "../integration/bracket-upload-helpers";
 import { writeBracketFixture, type BracketFixture } from "../unit/reduction-runner/bracket-fixture";
@@ -63,13 +64,8 @@ beforeAll(async () => {
   measurements = { ...report.overall, parameters: report.parameters, timingsMs: report.timingsMs };
 
   browser = await launchBrowser();
-  const ctx = await browser.newContext({ baseURL: APP, extraHTTPHeaders: { "x-forwarded-for": `10.78.${Math.floor(Math.random() * 250)}.9` } });
-  page = await ctx.newPage();
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill(member.email);
-  await page.getByLabel("Password").fill(DEMO_PASSWORD);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(APP + "/", { timeout: 15_000 });
+  const ctx = await browser.newContext({ baseURL: APP });
+  page = await signIn(ctx, member.email);
 }, 180_000);
 
 afterAll(async () => {

@@ -51,6 +51,11 @@ export class Client {
     return { status: res.status, body: parsed };
   }
 
+  /** The cookies this client holds, as name and value. */
+  cookieList(): [string, string][] {
+    return [...this.cookies];
+  }
+
   async signIn(email: string, password: string): Promise<void> {
     const { status, body } = await this.json("/api/auth/sign-in/email", { email, password });
     if (status !== 200) throw new Error(`sign-in of ${email} answered ${status}: ${JSON.stringify(body)}`);
