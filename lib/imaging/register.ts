@@ -226,14 +226,19 @@ export type SourceImages = (frame: RegistrationFrame, step: number) => SourceIma
  * four at 24 megapixels).
  */
 const SOURCE_CACHE_BYTES = 128 * 1024 ** 2;
+/**
+ * And at most this many, whatever their size: small frames' images would otherwise
+ * fill the byte budget one frame at a time, so that memory grew with the bracket.
+ */
+const SOURCE_CACHE_IMAGES = 8;
 
 /**
  * createSourceImage, remembering the most recently used images up to a byte
- * budget (least recently used out first): each frame is compared with a
+ * budget and a count (least recently used out first): each frame is compared with a
  * neighbour whose pair was built just before, and whose image (box-averaged
  * from the whole frame, perhaps read back from disk) would otherwise be made again.
  */
-function createSourceCache(budgetBytes = SOURCE_CACHE_BYTES): SourceImages {
+function createSourceCache(budgetBytes = SOURCE_CACHE_BYTES, maxImages = SOURCE_CACHE_IMAGES): SourceImages {
   const cache = new Map<RegistrationFrame, Map<number, SourceImage>>();
   const order: { frame: RegistrationFrame; step: number; bytes: number }[] = [];
   let held = 0;
@@ -251,7 +256,7 @@ function createSourceCache(budgetBytes = SOURCE_CACHE_BYTES): SourceImages {
     cache.get(frame)!.set(step, image);
     order.push({ frame, step, bytes });
     held += bytes;
-    while (held > budgetBytes) {
+    while (held > budgetBytes || order.length > maxImages) {
       const out = order.shift()!;
       cache.get(out.frame)?.delete(out.step);
       held -= out.bytes;
