@@ -6,7 +6,7 @@
 import { ImagingError, requireNumberInRange } from "./errors";
 import { prepareFrame, type PreparedFrame } from "./frame-stage";
 import type { LimbFit } from "./limb-fit";
-import { linearizeFrame, validateFrame } from "./linearize";
+import { checkFrameShape, linearizeFrame } from "./linearize";
 import { estimateMoonTrack } from "./moon-track";
 import { measureBracketLevels, type FrameLevels, type LevelSource } from "./frame-levels";
 import type { LunarDisk } from "./radial";
@@ -105,7 +105,8 @@ export function validateBracket(frames: LinearFrame[]): number {
   const first = frames[0];
   let channels = 0;
   for (const f of frames) {
-    const count = validateFrame(f).length;
+    // The shape alone: a frame's planes may wait on disk, and reading every frame here cost a whole pass over the bracket.
+    const count = checkFrameShape(f);
     if (f === first) channels = count;
     if (f.image.width !== first.image.width || f.image.height !== first.image.height) {
       throw new ImagingError("size-mismatch", `is ${f.image.width} x ${f.image.height} but ${first.name} is ${first.image.width} x ${first.image.height}`, f.name);

@@ -5,7 +5,7 @@ import { averageBoxes } from "./coarse-disk";
 import { ImagingError } from "./errors";
 import { findKthSmallest } from "./select";
 import { computeLuminancePlane, createSrgbDecodeTable } from "./srgb";
-import type { LinearFrame } from "./types";
+import { readPlaneLengths, type LinearFrame } from "./types";
 
 export interface LinearizedFrame {
   name: string;
@@ -43,17 +43,30 @@ export const NOISE_FLOOR_SIGMAS = 3;
  * on disk (lib/reduction-runner/frame-spill.ts) reads them back at every look.
  */
 export function validateFrame(frame: LinearFrame): Float32Array[] {
+  // One look at the planes: a frame kept on disk gives a fresh copy at each.
+  const planes = frame.image.planes;
+  checkFrameShape(frame, planes);
+  return planes;
+}
+
+/**
+ * validateFrame without the planes: the checks read their lengths only (from
+ * `planes` when the caller holds them), so a frame whose planes wait on disk is
+ * not read. Returns the number of planes.
+ */
+export function checkFrameShape(frame: LinearFrame, planes?: readonly Float32Array[]): number {
   const name = frame?.name ?? "(unnamed frame)";
   if (!(typeof frame.exposureS === "number" && Number.isFinite(frame.exposureS) && frame.exposureS > 0)) {
     throw new ImagingError("bad-exposure", `exposureS must be a positive finite number of seconds, got ${String(frame.exposureS)}`, name);
   }
-  const { width, height, planes } = frame.image;
+  const { width, height } = frame.image;
   if (!(Number.isInteger(width) && Number.isInteger(height) && width > 0 && height > 0)) {
     throw new ImagingError("size-mismatch", `image size must be positive integers, got ${width} x ${height}`, name);
   }
-  if (planes.length !== 1 && planes.length !== 3) throw new ImagingError("size-mismatch", `image must have 1 or 3 planes, got ${planes.length}`, name);
-  planes.forEach((p, i) => {
-    if (p.length !== width * height) throw new ImagingError("size-mismatch", `plane ${i} has ${p.length} values, expected ${width} x ${height}`, name);
+  const lengths = planes ? planes.map((p) => p.length) : readPlaneLengths(frame.image);
+  if (lengths.length !== 1 && lengths.length !== 3) throw new ImagingError("size-mismatch", `image must have 1 or 3 planes, got ${lengths.length}`, name);
+  lengths.forEach((length, i) => {
+    if (length !== width * height) throw new ImagingError("size-mismatch", `plane ${i} has ${length} values, expected ${width} x ${height}`, name);
   });
   if (frame.encoding === "linear") {
     if (!(Number.isFinite(frame.blackLevel) && Number.isFinite(frame.whiteLevel) && frame.whiteLevel > frame.blackLevel && frame.blackLevel >= 0)) {
@@ -62,7 +75,7 @@ export function validateFrame(frame: LinearFrame): Float32Array[] {
   } else if (frame.encoding !== "srgb8") {
     throw new ImagingError("bad-parameter", `encoding must be "linear" or "srgb8", got ${String(frame.encoding)}`, name);
   }
-  return planes;
+  return lengths.length;
 }
 
 /**

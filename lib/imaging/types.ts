@@ -10,6 +10,24 @@ export interface PlaneImage {
   planes: Float32Array[];
 }
 
+/**
+ * Set (not enumerable) on a PlaneImage whose planes are read from disk when
+ * touched (frame-spill.ts, the flow's work files): the planes' lengths, so that
+ * checking a frame's shape reads none of them.
+ */
+export const PLANE_LENGTHS: unique symbol = Symbol("crownlight.planeLengths");
+
+/** The lengths of an image's planes, without reading planes kept on disk. */
+export function readPlaneLengths(image: PlaneImage): readonly number[] {
+  return (image as PlaneImage & { [PLANE_LENGTHS]?: readonly number[] })[PLANE_LENGTHS] ?? image.planes.map((p) => p.length);
+}
+
+/** Marks `obj` (an image whose planes are now read when touched) with their lengths; `undefined` removes the mark. */
+export function markPlaneLengths(obj: object, lengths: readonly number[] | undefined): void {
+  if (lengths) Object.defineProperty(obj, PLANE_LENGTHS, { value: lengths, configurable: true, enumerable: false, writable: true });
+  else delete (obj as { [PLANE_LENGTHS]?: unknown })[PLANE_LENGTHS];
+}
+
 /** What the pipeline needs of one decoded frame; lib/media produces it. */
 export interface LinearFrame {
   /** A name that error messages use: the file name. */

@@ -10,6 +10,7 @@
 // A float32 array of whole numbers 0 to 65535 (an uncalibrated frame's counts) is
 // stored as uint16 and read back as the same float32 values: half the bytes.
 import { closeSync, ftruncateSync, openSync, readSync, writeSync } from "node:fs";
+import { markPlaneLengths } from "@/lib/imaging/types";
 
 const MAGIC = "CLWORK1\n";
 const ALIGN = 8;
@@ -157,9 +158,9 @@ function readHeader(head: Buffer, what: string): { header: Header; dataStart: nu
   return { header, dataStart: Math.ceil(headEnd / ALIGN) * ALIGN };
 }
 
-function rebuild(value: unknown, array: (index: number) => Typed, lazy: ((index: number) => () => Typed) | undefined): unknown {
+function rebuild(value: unknown, array: (index: number) => Typed, lazy: ((index: number) => () => Typed) | undefined, lengthOf?: (index: number) => number): unknown {
   if (value === null || typeof value !== "object") return value;
-  if (Array.isArray(value)) return value.map((v) => rebuild(v, array, lazy));
+  if (Array.isArray(value)) return value.map((v) => rebuild(v, array, lazy, lengthOf));
   const record = value as Record<string, unknown>;
   if (typeof record.$n === "string" && Object.keys(record).length === 1) return Number(record.$n);
   if (typeof record.$a === "number" && Object.keys(record).length === 1) return array(record.$a);
@@ -177,15 +178,20 @@ function rebuild(value: unknown, array: (index: number) => Typed, lazy: ((index:
       });
     } else if (lazy && Array.isArray(v) && v.length > 0 && v.every((e) => e && typeof e === "object" && typeof (e as { $a?: unknown }).$a === "number")) {
       // A list of arrays (a frame's planes) is read together when first touched.
-      const reads = v.map((e) => lazy((e as { $a: number }).$a));
+      const indices = v.map((e) => (e as { $a: number }).$a);
+      const reads = indices.map((index) => lazy(index));
       Object.defineProperty(out, key, {
         configurable: true,
         enumerable: true,
         get: () => reads.map((r) => r()),
-        set: (next: unknown) => Object.defineProperty(out, key, { value: next, writable: true, configurable: true, enumerable: true }),
+        set: (next: unknown) => {
+          if (key === "planes") markPlaneLengths(out, undefined);
+          Object.defineProperty(out, key, { value: next, writable: true, configurable: true, enumerable: true });
+        },
       });
+      if (key === "planes" && lengthOf) markPlaneLengths(out, indices.map(lengthOf));
     } else {
-      out[key] = rebuild(v, array, lazy);
+      out[key] = rebuild(v, array, lazy, lengthOf);
     }
   }
   return out;
@@ -239,7 +245,7 @@ export function readWorkFile<T>(path: string, cache: ArrayReader = (_key, read) 
       }
       return e.packed === "u16" ? unpack(new Uint16Array(bytes.buffer, 0, e.length)) : new ctor(bytes.buffer, 0, e.length);
     });
-    return rebuild(header.value, (index) => lazy(index)(), lazy) as T;
+    return rebuild(header.value, (index) => lazy(index)(), lazy, (index) => header.arrays[index]?.length ?? NaN) as T;
   } finally {
     closeSync(fd);
   }

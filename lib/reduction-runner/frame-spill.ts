@@ -11,7 +11,7 @@ import { mkdtempSync, readFileSync, rmSync, statfsSync, writeFileSync } from "no
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
-import type { LinearFrame } from "@/lib/imaging/types";
+import { markPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
 
 type Typed = Float32Array | Uint8Array | Uint16Array;
 /** How an array is kept on disk; "f32-u16" is a float32 array of whole counts 0 to 65535 kept as uint16, half the bytes. */
@@ -170,6 +170,7 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
       read = () => keys.map((k) => get(k));
       if (!listed.has(obj)) listed.set(obj, new Map());
       listed.get(obj)!.set(field, keys);
+      if (field === "planes") markPlaneLengths(obj, keys.map((k) => entries[k].length));
     } else {
       const key = put(value as Typed);
       read = () => get(key);
@@ -180,6 +181,7 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
       get: read,
       set: (next: unknown) => {
         listed.get(obj)?.delete(field);
+        if (field === "planes") markPlaneLengths(obj, undefined);
         Object.defineProperty(obj, field, { value: next, writable: true, configurable: true, enumerable: true });
       },
     });

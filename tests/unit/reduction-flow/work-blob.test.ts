@@ -5,6 +5,8 @@ import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
+import { checkFrameShape } from "@/lib/imaging/linearize";
+import { readPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
 import { createArrayCache, decodeWork, encodeWork, readWorkFile, writeWorkFile } from "@/lib/reduction-flow/work-blob";
 import { sliceKept, MAX_MERGE_SLICES, MIN_FRAMES_PER_SLICE } from "@/lib/reduction-flow/reduction-flow";
 
@@ -57,6 +59,12 @@ describe("a reduction's work file", () => {
       return cache(key, read);
     });
     expect(back.image.width).toBe(3);
+    expect(reads).toEqual([]);
+    // The planes' lengths are known without reading them: a frame's shape is checked from the file's header.
+    expect(readPlaneLengths(back.image)).toEqual([6, 6]);
+    // This sample has two planes: the check refuses it, naming the count, and still reads none.
+    const frame = { name: "frame.bin", exposureS: 1, blackLevel: 0, whiteLevel: 65535, encoding: "linear", image: back.image } as LinearFrame;
+    expect(() => checkFrameShape(frame)).toThrow(/1 or 3 planes, got 2/);
     expect(reads).toEqual([]);
     expect(back.image.planes[1][5]).toBe(7);
     expect(reads).toHaveLength(2);

@@ -5,6 +5,7 @@
 import { readFileSync, rmSync } from "node:fs";
 import { basename, join } from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { readPlaneLengths, type PlaneImage } from "@/lib/imaging/types";
 import { runReductionOnFiles } from "@/lib/reduction-runner";
 import { createFrameSpill, readSpilledFile } from "@/lib/reduction-runner/frame-spill";
 import { writeBracketFixture, type BracketFixture } from "./bracket-fixture";
@@ -78,6 +79,12 @@ describe("the spill store's float arrays of whole counts", () => {
     expect(files.map((f) => f.kind)).toEqual(["f32-u16", "f32"]);
     expect(Array.from(readSpilledFile(files[0]))).toEqual(Array.from(counts));
     expect(Array.from(readSpilledFile(files[1]))).toEqual([0.25, 1.5]);
+    // The planes' lengths are known without reading them back; an assignment drops the mark with the getter.
+    const read = spill.stats().readBytes;
+    expect(readPlaneLengths(obj as unknown as PlaneImage)).toEqual([1000, 2]);
+    expect(spill.stats().readBytes).toBe(read);
+    obj.planes = [new Float32Array(3)];
+    expect(readPlaneLengths(obj as unknown as PlaneImage)).toEqual([3]);
     spill.close();
   });
 });
