@@ -111,11 +111,18 @@ describe("Redis restarted during a queue of jobs", () => {
 
     // Every job completed in BullMQ and is mirrored as done.
     const ids = [...frameIds.map((frameId) => jobIdFor("frame.ingest", { frameId })), ...mailIds.map((outboxId) => jobIdFor("mail.send", { outboxId }))];
-    // The mirror follows BullMQ's "completed" event, a moment after a handler's own writes.
+    // The mirror follows BullMQ's "completed" event, a moment after a handler's own writes. A job
+    // whose handler finished while Redis was down loses its lock, so BullMQ refuses to mark it
+    // finished ("Missing lock"); the stalled check takes it again on its second look (two intervals
+    // of 30 s, longer on a loaded machine), and only that run's completion settles its mirror.
+    let unsettled: string[] = [];
     const runs = await waitFor("every job's mirror to settle", async () => {
       const rows = await db.select({ id: jobRuns.id, state: jobRuns.state }).from(jobRuns).where(inArray(jobRuns.id, ids));
-      return rows.every((r) => r.state === "done" || r.state === "failed") ? rows : undefined;
-    }, 60_000);
+      unsettled = rows.filter((r) => r.state !== "done" && r.state !== "failed").map((r) => `${r.id} ${r.state}`);
+      return unsettled.length === 0 ? rows : undefined;
+    }, 180_000).catch((err: Error) => {
+      throw new Error(`${err.message}; still open: ${unsettled.join(", ")}`);
+    });
     expect(runs.filter((r) => r.state !== "done")).toEqual([]);
     expect(runs).toHaveLength(ids.length);
     const connection = createRedis(redis.url, false);
