@@ -9,12 +9,13 @@ import { randomUUID } from "node:crypto";
 import type { Browser, BrowserContext, Page } from "playwright-core";
 import { NAV_ENTRIES } from "@/lib/auth/nav";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { DEMO_PASSWORD, DEMO_PEOPLE } from "@/db/seed/people";
+import { DEMO_PEOPLE } from "@/db/seed/people";
 import { APP } from "../support/env";
 import { launchBrowser, snap } from "../support/browser";
 import { firstLink, waitForMail } from "../support/mailbox";
 import { seriousViolations } from "../support/axe";
 import { expectPeopleWording } from "../support/wording";
+import { signInThroughForm } from "../support/sign-in";
 
 const newcomer = {
   name: `Imogen Tarrant ${randomUUID().slice(0, 4)}`,
@@ -84,12 +85,7 @@ describe("signing up and roles", () => {
   });
 
   it("lets an admin grant the curator role, and the newcomer's navigation changes", async () => {
-    const admin = await adminCtx.newPage();
-    await admin.goto("/sign-in");
-    await admin.getByLabel("E-mail").fill(adminEmail);
-    await admin.getByLabel("Password").fill(DEMO_PASSWORD);
-    await admin.getByRole("button", { name: "Sign in" }).click();
-    await admin.waitForURL(APP + "/", { timeout: 15_000 });
+    const admin = await signInThroughForm(adminCtx, adminEmail);
 
     await admin.goto(`/admin/people?q=${encodeURIComponent(newcomer.email)}`);
     await expectPeopleWording(admin);

@@ -4,8 +4,8 @@
 // fail by the order the files ran in. A journey about something else therefore
 // gets its session as an API client does, from its own loopback address, and
 // carries the cookie into the browser. The form itself is walked by
-// signInThroughForm here and by the roles, planner, reduction-page and
-// content-security journeys.
+// signInThroughForm here (the roles journey's administrator) and by the roles
+// and content-security journeys' own steps.
 import type { BrowserContext, Page } from "playwright-core";
 import { DEMO_PASSWORD } from "@/db/seed/people";
 import { APP } from "./env";
