@@ -65,29 +65,40 @@ export interface FrameSpillOptions {
 /** Default in-memory cache: a few frames' luminance and masks at 24 megapixels. */
 export const DEFAULT_SPILL_CACHE_BYTES = 512 * 1024 ** 2;
 
-/** True when every value is a whole number from 0 to 65535 (a decoded frame's counts before calibration). */
-function holdsWholeCounts(array: Float32Array): boolean {
+/** Values a probe looks at before a packed copy is made: light that is not whole counts fails within them. */
+const PACK_PROBE = 4096;
+
+/** True when v is a whole number from 0 to 65535 (NaN is not; -0 is, and comes back as 0). */
+function isWholeCount(v: number): boolean {
+  const u = v | 0;
+  return u === v && u >= 0 && u <= 65535;
+}
+
+/**
+ * The array as uint16 when every value is a whole number from 0 to 65535 (a
+ * decoded frame's counts before calibration), else undefined: the check and the
+ * copy in one pass over the array.
+ */
+function packWholeCounts(array: Float32Array): Uint16Array | undefined {
+  const probe = Math.min(array.length, PACK_PROBE);
+  for (let i = 0; i < probe; i++) if (!isWholeCount(array[i])) return undefined;
+  const packed = new Uint16Array(array.length);
   for (let i = 0; i < array.length; i++) {
     const v = array[i];
-    // NaN fails the first test.
-    if (!(v >= 0 && v <= 65535) || v !== Math.floor(v)) return false;
+    if (!isWholeCount(v)) return undefined;
+    packed[i] = v;
   }
-  return true;
+  return packed;
 }
 
-function kindOf(array: Typed): Kind {
-  if (array instanceof Float32Array) return holdsWholeCounts(array) ? "f32-u16" : "f32";
-  if (array instanceof Uint16Array) return "u16";
-  return "u8";
-}
-
-/** The bytes written for an array of that kind. */
-function bytesOnDisk(array: Typed, kind: Kind): Uint8Array {
-  if (kind === "f32-u16") {
-    const counts = Uint16Array.from(array);
-    return new Uint8Array(counts.buffer);
+/** How an array goes to disk, and its bytes there. */
+function toDisk(array: Typed): { kind: Kind; bytes: Uint8Array } {
+  if (array instanceof Float32Array) {
+    const packed = packWholeCounts(array);
+    if (packed) return { kind: "f32-u16", bytes: new Uint8Array(packed.buffer) };
+    return { kind: "f32", bytes: new Uint8Array(array.buffer, array.byteOffset, array.byteLength) };
   }
-  return new Uint8Array(array.buffer, array.byteOffset, array.byteLength);
+  return { kind: array instanceof Uint16Array ? "u16" : "u8", bytes: new Uint8Array(array.buffer, array.byteOffset, array.byteLength) };
 }
 
 function view(buffer: Buffer, kind: Kind, length: number): Typed {
@@ -134,8 +145,7 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   const put = (array: Typed): number => {
     const key = entries.length;
     const path = join(dir, `${key}.bin`);
-    const kind = kindOf(array);
-    const bytes = bytesOnDisk(array, kind);
+    const { kind, bytes } = toDisk(array);
     writeFileSync(path, bytes);
     entries.push({ path, kind, length: array.length });
     writtenBytes += bytes.byteLength;
