@@ -20,7 +20,8 @@ import { measureFloorMs } from "./bench/floor";
 import { startMemorySampler } from "./bench/memory-sampler";
 import { mergeWithOpenCvDebevec } from "./bench/opencv-merge";
 
-const GB = 1024 ** 3;
+/** Memory is printed in GiB (2^30 bytes), with decimal GB (10^9) beside the reduction's peak, whose target is 2 GB. */
+const GiB = 1024 ** 3;
 
 /** The bracket as 8-bit sRGB codes, as a camera's JPEGs would hold it. */
 async function makeCodes(files: string[]): Promise<{ planes: Uint8Array[][]; interleaved: Uint8Array[] }> {
@@ -77,7 +78,7 @@ async function main(): Promise<void> {
     console.log("stage                         ms");
     for (const [stage, ms] of Object.entries(stages)) console.log(`  ${stage.padEnd(24)} ${String(ms).padStart(8)}`);
     console.log(`\nCPU ${cpuS.toFixed(1)} s over ${(wallMs / 1000).toFixed(1)} s wall: ${(cpuS / (wallMs / 1000)).toFixed(2)} cores busy on average`);
-    console.log(`peak RSS during the reduction ${(peakBytes / GB).toFixed(2)} GB (whole process, all threads); during the whole benchmark ${(overallPeakBytes / GB).toFixed(2)} GB`);
+    console.log(`peak RSS during the reduction ${(peakBytes / GiB).toFixed(2)} GiB = ${(peakBytes / 1e9).toFixed(2)} GB (whole process, all threads); during the whole benchmark ${(overallPeakBytes / GiB).toFixed(2)} GiB`);
     console.log(`floor: sharp decode ${floor.decodeMs.toFixed(0)} ms + sharp tiling of one rendition ${floor.tileMs.toFixed(0)} ms = ${floorMs.toFixed(0)} ms`);
     console.log(`(a) reduction / floor = ${(wallMs / floorMs).toFixed(2)}  (aim: at most 4)`);
     const natural = (report.overall as { natural?: { whiteFractionAtLimb?: number } }).natural;

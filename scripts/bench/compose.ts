@@ -15,7 +15,7 @@ import { runCompositeOnFiles } from "@/lib/composite-runner";
 import { createSky, renderMaster, type KitSpec } from "@/lib/imaging/synth-composite";
 import { startMemorySampler } from "./memory-sampler";
 
-const GB = 1024 ** 3;
+const GiB = 1024 ** 3;
 const WIDTH = 6000, HEIGHT = 4000;
 const KITS: KitSpec[] = [
   { name: "long.fits", width: WIDTH, height: HEIGHT, scaleArcsecPerPx: 2, solarNorthDeg: 0, gain: 1, moonArcsec: { lon: 12, lat: -6 }, noiseScale: 4, seed: 1, subsamples: 1, planeGains: [1.1, 1, 0.8] },
@@ -73,7 +73,7 @@ export async function runComposeBench(): Promise<void> {
       console.log(`  ${input.name}: factors ${input.factors.map((f) => f.toFixed(3)).join("/")}, refinement ${Math.hypot(input.refinement.lonArcsec, input.refinement.latArcsec).toFixed(2)} arcsec, ${(100 * input.weightShare).toFixed(1)} % of the weight`);
     }
     console.log(`\nCPU ${cpuS.toFixed(1)} s over ${(wallMs / 1000).toFixed(1)} s wall: ${(cpuS / (wallMs / 1000)).toFixed(2)} cores busy on average`);
-    console.log(`peak RSS ${(peakBytes / GB).toFixed(2)} GB (whole process); the composite's own report says ${(report.peakRssBytes / GB).toFixed(2)} GB`);
+    console.log(`peak RSS ${(peakBytes / GiB).toFixed(2)} GiB (whole process); the composite's own report says ${(report.peakRssBytes / GiB).toFixed(2)} GiB`);
     console.log(`floor: reading the three masters ${readMs.toFixed(0)} ms + sharp tiling of one rendition ${tileMs.toFixed(0)} ms = ${floorMs.toFixed(0)} ms`);
     console.log(`composite over floor: ${(wallMs / floorMs).toFixed(1)}`);
   } finally {
