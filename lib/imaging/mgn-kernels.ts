@@ -44,14 +44,16 @@ export const MGN_DETAIL = definePlaneKernel<{ valid: Uint8Array; norm: Float32Ar
 
 /**
  * One width's arctan term, weighted by the Wiener gain S / (S + N_w) when there
- * is a noise estimate, added to `sumArctan`; with `leeGain` the gain is kept
- * (the Lee estimate's width). See applyMgn for the formulas.
+ * is a noise estimate, added to `sumArctan`. With `lee` (the Lee estimate's
+ * width; it holds that width's local mean from MGN_DETAIL, and `masked` comes
+ * with it) the mean becomes the Lee estimate itself, mean + gain (B - mean), in
+ * place: one plane kept to the end instead of the mean and the gain. See applyMgn.
  */
 export const MGN_WEIGH = definePlaneKernel<{
   valid: Uint8Array; norm: Float32Array; localVar: Float32Array; diff: Float32Array; sumArctan: Float32Array;
-  noise?: Float32Array; leeGain?: Float32Array; nu: number; k: number; oversubtraction: number;
+  noise?: Float32Array; lee?: Float32Array; masked?: Float32Array; nu: number; k: number; oversubtraction: number;
 }>("mgn-weigh", (args, start, end) => {
-  const { valid, norm, localVar, diff, sumArctan, noise, leeGain, nu, k, oversubtraction } = args;
+  const { valid, norm, localVar, diff, sumArctan, noise, lee, masked, nu, k, oversubtraction } = args;
   for (let i = start; i < end; i++) {
     if (!valid[i]) continue;
     const variance = norm[i] > 1e-6 ? Math.max(0, localVar[i] / norm[i]) : 0;
@@ -61,21 +63,22 @@ export const MGN_WEIGH = definePlaneKernel<{
       const noiseVar = nu * noise[i];
       const signal = Math.max(0, variance - oversubtraction * noiseVar);
       gain = signal + noiseVar > 0 ? signal / (signal + noiseVar) : 1;
-      if (leeGain) leeGain[i] = gain;
+      // The gain as a float32 plane held it when mean and gain were kept apart.
+      if (lee) lee[i] = lee[i] + Math.fround(gain) * (masked![i] - lee[i]);
     }
     sumArctan[i] += sd > 0 ? gain * computeArctan((k * diff[i]) / sd) : 0;
   }
 });
 
-/** I = h C'_g + ((1 - h) / n) sum_w arctan(k C_w) on valid pixels, 0 elsewhere; C'_g of the Lee estimate when there is one. */
+/** I = h C'_g + ((1 - h) / n) sum_w arctan(k C_w) on valid pixels, 0 elsewhere; C'_g of the Lee estimate (MGN_WEIGH's `lee`) when there is one. */
 export const MGN_COMBINE = definePlaneKernel<{
   valid: Uint8Array; masked: Float32Array; sumArctan: Float32Array; data: Float32Array;
-  leeMean?: Float32Array; leeGain?: Float32Array; h: number; invGamma: number; widths: number;
+  lee?: Float32Array; h: number; invGamma: number; widths: number;
 }>("mgn-combine", (args, start, end) => {
-  const { valid, masked, sumArctan, data, leeMean, leeGain, h, invGamma, widths } = args;
+  const { valid, masked, sumArctan, data, lee, h, invGamma, widths } = args;
   for (let i = start; i < end; i++) {
     if (!valid[i]) { data[i] = 0; continue; }
-    const b = leeMean && leeGain ? leeMean[i] + leeGain[i] * (masked[i] - leeMean[i]) : masked[i];
+    const b = lee ? lee[i] : masked[i];
     const g = Math.pow(Math.max(0, b), invGamma);
     data[i] = h * g + ((1 - h) / widths) * sumArctan[i];
   }

@@ -271,8 +271,8 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
   }
   // The finest width's local mean and gain give the Lee estimate behind the gamma image.
   const leeWidth = widths.reduce((best, w) => (w <= LEE_WIDTH_PX && w > best ? w : best), Math.min(...widths));
-  let leeMean: Float32Array | undefined;
-  let leeGain: Float32Array | undefined;
+  // The Lee estimate: that width's local mean, made mean + gain (B - mean) in place by MGN_WEIGH.
+  let lee: Float32Array | undefined;
   const sumArctan = runner.float32(n);
   const diff = runner.float32(n, true);
   // Buffers reused for every width (see blurGaussian on why), each written whole before it is read.
@@ -284,17 +284,16 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     blurGaussianFast(masked, width, height, w, local, scratch, runner);
     // The Lee estimate for the gamma image comes from the widest scale up to LEE_WIDTH_PX (or the finest).
     const first = noise !== undefined && w === leeWidth;
-    if (first) leeMean = runner.float32(n, true);
-    runner.run(MGN_DETAIL, { valid, norm, masked, local, diff, leeMean: first ? leeMean : undefined }, n);
+    if (first) lee = runner.float32(n, true);
+    runner.run(MGN_DETAIL, { valid, norm, masked, local, diff, leeMean: first ? lee : undefined }, n);
     const localVar = blurGaussianFast(local, width, height, w, local, scratch, runner);
     const nu = Math.max(0, 1 - 3 / (4 * Math.PI * w * w));
-    if (first) leeGain = runner.float32(n);
-    runner.run(MGN_WEIGH, { valid, norm, localVar, diff, sumArctan, noise, leeGain: first ? leeGain : undefined, nu, k, oversubtraction: NOISE_OVERSUBTRACTION }, n);
+    runner.run(MGN_WEIGH, { valid, norm, localVar, diff, sumArctan, noise, lee: first ? lee : undefined, masked: first ? masked : undefined, nu, k, oversubtraction: NOISE_OVERSUBTRACTION }, n);
   }
   // The result takes the buffer of the per-width differences, which are done with.
   const data = diff;
-  runner.run(MGN_COMBINE, { valid, masked, sumArctan, data, leeMean, leeGain, h, invGamma: 1 / gamma, widths: widths.length }, n);
-  runner.release(masked, noise, sumArctan, norm, local, scratch, leeMean, leeGain);
+  runner.run(MGN_COMBINE, { valid, masked, sumArctan, data, lee, h, invGamma: 1 / gamma, widths: widths.length }, n);
+  runner.release(masked, noise, sumArctan, norm, local, scratch, lee);
   return { data, valid };
 }
 
