@@ -177,6 +177,11 @@ export interface MgnOptions {
    * the same numbers with any runner. The result's planes are the runner's.
    */
   runner?: PlaneRunner;
+  /**
+   * `plane` is the runner's and the caller is done with it: it is released as soon
+   * as it is scaled, so that it does not sit beside the filter's working planes.
+   */
+  releasePlane?: boolean;
 }
 
 /**
@@ -248,10 +253,14 @@ export function applyMgn(plane: Float32Array, width: number, height: number, opt
     by1 = y;
   }
   runner.release(extents.low, extents.high, extents.firstMasked, extents.lastMasked);
-  if (!(a1 > a0)) return { data: new Float32Array(n), valid };
+  if (!(a1 > a0)) {
+    if (options.releasePlane) runner.release(plane);
+    return { data: new Float32Array(n), valid };
+  }
   const range = a1 - a0;
   const masked = runner.float32(n);
   runner.run(MGN_SCALE, { plane, valid, masked, a0, range }, n);
+  if (options.releasePlane) runner.release(plane);
   // Noise variance in the units of `masked` ((B - a0) / range), smoothed over a few pixels.
   let noise: Float32Array | undefined;
   if (options.snrWeighting ?? true) {

@@ -63,18 +63,23 @@ export interface Renditions {
   whiteFractionAtLimb: number;
 }
 
-/** The structure rendition of the luminance; every plane of the filter's is let go (released to the runner) before it returns. */
-function renderStructureRendition(input: RenditionsInput, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, runner: PlaneRunner): PlaneImage {
+/**
+ * The structure rendition of the luminance; every plane of the filter's is let go
+ * (released to the runner) before it returns. MGN lets the luminance go too, once
+ * it has scaled it (true is returned then): the caller makes it again if it needs it.
+ */
+function renderStructureRendition(input: RenditionsInput, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, runner: PlaneRunner): { structure: PlaneImage; luminanceReleased: boolean } {
   const { width, height } = input.master;
   const { params, filterCentre } = input;
   const filterStrength = params.filterStrength ?? DEFAULT_REDUCTION_PARAMS.filterStrength!;
+  const isMgn = params.filter === "mgn";
   // The strength weighs local structure against the overall image: MGN's h is its complement.
-  const filtered = params.filter === "mgn"
-    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, noiseVariance: input.noiseVariance, runner })
+  const filtered = isMgn
+    ? applyMgn(luminance, width, height, { lunarDisk: filterDisk, valid: structureMask, h: 1 - filterStrength, noiseVariance: input.noiseVariance, runner, releasePlane: true })
     : blendWithGlobalImage(applyNrgf(luminance, width, height, { sunCentre: filterCentre, lunarDisk: filterDisk, valid: structureMask }), luminance, filterStrength);
   const structure = renderStructure(filtered, width, height);
   runner.release(filtered.data, filtered.valid);
-  return structure;
+  return { structure, luminanceReleased: isMgn };
 }
 
 /**
@@ -90,14 +95,18 @@ export function renderMasterRenditions(input: RenditionsInput): Renditions {
   // the structure filter's buffers.
   const makeShown = (): PlaneImage => (holes ? { width, height, planes: master.planes.map((p) => repairDefects(p, holes, width, height)) } : master);
   progress(0);
-  let luminance: Float32Array | undefined = computeLuminancePlane(makeShown().planes, runner.float32(width * height, true));
+  const makeLuminance = () => computeLuminancePlane(makeShown().planes, runner.float32(width * height, true));
+  let luminance: Float32Array | undefined = makeLuminance();
   const dynamicRangeStops = measureDynamicRangeStops(luminance, width, height, coverage, moon);
   const filterDisk = { ...moon, radiusPx: moon.radiusPx + 1 };
   // Uncovered pixels and the canvas edge are masked, not enhanced.
   const structureMask = createStructureMask(width, height, coverage, { lunarDisk: filterDisk, edgeBandPx });
-  const structure = renderStructureRendition(input, luminance, structureMask, filterDisk, runner);
+  const { structure, luminanceReleased } = renderStructureRendition(input, luminance, structureMask, filterDisk, runner);
   // The filter's planes are done with: the natural rendition's are fewer (see PlaneRunner.trim).
   runner.trim();
+  // MGN let the luminance go beside its working planes (one 24 MP plane less at the peak): the
+  // same luminance is made again for the natural rendition.
+  if (luminanceReleased) luminance = makeLuminance();
 
   progress(0.5);
   const outsideMoon = createValidMask(width, height, moon);
