@@ -29,7 +29,8 @@ import { prepareBenchSets } from "./scale-app";
 import { BENCH_QUEUE_PREFIX, clearBenchQueues, measureFlowReduction, withBenchWorkers, type FlowRun } from "./scale-flow";
 import { findScaleChildResult, SCALE_SPILL_MODES, type ScaleChildJob, type ScaleSpill } from "./scale-child-protocol";
 
-const MB = 1024 ** 2;
+/** Memory is printed in MiB (2^20 bytes); the slope also in decimal MB, the unit of its aim. */
+const MiB = 1024 ** 2;
 const AIM_SLOPE_MB_PER_FRAME = 5;
 const AIM_RATIO_TO_FLOOR = 4;
 const AIM_TWO_OVER_ONE = 0.6;
@@ -184,18 +185,18 @@ async function measureReduction(bracket: ScaleBracket, workers: number, app: App
 }
 
 function mb(bytes: number): string {
-  return (bytes / MB).toFixed(0);
+  return (bytes / MiB).toFixed(0);
 }
 
 /** The reduction's process on a line of its own; the processes below it one line per program name. */
 function describeProcesses(processes: WatchedProcess[]): string[] {
-  const lines = processes.filter((p) => p.isRoot).map((p) => `reduction process ${p.comm} (pid ${p.pid}): peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`);
+  const lines = processes.filter((p) => p.isRoot).map((p) => `reduction process ${p.comm} (pid ${p.pid}): peak ${mb(p.peakRssBytes)} MiB, CPU ${p.cpuS.toFixed(1)} s`);
   const byName = new Map<string, WatchedProcess[]>();
   for (const p of processes) if (!p.isRoot) byName.set(p.comm, [...(byName.get(p.comm) ?? []), p]);
   for (const [comm, group] of byName) {
     const peak = Math.max(...group.map((p) => p.peakRssBytes));
     const cpu = group.reduce((sum, p) => sum + p.cpuS, 0);
-    lines.push(`${group.length} process${group.length > 1 ? "es" : ""} ${comm} below it: peak ${mb(peak)} MB${group.length > 1 ? " (largest)" : ""}, CPU ${cpu.toFixed(1)} s${group.length > 1 ? " together" : ""}`);
+    lines.push(`${group.length} process${group.length > 1 ? "es" : ""} ${comm} below it: peak ${mb(peak)} MiB${group.length > 1 ? " (largest)" : ""}, CPU ${cpu.toFixed(1)} s${group.length > 1 ? " together" : ""}`);
   }
   return lines;
 }
@@ -204,14 +205,14 @@ function describeProcesses(processes: WatchedProcess[]): string[] {
 function describeFlowRun(run: FlowRun, single: MeasuredReduction | null, oneCoreEach: boolean): string[] {
   const label = `through the app's flow, ${run.workers} worker process${run.workers > 1 ? "es" : ""}${oneCoreEach ? " (one core each)" : ""}`;
   if (!run.measured) return [`${label}: not measured: ${run.reason}`];
-  const lines = [`${label}: ${(run.wallMs / 1000).toFixed(1)} s from start to done, CPU ${run.cpuS.toFixed(1)} s = ${(run.cpuS / (run.wallMs / 1000)).toFixed(2)} cores busy, all processes together at most ${mb(run.peakTotalBytes)} MB at one time, frames left out ${run.framesLeftOut}${single ? `; over the single process ${(run.wallMs / single.wallMs).toFixed(2)}` : ""}`];
-  run.perWorker.forEach((w, i) => lines.push(`  worker process ${i + 1} (pid ${w.pid}): peak ${mb(w.peakRssBytes)} MB (${mb(w.idleRssBytes)} MB idle before the start), CPU ${w.cpuS.toFixed(1)} s`));
+  const lines = [`${label}: ${(run.wallMs / 1000).toFixed(1)} s from start to done, CPU ${run.cpuS.toFixed(1)} s = ${(run.cpuS / (run.wallMs / 1000)).toFixed(2)} cores busy, all processes together at most ${mb(run.peakTotalBytes)} MiB at one time, frames left out ${run.framesLeftOut}${single ? `; over the single process ${(run.wallMs / single.wallMs).toFixed(2)}` : ""}`];
+  run.perWorker.forEach((w, i) => lines.push(`  worker process ${i + 1} (pid ${w.pid}): peak ${mb(w.peakRssBytes)} MiB (${mb(w.idleRssBytes)} MiB idle before the start), CPU ${w.cpuS.toFixed(1)} s`));
   // Which steps ran one after the other: a step whose span is near its busy time had nothing to share.
   for (const s of run.steps) {
     const who = s.busyByWorkerMs.map((ms) => (ms / 1000).toFixed(1)).join(" + ");
     lines.push(`    step ${s.step.padEnd(12)} ${s.parts > 0 ? `${s.parts} parts`.padEnd(9) : "parent   "} span ${(s.spanMs / 1000).toFixed(1).padStart(6)} s, busy ${(s.busyMs / 1000).toFixed(1).padStart(6)} s (${who})`);
   }
-  for (const p of run.below) lines.push(`  process ${p.comm} (pid ${p.pid}) below a worker: peak ${mb(p.peakRssBytes)} MB, CPU ${p.cpuS.toFixed(1)} s`);
+  for (const p of run.below) lines.push(`  process ${p.comm} (pid ${p.pid}) below a worker: peak ${mb(p.peakRssBytes)} MiB, CPU ${p.cpuS.toFixed(1)} s`);
   return lines;
 }
 
@@ -264,7 +265,7 @@ function describeSingle(f: BracketFigures): string[] {
   return [
     `${f.frames} frames, single process: ${(s.wallMs / 1000).toFixed(1)} s (reduction ${(s.reductionMs / 1000).toFixed(1)} s), CPU ${s.cpuS.toFixed(1)} s = ${(s.cpuS / (s.wallMs / 1000)).toFixed(2)} cores busy, frames left out ${s.framesLeftOut}`,
     ...describeProcesses(s.processes).map((line) => `  ${line}`),
-    `  all processes together at most ${mb(s.peakTotalBytes)} MB at one time`,
+    `  all processes together at most ${mb(s.peakTotalBytes)} MiB at one time`,
     `  scratch: ${describeScratch(s.scratch)}; disk in use at most ${(s.peakDiskBytes / 1024 ** 3).toFixed(1)} GB above the start`,
     `  stages (ms): ${Object.entries(s.stagesMs).map(([stage, ms]) => `${stage} ${Math.round(ms)}`).join(", ")}`,
     `  floor: sharp decode ${(f.floor.decodeMs / 1000).toFixed(1)} s + tiling one rendition ${(f.floor.tileMs / 1000).toFixed(1)} s = ${(floorMs / 1000).toFixed(1)} s; reduction / floor = ${(s.reductionMs / floorMs).toFixed(2)}  (aim: at most ${AIM_RATIO_TO_FLOOR})`,
@@ -356,9 +357,9 @@ export async function runScaleBench(argv: readonly string[]): Promise<void> {
     console.log(`  two worker processes / one = ${ratio === null ? "not measured" : ratio.toFixed(2)}  (aim: at most ${AIM_TWO_OVER_ONE})`);
   }
   const withSingle = figures.filter((f): f is BracketFigures & { single: MeasuredReduction } => f.single !== null);
-  const line = withSingle.length >= 2 ? fitLine(withSingle.map((f) => f.frames), withSingle.map((f) => f.single.peakProcessBytes / MB)) : null;
+  const line = withSingle.length >= 2 ? fitLine(withSingle.map((f) => f.frames), withSingle.map((f) => f.single.peakProcessBytes / MiB)) : null;
   console.log(line
-    ? `\npeak memory of the largest single process against frames (least squares over ${withSingle.length} brackets): ${line.slope.toFixed(2)} MB per frame, ${line.intercept.toFixed(0)} MB at zero frames  (aim: under ${AIM_SLOPE_MB_PER_FRAME} MB per frame)`
+    ? `\npeak memory of the largest single process against frames (least squares over ${withSingle.length} brackets): ${line.slope.toFixed(2)} MiB = ${((line.slope * MiB) / 1e6).toFixed(2)} MB per frame, ${line.intercept.toFixed(0)} MiB at zero frames  (aim: under ${AIM_SLOPE_MB_PER_FRAME} MB per frame)`
     : "\npeak memory against frames: needs the single process on at least two brackets");
   const largest = figures[figures.length - 1];
   const ratio = largest ? twoOverOne(largest.flows) : null;
