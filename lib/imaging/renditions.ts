@@ -66,7 +66,7 @@ export interface Renditions {
 /**
  * The structure rendition of the luminance; every plane of the filter's is let go
  * (released to the runner) before it returns. MGN lets the luminance go too, once
- * it has scaled it (true is returned then): the caller makes it again if it needs it.
+ * it has scaled it (`luminanceReleased` says so): the caller makes it again if it needs it.
  */
 function renderStructureRendition(input: RenditionsInput, luminance: Float32Array, structureMask: Uint8Array, filterDisk: LunarDisk, runner: PlaneRunner): { structure: PlaneImage; luminanceReleased: boolean } {
   const { width, height } = input.master;
