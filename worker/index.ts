@@ -52,6 +52,10 @@ await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { 
 const mailScheduler = new Queue("mail", { connection, prefix });
 await mailScheduler.upsertJobScheduler("outbox-resend-5min", { every: 5 * 60_000 }, { name: "outbox.resend", data: {} });
 
+// scripts/with-malloc-tuning.sh sets this; without it a large reduction holds a few hundred MB more.
+if (process.platform === "linux" && !process.env.MALLOC_MMAP_THRESHOLD_) {
+  console.warn("[worker] MALLOC_MMAP_THRESHOLD_ is not set: start the worker through scripts/with-malloc-tuning.sh (npm run worker does), or reductions will hold more memory than they need");
+}
 console.log(`[worker] listening on queues: ${QUEUES.join(", ")}`);
 
 let stopping = false;

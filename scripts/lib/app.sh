@@ -37,7 +37,7 @@ start_app() {
 start_worker() {
   local name="$1"
   if pid_alive "$RUN/$name.pid"; then say "$name already running"; return; fi
-  spawn "$name" node --import tsx worker/index.ts
+  spawn "$name" bash scripts/with-malloc-tuning.sh node --import tsx worker/index.ts
   sleep 0.5
   pid_alive "$RUN/$name.pid" || { tail -n 20 "$LOGS/$name.log" >&2; die "$name did not start; see $LOGS/$name.log"; }
   say "$name started"

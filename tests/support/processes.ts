@@ -77,7 +77,8 @@ export async function startOwnWorker(name: string, env: Record<string, string>):
 export async function startOwnScript(name: string, script: string, env: Record<string, string>, ready: string): Promise<OwnProcess> {
   const dir = await mkdtemp(join(tmpdir(), `crownlight-${name}-`));
   const logPath = join(dir, "process.log");
-  const child = spawnLogged(process.execPath, ["--import", "tsx", script], { ...process.env, ...env }, logPath);
+  // Through the same malloc tuning as the app's own worker (scripts/lib/app.sh).
+  const child = spawnLogged("bash", ["scripts/with-malloc-tuning.sh", process.execPath, "--import", "tsx", script], { ...process.env, ...env }, logPath);
   const own = track(child, logPath);
   await waitFor(`${name} to start`, async () => {
     if (!own.isRunning()) throw new Error(`${name} exited at start:\n${await own.readLog()}`);
