@@ -10,6 +10,7 @@ import { refineRegistrationPair } from "@/lib/imaging/register";
 import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
+import { collectGarbage } from "./collect-garbage";
 import { readSpilledFile } from "./frame-spill";
 import { collectTransferables, type PlaneSource, type PrepareReply, type PrepareRequest } from "./prepare-messages";
 
@@ -36,9 +37,16 @@ async function handle(request: PrepareRequest): Promise<PrepareReply> {
   return { id: request.id, ok: true, prepared };
 }
 
+// Each task's inputs (a pair's two registration images, a frame's planes, copied here or read
+// from disk) and its intermediate arrays are garbage once it is answered. V8 collects a thread's
+// ArrayBuffers only once some tens of MB more are held than after its last collection, and a
+// thread that allocates little between tasks reaches that late. Measured on 30 frames of
+// 900 x 600 (the memory test's): a peak of 456 MiB without this collection, 402 to 413 with it
+// (10 frames: 381 to 417). A full collection of this small heap takes milliseconds beside a
+// task's hundreds.
 parentPort?.on("message", (request: PrepareRequest) => {
   handle(request).then(
     (reply) => parentPort?.postMessage(reply, collectTransferables(reply)),
     () => parentPort?.postMessage({ id: request.id, ok: false } satisfies PrepareReply),
-  );
+  ).finally(collectGarbage);
 });

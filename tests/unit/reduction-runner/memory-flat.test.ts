@@ -11,12 +11,18 @@
 // prepared frame holds its luminance and masks beside them, so holding all frames
 // would add 6 MiB or more per frame from 10 frames to 30. Measured on 2026-12-04:
 // 507 and 550 MiB, 2.2 MiB a frame (3.3 before the registration's source images
-// were also bounded in number); the rest is what the plan keeps per frame (its
-// registration masks at the window's size, transforms, limb fits, levels) and the
-// allocator's and collector's timing. With every frame held in memory instead
-// (spill "never"), the same two runs peaked at 571 and 818 MiB, 12.3 MiB a
-// frame and a ratio of 1.43: this test fails on that. The bound is half a frame's planes per
-// frame added, and the two peaks within 15 % of each other.
+// were also bounded in number). That and later runs (1.3 to 3.6 MiB a frame, one
+// over the bound) were mostly waste that a bigger bracket reaches and a smaller one
+// does not: libvips' cache of results (up to 50 MB), the pool threads' garbage
+// (V8 collects late in a thread that allocates little) and glibc's heaps (blocks
+// under 32 MiB freed into them). With those gone (sharp-setup.ts, prepare-worker.ts,
+// scripts/with-malloc-tuning.sh), on 2026-12-05: 412 to 436 MiB for 10 frames, 440
+// to 447 for 30, 0.6 to 1.4 MiB a frame; the rest is what the plan keeps per frame
+// (its registration masks at the window's size, transforms, limb fits, levels).
+// With every frame held in memory instead (spill "never"), the same two runs peaked
+// at 571 and 818 MiB, 12.3 MiB a frame and a ratio of 1.43: this test fails on that.
+// The bound is half a frame's planes per frame added, and the two peaks within 15 %
+// of each other.
 import { spawnSync } from "node:child_process";
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
