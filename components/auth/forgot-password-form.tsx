@@ -2,7 +2,7 @@
 import { useState, type FormEvent } from "react";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { SubmitButton } from "@/components/ui/submit-button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
 import { Feedback } from "@/components/ui/feedback";
@@ -34,9 +34,9 @@ export function ForgotPasswordForm() {
       <Field label="E-mail">
         <Input name="email" type="email" autoComplete="email" required />
       </Field>
-      <SubmitButton pending={pending} pendingLabel="Sending…">
+      <ScriptSubmitButton variant="primary" pending={pending} pendingLabel="Sending…">
         Send me a link
-      </SubmitButton>
+      </ScriptSubmitButton>
     </form>
   );
 }

@@ -3,7 +3,7 @@ import Link from "next/link";
 import { useState, type FormEvent } from "react";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { SubmitButton } from "@/components/ui/submit-button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
 import { Feedback } from "@/components/ui/feedback";
@@ -63,9 +63,9 @@ export function ResetPasswordForm({ token, linkError }: { token?: string; linkEr
       <Field label="New password again">
         <Input name="confirm" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
       </Field>
-      <SubmitButton pending={pending} pendingLabel="Saving…">
+      <ScriptSubmitButton variant="primary" pending={pending} pendingLabel="Saving…">
         Save the new password
-      </SubmitButton>
+      </ScriptSubmitButton>
     </form>
   );
 }

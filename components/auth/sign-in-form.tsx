@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { SubmitButton } from "@/components/ui/submit-button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { safeNextPath } from "@/lib/http/safe-next";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
@@ -43,9 +43,9 @@ export function SignInForm({ next }: { next?: string }) {
       <Field label="Password">
         <Input name="password" type="password" autoComplete="current-password" required />
       </Field>
-      <SubmitButton pending={pending} pendingLabel="Signing in…">
+      <ScriptSubmitButton variant="primary" pending={pending} pendingLabel="Signing in…">
         Sign in
-      </SubmitButton>
+      </ScriptSubmitButton>
       <p className="text-sm text-ink-muted">
         <Link href="/forgot-password">Forgotten your password?</Link> · <Link href="/sign-up">Create an account</Link>
       </p>

@@ -2,7 +2,7 @@
 import { useState, type FormEvent } from "react";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
-import { SubmitButton } from "@/components/ui/submit-button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { authClient } from "./auth-client";
 import { describeAuthError } from "./auth-errors";
 import { DISPLAY_NAME_MAX, DISPLAY_NAME_MIN } from "@/lib/auth/display-name";
@@ -56,9 +56,9 @@ export function SignUpForm() {
       <Field label="Password again">
         <Input name="confirm" type="password" autoComplete="new-password" required minLength={10} maxLength={128} />
       </Field>
-      <SubmitButton pending={pending} pendingLabel="Creating your account…">
+      <ScriptSubmitButton variant="primary" pending={pending} pendingLabel="Creating your account…">
         Create account
-      </SubmitButton>
+      </ScriptSubmitButton>
     </form>
   );
 }

@@ -4,7 +4,7 @@
 // watch) together with the true time that clock showed.
 import { useId, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import type { FrameDto } from "@/lib/bracket-sets/dto";
 import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
@@ -108,9 +108,9 @@ export function ClockOffsetForm({ setId, clockOffsetS, frames }: { setId: string
       )}
       <Feedback live look="tinted" problem={save.error} success={save.data ? `Camera clock offset is now ${save.data.clockOffsetS} s; frame times below are corrected.` : null} />
       <div>
-        <Button type="submit" pending={save.isPending} pendingLabel="Saving…">
+        <ScriptSubmitButton pending={save.isPending} pendingLabel="Saving…">
           Save clock offset
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

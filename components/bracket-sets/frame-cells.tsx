@@ -7,6 +7,7 @@ import type { FrameDto } from "@/lib/bracket-sets/dto";
 import { judgeClipping } from "@/lib/bracket-sets/triage";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { formatExposureValue, parseExposure } from "./exposure-text";
 
 export type RowProblem = { field: "time" | "exposure" | "row"; text: string };
@@ -99,9 +100,9 @@ export function TimeCell({
           style={{ width: `${Math.max(11, value.length + 2)}ch` }}
           className={`${INPUT} ${problem || f.needsTime ? "border-danger" : "border-line-strong"}`}
         />
-        <Button size="sm" type="submit" variant="quiet" aria-label={`Save the capture time of ${f.fileName}`} pending={pending}>
+        <ScriptSubmitButton size="sm" variant="quiet" aria-label={`Save the capture time of ${f.fileName}`} pending={pending}>
           Save
-        </Button>
+        </ScriptSubmitButton>
         {f.captureTimeSource && f.captureTimeSource !== "file" ? (
           <Button size="sm" type="button" variant="quiet" aria-label={`Forget the capture time you gave ${f.fileName}`} onClick={() => onSave(f, null)}>
             Forget
@@ -169,9 +170,9 @@ export function ExposureCell({
         <span aria-hidden="true" className="text-ink-muted">
           s
         </span>
-        <Button size="sm" type="submit" variant="quiet" aria-label={`Save the exposure of ${f.fileName}`} pending={pending}>
+        <ScriptSubmitButton size="sm" variant="quiet" aria-label={`Save the exposure of ${f.fileName}`} pending={pending}>
           Save
-        </Button>
+        </ScriptSubmitButton>
       </div>
       {f.exposureSource === "photographer" ? <span className="text-xs text-ink-muted">set by you</span> : null}
       {f.needsExposure ? (

@@ -5,7 +5,7 @@
 // when a row is bad; its message names the line and the column.
 import { useId, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import type { FrameTimesResultDto } from "@/lib/bracket-sets/dto";
 import { ApiProblem, fetchJson } from "@/lib/http/client-fetch";
@@ -71,9 +71,9 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
           </label>
           <input id={`${id}-csv`} name="csv" type="file" accept=".csv,.tsv,.txt,text/csv,text/plain" className={FILE_INPUT_CLASSES} onChange={(e) => setFileName(e.target.files?.[0]?.name ?? null)} />
           <div>
-            <Button type="submit" pending={csv.isPending} pendingLabel="Reading…" disabled={!fileName}>
+            <ScriptSubmitButton pending={csv.isPending} pendingLabel="Reading…" disabled={!fileName}>
               Use this CSV
-            </Button>
+            </ScriptSubmitButton>
           </div>
           <Feedback look="tinted" labels={FIELD_LABELS} problem={csv.error} success={csv.data && csv.variables ? `${csv.variables.name}: ${describeResult(csv.data)}` : null} />
         </form>
@@ -103,9 +103,9 @@ export function FrameTimesPanel({ setId, eclipseDay, untimedCount, lightCount }:
             </label>
           </fieldset>
           <div>
-            <Button type="submit" pending={interval.isPending} pendingLabel="Saving…">
+            <ScriptSubmitButton pending={interval.isPending} pendingLabel="Saving…">
               Give these times
-            </Button>
+            </ScriptSubmitButton>
           </div>
           <Feedback
             look="tinted"

@@ -3,6 +3,7 @@ import Link from "next/link";
 import { useId, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import type { OrientationOutlook } from "@/lib/bracket-sets/orientation";
 import { fetchJson } from "@/lib/http/client-fetch";
@@ -77,9 +78,9 @@ export function KitChooser({
               className="w-32 rounded-control border border-line-strong bg-surface-raised px-3 py-2 font-mono"
             />
           </label>
-          <Button type="submit" pending={north.isPending} pendingLabel="Saving…">
+          <ScriptSubmitButton pending={north.isPending} pendingLabel="Saving…">
             Save north angle
-          </Button>
+          </ScriptSubmitButton>
         </form>
         <p id={`${id}-north-hint`} className="mt-1 text-xs text-ink-muted">
           For example from a star field or a plate solve of a frame taken with the same set-up. Leave it empty to let the kit&apos;s mount decide.

@@ -2,7 +2,7 @@
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Checkbox } from "@/components/ui/checkbox";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
@@ -108,9 +108,9 @@ export function CompositeStartForm({ choices, canComposeOthers }: { choices: Com
       <Checkbox name="refine" defaultChecked label="Refine each input's position by correlating its corona with the finest input's" hint="The correction found is reported: it measures the input's sky coordinates' error." />
       <Feedback look="box" problem={compose.error} />
       <div>
-        <Button type="submit" variant="primary" disabled={compose.isPending}>
+        <ScriptSubmitButton variant="primary" disabled={compose.isPending}>
           {compose.isPending ? "Starting…" : "Compose"}
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

@@ -4,7 +4,7 @@
 import type { FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { formStrings } from "@/components/forms/form-values";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -41,9 +41,9 @@ export function EditionNameForm(props: EditionNameFormProps) {
       </Field>
       <Feedback problem={problem} summarizeFields />
       <div className="flex flex-wrap items-center gap-3">
-        <Button type="submit" pending={save.isPending} pendingLabel="Saving…">
+        <ScriptSubmitButton pending={save.isPending} pendingLabel="Saving…">
           Save name
-        </Button>
+        </ScriptSubmitButton>
         <Feedback
           live
           success={save.data ? (save.data.changed ? `Saved: the edition is now called “${save.data.title}”.` : "Nothing to save: the name is unchanged.") : null}

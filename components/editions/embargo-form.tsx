@@ -2,7 +2,7 @@
 // Sets or clears the edition's embargo date; the plates' desk pages show it.
 import type { FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -23,9 +23,9 @@ export function EmbargoForm({ editionId, embargoDate }: { editionId: string; emb
       <Field label="Embargo until" hint="Empty for no embargo." error={problem ? (problem.fields.embargoDate ?? (problem.hasFields ? undefined : problem.message)) : undefined}>
         <Input name="embargoDate" type="date" defaultValue={embargoDate ?? ""} />
       </Field>
-      <Button type="submit" size="md" pending={save.isPending} pendingLabel="Saving…">
+      <ScriptSubmitButton size="md" pending={save.isPending} pendingLabel="Saving…">
         Save embargo
-      </Button>
+      </ScriptSubmitButton>
       <Feedback success={save.data ? (save.data.embargoDate ? `Embargo until ${save.data.embargoDate}.` : "No embargo.") : null} />
     </form>
   );

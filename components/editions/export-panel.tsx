@@ -9,6 +9,7 @@ import { useExportProgress } from "@/components/data/progress-queries";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Badge } from "@/components/ui/badge";
 import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Checkbox } from "@/components/ui/checkbox";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
@@ -98,9 +99,9 @@ export function ExportPanel({ editionId, editionState, itemCount, initial }: { e
         </Field>
         {/* A problem with the file names shows under that field. */}
         <Feedback problem={start.error?.hasFields ? null : start.error} />
-        <Button type="submit" size="md" pending={start.isPending} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
+        <ScriptSubmitButton size="md" pending={start.isPending} pendingLabel="Starting…" disabled={Boolean(active) || itemCount === 0}>
           Make print bundle
-        </Button>
+        </ScriptSubmitButton>
         {itemCount === 0 ? <p className="text-sm text-ink-muted">Add a plate first.</p> : null}
       </form>
 

@@ -6,7 +6,7 @@
 // The server checks every value; the custom fields only show for the custom slot.
 import { useId, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -138,9 +138,9 @@ export function ItemLayoutForm(props: ItemLayoutFormProps) {
       <Feedback problem={problem} summarizeFields success={save.isSuccess ? "Saved." : null} />
       {props.readOnly ? null : (
         <div>
-          <Button type="submit" size="sm" pending={save.isPending} pendingLabel="Saving…">
+          <ScriptSubmitButton size="sm" pending={save.isPending} pendingLabel="Saving…">
             Save layout
-          </Button>
+          </ScriptSubmitButton>
         </div>
       )}
     </form>

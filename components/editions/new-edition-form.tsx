@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import type { FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { formStrings } from "@/components/forms/form-values";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -41,9 +41,9 @@ export function NewEditionForm() {
       </Field>
       <Feedback problem={problem} summarizeFields />
       <div>
-        <Button type="submit" variant="primary" pending={start.isPending} pendingLabel="Starting…">
+        <ScriptSubmitButton variant="primary" pending={start.isPending} pendingLabel="Starting…">
           Start the edition
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

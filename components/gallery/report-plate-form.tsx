@@ -5,7 +5,7 @@
 import { useId, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { formStrings } from "@/components/forms/form-values";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -53,9 +53,9 @@ export function ReportPlateForm({ slug, title }: { slug: string; title: string }
             </Field>
             <Feedback problem={problem} />
             <div>
-              <Button type="submit" variant="secondary" pending={report.isPending} pendingLabel="Sending…">
+              <ScriptSubmitButton variant="secondary" pending={report.isPending} pendingLabel="Sending…">
                 Send the report
-              </Button>
+              </ScriptSubmitButton>
             </div>
           </form>
         )}

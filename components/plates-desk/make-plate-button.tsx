@@ -5,7 +5,7 @@
 import { useRouter } from "next/navigation";
 import type { FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
@@ -53,9 +53,9 @@ export function MakePlateButton({ setId, reductions = [], compositeId }: MakePla
       <RenditionsPicker legend="Renditions to show" error={problem?.fields.renditions} />
       <Feedback problem={problem} />
       <div>
-        <Button type="submit" variant="primary" pending={make.isPending} pendingLabel="Making the plate…">
+        <ScriptSubmitButton variant="primary" pending={make.isPending} pendingLabel="Making the plate…">
           Make a plate
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

@@ -3,7 +3,7 @@
 import type { FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Badge } from "@/components/ui/badge";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
@@ -32,9 +32,9 @@ function AnswerForm({ plateId, reportId }: { plateId: string; reportId: string }
       </label>
       <Feedback problem={send.error} />
       <div>
-        <Button type="submit" size="sm" pending={send.isPending} pendingLabel="Sending…">
+        <ScriptSubmitButton size="sm" pending={send.isPending} pendingLabel="Sending…">
           Send the answer
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

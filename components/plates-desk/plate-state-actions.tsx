@@ -7,6 +7,7 @@
 import { useRef, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Dialog } from "@/components/ui/dialog";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
@@ -111,13 +112,13 @@ export function PlateStateActions({ plateId, title, state, withdrawnKind, licenc
           </Field>
           <div className="flex flex-wrap gap-2">
             {state === "published" ? (
-              <Button type="submit" name="kind" value="temporary">
+              <ScriptSubmitButton name="kind" value="temporary">
                 Withdraw while it is looked at
-              </Button>
+              </ScriptSubmitButton>
             ) : null}
-            <Button type="submit" name="kind" value="permanent" variant="danger">
+            <ScriptSubmitButton name="kind" value="permanent" variant="danger">
               Withdraw for good
-            </Button>
+            </ScriptSubmitButton>
           </div>
         </form>
       ) : null}

@@ -5,6 +5,7 @@
 import { useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
 import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Input } from "@/components/ui/input";
@@ -117,9 +118,9 @@ export function PlateTextForm({ plateId, values, suggestions, slugLocked, readOn
       <Feedback problem={problem} success={saved} />
       {readOnly ? null : (
         <div>
-          <Button type="submit" variant="primary" pending={save.isPending} pendingLabel="Saving…">
+          <ScriptSubmitButton variant="primary" pending={save.isPending} pendingLabel="Saving…">
             Save the texts
-          </Button>
+          </ScriptSubmitButton>
         </div>
       )}
     </form>

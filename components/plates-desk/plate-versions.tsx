@@ -4,7 +4,7 @@
 import Link from "next/link";
 import { useRef, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
@@ -75,9 +75,9 @@ export function PlateVersions({ plateId, currentVersion, versions, finishedReduc
           </Field>
           <Feedback problem={problem} success={add.data ? `Version ${add.data.version} is now the current one.` : null} />
           <div>
-            <Button type="submit" pending={add.isPending} pendingLabel="Adding the version…">
+            <ScriptSubmitButton pending={add.isPending} pendingLabel="Adding the version…">
               Add the version
-            </Button>
+            </ScriptSubmitButton>
           </div>
         </form>
       )}

@@ -2,7 +2,7 @@
 import { useRouter } from "next/navigation";
 import { useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Checkbox } from "@/components/ui/checkbox";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
@@ -147,9 +147,9 @@ export function ReductionStartForm({
         {err("recoverResponse") ? <p className="mt-1 text-sm font-medium text-danger">{err("recoverResponse")}</p> : null}
       </div>
       <div>
-        <Button type="submit" variant="primary" pending={start.isPending} pendingLabel="Starting…">
+        <ScriptSubmitButton variant="primary" pending={start.isPending} pendingLabel="Starting…">
           {submitLabel}
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

@@ -3,7 +3,7 @@
 // allows from the set's state are offered; the server checks again.
 import { useRef, useState, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Select } from "@/components/ui/select";
@@ -93,9 +93,9 @@ export function DecisionForm({
         <Textarea name="note" rows={3} maxLength={4000} />
       </Field>
       <div>
-        <Button type="submit" variant={action === "reject" ? "danger" : "primary"} pending={decide.isPending} pendingLabel="Saving…">
+        <ScriptSubmitButton variant={action === "reject" ? "danger" : "primary"} pending={decide.isPending} pendingLabel="Saving…">
           {ACTION_LABELS[action][0].toUpperCase() + ACTION_LABELS[action].slice(1)}
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

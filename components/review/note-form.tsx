@@ -1,7 +1,7 @@
 "use client";
 import { useRef, type FormEvent } from "react";
 import { useApiMutation } from "@/components/data/use-api-mutation";
-import { Button } from "@/components/ui/button";
+import { ScriptSubmitButton } from "@/components/ui/submit-button";
 import { Feedback } from "@/components/ui/feedback";
 import { Field } from "@/components/ui/field";
 import { Textarea } from "@/components/ui/textarea";
@@ -25,9 +25,9 @@ export function NoteForm({ setId }: { setId: string }) {
         <Textarea name="body" rows={3} maxLength={4000} />
       </Field>
       <div>
-        <Button type="submit" size="sm" pending={keep.isPending} pendingLabel="Saving…">
+        <ScriptSubmitButton size="sm" pending={keep.isPending} pendingLabel="Saving…">
           Keep note
-        </Button>
+        </ScriptSubmitButton>
       </div>
     </form>
   );

@@ -99,6 +99,30 @@ describe("sign-up", () => {
   });
 });
 
+describe("before the page's script has taken over", () => {
+  // A form that the page's script sends would otherwise go out as a plain GET,
+  // with the e-mail address and password in the address bar, the history and the logs.
+  it("a form sent by the page's script cannot be sent until the script runs", async () => {
+    const bare = await browser.newContext({ baseURL: APP, javaScriptEnabled: false });
+    const page = await bare.newPage();
+    await page.goto("/sign-in");
+    const submit = page.getByRole("button", { name: "Sign in" });
+    await expect(submit.isDisabled()).resolves.toBe(true);
+    await page.getByLabel("E-mail").fill(person("member").email);
+    await page.getByLabel("Password").fill(DEMO_PASSWORD);
+    await page.getByLabel("Password").press("Enter");
+    await page.waitForLoadState("load");
+    expect(page.url()).toBe(`${APP}/sign-in`);
+    await bare.close();
+
+    const scripted = await browser.newContext({ baseURL: APP });
+    const live = await scripted.newPage();
+    await live.goto("/sign-in");
+    await expect.poll(() => live.getByRole("button", { name: "Sign in" }).isEnabled(), { timeout: 15_000 }).toBe(true);
+    await scripted.close();
+  });
+});
+
 describe("after sign-in", () => {
   it("a hostile ?next= lands on the app, never another origin", async () => {
     const ctx = await browser.newContext({ baseURL: APP });
