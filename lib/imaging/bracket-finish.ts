@@ -1,11 +1,12 @@
 // The merge and the finish of a reduction: merge passes over any slice of the
 // kept frames (the accumulators of slices combine, see merge.ts), then the
 // master, its renditions and the per-frame report from the plan.
-import { type PreparedFrame, describeMergeFrame, openFrameWarp, warpFrameBand, warpFramePoints } from "./frame-stage";
+import { type PreparedFrame, describeMergeFrame, listFrameWarpArrays, openFrameWarp, warpFrameBand, warpFramePoints } from "./frame-stage";
 import { describeTransmission, RELEASED_PLANE, type BracketPlan } from "./bracket-plan";
 import { ImagingError } from "./errors";
 import { linearizeFrame } from "./linearize";
-import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, listScoreSamplePixels, sampleScorePoints, toPilot, type MergeAccumulator, type MergeFrameInput, type MergeFrameTally, type MergeResult, type PhotonPilot } from "./merge";
+import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTally, finishMerge, listMergeArrays, listScoreSamplePixels, sampleScorePoints, settleScoreScale, toPilot, type MergeAccumulator, type MergeFrameInput, type MergeFrameTally, type MergeResult, type PhotonPilot } from "./merge";
+import { foldRowTallies, WARP_MERGE_ROWS, type WarpMergeArgs } from "./merge-kernels";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
 import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
@@ -20,10 +21,10 @@ import type { ReductionResult } from "./pipeline";
  * merge once with the camera response; linear frames twice, the second pass
  * with the first's result as its pilot (weights and outlier test).
  */
-export function createMergePass(plan: BracketPlan, pilot?: PhotonPilot): MergeAccumulator {
+export function createMergePass(plan: BracketPlan, pilot?: PhotonPilot, runner?: PlaneRunner): MergeAccumulator {
   const { width, height, channels } = plan;
   if (plan.isEncoded) return createMergeAccumulator(width, height, channels, "debevec-hat", createCodeLookup(plan.responseTable!));
-  return createMergeAccumulator(width, height, channels, "photon", undefined, pilot);
+  return createMergeAccumulator(width, height, channels, "photon", undefined, pilot, runner);
 }
 
 /**
@@ -169,6 +170,115 @@ export function addKeptFrame(plan: BracketPlan, acc: MergeAccumulator, position:
 }
 
 /**
+ * What addKeptFrameOnRunner works in, from the runner's memory, reused frame after
+ * frame: the band's arrays and its rows' figures (WarpMergeArgs), and two masks of
+ * the frame's size for the clipped mask's widening.
+ */
+export interface RowWarpScratch {
+  band: Pick<WarpMergeArgs, "planes" | "covered" | "clipped" | "noiseFloor" | "masked" | "rowWeight" | "rowCounts" | "candidateScore" | "candidateWeight" | "candidateWell" | "candidateContribution">;
+  dilation: Uint8Array[];
+  rows: number;
+}
+
+export function createRowWarpScratch(plan: BracketPlan, runner: PlaneRunner, bandRows = MERGE_BAND_ROWS): RowWarpScratch {
+  const rows = Math.max(1, Math.min(plan.height, Math.floor(bandRows)));
+  const n = rows * plan.width;
+  const planes = () => Array.from({ length: plan.channels }, () => runner.float32(n));
+  return {
+    rows,
+    dilation: [runner.uint8(plan.width * plan.height), runner.uint8(plan.width * plan.height)],
+    band: {
+      planes: planes(), covered: runner.uint8(n), clipped: runner.uint8(n), noiseFloor: runner.uint8(n), masked: runner.uint8(n),
+      rowWeight: runner.float64(rows), rowCounts: new Int32Array(runner.float32(4 * rows).buffer),
+      candidateScore: runner.float32(n), candidateWeight: runner.float32(n), candidateWell: runner.uint8(n), candidateContribution: planes(),
+    },
+  };
+}
+
+/** Gives a row scratch's memory back to its runner. */
+export function releaseRowWarpScratch(scratch: RowWarpScratch, runner: PlaneRunner): void {
+  const { band } = scratch;
+  runner.release(...scratch.dilation, ...band.planes, band.covered, band.clipped, band.noiseFloor, band.masked, band.rowWeight, new Float32Array(band.rowCounts.buffer),
+    band.candidateScore, band.candidateWeight, band.candidateWell, ...band.candidateContribution);
+}
+
+/**
+ * addKeptFrame for a linear frame with its bands' rows shared out among a
+ * runner's threads (WARP_MERGE_ROWS), on an accumulator made with the same
+ * runner (createMergePass): the frame's arrays are copied into the runner's
+ * memory when they are not there. Every master pixel is the serial addition's,
+ * bit for bit; the frame's weight sum adds row by row (its last bits may differ
+ * from the serial sum's). The warp cache is used as addKeptFrame uses it.
+ */
+export function addKeptFrameOnRunner(plan: BracketPlan, acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, scratch: RowWarpScratch, runner: PlaneRunner, cache?: WarpCache): void {
+  if (plan.isEncoded) throw new ImagingError("bad-parameter", "8-bit frames merge whole, on one thread");
+  const k = plan.keep[position];
+  const offset = plan.offsets[k];
+  const { width, height, channels } = plan;
+  const { band } = scratch;
+  const tally = createMergeTally();
+  const scalars = describeMergeFrame(prepared, plan.effectiveExposuresS[position]);
+  const pixels = listScoreSamplePixels(acc);
+  const args = (y0: number): WarpMergeArgs => ({
+    ...listMergeArrays(acc), ...band, y0, warps: false, exposureS: scalars.exposureS, clipLevel: scalars.clipLevel,
+    noiseSigma: scalars.noiseSigma ?? NaN, scale: settleScoreScale(acc, tally) ?? NaN, hasMasked: false,
+  });
+  const addRows = (step: WarpMergeArgs, y0: number) => {
+    const rows = Math.min(scratch.rows, height - y0);
+    runner.run(WARP_MERGE_ROWS, step, rows);
+    foldRowTallies(step, rows, tally);
+    return rows * width;
+  };
+  // Second pass over a frame the first pass kept: its sample and bands from the cache.
+  if (cache && acc.pilot) {
+    const into = [...band.planes, band.covered, band.clipped, band.noiseFloor, band.masked];
+    const m = pixels.length;
+    const sample = takeCached(cache, position, 0, [...Array.from({ length: channels }, () => new Float32Array(m)), ...Array.from({ length: 4 }, () => new Uint8Array(m))], channels, scalars);
+    if (sample) {
+      sampleScorePoints(acc, sample, pixels, tally);
+      for (let y = 0, part = 1; y < height; y += scratch.rows, part++) {
+        const lengths = cache.take(position, part, into);
+        if (!lengths) throw new ImagingError("bad-parameter", `the merge's cache lost part ${part} of frame ${position + 1}`);
+        addRows({ ...args(y), hasMasked: lengths[channels + 3] > 0 }, y);
+      }
+      closeMergeFrame(acc, tally);
+      return;
+    }
+  }
+  const settled: LinearFrame = offset.blackLevel === frame.blackLevel ? frame : { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
+  const copies: (Float32Array | Uint8Array)[] = [];
+  const place = <T extends Float32Array | Uint8Array>(array: T): T => {
+    if (array.buffer instanceof SharedArrayBuffer) return array;
+    const copy = (array instanceof Float32Array ? runner.float32(array.length, true) : runner.uint8(array.length, true)) as T;
+    copy.set(array);
+    copies.push(copy);
+    return copy;
+  };
+  const warp = openFrameWarp(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, scratch.dilation, plan.effectiveExposuresS[position], place);
+  try {
+    let keeps = Boolean(cache) && !acc.pilot && cache!.reserve(position, (pixels.length + width * height) * (4 * channels + 4));
+    if (acc.pilot || keeps) {
+      const sample = warpFramePoints(warp, pixels);
+      if (keeps) keeps = cache!.put(position, 0, cachedArraysOf(sample));
+      else sampleScorePoints(acc, sample, pixels, tally);
+    }
+    const source = listFrameWarpArrays(warp);
+    const hasMasked = Boolean(source.sourceMasked);
+    for (let y = 0, part = 1; y < height; y += scratch.rows, part++) {
+      const n = addRows({ ...args(y), ...source, warps: true, hasMasked }, y);
+      if (keeps) {
+        const view = <T extends Float32Array | Uint8Array>(a: T) => a.subarray(0, n) as T;
+        keeps = cache!.put(position, part, [...band.planes.map(view), view(band.covered), view(band.clipped), view(band.noiseFloor), hasMasked ? view(band.masked) : new Uint8Array(0)]);
+      }
+    }
+    closeMergeFrame(acc, tally);
+  } finally {
+    warp.release();
+    runner.release(...copies);
+  }
+}
+
+/**
  * A kept frame's prepared data as the merge uses it, made again from the frame
  * and the plan alone (what planBracket hands its caller as `ready`): for linear
  * frames the linearization with the offset the plan settled on, for 8-bit frames
@@ -195,15 +305,19 @@ export function prepareKeptFrame(plan: BracketPlan, position: number, frame: Lin
  * accumulator, so that a caller may give its event loop a turn between frames.
  * With a cache, the second pass reads the frames the first pass warped.
  */
-export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void, cache?: WarpCache): Generator<void, MergeAccumulator, void> {
+export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void, cache?: WarpCache, runner?: PlaneRunner): Generator<void, MergeAccumulator, void> {
+  // Linear frames with a runner: each band's rows shared among its threads (addKeptFrameOnRunner).
+  const onRunner = runner && !plan.isEncoded ? runner : undefined;
   // Let go when the passes end (the generator object may outlive them), so the finish has the memory.
-  let scratch: WarpTarget | undefined = createWarpScratch(plan);
+  let scratch: WarpTarget | undefined = onRunner ? undefined : createWarpScratch(plan);
+  let rowScratch: RowWarpScratch | undefined = onRunner && createRowWarpScratch(plan, onRunner);
   const total = plan.keep.length;
   function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
     // Said as the pass starts, so that the first frame's merge is counted as the merge's (not the stage before).
     onProgress?.(stage, 0, { done: 0, total });
     for (let i = 0; i < total; i++) {
-      addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!, cache);
+      if (onRunner) addKeptFrameOnRunner(plan, acc, i, frames[plan.keep[i]], ready[i], rowScratch!, onRunner, cache);
+      else addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!, cache);
       onProgress?.(stage, (i + 1) / total, { done: i + 1, total });
       yield;
     }
@@ -213,10 +327,12 @@ export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[]
   if (plan.isEncoded) last = yield* pass(createMergePass(plan), "merge");
   else {
     // Only the pilot of the first pass is kept: its weights, coverage and scratch go before the second pass starts.
-    const pilot = toPilot(yield* pass(createMergePass(plan), "merge-pilot"));
-    last = yield* pass(createMergePass(plan, pilot), "merge");
+    const pilot = toPilot(yield* pass(createMergePass(plan, undefined, onRunner), "merge-pilot"), onRunner);
+    last = yield* pass(createMergePass(plan, pilot, onRunner), "merge");
   }
   scratch = undefined;
+  if (rowScratch) releaseRowWarpScratch(rowScratch, onRunner!);
+  rowScratch = undefined;
   return last;
 }
 

@@ -95,16 +95,19 @@ export function openFrameWarp(
   referenceMoon: LunarDisk,
   dilation?: Uint8Array[],
   effectiveExposureS?: number,
+  place: <T extends Float32Array | Uint8Array>(array: T) => T = (array) => array,
 ): FrameWarp {
   const { linear } = prepared;
   const { width, height } = linear;
   const identity = masterToFrame.a === 1 && masterToFrame.b === 0 && masterToFrame.tx === 0 && masterToFrame.ty === 0;
   const isLinear = frame.encoding === "linear";
-  const planes = isLinear ? frame.image.planes : linear.planes;
-  const masked = linear.masked;
+  // `place` may copy the frame's arrays elsewhere (a runner's shared memory) before they are used.
+  const planes = (isLinear ? frame.image.planes : linear.planes).map(place);
+  const masked = linear.masked && place(linear.masked);
   let clipped = linear.clipped;
   // Bicubic reaches two pixels: widen the clipped mask by one more before sampling it.
   if (!identity) clipped = dilateMask(clipped, width, height, 1, dilation && dilation.length >= 2 ? [dilation[0], dilation[1]] : undefined);
+  clipped = place(clipped);
   // A defect's own value never reaches the master: the warp reads it as the median of its sound
   // neighbours (so the bicubic support of the pixels around it is not spoilt), and the master
   // pixel that lands on it is masked. Only where every frame's defect lands is a master pixel empty.
@@ -116,8 +119,60 @@ export function openFrameWarp(
       restore.length = 0;
     },
     source: {
-      planes, clipped, noiseFloor: linear.noiseFloor, masked, black: isLinear ? frame.blackLevel : 0, masterToFrame, frameMoon, referenceMoon,
+      planes, clipped, noiseFloor: place(linear.noiseFloor), masked, black: isLinear ? frame.blackLevel : 0, masterToFrame, frameMoon, referenceMoon,
       ...describeMergeFrame(prepared, effectiveExposureS),
+    },
+  };
+}
+
+/**
+ * An opened frame's pixels and numbers as plain data, every array at the top
+ * level (what a runner's threads are given: see merge-kernels.ts). The frame is
+ * the master's size; its exposure, clip level and noise travel with the band.
+ */
+export interface FrameWarpArrays {
+  identity: boolean;
+  sourcePlanes: Float32Array[];
+  sourceClipped: Uint8Array;
+  sourceNoiseFloor: Uint8Array;
+  sourceMasked: Uint8Array | undefined;
+  black: number;
+  a: number;
+  b: number;
+  tx: number;
+  ty: number;
+  moonX: number;
+  moonY: number;
+  moonRadiusPx: number;
+  referenceX: number;
+  referenceY: number;
+  referenceRadiusPx: number;
+}
+
+/** An opened frame's FrameWarpArrays. */
+export function listFrameWarpArrays(warp: FrameWarp): FrameWarpArrays {
+  const { source } = warp;
+  const { a, b, tx, ty } = source.masterToFrame;
+  return {
+    identity: warp.identity, sourcePlanes: source.planes, sourceClipped: source.clipped, sourceNoiseFloor: source.noiseFloor, sourceMasked: source.masked,
+    black: source.black, a, b, tx, ty,
+    moonX: source.frameMoon.x, moonY: source.frameMoon.y, moonRadiusPx: source.frameMoon.radiusPx,
+    referenceX: source.referenceMoon.x, referenceY: source.referenceMoon.y, referenceRadiusPx: source.referenceMoon.radiusPx,
+  };
+}
+
+/** The frame that listFrameWarpArrays described, opened again over the same arrays (on another thread); its release does nothing. */
+export function openFrameWarpOnArrays(arrays: FrameWarpArrays & { width: number; height: number; exposureS: number; clipLevel: number; noiseSigma: number }): FrameWarp {
+  const { width, height, identity, a, b, tx, ty } = arrays;
+  return {
+    width, height, identity,
+    release: () => undefined,
+    source: {
+      planes: arrays.sourcePlanes, clipped: arrays.sourceClipped, noiseFloor: arrays.sourceNoiseFloor, masked: arrays.sourceMasked, black: arrays.black,
+      masterToFrame: { a, b, tx, ty },
+      frameMoon: { x: arrays.moonX, y: arrays.moonY, radiusPx: arrays.moonRadiusPx },
+      referenceMoon: { x: arrays.referenceX, y: arrays.referenceY, radiusPx: arrays.referenceRadiusPx },
+      exposureS: arrays.exposureS, clipLevel: arrays.clipLevel, noiseSigma: Number.isNaN(arrays.noiseSigma) ? undefined : arrays.noiseSigma,
     },
   };
 }

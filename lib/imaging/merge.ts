@@ -18,6 +18,7 @@
 //    where it scores as an outlier or in the wings of its own outliers.
 //  - 8-bit data: Debevec and Malik (1997), SIGGRAPH, eq. 6:
 //    ln E = sum w(Z_j) (g(Z_j) - ln t_j) / sum w(Z_j), hat weights w.
+import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { selectKth } from "./select";
 import { ImagingError } from "./errors";
 import { OUTLIER_WING_SIGMAS, createWorstRecord, growCandidates, joinWorstRecords, keepOwnWings, removeOutliers, type WorstCandidates, type WorstFrameRecord } from "./merge-outliers";
@@ -146,25 +147,81 @@ export function createMergeAccumulator(
   weighting: MergeWeighting,
   codeOf?: (linear: number) => number,
   pilot?: PhotonPilot,
+  runner: PlaneRunner = SERIAL_PLANE_RUNNER,
 ): MergeAccumulator {
   if (weighting === "debevec-hat" && !codeOf) throw new ImagingError("bad-parameter", "debevec-hat merge needs a map from linear value to 8-bit code");
   const n = width * height;
   const weightPlanes = weighting === "photon" ? 1 : channels;
+  // A runner's arrays, so that its threads can add bands of rows (merge-kernels.ts).
   return {
     width, height, channels, weighting,
-    sums: Array.from({ length: channels }, () => new Float32Array(n)),
-    weights: Array.from({ length: weightPlanes }, () => new Float64Array(n)),
-    fallback: new Float32Array(n),
-    coverage: new Uint16Array(n),
+    sums: Array.from({ length: channels }, () => runner.float32(n)),
+    weights: Array.from({ length: weightPlanes }, () => runner.float64(n)),
+    fallback: runner.float32(n),
+    coverage: runner.uint16(n),
     frameWeight: [], frameContributing: [], frameWellExposed: [], frameRejected: [], frameConsidered: [], codeOf, pilot,
     worst: pilot ? createWorstRecord(channels) : undefined,
   };
 }
 
 /** The finished first pass as the second pass's pilot (its sums shared, its exposure weights rounded to float32: see PhotonPilot). */
-export function toPilot(acc: MergeAccumulator): PhotonPilot {
+export function toPilot(acc: MergeAccumulator, runner: PlaneRunner = SERIAL_PLANE_RUNNER): PhotonPilot {
   if (acc.weighting !== "photon") throw new ImagingError("bad-parameter", "only the linear merge has a second pass");
-  return { sums: acc.sums, weights: Float32Array.from(acc.weights[0]) };
+  const weights = runner.float32(acc.weights[0].length, true);
+  weights.set(acc.weights[0]);
+  // The first pass's exposure weights and the rest of its arrays go back to the runner (the sums live on in the pilot).
+  runner.release(acc.weights[0], acc.fallback, acc.coverage);
+  return { sums: acc.sums, weights };
+}
+
+/**
+ * The arrays of an accumulator that adding a band writes or reads, as plain data
+ * a thread can be given (a runner's shared arrays): see openMergeArrays.
+ */
+export interface MergeArrays {
+  width: number;
+  height: number;
+  channels: number;
+  sums: Float32Array[];
+  exposure: Float64Array;
+  fallback: Float32Array;
+  coverage: Uint16Array;
+  pilotSums?: Float32Array[];
+  pilotWeights?: Float32Array;
+  /** Second pass with a worst-frame record: used pixels are scored, and those past the wing become candidates. */
+  scoring: boolean;
+}
+
+/** A linear merge's arrays (see MergeArrays). */
+export function listMergeArrays(acc: MergeAccumulator): MergeArrays {
+  if (acc.weighting !== "photon") throw new ImagingError("bad-parameter", "only the linear merge adds bands of rows on threads");
+  const { width, height, channels, sums, fallback, coverage, pilot } = acc;
+  return { width, height, channels, sums, exposure: acc.weights[0], fallback, coverage, pilotSums: pilot?.sums, pilotWeights: pilot?.weights, scoring: Boolean(acc.worst) };
+}
+
+/**
+ * An accumulator over the arrays of listMergeArrays, for addBandToMerge on another
+ * thread: its pixels are the original's; its per-frame records are its own (empty),
+ * and the bands' figures go to the tally the caller gives.
+ */
+export function openMergeArrays(arrays: MergeArrays): MergeAccumulator {
+  const { width, height, channels, sums, exposure, fallback, coverage, pilotSums, pilotWeights, scoring } = arrays;
+  return {
+    width, height, channels, weighting: "photon", sums, weights: [exposure], fallback, coverage,
+    pilot: pilotSums && pilotWeights ? { sums: pilotSums, weights: pilotWeights } : undefined,
+    worst: scoring ? createWorstRecord(channels) : undefined,
+    frameWeight: [], frameContributing: [], frameWellExposed: [], frameRejected: [], frameConsidered: [],
+  };
+}
+
+/**
+ * The frame's outlier scale from its tally's sample (second pass with a
+ * worst-frame record), measured once as the first band's addition would; undefined
+ * without a record.
+ */
+export function settleScoreScale(acc: MergeAccumulator, tally: MergeFrameTally): number | undefined {
+  if (!acc.worst || !acc.pilot) return undefined;
+  return (tally.scale ??= measureScoreScale(tally.sample));
 }
 
 /**

@@ -40,6 +40,8 @@ export interface PlaneRunner {
   float64(length: number, written?: boolean): Float64Array;
   /** A Uint8Array its kernels may use (as float32). */
   uint8(length: number, written?: boolean): Uint8Array;
+  /** A Uint16Array its kernels may use (as float32). */
+  uint16(length: number, written?: boolean): Uint16Array;
   /** kernel.run over [0, units), in pieces on any of the runner's threads; returns when every piece is done. */
   run<A>(kernel: PlaneKernel<A>, args: A, units: number): void;
   /**
@@ -59,6 +61,7 @@ export const SERIAL_PLANE_RUNNER: PlaneRunner = {
   float32: (length) => new Float32Array(length),
   float64: (length) => new Float64Array(length),
   uint8: (length) => new Uint8Array(length),
+  uint16: (length) => new Uint16Array(length),
   run(kernel, args, units) {
     if (units > 0) kernel.run(args, 0, units);
   },

@@ -154,6 +154,7 @@ export function createPlanePool(options: PlanePoolOptions = {}): PlanePool {
     float32: (length, written) => new Float32Array(sharedBuffer(4 * length, written)),
     float64: (length, written) => new Float64Array(sharedBuffer(8 * length, written)),
     uint8: (length, written) => new Uint8Array(sharedBuffer(length, written)),
+    uint16: (length, written) => new Uint16Array(sharedBuffer(2 * length, written)),
     release(...arrays) {
       for (const a of arrays) {
         const buffer = a?.buffer;

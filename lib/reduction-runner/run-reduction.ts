@@ -6,8 +6,8 @@
 import { stat, writeFile } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
-import { finishBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
-import type { MergeAccumulator } from "@/lib/imaging/merge";
+import { finishMergedBracket, mergeKeptFramesInSteps } from "@/lib/imaging/bracket-finish";
+import { finishMerge, type MergeAccumulator } from "@/lib/imaging/merge";
 import { planBracketOnThreads } from "@/lib/imaging/bracket-plan";
 import { prepareFrameWithLimb } from "@/lib/imaging/frame-stage";
 import type { PreparedFrame, ReductionResult } from "@/lib/imaging/pipeline";
@@ -154,27 +154,33 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
     await pool.close();
   }
   const { plan, ready } = planned;
-  await yieldToEventLoop();
-  const started = performance.now();
-  // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
-  const cache = spill ? createWarpCache({ parentDir: scratchDir }) : undefined;
-  let acc: MergeAccumulator;
-  try {
-    const steps = mergeKeptFramesInSteps(plan, frames, ready, progress, cache);
-    let step = steps.next();
-    while (!step.done) {
-      await yieldToEventLoop();
-      step = steps.next();
-    }
-    acc = step.value;
-  } finally {
-    cache?.close();
-  }
-  // The renditions' per-pixel steps and blurs on both cores: this thread and the pool's worker
-  // (which starts while the merge is finished), with the same renditions as on this thread alone.
+  // The merge's bands and the renditions' per-pixel steps and blurs on both cores: this thread
+  // and the pool's worker, with the same master and renditions as on this thread alone.
   const planes = createPlanePool();
   try {
-    return finishBracket(plan, acc, progress, performance.now() - started, planes);
+    await planes.ready();
+    const started = performance.now();
+    // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
+    const cache = spill ? createWarpCache({ parentDir: scratchDir }) : undefined;
+    // Each pass reads a frame's arrays once, into the pool's memory: the spill's copies would only be held twice.
+    spill?.setCacheBytes(0);
+    let acc: MergeAccumulator;
+    try {
+      const steps = mergeKeptFramesInSteps(plan, frames, ready, progress, cache, planes);
+      let step = steps.next();
+      while (!step.done) {
+        await yieldToEventLoop();
+        step = steps.next();
+      }
+      acc = step.value;
+    } finally {
+      cache?.close();
+    }
+    // The merge's result, then its shared arrays given back (the accumulator's weights, the pilot,
+    // the frame copies and band scratch) before the renditions make theirs.
+    const merged = finishMerge(acc);
+    planes.trim();
+    return finishMergedBracket(plan, merged, progress, performance.now() - started, planes);
   } finally {
     await planes.close();
   }

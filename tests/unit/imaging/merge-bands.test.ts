@@ -4,8 +4,12 @@
 // outliers included. Checked on a bracket with pointing errors (so every frame is
 // warped), a satellite trail (so the outlier test takes pixels out) and hot pixels
 // found in the bracket (so defects are repaired for the warp and put back after).
-import { describe, expect, it } from "vitest";
-import { addKeptFrame, createMergePass, createWarpScratch, type WarpCache } from "@/lib/imaging/bracket-finish";
+// The same with each band's rows shared among a plane pool's threads
+// (addKeptFrameOnRunner), every row through a worker or shared with the caller.
+import { afterAll, describe, expect, it } from "vitest";
+import { addKeptFrame, addKeptFrameOnRunner, createMergePass, createRowWarpScratch, createWarpScratch, releaseRowWarpScratch, type WarpCache } from "@/lib/imaging/bracket-finish";
+import type { PlaneRunner } from "@/lib/imaging/plane-runner";
+import { createPlanePool, type PlanePool } from "@/lib/reduction-runner/plane-pool";
 import { planBracket } from "@/lib/imaging/bracket-plan";
 import { addFrameToMerge, finishMerge, toPilot, type MergeAccumulator, type MergeResult } from "@/lib/imaging/merge";
 import { warpFrameForMerge } from "@/lib/imaging/pipeline";
@@ -72,10 +76,10 @@ describe("merging a frame band by band", () => {
   const { plan, ready } = planBracket(frames, [], DEFAULT_REDUCTION_PARAMS);
   // Both passes with each frame added by `add`.
   // Both passes with each frame added by `add`; the outlier scores as they stood before the finish.
-  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void): MergeResult & { scores: Float32Array; pixels: Int32Array } => {
-    const first = createMergePass(plan);
+  const mergeWith = (add: (acc: MergeAccumulator, position: number) => void, runner?: PlaneRunner): MergeResult & { scores: Float32Array; pixels: Int32Array } => {
+    const first = createMergePass(plan, undefined, runner);
     plan.keep.forEach((_, i) => add(first, i));
-    const second = createMergePass(plan, toPilot(first));
+    const second = createMergePass(plan, toPilot(first, runner), runner);
     plan.keep.forEach((_, i) => add(second, i));
     const { score, pixel } = second.worst!;
     return { ...finishMerge(second), scores: Float32Array.from(score), pixels: Int32Array.from(pixel) };
@@ -114,4 +118,40 @@ describe("merging a frame band by band", () => {
     // The defects the warp repaired were put back: the frames are as they came.
     frames.forEach((f, i) => f.image.planes.forEach((p, c) => expect(Buffer.from(p.buffer).equals(Buffer.from(before[i][c].buffer)), `${f.name} plane ${c}`).toBe(true)));
   });
+
+  const pools: PlanePool[] = [];
+  afterAll(async () => {
+    await Promise.all(pools.map((p) => p.close()));
+  });
+
+  it("gives the same with each band's rows shared among threads, cached or not", async () => {
+    const before = frames.map((f) => f.image.planes.map((p) => Float32Array.from(p)));
+    const plain = mergeWith((acc, i) => addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], createWarpScratch(plan, 64)));
+    for (const callerWorks of [false, true]) {
+      const pool = createPlanePool({ callerWorks });
+      pools.push(pool);
+      expect(await pool.ready()).toBe(1);
+      for (const [rows, roomFor] of [[64, 0], [7, Infinity], [H, 3]] as const) {
+        const scratch = createRowWarpScratch(plan, pool, rows);
+        const cache = roomFor > 0 ? createMemoryWarpCache(roomFor) : undefined;
+        const shared = mergeWith((acc, i) => addKeptFrameOnRunner(plan, acc, i, frames[plan.keep[i]], ready[i], scratch, pool, cache), pool);
+        releaseRowWarpScratch(scratch, pool);
+        const label = `${rows} rows, ${callerWorks ? "caller and worker" : "worker alone"}, room for ${roomFor} frames`;
+        expect(Buffer.from(shared.coverage.buffer).equals(Buffer.from(plain.coverage.buffer)), label).toBe(true);
+        for (let c = 0; c < plain.radiance.length; c++) expect(Buffer.from(shared.radiance[c].buffer).equals(Buffer.from(plain.radiance[c].buffer)), `${label}: plane ${c}`).toBe(true);
+        expect(Buffer.from(shared.pixels.buffer).equals(Buffer.from(plain.pixels.buffer)), label).toBe(true);
+        expect(Buffer.from(shared.scores.buffer).equals(Buffer.from(plain.scores.buffer)), label).toBe(true);
+        // The frame's weight adds up row by row: its share may differ from the serial sum's in the last bits alone.
+        shared.frameStats.forEach((s, i) => {
+          const { weightShare, ...rest } = plain.frameStats[i];
+          expect({ ...s, weightShare: undefined }, label).toEqual({ ...rest, weightShare: undefined });
+          expect(Math.abs(s.weightShare - weightShare), label).toBeLessThan(1e-12);
+        });
+        if (cache) expect(cache.left(), `${label}: every part kept was read once`).toBe(0);
+      }
+      // Every row went through a thread of the pool at least once.
+      expect(pool.counts().byWorkers).toBeGreaterThan(0);
+    }
+    frames.forEach((f, i) => f.image.planes.forEach((p, c) => expect(Buffer.from(p.buffer).equals(Buffer.from(before[i][c].buffer)), `${f.name} plane ${c}`).toBe(true)));
+  }, 120_000);
 });
