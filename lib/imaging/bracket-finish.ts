@@ -305,19 +305,46 @@ export function prepareKeptFrame(plan: BracketPlan, position: number, frame: Lin
  * accumulator, so that a caller may give its event loop a turn between frames.
  * With a cache, the second pass reads the frames the first pass warped.
  */
+/** Adds a plan's kept frames to merge passes, with its scratch; release gives the scratch back. */
+export interface KeptFrameAdder {
+  add: (acc: MergeAccumulator, position: number, frame: LinearFrame, prepared: PreparedFrame, cache?: WarpCache) => void;
+  release: () => void;
+}
+
+/**
+ * The one choice of how kept frames are added: linear frames with a runner on its
+ * threads (addKeptFrameOnRunner, into accumulators made with the same runner),
+ * else on this thread (addKeptFrame). The same master either way, bit for bit.
+ */
+export function createKeptFrameAdder(plan: BracketPlan, runner?: PlaneRunner): KeptFrameAdder {
+  if (runner && !plan.isEncoded) {
+    let rows: RowWarpScratch | undefined = createRowWarpScratch(plan, runner);
+    return {
+      add: (acc, position, frame, prepared, cache) => addKeptFrameOnRunner(plan, acc, position, frame, prepared, rows!, runner, cache),
+      release: () => {
+        if (rows) releaseRowWarpScratch(rows, runner);
+        rows = undefined;
+      },
+    };
+  }
+  // Let go on release (the caller may outlive the passes), so the finish has the memory.
+  let scratch: WarpTarget | undefined = createWarpScratch(plan);
+  return {
+    add: (acc, position, frame, prepared, cache) => addKeptFrame(plan, acc, position, frame, prepared, scratch!, cache),
+    release: () => {
+      scratch = undefined;
+    },
+  };
+}
+
 export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[], ready: PreparedFrame[], onProgress?: (stage: string, fraction: number, frames?: FrameCount) => void, cache?: WarpCache, runner?: PlaneRunner): Generator<void, MergeAccumulator, void> {
-  // Linear frames with a runner: each band's rows shared among its threads (addKeptFrameOnRunner).
-  const onRunner = runner && !plan.isEncoded ? runner : undefined;
-  // Let go when the passes end (the generator object may outlive them), so the finish has the memory.
-  let scratch: WarpTarget | undefined = onRunner ? undefined : createWarpScratch(plan);
-  let rowScratch: RowWarpScratch | undefined = onRunner && createRowWarpScratch(plan, onRunner);
+  const adder = createKeptFrameAdder(plan, runner);
   const total = plan.keep.length;
   function* pass(acc: MergeAccumulator, stage: string): Generator<void, MergeAccumulator, void> {
     // Said as the pass starts, so that the first frame's merge is counted as the merge's (not the stage before).
     onProgress?.(stage, 0, { done: 0, total });
     for (let i = 0; i < total; i++) {
-      if (onRunner) addKeptFrameOnRunner(plan, acc, i, frames[plan.keep[i]], ready[i], rowScratch!, onRunner, cache);
-      else addKeptFrame(plan, acc, i, frames[plan.keep[i]], ready[i], scratch!, cache);
+      adder.add(acc, i, frames[plan.keep[i]], ready[i], cache);
       onProgress?.(stage, (i + 1) / total, { done: i + 1, total });
       yield;
     }
@@ -327,12 +354,10 @@ export function* mergeKeptFramesInSteps(plan: BracketPlan, frames: LinearFrame[]
   if (plan.isEncoded) last = yield* pass(createMergePass(plan), "merge");
   else {
     // Only the pilot of the first pass is kept: its weights, coverage and scratch go before the second pass starts.
-    const pilot = toPilot(yield* pass(createMergePass(plan, undefined, onRunner), "merge-pilot"), onRunner);
-    last = yield* pass(createMergePass(plan, pilot, onRunner), "merge");
+    const pilot = toPilot(yield* pass(createMergePass(plan, undefined, runner), "merge-pilot"), runner);
+    last = yield* pass(createMergePass(plan, pilot, runner), "merge");
   }
-  scratch = undefined;
-  if (rowScratch) releaseRowWarpScratch(rowScratch, onRunner!);
-  rowScratch = undefined;
+  adder.release();
   return last;
 }
 

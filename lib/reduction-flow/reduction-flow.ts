@@ -28,7 +28,8 @@ import { eq } from "drizzle-orm";
 import type { Db, DbOrTx } from "@/db/client";
 import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
-import { addKeptFrame, createMergePass, createWarpScratch, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
+import { createKeptFrameAdder, createMergePass, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
+import type { PlaneRunner } from "@/lib/imaging/plane-runner";
 import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
 import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters } from "@/lib/imaging/calibrate";
 import { combineBracketOutliers, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
@@ -226,15 +227,33 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
   const survey = await cachedPiece<{ decoded: number[]; defects?: Uint8Array }>(place, "survey");
   const pilot = step === "merge" && !plan.isEncoded ? await cachedPiece<PhotonPilot>(place, "pilot") : undefined;
   const { from, to } = sliceKept(plan.keep.length)[ctx.payload.part];
-  const acc = createMergePass(plan, pilot);
-  const scratch = createWarpScratch(plan);
-  for (let position = from; position < to; position++) {
-    const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]]), survey.defects);
-    addKeptFrame(plan, acc, position, frame, prepareKeptFrame(plan, position, frame), scratch);
-    await countMergedFrame(ctx, place, step, position, plan.keep.length);
+  // Each band's rows on both cores (the plane pool's worker and this thread), the same slice bit for bit.
+  const planes = createPlanePool();
+  try {
+    await planes.ready();
+    const acc = createMergePass(plan, pilot && sharePilot(pilot, planes), planes);
+    const adder = createKeptFrameAdder(plan, planes);
+    for (let position = from; position < to; position++) {
+      const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]]), survey.defects);
+      adder.add(acc, position, frame, prepareKeptFrame(plan, position, frame));
+      await countMergedFrame(ctx, place, step, position, plan.keep.length);
+    }
+    adder.release();
+    await putWork(place, `${step}-${ctx.payload.part}`, storableAccumulator(acc));
+  } finally {
+    await planes.close();
   }
-  await putWork(place, `${step}-${ctx.payload.part}`, storableAccumulator(acc));
   return to - from;
+}
+
+/** The pilot in a runner's memory, so that its threads read it. */
+function sharePilot(pilot: PhotonPilot, runner: PlaneRunner): PhotonPilot {
+  const copy = (a: Float32Array) => {
+    const shared = runner.float32(a.length, true);
+    shared.set(a);
+    return shared;
+  };
+  return { sums: pilot.sums.map(copy), weights: copy(pilot.weights) };
 }
 
 /** The run's inputs from the database: the frames the start form checked, the set's calibration frames, settings. */
