@@ -32,5 +32,12 @@ export function useHydrated(): boolean {
  */
 export function ScriptSubmitButton({ disabled, ...rest }: Omit<ButtonProps, "type">) {
   const hydrated = useHydrated();
-  return <Button type="submit" disabled={!hydrated || disabled} {...rest} />;
+  return (
+    <>
+      <Button type="submit" disabled={!hydrated || disabled} {...rest} />
+      <noscript>
+        <span className="text-sm text-ink-muted">This form is sent by the page&apos;s script: turn JavaScript on to send it.</span>
+      </noscript>
+    </>
+  );
 }

@@ -108,6 +108,8 @@ describe("before the page's script has taken over", () => {
     await page.goto("/sign-in");
     const submit = page.getByRole("button", { name: "Sign in" });
     await expect(submit.isDisabled()).resolves.toBe(true);
+    // A browser without scripts shows why (Chromium under test still parses <noscript> as scripting-enabled, so the served HTML is checked).
+    expect(await (await page.request.get("/sign-in")).text()).toMatch(/<noscript><span[^>]*>This form is sent by the page(&#x27;|&apos;|')s script: turn JavaScript on to send it\.<\/span><\/noscript>/);
     await page.getByLabel("E-mail").fill(person("member").email);
     await page.getByLabel("Password").fill(DEMO_PASSWORD);
     await page.getByLabel("Password").press("Enter");
