@@ -45,12 +45,15 @@ const workers = QUEUES.map((queue) => {
   return w;
 });
 
+// Scheduled runs take their attempts from JOBS, with enqueue's backoff: a run caught by a moment
+// without Redis is tried again, not left failed until the next one.
+const scheduledOpts = (name: "uploads.sweep" | "outbox.resend") => ({ attempts: JOBS[name].attempts, backoff: { type: "exponential", delay: 2000 } });
 // The sweep runs every hour; upsertJobScheduler keeps one schedule however many workers start.
 const sweeper = new Queue("media", { connection, prefix });
-await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { name: "uploads.sweep", data: {} });
+await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { name: "uploads.sweep", data: {}, opts: scheduledOpts("uploads.sweep") });
 // Mail whose job never reached Redis (an enqueue that failed after its commit) is queued again every 5 minutes.
 const mailScheduler = new Queue("mail", { connection, prefix });
-await mailScheduler.upsertJobScheduler("outbox-resend-5min", { every: 5 * 60_000 }, { name: "outbox.resend", data: {} });
+await mailScheduler.upsertJobScheduler("outbox-resend-5min", { every: 5 * 60_000 }, { name: "outbox.resend", data: {}, opts: scheduledOpts("outbox.resend") });
 
 // scripts/with-malloc-tuning.sh sets this; without it a large reduction holds a few hundred MB more.
 if (process.platform === "linux" && !process.env.MALLOC_MMAP_THRESHOLD_) {

@@ -15,11 +15,12 @@ export const JOBS = {
     payload: z.object({ outboxId: z.string().min(1) }),
     attempts: 5,
   },
-  // Every few minutes: queue again pending mail whose job never reached Redis.
+  // Every few minutes: queue again pending mail whose job never reached Redis. Safe to run again
+  // (each mail's job id is fixed), so a run that Redis dropped is retried.
   "outbox.resend": {
     queue: "mail",
     payload: z.object({}),
-    attempts: 1,
+    attempts: 3,
   },
   // Reads one uploaded original: checksum, format, metadata, thumbnail.
   "frame.ingest": {
@@ -27,11 +28,11 @@ export const JOBS = {
     payload: z.object({ frameId: z.uuid() }),
     attempts: 3,
   },
-  // Hourly: abort multipart uploads abandoned for longer than the limit.
+  // Hourly: abort multipart uploads abandoned for longer than the limit (safe to run again).
   "uploads.sweep": {
     queue: "media",
     payload: z.object({}),
-    attempts: 1,
+    attempts: 3,
   },
   // One reduction of a bracket set: fetch originals, reduce, store outputs.
   "reduction.run": {
