@@ -142,8 +142,9 @@ describe("the reduction page", () => {
     await strength.fill("2");
     await page.getByRole("button", { name: "Start another reduction" }).click();
     // The shared zod schema refuses it in the browser: the problem sits under the field's label.
-    await expect(strength.getAttribute("aria-invalid")).resolves.toBe("true");
-    await expect(page.getByText("must be at most 1").isVisible()).resolves.toBe(true);
+    // The check runs in the browser as the form is sent; its marks come with the next render, so they are waited for.
+    await expect.poll(() => strength.getAttribute("aria-invalid"), { timeout: 15_000 }).toBe("true");
+    await page.getByText("must be at most 1").waitFor({ timeout: 15_000 });
     await expect(page.getByRole("alert").filter({ hasText: "Please correct the marked field." }).count()).resolves.toBe(1);
     await snap(page, "reduction-03-form-refused");
 
