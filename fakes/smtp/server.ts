@@ -24,11 +24,20 @@ const dir = path.resolve(process.env.SMTP_FAKE_DIR ?? ".data/mail");
 fs.mkdirSync(dir, { recursive: true });
 
 // Messages survive a restart of the fake: they are kept as JSON files too.
+// A file cut short (the fake killed while writing it) is skipped with a line in
+// the log, so that one bad file never keeps the mailbox from starting.
 const messages: CapturedMessage[] = fs
   .readdirSync(dir)
   .filter((f) => f.endsWith(".json"))
   .sort()
-  .map((f) => JSON.parse(fs.readFileSync(path.join(dir, f), "utf8")) as CapturedMessage);
+  .flatMap((f) => {
+    try {
+      return [JSON.parse(fs.readFileSync(path.join(dir, f), "utf8")) as CapturedMessage];
+    } catch (err) {
+      console.error(`smtp fake: skipped ${f}: ${(err as Error).message}`);
+      return [];
+    }
+  });
 let counter = messages.length;
 
 const smtp = new SMTPServer({
@@ -120,6 +129,14 @@ const mailbox = http.createServer((req, res) => {
     return;
   }
   res.writeHead(404).end();
+});
+
+// A client that drops its connection in the middle of a message (a worker
+// killed while sending, say) makes smtp-server emit "error" on the server.
+// Without a listener that error ends the process, and every later mail is lost;
+// a real relay only drops that one message.
+smtp.on("error", (err: Error & { code?: string; remoteAddress?: string }) => {
+  console.error(`smtp fake: connection from ${err.remoteAddress ?? "?"} failed: ${err.code ?? err.message}`);
 });
 
 smtp.listen(smtpPort, "127.0.0.1", () => console.log(`smtp fake on 127.0.0.1:${smtpPort}`));
