@@ -9,7 +9,7 @@ import { addBandToMerge, closeMergeFrame, createMergeAccumulator, createMergeTal
 import { foldRowTallies, WARP_MERGE_ROWS, type WarpMergeArgs } from "./merge-kernels";
 import type { WarpTarget } from "./resample";
 import { createCodeLookup } from "./response";
-import { SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
+import { inRunnerMemory, SERIAL_PLANE_RUNNER, type PlaneRunner } from "./plane-runner";
 import { applyAffine, fromAffine } from "./similarity";
 import { renderMasterRenditions } from "./renditions";
 import type { FrameCount, LinearFrame, PlaneImage } from "./types";
@@ -248,11 +248,9 @@ export function addKeptFrameOnRunner(plan: BracketPlan, acc: MergeAccumulator, p
   const settled: LinearFrame = offset.blackLevel === frame.blackLevel ? frame : { ...frame, blackLevel: offset.blackLevel, blackLevelSource: offset.blackLevelSource };
   const copies: (Float32Array | Uint8Array)[] = [];
   const place = <T extends Float32Array | Uint8Array>(array: T): T => {
-    if (array.buffer instanceof SharedArrayBuffer) return array;
-    const copy = (array instanceof Float32Array ? runner.float32(array.length, true) : runner.uint8(array.length, true)) as T;
-    copy.set(array);
-    copies.push(copy);
-    return copy;
+    const shared = inRunnerMemory(runner, array);
+    if (shared.copied) copies.push(shared.array);
+    return shared.array;
   };
   const warp = openFrameWarp(settled, prepared, plan.registration[position].masterToFrame, plan.moons[position], plan.referenceMoon, scratch.dilation, plan.effectiveExposuresS[position], place);
   try {

@@ -56,6 +56,18 @@ export interface PlaneRunner {
   trim(): void;
 }
 
+/**
+ * The array in memory the runner's threads share: itself when it is there already
+ * (or the runner has one thread), else a copy in the runner's memory, which the
+ * caller releases. `copied` says which.
+ */
+export function inRunnerMemory<T extends Float32Array | Uint8Array>(runner: PlaneRunner, array: T): { array: T; copied: boolean } {
+  if (runner === SERIAL_PLANE_RUNNER || array.buffer instanceof SharedArrayBuffer) return { array, copied: false };
+  const copy = (array instanceof Float32Array ? runner.float32(array.length, true) : runner.uint8(array.length, true)) as T;
+  copy.set(array);
+  return { array: copy, copied: true };
+}
+
 /** The calling thread alone: plain arrays, each run as one range. */
 export const SERIAL_PLANE_RUNNER: PlaneRunner = {
   float32: (length) => new Float32Array(length),

@@ -29,7 +29,7 @@ import type { Db, DbOrTx } from "@/db/client";
 import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { createKeptFrameAdder, createMergePass, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
-import type { PlaneRunner } from "@/lib/imaging/plane-runner";
+import { inRunnerMemory, type PlaneRunner } from "@/lib/imaging/plane-runner";
 import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
 import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters } from "@/lib/imaging/calibrate";
 import { combineBracketOutliers, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
@@ -248,11 +248,7 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
 
 /** The pilot in a runner's memory, so that its threads read it. */
 function sharePilot(pilot: PhotonPilot, runner: PlaneRunner): PhotonPilot {
-  const copy = (a: Float32Array) => {
-    const shared = runner.float32(a.length, true);
-    shared.set(a);
-    return shared;
-  };
+  const copy = (a: Float32Array) => inRunnerMemory(runner, a).array;
   return { sums: pilot.sums.map(copy), weights: copy(pilot.weights) };
 }
 
