@@ -8,7 +8,7 @@ import { closeDb, getDb } from "@/db/client";
 import { closeExportExifTool } from "@/lib/editions/export/embed";
 import { requireEnvOrExit } from "@/lib/env";
 import { createRedis } from "@/lib/queue/connection";
-import { JOBS, QUEUES } from "@/lib/queue/jobs";
+import { JOBS, QUEUES, SCHEDULED_JOBS } from "@/lib/queue/jobs";
 import { failReductionGivenUp } from "@/lib/reductions/run";
 import { createDispatcher, mirrorOutcomes } from "./dispatch";
 import { HANDLERS } from "./registry";
@@ -45,15 +45,22 @@ const workers = QUEUES.map((queue) => {
   return w;
 });
 
-// Scheduled runs take their attempts from JOBS, with enqueue's backoff: a run caught by a moment
-// without Redis is tried again, not left failed until the next one.
-const scheduledOpts = (name: "uploads.sweep" | "outbox.resend") => ({ attempts: JOBS[name].attempts, backoff: { type: "exponential", delay: 2000 } });
-// The sweep runs every hour; upsertJobScheduler keeps one schedule however many workers start.
-const sweeper = new Queue("media", { connection, prefix });
-await sweeper.upsertJobScheduler("uploads-sweep-hourly", { every: 3600_000 }, { name: "uploads.sweep", data: {}, opts: scheduledOpts("uploads.sweep") });
-// Mail whose job never reached Redis (an enqueue that failed after its commit) is queued again every 5 minutes.
-const mailScheduler = new Queue("mail", { connection, prefix });
-await mailScheduler.upsertJobScheduler("outbox-resend-5min", { every: 5 * 60_000 }, { name: "outbox.resend", data: {}, opts: scheduledOpts("outbox.resend") });
+// Scheduled runs (SCHEDULED_JOBS) take their attempts from JOBS, with enqueue's backoff: a run caught
+// by a moment without Redis is tried again, not left failed until the next one. A run that completes
+// is removed at once (a run a minute would otherwise pile up in Redis for good); `true` removes that
+// run alone, where a count would trim the queue's other completed jobs too. Failed runs are kept as
+// enqueue keeps them. upsertJobScheduler keeps one schedule however many workers start.
+const schedulers = new Map<string, Queue>();
+for (const { name, schedulerId, everyMs } of SCHEDULED_JOBS) {
+  const queueName = JOBS[name].queue;
+  const scheduler = schedulers.get(queueName) ?? new Queue(queueName, { connection, prefix });
+  schedulers.set(queueName, scheduler);
+  await scheduler.upsertJobScheduler(
+    schedulerId,
+    { every: everyMs },
+    { name, data: {}, opts: { attempts: JOBS[name].attempts, backoff: { type: "exponential", delay: 2000 }, removeOnComplete: true, removeOnFail: { age: 7 * 24 * 3600 } } },
+  );
+}
 
 // scripts/with-malloc-tuning.sh sets this; without it a large reduction holds a few hundred MB more.
 if (process.platform === "linux" && !process.env.MALLOC_MMAP_THRESHOLD_) {
@@ -68,8 +75,7 @@ async function shutdown(signal: string) {
   console.log(`[worker] ${signal}: finishing running jobs`);
   await Promise.all(workers.map((w) => w.close()));
   await dispatcher.close();
-  await sweeper.close();
-  await mailScheduler.close();
+  await Promise.all([...schedulers.values()].map((q) => q.close()));
   await closeExportExifTool();
   connection.disconnect();
   await closeDb();

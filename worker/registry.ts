@@ -8,6 +8,7 @@ import { runComposite } from "./jobs/composite-run";
 import { exportEdition } from "./jobs/edition-export";
 import { ingestFrame } from "./jobs/frame-ingest";
 import { sendMail } from "./jobs/mail-send";
+import { settleMirrors } from "./jobs/mirrors-settle";
 import { resendOutbox } from "./jobs/outbox-resend";
 import { runReduction } from "./jobs/reduction-run";
 import { sweepUploads } from "./jobs/uploads-sweep";
@@ -21,4 +22,5 @@ export const HANDLERS: { [N in JobName]: JobHandler<N> | SteeringJobHandler<N> }
   "composite.run": runComposite,
   "edition.export": exportEdition,
   "outbox.resend": resendOutbox,
+  "mirrors.settle": settleMirrors,
 };

@@ -22,6 +22,14 @@ export const JOBS = {
     payload: z.object({}),
     attempts: 3,
   },
+  // Every minute: job mirrors (job_runs) still open whose job BullMQ already finished take its end
+  // (worker/mirror.ts says how one is missed). On the mail queue, which is light and runs four at a
+  // time, so that a long ingest never holds it up. Safe to run again.
+  "mirrors.settle": {
+    queue: "mail",
+    payload: z.object({}),
+    attempts: 3,
+  },
   // Reads one uploaded original: checksum, format, metadata, thumbnail.
   "frame.ingest": {
     queue: "media",
@@ -67,4 +75,22 @@ export type JobPayload<N extends JobName> = z.infer<(typeof JOBS)[N]["payload"]>
 
 export function isJobName(name: string): name is JobName {
   return Object.hasOwn(JOBS, name);
+}
+
+/**
+ * Jobs the worker runs on a clock rather than on demand: each worker upserts these schedules
+ * (worker/index.ts), and BullMQ keeps one of each however many workers start. Their runs come and
+ * go on the queues beside the jobs enqueue() adds.
+ */
+export const SCHEDULED_JOBS = [
+  // Abandoned multipart uploads aborted every hour.
+  { name: "uploads.sweep", schedulerId: "uploads-sweep-hourly", everyMs: 3600_000 },
+  // Mail whose job never reached Redis (an enqueue that failed after its commit) queued again every 5 minutes.
+  { name: "outbox.resend", schedulerId: "outbox-resend-5min", everyMs: 5 * 60_000 },
+  // Job mirrors that a lost event left open settled from BullMQ's own state every minute.
+  { name: "mirrors.settle", schedulerId: "mirrors-settle-1min", everyMs: 60_000 },
+] as const satisfies readonly { name: JobName; schedulerId: string; everyMs: number }[];
+
+export function isScheduledJob(name: string): boolean {
+  return SCHEDULED_JOBS.some((s) => s.name === name);
 }

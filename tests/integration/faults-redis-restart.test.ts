@@ -14,6 +14,7 @@ import type { Actor } from "@/lib/auth/actor";
 import { sendStagedMail, stageMail } from "@/lib/email/outbox";
 import { closeProducerRedis, createRedis } from "@/lib/queue/connection";
 import { closeQueues, jobIdFor } from "@/lib/queue/enqueue";
+import { isScheduledJob } from "@/lib/queue/jobs";
 import { MAILBOX, requireTestDatabase } from "../support/env";
 import { startOwnRedis, startOwnWorker, type OwnProcess, type OwnRedis } from "../support/processes";
 import { makePatternFits } from "../support/synthetic-fits";
@@ -128,9 +129,11 @@ describe("Redis restarted during a queue of jobs", () => {
     const connection = createRedis(redis.url, false);
     const queues = { media: new Queue("media", { connection, prefix: PREFIX }), mail: new Queue("mail", { connection, prefix: PREFIX }) };
     try {
+      // Nothing of this test's is left open or failed. The worker's scheduled runs come and go on
+      // their own clocks and are not counted.
       for (const [name, queue] of Object.entries(queues)) {
-        const counts = await queue.getJobCounts("waiting", "active", "failed", "completed");
-        expect([name, counts.waiting, counts.active, counts.failed]).toEqual([name, 0, 0, 0]);
+        const open = await queue.getJobs(["waiting", "active", "failed"], 0, -1);
+        expect([name, open.filter((job) => !isScheduledJob(job.name)).map((job) => job.id)]).toEqual([name, []]);
       }
       for (const id of ids) {
         const job = await (id.startsWith("frame.ingest") ? queues.media : queues.mail).getJob(id);
