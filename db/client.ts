@@ -10,6 +10,15 @@ export type DbOrTx = Db | Tx;
 
 export function createDb(connectionString: string, max = 10): { db: Db; pool: Pool } {
   const pool = new Pool({ connectionString, max });
+  // A connection that PostgreSQL ends (a restart, a terminated backend, a network reset) makes pg
+  // emit "error": on the pool for an idle client, on the client itself for one checked out (drizzle's
+  // transactions hold one). Without listeners that error ends the process, the worker with every job
+  // it runs; with them the pool drops the client and opens another for the next query, and a query
+  // in flight fails on its own, as a transient fault that its job retries.
+  pool.on("error", (err) => console.error(`[db] an idle connection was lost: ${err.message}`));
+  pool.on("connect", (client) => {
+    client.on("error", (err) => console.error(`[db] a connection in use was lost: ${err.message}`));
+  });
   return { db: drizzle(pool, { schema, casing: "snake_case" }), pool };
 }
 
