@@ -73,13 +73,17 @@ async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
   console.log(`[worker] ${signal}: finishing running jobs`);
-  await Promise.all(workers.map((w) => w.close()));
-  await dispatcher.close();
-  await Promise.all([...schedulers.values()].map((q) => q.close()));
-  await closeExportExifTool();
+  // Each queue's running jobs finish however the others' closing goes (Redis or PostgreSQL may be
+  // gone by now); a step that fails is logged and the rest still run.
+  const steps = [
+    await Promise.allSettled(workers.map((w) => w.close())),
+    await Promise.allSettled([dispatcher.close(), ...[...schedulers.values()].map((q) => q.close()), closeExportExifTool()]),
+  ];
   connection.disconnect();
-  await closeDb();
-  process.exit(0);
+  steps.push(await Promise.allSettled([closeDb()]));
+  const failures = steps.flat().filter((r): r is PromiseRejectedResult => r.status === "rejected");
+  for (const f of failures) console.error("[worker] while stopping:", f.reason);
+  process.exit(failures.length ? 1 : 0);
 }
 process.on("SIGTERM", () => void shutdown("SIGTERM"));
 process.on("SIGINT", () => void shutdown("SIGINT"));
