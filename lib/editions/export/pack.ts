@@ -6,6 +6,7 @@ import { createReadStream, createWriteStream } from "node:fs";
 import { stat, writeFile } from "node:fs/promises";
 import { join } from "node:path";
 import { pipeline } from "node:stream/promises";
+import type { Readable } from "node:stream";
 import { ZipFile } from "yazl";
 import type { Edition, EditionExport, ExportFileEntry } from "@/db/schema";
 import { bucketName, putObjectFile } from "@/lib/storage";
@@ -61,6 +62,9 @@ export async function packZip(dir: string, files: BundleFile[], edition: Pick<Ed
   const zipName = `${zipStem.slice(0, 80)}.zip`;
   const zipPath = join(dir, "bundle.zip");
   const zip = new ZipFile();
+  // yazl reports a file it cannot read (or one that changed size) as "error" on the ZipFile, which
+  // nothing else listens to: passed to the output stream, it fails the pipeline below, not the worker.
+  zip.on("error", (err: Error) => (zip.outputStream as unknown as Readable).destroy(err));
   // Images and the PDF are compressed already: stored as they are, only the texts are deflated.
   for (const f of files) zip.addFile(f.path, f.name, { compress: /\.(txt|json)$/.test(f.name) });
   zip.addFile(join(dir, METADATA_FILE), METADATA_FILE);
