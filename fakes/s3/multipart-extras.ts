@@ -1,7 +1,8 @@
 // Two S3 calls that s3rver 3.7 lacks and that our uploads rely on: ListParts
 // (GET /bucket/key?uploadId=..., for resuming after a reload) and
 // AbortMultipartUpload (DELETE /bucket/key?uploadId=..., for cancel and the
-// sweeper). They read and remove s3rver's own upload folders: the parts of an
+// sweeper); and S3's NoSuchUpload for CompleteMultipartUpload (POST) of an upload
+// that is gone, where s3rver would fail on its missing files. They read and remove s3rver's own upload folders: the parts of an
 // upload are files named by part number, each with a ".md5" beside it (the ETag).
 import { promises as fs } from "node:fs";
 import path from "node:path";
@@ -42,7 +43,7 @@ export function multipartExtras() {
   return async (ctx: Ctx, next: () => Promise<unknown>) => {
     const uploadId = typeof ctx.query.uploadId === "string" ? ctx.query.uploadId : undefined;
     const isPart = "partNumber" in ctx.query;
-    if (!uploadId || isPart || (ctx.method !== "GET" && ctx.method !== "DELETE")) return next();
+    if (!uploadId || isPart || (ctx.method !== "GET" && ctx.method !== "DELETE" && ctx.method !== "POST")) return next();
     const match = /^\/([^/]+)\/(.+)$/.exec(ctx.path);
     if (!match) return next();
     const bucket = decodeURIComponent(match[1]);
@@ -50,6 +51,9 @@ export function multipartExtras() {
     if (!/^[0-9a-f]+$/.test(uploadId)) return noSuchUpload(ctx, uploadId);
     const dir = path.join(ctx.store.getResourcePath(bucket, undefined, "uploads"), uploadId);
     if ((await readUploadKey(dir)) !== key) return noSuchUpload(ctx, uploadId);
+    // CompleteMultipartUpload of an upload that is still there goes on to s3rver; one already
+    // aborted or completed (a cancel that met the last part) was answered NoSuchUpload above, as S3 does.
+    if (ctx.method === "POST") return next();
 
     if (ctx.method === "DELETE") {
       await fs.rm(dir, { recursive: true, force: true });

@@ -54,6 +54,13 @@ const server = new S3rver({
 const stack = (server as unknown as { middleware: unknown[] }).middleware;
 stack.splice(stack.length - 1, 0, multipartExtras());
 
+// s3rver reads an upload's part files through streams with no "error" listener: a part file that
+// vanishes under it (an abort racing a complete) would end the fake, and every later request with
+// it. A real S3 fails that one request; the fake logs the fault and stays up.
+process.on("uncaughtException", (err) => {
+  console.error(`s3 fake: a request failed outside its handler: ${err.stack ?? err.message}`);
+});
+
 await server.run();
 console.log(`s3 fake listening on http://127.0.0.1:${port}, buckets: ${[...bucketNames].join(", ")}`);
 

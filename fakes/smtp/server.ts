@@ -78,7 +78,14 @@ pre{white-space:pre-wrap;background:#141b33;padding:1rem}</style></head><body>${
 }
 
 const mailbox = http.createServer((req, res) => {
-  const url = new URL(req.url ?? "/", `http://127.0.0.1:${mailboxPort}`);
+  // A path that is no URL (say "//%zz/") would throw here and end the fake: it gets a 400 instead.
+  let url: URL;
+  try {
+    url = new URL(req.url ?? "/", `http://127.0.0.1:${mailboxPort}`);
+  } catch {
+    res.writeHead(400, { "content-type": "text/plain" }).end("Not a path this mailbox knows.");
+    return;
+  }
   if (url.pathname === "/api/messages" && req.method === "GET") {
     const to = url.searchParams.get("to")?.toLowerCase();
     const list = to ? messages.filter((m) => m.to.includes(to)) : messages;

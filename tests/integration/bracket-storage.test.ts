@@ -85,6 +85,22 @@ describe("multipart helpers against the S3 fake", () => {
     // A second abort finds it gone and says so instead of failing.
     expect(await abortMultipartUpload(ref)).toBe(false);
   });
+
+  it("refuses to complete an upload already aborted, as S3 does, and goes on serving", async () => {
+    // A cancel that meets the last part: the abort wins, and the complete that follows names parts
+    // whose files are gone (s3rver alone ended the fake on it).
+    const key = `originals/test/${randomUUID()}/cancelled.bin`;
+    const uploadId = await createMultipartUpload({ bucket, key });
+    const ref = { bucket, key, uploadId };
+    const [{ url }] = await signPartUrls(ref, [1], 300);
+    expect((await fetch(url, { method: "PUT", body: patternBytes(1000, 4) })).status).toBe(200);
+    const parts = await listUploadedParts(ref);
+    expect(await abortMultipartUpload(ref)).toBe(true);
+    await expect(completeMultipartUpload(ref, parts)).rejects.toMatchObject({ name: "NoSuchUpload" });
+    expect(await findObjectSize({ bucket, key })).toBeNull();
+    // The fake is still there for the next upload.
+    expect(await createMultipartUpload({ bucket, key: `${key}.next` })).toMatch(/^[0-9a-f]+$/);
+  });
 });
 
 describe("frame uploads", () => {

@@ -3,6 +3,7 @@
 // its connection in the middle of a message, and the fake went with it). This
 // test runs its own copy of the fake on free ports, never the shared one.
 import { mkdtemp, writeFile } from "node:fs/promises";
+import http from "node:http";
 import net from "node:net";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -62,6 +63,17 @@ async function dropMidMessage(): Promise<void> {
   });
 }
 
+/** GET of a raw path, as a client sends it (fetch would normalise it first). */
+function getRaw(path: string): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const req = http.get({ host: "127.0.0.1", port: mailboxPort, path }, (res) => {
+      res.resume();
+      resolve(res.statusCode ?? 0);
+    });
+    req.on("error", reject);
+  });
+}
+
 describe("the SMTP fake", () => {
   it("starts past a message file cut short, and says which", async () => {
     expect(fake.isRunning()).toBe(true);
@@ -79,6 +91,12 @@ describe("the SMTP fake", () => {
     transport.close();
     const after = await mailboxFor("after@example.org");
     expect(after.map((m) => m.subject)).toEqual(["After the drop"]);
+    expect(fake.isRunning()).toBe(true);
+  });
+
+  it("answers a mailbox path that is no URL with 400, and keeps serving", async () => {
+    expect(await getRaw("//%zz/")).toBe(400);
+    expect(await getRaw("/api/messages?to=nobody%40example.org")).toBe(200);
     expect(fake.isRunning()).toBe(true);
   });
 });
