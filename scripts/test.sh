@@ -77,7 +77,8 @@ start_app "$web" "$app_port" "$dist"
 
 report="$LOGS/vitest${suffix}.json"
 rm -f "$report"
-(cd "$ROOT" && node node_modules/vitest/vitest.mjs run --reporter=default --reporter=json --outputFile="$report" "$@") || true
+vitest_rc=0
+(cd "$ROOT" && node node_modules/vitest/vitest.mjs run --reporter=default --reporter=json --outputFile="$report" "$@") || vitest_rc=$?
 if [ -f "$report" ]; then
   # A suite that fails before its tests run (import or setup error) counts as
   # one failure, so a broken file can never pass silently.
@@ -86,6 +87,12 @@ if [ -f "$report" ]; then
     const broken = (r.testResults || []).filter((s) => s.status === "failed" && !s.assertionResults.some((a) => a.status === "failed")).length;
     console.log(r.numPassedTests, r.numFailedTests + broken, (r.numPendingTests || 0) + (r.numTodoTests || 0));' "$report")
   passed=$((passed + vp)); failed=$((failed + vf))
+  # An error outside any test (an unhandled rejection, an "error" event nobody listened to) fails
+  # vitest's run but not its JSON report: it counts as one failure here.
+  if [ "$vitest_rc" -ne 0 ] && [ "$vf" -eq 0 ]; then
+    say "FAILED: vitest ended with status $vitest_rc though every test passed: see \"Unhandled Errors\" above"
+    failed=$((failed + 1))
+  fi
   # A skipped or todo test asserts nothing: it fails the run unless ALLOW_SKIP=1 says it is meant.
   if [ "$vs" -gt 0 ]; then
     if [ "${ALLOW_SKIP:-0}" = 1 ]; then
