@@ -15,9 +15,10 @@ export function createDb(connectionString: string, max = 10): { db: Db; pool: Po
   // transactions hold one). Without listeners that error ends the process, the worker with every job
   // it runs; with them the pool drops the client and opens another for the next query, and a query
   // in flight fails on its own, as a transient fault that its job retries.
-  pool.on("error", (err) => console.error(`[db] an idle connection was lost: ${err.message}`));
+  // The client's own listener logs each loss once; the pool passes an idle client's on as well.
+  pool.on("error", () => undefined);
   pool.on("connect", (client) => {
-    client.on("error", (err) => console.error(`[db] a connection in use was lost: ${err.message}`));
+    client.on("error", (err) => console.error(`[db] a connection to PostgreSQL was lost: ${err.message}`));
   });
   return { db: drizzle(pool, { schema, casing: "snake_case" }), pool };
 }
