@@ -3,7 +3,7 @@
 // registration. For profiling (node --cpu-prof) and for before/after comparisons:
 // the results (defect count, limb fits, transforms) go to a JSON file so that two
 // versions of the code can be compared on the same input.
-// Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
+// Run: npx tsx scripts/bench/prepare-stages.ts --dir .cache/bench-scale-1500x1000-81-seed11-v2 --frames 9 [--out FILE.json] [--stages decode,defects,prepare,register]
 // --stages runner reduces the picked frames whole instead (--spill always|never|auto), and prints each stage's cores busy,
 // peak RSS (sampled every 20 ms from a worker thread) and, where the stage ends, the heap and the array buffers held;
 // --stop-at STAGE ends the reduction as that stage starts (e.g. merge-pilot: the stages up to the levels alone).
