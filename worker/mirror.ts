@@ -1,5 +1,5 @@
 // Mirrors BullMQ job state into job_runs, which the UI reads.
-import type { Queue } from "bullmq";
+import type { Job, Queue } from "bullmq";
 import { and, eq, gt, inArray, lt, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { jobRuns, type JobState } from "@/db/schema";
@@ -16,6 +16,8 @@ export async function mirrorJob(
     .where(eq(jobRuns.id, id));
 }
 
+const OPEN: JobState[] = ["queued", "running"];
+
 /** Finds a job by its mirror's name: the queue it runs on, or undefined for a name no longer known. */
 export type QueueOfJob = (jobName: string) => Queue | undefined;
 
@@ -24,13 +26,19 @@ export type QueueOfJob = (jobName: string) => Queue | undefined;
  * without its worker hearing of it: when Redis goes down as it completes, the
  * write is kept but the reply is lost, the client sends it again, and the second
  * try fails for want of a lock, so neither "completed" nor "failed" is emitted and
- * the mirror stays "running" for good. Every mirror still open and untouched for
+ * the mirror stays "running" for good. (An enqueue of work already done has the same
+ * effect: BullMQ keeps the finished job under its id and adds nothing, while the
+ * mirror was set back to "queued".) Every mirror still open and untouched for
  * `olderThanMs` is looked up in its queue: one that BullMQ holds as completed or
- * failed takes that state; any other, or a job this worker's queues do not know
- * (another prefix, or removed), is left as it is.
+ * failed takes that state, with BullMQ's time of finishing; any other, or a job this
+ * worker's queues do not know (another prefix, or removed), is left as it is. A
+ * mirror that moved on meanwhile (queued again, say) is not written. Returns each
+ * settled mirror with its job, for what else a lost event should have done.
  */
-export async function settleStrandedMirrors(db: Db, queueOf: QueueOfJob, olderThanMs: number, pageSize = 200): Promise<{ id: string; state: "done" | "failed" }[]> {
-  const settled: { id: string; state: "done" | "failed" }[] = [];
+export async function settleStrandedMirrors(db: Db, queueOf: QueueOfJob, olderThanMs: number, pageSize = 200): Promise<{ id: string; state: "done" | "failed"; job: Job }[]> {
+  const settled: { id: string; state: "done" | "failed"; job: Job }[] = [];
+  const cutoff = sql`now() - make_interval(secs => ${olderThanMs / 1000})`;
+  const stillOpen = (id: string) => and(eq(jobRuns.id, id), inArray(jobRuns.state, OPEN), lt(jobRuns.updatedAt, cutoff));
   // Page by id through every open mirror: a backlog of jobs still waiting (open, untouched, and
   // rightly left) must not keep the settle from the stranded ones behind it.
   let after = "";
@@ -38,26 +46,25 @@ export async function settleStrandedMirrors(db: Db, queueOf: QueueOfJob, olderTh
     const page = await db
       .select({ id: jobRuns.id, name: jobRuns.name })
       .from(jobRuns)
-      .where(
-        and(
-          inArray(jobRuns.state, ["queued", "running"]),
-          lt(jobRuns.updatedAt, sql`now() - make_interval(secs => ${olderThanMs / 1000})`),
-          gt(jobRuns.id, after),
-        ),
-      )
+      .where(and(inArray(jobRuns.state, OPEN), lt(jobRuns.updatedAt, cutoff), gt(jobRuns.id, after)))
       .orderBy(jobRuns.id)
       .limit(pageSize);
     for (const run of page) {
       const job = await queueOf(run.name)?.getJob(run.id);
       if (!job) continue;
-      const state = await job.getState();
-      if (state === "completed") {
-        await mirrorJob(db, run.id, { state: "done", progress: 1, error: null });
-        settled.push({ id: run.id, state: "done" });
-      } else if (state === "failed") {
-        await mirrorJob(db, run.id, { state: "failed", error: job.failedReason || "failed", attempts: job.attemptsMade });
-        settled.push({ id: run.id, state: "failed" });
-      }
+      const held = await job.getState();
+      if (held !== "completed" && held !== "failed") continue;
+      const finishedAt = job.finishedOn ? new Date(job.finishedOn) : sql`now()`;
+      const patch =
+        held === "completed"
+          ? { state: "done" as const, progress: 1, error: null }
+          : { state: "failed" as const, error: job.failedReason || "failed", attempts: job.attemptsMade };
+      const [written] = await db
+        .update(jobRuns)
+        .set({ ...patch, updatedAt: sql`now()`, finishedAt })
+        .where(stillOpen(run.id))
+        .returning({ id: jobRuns.id });
+      if (written) settled.push({ id: run.id, state: patch.state, job });
     }
     if (page.length < pageSize) return settled;
     after = page[page.length - 1].id;

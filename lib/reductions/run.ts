@@ -88,11 +88,13 @@ export async function failReduction(db: DbOrTx, reductionId: string, reason: str
  * For a reduction.run job the queue has given up on, from the worker's "failed"
  * event. BullMQ fails a job that stalled more often than allowed without calling
  * its handler, so the flow's own failure path never ran: the reduction is ended
- * here, unless it has ended already.
+ * here, unless it has ended already. `heldFailed`: BullMQ itself holds the job as
+ * failed (the mirrors' settle read it there, the event having been lost), so it is
+ * final whatever its attempts say.
  */
-export async function failReductionGivenUp(db: DbOrTx, job: Pick<Job, "data" | "attemptsMade" | "opts">, err: Error): Promise<void> {
+export async function failReductionGivenUp(db: DbOrTx, job: Pick<Job, "data" | "attemptsMade" | "opts">, err: Error, heldFailed = false): Promise<void> {
   const isStalled = /stalled more than allowable limit/.test(err.message);
-  if (!isStalled && !isFailedForGood(job, err)) return;
+  if (!isStalled && !heldFailed && !isFailedForGood(job, err)) return;
   const words = isStalled ? "the worker processes running it stopped responding more than once (killed, or out of memory); start the reduction again" : err.message;
   await failReduction(db, (job.data as { reductionId: string }).reductionId, words);
 }

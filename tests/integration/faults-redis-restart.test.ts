@@ -129,11 +129,12 @@ describe("Redis restarted during a queue of jobs", () => {
     const connection = createRedis(redis.url, false);
     const queues = { media: new Queue("media", { connection, prefix: PREFIX }), mail: new Queue("mail", { connection, prefix: PREFIX }) };
     try {
-      // Nothing of this test's is left open or failed. The worker's scheduled runs come and go on
-      // their own clocks and are not counted.
+      // Nothing is left failed, and nothing of this test's is left open. The worker's scheduled
+      // runs come and go on their own clocks: one may be waiting or running now.
       for (const [name, queue] of Object.entries(queues)) {
-        const open = await queue.getJobs(["waiting", "active", "failed"], 0, -1);
-        expect([name, open.filter((job) => !isScheduledJob(job.name)).map((job) => job.id)]).toEqual([name, []]);
+        const failed = await queue.getJobs(["failed"], 0, -1);
+        const open = await queue.getJobs(["waiting", "active"], 0, -1);
+        expect([name, failed.map((job) => `${job.name} ${job.id}`), open.filter((job) => !isScheduledJob(job.name)).map((job) => job.id)]).toEqual([name, [], []]);
       }
       for (const id of ids) {
         const job = await (id.startsWith("frame.ingest") ? queues.media : queues.mail).getJob(id);
