@@ -82,15 +82,20 @@ vitest_rc=0
 if [ -f "$report" ]; then
   # A suite that fails before its tests run (import or setup error) counts as
   # one failure, so a broken file can never pass silently.
-  read -r vp vf vs < <(node -e '
+  read -r vp vf vs vt < <(node -e '
     const r = require(process.argv[1]);
     const broken = (r.testResults || []).filter((s) => s.status === "failed" && !s.assertionResults.some((a) => a.status === "failed")).length;
-    console.log(r.numPassedTests, r.numFailedTests + broken, (r.numPendingTests || 0) + (r.numTodoTests || 0));' "$report")
+    console.log(r.numPassedTests, r.numFailedTests + broken, (r.numPendingTests || 0) + (r.numTodoTests || 0), r.numTotalTests);' "$report")
   passed=$((passed + vp)); failed=$((failed + vf))
   # An error outside any test (an unhandled rejection, an "error" event nobody listened to) fails
-  # vitest's run but not its JSON report: it counts as one failure here.
+  # vitest's run but not its JSON report: it counts as one failure here. So does a filter that
+  # matched no test file (vitest's other failing status with no failed test).
   if [ "$vitest_rc" -ne 0 ] && [ "$vf" -eq 0 ]; then
-    say "FAILED: vitest ended with status $vitest_rc though every test passed: see \"Unhandled Errors\" above"
+    if [ "$vt" -eq 0 ]; then
+      say "FAILED: no test ran: no test file matched ${*:-the suite}"
+    else
+      say "FAILED: vitest ended with status $vitest_rc though every test passed: see \"Unhandled Errors\" above"
+    fi
     failed=$((failed + 1))
   fi
   # A skipped or todo test asserts nothing: it fails the run unless ALLOW_SKIP=1 says it is meant.

@@ -54,15 +54,18 @@ const server = new S3rver({
 const stack = (server as unknown as { middleware: unknown[] }).middleware;
 stack.splice(stack.length - 1, 0, multipartExtras());
 
-// s3rver reads an upload's part files through streams with no "error" listener: a part file that
-// vanishes under it (an abort racing a complete) would end the fake, and every later request with
-// it. A real S3 fails that one request; the fake logs the fault and stays up.
-process.on("uncaughtException", (err) => {
-  console.error(`s3 fake: a request failed outside its handler: ${err.stack ?? err.message}`);
-});
-
 await server.run();
 console.log(`s3 fake listening on http://127.0.0.1:${port}, buckets: ${[...bucketNames].join(", ")}`);
+
+// Once it serves (a fault at start still ends it): s3rver reads an upload's part files through
+// streams with no "error" listener, so a part file that vanishes under it (an abort racing a
+// complete) would end the fake, and every later request with it. A real S3 fails that one
+// request; the fake logs the fault and stays up. A promise left rejected is a fault of ours, not
+// a client's, and still ends it.
+process.on("uncaughtException", (err, origin) => {
+  console.error(`s3 fake: ${origin === "unhandledRejection" ? "a promise was left rejected" : "a request failed outside its handler"}: ${err.stack ?? err.message}`);
+  if (origin === "unhandledRejection") process.exit(1);
+});
 
 const shutdown = () => {
   server.close().finally(() => process.exit(0));

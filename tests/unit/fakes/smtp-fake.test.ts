@@ -52,7 +52,8 @@ async function dropMidMessage(): Promise<void> {
         socket.write(`${next}\r\n`);
         return;
       }
-      if (reply.startsWith("354")) {
+      // Replies may come two to a chunk: look at every line.
+      if (/^354/m.test(reply)) {
         socket.write("Subject: half\r\n\r\nhalf of a message");
         setTimeout(() => {
           socket.resetAndDestroy();
