@@ -5,6 +5,10 @@ import path from "node:path";
 import type { Page } from "playwright-core";
 
 export async function seriousViolations(page: Page, include?: string): Promise<string[]> {
+  // Next.js streams a page's metadata after its content: the <title> can come a moment after the
+  // text a test waited for (seen once in CI as "document-title"). Waiting for it here keeps that
+  // rule honest: a page that never gets a title still fails it, after 10 s.
+  await page.waitForFunction(() => document.title.trim() !== "", undefined, { timeout: 10_000 }).catch(() => undefined);
   await page.addScriptTag({ content: fs.readFileSync(path.resolve("node_modules/axe-core/axe.min.js"), "utf8") });
   const result = (await page.evaluate(async (scope) => {
     const axe = (window as unknown as { axe: { run: (ctx: unknown, opts: unknown) => Promise<unknown> } }).axe;
