@@ -171,14 +171,16 @@ export async function decodeBracketFiles(
       const k = next++;
       const name = basename(files[k]);
       await checkFrameFile(files[k], name);
-      const pooled: PooledDecode | undefined = await inPool?.pool.decode(files[k], name, inPool.findOutliers);
+      // With a spill, the pool's thread writes the planes to its folder itself.
+      const pooled: PooledDecode | undefined = await inPool?.pool.decode(files[k], name, inPool.findOutliers, spill?.dir);
       // Without a pool, or when a worker failed, the frame is decoded here (and a fault thrown as usual).
       const decoded = pooled?.decoded ?? (await decodeFrame(files[k], name));
       outliers[k] = pooled?.outliers;
       // Described before its pixels go: once spilled, even a look at the planes' count would read them all back.
       described[k] = describeDecodedFrame(decoded, files[k], exposureOverrides.get(decoded.name), captureTimeOverrides.get(decoded.name));
       // Each frame's pixels go to disk as soon as it is decoded: memory holds the frames in flight only.
-      if (spill) spill.spillField(decoded.image, "planes");
+      if (spill && pooled?.spilled) spill.adoptField(decoded.image, "planes", pooled.spilled);
+      else if (spill) spill.spillField(decoded.image, "planes");
       onProgress?.(++done / files.length);
     }
   });

@@ -9,7 +9,7 @@
 // before and never knows where the data lives.
 import { mkdtempSync, readFileSync, rmSync, statfsSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
-import { join } from "node:path";
+import { dirname, join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
 import { markPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
 
@@ -25,11 +25,19 @@ interface Entry {
 }
 
 export interface FrameSpill {
+  /** The spill's own folder: another thread may write files there for adoptField (deleted with the rest on close). */
+  dir: string;
   /** Writes the array to disk; the returned key reads it back. */
   put: (array: Typed) => number;
   get: (key: number) => Typed;
   /** Replaces obj[field] (an array, or an array of arrays) by a getter over spilled copies; a later assignment stores in memory again. */
   spillField: <T extends object>(obj: T, field: keyof T & string) => void;
+  /**
+   * As spillField for a field of a list of arrays that another thread has
+   * written already (writeSpilledFile, in `dir`): obj[field] becomes a getter
+   * over those files, and the arrays it held (placeholders, say) are let go.
+   */
+  adoptField: <T extends object>(obj: T, field: keyof T & string, files: SpilledFile[]) => void;
   /**
    * The files of a field spilled as a list of float32 arrays, for another thread
    * to read itself (each file holds the array's bytes, nothing else); undefined
@@ -113,6 +121,13 @@ function view(buffer: Buffer, kind: Kind, length: number): Typed {
   return bytes.subarray(0, length);
 }
 
+/** Writes an array as a spill keeps it (whole counts in 16 bits), for a spill to adopt; gives the file. */
+export function writeSpilledFile(path: string, array: Float32Array): SpilledFile {
+  const { kind, bytes } = toDisk(array);
+  writeFileSync(path, bytes);
+  return { path, kind, length: array.length };
+}
+
 /** Reads a spilled array's file (filesOf) as the array that was spilled. */
 export function readSpilledFile(file: SpilledFile): Typed {
   return view(readFileSync(file.path), file.kind, file.length);
@@ -171,20 +186,14 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   // The keys of fields spilled as lists of arrays, by object and field.
   const listed = new WeakMap<object, Map<string, number[]>>();
 
-  const spillField = <T extends object>(obj: T, field: keyof T & string) => {
-    const value = obj[field] as unknown;
-    if (value === undefined || value === null) return;
-    let read: () => unknown;
-    if (Array.isArray(value)) {
-      const keys = (value as Typed[]).map((a) => put(a));
-      read = () => keys.map((k) => get(k));
+  /** obj[field] as a getter over spilled arrays (`keys`, a list when `isList`); a later assignment stores in memory again. */
+  const readThrough = <T extends object>(obj: T, field: keyof T & string, keys: number[], isList: boolean) => {
+    if (isList) {
       if (!listed.has(obj)) listed.set(obj, new Map());
       listed.get(obj)!.set(field, keys);
       if (field === "planes") markPlaneLengths(obj, keys.map((k) => entries[k].length));
-    } else {
-      const key = put(value as Typed);
-      read = () => get(key);
     }
+    const read = isList ? () => keys.map((k) => get(k)) : () => get(keys[0]);
     Object.defineProperty(obj, field, {
       configurable: true,
       enumerable: true,
@@ -197,6 +206,23 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     });
   };
 
+  const spillField = <T extends object>(obj: T, field: keyof T & string) => {
+    const value = obj[field] as unknown;
+    if (value === undefined || value === null) return;
+    const isList = Array.isArray(value);
+    readThrough(obj, field, isList ? (value as Typed[]).map((a) => put(a)) : [put(value as Typed)], isList);
+  };
+
+  const adoptField = <T extends object>(obj: T, field: keyof T & string, files: SpilledFile[]) => {
+    const keys = files.map((file) => {
+      if (dirname(file.path) !== dir) throw new Error(`${file.path} is not in the spill's folder`);
+      entries.push({ path: file.path, kind: file.kind, length: file.length });
+      writtenBytes += file.length * (file.kind === "f32" ? 4 : file.kind === "u8" ? 1 : 2);
+      return entries.length - 1;
+    });
+    readThrough(obj, field, keys, true);
+  };
+
   const filesOf = <T extends object>(obj: T, field: keyof T & string) => {
     const keys = listed.get(obj)?.get(field);
     if (!keys || keys.some((k) => entries[k].kind !== "f32" && entries[k].kind !== "f32-u16")) return undefined;
@@ -204,9 +230,11 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   };
 
   return {
+    dir,
     put,
     get,
     spillField,
+    adoptField,
     filesOf,
     setCacheBytes: (bytes) => {
       budget = Math.max(0, bytes);

@@ -9,15 +9,19 @@ import type { SpilledFile } from "./frame-spill";
 export type PlaneSource = { planes: Float32Array[] } | { files: SpilledFile[] };
 
 export type PrepareRequest =
-  /** Decode a file; with findOutliers, also the frame's part of the bracket's defect search. */
-  | { kind: "decode"; id: number; path: string; name: string; findOutliers: boolean }
+  /**
+   * Decode a file; with findOutliers, also the frame's part of the bracket's defect search;
+   * with spillDir, the planes are written there (a frame spill's folder) instead of sent back.
+   */
+  | { kind: "decode"; id: number; path: string; name: string; findOutliers: boolean; spillDir?: string }
   /** prepareFrame of a frame whose planes come as `source` (the frame's own image field is left out). */
   | { kind: "prepare"; id: number; frame: Omit<LinearFrame, "image">; width: number; height: number; source: PlaneSource; params: ReductionParams }
   /** One pair comparison of a registration (refineRegistrationPair). */
   | { kind: "register-pair"; id: number; task: RegistrationPairTask };
 
 export type PrepareReply =
-  | { id: number; ok: true; decoded: DecodedFrame; outliers?: Uint32Array }
+  /** With `spilled`, the planes are in those files and decoded.image.planes holds empty arrays, one per plane. */
+  | { id: number; ok: true; decoded: DecodedFrame; outliers?: Uint32Array; spilled?: SpilledFile[] }
   /** The prepared frame without its defect map (the caller's own frame holds it). */
   | { id: number; ok: true; prepared: PreparedFrame }
   | { id: number; ok: true; pair: RegistrationPairOutcome }

@@ -24,11 +24,17 @@ export interface PooledDecode {
   decoded: DecodedFrame;
   /** The frame's outliers (findFrameOutliers), when asked for and the frame is linear. */
   outliers?: Uint32Array;
+  /** The planes' files in the spill folder given (decoded.image.planes then holds empty arrays, one per plane). */
+  spilled?: SpilledFile[];
 }
 
 export interface PreparePool {
-  /** Decodes a file, and with findOutliers searches it for defects; undefined when the worker could not. */
-  decode(path: string, name: string, findOutliers: boolean): Promise<PooledDecode | undefined>;
+  /**
+   * Decodes a file, and with findOutliers searches it for defects; with spillDir
+   * (a frame spill's folder) the worker writes the planes there, for the spill to
+   * adopt. Undefined when the worker could not.
+   */
+  decode(path: string, name: string, findOutliers: boolean, spillDir?: string): Promise<PooledDecode | undefined>;
   /**
    * prepareFrame(frame, params) (with the sRGB table for 8-bit frames) in a worker;
    * `files` are the frame's planes spilled to disk, which the worker reads itself
@@ -118,9 +124,9 @@ export function createPreparePool(size = PREPARE_WORKERS): PreparePool {
     });
   };
   return {
-    async decode(path, name, findOutliers) {
-      const reply = await send({ kind: "decode", id: nextId++, path, name, findOutliers });
-      return reply?.ok && "decoded" in reply ? { decoded: reply.decoded, outliers: reply.outliers } : undefined;
+    async decode(path, name, findOutliers, spillDir) {
+      const reply = await send({ kind: "decode", id: nextId++, path, name, findOutliers, spillDir });
+      return reply?.ok && "decoded" in reply ? { decoded: reply.decoded, outliers: reply.outliers, spilled: reply.spilled } : undefined;
     },
     async prepare(frame, params, files) {
       const { image, ...rest } = frame;

@@ -1,9 +1,11 @@
 // Worker thread of the frame pool (prepare-pool.ts): decodes a file (and, when
-// asked, searches it for the bracket's defects), runs lib/imaging's
+// asked, searches it for the bracket's defects and writes its planes to a frame
+// spill's folder), runs lib/imaging's
 // prepareFrame on a frame, or compares one pair of a registration, then hands
 // every array back by transfer, so nothing is copied. Any fault is answered with ok: false and the caller redoes the work
 // on its own thread, where the error keeps its class and message.
-import { parentPort } from "node:worker_threads";
+import { join } from "node:path";
+import { parentPort, threadId } from "node:worker_threads";
 import { findFrameOutliers } from "@/lib/imaging/calibrate-defects";
 import { prepareFrame } from "@/lib/imaging/pipeline";
 import { refineRegistrationPair } from "@/lib/imaging/register";
@@ -11,7 +13,7 @@ import { createSrgbDecodeTable } from "@/lib/imaging/srgb";
 import type { LinearFrame } from "@/lib/imaging/types";
 import { decodeFrame } from "@/lib/media";
 import { collectGarbage } from "./collect-garbage";
-import { readSpilledFile } from "./frame-spill";
+import { readSpilledFile, writeSpilledFile } from "./frame-spill";
 import { collectTransferables, type PlaneSource, type PrepareReply, type PrepareRequest } from "./prepare-messages";
 
 function readPlanes(source: PlaneSource): Float32Array[] {
@@ -22,9 +24,13 @@ function readPlanes(source: PlaneSource): Float32Array[] {
 async function handle(request: PrepareRequest): Promise<PrepareReply> {
   if (request.kind === "decode") {
     const decoded = await decodeFrame(request.path, request.name);
-    if (!request.findOutliers || decoded.encoding !== "linear") return { id: request.id, ok: true, decoded };
     const frame: LinearFrame = { name: decoded.name, image: decoded.image, exposureS: NaN, blackLevel: decoded.blackLevel, whiteLevel: decoded.whiteLevel, encoding: decoded.encoding };
-    return { id: request.id, ok: true, decoded, outliers: findFrameOutliers(frame) };
+    const outliers = request.findOutliers && decoded.encoding === "linear" ? findFrameOutliers(frame) : undefined;
+    if (!request.spillDir) return { id: request.id, ok: true, decoded, outliers };
+    // Packed and written here, so that the calling thread neither packs nor writes while this thread decodes the next frame.
+    const { planes } = decoded.image;
+    const spilled = planes.map((plane, c) => writeSpilledFile(join(request.spillDir!, `decoded-${threadId}-${request.id}-${c}.bin`), plane));
+    return { id: request.id, ok: true, decoded: { ...decoded, image: { ...decoded.image, planes: planes.map(() => new Float32Array(0)) } }, outliers, spilled };
   }
   if (request.kind === "register-pair") return { id: request.id, ok: true, pair: refineRegistrationPair(request.task) };
   const { frame, width, height, source, params } = request;

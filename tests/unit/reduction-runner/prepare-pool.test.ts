@@ -53,6 +53,30 @@ describe("prepare pool", () => {
     else expect(pooled!.outliers).toEqual(findFrameOutliers(local));
   });
 
+  it.each(["tiff", "jpeg"] as const)("writes a decoded %s frame's planes into a spill's folder, which the spill adopts and reads back as decoded", async (format) => {
+    const path = fixture.filesOf(format)[1];
+    const local = await decodeHere(path, fixture.exposuresS[1]);
+    const spill = createFrameSpill();
+    try {
+      const pooled = await pool.decode(path, basename(path), format === "tiff", spill.dir);
+      expect(pooled?.spilled).toHaveLength(local.image.planes.length);
+      // The reply carries one empty array per plane, so that the planes can be counted without a read.
+      expect(pooled!.decoded.image.planes.map((p) => p.length)).toEqual(local.image.planes.map(() => 0));
+      // Whole counts go to disk in 16 bits, half a float plane's bytes.
+      expect(pooled!.spilled!.map((f) => f.kind)).toEqual(local.image.planes.map(() => "f32-u16"));
+      const image = pooled!.decoded.image;
+      spill.adoptField(image, "planes", pooled!.spilled!);
+      expect(spill.stats().writtenBytes).toBe(local.image.planes.length * local.image.width * local.image.height * 2);
+      image.planes.forEach((plane, c) => expect(plane).toEqual(local.image.planes[c]));
+      // Another thread reads them through the same files.
+      expect(spill.filesOf(image, "planes")).toEqual(pooled!.spilled);
+      if (format === "tiff") expect(pooled!.outliers).toEqual(findFrameOutliers(local));
+      expect(() => spill.adoptField({ planes: [] as Float32Array[] }, "planes", [{ ...pooled!.spilled![0], path: join(fixture.dir, "elsewhere.bin") }])).toThrow(/not in the spill's folder/);
+    } finally {
+      spill.close();
+    }
+  });
+
   it.each(["tiff", "jpeg"] as const)("prepares %s frames as the calling thread does", async (format) => {
     const frame = await decodeHere(fixture.filesOf(format)[1], fixture.exposuresS[1]);
     const expected = prepareFrame(frame, DEFAULT_REDUCTION_PARAMS, frame.encoding === "srgb8" ? createSrgbDecodeTable() : undefined);
