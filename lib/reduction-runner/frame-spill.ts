@@ -7,7 +7,7 @@
 // Objects keep their shape: spillField replaces a field with a getter, so the
 // numeric core (lib/imaging) reads frame.image.planes or prepared.luminance as
 // before and never knows where the data lives.
-import { mkdtempSync, readFileSync, rmSync, statfsSync, writeFileSync } from "node:fs";
+import { closeSync, mkdtempSync, openSync, readFileSync, readSync, rmSync, statfsSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { dirname, join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
@@ -50,10 +50,23 @@ export interface FrameSpill {
    * cache, and the bytes held are bytes the merge's accumulators need.
    */
   setCacheBytes: (bytes: number) => void;
+  /**
+   * Reads float32 and uint8 arrays into memory from `memory` (a plane runner's,
+   * say, so that its threads use them as they are, not copies) until set back to
+   * undefined. The caller owns what it hands out and may reuse it once the
+   * stage that read an array is done with it, so nothing read so is cached.
+   */
+  readInto: (memory: SpillMemory | undefined) => void;
   /** Bytes written to disk so far and read back from it (cache misses), as stored (whole counts in 16 bits). */
   stats: () => { writtenBytes: number; readBytes: number; cachedBytes: number };
   /** Deletes the files. */
   close: () => void;
+}
+
+/** Where a spill's reads may put their arrays (FrameSpill.readInto). */
+export interface SpillMemory {
+  float32: (length: number) => Float32Array;
+  uint8: (length: number) => Uint8Array;
 }
 
 /** A spilled array's file, for another thread to read with readSpilledFile. */
@@ -128,6 +141,38 @@ export function writeSpilledFile(path: string, array: Float32Array): SpilledFile
   return { path, kind, length: array.length };
 }
 
+/** Reads the whole file into `into`'s bytes. */
+function readFileInto(path: string, into: Uint8Array): void {
+  const fd = openSync(path, "r");
+  try {
+    for (let done = 0; done < into.length;) {
+      const n = readSync(fd, into, done, into.length - done, done);
+      if (n === 0) throw new Error(`${path} is cut short: ${done} of ${into.length} bytes`);
+      done += n;
+    }
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** A float32 or uint8 array read from its file straight into memory of the caller's (whole counts widened there). */
+function readIntoMemory(entry: { path: string; kind: Kind; length: number }, memory: SpillMemory): Float32Array | Uint8Array {
+  if (entry.kind === "u8") {
+    const out = memory.uint8(entry.length);
+    readFileInto(entry.path, out);
+    return out;
+  }
+  const out = memory.float32(entry.length);
+  if (entry.kind === "f32") readFileInto(entry.path, new Uint8Array(out.buffer, out.byteOffset, out.byteLength));
+  else {
+    const read = readFileSync(entry.path);
+    // A small file's buffer may sit at an odd offset of Buffer's shared pool.
+    const bytes = read.byteOffset % 2 === 0 ? read : Uint8Array.from(read);
+    out.set(new Uint16Array(bytes.buffer, bytes.byteOffset, entry.length));
+  }
+  return out;
+}
+
 /** Reads a spilled array's file (filesOf) as the array that was spilled. */
 export function readSpilledFile(file: SpilledFile): Typed {
   return view(readFileSync(file.path), file.kind, file.length);
@@ -142,6 +187,7 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   let cachedBytes = 0;
   let writtenBytes = 0;
   let readBytes = 0;
+  let memory: SpillMemory | undefined;
 
   const trim = () => {
     for (const [k, a] of cache) {
@@ -176,6 +222,11 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     }
     const entry = entries[key];
     if (!entry) throw new Error(`spilled array ${key} does not exist`);
+    if (memory && entry.kind !== "u16") {
+      const array = readIntoMemory(entry, memory);
+      readBytes += entry.kind === "f32-u16" ? entry.length * 2 : array.byteLength;
+      return array;
+    }
     const bytes = readFileSync(entry.path);
     readBytes += bytes.byteLength;
     const array = view(bytes, entry.kind, entry.length);
@@ -236,6 +287,9 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
     spillField,
     adoptField,
     filesOf,
+    readInto: (next) => {
+      memory = next;
+    },
     setCacheBytes: (bytes) => {
       budget = Math.max(0, bytes);
       trim();

@@ -162,18 +162,32 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
     const started = performance.now();
     // With frames on disk, their warped bands go there too between the merge's passes (the second reads instead of warping again).
     const cache = spill ? createWarpCache({ parentDir: scratchDir }) : undefined;
-    // Each pass reads a frame's arrays once, into the pool's memory: the spill's copies would only be held twice.
+    // Each pass reads a frame's arrays once, straight into the pool's memory (so its threads take
+    // them without a copy), and no cache holds them twice. What one frame's addition read is
+    // handed back to the pool once it is added: nothing refers to it after that step.
     spill?.setCacheBytes(0);
+    const lent: ArrayBufferView[] = [];
+    spill?.readInto({
+      float32: (length) => { const a = planes.float32(length, true); lent.push(a); return a; },
+      uint8: (length) => { const a = planes.uint8(length, true); lent.push(a); return a; },
+    });
+    const giveBack = () => {
+      planes.release(...lent);
+      lent.length = 0;
+    };
     let acc: MergeAccumulator;
     try {
       const steps = mergeKeptFramesInSteps(plan, frames, ready, progress, cache, planes);
       let step = steps.next();
       while (!step.done) {
+        giveBack();
         await yieldToEventLoop();
         step = steps.next();
       }
       acc = step.value;
     } finally {
+      spill?.readInto(undefined);
+      giveBack();
       cache?.close();
     }
     // The merge's result, then its shared arrays given back (the accumulator's weights, the pilot,

@@ -101,6 +101,40 @@ beforeAll(async () => {
 }, 180_000);
 afterAll(() => rmSync(join(fixture.dir, ".."), { recursive: true, force: true }));
 
+describe("the spill store's reads into memory of the caller's", () => {
+  it("reads float32 (whole counts or not) and uint8 arrays into the memory given, the same values, never cached, until told to stop", () => {
+    const spill = createFrameSpill({ cacheBytes: 1024 });
+    const counts = Float32Array.from({ length: 5000 }, (_, i) => (i * 37) % 65536);
+    const light = Float32Array.from({ length: 6 }, (_, i) => i / 7 - 0.25);
+    const mask = Uint8Array.from([0, 1, 1, 0, 1]);
+    // A short array of whole counts: a small file's buffer may sit at any offset of Buffer's pool.
+    const small = Float32Array.from([3, 65535, 0]);
+    const keys = [counts, light, mask, small].map((a) => spill.put(a));
+    const handed: ArrayBufferView[] = [];
+    spill.readInto({
+      float32: (length) => { const a = new Float32Array(new SharedArrayBuffer(4 * length)); handed.push(a); return a; },
+      uint8: (length) => { const a = new Uint8Array(new SharedArrayBuffer(length)); handed.push(a); return a; },
+    });
+    const got = keys.map((k) => spill.get(k));
+    expect(got.map((a) => a.buffer instanceof SharedArrayBuffer)).toEqual([true, true, true, true]);
+    expect(got).toEqual(handed);
+    expect(got[0]).toBeInstanceOf(Float32Array);
+    expect(Array.from(got[0])).toEqual(Array.from(counts));
+    expect(Array.from(got[1])).toEqual(Array.from(light));
+    expect(got[2]).toBeInstanceOf(Uint8Array);
+    expect(Array.from(got[2])).toEqual([0, 1, 1, 0, 1]);
+    expect(Array.from(got[3])).toEqual([3, 65535, 0]);
+    // Nothing read into the caller's memory is cached: the caller may reuse it.
+    expect(spill.stats().cachedBytes).toBe(0);
+    expect(spill.get(keys[1])).not.toBe(got[1]);
+    spill.readInto(undefined);
+    const own = spill.get(keys[1]);
+    expect(own.buffer instanceof SharedArrayBuffer).toBe(false);
+    expect(Array.from(own)).toEqual(Array.from(light));
+    spill.close();
+  });
+});
+
 describe("a reduction with its frames kept on disk", () => {
   it("gives the same master and report as one held in memory", async () => {
     const files = fixture.filesOf("tiff");
