@@ -57,6 +57,7 @@ import { failReduction, markReductionRunning } from "@/lib/reductions/run";
 import { selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { bucketName, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 import { deleteReductionWork, fetchWorkFile, getWork, putWork, type WorkPlace } from "./work-store";
+import type { WorkMemory } from "./work-blob";
 import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
@@ -172,8 +173,9 @@ async function cachedPiece<T>(place: WorkPlace, name: string): Promise<T> {
   return value;
 }
 
-async function loadFrame(place: WorkPlace, light: number): Promise<LinearFrame> {
-  return withScratch("frame", (dir) => getWork<LinearFrame>(place, `frame-${light}`, dir));
+/** A decoded frame, its float32 and uint8 arrays into `memory` when given (see getWork). */
+async function loadFrame(place: WorkPlace, light: number, memory?: WorkMemory): Promise<LinearFrame> {
+  return withScratch("frame", (dir) => getWork<LinearFrame>(place, `frame-${light}`, dir, memory));
 }
 
 /** A decoded frame with the bracket's own defect mask, as calibrateBracket gives it without masters. */
@@ -233,9 +235,17 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
     await planes.ready();
     const acc = createMergePass(plan, pilot && sharePilot(pilot, planes), planes);
     const adder = createKeptFrameAdder(plan, planes);
+    // Each frame is read straight into the pool's memory (its threads take it without a copy) and given back once added.
+    const lent: ArrayBufferView[] = [];
+    const memory: WorkMemory = {
+      float32: (length) => { const a = planes.float32(length, true); lent.push(a); return a; },
+      uint8: (length) => { const a = planes.uint8(length, true); lent.push(a); return a; },
+    };
     for (let position = from; position < to; position++) {
-      const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]]), survey.defects);
+      const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]], memory), survey.defects);
       adder.add(acc, position, frame, prepareKeptFrame(plan, position, frame));
+      planes.release(...lent);
+      lent.length = 0;
       await countMergedFrame(ctx, place, step, position, plan.keep.length);
     }
     adder.release();

@@ -211,6 +211,68 @@ export function decodeWork<T>(bytes: Buffer, what = "the work file"): T {
   return rebuild(header.value, array, undefined) as T;
 }
 
+/** Where a work file's float32 and uint8 arrays may be read into (a plane runner's memory, say). */
+export interface WorkMemory {
+  float32: (length: number) => Float32Array;
+  uint8: (length: number) => Uint8Array;
+}
+
+/** Reads bytes [at, at + into.length) of an open file into `into`. */
+function readAt(fd: number, into: Uint8Array, at: number, what: string): void {
+  for (let done = 0; done < into.length;) {
+    const n = readSync(fd, into, done, into.length - done, at + done);
+    if (n === 0) throw new Error(`${what} is cut short`);
+    done += n;
+  }
+}
+
+/** The header of an open work file. */
+function readHeaderOf(fd: number, what: string): { header: Header; dataStart: number } {
+  const probe = Buffer.alloc(MAGIC.length + 4);
+  const got = readSync(fd, probe, 0, probe.length, 0);
+  const length = got === probe.length && probe.toString("latin1", 0, MAGIC.length) === MAGIC ? probe.readUInt32LE(MAGIC.length) : 0;
+  const head = Buffer.alloc(MAGIC.length + 4 + length);
+  // A file shorter than its header says is read as far as it goes, and refused as cut short.
+  return readHeader(head.subarray(0, readSync(fd, head, 0, head.length, 0)), what);
+}
+
+/**
+ * One array of an open work file, read from its place in the file: float32 and
+ * uint8 arrays into `memory` when given (whole counts widened there), others
+ * into arrays of their own.
+ */
+function readArrayAt(fd: number, what: string, header: Header, dataStart: number, index: number, memory?: WorkMemory): Typed {
+  const e = header.arrays[index];
+  if (!e) throw new Error(`${what} names an array it does not hold`);
+  const at = dataStart + e.offset;
+  if (e.packed === "u16") {
+    const stored = new Uint16Array(e.length);
+    readAt(fd, new Uint8Array(stored.buffer), at, what);
+    if (!memory) return unpack(stored);
+    const out = memory.float32(e.length);
+    out.set(stored);
+    return out;
+  }
+  const out = memory && e.kind === "f32" ? memory.float32(e.length) : memory && e.kind === "u8" ? memory.uint8(e.length) : new KINDS[e.kind](e.length);
+  readAt(fd, new Uint8Array(out.buffer, out.byteOffset, out.byteLength), at, what);
+  return out;
+}
+
+/**
+ * Decodes a work file on disk whole: every array read at once, each straight
+ * from its place in the file (no copy of the whole file is held), float32 and
+ * uint8 ones into `memory` when given.
+ */
+export function readWorkFileWhole<T>(path: string, memory?: WorkMemory): T {
+  const fd = openSync(path, "r");
+  try {
+    const { header, dataStart } = readHeaderOf(fd, path);
+    return rebuild(header.value, (index) => readArrayAt(fd, path, header, dataStart, index, memory), undefined) as T;
+  } finally {
+    closeSync(fd);
+  }
+}
+
 /** How a lazily read array is kept: each read goes through here (a cache may keep it). */
 export type ArrayReader = (key: string, read: () => Typed) => Typed;
 
@@ -221,29 +283,14 @@ export type ArrayReader = (key: string, read: () => Typed) => Typed;
 export function readWorkFile<T>(path: string, cache: ArrayReader = (_key, read) => read()): T {
   const fd = openSync(path, "r");
   try {
-    const probe = Buffer.alloc(MAGIC.length + 4);
-    readSync(fd, probe, 0, probe.length, 0);
-    const length = probe.toString("latin1", 0, MAGIC.length) === MAGIC ? probe.readUInt32LE(MAGIC.length) : 0;
-    const head = Buffer.alloc(MAGIC.length + 4 + length);
-    readSync(fd, head, 0, head.length, 0);
-    const { header, dataStart } = readHeader(head, path);
+    const { header, dataStart } = readHeaderOf(fd, path);
     const lazy = (index: number) => () => cache(`${path}#${index}`, () => {
-      const e = header.arrays[index];
-      if (!e) throw new Error(`${path} names an array it does not hold`);
-      const ctor = e.packed === "u16" ? Uint16Array : KINDS[e.kind];
-      const bytes = new Uint8Array(e.length * ctor.BYTES_PER_ELEMENT);
       const f = openSync(path, "r");
       try {
-        let done = 0;
-        while (done < bytes.length) {
-          const n = readSync(f, bytes, done, bytes.length - done, dataStart + e.offset + done);
-          if (n === 0) throw new Error(`${path} is cut short`);
-          done += n;
-        }
+        return readArrayAt(f, path, header, dataStart, index);
       } finally {
         closeSync(f);
       }
-      return e.packed === "u16" ? unpack(new Uint16Array(bytes.buffer, 0, e.length)) : new ctor(bytes.buffer, 0, e.length);
     });
     return rebuild(header.value, (index) => lazy(index)(), lazy, (index) => header.arrays[index]?.length ?? NaN) as T;
   } finally {

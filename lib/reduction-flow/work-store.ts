@@ -3,12 +3,12 @@
 // reduction queued anew never reads an older run's pieces), deleted when the run
 // has stored its outputs. Keys are fixed by name, so a part that runs again
 // overwrites its own piece and nothing is counted twice.
-import { mkdir, mkdtemp, readFile, rm } from "node:fs/promises";
+import { mkdir, mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectFileWhole } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
-import { decodeWork, readWorkFile, writeWorkFile, type ArrayReader } from "./work-blob";
+import { readWorkFile, readWorkFileWhole, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
 
 export interface WorkPlace {
   reductionId: string;
@@ -44,10 +44,13 @@ export async function fetchWorkFile(place: WorkPlace, name: string, dir: string)
   return file;
 }
 
-/** A piece read whole into memory. */
-export async function getWork<T>(place: WorkPlace, name: string, dir: string): Promise<T> {
-  const file = await fetchWorkFile(place, name, dir);
-  return decodeWork<T>(await readFile(file), name);
+/**
+ * A piece read whole into memory, each array straight from the downloaded file;
+ * float32 and uint8 arrays into `memory` when given (a plane runner's: the
+ * caller then gives them back to it).
+ */
+export async function getWork<T>(place: WorkPlace, name: string, dir: string, memory?: WorkMemory): Promise<T> {
+  return readWorkFileWhole<T>(await fetchWorkFile(place, name, dir), memory);
 }
 
 /** A piece downloaded to `dir` whose arrays are read from disk only when touched (through `cache`). */
