@@ -4,6 +4,7 @@
 // upload parts straight from the browser and read each part's ETag.
 import path from "node:path";
 import S3rver from "s3rver";
+import { tolerateFolderRaces } from "./concurrent-deletes";
 import { multipartExtras } from "./multipart-extras";
 
 const endpoint = new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:4569");
@@ -48,6 +49,8 @@ const server = new S3rver({
   vhostBuckets: false,
   configureBuckets: [...bucketNames].map((name) => ({ name, configs: [cors] })),
 });
+
+tolerateFolderRaces((server as unknown as { store: Parameters<typeof tolerateFolderRaces>[0] }).store);
 
 // ListParts and AbortMultipartUpload, which s3rver lacks, go ahead of its router
 // (the last middleware), so that they answer before it refuses the method.

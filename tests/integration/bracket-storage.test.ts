@@ -16,9 +16,12 @@ import {
   bucketName,
   completeMultipartUpload,
   createMultipartUpload,
+  deleteObjectsUnder,
   findObjectSize,
+  listObjectKeys,
   listUploadedParts,
   PART_SIZE_BYTES,
+  putObjectBytes,
   readObjectRange,
   signPartUrls,
   sweepAbandonedUploads,
@@ -84,6 +87,19 @@ describe("multipart helpers against the S3 fake", () => {
     expect(await findObjectSize({ bucket, key })).toBeNull();
     // A second abort finds it gone and says so instead of failing.
     expect(await abortMultipartUpload(ref)).toBe(false);
+  });
+
+  it("deletes every object under a prefix, many in one folder side by side, as S3 does", async () => {
+    // s3rver removes a folder left empty after each delete; two deletes in one folder at once
+    // raced there (one removed the folder the other was reading) and the loser answered
+    // InternalError on every retry, though its object was gone: a reduction's tiles then
+    // could not be removed.
+    const prefix = `derived/test/${randomUUID()}/`;
+    // Folders of 8: each batch of deletes (8 side by side) empties one folder, and then its parents.
+    const keys = Array.from({ length: 64 }, (_, i) => `${prefix}tiles/${Math.floor(i / 8)}/${i}.jpg`);
+    for (const key of keys) await putObjectBytes({ bucket, key }, Buffer.from(patternBytes(16, keys.indexOf(key))), "image/jpeg");
+    expect(await deleteObjectsUnder({ bucket, prefix })).toBe(64);
+    expect(await listObjectKeys({ bucket, prefix })).toEqual([]);
   });
 
   it("refuses to complete an upload already aborted, as S3 does, and goes on serving", async () => {
