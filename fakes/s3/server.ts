@@ -5,6 +5,7 @@
 import path from "node:path";
 import S3rver from "s3rver";
 import { tolerateFolderRaces } from "./concurrent-deletes";
+import { sealTokensWithoutLegacyDes } from "./continuation-tokens";
 import { multipartExtras } from "./multipart-extras";
 
 const endpoint = new URL(process.env.S3_ENDPOINT ?? "http://127.0.0.1:4569");
@@ -51,6 +52,7 @@ const server = new S3rver({
 });
 
 tolerateFolderRaces((server as unknown as { store: Parameters<typeof tolerateFolderRaces>[0] }).store);
+sealTokensWithoutLegacyDes();
 
 // ListParts and AbortMultipartUpload, which s3rver lacks, go ahead of its router
 // (the last middleware), so that they answer before it refuses the method.
