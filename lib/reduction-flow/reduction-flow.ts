@@ -166,7 +166,7 @@ const pieceCache = new Map<string, unknown>();
 async function cachedPiece<T>(place: WorkPlace, name: string): Promise<T> {
   const key = `${place.reductionId}/${place.runKey}/${name}`;
   if (pieceCache.has(key)) return pieceCache.get(key) as T;
-  const value = await withScratch("piece", (dir) => getWork<T>(place, name, dir));
+  const value = await getWork<T>(place, name);
   // Only the current run's pieces stay: a worker moves from reduction to reduction.
   for (const k of pieceCache.keys()) if (!k.startsWith(`${place.reductionId}/${place.runKey}/`)) pieceCache.delete(k);
   pieceCache.set(key, value);
@@ -175,7 +175,7 @@ async function cachedPiece<T>(place: WorkPlace, name: string): Promise<T> {
 
 /** A decoded frame, its float32 and uint8 arrays into `memory` when given (see getWork). */
 async function loadFrame(place: WorkPlace, light: number, memory?: WorkMemory): Promise<LinearFrame> {
-  return withScratch("frame", (dir) => getWork<LinearFrame>(place, `frame-${light}`, dir, memory));
+  return getWork<LinearFrame>(place, `frame-${light}`, memory);
 }
 
 /** A decoded frame with the bracket's own defect mask, as calibrateBracket gives it without masters. */
@@ -200,11 +200,10 @@ function reviveAccumulator(plan: BracketPlan, stored: MergeAccumulator): MergeAc
 }
 
 /** Combines a step's partial merges in slice order, reading one at a time. */
-async function combineSlices(place: WorkPlace, plan: BracketPlan, step: string, slices: number, dir: string): Promise<MergeAccumulator> {
+async function combineSlices(place: WorkPlace, plan: BracketPlan, step: string, slices: number): Promise<MergeAccumulator> {
   let acc: MergeAccumulator | undefined;
   for (let s = 0; s < slices; s++) {
-    const part = reviveAccumulator(plan, await getWork<MergeAccumulator>(place, `${step}-${s}`, dir));
-    await rm(path.join(dir, `${step}-${s}.bin`), { force: true });
+    const part = reviveAccumulator(plan, await getWork<MergeAccumulator>(place, `${step}-${s}`));
     acc = acc ? combineMergeAccumulators([acc, part]) : part;
   }
   return acc!;
@@ -440,11 +439,8 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
           }
           // Without calibration frames, the defects are found in the bracket itself (calibrateBracket's rule): each frame's marks, counted.
           setStage(ctx.db, ctx.payload.reductionId, "survey", 0).catch(() => undefined);
-          const candidates = await withScratch("survey", async (dir) => {
-            const lists: Uint32Array[] = [];
-            for (const i of decoded) lists.push(await getWork<Uint32Array>(place, `defects-${i}`, dir));
-            return lists;
-          });
+          const candidates: Uint32Array[] = [];
+          for (const i of decoded) candidates.push(await getWork<Uint32Array>(place, `defects-${i}`));
           const badPixels = combineBracketOutliers(candidates, first.width * first.height);
           const count = countSet(badPixels);
           return { calibration: { source: count > 0 ? "bracket" : "none", badPixelCount: count } as CalibrationReport, defects: count > 0 ? badPixels : undefined };
@@ -481,7 +477,7 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
         const progress = progressWriter(ctx);
         const inputs = await cachedPiece<FlowInputs>(place, "inputs");
         const survey = await cachedPiece<{ decoded: number[]; defects?: Uint8Array }>(place, "survey");
-        const limbs = await getWork<LimbFit[]>(place, "limbs", dir);
+        const limbs = await getWork<LimbFit[]>(place, "limbs");
         const frameFiles: string[] = [];
         for (const i of survey.decoded) frameFiles.push(await fetchWorkFile(place, `frame-${i}`, dir));
         let planned;
@@ -513,7 +509,7 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
         if (values.encoded) return null;
         const place = placeOfParent(ctx);
         const plan = await cachedPiece<BracketPlan>(place, "plan");
-        const first = await withScratch("pilot", (dir) => combineSlices(place, plan, "merge-pilot", values.slices, dir));
+        const first = await combineSlices(place, plan, "merge-pilot", values.slices);
         await putWork(place, "pilot", toPilot(first));
         return null;
       }),
@@ -535,13 +531,13 @@ export const reductionFlow = defineSteppedFlow<ReductionParentContext, Reduction
         const progress = progressWriter(ctx);
         const inputs = await cachedPiece<FlowInputs>(place, "inputs");
         const survey = await cachedPiece<{ decoded: number[]; provenance: FrameProvenance[]; leftOut: FrameLeftOut[]; calibration: CalibrationReport }>(place, "survey");
-        const sky = await getWork<SkyPiece>(place, "sky", dir);
+        const sky = await getWork<SkyPiece>(place, "sky");
         const plan = await cachedPiece<BracketPlan>(place, "plan");
         // The renditions on both cores, the same as on this thread alone (the pool's worker starts while the slices are read).
         const planes = createPlanePool();
         let result;
         try {
-          const acc = await combineSlices(place, plan, "merge", sliceKept(plan.keep.length).length, dir);
+          const acc = await combineSlices(place, plan, "merge", sliceKept(plan.keep.length).length);
           result = finishBracket(plan, acc, progress, 0, planes);
         } finally {
           await planes.close();

@@ -258,19 +258,89 @@ function readArrayAt(fd: number, what: string, header: Header, dataStart: number
   return out;
 }
 
+/** Bytes taken from a stream of chunks in order: filled into arrays, or skipped. */
+function createChunkReader(chunks: AsyncIterable<Uint8Array>, what: string) {
+  const it = chunks[Symbol.asyncIterator]();
+  let chunk: Uint8Array = new Uint8Array(0);
+  let at = 0;
+  let taken = 0;
+  const next = async () => {
+    const step = await it.next();
+    if (step.done) throw new Error(`${what} is cut short`);
+    chunk = step.value;
+    at = 0;
+  };
+  return {
+    /** Bytes taken so far. */
+    taken: () => taken,
+    async fill(into: Uint8Array): Promise<void> {
+      for (let done = 0; done < into.length;) {
+        if (at === chunk.length) await next();
+        const n = Math.min(into.length - done, chunk.length - at);
+        into.set(chunk.subarray(at, at + n), done);
+        at += n;
+        done += n;
+        taken += n;
+      }
+    },
+    async skip(count: number): Promise<void> {
+      for (let done = 0; done < count;) {
+        if (at === chunk.length) await next();
+        const n = Math.min(count - done, chunk.length - at);
+        at += n;
+        done += n;
+        taken += n;
+      }
+    },
+    /** Reads on to the stream's end (a download must be taken whole). */
+    async drain(): Promise<void> {
+      for (let step = await it.next(); !step.done; step = await it.next()) taken += step.value.length;
+    },
+  };
+}
+
 /**
- * Decodes a work file on disk whole: every array read at once, each straight
- * from its place in the file (no copy of the whole file is held), float32 and
- * uint8 ones into `memory` when given.
+ * Decodes a work file as it streams in (an S3 object's body): the header, then
+ * each array in the file's order into an array of its own, float32 and uint8
+ * ones into `memory` when given, as readWorkFileWhole does from a file. No copy
+ * of the whole file is held and nothing goes to disk.
  */
-export function readWorkFileWhole<T>(path: string, memory?: WorkMemory): T {
-  const fd = openSync(path, "r");
-  try {
-    const { header, dataStart } = readHeaderOf(fd, path);
-    return rebuild(header.value, (index) => readArrayAt(fd, path, header, dataStart, index, memory), undefined) as T;
-  } finally {
-    closeSync(fd);
+export async function readWorkStream<T>(chunks: AsyncIterable<Uint8Array>, what: string, memory?: WorkMemory): Promise<T> {
+  const reader = createChunkReader(chunks, what);
+  const probe = Buffer.alloc(MAGIC.length + 4);
+  await reader.fill(probe).catch(() => undefined);
+  if (reader.taken() < probe.length || probe.toString("latin1", 0, MAGIC.length) !== MAGIC) throw new Error(`${what} is not a reduction work file`);
+  const head = Buffer.alloc(MAGIC.length + 4 + probe.readUInt32LE(MAGIC.length));
+  probe.copy(head);
+  await reader.fill(head.subarray(probe.length)).catch(() => { throw new Error(`${what} is cut short in its header`); });
+  const { header, dataStart } = readHeader(head, what);
+  const order = header.arrays.map((_, index) => index).sort((a, b) => header.arrays[a].offset - header.arrays[b].offset);
+  const arrays: Typed[] = new Array(header.arrays.length);
+  for (const index of order) {
+    const e = header.arrays[index];
+    const start = dataStart + e.offset;
+    if (start < reader.taken()) throw new Error(`${what} has arrays that overlap`);
+    await reader.skip(start - reader.taken());
+    if (e.packed === "u16") {
+      const stored = new Uint16Array(e.length);
+      await reader.fill(new Uint8Array(stored.buffer));
+      if (memory) {
+        const out = memory.float32(e.length);
+        out.set(stored);
+        arrays[index] = out;
+      } else arrays[index] = unpack(stored);
+      continue;
+    }
+    const out = memory && e.kind === "f32" ? memory.float32(e.length) : memory && e.kind === "u8" ? memory.uint8(e.length) : new KINDS[e.kind](e.length);
+    await reader.fill(new Uint8Array(out.buffer, out.byteOffset, out.byteLength));
+    arrays[index] = out;
   }
+  await reader.drain();
+  return rebuild(header.value, (index) => {
+    const array = arrays[index];
+    if (!array) throw new Error(`${what} names an array it does not hold`);
+    return array;
+  }, undefined) as T;
 }
 
 /** How a lazily read array is kept: each read goes through here (a cache may keep it). */

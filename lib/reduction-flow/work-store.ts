@@ -6,9 +6,9 @@
 import { mkdir, mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectFileWhole } from "@/lib/storage";
+import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectFileWhole, readObjectChunks } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
-import { readWorkFile, readWorkFileWhole, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
+import { readWorkFile, readWorkStream, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
 
 export interface WorkPlace {
   reductionId: string;
@@ -45,12 +45,15 @@ export async function fetchWorkFile(place: WorkPlace, name: string, dir: string)
 }
 
 /**
- * A piece read whole into memory, each array straight from the downloaded file;
- * float32 and uint8 arrays into `memory` when given (a plane runner's: the
- * caller then gives them back to it).
+ * A piece read whole into memory as it downloads, each array straight from the
+ * stream (nothing goes to local disk); float32 and uint8 arrays into `memory`
+ * when given (a plane runner's: the caller then gives them back to it).
  */
-export async function getWork<T>(place: WorkPlace, name: string, dir: string, memory?: WorkMemory): Promise<T> {
-  return readWorkFileWhole<T>(await fetchWorkFile(place, name, dir), memory);
+export async function getWork<T>(place: WorkPlace, name: string, memory?: WorkMemory): Promise<T> {
+  const ref = { bucket: bucketName("derived"), key: keyOf(place, name) };
+  const chunks = await readObjectChunks(ref);
+  if (!chunks) throw new Error(`the reduction's piece "${name}" is missing from storage (${ref.key})`);
+  return readWorkStream<T>(chunks, `the piece "${name}"`, memory);
 }
 
 /** A piece downloaded to `dir` whose arrays are read from disk only when touched (through `cache`). */

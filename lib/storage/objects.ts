@@ -27,6 +27,17 @@ export async function openObjectStream(ref: ObjectRef, s3: S3Client = getS3()): 
   }
 }
 
+/** An object's bytes as they arrive (the response's own stream, read once), or null when there is no such object. */
+export async function readObjectChunks(ref: ObjectRef, s3: S3Client = getS3()): Promise<AsyncIterable<Uint8Array> | null> {
+  try {
+    const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
+    return out.Body ? (out.Body as Readable) : null;
+  } catch (err) {
+    if (isMissingObject(err)) return null;
+    throw err;
+  }
+}
+
 /** Resolves when the bucket answers (the health check's probe of the store). */
 export async function checkBucket(bucket: string, s3: S3Client = getS3()): Promise<void> {
   await s3.send(new HeadBucketCommand({ Bucket: bucket }));

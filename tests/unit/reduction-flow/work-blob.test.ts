@@ -7,7 +7,7 @@ import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { checkFrameShape } from "@/lib/imaging/linearize";
 import { readPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
-import { createArrayCache, decodeWork, encodeWork, readWorkFile, readWorkFileWhole, writeWorkFile } from "@/lib/reduction-flow/work-blob";
+import { createArrayCache, decodeWork, encodeWork, readWorkFile, readWorkStream, writeWorkFile } from "@/lib/reduction-flow/work-blob";
 import { sliceKept, MAX_MERGE_SLICES, MIN_FRAMES_PER_SLICE } from "@/lib/reduction-flow/reduction-flow";
 
 const dir = mkdtempSync(join(tmpdir(), "crownlight-work-blob-"));
@@ -110,37 +110,36 @@ describe("a reduction's work file", () => {
     expect(back.tail).toEqual(value.tail);
   });
 
-  it("reads a file whole, each array from its place, float32 and uint8 ones into the memory given", () => {
+  it("reads a file as it streams in, chunks cut anywhere, float32 and uint8 arrays into the memory given", async () => {
     const counts = Float32Array.from({ length: 10_001 }, (_, i) => (i * 7919) % 65536);
     const value = { ...sample(), counts, tail: Uint8Array.from([1, 2, 3, 4, 5, 6, 7]) };
-    const path = join(dir, "whole.bin");
-    writeWorkFile(path, value);
-    const expected = decodeWork<typeof value>(readFileSync(path));
-    expect(readWorkFileWhole(path)).toEqual(expected);
+    const bytes = encodeWork(value);
+    const expected = decodeWork<typeof value>(bytes);
+    // Chunks of 1, 7 and 4096 bytes: a header, a padding or an array may end anywhere in one.
+    async function* chunksOf(size: number, of = bytes) {
+      for (let at = 0; at < of.length; at += size) yield of.subarray(at, at + size);
+    }
+    for (const size of [1, 7, 4096]) expect(await readWorkStream(chunksOf(size), "the piece")).toEqual(expected);
     const handed: ArrayBufferView[] = [];
-    const back = readWorkFileWhole<typeof value>(path, {
+    const back = await readWorkStream<typeof value>(chunksOf(4096), "the piece", {
       float32: (length) => { const a = new Float32Array(new SharedArrayBuffer(4 * length)); handed.push(a); return a; },
       uint8: (length) => { const a = new Uint8Array(new SharedArrayBuffer(length)); handed.push(a); return a; },
     });
     expect(back).toEqual(expected);
-    // The planes, the packed counts (widened there), the defect mask and the tail; the other kinds have arrays of their own.
+    // The planes, the defect mask, the packed counts (widened there) and the tail; the other kinds have arrays of their own.
     expect(handed).toEqual([...back.image.planes, back.badPixels, back.counts, back.tail]);
     expect(back.image.planes[0].buffer).toBeInstanceOf(SharedArrayBuffer);
     expect(back.coverage.buffer).not.toBeInstanceOf(SharedArrayBuffer);
-    // Cut short in its data, or in its header: refused, naming the file.
-    const whole = readFileSync(path);
-    const short = join(dir, "short.bin");
-    writeFileSync(short, whole.subarray(0, whole.length - 64));
-    expect(() => readWorkFileWhole(short)).toThrow(/short\.bin is cut short/);
-    writeFileSync(short, whole.subarray(0, 20));
-    expect(() => readWorkFileWhole(short)).toThrow(/short\.bin is cut short in its header/);
+    // Cut short in its data, or in its header, or no work file at all: refused, naming the piece.
+    await expect(readWorkStream(chunksOf(4096, bytes.subarray(0, bytes.length - 64)), "the piece \"frame-3\"")).rejects.toThrow('the piece "frame-3" is cut short');
+    await expect(readWorkStream(chunksOf(5, bytes.subarray(0, 20)), "the piece")).rejects.toThrow("the piece is cut short in its header");
+    await expect(readWorkStream(chunksOf(5, Buffer.from("hello, this is text")), "the piece")).rejects.toThrow("the piece is not a reduction work file");
   });
 
   it("refuses a file that is not one, naming it", () => {
     const path = join(dir, "not.bin");
     writeFileSync(path, "hello, this is text");
     expect(() => readWorkFile(path)).toThrow(/not\.bin is not a reduction work file/);
-    expect(() => readWorkFileWhole(path)).toThrow(/not\.bin is not a reduction work file/);
     expect(() => decodeWork(Buffer.from("CLWORK1\n\xff\xff\x00\x00{"), "piece")).toThrow(/piece is cut short/);
   });
 });
