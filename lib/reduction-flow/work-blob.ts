@@ -128,6 +128,31 @@ export function encodeWork(value: unknown): Buffer {
 }
 
 /**
+ * encodeWork's bytes as a sequence of chunks (the head, then each array as stored
+ * and its alignment's zeros), with their length in all: for a stream to S3 that
+ * never holds a copy of the whole value. A packed array is copied to 16 bits when
+ * its turn comes, one at a time.
+ */
+export function encodeWorkChunks(value: unknown): { length: number; chunks: () => Generator<Uint8Array> } {
+  const { head, arrays, entries, dataStart, total } = layOut(value);
+  return {
+    length: total,
+    *chunks() {
+      yield head;
+      let at = dataStart;
+      for (let i = 0; i < arrays.length; i++) {
+        const start = dataStart + entries[i].offset;
+        if (start > at) yield new Uint8Array(start - at);
+        const bytes = storedView(arrays[i], entries[i]);
+        yield bytes;
+        at = start + bytes.length;
+      }
+      if (total > at) yield new Uint8Array(total - at);
+    },
+  };
+}
+
+/**
  * encodeWork's bytes written to a file, one array at a time, so that no copy of the
  * whole value is made (a merge's accumulator at 24 megapixels is 600 MB); returns the
  * file's length.

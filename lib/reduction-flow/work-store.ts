@@ -6,9 +6,9 @@
 import { mkdir, mkdtemp, rm } from "node:fs/promises";
 import { tmpdir } from "node:os";
 import path from "node:path";
-import { bucketName, deleteObjectsUnder, downloadObjectToFile, putObjectFileWhole, readObjectChunks } from "@/lib/storage";
+import { bucketName, deleteObjectsUnder, downloadObjectToFile, MAX_SINGLE_PUT_BYTES, putObjectChunks, putObjectFileWhole, readObjectChunks } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
-import { readWorkFile, readWorkStream, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
+import { encodeWorkChunks, readWorkFile, readWorkStream, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
 
 export interface WorkPlace {
   reductionId: string;
@@ -21,16 +21,20 @@ function keyOf(place: WorkPlace, name: string): string {
 }
 
 /**
- * Stores a piece under its name (overwriting a piece of that name). It goes through a
- * file of its own, written array by array and streamed up, so that storing a value
- * never holds a second copy of it in memory.
+ * Stores a piece under its name (overwriting a piece of that name), streamed up
+ * array by array as it is encoded, so that storing a value never holds a second
+ * copy of it in memory nor writes it to local disk. A piece too large for one PUT
+ * (5 GB) goes through a file of its own and is sent in parts.
  */
 export async function putWork(place: WorkPlace, name: string, value: unknown): Promise<void> {
+  const ref = { bucket: bucketName("derived"), key: keyOf(place, name) };
+  const encoded = encodeWorkChunks(value);
+  if (encoded.length <= MAX_SINGLE_PUT_BYTES) return putObjectChunks(ref, encoded.chunks(), encoded.length, "application/octet-stream");
   const dir = await mkdtemp(path.join(tmpdir(), "crownlight-put-"));
   try {
     const file = path.join(dir, `${name}.bin`);
     writeWorkFile(file, value);
-    await putObjectFileWhole({ bucket: bucketName("derived"), key: keyOf(place, name) }, file, "application/octet-stream");
+    await putObjectFileWhole(ref, file, "application/octet-stream");
   } finally {
     await rm(dir, { recursive: true, force: true });
   }

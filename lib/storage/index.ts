@@ -14,5 +14,5 @@ export {
   type SignedPart,
   type UploadedPart,
 } from "./multipart";
-export { checkBucket, deleteObject, deleteObjectsUnder, downloadObjectToFile, findObjectSize, isMissingObject, openObjectStream, listObjectKeys, putObjectBytes, putObjectFile, putObjectFileWhole, readObjectChunks, readObjectRange, readSmallObject } from "./objects";
+export { checkBucket, deleteObject, deleteObjectsUnder, downloadObjectToFile, findObjectSize, isMissingObject, openObjectStream, listObjectKeys, MAX_SINGLE_PUT_BYTES, putObjectBytes, putObjectChunks, putObjectFile, putObjectFileWhole, readObjectChunks, readObjectRange, readSmallObject } from "./objects";
 export { sweepAbandonedUploads, type SweepResult } from "./sweep-uploads";

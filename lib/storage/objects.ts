@@ -2,7 +2,7 @@
 // sniffing, a streamed download to a temporary file, and derived files.
 import { createReadStream, createWriteStream } from "node:fs";
 import { stat } from "node:fs/promises";
-import { Transform, type Readable } from "node:stream";
+import { Readable, Transform } from "node:stream";
 import { pipeline } from "node:stream/promises";
 import { DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, HeadObjectCommand, ListObjectsV2Command, PutObjectCommand, type S3Client } from "@aws-sdk/client-s3";
 import { Upload } from "@aws-sdk/lib-storage";
@@ -100,6 +100,15 @@ export async function putObjectFile(ref: ObjectRef, path: string, contentType: s
 
 /** S3's limit on one PUT; larger files go up in parts (putObjectFile). */
 export const MAX_SINGLE_PUT_BYTES = 5 * 1024 ** 3;
+
+/**
+ * Bytes made as they are sent (a generator of chunks, `length` in all) streamed to S3
+ * in one PUT, at most MAX_SINGLE_PUT_BYTES: nothing is held whole or written to disk.
+ */
+export async function putObjectChunks(ref: ObjectRef, chunks: Iterable<Uint8Array> | AsyncIterable<Uint8Array>, length: number, contentType: string, s3: S3Client = getS3()): Promise<void> {
+  if (length > MAX_SINGLE_PUT_BYTES) throw new Error(`${ref.key}: ${length} bytes are more than one PUT takes (${MAX_SINGLE_PUT_BYTES})`);
+  await s3.send(new PutObjectCommand({ Bucket: ref.bucket, Key: ref.key, Body: Readable.from(chunks, { objectMode: false }), ContentType: contentType, ContentLength: length }));
+}
 
 /**
  * A file on disk streamed to S3 in one PUT (at most MAX_SINGLE_PUT_BYTES): no parts to

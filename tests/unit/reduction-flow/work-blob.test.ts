@@ -7,7 +7,7 @@ import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { checkFrameShape } from "@/lib/imaging/linearize";
 import { readPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
-import { createArrayCache, decodeWork, encodeWork, readWorkFile, readWorkStream, writeWorkFile } from "@/lib/reduction-flow/work-blob";
+import { createArrayCache, decodeWork, encodeWork, encodeWorkChunks, readWorkFile, readWorkStream, writeWorkFile } from "@/lib/reduction-flow/work-blob";
 import { sliceKept, MAX_MERGE_SLICES, MIN_FRAMES_PER_SLICE } from "@/lib/reduction-flow/reduction-flow";
 
 const dir = mkdtempSync(join(tmpdir(), "crownlight-work-blob-"));
@@ -108,6 +108,17 @@ describe("a reduction's work file", () => {
     const back = readWorkFile<typeof value>(path);
     expect(back.counts).toEqual(counts);
     expect(back.tail).toEqual(value.tail);
+  });
+
+  it("gives encodeWork's bytes as chunks, padding included, with their length", () => {
+    const counts = Float32Array.from({ length: 10_001 }, (_, i) => (i * 7919) % 65536);
+    const value = { ...sample(), counts, tail: Uint8Array.from([1, 2, 3, 4, 5, 6, 7]) };
+    const encoded = encodeWorkChunks(value);
+    const joined = Buffer.concat([...encoded.chunks()]);
+    expect(joined.length).toBe(encoded.length);
+    expect(joined.equals(encodeWork(value))).toBe(true);
+    // Each call makes the chunks afresh.
+    expect(Buffer.concat([...encoded.chunks()]).equals(joined)).toBe(true);
   });
 
   it("reads a file as it streams in, chunks cut anywhere, float32 and uint8 arrays into the memory given", async () => {
