@@ -9,7 +9,7 @@
 // (readWorkFile), so that a stage holding many frames reads only what it touches.
 // A float32 array of whole numbers 0 to 65535 (an uncalibrated frame's counts) is
 // stored as uint16 and read back as the same float32 values: half the bytes.
-import { closeSync, ftruncateSync, openSync, readSync, writeSync } from "node:fs";
+import { closeSync, fstatSync, ftruncateSync, openSync, readSync, writeSync } from "node:fs";
 import { markPlaneLengths } from "@/lib/imaging/types";
 
 const MAGIC = "CLWORK1\n";
@@ -183,6 +183,20 @@ function readHeader(head: Buffer, what: string): { header: Header; dataStart: nu
   return { header, dataStart: Math.ceil(headEnd / ALIGN) * ALIGN };
 }
 
+/**
+ * Refuses a header whose arrays do not fit a file of `total` bytes (or are not
+ * whole, non-negative counts of a known kind) before anything is allocated for
+ * them: a corrupt piece fails with its name, not with memory exhausted.
+ */
+function checkLayout(header: Header, dataStart: number, total: number, what: string): void {
+  if (!Array.isArray(header.arrays)) throw new Error(`${what} has no list of arrays`);
+  for (const e of header.arrays) {
+    const ctor = e && e.packed === "u16" ? Uint16Array : e && KINDS[e.kind];
+    if (!ctor || !Number.isSafeInteger(e.length) || e.length < 0 || !Number.isSafeInteger(e.offset) || e.offset < 0) throw new Error(`${what} describes an array it cannot hold`);
+    if (dataStart + e.offset + e.length * ctor.BYTES_PER_ELEMENT > total) throw new Error(`${what} is cut short: an array runs past its ${total} bytes`);
+  }
+}
+
 function rebuild(value: unknown, array: (index: number) => Typed, lazy: ((index: number) => () => Typed) | undefined, lengthOf?: (index: number) => number): unknown {
   if (value === null || typeof value !== "object") return value;
   if (Array.isArray(value)) return value.map((v) => rebuild(v, array, lazy, lengthOf));
@@ -251,37 +265,36 @@ function readAt(fd: number, into: Uint8Array, at: number, what: string): void {
   }
 }
 
-/** The header of an open work file. */
+/** The header of an open work file, its arrays checked against the file's size. */
 function readHeaderOf(fd: number, what: string): { header: Header; dataStart: number } {
+  const { size } = fstatSync(fd);
   const probe = Buffer.alloc(MAGIC.length + 4);
   const got = readSync(fd, probe, 0, probe.length, 0);
   const length = got === probe.length && probe.toString("latin1", 0, MAGIC.length) === MAGIC ? probe.readUInt32LE(MAGIC.length) : 0;
-  const head = Buffer.alloc(MAGIC.length + 4 + length);
-  // A file shorter than its header says is read as far as it goes, and refused as cut short.
-  return readHeader(head.subarray(0, readSync(fd, head, 0, head.length, 0)), what);
+  // A file shorter than its header says is refused as cut short, with no buffer of the length it claims.
+  const head = Buffer.alloc(Math.min(MAGIC.length + 4 + length, size));
+  const read = readHeader(head.subarray(0, readSync(fd, head, 0, head.length, 0)), what);
+  checkLayout(read.header, read.dataStart, size, what);
+  return read;
 }
 
-/**
- * One array of an open work file, read from its place in the file: float32 and
- * uint8 arrays into `memory` when given (whole counts widened there), others
- * into arrays of their own.
- */
-function readArrayAt(fd: number, what: string, header: Header, dataStart: number, index: number, memory?: WorkMemory): Typed {
+/** One array of an open work file, read from its place in the file. */
+function readArrayAt(fd: number, what: string, header: Header, dataStart: number, index: number): Typed {
   const e = header.arrays[index];
   if (!e) throw new Error(`${what} names an array it does not hold`);
   const at = dataStart + e.offset;
   if (e.packed === "u16") {
     const stored = new Uint16Array(e.length);
     readAt(fd, new Uint8Array(stored.buffer), at, what);
-    if (!memory) return unpack(stored);
-    const out = memory.float32(e.length);
-    out.set(stored);
-    return out;
+    return unpack(stored);
   }
-  const out = memory && e.kind === "f32" ? memory.float32(e.length) : memory && e.kind === "u8" ? memory.uint8(e.length) : new KINDS[e.kind](e.length);
+  const out = new KINDS[e.kind](e.length);
   readAt(fd, new Uint8Array(out.buffer, out.byteOffset, out.byteLength), at, what);
   return out;
 }
+
+/** The stream ended before the bytes a reader wanted (told apart from the stream's own faults). */
+class StreamEnded extends Error {}
 
 /** Bytes taken from a stream of chunks in order: filled into arrays, or skipped. */
 function createChunkReader(chunks: AsyncIterable<Uint8Array>, what: string) {
@@ -291,7 +304,7 @@ function createChunkReader(chunks: AsyncIterable<Uint8Array>, what: string) {
   let taken = 0;
   const next = async () => {
     const step = await it.next();
-    if (step.done) throw new Error(`${what} is cut short`);
+    if (step.done) throw new StreamEnded(`${what} is cut short`);
     chunk = step.value;
     at = 0;
   };
@@ -321,51 +334,71 @@ function createChunkReader(chunks: AsyncIterable<Uint8Array>, what: string) {
     async drain(): Promise<void> {
       for (let step = await it.next(); !step.done; step = await it.next()) taken += step.value.length;
     },
+    /** Lets the stream go unread (a Node stream's iterator destroys it, and its socket goes back). */
+    async abandon(): Promise<void> {
+      await it.return?.();
+    },
   };
 }
 
 /**
- * Decodes a work file as it streams in (an S3 object's body): the header, then
- * each array in the file's order into an array of its own, float32 and uint8
- * ones into `memory` when given, as readWorkFileWhole does from a file. No copy
- * of the whole file is held and nothing goes to disk.
+ * Decodes a work file as it streams in (an S3 object's body, `totalBytes` long
+ * when known): the header, then each array in the file's order into an array
+ * of its own, float32 and uint8 ones into `memory` when given (whole counts
+ * widened there). No copy of the whole file is held and nothing goes to disk.
+ * On any fault the stream is let go, so that its connection is not held.
  */
-export async function readWorkStream<T>(chunks: AsyncIterable<Uint8Array>, what: string, memory?: WorkMemory): Promise<T> {
+export async function readWorkStream<T>(chunks: AsyncIterable<Uint8Array>, what: string, memory?: WorkMemory, totalBytes?: number): Promise<T> {
   const reader = createChunkReader(chunks, what);
-  const probe = Buffer.alloc(MAGIC.length + 4);
-  await reader.fill(probe).catch(() => undefined);
-  if (reader.taken() < probe.length || probe.toString("latin1", 0, MAGIC.length) !== MAGIC) throw new Error(`${what} is not a reduction work file`);
-  const head = Buffer.alloc(MAGIC.length + 4 + probe.readUInt32LE(MAGIC.length));
-  probe.copy(head);
-  await reader.fill(head.subarray(probe.length)).catch(() => { throw new Error(`${what} is cut short in its header`); });
-  const { header, dataStart } = readHeader(head, what);
-  const order = header.arrays.map((_, index) => index).sort((a, b) => header.arrays[a].offset - header.arrays[b].offset);
-  const arrays: Typed[] = new Array(header.arrays.length);
-  for (const index of order) {
-    const e = header.arrays[index];
-    const start = dataStart + e.offset;
-    if (start < reader.taken()) throw new Error(`${what} has arrays that overlap`);
-    await reader.skip(start - reader.taken());
-    if (e.packed === "u16") {
-      const stored = new Uint16Array(e.length);
-      await reader.fill(new Uint8Array(stored.buffer));
-      if (memory) {
-        const out = memory.float32(e.length);
-        out.set(stored);
-        arrays[index] = out;
-      } else arrays[index] = unpack(stored);
-      continue;
+  try {
+    const probe = Buffer.alloc(MAGIC.length + 4);
+    const ended = (err: unknown) => {
+      if (!(err instanceof StreamEnded)) throw err;
+    };
+    await reader.fill(probe).catch(ended);
+    if (reader.taken() < probe.length || probe.toString("latin1", 0, MAGIC.length) !== MAGIC) throw new Error(`${what} is not a reduction work file`);
+    const headLength = MAGIC.length + 4 + probe.readUInt32LE(MAGIC.length);
+    if (totalBytes !== undefined && headLength > totalBytes) throw new Error(`${what} is cut short in its header`);
+    const head = Buffer.alloc(headLength);
+    probe.copy(head);
+    await reader.fill(head.subarray(probe.length)).catch((err: unknown) => {
+      ended(err);
+      throw new Error(`${what} is cut short in its header`);
+    });
+    const { header, dataStart } = readHeader(head, what);
+    if (totalBytes !== undefined) checkLayout(header, dataStart, totalBytes, what);
+    else checkLayout(header, dataStart, Number.MAX_SAFE_INTEGER, what);
+    const order = header.arrays.map((_, index) => index).sort((a, b) => header.arrays[a].offset - header.arrays[b].offset);
+    const arrays: Typed[] = new Array(header.arrays.length);
+    for (const index of order) {
+      const e = header.arrays[index];
+      const start = dataStart + e.offset;
+      if (start < reader.taken()) throw new Error(`${what} has arrays that overlap`);
+      await reader.skip(start - reader.taken());
+      if (e.packed === "u16") {
+        const stored = new Uint16Array(e.length);
+        await reader.fill(new Uint8Array(stored.buffer));
+        if (memory) {
+          const out = memory.float32(e.length);
+          out.set(stored);
+          arrays[index] = out;
+        } else arrays[index] = unpack(stored);
+        continue;
+      }
+      const out = memory && e.kind === "f32" ? memory.float32(e.length) : memory && e.kind === "u8" ? memory.uint8(e.length) : new KINDS[e.kind](e.length);
+      await reader.fill(new Uint8Array(out.buffer, out.byteOffset, out.byteLength));
+      arrays[index] = out;
     }
-    const out = memory && e.kind === "f32" ? memory.float32(e.length) : memory && e.kind === "u8" ? memory.uint8(e.length) : new KINDS[e.kind](e.length);
-    await reader.fill(new Uint8Array(out.buffer, out.byteOffset, out.byteLength));
-    arrays[index] = out;
+    await reader.drain();
+    return rebuild(header.value, (index) => {
+      const array = arrays[index];
+      if (!array) throw new Error(`${what} names an array it does not hold`);
+      return array;
+    }, undefined) as T;
+  } catch (err) {
+    await reader.abandon().catch(() => undefined);
+    throw err;
   }
-  await reader.drain();
-  return rebuild(header.value, (index) => {
-    const array = arrays[index];
-    if (!array) throw new Error(`${what} names an array it does not hold`);
-    return array;
-  }, undefined) as T;
 }
 
 /** How a lazily read array is kept: each read goes through here (a cache may keep it). */

@@ -55,9 +55,9 @@ export async function fetchWorkFile(place: WorkPlace, name: string, dir: string)
  */
 export async function getWork<T>(place: WorkPlace, name: string, memory?: WorkMemory): Promise<T> {
   const ref = { bucket: bucketName("derived"), key: keyOf(place, name) };
-  const chunks = await readObjectChunks(ref);
-  if (!chunks) throw new Error(`the reduction's piece "${name}" is missing from storage (${ref.key})`);
-  return readWorkStream<T>(chunks, `the piece "${name}"`, memory);
+  const body = await readObjectChunks(ref);
+  if (!body) throw new Error(`the reduction's piece "${name}" is missing from storage (${ref.key})`);
+  return readWorkStream<T>(body.chunks, `the piece "${name}"`, memory, body.length);
 }
 
 /** A piece downloaded to `dir` whose arrays are read from disk only when touched (through `cache`). */

@@ -166,6 +166,7 @@ function readIntoMemory(entry: { path: string; kind: Kind; length: number }, mem
   if (entry.kind === "f32") readFileInto(entry.path, new Uint8Array(out.buffer, out.byteOffset, out.byteLength));
   else {
     const read = readFileSync(entry.path);
+    if (read.length !== 2 * entry.length) throw new Error(`${entry.path} holds ${read.length} bytes, not the ${2 * entry.length} of its array`);
     // A small file's buffer may sit at an odd offset of Buffer's shared pool.
     const bytes = read.byteOffset % 2 === 0 ? read : Uint8Array.from(read);
     out.set(new Uint16Array(bytes.buffer, bytes.byteOffset, entry.length));

@@ -27,11 +27,15 @@ export async function openObjectStream(ref: ObjectRef, s3: S3Client = getS3()): 
   }
 }
 
-/** An object's bytes as they arrive (the response's own stream, read once), or null when there is no such object. */
-export async function readObjectChunks(ref: ObjectRef, s3: S3Client = getS3()): Promise<AsyncIterable<Uint8Array> | null> {
+/**
+ * An object's bytes as they arrive (the response's own stream, read once; a
+ * reader that stops early must end its iteration, which destroys the stream and
+ * frees its connection) with its length, or null when there is no such object.
+ */
+export async function readObjectChunks(ref: ObjectRef, s3: S3Client = getS3()): Promise<{ chunks: AsyncIterable<Uint8Array>; length?: number } | null> {
   try {
     const out = await s3.send(new GetObjectCommand({ Bucket: ref.bucket, Key: ref.key }));
-    return out.Body ? (out.Body as Readable) : null;
+    return out.Body ? { chunks: out.Body as Readable, length: out.ContentLength } : null;
   } catch (err) {
     if (isMissingObject(err)) return null;
     throw err;

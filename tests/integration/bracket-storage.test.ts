@@ -90,10 +90,9 @@ describe("multipart helpers against the S3 fake", () => {
   });
 
   it("deletes every object under a prefix, many in one folder side by side, as S3 does", async () => {
-    // s3rver removes a folder left empty after each delete; two deletes in one folder at once
-    // raced there (one removed the folder the other was reading) and the loser answered
-    // InternalError on every retry, though its object was gone: a reduction's tiles then
-    // could not be removed.
+    // Through the fake's HTTP, end to end. s3rver removes a folder left empty after each delete,
+    // and deletes side by side in one folder race there; that race is shown on its store alone
+    // (tests/unit/fakes/s3-concurrent-deletes.test.ts), where its timing is sure.
     const prefix = `derived/test/${randomUUID()}/`;
     // Folders of 8: each batch of deletes (8 side by side) empties one folder, and then its parents.
     const keys = Array.from({ length: 64 }, (_, i) => `${prefix}tiles/${Math.floor(i / 8)}/${i}.jpg`);

@@ -4,6 +4,7 @@
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { Readable } from "node:stream";
 import { afterAll, describe, expect, it } from "vitest";
 import { checkFrameShape } from "@/lib/imaging/linearize";
 import { readPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
@@ -145,6 +146,28 @@ describe("a reduction's work file", () => {
     await expect(readWorkStream(chunksOf(4096, bytes.subarray(0, bytes.length - 64)), "the piece \"frame-3\"")).rejects.toThrow('the piece "frame-3" is cut short');
     await expect(readWorkStream(chunksOf(5, bytes.subarray(0, 20)), "the piece")).rejects.toThrow("the piece is cut short in its header");
     await expect(readWorkStream(chunksOf(5, Buffer.from("hello, this is text")), "the piece")).rejects.toThrow("the piece is not a reduction work file");
+  });
+
+  it("lets a stream go when it refuses it, and refuses a layout past the stream's length before allocating it", async () => {
+    const bytes = encodeWork({ ...sample(), counts: Float32Array.from({ length: 5000 }, (_, i) => i) });
+    // Not a work file: refused, and the body (an S3 response's stream) destroyed, so its connection is freed.
+    const text = Readable.from([Buffer.from("hello, this is text, and more of it")]);
+    await expect(readWorkStream(text, "the piece")).rejects.toThrow("the piece is not a reduction work file");
+    expect(text.destroyed).toBe(true);
+    // A stream that fails (a connection reset) fails with its own fault, not as a format error.
+    const reset = new Readable({ read() { this.destroy(Object.assign(new Error("read ECONNRESET"), { code: "ECONNRESET" })); } });
+    await expect(readWorkStream(reset, "the piece")).rejects.toThrow("read ECONNRESET");
+    // A header that claims 4 GB, or an array past the object's length: refused before anything of that size is made.
+    const huge = Buffer.from(bytes);
+    huge.writeUInt32LE(0xffffffff, 8);
+    const claimsHuge = Readable.from([huge]);
+    await expect(readWorkStream(claimsHuge, "the piece", undefined, huge.length)).rejects.toThrow("the piece is cut short in its header");
+    expect(claimsHuge.destroyed).toBe(true);
+    await expect(readWorkStream(Readable.from([bytes.subarray(0, bytes.length - 64)]), "the piece", undefined, bytes.length - 64)).rejects.toThrow(/the piece is cut short: an array runs past its \d+ bytes/);
+    // The same for a file on disk.
+    const path = join(dir, "short-array.bin");
+    writeFileSync(path, bytes.subarray(0, bytes.length - 64));
+    expect(() => readWorkFile(path)).toThrow(/short-array\.bin is cut short: an array runs past/);
   });
 
   it("refuses a file that is not one, naming it", () => {
