@@ -68,6 +68,32 @@ export function inRunnerMemory<T extends Float32Array | Uint8Array>(runner: Plan
   return { array: copy, copied: true };
 }
 
+/** Where a reader of pixel data may put the arrays it reads (a frame spill, a work piece). */
+export interface ArrayMemory {
+  float32: (length: number) => Float32Array;
+  uint8: (length: number) => Uint8Array;
+}
+
+/**
+ * Memory of the runner's lent to readers (so that its threads use what they read
+ * as it is, not copies), and its return: giveBack hands every array lent since
+ * the last giveBack to the runner again. Call it once nothing looks at them.
+ */
+export function lendRunnerMemory(runner: PlaneRunner): { memory: ArrayMemory; giveBack: () => void } {
+  const lent: ArrayBufferView[] = [];
+  const lend = <T extends ArrayBufferView>(array: T): T => {
+    lent.push(array);
+    return array;
+  };
+  return {
+    memory: { float32: (length) => lend(runner.float32(length, true)), uint8: (length) => lend(runner.uint8(length, true)) },
+    giveBack: () => {
+      runner.release(...lent);
+      lent.length = 0;
+    },
+  };
+}
+
 /** The calling thread alone: plain arrays, each run as one range. */
 export const SERIAL_PLANE_RUNNER: PlaneRunner = {
   float32: (length) => new Float32Array(length),

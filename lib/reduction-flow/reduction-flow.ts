@@ -29,7 +29,7 @@ import type { Db, DbOrTx } from "@/db/client";
 import { bracketSets, kits, reductions, sites } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { createKeptFrameAdder, createMergePass, finishBracket, prepareKeptFrame } from "@/lib/imaging/bracket-finish";
-import { inRunnerMemory, type PlaneRunner } from "@/lib/imaging/plane-runner";
+import { inRunnerMemory, lendRunnerMemory, type PlaneRunner } from "@/lib/imaging/plane-runner";
 import type { BracketPlan, FrameLeftOut } from "@/lib/imaging/bracket-plan";
 import { buildCalibrationMasters, calibrateLightFrame, type CalibrationMasters } from "@/lib/imaging/calibrate";
 import { combineBracketOutliers, findFrameOutliers } from "@/lib/imaging/calibrate-defects";
@@ -57,7 +57,7 @@ import { failReduction, markReductionRunning } from "@/lib/reductions/run";
 import { selectReductionFrames, type StoredReductionParams } from "@/lib/reductions/reductions";
 import { bucketName, downloadObjectToFile, toSafeFileName } from "@/lib/storage";
 import { deleteReductionWork, fetchWorkFile, getWork, putWork, type WorkPlace } from "./work-store";
-import type { WorkMemory } from "./work-blob";
+import type { ArrayMemory } from "@/lib/imaging/plane-runner";
 import { planInThread, PlanInputFault, type SkyPiece } from "./plan-stage";
 import { storeReductionOutputs } from "./store-outputs";
 
@@ -174,7 +174,7 @@ async function cachedPiece<T>(place: WorkPlace, name: string): Promise<T> {
 }
 
 /** A decoded frame, its float32 and uint8 arrays into `memory` when given (see getWork). */
-async function loadFrame(place: WorkPlace, light: number, memory?: WorkMemory): Promise<LinearFrame> {
+async function loadFrame(place: WorkPlace, light: number, memory?: ArrayMemory): Promise<LinearFrame> {
   return getWork<LinearFrame>(place, `frame-${light}`, memory);
 }
 
@@ -235,16 +235,11 @@ async function mergeSlice(ctx: ReductionPartContext, step: "merge-pilot" | "merg
     const acc = createMergePass(plan, pilot && sharePilot(pilot, planes), planes);
     const adder = createKeptFrameAdder(plan, planes);
     // Each frame is read straight into the pool's memory (its threads take it without a copy) and given back once added.
-    const lent: ArrayBufferView[] = [];
-    const memory: WorkMemory = {
-      float32: (length) => { const a = planes.float32(length, true); lent.push(a); return a; },
-      uint8: (length) => { const a = planes.uint8(length, true); lent.push(a); return a; },
-    };
+    const { memory, giveBack } = lendRunnerMemory(planes);
     for (let position = from; position < to; position++) {
       const frame = withDefects(await loadFrame(place, survey.decoded[plan.keep[position]], memory), survey.defects);
       adder.add(acc, position, frame, prepareKeptFrame(plan, position, frame));
-      planes.release(...lent);
-      lent.length = 0;
+      giveBack();
       await countMergedFrame(ctx, place, step, position, plan.keep.length);
     }
     adder.release();

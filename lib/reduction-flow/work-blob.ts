@@ -10,6 +10,7 @@
 // A float32 array of whole numbers 0 to 65535 (an uncalibrated frame's counts) is
 // stored as uint16 and read back as the same float32 values: half the bytes.
 import { closeSync, fstatSync, ftruncateSync, openSync, readSync, writeSync } from "node:fs";
+import type { ArrayMemory } from "@/lib/imaging/plane-runner";
 import { markPlaneLengths } from "@/lib/imaging/types";
 
 const MAGIC = "CLWORK1\n";
@@ -250,11 +251,6 @@ export function decodeWork<T>(bytes: Buffer, what = "the work file"): T {
   return rebuild(header.value, array, undefined) as T;
 }
 
-/** Where a work file's float32 and uint8 arrays may be read into (a plane runner's memory, say). */
-export interface WorkMemory {
-  float32: (length: number) => Float32Array;
-  uint8: (length: number) => Uint8Array;
-}
 
 /** Reads bytes [at, at + into.length) of an open file into `into`. */
 function readAt(fd: number, into: Uint8Array, at: number, what: string): void {
@@ -348,7 +344,7 @@ function createChunkReader(chunks: AsyncIterable<Uint8Array>, what: string) {
  * widened there). No copy of the whole file is held and nothing goes to disk.
  * On any fault the stream is let go, so that its connection is not held.
  */
-export async function readWorkStream<T>(chunks: AsyncIterable<Uint8Array>, what: string, memory?: WorkMemory, totalBytes?: number): Promise<T> {
+export async function readWorkStream<T>(chunks: AsyncIterable<Uint8Array>, what: string, memory?: ArrayMemory, totalBytes?: number): Promise<T> {
   const reader = createChunkReader(chunks, what);
   try {
     const probe = Buffer.alloc(MAGIC.length + 4);

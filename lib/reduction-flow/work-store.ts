@@ -8,7 +8,8 @@ import { tmpdir } from "node:os";
 import path from "node:path";
 import { bucketName, deleteObjectsUnder, downloadObjectToFile, MAX_SINGLE_PUT_BYTES, putObjectChunks, putObjectFileWhole, readObjectChunks } from "@/lib/storage";
 import { buildReductionWorkPrefix } from "@/lib/storage/keys";
-import { encodeWorkChunks, readWorkFile, readWorkStream, writeWorkFile, type ArrayReader, type WorkMemory } from "./work-blob";
+import { encodeWorkChunks, readWorkFile, readWorkStream, writeWorkFile, type ArrayReader } from "./work-blob";
+import type { ArrayMemory } from "@/lib/imaging/plane-runner";
 
 export interface WorkPlace {
   reductionId: string;
@@ -53,7 +54,7 @@ export async function fetchWorkFile(place: WorkPlace, name: string, dir: string)
  * stream (nothing goes to local disk); float32 and uint8 arrays into `memory`
  * when given (a plane runner's: the caller then gives them back to it).
  */
-export async function getWork<T>(place: WorkPlace, name: string, memory?: WorkMemory): Promise<T> {
+export async function getWork<T>(place: WorkPlace, name: string, memory?: ArrayMemory): Promise<T> {
   const ref = { bucket: bucketName("derived"), key: keyOf(place, name) };
   const body = await readObjectChunks(ref);
   if (!body) throw new Error(`the reduction's piece "${name}" is missing from storage (${ref.key})`);

@@ -11,6 +11,7 @@ import { closeSync, mkdtempSync, openSync, readFileSync, readSync, rmSync, statf
 import { tmpdir } from "node:os";
 import { dirname, join } from "node:path";
 import type { PreparedFrame } from "@/lib/imaging/pipeline";
+import type { ArrayMemory } from "@/lib/imaging/plane-runner";
 import { markPlaneLengths, type LinearFrame } from "@/lib/imaging/types";
 
 type Typed = Float32Array | Uint8Array | Uint16Array;
@@ -56,17 +57,11 @@ export interface FrameSpill {
    * undefined. The caller owns what it hands out and may reuse it once the
    * stage that read an array is done with it, so nothing read so is cached.
    */
-  readInto: (memory: SpillMemory | undefined) => void;
+  readInto: (memory: ArrayMemory | undefined) => void;
   /** Bytes written to disk so far and read back from it (cache misses), as stored (whole counts in 16 bits). */
   stats: () => { writtenBytes: number; readBytes: number; cachedBytes: number };
   /** Deletes the files. */
   close: () => void;
-}
-
-/** Where a spill's reads may put their arrays (FrameSpill.readInto). */
-export interface SpillMemory {
-  float32: (length: number) => Float32Array;
-  uint8: (length: number) => Uint8Array;
 }
 
 /** A spilled array's file, for another thread to read with readSpilledFile. */
@@ -156,7 +151,7 @@ function readFileInto(path: string, into: Uint8Array): void {
 }
 
 /** A float32 or uint8 array read from its file straight into memory of the caller's (whole counts widened there). */
-function readIntoMemory(entry: { path: string; kind: Kind; length: number }, memory: SpillMemory): Float32Array | Uint8Array {
+function readIntoMemory(entry: { path: string; kind: Kind; length: number }, memory: ArrayMemory): Float32Array | Uint8Array {
   if (entry.kind === "u8") {
     const out = memory.uint8(entry.length);
     readFileInto(entry.path, out);
@@ -188,7 +183,7 @@ export function createFrameSpill(options: FrameSpillOptions = {}): FrameSpill {
   let cachedBytes = 0;
   let writtenBytes = 0;
   let readBytes = 0;
-  let memory: SpillMemory | undefined;
+  let memory: ArrayMemory | undefined;
 
   const trim = () => {
     for (const [k, a] of cache) {

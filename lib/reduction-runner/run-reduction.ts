@@ -24,6 +24,7 @@ import { choosePreparedFrames, createFrameSpill, createRemadeFrames, remakePrepa
 import { createPlanePool } from "./plane-pool";
 import { createPreparePool, PREPARE_WORKERS, type PreparePool } from "./prepare-pool";
 import { createWarpCache } from "./warp-cache";
+import { lendRunnerMemory } from "@/lib/imaging/plane-runner";
 import { commitStagedOutput, createStagedOutput, discardStagedOutput, type StagedOutput } from "./output-dir";
 import type { HelioGeometry } from "./helio-wcs";
 import type { SiteSpec } from "./sky-site";
@@ -166,15 +167,8 @@ async function reduceInSteps(frames: LinearFrame[], prepared: readonly (Prepared
     // them without a copy), and no cache holds them twice. What one frame's addition read is
     // handed back to the pool once it is added: nothing refers to it after that step.
     spill?.setCacheBytes(0);
-    const lent: ArrayBufferView[] = [];
-    spill?.readInto({
-      float32: (length) => { const a = planes.float32(length, true); lent.push(a); return a; },
-      uint8: (length) => { const a = planes.uint8(length, true); lent.push(a); return a; },
-    });
-    const giveBack = () => {
-      planes.release(...lent);
-      lent.length = 0;
-    };
+    const { memory, giveBack } = lendRunnerMemory(planes);
+    spill?.readInto(memory);
     let acc: MergeAccumulator;
     try {
       const steps = mergeKeptFramesInSteps(plan, frames, ready, progress, cache, planes);
